@@ -1,0 +1,43 @@
+/** Where a problem is: file, 1-based line, column name. All optional. */
+export interface Place {
+  readonly file?: string | undefined;
+  readonly line?: number | undefined;
+  readonly column?: string | undefined;
+}
+
+/**
+ * An error caused by the user's input or options (as opposed to a bug). The command line
+ * prints its message and exits with code 2; the host shows it to the user.
+ */
+export class InputError extends Error {
+  readonly place: Place;
+  constructor(message: string, place: Place = {}) {
+    super(message);
+    this.name = 'InputError';
+    this.place = place;
+  }
+  /** The message prefixed with file:line and column where known. */
+  describe(): string {
+    const p = this.place;
+    const at = [p.file, p.line !== undefined ? `line ${p.line}` : undefined, p.column !== undefined ? `column "${p.column}"` : undefined]
+      .filter((s) => s !== undefined)
+      .join(', ');
+    return at ? `${at}: ${this.message}` : this.message;
+  }
+}
+
+/** Raised when a fit cannot be computed at the asked df (rank deficiency, too few x, ...). */
+export class FitError extends InputError {
+  constructor(message: string) {
+    super(message);
+    this.name = 'FitError';
+  }
+}
+
+/** Raised when a long computation was cancelled through its cancellation token. */
+export class CancelledError extends Error {
+  constructor() {
+    super('cancelled');
+    this.name = 'CancelledError';
+  }
+}
