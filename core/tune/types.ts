@@ -1,0 +1,83 @@
+import type { Family } from '../types';
+
+/** How candidate errors are estimated. The same resamples serve every candidate. */
+export type ResampleSpec =
+  | { readonly kind: 'boot'; readonly resamples: number }
+  | { readonly kind: 'cv'; readonly folds: number; readonly repeats: number }
+  | { readonly kind: 'loo' }
+  | { readonly kind: 'gcv' };
+
+/** How the df is chosen from the candidates. */
+export type RuleSpec =
+  | { readonly kind: 'lowest' }
+  | { readonly kind: '1se' }
+  | { readonly kind: 'tol'; readonly percent: number }
+  | { readonly kind: 'manual'; readonly df: number };
+
+/** Error measure the rules compare. */
+export type Metric = 'rmse' | 'mae' | 'maxAbs' | 'gcv';
+
+/** Mean over resamples, its standard error (SD / sqrt(count)) and the per-resample values. */
+export interface ErrorSummary {
+  readonly mean: number;
+  readonly se: number;
+  readonly values: readonly number[];
+}
+
+/** One candidate df of one family: its errors, or the reason it was skipped. */
+export interface CandidateResult {
+  readonly df: number;
+  readonly skipped?: string;
+  readonly errors: {
+    readonly rmse?: ErrorSummary;
+    readonly mae?: ErrorSummary;
+    readonly maxAbs?: ErrorSummary;
+    readonly gcv?: ErrorSummary;
+  };
+  /** Information criteria of the fit to all tuning rows (absent when skipped). */
+  readonly aic?: number;
+  readonly aicc?: number;
+  readonly bic?: number;
+}
+
+/** The outcome of applying a rule. */
+export interface Selection {
+  readonly df: number;
+  readonly rule: RuleSpec;
+  readonly metric: Metric;
+  /** Plain-language explanation with the numbers behind it. */
+  readonly reason: string;
+  /** For the one-SE and tolerance rules: the error threshold the chosen df is under. */
+  readonly threshold?: number;
+  /** What each of the other rules would have chosen. */
+  readonly alternatives: readonly { readonly rule: RuleSpec; readonly df: number }[];
+}
+
+/** Errors of the chosen fit on the held-out check set, next to the resampled estimate. */
+export interface HoldoutReport {
+  readonly fraction: number;
+  readonly rows: number;
+  readonly rmse: number;
+  readonly mae: number;
+  readonly maxAbs: number;
+  readonly resampledRmse: number;
+  readonly warning?: string;
+}
+
+/** The full outcome of tuning one family. */
+export interface TuneResult {
+  readonly family: Family;
+  readonly resample: ResampleSpec;
+  readonly seed: number;
+  readonly metric: Metric;
+  readonly candidates: readonly CandidateResult[];
+  readonly selected: Selection;
+  readonly holdout?: HoldoutReport;
+  readonly notes: readonly string[];
+}
+
+/** Progress and cancellation, so a host can show a long run and stop it. */
+export interface Progress {
+  report(done: number, total: number, message: string): void;
+  readonly cancelled: () => boolean;
+}
