@@ -1,0 +1,14 @@
+/**
+ * A basis whose value at any x has at most `width` nonzero entries, stored contiguously
+ * from the index `row` returns. Cubic B-spline bases have width 4; dense bases (the
+ * orthogonal polynomials) have width = size. Fitting, leverage and band kernels only
+ * touch those entries, so their cost is O(n width^2).
+ */
+export interface RowBasis {
+  /** Number of basis functions. */
+  readonly size: number;
+  /** Largest number of nonzero entries in one row. */
+  readonly width: number;
+  /** Writes the nonzero basis values at x into out[0..width) and returns the index of the first. */
+  row(x: number, out: Float64Array): number;
+}

@@ -1,0 +1,55 @@
+import { qt } from '../stats/distributions';
+import type { FitResult } from '../types';
+
+/** The fitted curve with pointwise bands at a set of x. */
+export interface Bands {
+  readonly x: Float64Array;
+  readonly fit: Float64Array;
+  /** Standard error of the fitted mean. */
+  readonly se: Float64Array;
+  readonly ciLower: Float64Array;
+  readonly ciUpper: Float64Array;
+  readonly piLower: Float64Array;
+  readonly piUpper: Float64Array;
+  /** 1 where x lies outside the data range. */
+  readonly extrapolated: Uint8Array;
+}
+
+/**
+ * Pointwise confidence band for the mean curve, fit +- t se, and prediction band for a
+ * new reading of weight 1, fit +- t sqrt(se^2 + sigma^2), with t the (1 + level)/2
+ * quantile of Student's t on n - df residual degrees of freedom (DESIGN.md "Bands";
+ * Weisberg, Applied Linear Regression, 4th ed., 2014, section 3.5). se = sigma
+ * sqrt(b(x)' V b(x)). O(m) for m points. Points outside the data range are computed
+ * (splines extend linearly) and flagged in `extrapolated`.
+ * Example: bandsAt(fit, [1, 2, 3]).ciUpper.
+ */
+export function bandsAt(fit: FitResult, xs: ArrayLike<number>, level = 0.95): Bands {
+  const m = xs.length;
+  const t = fit.residualDf > 0 ? qt(0.5 + level / 2, fit.residualDf) : NaN;
+  const out = {
+    x: Float64Array.from(xs),
+    fit: new Float64Array(m),
+    se: new Float64Array(m),
+    ciLower: new Float64Array(m),
+    ciUpper: new Float64Array(m),
+    piLower: new Float64Array(m),
+    piUpper: new Float64Array(m),
+    extrapolated: new Uint8Array(m),
+  };
+  const s2 = fit.sigma * fit.sigma;
+  for (let i = 0; i < m; i++) {
+    const x = xs[i] as number;
+    const f = fit.curve.value(x);
+    const se = Math.sqrt(s2 * Math.max(0, fit.curve.varianceFactor(x)));
+    const pe = Math.sqrt(se * se + s2);
+    out.fit[i] = f;
+    out.se[i] = se;
+    out.ciLower[i] = f - t * se;
+    out.ciUpper[i] = f + t * se;
+    out.piLower[i] = f - t * pe;
+    out.piUpper[i] = f + t * pe;
+    out.extrapolated[i] = x < fit.curve.lower || x > fit.curve.upper ? 1 : 0;
+  }
+  return out;
+}

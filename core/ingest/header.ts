@@ -1,0 +1,68 @@
+/**
+ * Column names and units from the header row, and unique labels for every column.
+ */
+
+/** A header cell split into its name and the unit at its end. */
+export interface HeaderName {
+  readonly name: string;
+  readonly unit: string | undefined;
+}
+
+/** Name, then a unit in [..] or (..) at the very end: `flow [L/min]`, `T(degC)`. */
+const UNIT_PATTERN = /^(.*?)\s*(?:\[\s*([^\[\]]*?)\s*\]|\(\s*([^()]*?)\s*\))$/s;
+
+/**
+ * Splits a header cell into name and unit: `flow [L/min]` -> { name: 'flow', unit:
+ * 'L/min' }, `temperature (degC)` -> { name: 'temperature', unit: 'degC' }. Text without
+ * a trailing bracket, or with an empty name or unit, is all name.
+ */
+export function splitUnit(header: string): HeaderName {
+  const text = header.trim();
+  const m = UNIT_PATTERN.exec(text);
+  const name = m?.[1];
+  const unit = m?.[2] ?? m?.[3];
+  if (name === undefined || unit === undefined || name === '' || unit === '') return { name: text, unit: undefined };
+  return { name, unit };
+}
+
+/** Label, name and unit of one column. */
+export interface ColumnName {
+  readonly label: string;
+  readonly header: string;
+  readonly unit: string | undefined;
+}
+
+/**
+ * Unique labels for `count` columns. With header texts, a column's label is its name
+ * without the unit; empty names become "column k" (k 1-based) and repeats get " (2)",
+ * " (3)", ... in order, skipping any label another column already has. Without a header
+ * every column is "column k". Example: columnNames(['x', 'x', '']) -> labels x, x (2),
+ * column 3.
+ */
+export function columnNames(headers: readonly string[] | undefined, count: number): ColumnName[] {
+  const parts: HeaderName[] = [];
+  const wanted: string[] = [];
+  for (let k = 0; k < count; k++) {
+    const part = headers === undefined ? { name: '', unit: undefined } : splitUnit(headers[k] ?? '');
+    parts.push(part);
+    wanted.push(part.name === '' ? `column ${k + 1}` : part.name);
+  }
+  const taken = new Set<string>();
+  const labels: (string | undefined)[] = wanted.map((w) => {
+    if (taken.has(w)) return undefined;
+    taken.add(w);
+    return w;
+  });
+  const allWanted = new Set(wanted);
+  return parts.map((part, k) => {
+    let label = labels[k];
+    if (label === undefined) {
+      const base = wanted[k] as string;
+      let n = 2;
+      while (taken.has(`${base} (${n})`) || allWanted.has(`${base} (${n})`)) n++;
+      label = `${base} (${n})`;
+      taken.add(label);
+    }
+    return { label, header: headers?.[k] ?? '', unit: part.unit };
+  });
+}

@@ -1,0 +1,139 @@
+/**
+ * Picks the x, y and optional weight columns of a parsed table as XYData, leaving out
+ * (and listing) every row that cannot be used.
+ */
+import { InputError } from '../errors';
+import type { XYData } from '../types';
+import type { ColumnInfo, ParsedTable } from './types';
+
+/** Which columns to use, by label or header text. */
+export interface ColumnChoice {
+  readonly x: string;
+  readonly y: string;
+  readonly weights?: string | undefined;
+}
+
+/** A row left out: its line, the column at fault ('' for the whole row) and why. */
+export interface RejectedRow {
+  readonly line: number;
+  readonly column: string;
+  readonly reason: string;
+}
+
+/** Result of `selectColumns`. */
+export interface Selection {
+  readonly data: XYData;
+  /** Rows left out, by line: cells of the chosen columns and rows the table could not read. */
+  readonly rejected: RejectedRow[];
+  readonly labels: { readonly x: string; readonly y: string; readonly weights?: string };
+  readonly units: { readonly x: string | undefined; readonly y: string | undefined; readonly weights?: string | undefined };
+}
+
+/**
+ * Finds a column by label or header text: exact match first, then ignoring case. Throws
+ * InputError listing the available columns when none matches.
+ */
+export function findColumn(table: ParsedTable, name: string, file?: string): ColumnInfo {
+  const cols = table.columns;
+  const exact = cols.find((c) => c.label === name) ?? cols.find((c) => c.header !== '' && c.header === name);
+  if (exact !== undefined) return exact;
+  const lower = name.toLowerCase();
+  const loose = cols.find((c) => c.label.toLowerCase() === lower) ?? cols.find((c) => c.header !== '' && c.header.toLowerCase() === lower);
+  if (loose !== undefined) return loose;
+  const available = cols.map((c) => (c.header !== '' && c.header.trim() !== c.label ? `"${c.label}" (header "${c.header}")` : `"${c.label}"`)).join(', ');
+  throw new InputError(`no column named ${JSON.stringify(name)}; the columns are ${available}`, { file, column: name });
+}
+
+/** Throws InputError when the column holds text rather than numbers. */
+function requireNumeric(table: ParsedTable, col: ColumnInfo, file: string | undefined): void {
+  if (col.numeric || col.invalidCount === 0) return;
+  const row = col.problems.rows[0] as number;
+  const line = table.lines[row] as number;
+  const filled = col.numericCount + col.invalidCount;
+  throw new InputError(
+    `column "${col.label}" is not numeric: ${col.invalidCount} of its ${filled} filled cells are not numbers, e.g. line ${line}: ${col.problems.reasons[0] as string}`,
+    { file, line, column: col.label },
+  );
+}
+
+/** Walks a column's sparse problem list alongside increasing row indices. */
+class ReasonCursor {
+  private next = 0;
+  constructor(private readonly col: ColumnInfo) {}
+  /** Reason for the NaN cell at `row` (rows must be asked in increasing order). */
+  reason(row: number): string {
+    const rows = this.col.problems.rows;
+    while (this.next < rows.length && (rows[this.next] as number) < row) this.next++;
+    return this.next < rows.length && rows[this.next] === row ? (this.col.problems.reasons[this.next] as string) : 'missing value';
+  }
+}
+
+/**
+ * Chooses x, y and weight columns. A row is rejected, with the first reason in the order
+ * x, y, weights, when a chosen cell is missing or invalid, or a weight is not > 0. Rows the
+ * table itself could not read (wrong field count) are listed too, with column ''.
+ * Throws InputError for an unknown column, a non-numeric chosen column (naming a bad cell
+ * and its line), or when no row is left. Cost O(rows).
+ * Example: selectColumns(parseCsvText('t,v\n1,2\n3,NA\n'), { x: 't', y: 'v' }) -> data
+ * { x: [1], y: [2], lines: [2] }, rejected [{ line: 3, column: 'v', reason: 'missing value' }].
+ */
+export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: string): Selection {
+  const chosen: ColumnInfo[] = [findColumn(table, choice.x, file), findColumn(table, choice.y, file)];
+  if (choice.weights !== undefined) chosen.push(findColumn(table, choice.weights, file));
+  for (const col of chosen) requireNumeric(table, col, file);
+  const n = table.rowCount;
+  const cursors = chosen.map((c) => new ReasonCursor(c));
+  const columns = chosen.map((c) => table.values[c.index] as Float64Array);
+  const hasWeights = chosen.length === 3;
+  const xs = columns[0] as Float64Array;
+  const ys = columns[1] as Float64Array;
+  const ws = hasWeights ? (columns[2] as Float64Array) : undefined;
+  const keep = new Uint8Array(n);
+  let kept = 0;
+  const rejected: RejectedRow[] = [];
+  for (let r = 0; r < n; r++) {
+    let reason: string | undefined;
+    let at = 0;
+    for (; at < columns.length; at++) {
+      const v = (columns[at] as Float64Array)[r] as number;
+      if (v - v !== 0) {
+        reason = (cursors[at] as ReasonCursor).reason(r);
+        break;
+      }
+    }
+    if (reason === undefined && ws !== undefined && !((ws[r] as number) > 0)) reason = `weight ${ws[r] as number} is not positive`;
+    if (reason === undefined) {
+      keep[r] = 1;
+      kept++;
+    } else {
+      rejected.push({ line: table.lines[r] as number, column: (chosen[at] as ColumnInfo).label, reason });
+    }
+  }
+  for (const p of table.problems) if (p.column === undefined) rejected.push({ line: p.line, column: '', reason: p.reason });
+  rejected.sort((a, b) => a.line - b.line);
+  if (kept === 0) {
+    const first = rejected[0];
+    const names = chosen.map((c) => `"${c.label}"`).join(', ');
+    const detail = first !== undefined ? ` (the first: line ${first.line}${first.column !== '' ? `, column "${first.column}"` : ''}: ${first.reason})` : '';
+    throw new InputError(`no usable rows: every row has a missing or invalid value in ${names}${detail}`, { file });
+  }
+  const x = new Float64Array(kept);
+  const y = new Float64Array(kept);
+  const w = ws !== undefined ? new Float64Array(kept) : undefined;
+  const lines = new Int32Array(kept);
+  for (let r = 0, i = 0; r < n; r++) {
+    if (keep[r] === 0) continue;
+    x[i] = xs[r] as number;
+    y[i] = ys[r] as number;
+    if (w !== undefined) w[i] = (ws as Float64Array)[r] as number;
+    lines[i] = table.lines[r] as number;
+    i++;
+  }
+  const [cx, cy, cw] = chosen as [ColumnInfo, ColumnInfo, ColumnInfo | undefined];
+  return {
+    data: { x, y, w, lines },
+    rejected,
+    labels: cw !== undefined ? { x: cx.label, y: cy.label, weights: cw.label } : { x: cx.label, y: cy.label },
+    units: cw !== undefined ? { x: cx.unit, y: cy.unit, weights: cw.unit } : { x: cx.unit, y: cy.unit },
+  };
+}

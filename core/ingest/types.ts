@@ -1,0 +1,93 @@
+/**
+ * Shapes of a parsed CSV table. Columns are typed arrays (NaN marks a missing or invalid
+ * cell); problems are kept compactly per column and as a flat list for messages.
+ */
+
+/** Field separators Knotwise detects. */
+export type Delimiter = ',' | ';' | '\t';
+
+/** Line break style of the file ('none' when the text has a single line). */
+export type LineEnding = 'lf' | 'crlf' | 'cr' | 'none';
+
+/** What was detected (or forced through the options) about the file's format. */
+export interface CsvFormat {
+  readonly delimiter: Delimiter;
+  /** True when numbers use a decimal comma (`1,5`); then a decimal point is invalid. */
+  readonly decimalComma: boolean;
+  /** True when the first record holds column names. */
+  readonly header: boolean;
+  /** True when the text started with a UTF-8 byte order mark (removed before parsing). */
+  readonly bom: boolean;
+  readonly lineEnding: LineEnding;
+}
+
+/**
+ * Invalid cells of one column as a sparse list: `rows[i]` is a data-row index (0-based,
+ * ascending; its file line is `table.lines[rows[i]]`) and `reasons[i]` says why.
+ */
+export interface CellProblems {
+  readonly rows: Int32Array;
+  readonly reasons: readonly string[];
+}
+
+/** One column of the table. */
+export interface ColumnInfo {
+  /** 0-based position in the record. */
+  readonly index: number;
+  /** Unique label: the header name without its unit, or "column k" (1-based) when absent. */
+  readonly label: string;
+  /** The header cell exactly as written ('' without a header row). */
+  readonly header: string;
+  /** Unit taken from brackets or parentheses at the end of the header, if any. */
+  readonly unit: string | undefined;
+  readonly numericCount: number;
+  readonly missingCount: number;
+  readonly invalidCount: number;
+  /** True when most non-missing cells are numbers (numericCount > invalidCount). */
+  readonly numeric: boolean;
+  readonly problems: CellProblems;
+}
+
+/** A problem with a whole row (no column) or with one cell (column = its label). */
+export interface TableProblem {
+  /** 1-based physical line in the file where the record starts. */
+  readonly line: number;
+  readonly column?: string;
+  readonly reason: string;
+}
+
+/** A CSV file read into typed columns. */
+export interface ParsedTable {
+  readonly columns: readonly ColumnInfo[];
+  /** One array per column, each of length rowCount; NaN for missing and invalid cells. */
+  readonly values: readonly Float64Array[];
+  /** 1-based physical line where each data record starts. */
+  readonly lines: Int32Array;
+  readonly rowCount: number;
+  readonly format: CsvFormat;
+  /**
+   * Everything that was not read as a number, sorted by line: rows with the wrong number
+   * of fields (not stored in `values`), invalid cells of numeric columns, and one summary
+   * entry per non-numeric column that holds text.
+   */
+  readonly problems: readonly TableProblem[];
+  /** Lines with no content (or only spaces), which hold no data and are skipped. */
+  readonly blankLines: number;
+}
+
+/** Options of the CSV reader; anything left out is detected from the first 64 KB. */
+export interface CsvReaderOptions {
+  /** Name of the file, used in error messages. */
+  readonly file?: string | undefined;
+  readonly delimiter?: Delimiter | undefined;
+  readonly header?: boolean | undefined;
+  readonly decimalComma?: boolean | undefined;
+}
+
+/** Streaming reader: push text chunks in order, then finish. */
+export interface CsvReader {
+  /** Adds the next piece of text; chunks may split lines, fields and quoted fields anywhere. */
+  push(chunk: string): void;
+  /** Ends the input and returns the table (throws InputError for unusable input). */
+  finish(): ParsedTable;
+}

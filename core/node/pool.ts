@@ -1,0 +1,71 @@
+import { availableParallelism } from 'node:os';
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { Worker } from 'node:worker_threads';
+import { CancelledError } from '../errors';
+import type { ResampleProblem } from '../tune/engine';
+import { inlineRunner, type ResampleRunner } from '../tune/tune';
+import type { Progress } from '../tune/types';
+
+/** Below this many row-resamples the thread start-up costs more than it saves. */
+const INLINE_BELOW = 200_000;
+/** How often cancellation is polled while workers run (ms). */
+const CANCEL_POLL_MS = 50;
+
+/** Path of the worker script: the bundled one next to the CLI/extension, or the TypeScript source under tsx. */
+function workerScript(): { file: string; execArgv: string[] } {
+  const bundled = join(__dirname, 'resampleWorker.js');
+  if (existsSync(bundled)) return { file: bundled, execArgv: [] };
+  return { file: join(__dirname, 'resampleWorker.ts'), execArgv: ['--import', 'tsx'] };
+}
+
+/**
+ * Runs resamples in worker threads (one per core, at most `threads`), interleaving the
+ * resample indices so workers finish together. Each resample's errors depend only on
+ * (seed, resample index), so results are identical to the inline runner. Progress is
+ * reported per finished resample; when `progress.cancelled()` turns true the workers are
+ * terminated and the promise rejects with CancelledError. Small problems run inline.
+ */
+export function workerRunner(threads = availableParallelism()): ResampleRunner {
+  return {
+    async run(problem: ResampleProblem, count: number, progress?: Progress): Promise<Float64Array[]> {
+      const workers = Math.max(1, Math.min(threads, count));
+      if (workers === 1 || problem.x.length * count < INLINE_BELOW) return inlineRunner.run(problem, count, progress);
+      const { file, execArgv } = workerScript();
+      const results: Float64Array[] = new Array(count);
+      let done = 0;
+      const pool: Worker[] = [];
+      return await new Promise<Float64Array[]>((resolve, reject) => {
+        let settled = false;
+        const finish = (err?: Error): void => {
+          if (settled) return;
+          settled = true;
+          clearInterval(timer);
+          for (const w of pool) void w.terminate();
+          if (err) reject(err);
+          else resolve(results);
+        };
+        const timer = setInterval(() => {
+          if (progress?.cancelled()) finish(new CancelledError());
+        }, CANCEL_POLL_MS);
+        for (let k = 0; k < workers; k++) {
+          const indices: number[] = [];
+          for (let r = k; r < count; r += workers) indices.push(r);
+          const worker = new Worker(file, { workerData: { problem, indices }, execArgv });
+          pool.push(worker);
+          worker.on('message', (m: { type: string; r?: number; errors?: Float64Array; message?: string }) => {
+            if (m.type === 'resample') {
+              results[m.r as number] = m.errors as Float64Array;
+              done++;
+              progress?.report(done, count, `resample ${done} of ${count}`);
+              if (done === count) finish();
+            } else if (m.type === 'error') {
+              finish(new Error(`resampling worker failed: ${m.message}`));
+            }
+          });
+          worker.on('error', (e) => finish(e));
+        }
+      });
+    },
+  };
+}

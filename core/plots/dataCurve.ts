@@ -1,0 +1,56 @@
+/**
+ * Figure: the readings with the fitted curve, its 95 % confidence band for the mean and
+ * the 95 % prediction band for a new reading.
+ */
+import type { Cloud, CurveView } from '../protocol';
+import { cloudMarks, cloudRanges, cloudWords } from './cloud';
+import { plotFrame } from './frame';
+import { extent } from './scale';
+import { bandPath, linePath, num, svgDocument } from './svg';
+
+/** Inputs of dataCurveSvg. Labels may come from the CSV; they are escaped. */
+export interface DataCurveSpec {
+  readonly id: string;
+  readonly data: Cloud;
+  readonly grid: readonly number[];
+  readonly curve: CurveView;
+  readonly xLabel: string;
+  readonly yLabel: string;
+}
+
+/** SVG text of the data-and-curve figure. Example: dataCurveSvg({ id: 'fig-data', data, grid, curve, xLabel: 'x', yLabel: 'y' }). */
+export function dataCurveSvg(spec: DataCurveSpec): string {
+  const { curve, grid } = spec;
+  const r = cloudRanges(spec.data);
+  const frame = plotFrame({
+    id: spec.id,
+    xDomain: extent([r.x, grid], 0.02),
+    yDomain: extent([r.y, curve.piLower, curve.piUpper]),
+    xLabel: spec.xLabel,
+    yLabel: spec.yLabel,
+  });
+  const px = grid.map((v) => frame.sx(v));
+  const map = (a: readonly number[]) => a.map((v) => frame.sy(v));
+  const body =
+    frame.clipDef +
+    frame.axes +
+    `<g clip-path="${frame.clip}">` +
+    `<path class="kw-band-pi" d="${bandPath(px, map(curve.piLower), map(curve.piUpper))}"/>` +
+    `<path class="kw-band-ci" d="${bandPath(px, map(curve.ciLower), map(curve.ciUpper))}"/>` +
+    `</g>` +
+    cloudMarks(spec.data, frame, { x: spec.xLabel, y: spec.yLabel }) +
+    `<path class="kw-curve" clip-path="${frame.clip}" d="${linePath(px, map(curve.fit))}"/>`;
+  const lo = grid[0] ?? NaN;
+  const hi = grid[grid.length - 1] ?? NaN;
+  return svgDocument(
+    spec.id,
+    {
+      title: `${spec.yLabel} against ${spec.xLabel} with the fitted curve (df ${num(curve.df)})`,
+      desc:
+        `${cloudWords(spec.data)}. The fitted curve with df ${num(curve.df)} runs from ${spec.xLabel} ${num(lo)} to ${num(hi)}, ` +
+        `from ${num(curve.fit[0] ?? NaN)} to ${num(curve.fit[curve.fit.length - 1] ?? NaN)}. ` +
+        `The narrow shaded band is the 95 % confidence band of the mean curve, the wide one the 95 % prediction band for a new reading.`,
+    },
+    body,
+  );
+}

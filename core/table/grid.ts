@@ -1,0 +1,87 @@
+import { InputError } from '../errors';
+
+/** Where the curve table is evaluated. */
+export type GridSpec =
+  | { readonly kind: 'count'; readonly start: number; readonly stop: number; readonly count: number }
+  | { readonly kind: 'step'; readonly start: number; readonly stop: number; readonly step: number }
+  | { readonly kind: 'data' }
+  | { readonly kind: 'list'; readonly values: readonly number[] };
+
+/** Most grid points in one table. */
+export const MAX_GRID_POINTS = 1_000_000;
+/** Default number of table points over the data range. */
+export const DEFAULT_GRID_COUNT = 101;
+
+/**
+ * Parses a grid: `<start>:<stop>:<count>`, `<start>:<stop>:step=<step>`, `data` (the
+ * distinct x of the data) or a list `1,2.5,4`.
+ */
+export function parseGrid(text: string): GridSpec {
+  const t = text.trim();
+  if (t === 'data') return { kind: 'data' };
+  const parts = t.split(':');
+  if (parts.length === 3) {
+    const start = num(parts[0] as string, 'start', t);
+    const stop = num(parts[1] as string, 'stop', t);
+    if (!(stop > start)) throw new InputError(`grid "${t}": stop must be greater than start`);
+    const last = parts[2] as string;
+    if (last.startsWith('step=')) {
+      const step = num(last.slice(5), 'step', t);
+      if (!(step > 0)) throw new InputError(`grid "${t}": step must be positive`);
+      if ((stop - start) / step + 1 > MAX_GRID_POINTS) throw new InputError(`grid "${t}" has more than ${MAX_GRID_POINTS} points`);
+      return { kind: 'step', start, stop, step };
+    }
+    const count = num(last, 'count', t);
+    if (!Number.isInteger(count) || count < 2 || count > MAX_GRID_POINTS) throw new InputError(`grid "${t}": count must be a whole number from 2 to ${MAX_GRID_POINTS}`);
+    return { kind: 'count', start, stop, count };
+  }
+  const values = t.split(',').map((s) => num(s, 'value', t));
+  return { kind: 'list', values: [...values].sort((a, b) => a - b) };
+}
+
+function num(s: string, what: string, whole: string): number {
+  const v = Number(s.trim());
+  if (s.trim() === '' || !Number.isFinite(v)) throw new InputError(`grid "${whole}": ${what} "${s}" is not a number`);
+  return v;
+}
+
+/**
+ * The grid's x values. Counts are spaced evenly with start and stop exact; steps run from
+ * start while <= stop (+ a relative 1e-9 allowance for rounding); `data` gives the sorted
+ * distinct x. O(points).
+ */
+export function gridPoints(spec: GridSpec, sortedX: Float64Array): Float64Array {
+  switch (spec.kind) {
+    case 'count': {
+      const out = new Float64Array(spec.count);
+      for (let i = 0; i < spec.count; i++) out[i] = i === spec.count - 1 ? spec.stop : spec.start + ((spec.stop - spec.start) * i) / (spec.count - 1);
+      return out;
+    }
+    case 'step': {
+      const m = Math.floor((spec.stop - spec.start) / spec.step + 1e-9) + 1;
+      return Float64Array.from({ length: m }, (_, i) => spec.start + i * spec.step);
+    }
+    case 'data': {
+      const out: number[] = [];
+      for (let i = 0; i < sortedX.length; i++) if (i === 0 || sortedX[i] !== sortedX[i - 1]) out.push(sortedX[i] as number);
+      return Float64Array.from(out);
+    }
+    case 'list':
+      return Float64Array.from(spec.values);
+  }
+}
+
+/** Default grid: DEFAULT_GRID_COUNT points over the data range. */
+export function defaultGrid(sortedX: Float64Array): GridSpec {
+  return { kind: 'count', start: sortedX[0] as number, stop: sortedX[sortedX.length - 1] as number, count: DEFAULT_GRID_COUNT };
+}
+
+/** Throws InputError when grid points fall outside [lower, upper] and extrapolation was not asked for. */
+export function checkInRange(points: Float64Array, lower: number, upper: number, allowExtrapolation: boolean): number {
+  let outside = 0;
+  for (const p of points) if (p < lower || p > upper) outside++;
+  if (outside > 0 && !allowExtrapolation) {
+    throw new InputError(`${outside} grid point(s) lie outside the data range [${lower}, ${upper}]; extrapolation is refused unless asked for (--extrapolate)`);
+  }
+  return outside;
+}

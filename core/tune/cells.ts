@@ -1,0 +1,68 @@
+/**
+ * Cells of the union of several knot sets. Within one cell every cubic B-spline of every
+ * candidate is a single cubic polynomial in t = (x - cell start) / cell width, t in [0, 1],
+ * which lets one pass of weighted power sums serve all candidates (DESIGN.md, Scale).
+ */
+export interface Cells {
+  /** Cell start points, length C + 1 (the last entry is the upper boundary). */
+  readonly breaks: Float64Array;
+  /** Cell of each row. */
+  readonly cell: Int32Array;
+  /** Scaled position of each row in its cell, in [0, 1]. */
+  readonly t: Float64Array;
+}
+
+/** Builds the cells of the sorted, de-duplicated union of `knotSets` over the data x. O(n log C). */
+export function buildCells(x: Float64Array, knotSets: readonly Float64Array[]): Cells {
+  const all: number[] = [];
+  for (const k of knotSets) for (const v of k) all.push(v);
+  all.sort((a, b) => a - b);
+  const uniq: number[] = [];
+  for (const v of all) if (uniq.length === 0 || v > (uniq[uniq.length - 1] as number)) uniq.push(v);
+  const breaks = Float64Array.from(uniq);
+  const cellCount = breaks.length - 1;
+  const n = x.length;
+  const cell = new Int32Array(n);
+  const t = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const xi = x[i] as number;
+    let lo = 0;
+    let hi = cellCount;
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (xi < (breaks[mid] as number)) hi = mid;
+      else lo = mid;
+    }
+    const start = breaks[lo] as number;
+    const width = (breaks[lo + 1] as number) - start;
+    cell[i] = lo;
+    t[i] = (xi - start) / width;
+  }
+  return { breaks, cell, t };
+}
+
+/** Number of sums kept per cell: w t^p (p = 0..6), w y t^p (p = 0..3), w y^2. */
+export const SUMS_PER_CELL = 12;
+
+/**
+ * Adds row i with weight wt to the per-cell sums `s` (cell-major, SUMS_PER_CELL each).
+ * About a dozen multiply-adds, whatever the number of candidates.
+ */
+export function accumulateRow(s: Float64Array, cellIndex: number, t: number, y: number, wt: number): void {
+  const o = cellIndex * SUMS_PER_CELL;
+  const t2 = t * t;
+  const t3 = t2 * t;
+  const wy = wt * y;
+  s[o] = (s[o] as number) + wt;
+  s[o + 1] = (s[o + 1] as number) + wt * t;
+  s[o + 2] = (s[o + 2] as number) + wt * t2;
+  s[o + 3] = (s[o + 3] as number) + wt * t3;
+  s[o + 4] = (s[o + 4] as number) + wt * t2 * t2;
+  s[o + 5] = (s[o + 5] as number) + wt * t2 * t3;
+  s[o + 6] = (s[o + 6] as number) + wt * t3 * t3;
+  s[o + 7] = (s[o + 7] as number) + wy;
+  s[o + 8] = (s[o + 8] as number) + wy * t;
+  s[o + 9] = (s[o + 9] as number) + wy * t2;
+  s[o + 10] = (s[o + 10] as number) + wy * t3;
+  s[o + 11] = (s[o + 11] as number) + wy * y;
+}

@@ -1,0 +1,295 @@
+import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
+import { OrthoPolyBasis } from '../basis/orthoPoly';
+import type { RowBasis } from '../basis/rowBasis';
+import { FitError } from '../errors';
+import { prepareData } from '../fit/prepared';
+import { smoothingSplineAtLambda } from '../fit/smoothingSpline';
+import { factorSpd } from '../linalg/spd';
+import { nullSpace } from '../linalg/nullSpace';
+import type { Family } from '../types';
+import { accumulateRow, buildCells, type Cells, SUMS_PER_CELL } from './cells';
+import { bootstrapCounts, foldLabels } from './plan';
+import { SplineFromSums } from './splineSums';
+import type { ResampleSpec } from './types';
+
+/** Everything a worker needs to evaluate resamples; plain data, so it can be posted to a thread. */
+export interface ResampleProblem {
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly w?: Float64Array | undefined;
+  readonly family: Family;
+  /** Candidate df that can be fitted to all tuning rows. */
+  readonly dfs: readonly number[];
+  /** Smoothing spline only: the lambda each candidate's df gives on all tuning rows. */
+  readonly lambdas?: readonly number[] | undefined;
+  /** 'boot' or 'cv'. */
+  readonly resample: ResampleSpec;
+  readonly seed: number;
+  /** Row indices in x order (for stratified folds). */
+  readonly order: Int32Array;
+}
+
+/** Number of error values per candidate and resample: RMSE, MAE, maximum absolute error. */
+export const ERRORS_PER_CANDIDATE = 3;
+
+/** Predicts at test rows after training on weighted rows: one per candidate. */
+interface Trainer {
+  /** Trains with the given row weights (0 = not in training); false when rank deficient. */
+  train(weights: Float64Array, sums: Float64Array | undefined): boolean;
+  /** Prediction for row i after training (in centred, scaled y units). */
+  predict(i: number): number;
+  /** Weighted SSE from test sums when the trainer can (power-sum path), else undefined. */
+  sseFromSums?(testSums: Float64Array): number;
+}
+
+/**
+ * Evaluates resamples for all candidates of one family. The same resamples serve every
+ * candidate. For natural splines one pass of per-cell power sums per resample serves all
+ * candidates (DESIGN.md, Scale); k-fold training sums are total minus fold. Polynomials
+ * and smoothing splines refit from the weighted rows. y is centred and scaled first so the
+ * power-sum subtraction keeps its digits; errors are scaled back.
+ */
+export class ResampleEngine {
+  private readonly n: number;
+  private readonly yc: Float64Array;
+  private readonly ymean: number;
+  private readonly yscale: number;
+  private readonly cells: Cells | undefined;
+  private readonly trainers: Trainer[];
+  private readonly counts: Uint32Array;
+  private readonly weights: Float64Array;
+  private readonly testIdx: Int32Array;
+  private readonly sums: Float64Array | undefined;
+  private readonly testSums: Float64Array | undefined;
+  private cvRepeat = -1;
+  private labels: Uint16Array | undefined;
+  private foldSums: Float64Array | undefined;
+
+  constructor(private readonly problem: ResampleProblem) {
+    const { x, y, w } = problem;
+    const n = x.length;
+    this.n = n;
+    let sw = 0;
+    let swy = 0;
+    for (let i = 0; i < n; i++) {
+      const wi = w ? (w[i] as number) : 1;
+      sw += wi;
+      swy += wi * (y[i] as number);
+    }
+    this.ymean = swy / sw;
+    let ss = 0;
+    for (let i = 0; i < n; i++) ss += (w ? (w[i] as number) : 1) * ((y[i] as number) - this.ymean) ** 2;
+    this.yscale = Math.sqrt(ss / sw) || 1;
+    this.yc = new Float64Array(n);
+    for (let i = 0; i < n; i++) this.yc[i] = ((y[i] as number) - this.ymean) / this.yscale;
+    this.counts = new Uint32Array(n);
+    this.weights = new Float64Array(n);
+    this.testIdx = new Int32Array(n);
+    const built = this.buildTrainers();
+    this.trainers = built.trainers;
+    this.cells = built.cells;
+    const cellCount = this.cells ? this.cells.breaks.length - 1 : 0;
+    this.sums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
+    this.testSums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
+  }
+
+  private buildTrainers(): { trainers: Trainer[]; cells: Cells | undefined } {
+    const { x, family, dfs } = this.problem;
+    const prepared = prepareData({ x, y: this.yc, w: this.problem.w });
+    if (family === 'natural') {
+      const bases = dfs.map((df) => {
+        const k = naturalKnots(prepared.sortedX, prepared.distinct, df);
+        const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
+        return { df, basis, knots: Float64Array.of(k.lower, ...k.interior, k.upper) };
+      });
+      const cells = buildCells(x, bases.map((b) => b.knots));
+      const trainers = bases.map(({ df, basis }) => {
+        const model = new SplineFromSums(cells, basis, nullSpace(basis.naturalConstraint(), 2, basis.size), `natural spline with df ${df}`);
+        return {
+          train: (_w: Float64Array, sums: Float64Array | undefined) => model.fit(sums as Float64Array),
+          predict: (i: number) => model.valueAt(cells.cell[i] as number, cells.t[i] as number),
+          sseFromSums: (testSums: Float64Array) => model.sse(testSums),
+        };
+      });
+      return { trainers, cells };
+    }
+    if (family === 'poly') {
+      return { trainers: dfs.map((df) => basisTrainer(x, this.yc, df === 1 ? constantBasis : new OrthoPolyBasis(prepared.sortedX, x, df - 1), `polynomial with df ${df}`)), cells: undefined };
+    }
+    const lambdas = this.problem.lambdas ?? [];
+    return { trainers: dfs.map((df, k) => smoothTrainer(x, this.yc, lambdas[k] as number, df)), cells: undefined };
+  }
+
+  /** Number of candidates. */
+  get size(): number {
+    return this.trainers.length;
+  }
+
+  /**
+   * Errors of resample r for every candidate: out[k] RMSE, out[C + k] MAE, out[2C + k]
+   * maximum absolute error (NaN when candidate k is rank deficient in this resample).
+   */
+  run(r: number, out: Float64Array): void {
+    const spec = this.problem.resample;
+    const { n, weights, testIdx } = this;
+    const w = this.problem.w;
+    let nTest = 0;
+    if (spec.kind === 'boot') {
+      bootstrapCounts(n, this.problem.seed, r, this.counts);
+      this.sums?.fill(0);
+      this.testSums?.fill(0);
+      for (let i = 0; i < n; i++) {
+        const c = this.counts[i] as number;
+        const wi = w ? (w[i] as number) : 1;
+        weights[i] = c * wi;
+        if (c === 0) testIdx[nTest++] = i;
+        if (this.cells) accumulateRow(c > 0 ? (this.sums as Float64Array) : (this.testSums as Float64Array), this.cells.cell[i] as number, this.cells.t[i] as number, this.yc[i] as number, c > 0 ? c * wi : wi);
+      }
+    } else if (spec.kind === 'cv') {
+      const repeat = Math.floor(r / spec.folds);
+      const fold = r % spec.folds;
+      this.prepareRepeat(repeat, spec.folds);
+      const labels = this.labels as Uint16Array;
+      for (let i = 0; i < n; i++) {
+        const inFold = labels[i] === fold;
+        weights[i] = inFold ? 0 : w ? (w[i] as number) : 1;
+        if (inFold) testIdx[nTest++] = i;
+      }
+      if (this.cells) {
+        const fs = this.foldSums as Float64Array;
+        const len = (this.sums as Float64Array).length;
+        const totalOff = spec.folds * len;
+        for (let j = 0; j < len; j++) {
+          const test = fs[fold * len + j] as number;
+          (this.testSums as Float64Array)[j] = test;
+          (this.sums as Float64Array)[j] = (fs[totalOff + j] as number) - test;
+        }
+      }
+    } else {
+      throw new Error(`resampling ${spec.kind} has no resamples`);
+    }
+    const C = this.trainers.length;
+    let wTest = 0;
+    for (let j = 0; j < nTest; j++) wTest += w ? (w[testIdx[j] as number] as number) : 1;
+    for (let k = 0; k < C; k++) {
+      const tr = this.trainers[k] as Trainer;
+      if (nTest === 0 || !tr.train(weights, this.sums)) {
+        out[k] = out[C + k] = out[2 * C + k] = NaN;
+        continue;
+      }
+      let sae = 0;
+      let sse = 0;
+      let maxAbs = 0;
+      for (let j = 0; j < nTest; j++) {
+        const i = testIdx[j] as number;
+        const e = (this.yc[i] as number) - tr.predict(i);
+        const wi = w ? (w[i] as number) : 1;
+        const a = Math.abs(e);
+        sae += wi * a;
+        sse += wi * e * e;
+        if (a > maxAbs) maxAbs = a;
+      }
+      if (tr.sseFromSums && this.testSums) sse = tr.sseFromSums(this.testSums);
+      out[k] = this.yscale * Math.sqrt(sse / wTest);
+      out[C + k] = (this.yscale * sae) / wTest;
+      out[2 * C + k] = this.yscale * maxAbs;
+    }
+  }
+
+  /** Fold labels of one repeat and, for the power-sum path, the sums of every fold plus their total. */
+  private prepareRepeat(repeat: number, folds: number): void {
+    if (this.cvRepeat === repeat) return;
+    this.cvRepeat = repeat;
+    this.labels ??= new Uint16Array(this.n);
+    foldLabels(this.problem.order, folds, this.problem.seed, repeat, this.labels);
+    if (!this.cells) return;
+    const len = (this.sums as Float64Array).length;
+    this.foldSums ??= new Float64Array((folds + 1) * len);
+    const fs = this.foldSums;
+    fs.fill(0);
+    const w = this.problem.w;
+    const view = (k: number): Float64Array => fs.subarray(k * len, (k + 1) * len);
+    const views = Array.from({ length: folds }, (_, k) => view(k));
+    for (let i = 0; i < this.n; i++) {
+      accumulateRow(views[this.labels[i] as number] as Float64Array, this.cells.cell[i] as number, this.cells.t[i] as number, this.yc[i] as number, w ? (w[i] as number) : 1);
+    }
+    const total = view(folds);
+    for (let k = 0; k < folds; k++) {
+      const v = views[k] as Float64Array;
+      for (let j = 0; j < len; j++) total[j] = (total[j] as number) + (v[j] as number);
+    }
+  }
+}
+
+const constantBasis: RowBasis = { size: 1, width: 1, row: (_x: number, out: Float64Array) => ((out[0] = 1), 0) };
+
+/** Refits a dense row basis (the orthogonal polynomials) from weighted rows: O(n p^2) per resample. */
+function basisTrainer(x: Float64Array, yc: Float64Array, basis: RowBasis, label: string): Trainer {
+  const p = basis.size;
+  const buf = new Float64Array(p);
+  const g = new Float64Array(p * p);
+  const rhs = new Float64Array(p);
+  let theta: Float64Array = new Float64Array(p);
+  return {
+    train(weights: Float64Array): boolean {
+      g.fill(0);
+      rhs.fill(0);
+      for (let i = 0; i < x.length; i++) {
+        const wi = weights[i] as number;
+        if (wi === 0) continue;
+        basis.row(x[i] as number, buf);
+        for (let a = 0; a < p; a++) {
+          const wa = wi * (buf[a] as number);
+          rhs[a] = (rhs[a] as number) + wa * (yc[i] as number);
+          for (let b = 0; b <= a; b++) g[a * p + b] = (g[a * p + b] as number) + wa * (buf[b] as number);
+        }
+      }
+      try {
+        theta = factorSpd(g, p, label).solve(rhs);
+        return true;
+      } catch (e) {
+        if (e instanceof FitError) return false;
+        throw e;
+      }
+    },
+    predict(i: number): number {
+      basis.row(x[i] as number, buf);
+      let f = 0;
+      for (let a = 0; a < p; a++) f += (buf[a] as number) * (theta[a] as number);
+      return f;
+    },
+  };
+}
+
+/** Refits a smoothing spline at the full-data lambda from the rows with positive weight. */
+function smoothTrainer(x: Float64Array, yc: Float64Array, lambda: number, df: number): Trainer {
+  let curve: { value(x: number): number } | undefined;
+  return {
+    train(weights: Float64Array): boolean {
+      let m = 0;
+      for (let i = 0; i < weights.length; i++) if ((weights[i] as number) > 0) m++;
+      const sx = new Float64Array(m);
+      const sy = new Float64Array(m);
+      const sw = new Float64Array(m);
+      m = 0;
+      for (let i = 0; i < weights.length; i++) {
+        const wi = weights[i] as number;
+        if (wi > 0) {
+          sx[m] = x[i] as number;
+          sy[m] = yc[i] as number;
+          sw[m++] = wi;
+        }
+      }
+      try {
+        curve = smoothingSplineAtLambda({ x: sx, y: sy, w: sw }, lambda).curve;
+        return true;
+      } catch (e) {
+        if (e instanceof FitError) return false;
+        throw new Error(`smoothing spline with df ${df} failed in a resample: ${(e as Error).message}`);
+      }
+    },
+    predict(i: number): number {
+      return (curve as { value(x: number): number }).value(x[i] as number);
+    },
+  };
+}

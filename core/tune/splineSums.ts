@@ -1,0 +1,165 @@
+import type { RowBasis } from '../basis/rowBasis';
+import { FitError } from '../errors';
+import { congruence, times, transposeTimes } from '../fit/linearFit';
+import { factorSpd } from '../linalg/spd';
+import { type Cells, SUMS_PER_CELL } from './cells';
+
+/** Interior sample points of a cell, where the 4 active B-splines are sampled to recover their cubic. */
+const TAU = [1 / 8, 3 / 8, 5 / 8, 7 / 8];
+/** Inverse of the Vandermonde matrix V[m][p] = TAU[m]^p, row-major. */
+const VANDER_INV = invert4(TAU.flatMap((tau) => [1, tau, tau * tau, tau * tau * tau]));
+
+function invert4(v: number[]): Float64Array {
+  const a = v.slice();
+  const inv = [1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1];
+  for (let c = 0; c < 4; c++) {
+    let piv = c;
+    for (let r = c + 1; r < 4; r++) if (Math.abs(a[r * 4 + c] as number) > Math.abs(a[piv * 4 + c] as number)) piv = r;
+    for (let k = 0; k < 4; k++) {
+      [a[c * 4 + k], a[piv * 4 + k]] = [a[piv * 4 + k] as number, a[c * 4 + k] as number];
+      [inv[c * 4 + k], inv[piv * 4 + k]] = [inv[piv * 4 + k] as number, inv[c * 4 + k] as number];
+    }
+    const d = a[c * 4 + c] as number;
+    for (let k = 0; k < 4; k++) {
+      a[c * 4 + k] = (a[c * 4 + k] as number) / d;
+      inv[c * 4 + k] = (inv[c * 4 + k] as number) / d;
+    }
+    for (let r = 0; r < 4; r++) {
+      if (r === c) continue;
+      const f = a[r * 4 + c] as number;
+      for (let k = 0; k < 4; k++) {
+        a[r * 4 + k] = (a[r * 4 + k] as number) - f * (a[c * 4 + k] as number);
+        inv[r * 4 + k] = (inv[r * 4 + k] as number) - f * (inv[c * 4 + k] as number);
+      }
+    }
+  }
+  return Float64Array.from(inv);
+}
+
+/**
+ * One natural-spline candidate prepared for fitting from per-cell power sums: for each cell
+ * the index of its first active B-spline and the cubic coefficients (in t) of the 4 active
+ * B-splines. Fitting from sums costs O(cells + p^3), independent of the number of rows.
+ */
+export class SplineFromSums {
+  private readonly first: Int32Array;
+  /** poly[c*16 + a*4 + p]: coefficient of t^p of active basis function a in cell c. */
+  private readonly poly: Float64Array;
+  private readonly g: Float64Array;
+  private readonly rhs: Float64Array;
+  private readonly m = new Float64Array(16);
+  /** Per-cell cubic of the last fit: fitPoly[c*4 + p]. */
+  readonly fitPoly: Float64Array;
+  readonly cellCount: number;
+
+  constructor(
+    cells: Cells,
+    private readonly basis: RowBasis,
+    private readonly z: Float64Array,
+    private readonly label: string,
+  ) {
+    const cellCount = cells.breaks.length - 1;
+    this.cellCount = cellCount;
+    this.first = new Int32Array(cellCount);
+    this.poly = new Float64Array(cellCount * 16);
+    this.fitPoly = new Float64Array(cellCount * 4);
+    const p = basis.size;
+    this.g = new Float64Array(p * p);
+    this.rhs = new Float64Array(p);
+    const vals = new Float64Array(16);
+    const buf = new Float64Array(4);
+    for (let c = 0; c < cellCount; c++) {
+      const start = cells.breaks[c] as number;
+      const width = (cells.breaks[c + 1] as number) - start;
+      let first = 0;
+      for (let mIdx = 0; mIdx < 4; mIdx++) {
+        first = basis.row(start + width * (TAU[mIdx] as number), buf);
+        for (let a = 0; a < 4; a++) vals[mIdx * 4 + a] = buf[a] as number;
+      }
+      this.first[c] = first;
+      for (let a = 0; a < 4; a++)
+        for (let pw = 0; pw < 4; pw++) {
+          let s = 0;
+          for (let mIdx = 0; mIdx < 4; mIdx++) s += (VANDER_INV[pw * 4 + mIdx] as number) * (vals[mIdx * 4 + a] as number);
+          this.poly[c * 16 + a * 4 + pw] = s;
+        }
+    }
+  }
+
+  /**
+   * Weighted least-squares fit from training sums; fills `fitPoly`. Returns false when the
+   * training rows cannot determine the coefficients (rank deficient in this resample).
+   */
+  fit(sums: Float64Array): boolean {
+    const { g, rhs, poly, first, m } = this;
+    const p = this.basis.size;
+    g.fill(0);
+    rhs.fill(0);
+    for (let c = 0; c < this.cellCount; c++) {
+      const o = c * SUMS_PER_CELL;
+      const f = first[c] as number;
+      const pc = c * 16;
+      for (let a = 0; a < 4; a++) {
+        let r = 0;
+        for (let q = 0; q < 4; q++) {
+          let s = 0;
+          for (let pw = 0; pw < 4; pw++) s += (poly[pc + a * 4 + pw] as number) * (sums[o + pw + q] as number);
+          m[a * 4 + q] = s;
+          r += (poly[pc + a * 4 + q] as number) * (sums[o + 7 + q] as number);
+        }
+        rhs[f + a] = (rhs[f + a] as number) + r;
+        for (let b = 0; b <= a; b++) {
+          let s = 0;
+          for (let q = 0; q < 4; q++) s += (poly[pc + b * 4 + q] as number) * (m[a * 4 + q] as number);
+          const idx = (f + a) * p + f + b;
+          g[idx] = (g[idx] as number) + s;
+        }
+      }
+    }
+    for (let i = 0; i < p; i++) for (let j = 0; j < i; j++) g[j * p + i] = g[i * p + j] as number;
+    const q = this.z.length / p;
+    let theta: Float64Array;
+    try {
+      const factor = factorSpd(congruence(g, this.z, p, q), q, this.label);
+      theta = times(this.z, factor.solve(transposeTimes(this.z, rhs, p, q)), p, q);
+    } catch (e) {
+      if (e instanceof FitError) return false;
+      throw e;
+    }
+    for (let c = 0; c < this.cellCount; c++) {
+      const f = first[c] as number;
+      for (let pw = 0; pw < 4; pw++) {
+        let s = 0;
+        for (let a = 0; a < 4; a++) s += (theta[f + a] as number) * (poly[c * 16 + a * 4 + pw] as number);
+        this.fitPoly[c * 4 + pw] = s;
+      }
+    }
+    return true;
+  }
+
+  /** Weighted sum of squared errors of the last fit over the rows summarised in `sums`. */
+  sse(sums: Float64Array): number {
+    let total = 0;
+    const fp = this.fitPoly;
+    for (let c = 0; c < this.cellCount; c++) {
+      const o = c * SUMS_PER_CELL;
+      const f0 = fp[c * 4] as number;
+      const f1 = fp[c * 4 + 1] as number;
+      const f2 = fp[c * 4 + 2] as number;
+      const f3 = fp[c * 4 + 3] as number;
+      const cross = f0 * (sums[o + 7] as number) + f1 * (sums[o + 8] as number) + f2 * (sums[o + 9] as number) + f3 * (sums[o + 10] as number);
+      const s = (k: number): number => sums[o + k] as number;
+      const square =
+        f0 * f0 * s(0) + 2 * f0 * f1 * s(1) + (f1 * f1 + 2 * f0 * f2) * s(2) + (2 * f0 * f3 + 2 * f1 * f2) * s(3) + (f2 * f2 + 2 * f1 * f3) * s(4) + 2 * f2 * f3 * s(5) + f3 * f3 * s(6);
+      total += (sums[o + 11] as number) - 2 * cross + square;
+    }
+    return total > 0 ? total : 0;
+  }
+
+  /** Value of the last fit at a row given its cell and scaled position. */
+  valueAt(cell: number, t: number): number {
+    const fp = this.fitPoly;
+    const o = cell * 4;
+    return (fp[o] as number) + t * ((fp[o + 1] as number) + t * ((fp[o + 2] as number) + t * (fp[o + 3] as number)));
+  }
+}

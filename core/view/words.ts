@@ -1,0 +1,87 @@
+/**
+ * Plain words the panel (and later the report) shows for families, resampling schemes,
+ * residual checks and the standing caution.
+ */
+import type { Diagnostics } from '../analysisTypes';
+import type { CheckView } from '../protocol';
+import { num } from '../plots/svg';
+import type { ResampleSpec } from '../tune/types';
+import type { Family } from '../types';
+
+/** The caution every panel and report carries. */
+export const CAUTION =
+  'This curve is an empirical fit to the readings shown, not a certified calibration. ' +
+  'Safety-related use must follow the applicable standards and needs review by a qualified person.';
+
+/** A curve family in words. */
+export function familyWords(family: Family): string {
+  switch (family) {
+    case 'natural':
+      return 'natural cubic regression spline';
+    case 'poly':
+      return 'polynomial (orthogonal basis)';
+    case 'smooth':
+      return 'cubic smoothing spline';
+  }
+}
+
+/** A resampling scheme in words, with its seed where it matters. */
+export function resampleWords(spec: ResampleSpec, seed: number): string {
+  switch (spec.kind) {
+    case 'boot':
+      return `bootstrap, ${spec.resamples} resamples, error on the out-of-bag rows, seed ${seed}`;
+    case 'cv':
+      return `${spec.folds}-fold cross-validation${spec.repeats > 1 ? `, repeated ${spec.repeats} times` : ''}, folds stratified by x, seed ${seed}`;
+    case 'loo':
+      return 'exact leave-one-out';
+    case 'gcv':
+      return 'generalised cross-validation (GCV)';
+  }
+}
+
+/** p-value text: "p = 0.034" or "p < 0.0001". */
+export function pText(p: number): string {
+  return p < 1e-4 ? 'p < 0.0001' : `p = ${num(p, 2)}`;
+}
+
+/** The residual checks of a Diagnostics, each in one line, flagged at the 5 % level. */
+export function checkViews(d: Diagnostics): CheckView[] {
+  const out: CheckView[] = [];
+  if (d.shapiroWilk) {
+    const s = d.shapiroWilk;
+    const flagged = s.pValue < 0.05;
+    out.push({
+      name: 'Shapiro-Wilk (are the residuals normal?)',
+      text: `W = ${num(s.statistic, 4)}, ${pText(s.pValue)}, n = ${s.n}: ${flagged ? 'the residuals depart from a normal distribution, so the prediction band may be off' : 'no evidence against normal residuals'}${s.note ? ` (${s.note})` : ''}.`,
+      flagged,
+    });
+  }
+  if (d.durbinWatson) {
+    const s = d.durbinWatson;
+    const flagged = s.pValue < 0.05;
+    out.push({
+      name: 'Durbin-Watson (do neighbours in x order move together?)',
+      text: `DW = ${num(s.statistic, 4)}, ${pText(s.pValue)} (${s.method}): ${flagged ? 'neighbouring residuals are correlated, a sign of structure the curve misses or of drift' : 'no evidence of correlated neighbours'}.`,
+      flagged,
+    });
+  }
+  if (d.breuschPagan) {
+    const s = d.breuschPagan;
+    const flagged = s.pValue < 0.05;
+    out.push({
+      name: 'Breusch-Pagan (does the spread change?)',
+      text: `BP = ${num(s.statistic, 4)} on ${s.df} df, ${pText(s.pValue)}: ${flagged ? 'the spread of the residuals changes along the curve, so one band width does not fit everywhere' : 'no evidence of changing spread'}.`,
+      flagged,
+    });
+  }
+  if (d.lackOfFit) {
+    const s = d.lackOfFit;
+    const flagged = s.pValue < 0.05;
+    out.push({
+      name: 'Lack-of-fit F test (repeated x values)',
+      text: `F = ${num(s.F, 4)} on ${s.df1} and ${s.df2} df, ${pText(s.pValue)}: ${flagged ? 'the curve misses the means of repeated readings by more than their scatter' : 'the curve agrees with the means of repeated readings'}.`,
+      flagged,
+    });
+  }
+  return out;
+}
