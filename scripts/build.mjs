@@ -9,6 +9,7 @@ const jobs = [
   { ...node, entryPoints: ['core/node/cli.ts'], outfile: 'dist/cli.js', banner: { js: '#!/usr/bin/env node' } },
   { ...node, entryPoints: ['core/node/resampleWorker.ts'], outfile: 'dist/resampleWorker.js' },
 ];
+jobs.push({ ...node, entryPoints: ['bench/run.ts'], outfile: 'dist/bench.js' });
 if (existsSync('extension/main.ts')) {
   jobs.push({ ...node, entryPoints: ['extension/main.ts'], outfile: 'dist/extension.js', external: ['vscode'] });
 }

@@ -33,6 +33,7 @@ export interface Detection {
  * Throws InputError "looks like a binary file, not CSV text" when the first 1024
  * characters hold a NUL or more than 10 % control characters (other than tab, CR, LF)
  * or U+FFFD (bytes that were not valid UTF-8). Cost O(1024).
+ * Example: checkNotBinary('x,y\n1,2\n') passes; checkNotBinary('\u0000\u0001') throws.
  */
 export function checkNotBinary(text: string, file?: string): void {
   const n = Math.min(text.length, BINARY_CHECK_CHARS);
@@ -47,7 +48,10 @@ export function checkNotBinary(text: string, file?: string): void {
   }
 }
 
-/** Line break style of the first line break outside double quotes. */
+/**
+ * Line break style of the first line break outside double quotes. Cost O(position of
+ * that break). Example: detectLineEnding('"a\nb",c\r\n') -> 'crlf'.
+ */
 export function detectLineEnding(text: string): LineEnding {
   let quoted = false;
   for (let i = 0; i < text.length; i++) {

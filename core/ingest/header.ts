@@ -14,14 +14,16 @@ const UNIT_PATTERN = /^(.*?)\s*(?:\[\s*([^\[\]]*?)\s*\]|\(\s*([^()]*?)\s*\))$/s;
 /**
  * Splits a header cell into name and unit: `flow [L/min]` -> { name: 'flow', unit:
  * 'L/min' }, `temperature (degC)` -> { name: 'temperature', unit: 'degC' }. Text without
- * a trailing bracket, or with an empty name or unit, is all name.
+ * a trailing bracket, or with an empty name or unit, or a unit of digits only (`flow (2)`,
+ * the form of generated labels), is all name.
  */
 export function splitUnit(header: string): HeaderName {
   const text = header.trim();
   const m = UNIT_PATTERN.exec(text);
   const name = m?.[1];
   const unit = m?.[2] ?? m?.[3];
-  if (name === undefined || unit === undefined || name === '' || unit === '') return { name: text, unit: undefined };
+  // A bare number in brackets is a copy marker ("flow (2)"), not a unit.
+  if (name === undefined || unit === undefined || name === '' || unit === '' || /^\d+$/.test(unit)) return { name: text, unit: undefined };
   return { name, unit };
 }
 

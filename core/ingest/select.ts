@@ -101,7 +101,10 @@ export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: s
         break;
       }
     }
-    if (reason === undefined && ws !== undefined && !((ws[r] as number) > 0)) reason = `weight ${ws[r] as number} is not positive`;
+    if (reason === undefined && ws !== undefined && !((ws[r] as number) > 0)) {
+      reason = `weight ${ws[r] as number} is not positive`;
+      at = 2;
+    }
     if (reason === undefined) {
       keep[r] = 1;
       kept++;

@@ -71,11 +71,6 @@ export class CsvTokenizer {
     this.delimiter = delimiter.charCodeAt(0);
   }
 
-  /** Number of physical lines started so far (1-based line of the next character). */
-  get currentLine(): number {
-    return this.line;
-  }
-
   /** Tokenizes the next chunk. */
   push(s: string): void {
     const n = s.length;

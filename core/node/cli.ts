@@ -4,7 +4,7 @@
  * Errors go to stderr with exit code 2 and say what and where.
  */
 import { parseArgs } from 'node:util';
-import { basename } from 'node:path';
+import { basename, dirname, join, resolve } from 'node:path';
 import { analyse } from '../analysis';
 import type { Analysis, AnalysisOptions } from '../analysisTypes';
 import { diagnose } from '../diagnose';
@@ -21,6 +21,9 @@ import type { FitResult } from '../types';
 import { workerRunner } from './pool';
 import { readCsvFile } from './readCsv';
 import { VERSION } from '../version';
+import { fitRecord } from '../record';
+import { curveTableCsv, DEFAULT_DIGITS } from '../table/formatCsv';
+import { outputNames, writeDeliverables } from './outputs';
 
 const USAGE = `knotwise ${VERSION}: smooth curves and curve tables from measured CSV data
 
@@ -37,7 +40,13 @@ Options:
   --holdout <fraction>      rows held out (stratified by x) and checked once at the end
   --grid <start>:<stop>:<count> | <start>:<stop>:step=<h> | data | <x1,x2,...>
   --extrapolate             allow table points outside the data range (flagged)
+  --out <folder>            write the curve table (<name>.curve.csv) and fit record (<name>.fit.json) there
+  --save                    write them next to the data file
+  --digits <n>              significant digits in the table (default 8)
+  --force                   replace output files that Knotwise did not write
   --json                    print one JSON object instead of the summary
+
+  knotwise demo [--out <folder>]   fit a bundled example and write its outputs (default ./knotwise-demo)
   --help                    this text`;
 
 /** Options of `knotwise fit`, parsed. */
@@ -51,6 +60,9 @@ interface FitArgs {
   readonly options: AnalysisOptions;
   readonly grid?: string | undefined;
   readonly extrapolate: boolean;
+  readonly out?: string | undefined;
+  readonly digits: number;
+  readonly force: boolean;
 }
 
 function parseFitArgs(argv: string[]): FitArgs {
@@ -70,6 +82,10 @@ function parseFitArgs(argv: string[]): FitArgs {
       grid: { type: 'string' },
       extrapolate: { type: 'boolean' },
       json: { type: 'boolean' },
+      out: { type: 'string' },
+      save: { type: 'boolean' },
+      digits: { type: 'string' },
+      force: { type: 'boolean' },
     },
   });
   const file = positionals[0];
@@ -89,6 +105,9 @@ function parseFitArgs(argv: string[]): FitArgs {
     tune,
     grid: values.grid,
     extrapolate: values.extrapolate === true,
+    out: values.out ?? (values.save ? dirname(file) : undefined),
+    digits: parseDigits(values.digits ?? String(DEFAULT_DIGITS)),
+    force: values.force === true,
     options: {
       family: parseFamily(values.model ?? 'natural'),
       candidates: dfs,
@@ -98,6 +117,12 @@ function parseFitArgs(argv: string[]): FitArgs {
       holdout,
     },
   };
+}
+
+function parseDigits(text: string): number {
+  const v = Number(text);
+  if (!Number.isInteger(v) || v < 3 || v > 17) throw new InputError(`--digits must be a whole number from 3 to 17; got "${text}"`);
+  return v;
 }
 
 /** Numbers as JSON allows them: non-finite values become null. */
@@ -149,6 +174,35 @@ async function runFit(argv: string[]): Promise<number> {
   const points = gridPoints(grid, sorted);
   const outside = checkInRange(points, fit.curve.lower, fit.curve.upper, args.extrapolate);
   const tableOut = curveTable(fit, points);
+  let written: { table: string; record: string } | undefined;
+  if (args.out !== undefined) {
+    const tableText = curveTableCsv(tableOut, args.digits);
+    written = writeDeliverables(args.out, args.file, {
+      table: tableText,
+      record: (tableSha) =>
+        JSON.stringify(
+          fitRecord({
+            dataFile: basename(args.file),
+            dataSha256: table.sha256,
+            columns: sel.labels,
+            rowsRead: table.rowCount,
+            rowsUsed: sel.data.x.length,
+            rejected: sel.rejected,
+            family: args.options.family,
+            analysis,
+            fit,
+            diagnostics,
+            grid,
+            digits: args.digits,
+            extrapolate: args.extrapolate,
+            tableFile: outputNames(args.file).table,
+            tableSha256: tableSha,
+          }),
+          null,
+          2,
+        ) + '\n',
+    }, args.force);
+  }
   if (args.json) {
     const out: Record<string, unknown> = {
       knotwise: VERSION,
@@ -165,6 +219,7 @@ async function runFit(argv: string[]): Promise<number> {
       table: { columns: tableOut.columns, rows: tableOut.rows.map((r) => r.map(finite)), extrapolatedPoints: outside },
       diagnostics,
     };
+    if (written) out.written = written;
     if (analysis) {
       const t = analysis.tune;
       out.tuning = { family: t.family, resample: formatResample(t.resample), seed: t.seed, metric: t.metric, rowsTuned: analysis.n, notes: t.notes };
@@ -192,10 +247,20 @@ async function runFit(argv: string[]): Promise<number> {
     for (const note of fit.notes) lines.push(`Note: ${note}`);
     for (const w of diagnostics.warnings) lines.push(`Warning: ${w}`);
     if (outside) lines.push(`Warning: ${outside} table point(s) are extrapolated beyond the data range.`);
+    if (written) lines.push(`Wrote ${written.table}`, `Wrote ${written.record}`);
     lines.push('Caution: an empirical fit is not a certified calibration; safety-related use must follow the applicable standards and qualified review.');
     process.stdout.write(lines.join('\n') + '\n');
   }
   return 0;
+}
+
+/** Fits the bundled humidity-sensor example (invented data) and writes its deliverables. */
+async function runDemo(argv: string[]): Promise<number> {
+  const { values } = parseArgs({ args: argv, options: { out: { type: 'string' } } });
+  const example = join(__dirname, '..', 'examples', 'humidity-sensor.csv');
+  const out = resolve(values.out ?? 'knotwise-demo');
+  process.stdout.write(`Demo: invented humidity-sensor calibration data (${example})\n`);
+  return runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resample', 'cv:10x5', '--rule', '1se', '--grid', '10:92.5:step=2.5', '--out', out]);
 }
 
 /** Runs the command line; returns the exit code. */
@@ -205,6 +270,8 @@ export async function main(argv: string[]): Promise<number> {
     switch (command) {
       case 'fit':
         return await runFit(rest);
+      case 'demo':
+        return await runDemo(rest);
       case undefined:
       case '--help':
       case '-h':

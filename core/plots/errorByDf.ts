@@ -23,7 +23,7 @@ export interface ErrorByDfSpec {
   readonly threshold?: number | undefined;
   /** Name of the error measure, e.g. "RMSE". */
   readonly metricName: string;
-  /** The rule in words, for the description. */
+  /** The rule in words, for the description (e.g. "the one-standard-error rule"). */
   readonly ruleName: string;
 }
 
@@ -67,7 +67,7 @@ export function errorByDfSvg(spec: ErrorByDfSpec): string {
       : `Mean ${spec.metricName} of ${pts.length} candidates from df ${num(dfs[0] as number)} to ${num(dfs[dfs.length - 1] as number)}` +
         (best ? `; lowest ${num(best.mean, 4)} at df ${num(best.df)}` : '') +
         (th.length ? `; threshold ${num(th[0] as number, 4)}` : '') +
-        (chosen ? `; the ${spec.ruleName} rule chooses df ${num(chosen.df)} (${num(chosen.mean, 4)}).` : '.') +
+        (chosen ? `; ${spec.ruleName} chooses df ${num(chosen.df)} (${num(chosen.mean, 4)}).` : '.') +
         ' Bars show one standard error.';
   return svgDocument(spec.id, { title: `Resampled ${spec.metricName} against df`, desc }, frame.clipDef + frame.axes + `<g clip-path="${frame.clip}">${marks}</g>`);
 }

@@ -8,9 +8,12 @@
  *   theta(u) = (1/2) sum atan(lambda_j u),  rho(u) = prod (1 + lambda_j^2 u^2)^(1/4).
  *
  * The integral is truncated at U where Imhof's bound (3.3), applied to the largest
- * |lambda_j|, is below TRUNCATION_TOLERANCE, and [0, U] is integrated by adaptive
- * Gauss-Kronrod (7, 15) quadrature (Piessens, de Doncker-Kapenga, Ueberhuber & Kahaner
- * 1983, "QUADPACK", section 2.2) to INTEGRATION_TOLERANCE.
+ * |lambda_j|, is below TRUNCATION_TOLERANCE. [0, U] is cut into [0, u0], [u0, 2 u0],
+ * [2 u0, 4 u0], ... with u0 = 1 / max |lambda_j| (the integrand changes on the scale
+ * 1 / |lambda_j| of every weight, so the pieces follow all scales), and each piece is
+ * integrated by adaptive Gauss-Kronrod (7, 15) quadrature (Piessens, de Doncker-Kapenga,
+ * Ueberhuber & Kahaner 1983, "QUADPACK", section 2.2) to its share of
+ * INTEGRATION_TOLERANCE.
  */
 
 /** Bound on the part of the integral beyond U (in probability units). */
@@ -90,24 +93,33 @@ export function quadraticFormLowerTail(lambda: Float64Array): number {
   }
   if (allPositive) return 0;
   if (allNegative) return 1;
-  const upper = truncationPoint(lambda, new Float64Array(m));
-  const integral = adaptiveKronrod(lambda, upper);
+  const scratch = new Float64Array(m);
+  const upper = truncationPoint(lambda, scratch);
+  const u0 = 1 / (scratch[m - 1] as number); // scratch holds the sorted |lambda|
+  const pieces = Math.max(1, Math.ceil(Math.log2(Math.max(1, upper / u0))) + 1);
+  const share = (INTEGRATION_TOLERANCE * Math.PI) / pieces; // integral units: probability times pi
+  let integral = 0;
+  let a = 0;
+  let b = Math.min(u0, upper);
+  while (a < upper) {
+    integral += adaptiveKronrod(lambda, a, b, share);
+    a = b;
+    b = Math.min(2 * b, upper);
+  }
   return Math.min(1, Math.max(0, 0.5 - integral / Math.PI));
 }
 
-/** Adaptive Gauss-Kronrod (7, 15) integral of the Imhof integrand over [0, upper]. */
-function adaptiveKronrod(lambda: Float64Array, upper: number): number {
+/** Adaptive Gauss-Kronrod (7, 15) integral of the Imhof integrand over [lower, upper]. */
+function adaptiveKronrod(lambda: Float64Array, lower: number, upper: number, tolerance: number): number {
   // Depth-first stack of intervals: each entry is (a, b, depth); no allocation in the loop.
   const stackA = new Float64Array(MAX_DEPTH + 2);
   const stackB = new Float64Array(MAX_DEPTH + 2);
   const stackDepth = new Int32Array(MAX_DEPTH + 2);
   let top = 0;
-  stackA[0] = 0;
+  stackA[0] = lower;
   stackB[0] = upper;
   stackDepth[0] = 0;
   top = 1;
-  // Tolerance in integral units: probability error times pi.
-  const tolerance = INTEGRATION_TOLERANCE * Math.PI;
   let total = 0;
   let examined = 0;
   while (top > 0) {
@@ -130,7 +142,7 @@ function adaptiveKronrod(lambda: Float64Array, upper: number): number {
     gauss *= half;
     examined++;
     const error = Math.abs(kronrod - gauss);
-    const allowed = (tolerance * (b - a)) / upper;
+    const allowed = (tolerance * (b - a)) / (upper - lower);
     if (error <= allowed || depth >= MAX_DEPTH || examined >= MAX_INTERVALS) {
       total += kronrod;
       continue;

@@ -59,7 +59,9 @@ export function gridPoints(spec: GridSpec, sortedX: Float64Array): Float64Array 
     }
     case 'step': {
       const m = Math.floor((spec.stop - spec.start) / spec.step + 1e-9) + 1;
-      return Float64Array.from({ length: m }, (_, i) => spec.start + i * spec.step);
+      // The rounding allowance can admit a last point one ulp above stop (0:0.3:step=0.1 gives
+      // 3 x 0.1 = 0.30000000000000004), which checkInRange would refuse: clamp it to stop.
+      return Float64Array.from({ length: m }, (_, i) => Math.min(spec.start + i * spec.step, spec.stop));
     }
     case 'data': {
       const out: number[] = [];

@@ -5,6 +5,7 @@
  * message size depends on the number of candidates, not on n.
  */
 import type { Analysis } from '../analysisTypes';
+import { diagnose } from '../diagnose';
 import { bandsAt } from '../fit/bands';
 import type { FitDetail, PanelPayload, SourceView, CurveView } from '../protocol';
 import { selectDf } from '../tune/rules';
@@ -59,11 +60,11 @@ function slim(c: CandidateResult): CandidateResult {
   return { ...c, errors };
 }
 
-/** The residual details of df `df` of an analysis (with its checks when it is the chosen df). */
+/** The residual details and checks of df `df` of an analysis (undefined when df was not fitted). O(n log n). */
 export function detailFor(analysis: Analysis, data: XYData, df: number): FitDetail | undefined {
   const fit = analysis.fits.get(df);
   if (!fit) return undefined;
-  return fitDetail(fit, data, { diagnostics: df === analysis.chosen.df ? analysis.diagnostics : undefined });
+  return fitDetail(fit, data, { diagnostics: df === analysis.chosen.df ? analysis.diagnostics : diagnose(data, fit) });
 }
 
 /** The df each rule would choose (settings' rule, lowest, one-SE, tolerance). */

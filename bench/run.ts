@@ -1,0 +1,89 @@
+/**
+ * Speed and memory benchmark (npm run bench). Generates invented data with a fixed seed,
+ * times each stage several ways and writes the figures to bench/results.md. Not a test:
+ * nothing here passes or fails.
+ */
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdirSync, writeFileSync, existsSync } from 'node:fs';
+import { cpus, totalmem } from 'node:os';
+import { join } from 'node:path';
+import { performance } from 'node:perf_hooks';
+import { analyse } from '../core/analysis';
+import { diagnose } from '../core/diagnose';
+import { fitCurve, prepareData } from '../core/fit/index';
+import { selectColumns } from '../core/ingest/select';
+import { readCsvFile } from '../core/node/readCsv';
+import { workerRunner } from '../core/node/pool';
+import { RandomStream } from '../core/tune/rng';
+
+const ROWS = Number(process.env.KNOTWISE_BENCH_ROWS ?? 1_000_000);
+const dir = join(__dirname, '..', 'bench', 'tmp');
+const lines: string[] = [];
+const log = (s: string): void => {
+  console.log(s);
+  lines.push(s);
+};
+
+function makeCsv(path: string, n: number): void {
+  const rng = new RandomStream(7, 0);
+  const parts: string[] = ['x,y'];
+  for (let i = 0; i < n; i++) {
+    const x = (rng.int(1e9) / 1e9) * 100;
+    const noise = (rng.int(1e6) / 1e6 - 0.5) * 0.6;
+    parts.push(`${x.toFixed(6)},${(Math.sin(x / 12) * 3 + x * 0.05 + noise).toFixed(6)}`);
+  }
+  writeFileSync(path, parts.join('\n') + '\n');
+}
+
+async function time<T>(label: string, f: () => Promise<T> | T): Promise<T> {
+  const t0 = performance.now();
+  const out = await f();
+  const s = (performance.now() - t0) / 1000;
+  log(`| ${label} | ${s.toFixed(2)} s |`);
+  return out;
+}
+
+async function main(): Promise<void> {
+  mkdirSync(dir, { recursive: true });
+  const csv = join(dir, `bench-${ROWS}.csv`);
+  if (!existsSync(csv)) makeCsv(csv, ROWS);
+  log(`# Knotwise benchmark`);
+  log('');
+  log(`Machine: ${cpus().length} x ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, Node ${process.version}. Data: ${ROWS} rows, two columns (invented, seed 7).`);
+  log('');
+  log('| stage | time |');
+  log('| --- | --- |');
+  const table = await time(`ingest (stream, parse, SHA-256) of ${ROWS} rows`, () => readCsvFile(csv));
+  const data = selectColumns(table, { x: 'x', y: 'y' }).data;
+  const prepared = prepareData(data);
+  const fit = await time('natural spline df 10, full regression output', () => fitCurve(prepared, { family: 'natural', df: 10 }));
+  await time('residual diagnostics of that fit', () => diagnose(data, fit));
+  await time('polynomial df 8', () => fitCurve(prepared, { family: 'poly', df: 8 }));
+  await time('smoothing spline df 20 (lambda search)', () => fitCurve(prepared, { family: 'smooth', df: 20 }));
+  const cands = [3, 4, 5, 6, 7, 8, 9, 10, 11, 12];
+  await time('tuning: 10 natural-spline candidates x 50 bootstrap resamples (worker threads)', () =>
+    analyse(data, { family: 'natural', candidates: cands, resample: { kind: 'boot', resamples: 50 }, rule: { kind: '1se' }, seed: 1 }, workerRunner()),
+  );
+  await time('tuning: 10 natural-spline candidates x 10-fold CV', () =>
+    analyse(data, { family: 'natural', candidates: cands, resample: { kind: 'cv', folds: 10, repeats: 1 }, rule: { kind: '1se' }, seed: 1 }, workerRunner()),
+  );
+  log(`| peak resident memory | ${(process.memoryUsage().rss / 2 ** 20).toFixed(0)} MiB |`);
+  const r = spawnSync('Rscript', ['--version'], { encoding: 'utf8' });
+  if (r.status === 0) {
+    const boots = 3;
+    const script = `library(splines); d <- read.csv("${csv}"); n <- nrow(d); set.seed(1)
+t0 <- proc.time()[["elapsed"]]
+for (b in 1:${boots}) { i <- sample.int(n, n, replace = TRUE); oob <- setdiff(seq_len(n), i)
+  for (k in c(${cands.join(',')})) { X <- ns(d$x, df = k - 1); f <- lm.fit(cbind(1, X[i, ]), d$y[i]); e <- d$y[oob] - cbind(1, X[oob, ]) %*% f$coefficients; sqrt(mean(e^2)) } }
+cat(proc.time()[["elapsed"]] - t0)`;
+    const secs = Number(execFileSync('Rscript', ['-e', script], { encoding: 'utf8', maxBuffer: 1 << 20 }).trim());
+    log(`| R (lm.fit with splines::ns in a loop), ${boots} bootstrap resamples x 10 candidates, measured | ${secs.toFixed(1)} s |`);
+    log(`| the same R loop scaled to 50 resamples (x ${50 / boots}) | ${((secs * 50) / boots).toFixed(0)} s |`);
+  } else {
+    log('| R comparison | R not installed |');
+  }
+  writeFileSync(join(__dirname, '..', 'bench', 'results.md'), lines.join('\n') + '\n');
+  console.log('\nwritten to bench/results.md');
+}
+
+void main();

@@ -1,0 +1,120 @@
+/**
+ * Quick picks for the x, y and optional weight columns: numeric columns first, each with a
+ * preview of its first values; the last choice per file is remembered in workspaceState
+ * and offered first next time.
+ */
+import * as vscode from 'vscode';
+import type { ColumnInfo, ParsedTable } from '../core/ingest/types';
+import { sig } from '../core/tune/format';
+
+/** The columns chosen for one file (labels as in ParsedTable.columns). */
+export interface ColumnChoice {
+  readonly x: string;
+  readonly y: string;
+  readonly weights?: string | undefined;
+}
+
+const MEMORY_KEY = 'knotwise.columns';
+const PREVIEW_VALUES = 6;
+
+/** Remembered choices per file URI. */
+export class ColumnMemory {
+  constructor(private readonly state: vscode.Memento) {}
+
+  get(uri: vscode.Uri): ColumnChoice | undefined {
+    const all = this.state.get<Record<string, ColumnChoice>>(MEMORY_KEY, {});
+    return all[uri.toString()];
+  }
+
+  async set(uri: vscode.Uri, choice: ColumnChoice): Promise<void> {
+    const all = { ...this.state.get<Record<string, ColumnChoice>>(MEMORY_KEY, {}) };
+    all[uri.toString()] = choice;
+    await this.state.update(MEMORY_KEY, all);
+  }
+
+  async forget(uri: vscode.Uri): Promise<void> {
+    const all = { ...this.state.get<Record<string, ColumnChoice>>(MEMORY_KEY, {}) };
+    delete all[uri.toString()];
+    await this.state.update(MEMORY_KEY, all);
+  }
+}
+
+/** True when every column of `choice` exists in `table`. */
+export function choiceFits(table: ParsedTable, choice: ColumnChoice): boolean {
+  const labels = new Set(table.columns.map((c) => c.label));
+  return labels.has(choice.x) && labels.has(choice.y) && (choice.weights === undefined || labels.has(choice.weights));
+}
+
+/** The first few values of a column as text. */
+export function preview(table: ParsedTable, column: ColumnInfo): string {
+  const values = table.values[column.index];
+  const out: string[] = [];
+  for (let i = 0; values && i < values.length && out.length < PREVIEW_VALUES; i++) {
+    const v = values[i] as number;
+    out.push(Number.isNaN(v) ? '–' : sig(v, 5));
+  }
+  return out.join(', ') + (table.rowCount > PREVIEW_VALUES ? ', …' : '');
+}
+
+interface ColumnItem extends vscode.QuickPickItem {
+  readonly label: string;
+  readonly column?: ColumnInfo;
+}
+
+function items(table: ParsedTable, exclude: readonly string[], withNone: boolean): ColumnItem[] {
+  const cols = table.columns.filter((c) => !exclude.includes(c.label));
+  const numeric = cols.filter((c) => c.numeric);
+  const other = cols.filter((c) => !c.numeric);
+  const out: ColumnItem[] = [];
+  if (withNone) out.push({ label: 'No weights', description: 'every row counts the same' });
+  if (numeric.length) out.push({ label: 'Numeric columns', kind: vscode.QuickPickItemKind.Separator });
+  for (const c of numeric) {
+    out.push({
+      label: c.label,
+      description: c.unit ? `[${c.unit}]` : '',
+      detail: `${preview(table, c)}${c.missingCount + c.invalidCount ? `  (${c.missingCount} missing, ${c.invalidCount} not numbers)` : ''}`,
+      column: c,
+    });
+  }
+  if (other.length) out.push({ label: 'Mostly text', kind: vscode.QuickPickItemKind.Separator });
+  for (const c of other) out.push({ label: c.label, description: 'not numeric', detail: preview(table, c), column: c });
+  return out;
+}
+
+async function pickOne(title: string, step: number, list: ColumnItem[], preferred: string | undefined, token: vscode.CancellationToken): Promise<ColumnItem | undefined> {
+  const qp = vscode.window.createQuickPick<ColumnItem>();
+  qp.title = title;
+  qp.step = step;
+  qp.totalSteps = 3;
+  qp.placeholder = 'Type to filter the columns; Enter to choose';
+  qp.matchOnDescription = true;
+  qp.items = list;
+  const active = list.find((i) => i.label === preferred && i.kind !== vscode.QuickPickItemKind.Separator) ?? list.find((i) => i.kind !== vscode.QuickPickItemKind.Separator);
+  if (active) qp.activeItems = [active];
+  return await new Promise<ColumnItem | undefined>((resolve) => {
+    const done = (v: ColumnItem | undefined): void => {
+      sub.dispose();
+      resolve(v);
+      qp.dispose();
+    };
+    const sub = vscode.Disposable.from(
+      qp.onDidAccept(() => done(qp.selectedItems[0] ?? qp.activeItems[0])),
+      qp.onDidHide(() => done(undefined)),
+      token.onCancellationRequested(() => done(undefined)),
+    );
+    qp.show();
+  });
+}
+
+/** Asks for x, y and weights; undefined when the person dismissed a pick. */
+export async function pickColumns(table: ParsedTable, fileName: string, remembered: ColumnChoice | undefined, token: vscode.CancellationToken): Promise<ColumnChoice | undefined> {
+  if (table.columns.length < 2) throw new Error(`${fileName} has ${table.columns.length} column; Knotwise needs at least two (x and y)`);
+  const numeric = table.columns.filter((c) => c.numeric);
+  const x = await pickOne(`Knotwise: the x column of ${fileName} (what was set or measured as input)`, 1, items(table, [], false), remembered?.x ?? numeric[0]?.label, token);
+  if (!x?.column) return undefined;
+  const y = await pickOne(`Knotwise: the y column of ${fileName} (the reading the curve describes)`, 2, items(table, [x.label], false), remembered?.y ?? numeric.find((c) => c.label !== x.label)?.label, token);
+  if (!y?.column) return undefined;
+  const w = await pickOne(`Knotwise: weights for ${fileName} (optional)`, 3, items(table, [x.label, y.label], true), remembered?.weights ?? 'No weights', token);
+  if (!w) return undefined;
+  return { x: x.label, y: y.label, weights: w.column ? w.label : undefined };
+}

@@ -1,0 +1,59 @@
+// Runs every test layer in order and ends with one line "N passed, M failed" over all of them.
+// Layers: type check, core unit + external-reference tests (mocha on Node), the webview in
+// headless Chromium, the extension inside the real VS Code extension host, and the whole
+// editor driven in the browser. A layer that cannot start counts as one failure.
+import { spawnSync } from 'node:child_process';
+import { existsSync } from 'node:fs';
+
+const only = process.argv.slice(2);
+let passed = 0;
+let failed = 0;
+
+function run(name, cmd, args, parse) {
+  if (only.length && !only.includes(name)) return;
+  console.log(`\n=== ${name}: ${cmd} ${args.join(' ')}`);
+  const started = Date.now();
+  const res = spawnSync(cmd, args, { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'], maxBuffer: 256 * 1024 * 1024 });
+  process.stdout.write(res.stdout ?? '');
+  process.stderr.write(res.stderr ?? '');
+  const counts = parse(res.stdout ?? '', res.status);
+  passed += counts.passed;
+  failed += counts.failed;
+  console.log(`=== ${name}: ${counts.passed} passed, ${counts.failed} failed (${((Date.now() - started) / 1000).toFixed(1)} s)`);
+}
+
+/** A step with no test count of its own: one pass or one failure. */
+const step = (_out, status) => (status === 0 ? { passed: 1, failed: 0 } : { passed: 0, failed: 1 });
+
+/** mocha's spec reporter: "N passing", "M failing". */
+const mochaCounts = (out, status) => {
+  const p = /(\d+) passing/.exec(out);
+  const f = /(\d+) failing/.exec(out);
+  const counts = { passed: p ? Number(p[1]) : 0, failed: f ? Number(f[1]) : 0 };
+  if (status !== 0 && counts.failed === 0) counts.failed = 1;
+  return counts;
+};
+
+/** Layers that print their own "N passed, M failed" line last. */
+const layerCounts = (out, status) => {
+  const all = [...out.matchAll(/^(\d+) passed, (\d+) failed/gm)];
+  const last = all[all.length - 1];
+  const counts = last ? { passed: Number(last[1]), failed: Number(last[2]) } : { passed: 0, failed: 1 };
+  if (status !== 0 && counts.failed === 0) counts.failed = 1;
+  return counts;
+};
+
+const npx = 'npx';
+run('typecheck', npx, ['tsc', '-p', 'tsconfig.json', '--noEmit'], step);
+if (existsSync('webview/tsconfig.json')) run('typecheck-webview', npx, ['tsc', '-p', 'webview/tsconfig.json', '--noEmit'], step);
+run('build', process.execPath, ['scripts/build.mjs'], step);
+run('core', npx, ['mocha'], mochaCounts);
+for (const [name, file] of [
+  ['webview', 'test/webview/run.mjs'],
+  ['host', 'test/host/run.mjs'],
+  ['editor', 'test/e2e/run.mjs'],
+]) {
+  if (existsSync(file)) run(name, process.execPath, [file], layerCounts);
+}
+console.log(`\n${passed} passed, ${failed} failed`);
+process.exitCode = failed === 0 ? 0 : 1;

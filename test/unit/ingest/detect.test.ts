@@ -1,0 +1,100 @@
+import assert from 'node:assert/strict';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { checkNotBinary, detectFormat, detectLineEnding } from '../../../core/ingest/detect';
+import { InputError } from '../../../core/errors';
+
+const FIXTURES = join(__dirname, '..', '..', 'fixtures', 'csv');
+const fixture = (name: string): string => readFileSync(join(FIXTURES, name), 'utf8');
+
+describe('checkNotBinary', () => {
+  it('refuses binary.bin (PNG signature and bytes 0..255, written by make-fixtures.R)', () => {
+    const text = readFileSync(join(FIXTURES, 'binary.bin')).toString('utf8');
+    assert.throws(() => checkNotBinary(text, 'binary.bin'), (e: unknown) => e instanceof InputError && /looks like a binary file, not CSV text/.test(e.message) && e.place.file === 'binary.bin');
+  });
+  it('refuses a NUL anywhere in the first 1024 characters', () => {
+    assert.throws(() => checkNotBinary('x,y\n1,2\u0000\n'), /looks like a binary file/);
+  });
+  it('refuses mostly undecodable UTF-8 (U+FFFD) without NULs', () => {
+    const latin = Buffer.from(Array.from({ length: 200 }, (_, i) => 0x80 + (i % 100))).toString('utf8');
+    assert.throws(() => checkNotBinary(latin), /looks like a binary file/);
+  });
+  it('accepts text with tabs, CR, LF and a few stray control characters (<= 10 %)', () => {
+    checkNotBinary('a\tb\r\n1\t2\n');
+    checkNotBinary(`${'x,y\n1,2\n'.repeat(10)}\u0007`);
+    checkNotBinary('');
+  });
+  it('looks only at the first 1024 characters', () => {
+    checkNotBinary(`${'1,2\n'.repeat(300)}\u0000`);
+  });
+});
+
+describe('detectLineEnding', () => {
+  it('tells LF, CRLF, CR and a single line apart', () => {
+    assert.equal(detectLineEnding('a,b\n1,2\n'), 'lf');
+    assert.equal(detectLineEnding('a,b\r\n1,2\r\n'), 'crlf');
+    assert.equal(detectLineEnding('a,b\r1,2\r'), 'cr');
+    assert.equal(detectLineEnding('a,b'), 'none');
+  });
+  it('skips line breaks inside quoted fields', () => {
+    assert.equal(detectLineEnding('"a\nb",c\r\n1,2\r\n'), 'crlf');
+  });
+});
+
+describe('detectFormat', () => {
+  it('trees.csv (R write.csv): comma, header, decimal point, 3 fields', () => {
+    assert.deepEqual(detectFormat(fixture('trees.csv'), true), { delimiter: ',', decimalComma: false, header: true, lineEnding: 'lf', fieldCount: 3 });
+  });
+  it('trees-semicolon.csv (R write.csv2: ";" separator, "," decimal mark, per ?write.table): semicolon and decimal comma', () => {
+    assert.deepEqual(detectFormat(fixture('trees-semicolon.csv'), true), { delimiter: ';', decimalComma: true, header: true, lineEnding: 'lf', fieldCount: 3 });
+  });
+  it('trees-noheader.tsv (R write.table, sep = "\\t", no column names): tab, no header', () => {
+    assert.deepEqual(detectFormat(fixture('trees-noheader.tsv'), true), { delimiter: '\t', decimalComma: false, header: false, lineEnding: 'lf', fieldCount: 3 });
+  });
+  it('cars-bom-crlf.csv (BOM removed by the reader): CRLF', () => {
+    const text = fixture('cars-bom-crlf.csv').replace(/^\uFEFF/, '');
+    assert.deepEqual(detectFormat(text, true), { delimiter: ',', decimalComma: false, header: true, lineEnding: 'crlf', fieldCount: 2 });
+  });
+  it('1,5;2,25 without a header: semicolon with decimal comma beats comma (which would give "5;2")', () => {
+    assert.deepEqual(detectFormat('1,5;2,25\n3,5;4,75\n', true), { delimiter: ';', decimalComma: true, header: false, lineEnding: 'lf', fieldCount: 2 });
+  });
+  it('semicolon with integers only keeps the decimal point; tab with decimal comma is found', () => {
+    assert.equal(detectFormat('a;b\n1;2\n3;4\n', true).decimalComma, false);
+    const tab = detectFormat('a\tb\n1,5\t2\n3,25\t4\n', true);
+    assert.equal(tab.delimiter, '\t');
+    assert.equal(tab.decimalComma, true);
+  });
+  it('a first row of numbers is data; a first row of text over numbers is a header', () => {
+    assert.equal(detectFormat('1,2\n3,4\n', true).header, false);
+    assert.equal(detectFormat('x,y\n3,4\n', true).header, true);
+    assert.equal(detectFormat('NA,2\n3,4\n', true).header, false);
+  });
+  it('a text column does not make a header by itself', () => {
+    assert.equal(detectFormat('a1,1,2\nb2,3,4\nc3,5,6\n', true).header, false);
+    assert.equal(detectFormat('id,x,y\nb2,3,4\nc3,5,6\n', true).header, true);
+  });
+  it('a single record of text is a header (the reader then reports "no data rows")', () => {
+    assert.equal(detectFormat('time [s];flow [L/min]\n', true).header, true);
+  });
+  it('quoted fields with delimiters and line breaks do not confuse the field count', () => {
+    const d = detectFormat(fixture('quoted-multiline.csv'), true);
+    assert.equal(d.delimiter, ',');
+    assert.equal(d.fieldCount, 5);
+    assert.equal(d.header, true);
+  });
+  it('a cut-off sample ignores its partial last record', () => {
+    const d = detectFormat('x;y\n1;2\n3;4\n5', false);
+    assert.equal(d.fieldCount, 2);
+    assert.equal(d.delimiter, ';');
+  });
+  it('options win over detection', () => {
+    const d = detectFormat('1,5;2,25\n3,5;4,75\n', true, { delimiter: ',', header: true, decimalComma: false });
+    assert.deepEqual(d, { delimiter: ',', decimalComma: false, header: true, lineEnding: 'lf', fieldCount: 3 });
+  });
+  it('a single column is an InputError at line 1 naming the file', () => {
+    assert.throws(
+      () => detectFormat('x\n1\n2\n', true, { file: 'one.csv' }),
+      (e: unknown) => e instanceof InputError && /single column/.test(e.message) && e.place.line === 1 && e.place.file === 'one.csv',
+    );
+  });
+});

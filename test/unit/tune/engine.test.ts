@@ -1,0 +1,432 @@
+/**
+ * Tests of the resampling engine (core/tune/engine.ts: ResampleEngine), its resampling plans
+ * (core/tune/plan.ts: bootstrapCounts, foldLabels, orderByX) and its runners
+ * (core/tune/tune.ts: inlineRunner; core/node/pool.ts: workerRunner).
+ *
+ * The natural-spline engine fits every candidate from per-cell weighted power sums
+ * (DESIGN.md, Scale). Here each resample's errors are recomputed by brute force: a weighted
+ * least-squares fit of the same natural-spline basis (knots from all rows), assembled row by
+ * row with fitRowBasis, with the bootstrap multiplicities (or the fold mask) as weights, and
+ * evaluated on the out-of-bag (or held-out fold) rows. Polynomials are refitted from scratch
+ * on the training rows alone with fitPolynomial (its own orthogonal basis on the training x).
+ * Agreement: 1e-9 relative, with an absolute floor of 1e-12 times the SD of y.
+ *
+ * Fixed data: MASS::mcycle (Silverman 1985) and datasets::cars (Ezekiel 1930) with prior
+ * weights 1/speed, read from the R fixture test/reference/fixtures/fits.json (written by
+ * test/reference/r/fits.R). Property tests use seeded fast-check data.
+ */
+import { strict as assert } from 'node:assert';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import workerThreads from 'node:worker_threads';
+import fc from 'fast-check';
+import { ExtrapolatingBSplineBasis, naturalKnots } from '../../../core/basis/naturalSpline';
+import { CancelledError, FitError } from '../../../core/errors';
+import { fitRowBasis } from '../../../core/fit/linearFit';
+import { fitPolynomial } from '../../../core/fit/polynomial';
+import { prepareData } from '../../../core/fit/prepared';
+import { nullSpace } from '../../../core/linalg/nullSpace';
+import { workerRunner } from '../../../core/node/pool';
+import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../../../core/tune/engine';
+import { bootstrapCounts, foldLabels, orderByX } from '../../../core/tune/plan';
+import { inlineRunner } from '../../../core/tune/tune';
+import type { Progress, ResampleSpec } from '../../../core/tune/types';
+import type { Family } from '../../../core/types';
+
+const REL = 1e-9;
+const ABS_FLOOR = 1e-12;
+
+interface FixtureDataset {
+  readonly source: string;
+  readonly x: number[];
+  readonly y: number[];
+  readonly w: number[] | null;
+}
+
+const fixture = JSON.parse(readFileSync(join(__dirname, '..', '..', 'reference', 'fixtures', 'fits.json'), 'utf8')) as {
+  datasets: Record<string, FixtureDataset>;
+};
+
+interface Data {
+  readonly name: string;
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly w: Float64Array | undefined;
+}
+
+function dataset(name: string): Data {
+  const d = fixture.datasets[name];
+  if (!d) throw new Error(`dataset ${name} missing from fits.json`);
+  return { name: `${name} (${d.source})`, x: Float64Array.from(d.x), y: Float64Array.from(d.y), w: d.w ? Float64Array.from(d.w) : undefined };
+}
+
+/** MASS::mcycle: 133 rows, 94 distinct times, ties. */
+const MCYCLE = dataset('mcycle');
+/** datasets::cars with prior weights 1 / speed: 50 rows, 19 distinct speeds. */
+const CARS_W = dataset('cars_w');
+
+function sd(v: Float64Array): number {
+  let m = 0;
+  for (const a of v) m += a;
+  m /= v.length;
+  let s = 0;
+  for (const a of v) s += (a - m) ** 2;
+  return Math.sqrt(s / v.length);
+}
+
+/** RMSE (weighted by the prior weights), MAE (weighted) and maximum absolute error over the test rows. */
+function errorsOn(test: readonly number[], pred: (i: number) => number, d: Data): [number, number, number] {
+  let sw = 0;
+  let sse = 0;
+  let sae = 0;
+  let max = 0;
+  for (const i of test) {
+    const wi = d.w ? (d.w[i] as number) : 1;
+    const e = (d.y[i] as number) - pred(i);
+    sw += wi;
+    sse += wi * e * e;
+    sae += wi * Math.abs(e);
+    max = Math.max(max, Math.abs(e));
+  }
+  return [Math.sqrt(sse / sw), sae / sw, max];
+}
+
+/**
+ * Brute-force errors of one candidate: trains on `trainWeights` (0 = not in training) and
+ * measures on `test`. NaN when the training rows cannot determine the fit (FitError).
+ */
+function bruteErrors(d: Data, family: Family, df: number, trainWeights: Float64Array, test: readonly number[]): [number, number, number] {
+  try {
+    if (family === 'natural') {
+      const all = prepareData({ x: d.x, y: d.y });
+      const k = naturalKnots(all.sortedX, all.distinct, df);
+      const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
+      const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
+      const fit = fitRowBasis({ x: d.x, y: d.y, w: trainWeights }, basis, z, `brute-force natural spline df ${df}`);
+      return errorsOn(test, (i) => fit.fitted[i] as number, d);
+    }
+    // Polynomial: a fresh fit on the training rows alone (with multiplicities as weights).
+    const idx: number[] = [];
+    for (let i = 0; i < d.x.length; i++) if ((trainWeights[i] as number) > 0) idx.push(i);
+    const pick = (a: Float64Array): Float64Array => Float64Array.from(idx, (i) => a[i] as number);
+    const fit = fitPolynomial(prepareData({ x: pick(d.x), y: pick(d.y), w: pick(trainWeights) }), df);
+    return errorsOn(test, (i) => fit.curve.value(d.x[i] as number), d);
+  } catch (e) {
+    if (e instanceof FitError) return [NaN, NaN, NaN];
+    throw e;
+  }
+}
+
+/** Training weights and test rows of resample r, built here from the plan functions. */
+function resampleRows(d: Data, spec: ResampleSpec, seed: number, r: number): { train: Float64Array; test: number[] } {
+  const n = d.x.length;
+  const train = new Float64Array(n);
+  const test: number[] = [];
+  if (spec.kind === 'boot') {
+    const counts = new Uint32Array(n);
+    bootstrapCounts(n, seed, r, counts);
+    for (let i = 0; i < n; i++) {
+      train[i] = (counts[i] as number) * (d.w ? (d.w[i] as number) : 1);
+      if (counts[i] === 0) test.push(i);
+    }
+  } else if (spec.kind === 'cv') {
+    const labels = new Uint16Array(n);
+    foldLabels(orderByX(d.x), spec.folds, seed, Math.floor(r / spec.folds), labels);
+    const fold = r % spec.folds;
+    for (let i = 0; i < n; i++) {
+      if (labels[i] === fold) test.push(i);
+      else train[i] = d.w ? (d.w[i] as number) : 1;
+    }
+  }
+  return { train, test };
+}
+
+function problemOf(d: Data, family: Family, dfs: readonly number[], resample: ResampleSpec, seed: number): ResampleProblem {
+  return { x: d.x, y: d.y, w: d.w, family, dfs, resample, seed, order: orderByX(d.x) };
+}
+
+/**
+ * Runs every resample through the engine and through the brute force, and compares. Returns
+ * the number of (resample, candidate) pairs compared and how many were rank deficient.
+ */
+function compareWithBruteForce(d: Data, family: Family, dfs: readonly number[], resample: ResampleSpec, seed: number): { compared: number; deficient: number } {
+  const engine = new ResampleEngine(problemOf(d, family, dfs, resample, seed));
+  const C = dfs.length;
+  assert.equal(engine.size, C);
+  const count = resample.kind === 'boot' ? resample.resamples : resample.kind === 'cv' ? resample.folds * resample.repeats : 0;
+  const out = new Float64Array(C * ERRORS_PER_CANDIDATE);
+  const floor = ABS_FLOOR * sd(d.y);
+  let compared = 0;
+  let deficient = 0;
+  for (let r = 0; r < count; r++) {
+    engine.run(r, out);
+    const { train, test } = resampleRows(d, resample, seed, r);
+    dfs.forEach((df, k) => {
+      const brute = bruteErrors(d, family, df, train, test);
+      const got = [out[k], out[C + k], out[2 * C + k]] as number[];
+      const names = ['RMSE', 'MAE', 'max abs'];
+      for (let m = 0; m < 3; m++) {
+        const b = brute[m] as number;
+        const g = got[m] as number;
+        const where = `${d.name}, ${family} df ${df}, ${resample.kind} resample ${r}, ${names[m]}`;
+        if (Number.isNaN(b)) {
+          assert.ok(Number.isNaN(g), `${where}: brute force is rank deficient but the engine gave ${g}`);
+        } else {
+          assert.ok(Math.abs(g - b) <= REL * Math.abs(b) + floor, `${where}: engine ${g}, brute force ${b} (tolerance ${REL} relative)`);
+        }
+      }
+      compared++;
+      if (Number.isNaN(brute[0])) deficient++;
+    });
+  }
+  return { compared, deficient };
+}
+
+/** Seeded data for the property tests: x on a grid of `levels` values (so ties occur), y a wave plus noise. */
+const dataArb = fc
+  .record({
+    n: fc.integer({ min: 30, max: 250 }),
+    levels: fc.integer({ min: 12, max: 400 }),
+    shift: fc.double({ min: -1000, max: 1000, noNaN: true }),
+    scale: fc.constantFrom(1e-3, 1, 1e3),
+    amplitude: fc.double({ min: 0, max: 100, noNaN: true }),
+    noise: fc.double({ min: 0.01, max: 10, noNaN: true }),
+    weighted: fc.boolean(),
+    seed: fc.integer({ min: 0, max: 2 ** 31 - 1 }),
+  })
+  .chain((p) =>
+    fc.tuple(
+      fc.constant(p),
+      fc.array(fc.nat({ max: p.levels - 1 }), { minLength: p.n, maxLength: p.n }),
+      fc.array(fc.double({ min: -1, max: 1, noNaN: true }), { minLength: p.n, maxLength: p.n }),
+      fc.array(fc.double({ min: 0.2, max: 5, noNaN: true }), { minLength: p.n, maxLength: p.n }),
+    ),
+  )
+  .map(([p, xi, e, wv]) => {
+    const x = Float64Array.from(xi, (v) => p.shift + p.scale * v);
+    const y = Float64Array.from(xi, (v, i) => p.amplitude * Math.sin((6 * v) / p.levels) + p.noise * (e[i] as number));
+    const d: Data = { name: `seeded data n=${p.n}`, x, y, w: p.weighted ? Float64Array.from(wv) : undefined };
+    return { d, seed: p.seed };
+  });
+
+describe('ResampleEngine (natural spline, power sums) against brute-force refits', () => {
+  it('ResampleEngine(natural, boot) gives every resample and candidate the brute-force out-of-bag RMSE, MAE and max error (mcycle)', () => {
+    const r = compareWithBruteForce(MCYCLE, 'natural', [2, 3, 4, 5, 6, 7, 8, 9, 10, 12], { kind: 'boot', resamples: 25 }, 2024);
+    assert.equal(r.compared, 250);
+    assert.equal(r.deficient, 0, 'mcycle supports df up to 12 in every resample');
+  });
+
+  it('ResampleEngine(natural, boot) agrees with brute force under prior weights and tied x (cars, w = 1/speed)', () => {
+    compareWithBruteForce(CARS_W, 'natural', [2, 3, 4, 5, 6], { kind: 'boot', resamples: 30 }, 7);
+  });
+
+  it('ResampleEngine(natural, cv) gives every fold and candidate the brute-force held-out errors (mcycle 10-fold x 2, cars 5-fold)', () => {
+    // Training sums are total minus fold (DESIGN.md, Scale); the brute force refits each fold.
+    compareWithBruteForce(MCYCLE, 'natural', [2, 4, 6, 8, 10], { kind: 'cv', folds: 10, repeats: 2 }, 99);
+    compareWithBruteForce(CARS_W, 'natural', [2, 3, 5], { kind: 'cv', folds: 5, repeats: 1 }, 3);
+  });
+
+  it('ResampleEngine(natural) agrees with brute force on seeded random data (boot and cv, with and without weights)', () => {
+    fc.assert(
+      fc.property(
+        dataArb,
+        fc.uniqueArray(fc.integer({ min: 2, max: 9 }), { minLength: 1, maxLength: 4 }),
+        fc.constantFrom<ResampleSpec>({ kind: 'boot', resamples: 4 }, { kind: 'cv', folds: 5, repeats: 1 }, { kind: 'cv', folds: 3, repeats: 2 }),
+        ({ d, seed }, dfs, resample) => {
+          const distinct = new Set(d.x).size;
+          const usable = dfs.filter((df) => df <= distinct);
+          fc.pre(usable.length > 0);
+          compareWithBruteForce(d, 'natural', usable, resample, seed);
+        },
+      ),
+      { numRuns: 40, seed: 5150 },
+    );
+  });
+});
+
+describe('ResampleEngine (polynomial) against fitPolynomial refits', () => {
+  it('ResampleEngine(poly, boot) gives the errors of polynomials refitted on the bootstrap rows (mcycle, df 1..7)', () => {
+    compareWithBruteForce(MCYCLE, 'poly', [1, 2, 3, 4, 5, 6, 7], { kind: 'boot', resamples: 15 }, 31);
+  });
+
+  it('ResampleEngine(poly, cv) gives the errors of polynomials refitted without each fold (cars, w = 1/speed)', () => {
+    compareWithBruteForce(CARS_W, 'poly', [1, 2, 3, 4], { kind: 'cv', folds: 5, repeats: 2 }, 8);
+  });
+});
+
+describe('foldLabels and bootstrapCounts', () => {
+  it('foldLabels stratifies by x: every block of K rows in x order holds each fold once, so each fold spans the data', () => {
+    // Stratification for regression as described in the doc comment of foldLabels (common practice).
+    fc.assert(
+      fc.property(
+        fc.array(fc.integer({ min: -50, max: 50 }), { minLength: 2, maxLength: 300 }),
+        fc.integer({ min: 2, max: 20 }),
+        fc.integer({ min: 0, max: 1e6 }),
+        fc.integer({ min: 0, max: 5 }),
+        (xs, folds, seed, repeat) => {
+          fc.pre(folds <= xs.length);
+          const x = Float64Array.from(xs);
+          const order = orderByX(x);
+          const labels = new Uint16Array(x.length);
+          foldLabels(order, folds, seed, repeat, labels);
+          const n = x.length;
+          const full = Math.floor(n / folds) * folds;
+          for (let start = 0; start < full; start += folds) {
+            const seen = new Set<number>();
+            for (let j = start; j < start + folds; j++) seen.add(labels[order[j] as number] as number);
+            assert.equal(seen.size, folds, `block at ${start} holds every fold once`);
+          }
+          const sizes = new Array<number>(folds).fill(0);
+          for (const l of labels) {
+            assert.ok(l < folds);
+            sizes[l] = (sizes[l] as number) + 1;
+          }
+          assert.ok(Math.max(...sizes) - Math.min(...sizes) <= 1, `fold sizes ${sizes.join(',')}`);
+          // Each fold reaches into the lowest and the highest complete block of x.
+          const sorted = Float64Array.from(x).sort();
+          for (let k = 0; k < folds; k++) {
+            const xk = Array.from(x).filter((_, i) => labels[i] === k);
+            assert.ok(Math.min(...xk) <= (sorted[folds - 1] as number), `fold ${k} starts within the first block`);
+            assert.ok(Math.max(...xk) >= (sorted[full - folds] as number), `fold ${k} ends within the last complete block`);
+          }
+        },
+      ),
+      { numRuns: 200, seed: 4242 },
+    );
+  });
+
+  it('foldLabels spans the x range of mcycle in every fold (10 folds)', () => {
+    const order = orderByX(MCYCLE.x);
+    const labels = new Uint16Array(MCYCLE.x.length);
+    foldLabels(order, 10, 1, 0, labels);
+    const sorted = Float64Array.from(MCYCLE.x).sort();
+    for (let k = 0; k < 10; k++) {
+      const xk = Array.from(MCYCLE.x).filter((_, i) => labels[i] === k);
+      assert.ok(Math.min(...xk) <= (sorted[9] as number) && Math.max(...xk) >= (sorted[120] as number), `fold ${k}: ${Math.min(...xk)}..${Math.max(...xk)}`);
+    }
+  });
+
+  it('bootstrapCounts draws exactly n rows, depends only on (seed, resample) and changes with either', () => {
+    const n = 500;
+    const a = new Uint32Array(n);
+    const b = new Uint32Array(n);
+    bootstrapCounts(n, 5, 3, a);
+    bootstrapCounts(n, 5, 3, b);
+    assert.deepEqual(a, b);
+    assert.equal(a.reduce((s, v) => s + v, 0), n);
+    // A row is out of bag with probability (1 - 1/n)^n (direct calculation: n independent draws
+    // miss it), 0.3675 for n = 500; the share's SD is about sqrt(p (1 - p) / n) = 0.0216, so a
+    // band of +-0.11 (5 SD) fails only for a broken sampler.
+    const p = (1 - 1 / n) ** n;
+    const oob = a.filter((v) => v === 0).length / n;
+    assert.ok(Math.abs(oob - p) < 0.11, `out-of-bag share ${oob}, expected about ${p}`);
+    bootstrapCounts(n, 6, 3, b);
+    assert.notDeepEqual(a, b);
+    bootstrapCounts(n, 5, 4, b);
+    assert.notDeepEqual(a, b);
+  });
+});
+
+/** Problem large enough for threads: 30,000 rows x 10 resamples (above the inline limit of the pool). */
+function bigProblem(family: Family, dfs: readonly number[], resamples: number, seed: number): ResampleProblem {
+  const n = 30_000;
+  const x = new Float64Array(n);
+  const y = new Float64Array(n);
+  // Deterministic scattered data (Weyl sequence for x, a smooth curve plus a bounded wiggle for y).
+  for (let i = 0; i < n; i++) {
+    x[i] = ((i * 0.6180339887498949) % 1) * 100;
+    y[i] = Math.sin((x[i] as number) / 10) * 5 + 0.5 * Math.sin(i * 12.9898);
+  }
+  return { x, y, family, dfs, resample: { kind: 'boot', resamples }, seed, order: orderByX(x) };
+}
+
+function recorder(cancelAfter = Infinity): Progress & { reports: [number, number][] } {
+  const reports: [number, number][] = [];
+  return {
+    reports,
+    report(done, total) {
+      reports.push([done, total]);
+    },
+    cancelled: () => reports.length >= cancelAfter,
+  };
+}
+
+describe('runners', () => {
+  it('inlineRunner gives identical results for the same seed and different ones for another seed', async () => {
+    // Tolerance 0: the same operations on the same inputs must give the same doubles.
+    const p = problemOf(MCYCLE, 'natural', [3, 5, 7], { kind: 'cv', folds: 5, repeats: 2 }, 17);
+    const a = await inlineRunner.run(p, 10);
+    const b = await inlineRunner.run(p, 10);
+    assert.deepEqual(a, b);
+    const c = await inlineRunner.run({ ...p, seed: 18 }, 10);
+    const differs = a.some((e, r) => e.some((v, j) => Math.abs(v - ((c[r] as Float64Array)[j] as number)) > 1e-6 * Math.abs(v)));
+    assert.ok(differs, 'another seed gives other folds and other errors');
+    const boot = problemOf(MCYCLE, 'natural', [4], { kind: 'boot', resamples: 5 }, 17);
+    assert.deepEqual(await inlineRunner.run(boot, 5), await inlineRunner.run(boot, 5));
+  });
+
+  it('workerRunner gives results identical to inlineRunner on 30,000 rows x 10 resamples, in resample order, with progress', async function () {
+    this.timeout(120_000);
+    const p = bigProblem('natural', [2, 3, 4, 5, 6, 7, 8, 9, 10, 11], 10, 77);
+    const created: workerThreads.Worker[] = [];
+    const Original = workerThreads.Worker;
+    // Count the threads the pool starts (it must not fall back to inline for this size).
+    workerThreads.Worker = class extends Original {
+      constructor(...args: ConstructorParameters<typeof Original>) {
+        super(...args);
+        created.push(this);
+      }
+    };
+    let threaded: Float64Array[];
+    const progress = recorder();
+    try {
+      threaded = await workerRunner(2).run(p, 10, progress);
+    } finally {
+      workerThreads.Worker = Original;
+    }
+    assert.equal(created.length, 2, 'two worker threads');
+    const inline = await inlineRunner.run(p, 10);
+    // Tolerance 0: each resample depends only on (seed, index), so the doubles must be identical.
+    assert.equal(threaded.length, 10);
+    for (let r = 0; r < 10; r++) assert.deepEqual(Array.from(threaded[r] as Float64Array), Array.from(inline[r] as Float64Array), `resample ${r}`);
+    assert.ok(threaded.every((e) => e.every((v) => Number.isFinite(v) && v > 0)), 'all errors finite');
+    assert.deepEqual(
+      progress.reports.map(([d]) => d),
+      Array.from({ length: 10 }, (_, i) => i + 1),
+    );
+    assert.ok(progress.reports.every(([, t]) => t === 10));
+  });
+
+  it('workerRunner rejects with CancelledError when cancelled and terminates its workers', async function () {
+    this.timeout(120_000);
+    // Polynomial refits are O(n p^2) per resample, so 200 resamples keep two threads busy for
+    // seconds; the run is cancelled as soon as the first resample is reported.
+    const p = bigProblem('poly', [1, 2, 3, 4, 5, 6, 7, 8], 200, 5);
+    const exits: Promise<number>[] = [];
+    const Original = workerThreads.Worker;
+    workerThreads.Worker = class extends Original {
+      constructor(...args: ConstructorParameters<typeof Original>) {
+        super(...args);
+        exits.push(new Promise((res) => this.once('exit', res)));
+      }
+    };
+    const progress = recorder(1);
+    try {
+      await assert.rejects(workerRunner(2).run(p, 200, progress), CancelledError);
+    } finally {
+      workerThreads.Worker = Original;
+    }
+    assert.equal(exits.length, 2);
+    const codes = await Promise.all(exits);
+    // A worker that ran to its end exits with code 0; a terminated one with code 1 (Node worker_threads docs).
+    assert.deepEqual(codes, [1, 1], `exit codes ${codes.join(', ')}`);
+    assert.ok(progress.reports.length < 200, `${progress.reports.length} of 200 resamples reported`);
+  });
+
+  it('inlineRunner rejects with CancelledError when cancelled', async () => {
+    const p = problemOf(MCYCLE, 'natural', [3, 5], { kind: 'boot', resamples: 20 }, 1);
+    const progress = recorder(3);
+    await assert.rejects(inlineRunner.run(p, 20, progress), CancelledError);
+    assert.equal(progress.reports.length, 3);
+  });
+});

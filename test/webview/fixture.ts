@@ -1,0 +1,52 @@
+/**
+ * Panel payloads built by the real core (ingest, analyse, view) from the open data sets
+ * in test/e2e/fixtures (R's `cars`, MASS::mcycle; see make-fixtures.R there).
+ */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { analyse } from '../../core/analysis';
+import type { Analysis, AnalysisOptions } from '../../core/analysisTypes';
+import { parseCsvText } from '../../core/ingest/reader';
+import { selectColumns } from '../../core/ingest/select';
+import type { PanelPayload } from '../../core/protocol';
+import type { XYData } from '../../core/types';
+import { buildPanelPayload } from '../../core/view/payload';
+
+export const fixtureDir = join(__dirname, '..', 'e2e', 'fixtures');
+
+/** One analysed fixture: the payload plus what the fake host needs to answer detail requests. */
+export interface Fixture {
+  readonly payload: PanelPayload;
+  readonly analysis: Analysis;
+  readonly data: XYData;
+}
+
+/** Reads a fixture CSV (optionally with its header line replaced) and analyses columns x, y. */
+export async function analysedFixture(file: string, x: string, y: string, options: AnalysisOptions, header?: string): Promise<Fixture> {
+  let text = readFileSync(join(fixtureDir, file), 'utf8');
+  if (header !== undefined) text = header + text.slice(text.indexOf('\n'));
+  const table = parseCsvText(text, { file });
+  const sel = selectColumns(table, { x, y }, file);
+  const analysis = await analyse(sel.data, options);
+  const payload = buildPanelPayload({
+    runId: 1,
+    analysis,
+    data: sel.data,
+    source: { fileName: file, xLabel: sel.labels.x, yLabel: sel.labels.y },
+    rejected: sel.rejected.length,
+    heldOut: 0,
+    tolerancePercent: 2,
+  });
+  return { payload, analysis, data: sel.data };
+}
+
+/** MASS::mcycle, natural spline df 3..15, bootstrap 40 resamples, one-SE rule. */
+export function mcycleFixture(): Promise<Fixture> {
+  return analysedFixture('mcycle.csv', 'times', 'accel', {
+    family: 'natural',
+    candidates: [3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15],
+    resample: { kind: 'boot', resamples: 40 },
+    rule: { kind: '1se' },
+    seed: 11,
+  });
+}

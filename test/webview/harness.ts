@@ -1,0 +1,127 @@
+/**
+ * Serves the real panel HTML (extension/html.ts, with its CSP and nonce) and the bundled
+ * script from 127.0.0.1, opens it in headless Chromium with a stubbed acquireVsCodeApi,
+ * and plays the host: messages are posted into the page, the panel's messages come back
+ * through an exposed function, and detail requests are answered from the real analysis.
+ */
+import { randomBytes } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { createServer, type Server } from 'node:http';
+import { join } from 'node:path';
+import type { Page } from 'playwright-core';
+import type { HostMessage, PanelMessage } from '../../core/protocol';
+import { detailFor } from '../../core/view/payload';
+import { panelHtml } from '../../extension/html';
+import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs';
+import type { Fixture } from './fixture';
+
+const distDir = join(__dirname, '..', '..', 'dist', 'webview');
+
+/** A page showing the panel, and what happened in it. */
+export interface PanelPage {
+  readonly page: Page;
+  /** Messages the panel sent, in order. */
+  readonly sent: PanelMessage[];
+  /** Dialogs (alert, confirm, ...) the page tried to open. */
+  readonly dialogs: string[];
+  /** Content-security-policy violations reported by the page. */
+  readonly cspViolations: () => Promise<string[]>;
+  /** Posts a host message into the panel. */
+  send(message: HostMessage): Promise<void>;
+  /** Waits until the panel sent a message of type `type` (after `from` messages). */
+  waitForSent(type: PanelMessage['type'], from?: number): Promise<PanelMessage>;
+}
+
+/** A local server for the panel files. */
+export interface PanelServer {
+  readonly origin: string;
+  close(): Promise<void>;
+}
+
+/** Starts the panel's file server on a free loopback port. */
+export async function startPanelServer(): Promise<PanelServer> {
+  let origin = '';
+  const server: Server = createServer((req, res) => {
+    const url = new URL(req.url ?? '/', origin);
+    if (url.pathname === '/') {
+      const nonce = randomBytes(16).toString('base64');
+      res.writeHead(200, { 'content-type': 'text/html; charset=utf-8' });
+      res.end(panelHtml({ cspSource: origin, nonce, scriptUri: `${origin}/main.js`, styleUri: `${origin}/main.css`, title: 'Knotwise panel test' }));
+      return;
+    }
+    if (url.pathname === '/main.js' || url.pathname === '/main.css' || url.pathname === '/theme.css') {
+      const type = url.pathname.endsWith('.js') ? 'text/javascript' : 'text/css';
+      const file = url.pathname === '/theme.css' ? join(__dirname, 'theme.css') : join(distDir, url.pathname.slice(1));
+      res.writeHead(200, { 'content-type': type });
+      res.end(readFileSync(file));
+      return;
+    }
+    res.writeHead(404);
+    res.end();
+  });
+  await new Promise<void>((r) => server.listen(0, '127.0.0.1', () => r()));
+  const addr = server.address();
+  origin = `http://127.0.0.1:${typeof addr === 'object' && addr ? addr.port : 0}`;
+  return { origin, close: () => new Promise<void>((r) => server.close(() => r())) };
+}
+
+/** Theme variables of VS Code's default light and dark themes, for screenshots outside the editor. */
+export type Theme = 'light' | 'dark';
+
+/** Opens the panel page, installs the stub host and waits for the panel's `ready`. */
+export async function openPanel(browser: LaunchedChromium, server: PanelServer, fixture: Fixture | undefined, theme: Theme = 'light'): Promise<PanelPage> {
+  const page = await browser.context.newPage();
+  const sent: PanelMessage[] = [];
+  const dialogs: string[] = [];
+  page.on('dialog', (d) => {
+    dialogs.push(`${d.type()}: ${d.message()}`);
+    void d.dismiss();
+  });
+  const post = async (message: HostMessage): Promise<void> => {
+    await page.evaluate((m) => window.postMessage(m, '*'), message);
+  };
+  await page.exposeFunction('__knotwiseToHost', (m: PanelMessage) => {
+    sent.push(m);
+    if (m.type === 'needDetail' && fixture && m.runId === fixture.payload.runId) {
+      const detail = detailFor(fixture.analysis, fixture.data, m.df);
+      if (detail) void post({ type: 'detail', runId: m.runId, detail });
+    }
+  });
+  await page.addInitScript((themeName: string) => {
+    const w = window as unknown as Record<string, unknown>;
+    w.__knotwiseCsp = [] as string[];
+    document.addEventListener('securitypolicyviolation', (e) => (w.__knotwiseCsp as string[]).push(`${e.violatedDirective} ${e.blockedURI}`));
+    let state: unknown;
+    w.acquireVsCodeApi = () => ({
+      postMessage: (m: unknown) => (w.__knotwiseToHost as (m: unknown) => void)(m),
+      getState: () => state,
+      setState: (s: unknown) => {
+        state = s;
+      },
+    });
+    document.addEventListener('DOMContentLoaded', () => {
+      document.documentElement.dataset.theme = themeName;
+      document.body.classList.add(`vscode-${themeName}`);
+    });
+  }, theme);
+  await page.goto(`${server.origin}/`);
+  await page.addStyleTag({ url: `${server.origin}/theme.css` });
+  const pp: PanelPage = {
+    page,
+    sent,
+    dialogs,
+    cspViolations: () => page.evaluate(() => (window as unknown as { __knotwiseCsp: string[] }).__knotwiseCsp),
+    send: post,
+    async waitForSent(type, from = 0) {
+      const deadline = Date.now() + 10000;
+      for (;;) {
+        const m = sent.slice(from).find((s) => s.type === type);
+        if (m) return m;
+        if (Date.now() > deadline) throw new Error(`the panel did not send "${type}" (sent: ${sent.map((s) => s.type).join(', ')})`);
+        await new Promise((r) => setTimeout(r, 25));
+      }
+    },
+  };
+  await pp.waitForSent('ready');
+  return pp;
+}

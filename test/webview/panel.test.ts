@@ -1,0 +1,257 @@
+/**
+ * The Knotwise panel in headless Chromium: the real HTML with its CSP, the bundled
+ * script, a stubbed host. Payloads come from the real core run on MASS::mcycle (Silverman
+ * 1985, shipped with R's MASS package; see test/e2e/fixtures/make-fixtures.R). Expected
+ * choices are computed with core's selectDf on the same candidates, so the test checks
+ * that the panel shows what the rules decide, not a copy of itself.
+ */
+import assert from 'node:assert/strict';
+import { join } from 'node:path';
+import { analyse } from '../../core/analysis';
+import type { HostMessage, PanelPayload } from '../../core/protocol';
+import { selectDf } from '../../core/tune/rules';
+import type { RuleSpec } from '../../core/tune/types';
+import { buildPanelPayload } from '../../core/view/payload';
+import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs';
+import { analysedFixture, mcycleFixture, type Fixture } from './fixture';
+import { openPanel, startPanelServer, type PanelPage, type PanelServer } from './harness';
+
+const artifacts = join(__dirname, '..', '..', 'test-artifacts');
+
+describe('Knotwise panel (webview in headless Chromium)', function () {
+  let browser: LaunchedChromium;
+  let server: PanelServer;
+  let mcycle: Fixture;
+
+  before(async function () {
+    const wb = await import('../../scripts/e2e-workbench.mjs');
+    browser = await wb.launchChromium({ viewport: { width: 1280, height: 1000 } });
+    server = await startPanelServer();
+    mcycle = await mcycleFixture();
+  });
+
+  after(async function () {
+    await browser?.close();
+    await server?.close();
+  });
+
+  async function shown(fixture: Fixture, theme: 'light' | 'dark' = 'light'): Promise<PanelPage> {
+    const pp = await openPanel(browser, server, fixture, theme);
+    await pp.send({ type: 'result', payload: fixture.payload });
+    await pp.page.waitForSelector('#knotwise-root[data-state="ready"]');
+    return pp;
+  }
+
+  const expected = (payload: PanelPayload, rule: RuleSpec) => selectDf(payload.candidates, rule, payload.metric);
+
+  it('renders the chosen df, the rule explanation and every figure with a text alternative', async function () {
+    const pp = await shown(mcycle);
+    const sel = expected(mcycle.payload, mcycle.payload.rule);
+    const page = pp.page;
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${sel.df}`);
+    assert.equal(await page.textContent('#kw-reason'), sel.reason);
+    assert.equal(await page.getAttribute('#knotwise-root', 'data-chosen-df'), String(sel.df));
+    // Every figure of DESIGN capability 6 is there, each an SVG with role img, a title and a description.
+    const figures = await page.$$eval('figure.kw-figure', (fs) =>
+      fs.map((f) => {
+        const svg = f.querySelector('svg');
+        return { id: f.id, role: svg?.getAttribute('role'), title: svg?.querySelector('title')?.textContent ?? '', desc: svg?.querySelector('desc')?.textContent ?? '' };
+      }),
+    );
+    assert.deepEqual(
+      figures.map((f) => f.id),
+      ['fig-data', 'fig-error', 'fig-resid-x', 'fig-resid-fit', 'fig-qq', 'fig-cooks', 'fig-leverage'],
+    );
+    for (const f of figures) {
+      assert.equal(f.role, 'img', `${f.id} role`);
+      assert.ok(f.title.length > 10 && f.desc.length > 20, `${f.id} has a title and a description`);
+    }
+    assert.match(figures[0]?.title ?? '', new RegExp(`df ${sel.df}\\)`));
+    // Both bands and the curve are drawn; one dot per reading (133 rows of mcycle).
+    assert.equal(await page.locator('#fig-data path.kw-band-ci').count(), 1);
+    assert.equal(await page.locator('#fig-data path.kw-band-pi').count(), 1);
+    assert.equal(await page.locator('#fig-data circle.kw-point').count(), 133);
+    // The caution and the candidates table.
+    assert.match((await page.textContent('#kw-caution')) ?? '', /not a certified calibration/);
+    assert.equal(await page.locator('#kw-candidate-body tbody tr').count(), mcycle.payload.candidates.length);
+    assert.deepEqual(await pp.cspViolations(), []);
+    await page.close();
+  });
+
+  it('switching the rule changes the chosen df and the explanation at once', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const oneSe = expected(mcycle.payload, { kind: '1se' });
+    const lowest = expected(mcycle.payload, { kind: 'lowest' });
+    // Precondition of this fixture (seeded): the two rules disagree, so a change is visible.
+    assert.notEqual(oneSe.df, lowest.df);
+    const before = pp.sent.length;
+    await page.check('#kw-rule-lowest');
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${lowest.df}`);
+    assert.equal(await page.textContent('#kw-reason'), lowest.reason);
+    const choice = await pp.waitForSent('choice', before);
+    assert.deepEqual(choice, { type: 'choice', runId: 1, rule: { kind: 'lowest' }, df: lowest.df });
+    assert.match((await page.textContent('#fig-error title')) ?? '', /RMSE/);
+    assert.match((await page.textContent('#fig-data svg > title')) ?? '', new RegExp(`df ${lowest.df}\\)`));
+
+    // Tolerance rule with 10 %: whatever selectDf decides, the panel shows.
+    await page.check('#kw-rule-tol');
+    await page.fill('#kw-tolerance', '10');
+    await page.press('#kw-tolerance', 'Enter');
+    await page.locator('#kw-tolerance').dispatchEvent('change');
+    const tol = expected(mcycle.payload, { kind: 'tol', percent: 10 });
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${tol.df}`);
+    assert.equal(await page.textContent('#kw-reason'), tol.reason);
+
+    // A df by hand: the residual figures follow once the host answers the detail request.
+    const manualDf = 4;
+    const mark = pp.sent.length;
+    await page.selectOption('#kw-df', String(manualDf));
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${manualDf}`);
+    const need = await pp.waitForSent('needDetail', mark);
+    assert.deepEqual(need, { type: 'needDetail', runId: 1, df: manualDf });
+    await page.waitForSelector('#fig-qq svg');
+    assert.match((await page.textContent('#fig-resid-x svg > title')) ?? '', /\(df 4\)/);
+    await page.close();
+  });
+
+  it('a column named <img src=x onerror=alert(1)> shows as text and runs nothing', async function () {
+    const evil = '<img src=x onerror=alert(1)>';
+    const fx = await analysedFixture('mcycle.csv', evil, 'accel', { family: 'natural', candidates: [3, 4, 5, 6], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1 }, `${evil},accel [g]`);
+    const pp = await shown(fx);
+    const page = pp.page;
+    assert.equal(await page.textContent('h1'), `accel against ${evil}`);
+    assert.equal(await page.locator('img').count(), 0);
+    assert.equal(await page.locator('#knotwise-root img, svg img').count(), 0);
+    // The axis title of the data figure carries the name as text.
+    const axisTitles = await page.$$eval('#fig-data text.kw-axis-title', (ts) => ts.map((t) => t.textContent));
+    assert.ok(axisTitles.includes(evil), `axis titles ${JSON.stringify(axisTitles)}`);
+    await page.waitForTimeout(200);
+    assert.deepEqual(pp.dialogs, []);
+    await page.close();
+  });
+
+  it('the content security policy blocks a script without the nonce', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const csp = await page.getAttribute('meta[http-equiv="Content-Security-Policy"]', 'content');
+    assert.match(csp ?? '', /default-src 'none'/);
+    assert.match(csp ?? '', /script-src 'nonce-[A-Za-z0-9+/=]{16,}'/);
+    await page.evaluate(() => {
+      const s = document.createElement('script');
+      s.textContent = 'window.__injected = true';
+      document.body.append(s);
+    });
+    await page.waitForTimeout(100);
+    assert.equal(await page.evaluate(() => (window as unknown as { __injected?: boolean }).__injected), undefined);
+    assert.ok((await pp.cspViolations()).some((v) => v.startsWith('script-src')), 'a CSP violation was reported');
+    await page.close();
+  });
+
+  it('hovering a reading shows its values and CSV line; an influential row reveals its line', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const circle = page.locator('#fig-data circle.kw-point').first();
+    await circle.hover();
+    const line = await circle.getAttribute('data-line');
+    // mcycle.csv: the first data row is on line 2 (line 1 holds the header).
+    assert.equal(line, '2');
+    assert.match((await page.textContent('#fig-data .kw-readout')) ?? '', /times 2\.4, accel 0, CSV line 2/);
+    const button = page.locator('#kw-influence-body button[data-line]').first();
+    assert.equal(await button.count(), 1, 'mcycle has influential rows at this df');
+    const want = Number(await button.getAttribute('data-line'));
+    const mark = pp.sent.length;
+    await button.click();
+    assert.deepEqual(await pp.waitForSent('revealLine', mark), { type: 'revealLine', line: want });
+    // The marked points of the Cook's distance figure are reachable by keyboard too.
+    const point = page.locator('#fig-cooks circle[tabindex="0"]').first();
+    const pointLine = Number(await point.getAttribute('data-line'));
+    await point.focus();
+    const mark2 = pp.sent.length;
+    await page.keyboard.press('Enter');
+    assert.deepEqual(await pp.waitForSent('revealLine', mark2), { type: 'revealLine', line: pointLine });
+    await page.close();
+  });
+
+  it('every control is reachable with the Tab key', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const reached = new Set<string>();
+    for (let i = 0; i < 40; i++) {
+      await page.keyboard.press('Tab');
+      const id = await page.evaluate(() => {
+        const a = document.activeElement;
+        return a ? a.id || a.getAttribute('name') || a.tagName : '';
+      });
+      reached.add(id);
+    }
+    for (const id of ['kw-rule', 'kw-df', 'kw-save', 'kw-rerun']) assert.ok(reached.has(id), `${id} reached (got ${[...reached].join(', ')})`);
+    await page.close();
+  });
+
+  it('save sends the current rule and shows the host answer; stale results are dropped', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    await page.check('#kw-rule-lowest');
+    const mark = pp.sent.length;
+    await page.click('#kw-save');
+    const save = await pp.waitForSent('save', mark);
+    assert.equal(save.type, 'save');
+    if (save.type !== 'save') return;
+    assert.deepEqual(save.rule, { kind: 'lowest' });
+    assert.equal(await page.isDisabled('#kw-save'), true);
+    await pp.send({ type: 'saved', requestId: save.requestId, files: ['mcycle.curve.csv', 'mcycle.fit.json'] });
+    assert.equal(await page.textContent('#kw-status'), 'Saved mcycle.curve.csv and mcycle.fit.json.');
+    assert.equal(await page.isDisabled('#kw-save'), false);
+    // A newer run replaces the view; an older one arriving late is ignored.
+    const newer: HostMessage = { type: 'result', payload: { ...mcycle.payload, runId: 5, source: { ...mcycle.payload.source, fileName: 'newer.csv' } } };
+    await pp.send(newer);
+    await pp.send({ type: 'result', payload: { ...mcycle.payload, runId: 4, source: { ...mcycle.payload.source, fileName: 'older.csv' } } });
+    assert.match((await page.textContent('.kw-meta')) ?? '', /^newer\.csv/);
+    await pp.send({ type: 'failed', runId: 3, message: 'old failure' });
+    assert.notEqual(await page.textContent('#kw-status'), 'old failure');
+    await page.close();
+  });
+
+  it('large n: the message stays under 3 MB and readings are drawn as a density grid', async function () {
+    // Property check on seeded invented data (n = 200,000), not a reference value.
+    const n = 200_000;
+    let s = 12345;
+    const rand = () => ((s = (s * 1103515245 + 12345) >>> 0) / 2 ** 32);
+    const x = new Float64Array(n);
+    const y = new Float64Array(n);
+    const lines = new Int32Array(n);
+    for (let i = 0; i < n; i++) {
+      x[i] = 10 * rand();
+      y[i] = Math.sin(x[i] as number) + 0.3 * (rand() + rand() + rand() - 1.5);
+      lines[i] = i + 2;
+    }
+    const data = { x, y, lines };
+    const analysis = await analyse(data, { family: 'natural', candidates: [4, 6, 8, 10], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1 });
+    const payload = buildPanelPayload({ runId: 1, analysis, data, source: { fileName: 'big.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
+    const bytes = Buffer.byteLength(JSON.stringify(payload));
+    assert.ok(bytes < 3_000_000, `payload is ${bytes} bytes`);
+    assert.equal(payload.data.kind, 'bins');
+    const pp = await shown({ payload, analysis, data });
+    const page = pp.page;
+    assert.ok((await page.locator('#fig-data rect.kw-bin').count()) > 100);
+    assert.equal(await page.locator('#fig-data circle').count(), 0);
+    assert.match((await page.textContent('#fig-data svg > desc')) ?? '', /200000 readings drawn as a density grid/);
+    await page.close();
+  });
+
+  for (const theme of ['light', 'dark'] as const) {
+    it(`screenshot in the ${theme} theme (test-artifacts/webview-${theme}.png)`, async function () {
+      const pp = await shown(mcycle, theme);
+      await pp.page.screenshot({ path: join(artifacts, `webview-${theme}.png`), fullPage: true });
+      const bg = await pp.page.evaluate(() => getComputedStyle(document.body).backgroundColor);
+      // Light theme: white editor background; dark: a dark one (theme variables applied).
+      assert.equal(bg, theme === 'light' ? 'rgb(255, 255, 255)' : 'rgb(31, 31, 31)');
+      await pp.page.close();
+    });
+  }
+
+  it('no request left 127.0.0.1', function () {
+    assert.deepEqual(browser.blocked, []);
+  });
+});

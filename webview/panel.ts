@@ -1,0 +1,354 @@
+/**
+ * The Knotwise panel: shows one run's payload, lets the person switch the rule, the
+ * tolerance or pick a df by hand (applied at once with core's selectDf, no round trip),
+ * asks the host for residual details it does not have yet, and sends save and
+ * reveal-line requests. Every text from the CSV is set with textContent.
+ */
+import type { FitDetail, HostMessage, PanelPayload } from '../core/protocol';
+import { unreachable } from '../core/protocol';
+import { metricLabel, ruleWords, sig } from '../core/tune/format';
+import { selectDf } from '../core/tune/rules';
+import type { RuleSpec, Selection } from '../core/tune/types';
+import { el, replaceChildren } from './dom';
+import { renderFigures } from './figures';
+import type { Host } from './vscodeApi';
+
+type RuleKind = RuleSpec['kind'];
+
+const RULE_CHOICES: readonly { readonly kind: RuleKind; readonly label: string }[] = [
+  { kind: '1se', label: 'One-standard-error rule' },
+  { kind: 'tol', label: 'Within a tolerance of the lowest error' },
+  { kind: 'lowest', label: 'Lowest mean error' },
+  { kind: 'manual', label: 'My own df' },
+];
+
+/** The panel's state and DOM. */
+export class Panel {
+  private payload: PanelPayload | undefined;
+  private rule: RuleSpec = { kind: '1se' };
+  private tolerance = 2;
+  private readonly details = new Map<number, FitDetail>();
+  private readonly requested = new Set<number>();
+  private nextRequest = 1;
+  private pendingSave: number | undefined;
+
+  constructor(
+    private readonly root: HTMLElement,
+    private readonly host: Host,
+  ) {
+    root.addEventListener('click', (e) => this.onActivate(e));
+    root.addEventListener('keydown', (e) => {
+      if ((e.key === 'Enter' || e.key === ' ') && (e.target as Element | null)?.closest?.('svg [data-line][tabindex]')) {
+        e.preventDefault();
+        this.onActivate(e);
+      }
+    });
+    root.addEventListener('mouseover', (e) => this.onHover(e));
+    root.addEventListener('focusin', (e) => this.onHover(e));
+  }
+
+  /** Handles one message from the host. */
+  handle(message: HostMessage): void {
+    switch (message.type) {
+      case 'running':
+        this.root.dataset.state = 'running';
+        this.status(message.message);
+        return;
+      case 'result':
+        this.show(message.payload);
+        return;
+      case 'failed':
+        if (this.payload && message.runId < this.payload.runId) return;
+        this.root.dataset.state = this.payload ? 'ready' : 'failed';
+        this.status(message.message);
+        if (!this.payload) replaceChildren(this.root, el('p', { class: 'kw-error', role: 'alert' }, message.message));
+        return;
+      case 'detail':
+        if (!this.payload || message.runId !== this.payload.runId) return;
+        this.details.set(message.detail.df, message.detail);
+        if (this.currentSelection()?.df === message.detail.df) this.update();
+        return;
+      case 'saved':
+        if (message.requestId !== this.pendingSave) return;
+        this.pendingSave = undefined;
+        this.setSaveBusy(false);
+        this.status(`Saved ${message.files.join(' and ')}.`);
+        return;
+      case 'saveFailed':
+        if (message.requestId !== this.pendingSave) return;
+        this.pendingSave = undefined;
+        this.setSaveBusy(false);
+        this.status(message.message);
+        return;
+      default:
+        unreachable(message);
+    }
+  }
+
+  private show(payload: PanelPayload): void {
+    if (this.payload && payload.runId < this.payload.runId) return;
+    const kept = this.host.loadState();
+    this.payload = payload;
+    this.details.clear();
+    this.requested.clear();
+    for (const d of payload.details) this.details.set(d.df, d);
+    this.rule = kept && kept.runId === payload.runId ? (kept.rule as RuleSpec) : payload.rule;
+    this.tolerance = this.rule.kind === 'tol' ? this.rule.percent : payload.tolerancePercent;
+    this.root.dataset.state = 'ready';
+    this.root.dataset.runId = String(payload.runId);
+    this.build(payload);
+    this.update();
+  }
+
+  private currentSelection(): Selection | undefined {
+    if (!this.payload) return undefined;
+    try {
+      return selectDf(this.payload.candidates, this.rule, this.payload.metric);
+    } catch {
+      return undefined;
+    }
+  }
+
+  private build(p: PanelPayload): void {
+    const s = p.source;
+    const evaluated = p.candidates.filter((c) => c.skipped === undefined);
+    const ruleGroup = el('fieldset', { class: 'kw-rules' }, el('legend', {}, 'How df is chosen'));
+    for (const r of RULE_CHOICES) {
+      const id = `kw-rule-${r.kind}`;
+      ruleGroup.append(el('div', { class: 'kw-radio' }, el('input', { type: 'radio', name: 'kw-rule', id, value: r.kind }), el('label', { for: id }, r.label)));
+    }
+    const dfSelect = el('select', { id: 'kw-df', 'aria-label': 'df chosen by hand' });
+    for (const c of evaluated) dfSelect.append(el('option', { value: c.df }, `df ${c.df}`));
+    const controls = el(
+      'section',
+      { class: 'kw-controls', 'aria-label': 'Choice of df' },
+      ruleGroup,
+      el(
+        'div',
+        { class: 'kw-inputs' },
+        el('label', { for: 'kw-tolerance' }, 'Tolerance (%)'),
+        el('input', { type: 'number', id: 'kw-tolerance', min: 0, max: 100, step: 0.5, value: this.tolerance }),
+        el('label', { for: 'kw-df' }, 'df by hand'),
+        dfSelect,
+      ),
+      el(
+        'div',
+        { class: 'kw-actions' },
+        el('button', { type: 'button', id: 'kw-save', class: 'kw-primary' }, 'Save table and record'),
+        el('button', { type: 'button', id: 'kw-rerun', class: 'kw-secondary' }, 'Run again'),
+      ),
+    );
+    const rows = `${p.rows.used} rows used` + (p.rows.rejected ? `, ${p.rows.rejected} rejected (see Problems)` : '') + (p.rows.heldOut ? `, ${p.rows.heldOut} held out` : '');
+    replaceChildren(
+      this.root,
+      el(
+        'header',
+        { class: 'kw-header' },
+        el('h1', {}, `${s.yLabel} against ${s.xLabel}`),
+        el('p', { class: 'kw-meta' }, `${s.fileName} · ${rows}${s.weightsLabel ? ` · weights: ${s.weightsLabel}` : ''} · ${p.familyWords} · ${p.resampleWords}`),
+      ),
+      el(
+        'section',
+        { class: 'kw-verdict', 'aria-labelledby': 'kw-verdict-title' },
+        el('h2', { id: 'kw-verdict-title' }, 'Chosen flexibility'),
+        el('p', { class: 'kw-df-line' }, el('span', { class: 'kw-df-badge', id: 'kw-chosen-df' }), el('span', { id: 'kw-fit-stats', class: 'kw-muted' })),
+        el('p', { id: 'kw-reason', 'aria-live': 'polite' }),
+        el('ul', { id: 'kw-alternatives', class: 'kw-list' }),
+      ),
+      controls,
+      el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }),
+      el('section', { class: 'kw-warnings', 'aria-labelledby': 'kw-warn-title' }, el('h2', { id: 'kw-warn-title' }, 'Warnings and checks'), el('ul', { id: 'kw-warning-list', class: 'kw-list' }), el('ul', { id: 'kw-check-list', class: 'kw-list' })),
+      el('section', { class: 'kw-figures', id: 'kw-figures', 'aria-label': 'Figures' }),
+      el('section', { class: 'kw-influence', 'aria-labelledby': 'kw-infl-title' }, el('h2', { id: 'kw-infl-title' }, 'Influential rows'), el('div', { id: 'kw-influence-body' })),
+      el('section', { class: 'kw-candidates', 'aria-labelledby': 'kw-cand-title' }, el('h2', { id: 'kw-cand-title' }, 'Candidates'), el('div', { id: 'kw-candidate-body' })),
+      el('section', { class: 'kw-notes', 'aria-labelledby': 'kw-notes-title' }, el('h2', { id: 'kw-notes-title' }, 'Notes'), el('ul', { id: 'kw-note-list', class: 'kw-list' })),
+      el('footer', { class: 'kw-caution', id: 'kw-caution' }, p.caution),
+    );
+    for (const input of Array.from(this.root.querySelectorAll<HTMLInputElement>('input[name="kw-rule"]'))) {
+      input.addEventListener('change', () => this.setRuleKind(input.value as RuleKind));
+    }
+    this.byId<HTMLInputElement>('kw-tolerance').addEventListener('change', (e) => {
+      const v = Number((e.target as HTMLInputElement).value);
+      if (!(v >= 0 && v <= 100)) {
+        this.status('The tolerance must be a percentage from 0 to 100.');
+        return;
+      }
+      this.tolerance = v;
+      this.setRule({ kind: 'tol', percent: v });
+    });
+    dfSelect.addEventListener('change', () => this.setRule({ kind: 'manual', df: Number(dfSelect.value) }));
+    this.byId('kw-save').addEventListener('click', () => this.save());
+    this.byId('kw-rerun').addEventListener('click', () => this.host.post({ type: 'rerun' }));
+  }
+
+  private setRuleKind(kind: RuleKind): void {
+    switch (kind) {
+      case 'lowest':
+      case '1se':
+        this.setRule({ kind });
+        return;
+      case 'tol':
+        this.setRule({ kind: 'tol', percent: this.tolerance });
+        return;
+      case 'manual':
+        this.setRule({ kind: 'manual', df: this.currentSelection()?.df ?? Number(this.byId<HTMLSelectElement>('kw-df').value) });
+        return;
+      default:
+        unreachable(kind);
+    }
+  }
+
+  private setRule(rule: RuleSpec): void {
+    this.rule = rule;
+    this.update();
+  }
+
+  /** Re-renders everything that depends on the chosen df. */
+  private update(): void {
+    const p = this.payload;
+    if (!p) return;
+    const sel = this.currentSelection();
+    for (const input of Array.from(this.root.querySelectorAll<HTMLInputElement>('input[name="kw-rule"]'))) input.checked = input.value === this.rule.kind;
+    this.byId<HTMLInputElement>('kw-tolerance').disabled = this.rule.kind !== 'tol';
+    if (!sel) {
+      this.byId('kw-reason').textContent = 'No candidate df could be evaluated with this rule.';
+      return;
+    }
+    this.byId<HTMLSelectElement>('kw-df').value = String(sel.df);
+    this.host.saveState({ runId: p.runId, rule: this.rule });
+    this.host.post({ type: 'choice', runId: p.runId, rule: this.rule, df: sel.df });
+    const detail = this.details.get(sel.df);
+    if (!detail && !this.requested.has(sel.df)) {
+      this.requested.add(sel.df);
+      this.host.post({ type: 'needDetail', runId: p.runId, df: sel.df });
+    }
+    this.root.dataset.chosenDf = String(sel.df);
+    this.byId('kw-chosen-df').textContent = `df ${sel.df}`;
+    this.byId('kw-fit-stats').textContent = detail
+      ? ` residual SD ${sig(detail.sigma, 4)}, R² ${sig(detail.r2, 4)}, AIC ${sig(detail.aic, 5)}${detail.lambda !== undefined ? `, lambda ${sig(detail.lambda, 3)}` : ''}`
+      : '';
+    this.byId('kw-reason').textContent = sel.reason;
+    replaceChildren(
+      this.byId('kw-alternatives'),
+      ...sel.alternatives.map((a) => el('li', {}, `${capitalise(ruleWords(a.rule))}: df ${a.df}${a.df === sel.df ? ' (the same)' : ''}`)),
+    );
+    const warnings = [...p.warnings, ...(detail?.warnings ?? [])];
+    if (p.holdout) warnings.push(`Held-out check on ${p.holdout.rows} rows: RMSE ${sig(p.holdout.rmse)} against ${sig(p.holdout.resampledRmse)} estimated by resampling.`);
+    replaceChildren(
+      this.byId('kw-warning-list'),
+      ...(warnings.length ? warnings.map((w) => el('li', { class: 'kw-warning' }, w)) : [el('li', { class: 'kw-muted' }, 'No warnings for this df.')]),
+    );
+    replaceChildren(
+      this.byId('kw-check-list'),
+      ...(detail?.checks ?? []).map((c) => el('li', { class: c.flagged ? 'kw-check kw-flagged' : 'kw-check' }, el('strong', {}, `${c.name}: `), c.text)),
+    );
+    replaceChildren(this.byId('kw-figures'), ...renderFigures(p, sel, detail));
+    this.renderInfluence(detail);
+    this.renderCandidates(p, sel);
+    replaceChildren(this.byId('kw-note-list'), ...[...p.notes, ...(detail?.notes ?? [])].map((n) => el('li', {}, n)));
+  }
+
+  private renderInfluence(detail: FitDetail | undefined): void {
+    const body = this.byId('kw-influence-body');
+    if (!detail) return replaceChildren(body, el('p', { class: 'kw-muted' }, 'Computing…'));
+    if (detail.influential.length === 0) return replaceChildren(body, el('p', { class: 'kw-muted' }, 'No row exceeds the leverage or Cook\u2019s distance threshold.'));
+    const table = el(
+      'table',
+      { class: 'kw-table' },
+      el('caption', {}, `${detail.influentialTotal} row${detail.influentialTotal === 1 ? '' : 's'} over a threshold${detail.influentialTotal > detail.influential.length ? `; the ${detail.influential.length} largest by Cook's distance` : ''}`),
+      el('thead', {}, el('tr', {}, ...['CSV line', this.payload?.source.xLabel ?? 'x', this.payload?.source.yLabel ?? 'y', "Cook's distance", 'leverage', 'why'].map((h) => el('th', { scope: 'col' }, h)))),
+    );
+    const tbody = el('tbody');
+    for (const r of detail.influential) {
+      tbody.append(
+        el(
+          'tr',
+          {},
+          el('td', {}, r.line > 0 ? el('button', { type: 'button', class: 'kw-link', 'data-line': r.line, title: `Show line ${r.line} in the CSV` }, `line ${r.line}`) : '–'),
+          el('td', {}, sig(r.x, 6)),
+          el('td', {}, sig(r.y, 6)),
+          el('td', {}, sig(r.cooksDistance, 3)),
+          el('td', {}, sig(r.leverage, 3)),
+          el('td', {}, r.exceeds.join('; ')),
+        ),
+      );
+    }
+    table.append(tbody);
+    replaceChildren(body, table);
+  }
+
+  private renderCandidates(p: PanelPayload, sel: Selection): void {
+    const name = metricLabel(p.metric);
+    const table = el(
+      'table',
+      { class: 'kw-table' },
+      el('caption', {}, `Every candidate df with its resampled ${name} (mean ± standard error) and information criteria`),
+      el('thead', {}, el('tr', {}, ...['df', `mean ${name}`, 'SE', 'AIC', 'BIC', 'status'].map((h) => el('th', { scope: 'col' }, h)))),
+    );
+    const tbody = el('tbody');
+    for (const c of p.candidates) {
+      const e = c.errors[p.metric];
+      const chosen = c.df === sel.df;
+      tbody.append(
+        el(
+          'tr',
+          { class: chosen ? 'kw-chosen-row' : undefined, 'aria-current': chosen ? 'true' : undefined },
+          el('td', {}, String(c.df)),
+          el('td', {}, e ? sig(e.mean, 4) : '–'),
+          el('td', {}, e && Number.isFinite(e.se) ? sig(e.se, 2) : '–'),
+          el('td', {}, c.aic !== undefined ? sig(c.aic, 5) : '–'),
+          el('td', {}, c.bic !== undefined ? sig(c.bic, 5) : '–'),
+          el('td', {}, c.skipped !== undefined ? `skipped: ${c.skipped}` : chosen ? 'chosen' : ''),
+        ),
+      );
+    }
+    table.append(tbody);
+    replaceChildren(this.byId('kw-candidate-body'), table);
+  }
+
+  private save(): void {
+    if (!this.payload || this.pendingSave !== undefined) return;
+    this.pendingSave = this.nextRequest++;
+    this.setSaveBusy(true);
+    this.status('Saving…');
+    this.host.post({ type: 'save', requestId: this.pendingSave, runId: this.payload.runId, rule: this.rule });
+  }
+
+  private setSaveBusy(busy: boolean): void {
+    const b = this.root.querySelector<HTMLButtonElement>('#kw-save');
+    if (b) b.disabled = busy;
+  }
+
+  private onActivate(e: Event): void {
+    const target = (e.target as Element | null)?.closest?.('[data-line]');
+    if (!target) return;
+    const line = Number(target.getAttribute('data-line'));
+    if (Number.isInteger(line) && line > 0) this.host.post({ type: 'revealLine', line });
+  }
+
+  private onHover(e: Event): void {
+    const target = e.target as Element | null;
+    const mark = target?.closest?.('svg circle, svg rect.kw-bin');
+    const figure = target?.closest?.('figure');
+    if (!mark || !figure) return;
+    const title = mark.querySelector('title')?.textContent ?? '';
+    const readout = figure.querySelector('.kw-readout');
+    if (readout) readout.textContent = title;
+  }
+
+  private status(text: string): void {
+    const s = this.root.querySelector('#kw-status');
+    if (s) s.textContent = text;
+    else this.root.dataset.status = text;
+  }
+
+  private byId<T extends HTMLElement = HTMLElement>(id: string): T {
+    const e = this.root.querySelector<T>(`#${id}`);
+    if (!e) throw new Error(`panel element #${id} is missing`);
+    return e;
+  }
+}
+
+function capitalise(s: string): string {
+  return s.charAt(0).toUpperCase() + s.slice(1);
+}
