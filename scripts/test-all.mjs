@@ -47,7 +47,7 @@ const npx = 'npx';
 run('typecheck', npx, ['tsc', '-p', 'tsconfig.json', '--noEmit'], step);
 if (existsSync('webview/tsconfig.json')) run('typecheck-webview', npx, ['tsc', '-p', 'webview/tsconfig.json', '--noEmit'], step);
 run('build', process.execPath, ['scripts/build.mjs'], step);
-run('core', npx, ['mocha'], mochaCounts);
+run('core', npx, ['mocha', 'test/unit/**/*.test.ts', 'test/reference/**/*.test.ts'], mochaCounts);
 for (const [name, file] of [
   ['webview', 'test/webview/run.mjs'],
   ['host', 'test/host/run.mjs'],

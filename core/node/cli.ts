@@ -4,6 +4,7 @@
  * Errors go to stderr with exit code 2 and say what and where.
  */
 import { parseArgs } from 'node:util';
+import { existsSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { analyse } from '../analysis';
 import type { Analysis, AnalysisOptions } from '../analysisTypes';
@@ -156,17 +157,32 @@ function fitJson(fit: FitResult): Record<string, unknown> {
   };
 }
 
+/**
+ * Errors raised while fitting know the row but not the file, and name the columns by role
+ * (x, y, weights): give them the file and the CSV's own column names.
+ */
+function placed(e: unknown, file: string, labels: { readonly x: string; readonly y: string; readonly weights?: string }): unknown {
+  if (!(e instanceof InputError) || e.place.file !== undefined) return e;
+  const role = e.place.column;
+  const column = role === 'x' ? labels.x : role === 'y' ? labels.y : role === 'weights' ? labels.weights : role;
+  return new InputError(e.message, { file, line: e.place.line, column });
+}
+
 async function runFit(argv: string[]): Promise<number> {
   const args = parseFitArgs(argv);
   const table = await readCsvFile(args.file);
   const sel = selectColumns(table, { x: args.x, y: args.y, weights: args.weights }, args.file);
   let fit: FitResult;
   let analysis: Analysis | undefined;
-  if (args.tune) {
-    analysis = await analyse(sel.data, args.options, workerRunner());
-    fit = analysis.chosen;
-  } else {
-    fit = fitCurve(sel.data, { family: args.options.family, df: (args.options.candidates as number[])[0] as number });
+  try {
+    if (args.tune) {
+      analysis = await analyse(sel.data, args.options, workerRunner());
+      fit = analysis.chosen;
+    } else {
+      fit = fitCurve(sel.data, { family: args.options.family, df: (args.options.candidates as number[])[0] as number });
+    }
+  } catch (e) {
+    throw placed(e, args.file, sel.labels);
   }
   const diagnostics = analysis ? analysis.diagnostics : diagnose(sel.data, fit);
   const sorted = prepareData(sel.data).sortedX;
@@ -257,7 +273,8 @@ async function runFit(argv: string[]): Promise<number> {
 /** Fits the bundled humidity-sensor example (invented data) and writes its deliverables. */
 async function runDemo(argv: string[]): Promise<number> {
   const { values } = parseArgs({ args: argv, options: { out: { type: 'string' } } });
-  const example = join(__dirname, '..', 'examples', 'humidity-sensor.csv');
+  const example = [join(__dirname, '..', 'examples'), join(__dirname, '..', '..', 'examples'), resolve('examples')].map((d) => join(d, 'humidity-sensor.csv')).find((f) => existsSync(f));
+  if (!example) throw new InputError('the bundled example examples/humidity-sensor.csv was not found');
   const out = resolve(values.out ?? 'knotwise-demo');
   process.stdout.write(`Demo: invented humidity-sensor calibration data (${example})\n`);
   return runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resample', 'cv:10x5', '--rule', '1se', '--grid', '10:92.5:step=2.5', '--out', out]);

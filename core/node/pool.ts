@@ -16,7 +16,9 @@ const CANCEL_POLL_MS = 50;
 function workerScript(): { file: string; execArgv: string[] } {
   const bundled = join(__dirname, 'resampleWorker.js');
   if (existsSync(bundled)) return { file: bundled, execArgv: [] };
-  return { file: join(__dirname, 'resampleWorker.ts'), execArgv: ['--import', 'tsx'] };
+  // tsx's CommonJS hook: with `--import tsx` a worker cannot load its .ts entry on Node 20
+  // (ERR_UNKNOWN_FILE_EXTENSION, tsx issue #354); the project is CommonJS, so --require works.
+  return { file: join(__dirname, 'resampleWorker.ts'), execArgv: ['--require', 'tsx/cjs'] };
 }
 
 /**

@@ -115,11 +115,10 @@ function adaptiveKronrod(lambda: Float64Array, lower: number, upper: number, tol
   const stackA = new Float64Array(MAX_DEPTH + 2);
   const stackB = new Float64Array(MAX_DEPTH + 2);
   const stackDepth = new Int32Array(MAX_DEPTH + 2);
-  let top = 0;
   stackA[0] = lower;
   stackB[0] = upper;
   stackDepth[0] = 0;
-  top = 1;
+  let top = 1;
   let total = 0;
   let examined = 0;
   while (top > 0) {

@@ -12,7 +12,7 @@ import type { Page } from 'playwright-core';
 import type { HostMessage, PanelMessage } from '../../core/protocol';
 import { detailFor } from '../../core/view/payload';
 import { panelHtml } from '../../extension/html';
-import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs';
+import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 import type { Fixture } from './fixture';
 
 const distDir = join(__dirname, '..', '..', 'dist', 'webview');
@@ -78,7 +78,7 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
     void d.dismiss();
   });
   const post = async (message: HostMessage): Promise<void> => {
-    await page.evaluate((m) => window.postMessage(m, '*'), message);
+    await page.evaluate('(m) => window.postMessage(m, "*")', message);
   };
   await page.exposeFunction('__knotwiseToHost', (m: PanelMessage) => {
     sent.push(m);
@@ -87,30 +87,14 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
       if (detail) void post({ type: 'detail', runId: m.runId, detail });
     }
   });
-  await page.addInitScript((themeName: string) => {
-    const w = window as unknown as Record<string, unknown>;
-    w.__knotwiseCsp = [] as string[];
-    document.addEventListener('securitypolicyviolation', (e) => (w.__knotwiseCsp as string[]).push(`${e.violatedDirective} ${e.blockedURI}`));
-    let state: unknown;
-    w.acquireVsCodeApi = () => ({
-      postMessage: (m: unknown) => (w.__knotwiseToHost as (m: unknown) => void)(m),
-      getState: () => state,
-      setState: (s: unknown) => {
-        state = s;
-      },
-    });
-    document.addEventListener('DOMContentLoaded', () => {
-      document.documentElement.dataset.theme = themeName;
-      document.body.classList.add(`vscode-${themeName}`);
-    });
-  }, theme);
-  await page.goto(`${server.origin}/`);
+  await page.addInitScript({ path: join(__dirname, 'stub.js') });
+  await page.goto(`${server.origin}/?theme=${theme}`);
   await page.addStyleTag({ url: `${server.origin}/theme.css` });
   const pp: PanelPage = {
     page,
     sent,
     dialogs,
-    cspViolations: () => page.evaluate(() => (window as unknown as { __knotwiseCsp: string[] }).__knotwiseCsp),
+    cspViolations: () => page.evaluate('window.__knotwiseCsp') as Promise<string[]>,
     send: post,
     async waitForSent(type, from = 0) {
       const deadline = Date.now() + 10000;

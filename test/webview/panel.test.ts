@@ -12,7 +12,7 @@ import type { HostMessage, PanelPayload } from '../../core/protocol';
 import { selectDf } from '../../core/tune/rules';
 import type { RuleSpec } from '../../core/tune/types';
 import { buildPanelPayload } from '../../core/view/payload';
-import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs';
+import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 import { analysedFixture, mcycleFixture, type Fixture } from './fixture';
 import { openPanel, startPanelServer, type PanelPage, type PanelServer } from './harness';
 
@@ -137,13 +137,13 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     const csp = await page.getAttribute('meta[http-equiv="Content-Security-Policy"]', 'content');
     assert.match(csp ?? '', /default-src 'none'/);
     assert.match(csp ?? '', /script-src 'nonce-[A-Za-z0-9+/=]{16,}'/);
-    await page.evaluate(() => {
+    await page.evaluate(`(() => {
       const s = document.createElement('script');
       s.textContent = 'window.__injected = true';
       document.body.append(s);
-    });
+    })()`);
     await page.waitForTimeout(100);
-    assert.equal(await page.evaluate(() => (window as unknown as { __injected?: boolean }).__injected), undefined);
+    assert.equal(await page.evaluate('window.__injected'), undefined);
     assert.ok((await pp.cspViolations()).some((v) => v.startsWith('script-src')), 'a CSP violation was reported');
     await page.close();
   });
@@ -179,10 +179,10 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     const reached = new Set<string>();
     for (let i = 0; i < 40; i++) {
       await page.keyboard.press('Tab');
-      const id = await page.evaluate(() => {
+      const id = (await page.evaluate(`(() => {
         const a = document.activeElement;
         return a ? a.id || a.getAttribute('name') || a.tagName : '';
-      });
+      })()`)) as string;
       reached.add(id);
     }
     for (const id of ['kw-rule', 'kw-df', 'kw-save', 'kw-rerun']) assert.ok(reached.has(id), `${id} reached (got ${[...reached].join(', ')})`);
@@ -244,7 +244,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     it(`screenshot in the ${theme} theme (test-artifacts/webview-${theme}.png)`, async function () {
       const pp = await shown(mcycle, theme);
       await pp.page.screenshot({ path: join(artifacts, `webview-${theme}.png`), fullPage: true });
-      const bg = await pp.page.evaluate(() => getComputedStyle(document.body).backgroundColor);
+      const bg = await pp.page.evaluate('getComputedStyle(document.body).backgroundColor');
       // Light theme: white editor background; dark: a dark one (theme variables applied).
       assert.equal(bg, theme === 'light' ? 'rgb(255, 255, 255)' : 'rgb(31, 31, 31)');
       await pp.page.close();

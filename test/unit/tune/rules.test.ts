@@ -4,7 +4,7 @@
  *
  * The rules are those of issue #3 and DESIGN.md capability 5: lowest mean error; the
  * one-standard-error rule (Breiman, Friedman, Olshen & Stone 1984, Classification and
- * Regression Trees, section 3.4.3; Hastie, Tibshirani & Friedman 2009, The Elements of
+ * Regression Trees; Hastie, Tibshirani & Friedman 2009, The Elements of
  * Statistical Learning, 2nd ed., section 7.10); the tolerance rule (smallest df whose mean
  * error is within p % of the lowest); a df chosen by hand. Ties go to the smaller df.
  *

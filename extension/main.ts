@@ -1,0 +1,53 @@
+/**
+ * Knotwise's VS Code entry point: registers the commands; everything is disposed through
+ * one store when the extension deactivates.
+ */
+import * as vscode from 'vscode';
+import { Controller, type SaveCommandOptions, type TuneCommandOptions, type RunSummary } from './controller';
+import { isTableFile } from './csvSource';
+import { DisposableStore } from './disposables';
+
+/** Command identifiers (also in package.json). */
+export const COMMANDS = {
+  tune: 'knotwise.tuneCurve',
+  save: 'knotwise.saveCurveTable',
+  stop: 'knotwise.stopTuning',
+  forget: 'knotwise.forgetColumns',
+} as const;
+
+const store = new DisposableStore();
+
+function noTarget(): RunSummary {
+  void vscode.window.showWarningMessage('Knotwise: open or select a .csv or .tsv file first.');
+  return { status: 'failed', file: '', message: 'no CSV file' };
+}
+
+export function activate(context: vscode.ExtensionContext): void {
+  const controller = store.add(new Controller(context));
+  store.add(
+    vscode.commands.registerCommand(COMMANDS.tune, async (arg?: unknown, options?: TuneCommandOptions) => {
+      const uri = controller.targetUri(arg);
+      if (!uri || !isTableFile(uri)) return noTarget();
+      return controller.tune(uri, options ?? {}, true);
+    }),
+  );
+  store.add(
+    vscode.commands.registerCommand(COMMANDS.save, async (arg?: unknown, options?: SaveCommandOptions) => {
+      const uri = controller.targetUri(arg);
+      if (!uri || !isTableFile(uri)) return noTarget();
+      return controller.saveCommand(uri, options ?? {});
+    }),
+  );
+  store.add(vscode.commands.registerCommand(COMMANDS.stop, () => controller.stopAll()));
+  store.add(
+    vscode.commands.registerCommand(COMMANDS.forget, async (arg?: unknown) => {
+      const uri = controller.targetUri(arg);
+      if (uri) await controller.forgetColumns(uri);
+    }),
+  );
+  context.subscriptions.push(store);
+}
+
+export function deactivate(): void {
+  store.dispose();
+}

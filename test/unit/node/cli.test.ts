@@ -1,0 +1,371 @@
+/**
+ * Tests of the `knotwise fit` command line (core/node/cli.ts): the JSON keys documented as a
+ * public interface (issue #2 item 4, issue #3 item 6), and bad input (issue #2 item 7): each
+ * case exits with code 2 and a message that says what is wrong and where.
+ *
+ * Most tests call `main` in this process and capture stdout and stderr; two run the script
+ * in a child process to check the real exit code. CSV files are written to a temporary
+ * folder. Data: datasets::cars (Ezekiel 1930) in R's row order, with R 4.2 reference values
+ * (`lm` with `splines::ns`, brute-force leave-one-out, `predict` bands) from
+ * test/reference/fixtures/fits.json (test/reference/r/fits.R), compared at 1e-8 relative
+ * with an absolute floor of 1e-10 times the scale of the quantity.
+ */
+import { strict as assert } from 'node:assert';
+import { execFile } from 'node:child_process';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { main } from '../../../core/node/cli';
+
+const REL = 1e-8;
+const ABS = 1e-10;
+const REPO = join(__dirname, '..', '..', '..');
+const CLI = join(REPO, 'core', 'node', 'cli.ts');
+
+interface RCase {
+  readonly dataset: string;
+  readonly family: string;
+  readonly df: number;
+  readonly fitted: number[];
+  readonly residuals: number[];
+  readonly hat: number[];
+  readonly cooks: number[];
+  readonly sigma: number;
+  readonly rSquared: number;
+  readonly aic: number;
+  readonly bic: number;
+  readonly looRmse: number;
+  readonly gcv: number;
+  readonly grid: number[];
+  readonly predFit: number[];
+  readonly predSe: number[];
+  readonly ciLower: number[];
+  readonly ciUpper: number[];
+  readonly piLower: number[];
+  readonly piUpper: number[];
+}
+
+const fixture = JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixtures', 'fits.json'), 'utf8')) as {
+  datasets: Record<string, { x: number[]; y: number[] }>;
+  cases: RCase[];
+};
+const CARS = fixture.datasets.cars as { x: number[]; y: number[] };
+
+function rCase(df: number): RCase {
+  const c = fixture.cases.find((k) => k.dataset === 'cars' && k.family === 'natural' && k.df === df);
+  if (!c) throw new Error(`no R case for cars natural df ${df}`);
+  return c;
+}
+
+function checkClose(what: string, got: unknown, want: number, scale: number): void {
+  assert.equal(typeof got, 'number', `${what} is a number`);
+  const g = got as number;
+  assert.ok(Math.abs(g - want) <= REL * Math.abs(want) + ABS * scale, `${what}: ${g}, R ${want} (tolerance ${REL} relative)`);
+}
+
+function checkArray(what: string, got: unknown, want: readonly number[], scale: number): void {
+  assert.ok(Array.isArray(got), `${what} is an array`);
+  assert.equal(got.length, want.length, `${what} length`);
+  want.forEach((w, i) => checkClose(`${what}[${i}]`, got[i], w, scale));
+}
+
+interface Run {
+  readonly code: number;
+  readonly stdout: string;
+  readonly stderr: string;
+}
+
+/** Runs `main` with stdout and stderr captured. */
+async function run(...argv: string[]): Promise<Run> {
+  let stdout = '';
+  let stderr = '';
+  const out = process.stdout.write;
+  const err = process.stderr.write;
+  process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
+  process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
+  try {
+    const code = await main(argv);
+    return { code, stdout, stderr };
+  } finally {
+    process.stdout.write = out;
+    process.stderr.write = err;
+  }
+}
+
+/** Runs the CLI script in a child process (tsx loads the TypeScript). */
+function runChild(...argv: string[]): Promise<Run> {
+  return new Promise((resolve) => {
+    execFile(process.execPath, ['--import', 'tsx', CLI, ...argv], { cwd: REPO, timeout: 60_000 }, (error, stdout, stderr) => {
+      const code = error ? (typeof error.code === 'number' ? error.code : -1) : 0;
+      resolve({ code, stdout, stderr });
+    });
+  });
+}
+
+/** Asserts exit code 2, nothing on stdout, and a one-line message on stderr matching every pattern. */
+function assertRefused(r: Run, ...patterns: RegExp[]): void {
+  assert.equal(r.code, 2, `exit code (stderr: ${r.stderr})`);
+  assert.equal(r.stdout, '');
+  assert.match(r.stderr, /^knotwise: /);
+  assert.doesNotMatch(r.stderr, /internal error|\n\s+at /, 'no stack trace');
+  for (const p of patterns) assert.match(r.stderr, p);
+}
+
+describe('knotwise fit (command line)', () => {
+  let dir = '';
+  /** Writes a file into the temporary folder and returns its path. */
+  const file = (name: string, content: string | Buffer): string => {
+    const p = join(dir, name);
+    writeFileSync(p, content);
+    return p;
+  };
+  const carsRows = (): string[] => CARS.x.map((x, i) => `${x},${CARS.y[i] as number}`);
+  let cars = '';
+
+  before(() => {
+    dir = mkdtempSync(join(tmpdir(), 'knotwise-cli-'));
+    cars = file('cars.csv', ['speed,dist', ...carsRows()].join('\n') + '\n');
+  });
+  after(() => {
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  describe('JSON output', () => {
+    it('fit --json prints every documented key; fit.* holds the rows used in input order and matches R (cars, df 4, rows with NaN and Inf rejected by line)', async () => {
+      // Rows 1..10 of cars, a NaN speed (line 12), rows 11..30, an Inf distance (line 33), the rest.
+      const rows = carsRows();
+      const text = ['speed,dist', ...rows.slice(0, 10), 'NaN,10', ...rows.slice(10, 30), '12,Inf', ...rows.slice(30)].join('\n') + '\n';
+      const path = file('cars-with-gaps.csv', text);
+      const r = rCase(4);
+      const r0 = await run('fit', path, '--x', 'speed', '--y', 'dist', '--model', 'natural', '--df', '4', '--grid', r.grid.join(','), '--extrapolate', '--json');
+      assert.equal(r0.code, 0, r0.stderr);
+      assert.equal(r0.stderr, '');
+      const out = JSON.parse(r0.stdout) as Record<string, any>;
+      const sy = Math.max(...CARS.y.map(Math.abs));
+      // Source: R 4.2, lm(dist ~ splines::ns(speed, df = 3)) on datasets::cars (fixture fits.json).
+      assert.equal(out.fit.df, 4);
+      checkArray('fit.fitted', out.fit.fitted, r.fitted, sy);
+      checkArray('fit.residuals', out.fit.residuals, r.residuals, sy);
+      checkArray('fit.leverage', out.fit.leverage, r.hat, 1);
+      checkArray('fit.cooksDistance', out.fit.cooksDistance, r.cooks, 1);
+      checkClose('fit.sigma', out.fit.sigma, r.sigma, sy);
+      checkClose('fit.r2', out.fit.r2, r.rSquared, 1);
+      checkClose('fit.aic', out.fit.aic, r.aic, 1);
+      checkClose('fit.bic', out.fit.bic, r.bic, 1);
+      checkClose('fit.looRmse', out.fit.looRmse, r.looRmse, sy);
+      checkClose('fit.gcv', out.fit.gcv, r.gcv, sy * sy);
+      assert.equal(out.data.rowsUsed, 50);
+      assert.equal(out.data.rejected.length, 2);
+      assert.deepEqual(
+        out.data.rejected.map((j: { line: number }) => j.line),
+        [12, 33],
+      );
+      assert.match(out.data.rejected[0].reason, /missing/);
+      assert.match(out.data.rejected[1].reason, /not finite/);
+      // Curve table at R's grid (two points beyond the data, allowed by --extrapolate).
+      const cols: string[] = out.table.columns;
+      for (const c of ['x', 'fit', 'se', 'ciLower', 'ciUpper', 'piLower', 'piUpper']) assert.ok(cols.includes(c), `table column ${c}`);
+      assert.equal(out.table.rows.length, r.grid.length);
+      const column = (name: string): number[] => out.table.rows.map((row: number[]) => row[cols.indexOf(name)]);
+      checkArray('table x', column('x'), r.grid, 25);
+      // Source: R 4.2 predict(..., interval = "confidence" / "prediction", level = 0.95).
+      checkArray('table fit', column('fit'), r.predFit, sy);
+      checkArray('table se', column('se'), r.predSe, sy);
+      checkArray('table ciLower', column('ciLower'), r.ciLower, sy);
+      checkArray('table ciUpper', column('ciUpper'), r.ciUpper, sy);
+      checkArray('table piLower', column('piLower'), r.piLower, sy);
+      checkArray('table piUpper', column('piUpper'), r.piUpper, sy);
+      assert.equal(out.table.extrapolatedPoints, 2);
+      assert.ok(out.diagnostics && Array.isArray(out.diagnostics.warnings), 'diagnostics');
+      // One df and no tuning option: a plain fit, no tuning keys.
+      assert.equal(out.candidates, undefined);
+      assert.equal(out.selected, undefined);
+    });
+
+    it('fit --json with tuning options adds candidates (errors as {mean, se}, or skipped), selected and diagnostics', async () => {
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2,3,4,5,6,25', '--resample', 'boot:20', '--rule', '1se', '--seed', '3', '--json');
+      assert.equal(r0.code, 0, r0.stderr);
+      const out = JSON.parse(r0.stdout) as Record<string, any>;
+      assert.deepEqual(
+        out.candidates.map((c: { df: number }) => c.df),
+        [2, 3, 4, 5, 6, 25],
+      );
+      for (const c of out.candidates) {
+        if (c.df === 25) {
+          // datasets::cars has 19 distinct speeds.
+          assert.match(c.skipped, /needs at least 25 distinct x values; the data has 19/);
+          continue;
+        }
+        assert.equal(c.skipped, undefined);
+        for (const m of ['rmse', 'mae', 'maxAbs']) {
+          assert.equal(typeof c.errors[m].mean, 'number', `df ${c.df} ${m}.mean`);
+          assert.equal(typeof c.errors[m].se, 'number', `df ${c.df} ${m}.se`);
+          assert.ok(c.errors[m].mean > 0 && c.errors[m].se > 0);
+        }
+        assert.equal(c.errors.rmse.values.length, 20);
+      }
+      assert.ok([2, 3, 4, 5, 6].includes(out.selected.df));
+      assert.deepEqual(out.selected.rule, { kind: '1se' });
+      assert.match(out.selected.reason, /One-SE threshold .* chosen\./);
+      assert.equal(out.fit.df, out.selected.df);
+      assert.equal(out.tuning.seed, 3);
+      assert.equal(out.tuning.resample, 'boot:20');
+      assert.equal(typeof out.diagnostics, 'object');
+      assert.ok(Array.isArray(out.diagnostics.warnings) && typeof out.diagnostics.influential === 'object');
+      assert.ok(out.diagnostics.shapiroWilk && typeof out.diagnostics.shapiroWilk.pValue === 'number', 'Shapiro-Wilk result');
+      // Same seed, same output (byte-identical JSON).
+      const again = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2,3,4,5,6,25', '--resample', 'boot:20', '--rule', '1se', '--seed', '3', '--json');
+      assert.equal(again.stdout, r0.stdout);
+    });
+
+    it('fit --resample loo puts the exact leave-one-out RMSE into errors.rmse.mean (cars, against R brute-force refits)', async () => {
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resample', 'loo', '--rule', 'lowest', '--json');
+      assert.equal(r0.code, 0, r0.stderr);
+      const out = JSON.parse(r0.stdout) as Record<string, any>;
+      const sy = Math.max(...CARS.y.map(Math.abs));
+      for (const c of out.candidates) {
+        // Source: R 4.2, refits of lm(dist ~ ns(speed, df = k - 1)) without each row (fits.R).
+        checkClose(`df ${c.df} errors.rmse.mean`, c.errors.rmse.mean, rCase(c.df).looRmse, sy);
+      }
+      // R's LOO RMSE for df 2..6: 15.697, 15.647, 15.791, 15.791, 16.026: lowest at df 3.
+      assert.equal(out.selected.df, 3);
+      checkClose('fit.looRmse of the chosen fit', out.fit.looRmse, rCase(3).looRmse, sy);
+    });
+
+    it('fit --resample gcv puts the GCV score into errors.gcv.mean (cars, against R)', async () => {
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resample', 'gcv', '--rule', 'lowest', '--json');
+      assert.equal(r0.code, 0, r0.stderr);
+      const out = JSON.parse(r0.stdout) as Record<string, any>;
+      const sy = Math.max(...CARS.y.map(Math.abs));
+      for (const c of out.candidates) {
+        // Source: R 4.2, (rss / n) / (1 - df / n)^2 of lm with ns (fits.R).
+        checkClose(`df ${c.df} errors.gcv.mean`, c.errors.gcv.mean, rCase(c.df).gcv, sy * sy);
+      }
+      assert.equal(out.selected.metric, 'gcv');
+      // R's GCV for df 2..6: 246.387, 246.435, 252.061, 253.794, 262.315: lowest at df 2.
+      assert.equal(out.selected.df, 2);
+    });
+
+    it('fit without --json prints a short summary with the rows used and the choice', async () => {
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..4', '--resample', 'cv:5', '--seed', '1');
+      assert.equal(r0.code, 0, r0.stderr);
+      assert.match(r0.stdout, /cars\.csv: 50 rows used, 0 rejected/);
+      assert.match(r0.stdout, /Tuning \(cv:5, seed 1\)/);
+      assert.match(r0.stdout, /One-SE threshold/);
+    });
+  });
+
+  describe('bad input (issue #2 item 7): exit code 2 and a message saying what and where', () => {
+    it('an empty file', async () => {
+      const p = file('empty.csv', '');
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist'), /empty\.csv/, /the file is empty/);
+    });
+
+    it('a header without data rows', async () => {
+      const p = file('header-only.csv', 'speed,dist\n');
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist'), /header-only\.csv, line 1/, /header row but no data rows/);
+    });
+
+    it('a chosen column that is not numeric, naming the column and a line', async () => {
+      const p = file('names.csv', 'name,speed,dist\ncar a,4,2\ncar b,7,4\ncar c,8,16\n');
+      assertRefused(await run('fit', p, '--x', 'name', '--y', 'dist'), /names\.csv/, /column "name" is not numeric/, /line 2/, /"car a" is not a number/);
+    });
+
+    it('a column with all values missing', async () => {
+      const p = file('all-missing.csv', 'speed,dist\n4,NA\n7,\n8,-\n9,n/a\n');
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist'), /all-missing\.csv/, /no usable rows/, /line 2, column "dist": missing value/);
+    });
+
+    it('fewer distinct x than the df asked for', async () => {
+      // The first 6 rows of cars have 4 distinct speeds (4, 4, 7, 7, 8, 9).
+      const p = file('six-rows.csv', ['speed,dist', ...carsRows().slice(0, 6)].join('\n') + '\n');
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist', '--df', '5'), /six-rows\.csv/, /natural spline with df 5 needs at least 5 distinct x values; the data has 4/);
+    });
+
+    it('constant x, for one df and for the default tuning', async () => {
+      const p = file('constant-x.csv', 'speed,dist\n10,2\n10,4\n10,7\n10,9\n');
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist', '--df', '2'), /constant-x\.csv/, /needs at least 2 distinct x values; the data has 1/);
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist'), /no candidate df could be evaluated/, /df 2: .*the data has 1/);
+    });
+
+    it('NaN and Inf strings: the rows are rejected with their line numbers and the fit still runs', async () => {
+      const rows = carsRows();
+      const text = ['speed,dist', 'NaN,3', ...rows.slice(0, 20), '15,inf', '-Infinity,20', ...rows.slice(20), '1e999,4'].join('\n') + '\n';
+      const p = file('nan-inf.csv', text);
+      const r0 = await run('fit', p, '--x', 'speed', '--y', 'dist', '--df', '3', '--json');
+      assert.equal(r0.code, 0, r0.stderr);
+      const out = JSON.parse(r0.stdout) as Record<string, any>;
+      assert.equal(out.data.rowsUsed, 50);
+      assert.deepEqual(
+        out.data.rejected.map((j: { line: number; column: string }) => [j.line, j.column]),
+        [[2, 'speed'], [23, 'dist'], [24, 'speed'], [55, 'speed']],
+      );
+      for (const j of out.data.rejected) assert.ok(typeof j.reason === 'string' && j.reason.length > 0);
+      // The fit on the 50 good rows is R's (datasets::cars, ns with df = 2), 1e-8 relative.
+      checkArray('fit.fitted', out.fit.fitted, rCase(3).fitted, Math.max(...CARS.y));
+    });
+
+    it('magnitudes of 1e308, naming the line and the CSV column', async () => {
+      const p = file('huge.csv', 'speed,dist\n4,2\n7,4\n1e308,16\n9,10\n10,18\n');
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist', '--df', '2'), /huge\.csv, line 4, column "speed"/, /too large/);
+      const q = file('huge-y.csv', 'speed,dist\n4,2\n7,-1e308\n8,16\n9,10\n10,18\n');
+      assertRefused(await run('fit', q, '--x', 'speed', '--y', 'dist', '--df', '2'), /huge-y\.csv, line 3, column "dist"/, /too large/);
+    });
+
+    it('a binary file renamed .csv', async () => {
+      // The PNG signature followed by the bytes 0..255 (as test/fixtures/csv/make-fixtures.R writes binary.bin).
+      const p = file('picture.csv', Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, ...Array.from({ length: 256 }, (_, i) => i)]));
+      assertRefused(await run('fit', p, '--x', 'speed', '--y', 'dist'), /picture\.csv/, /binary file, not CSV text/);
+    });
+
+    it('an unknown column, listing the columns there are', async () => {
+      assertRefused(await run('fit', cars, '--x', 'sped', '--y', 'dist'), /cars\.csv, column "sped"/, /no column named "sped"; the columns are "speed", "dist"/);
+    });
+
+    it('bad --resample syntax', async () => {
+      for (const bad of ['boot', 'cv:', 'boot:x', 'jackknife']) {
+        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resample', bad), new RegExp(`resampling "${bad}" is not understood`), /boot:<B>, cv:<K>/);
+      }
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resample', 'boot:1'), /bootstrap needs a whole number of resamples from 2/);
+    });
+
+    it('bad --rule syntax', async () => {
+      for (const bad of ['best', 'tol', 'tol:-2', '2se']) {
+        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', bad), new RegExp(`rule "${bad}" is not understood`), /lowest, 1se or tol:<percent>/);
+      }
+    });
+
+    it('bad --grid syntax', async () => {
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '0:10'), /grid "0:10"/, /not a number/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '10:5:3'), /stop must be greater than start/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '5:25:1'), /count must be a whole number/);
+      // A grid beyond the data (cars speeds 4..25) is refused unless --extrapolate is given.
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '0:30:7'), /2 grid point\(s\) lie outside the data range \[4, 25\]/);
+    });
+
+    it('bad --df, an unknown option, a missing file and missing --x/--y', async () => {
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', 'five'), /df "five"/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--colour'), /--colour/);
+      assertRefused(await run('fit', join(dir, 'no-such.csv'), '--x', 'speed', '--y', 'dist'), /no-such\.csv: file not found/);
+      assertRefused(await run('fit', cars, '--x', 'speed'), /both --x and --y/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--holdout', '0.9'), /--holdout/);
+    });
+  });
+
+  describe('as a process', () => {
+    it('knotwise fit exits with 0 and prints one JSON object', async function () {
+      this.timeout(60_000);
+      const r0 = await runChild('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--json');
+      assert.equal(r0.code, 0, r0.stderr);
+      const out = JSON.parse(r0.stdout) as Record<string, any>;
+      assert.equal(out.fit.df, 3);
+      assert.equal(out.data.rowsUsed, 50);
+    });
+
+    it('knotwise fit exits with 2 on bad input, with the message on stderr', async function () {
+      this.timeout(60_000);
+      const r0 = await runChild('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', 'best');
+      assertRefused(r0, /rule "best" is not understood/);
+    });
+  });
+});
