@@ -55,6 +55,18 @@ export const DF_ACCEPTANCE = 1e-6;
 export const MAX_LAMBDA_ITERATIONS = 100;
 /** Cap on doubling steps when bracketing the root on log lambda. */
 export const MAX_BRACKET_STEPS = 40;
+/**
+ * Largest accepted ratio of the filter's predicted variance of f to the observation
+ * variance 1 / W_j. The covariance update subtracts terms of that relative size, so beyond
+ * it (lambda so small that the fit all but interpolates widely spaced knots) fewer than
+ * 6 significant digits would survive and the fit is refused.
+ */
+export const MAX_VARIANCE_RATIO = 1e10;
+/** Range searched for log lambda (x scaled to [0, 1]); beyond it the filter's variances overflow. */
+const RHO_MIN = Math.log(1e-150);
+const RHO_MAX = Math.log(1e150);
+/** Value of the search function at an unreliable (too small) lambda: 'trace far too high'. */
+const UNRELIABLE_G = 1e3;
 
 /**
  * Fits the cubic smoothing spline whose hat matrix has trace `df` (intercept included).
@@ -89,9 +101,14 @@ export function fitSmoothingSpline(data: XYData, df: number): FitResult {
   const scaled = new ScaledKnots(pooled.u);
   const smoother = new SplineSmoother(scaled.t, pooled.w);
   const lambdaT = searchLambda(smoother, df);
-  return splineFit(pooled, smoother, lambdaT, lambdaT * scaled.cube, [
-    `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values; lambda = ${formatLambda(lambdaT * scaled.cube)} (in units of x) gives trace ${smoother.trace.toFixed(9)} for the asked df ${df}.`,
-  ]);
+  const lambda = lambdaT * scaled.cube;
+  return splineFit(
+    pooled,
+    smoother,
+    lambdaT,
+    lambda,
+    (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values; lambda = ${formatLambda(lambda)} (in units of x) gives hat-matrix trace ${trace.toFixed(9)} for the asked df ${df}.`,
+  );
 }
 
 /**
@@ -112,9 +129,13 @@ export function smoothingSplineAtLambda(data: XYData, lambda: number): FitResult
   const lambdaT = lambda / scaled.range / scaled.range / scaled.range;
   checkLambdaT(lambdaT, lambda);
   const smoother = new SplineSmoother(scaled.t, pooled.w);
-  return splineFit(pooled, smoother, lambdaT, lambda, [
-    `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values at the fixed lambda = ${formatLambda(lambda)} (in units of x); trace ${smoother.trace.toFixed(9)}.`,
-  ]);
+  return splineFit(
+    pooled,
+    smoother,
+    lambdaT,
+    lambda,
+    (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values at the fixed lambda = ${formatLambda(lambda)} (in units of x): hat-matrix trace ${trace.toFixed(9)}.`,
+  );
 }
 
 /**
@@ -259,8 +280,10 @@ class SplineSmoother {
   readonly m: number;
   private readonly h: Float64Array;
   private readonly rho: Float64Array;
-  /** Backward Schur complements of M (lambda-free). */
-  private readonly dm: Float64Array;
+  /** Reciprocals of the backward Schur complements of M (lambda-free): the variance of eta_{j-1} times lambda. */
+  private readonly invSchur: Float64Array;
+  /** Observation variances 1 / W_j. */
+  private readonly obsVar: Float64Array;
   private readonly p: Float64Array;
   private readonly a: Float64Array;
   private readonly aa: Float64Array;
@@ -272,6 +295,10 @@ class SplineSmoother {
   readonly leverage: Float64Array;
   /** Trace of the hat matrix from the last run. */
   trace = NaN;
+  /** m - trace, summed from 1 - S_jj computed without cancellation (last run). */
+  residualTrace = NaN;
+  /** False when the last run's lambda was too small to compute accurately (see MAX_VARIANCE_RATIO). */
+  reliable = true;
   /** Posterior mean of f at the knots (last full run). */
   readonly value: Float64Array;
   /** B-spline coefficients (m + 2) from the last full run. */
@@ -287,16 +314,20 @@ class SplineSmoother {
     this.m = m;
     this.h = new Float64Array(m - 1);
     for (let j = 0; j < m - 1; j++) this.h[j] = (t[j + 1] as number) - (t[j] as number);
-    this.dm = new Float64Array(m);
+    const dm = new Float64Array(m);
     this.rho = new Float64Array(m - 1);
     const h = this.h;
-    this.dm[m - 1] = (h[m - 2] as number) / 3;
+    dm[m - 1] = (h[m - 2] as number) / 3;
     for (let j = m - 2; j >= 0; j--) {
       const off = (h[j] as number) / 6;
       const diag = ((j > 0 ? (h[j - 1] as number) : 0) + (h[j] as number)) / 3;
-      this.dm[j] = diag - (off * off) / (this.dm[j + 1] as number);
-      this.rho[j] = -off / (this.dm[j + 1] as number);
+      dm[j] = diag - (off * off) / (dm[j + 1] as number);
+      this.rho[j] = -off / (dm[j + 1] as number);
     }
+    for (let j = 0; j < m; j++) dm[j] = 1 / (dm[j] as number);
+    this.invSchur = dm;
+    this.obsVar = new Float64Array(m);
+    for (let j = 0; j < m; j++) this.obsVar[j] = 1 / (wts[j] as number);
     this.p = new Float64Array(6 * m);
     this.a = new Float64Array(3 * m);
     this.aa = new Float64Array(6 * m);
@@ -312,14 +343,15 @@ class SplineSmoother {
    * its B-spline coefficients and the band of A^-1. O(m).
    */
   run(lambdaT: number, y: Float64Array | null): number {
-    const { m, h, rho, dm, p: P, a: AY, aa: AB, wts } = this;
+    const { m, h, rho, invSchur: dm, obsVar, p: P, a: AY, aa: AB, wts } = this;
     // ---- forward: augmented Kalman filter ----
     let p00 = 0;
     let p01 = 0;
     let p02 = 0;
     let p11 = 0;
     let p12 = 0;
-    let p22 = 1 / (lambdaT * (dm[0] as number));
+    const iLambda = 1 / lambdaT;
+    let p22 = iLambda * (dm[0] as number);
     let a0 = 0;
     let a1 = 0;
     let a2 = 0;
@@ -329,11 +361,16 @@ class SplineSmoother {
     let b11 = 1;
     let b20 = 0;
     let b21 = 0;
-    let s00 = 0;
-    let s01 = 0;
-    let s11 = 0;
-    let sy0 = 0;
-    let sy1 = 0;
+    // beta | y has information matrix S = sum U_j U_j' / F_j and score sum U_j v_j / F_j
+    // (U_j the predicted f of the beta columns); both are accumulated as a triangular
+    // factor [R | z] (R'R = S) by Givens rotations, which stays accurate when S is nearly
+    // singular (a tiny first spacing with almost no smoothing).
+    let rq00 = 0;
+    let rq01 = 0;
+    let rq11 = 0;
+    let z0 = 0;
+    let z1 = 0;
+    let worstRatio = 0;
     for (let j = 0; j < m; j++) {
       const o6 = 6 * j;
       P[o6] = p00;
@@ -351,15 +388,37 @@ class SplineSmoother {
       AB[o6 + 3] = b11;
       AB[o6 + 4] = b20;
       AB[o6 + 5] = b21;
-      const hObs = 1 / (wts[j] as number);
+      const hObs = obsVar[j] as number;
+      if (p00 > worstRatio * hObs) worstRatio = p00 / hObs;
       const iF = 1 / (p00 + hObs);
-      // beta columns have data 0, so their innovations are -(b00, b01).
-      s00 += b00 * b00 * iF;
-      s01 += b00 * b01 * iF;
-      s11 += b01 * b01 * iF;
       const v = y ? (y[j] as number) - a0 : 0;
-      sy0 += b00 * v * iF;
-      sy1 += b01 * v * iF;
+      {
+        const sf = Math.sqrt(iF);
+        const x0 = b00 * sf;
+        let x1 = b01 * sf;
+        let xv = v * sf;
+        if (x0 !== 0) {
+          const rr = Math.sqrt(rq00 * rq00 + x0 * x0);
+          const irr = 1 / rr;
+          const c = rq00 * irr;
+          const sn = x0 * irr;
+          rq00 = rr;
+          const t1 = c * rq01 + sn * x1;
+          x1 = c * x1 - sn * rq01;
+          rq01 = t1;
+          const tz = c * z0 + sn * xv;
+          xv = c * xv - sn * z0;
+          z0 = tz;
+        }
+        if (x1 !== 0) {
+          const rr = Math.sqrt(rq11 * rq11 + x1 * x1);
+          const irr = 1 / rr;
+          const c = rq11 * irr;
+          const sn = x1 * irr;
+          rq11 = rr;
+          z1 = c * z1 + sn * xv;
+        }
+      }
       if (j === m - 1) break;
       // measurement update (filtered = predicted + gain * innovation); the first row of the
       // filtered covariance is written as P_0. * hObs / F to avoid cancellation.
@@ -405,7 +464,7 @@ class SplineSmoother {
       const q20 = r * f02;
       const q21 = r * f12;
       const q22 = r * f22;
-      const tau = 1 / (lambdaT * (dm[j + 1] as number));
+      const tau = iLambda * (dm[j + 1] as number);
       const r0 = (hj * hj) / 6;
       const r1 = hj / 2;
       p00 = q00 + hj * q01 + c02 * q02 + tau * r0 * r0;
@@ -415,14 +474,15 @@ class SplineSmoother {
       p12 = q21 + c12 * q22 + tau * r1;
       p22 = r * q22 + tau;
     }
-    // beta | y ~ N(S^-1 sy, S^-1)
-    const det = s00 * s11 - s01 * s01;
-    if (!(det > 0)) throw new FitError('smoothing spline: the straight-line part of the fit is not determined (x values too close together)');
-    const i00 = s11 / det;
-    const i01 = -s01 / det;
-    const i11 = s00 / det;
-    const beta0 = i00 * sy0 + i01 * sy1;
-    const beta1 = i01 * sy0 + i11 * sy1;
+    this.reliable = worstRatio <= MAX_VARIANCE_RATIO;
+    // beta | y ~ N(R^-1 z, R^-1 R^-T); a' S^-1 b = (R^-T a) . (R^-T b)
+    if (!(rq00 > 0) || !(rq11 > 0) || !Number.isFinite(rq01 / rq11)) {
+      throw new FitError('smoothing spline: the straight-line part of the fit is not determined (the x values are too close together)');
+    }
+    const beta1 = z1 / rq11;
+    const beta0 = (z0 - rq01 * beta1) / rq00;
+    const iq00 = 1 / rq00;
+    const iq11 = 1 / rq11;
 
     // ---- backward: fixed-interval smoother (r, N recursions) ----
     const full = y !== null;
@@ -444,9 +504,10 @@ class SplineSmoother {
     // quantities of knot j + 1 carried to knot j (full runs)
     let nextGammaMean = 0;
     let nextGammaVar = 0;
-    let nextBg0 = 0; // smoothed beta columns, gamma row, at j + 1
-    let nextBg1 = 0;
+    let nextWg0 = 0; // R^-T times the smoothed beta columns' gamma row at j + 1
+    let nextWg1 = 0;
     let trace = 0;
+    let residualTrace = 0;
     const lev = this.leverage;
     for (let j = m - 1; j >= 0; j--) {
       const o6 = 6 * j;
@@ -457,7 +518,7 @@ class SplineSmoother {
       const p12j = P[o6 + 4] as number;
       const p22j = P[o6 + 5] as number;
       const wj = wts[j] as number;
-      const hObs = 1 / wj;
+      const hObs = obsVar[j] as number;
       const iF = 1 / (p00j + hObs);
       const v = y !== null ? (y[j] as number) - (AY[3 * j] as number) : 0;
       const u0 = AB[o6] as number;
@@ -562,12 +623,20 @@ class SplineSmoother {
       const pn1 = p00j * n01 + p01j * n11 + p02j * n12;
       const pn2 = p00j * n02 + p01j * n12 + p02j * n22;
       let hb = wj * (p00j - (pn0 * p00j + pn1 * p01j + pn2 * p02j));
-      if (hb > 0.5) hb = 1 - dSmooth * hObs;
+      let oneMinusHb = 1 - hb;
+      if (hb > 0.5) {
+        oneMinusHb = dSmooth * hObs;
+        hb = 1 - oneMinusHb;
+      }
       const as0 = u0 + p00j * e00 + p01j * e10 + p02j * e20;
       const as1 = u1 + p00j * e01 + p01j * e11 + p02j * e21;
-      const hj = hb + wj * (as0 * (i00 * as0 + i01 * as1) + as1 * (i01 * as0 + i11 * as1));
+      const ws0 = as0 * iq00;
+      const ws1 = (as1 - rq01 * ws0) * iq11;
+      const hBeta = wj * (ws0 * ws0 + ws1 * ws1);
+      const hj = hb + hBeta;
       lev[j] = hj;
       trace += hj;
+      residualTrace += oneMinusHb - hBeta;
       if (full) {
         // smoothed state mean and covariance, beta integrated out
         const ay = 3 * j;
@@ -585,29 +654,34 @@ class SplineSmoother {
         const pn20 = p02j * n00 + p12j * n01 + p22j * n02;
         const pn21 = p02j * n01 + p12j * n11 + p22j * n12;
         const pn22 = p02j * n02 + p12j * n12 + p22j * n22;
+        const wd0 = ad0 * iq00;
+        const wd1 = (ad1 - rq01 * wd0) * iq11;
+        const wg0 = ag0 * iq00;
+        const wg1 = (ag1 - rq01 * wg0) * iq11;
         const cov = this.scratch;
-        cov[0] = hb * hObs + quad(as0, as1, as0, as1, i00, i01, i11);
-        cov[1] = p01j - (pn0 * p01j + pn1 * p11j + pn2 * p12j) + quad(as0, as1, ad0, ad1, i00, i01, i11);
-        cov[2] = p02j - (pn0 * p02j + pn1 * p12j + pn2 * p22j) + quad(as0, as1, ag0, ag1, i00, i01, i11);
-        cov[5] = p11j - (pn10 * p01j + pn11 * p11j + pn12 * p12j) + quad(ad0, ad1, ad0, ad1, i00, i01, i11);
-        cov[6] = p12j - (pn10 * p02j + pn11 * p12j + pn12 * p22j) + quad(ad0, ad1, ag0, ag1, i00, i01, i11);
-        cov[10] = p22j - (pn20 * p02j + pn21 * p12j + pn22 * p22j) + quad(ag0, ag1, ag0, ag1, i00, i01, i11);
+        cov[0] = hb * hObs + ws0 * ws0 + ws1 * ws1;
+        cov[1] = p01j - (pn0 * p01j + pn1 * p11j + pn2 * p12j) + ws0 * wd0 + ws1 * wd1;
+        cov[2] = p02j - (pn0 * p02j + pn1 * p12j + pn2 * p22j) + ws0 * wg0 + ws1 * wg1;
+        cov[5] = p11j - (pn10 * p01j + pn11 * p11j + pn12 * p12j) + wd0 * wd0 + wd1 * wd1;
+        cov[6] = p12j - (pn10 * p02j + pn11 * p12j + pn12 * p22j) + wd0 * wg0 + wd1 * wg1;
+        cov[10] = p22j - (pn20 * p02j + pn21 * p12j + pn22 * p22j) + wg0 * wg0 + wg1 * wg1;
         this.value[j] = mean0;
         if (j < m - 1) {
           // xi = (f_j, f'_j, gamma_j, gamma_{j+1}); covariance in the 4 x 4 scratch (row-major, upper part)
-          cov[3] = x0 + quad(as0, as1, nextBg0, nextBg1, i00, i01, i11);
-          cov[7] = x1 + quad(ad0, ad1, nextBg0, nextBg1, i00, i01, i11);
-          cov[11] = x2 + quad(ag0, ag1, nextBg0, nextBg1, i00, i01, i11);
+          cov[3] = x0 + ws0 * nextWg0 + ws1 * nextWg1;
+          cov[7] = x1 + wd0 * nextWg0 + wd1 * nextWg1;
+          cov[11] = x2 + wg0 * nextWg0 + wg1 * nextWg1;
           cov[15] = nextGammaVar;
           this.spanToBSpline(j, mean0, mean1, mean2, nextGammaMean);
         }
         nextGammaMean = mean2;
         nextGammaVar = cov[10] as number;
-        nextBg0 = ag0;
-        nextBg1 = ag1;
+        nextWg0 = wg0;
+        nextWg1 = wg1;
       }
     }
     this.trace = trace;
+    this.residualTrace = residualTrace;
     return trace;
   }
 
@@ -615,7 +689,7 @@ class SplineSmoother {
   private readonly scratch = new Float64Array(16);
   /** Rows of the map from (f_j, f'_j, gamma_j, gamma_{j+1}) to the 4 B-spline coefficients active on span j. */
   private readonly gmap = new Float64Array(16);
-  private readonly gc = new Float64Array(16);
+  private readonly gc = new Float64Array(4);
 
   /**
    * B-spline coefficients and band of A^-1 from the posterior of the cubic on span j.
@@ -625,52 +699,47 @@ class SplineSmoother {
    * Span j writes coefficient j and band row j (the last span also rows m-1..m+1).
    */
   private spanToBSpline(j: number, f: number, f1: number, g0: number, g1: number): void {
-    const { t, m, gmap: G, gc, scratch: C } = this;
-    const hj = (t[j + 1] as number) - (t[j] as number);
+    const { t, m, gmap: G, gc, scratch: C, coefficients, covarianceBand: band } = this;
+    // complete the symmetric 4 x 4 from its upper triangle
+    C[4] = C[1] as number;
+    C[8] = C[2] as number;
+    C[12] = C[3] as number;
+    C[9] = C[6] as number;
+    C[13] = C[7] as number;
+    C[14] = C[11] as number;
     const base = t[j] as number;
+    const inv6h = 1 / (6 * ((t[j + 1] as number) - base));
     for (let a = 0; a < 4; a++) {
-      // coefficient i = j + a uses knots tau_{i+1..i+3} = t[clamp(j + a - 2 .. j + a)]
-      const d1 = knotAt(t, m, j + a - 2) - base;
-      const d2 = knotAt(t, m, j + a - 1) - base;
-      const d3 = knotAt(t, m, j + a) - base;
-      const sig1 = d1 + d2 + d3;
-      const sig2 = d1 * d2 + d1 * d3 + d2 * d3;
-      const sig3 = (d1 * d2 * d3) / (6 * hj);
+      // coefficient i = j + a: blossom at tau_{i+1..i+3} = t[j+a-2], t[j+a-1], t[j+a] (clamped)
+      const k1 = j + a - 2;
+      const k3 = j + a < m - 1 ? j + a : m - 1;
+      const d1 = (t[k1 < 0 ? 0 : k1 > m - 1 ? m - 1 : k1] as number) - base;
+      const d2 = (t[k1 + 1 < 0 ? 0 : k1 + 1 > m - 1 ? m - 1 : k1 + 1] as number) - base;
+      const d3 = (t[k3] as number) - base;
+      const sig3 = d1 * d2 * d3 * inv6h;
       G[4 * a] = 1;
-      G[4 * a + 1] = sig1 / 3;
-      G[4 * a + 2] = sig2 / 6 - sig3;
+      G[4 * a + 1] = (d1 + d2 + d3) / 3;
+      G[4 * a + 2] = (d1 * d2 + d1 * d3 + d2 * d3) / 6 - sig3;
       G[4 * a + 3] = sig3;
-    }
-    // gc = G C (C symmetric, stored in its upper triangle)
-    for (let a = 0; a < 4; a++) {
-      for (let b = 0; b < 4; b++) {
-        let s = 0;
-        for (let k = 0; k < 4; k++) s += (G[4 * a + k] as number) * (C[k <= b ? 4 * k + b : 4 * b + k] as number);
-        gc[4 * a + b] = s;
-      }
     }
     const last = j === m - 2 ? 3 : 0;
     for (let a = 0; a <= last; a++) {
+      const ga0 = G[4 * a] as number;
+      const ga1 = G[4 * a + 1] as number;
+      const ga2 = G[4 * a + 2] as number;
+      const ga3 = G[4 * a + 3] as number;
+      for (let b = 0; b < 4; b++) gc[b] = ga0 * (C[b] as number) + ga1 * (C[4 + b] as number) + ga2 * (C[8 + b] as number) + ga3 * (C[12 + b] as number);
       const i = j + a;
-      this.coefficients[i] = (G[4 * a] as number) * f + (G[4 * a + 1] as number) * f1 + (G[4 * a + 2] as number) * g0 + (G[4 * a + 3] as number) * g1;
+      coefficients[i] = ga0 * f + ga1 * f1 + ga2 * g0 + ga3 * g1;
       for (let b = a; b < 4; b++) {
-        let s = 0;
-        for (let k = 0; k < 4; k++) s += (gc[4 * a + k] as number) * (G[4 * b + k] as number);
-        this.covarianceBand[4 * i + (b - a)] = s;
+        band[4 * i + (b - a)] =
+          (gc[0] as number) * (G[4 * b] as number) + (gc[1] as number) * (G[4 * b + 1] as number) + (gc[2] as number) * (G[4 * b + 2] as number) + (gc[3] as number) * (G[4 * b + 3] as number);
       }
-      for (let b = 4 - a; b < 4; b++) this.covarianceBand[4 * i + b] = 0;
+      for (let b = 4 - a; b < 4; b++) band[4 * i + b] = 0;
     }
   }
 }
 
-function knotAt(t: Float64Array, m: number, k: number): number {
-  return t[k < 0 ? 0 : k > m - 1 ? m - 1 : k] as number;
-}
-
-/** a' S b for 2-vectors a, b and symmetric 2 x 2 S = [[s00, s01], [s01, s11]]. */
-function quad(a0: number, a1: number, b0: number, b1: number, s00: number, s01: number, s11: number): number {
-  return a0 * (s00 * b0 + s01 * b1) + a1 * (s01 * b0 + s11 * b1);
-}
 
 // ---------------------------------------------------------------------------------------
 // lambda search
@@ -684,31 +753,41 @@ function quad(a0: number, a1: number, b0: number, b1: number, s00: number, s01: 
  */
 function searchLambda(smoother: SplineSmoother, df: number): number {
   let totalW = 0;
-  const target = Math.log(df - 2);
+  const m = smoother.m;
+  const target = Math.log(df - 2) - Math.log(m - df);
   let evaluations = 0;
   let bestRho = NaN;
   let bestGap = Infinity;
+  let tooSmall = false;
   const g = (rho: number): number => {
     evaluations++;
-    if (process.env.SSDEBUG) console.log("eval", evaluations, rho);
     const tr = smoother.run(Math.exp(rho), null);
+    if (!smoother.reliable) {
+      // Only very small lambda are unreliable: report "lambda too small" with a finite value
+      // so the bracket and Brent's safeguards move up, never onto this point.
+      tooSmall = true;
+      return UNRELIABLE_G;
+    }
     const gap = Math.abs(tr - df);
     if (gap < bestGap) {
       bestGap = gap;
       bestRho = rho;
     }
-    return Math.log(Math.max(tr - 2, Number.MIN_VALUE)) - target;
+    return Math.log(Math.max(tr - 2, Number.MIN_VALUE)) - Math.log(Math.max(smoother.residualTrace, Number.MIN_VALUE)) - target;
   };
   const done = (): boolean => bestGap <= DF_TOLERANCE || evaluations >= MAX_LAMBDA_ITERATIONS;
   for (let j = 0; j < smoother.m; j++) totalW += smoother.weightAt(j);
   let a = Math.log(totalW) - 4 * Math.log(2 * Math.SQRT2 * (df - 2));
+  a = Math.min(RHO_MAX, Math.max(RHO_MIN, a));
   let fa = g(a);
   let b = a;
   let fb = fa;
-  // trace falls with rho: fa > 0 means lambda is too small. Slope of g is -1/4 .. -1.
+  // trace falls with rho: fa > 0 means lambda is too small. Slope of g is about -1 at both
+  // ends (trace - 2 ~ 1 / lambda, m - trace ~ lambda) and about -1/4 in between.
   let step = Math.max(0.5, Math.min(8, 4 * Math.abs(fa))) * (fa > 0 ? 1 : -1);
   for (let k = 0; k < MAX_BRACKET_STEPS && !done(); k++) {
-    b = a + step;
+    if ((step > 0 && a >= RHO_MAX) || (step < 0 && a <= RHO_MIN)) break;
+    b = Math.min(RHO_MAX, Math.max(RHO_MIN, a + step));
     fb = g(b);
     if ((fa > 0) !== (fb > 0) || fb === 0) break;
     a = b;
@@ -772,6 +851,11 @@ function searchLambda(smoother: SplineSmoother, df: number): number {
     b += Math.abs(d) > tol ? d : mid > 0 ? tol : -tol;
     fb = g(b);
   }
+  if (!(bestGap <= DF_ACCEPTANCE) && tooSmall) {
+    throw new FitError(
+      `smoothing spline with df ${df} is too close to interpolating the ${m} distinct x values to be computed accurately (the lambda it needs is below what double precision supports for this x spacing); ask for a smaller df`,
+    );
+  }
   if (!(bestGap <= DF_ACCEPTANCE)) {
     throw new FitError(`smoothing spline: lambda search did not reach df ${df} (closest trace ${(df + bestGap).toPrecision(10)} after ${evaluations} evaluations)`);
   }
@@ -781,10 +865,13 @@ function searchLambda(smoother: SplineSmoother, df: number): number {
 // ---------------------------------------------------------------------------------------
 // Results
 
-function splineFit(pooled: Pooled, smoother: SplineSmoother, lambdaT: number, lambda: number, notes: string[]): FitResult {
+function splineFit(pooled: Pooled, smoother: SplineSmoother, lambdaT: number, lambda: number, note: (trace: number) => string): FitResult {
   smoother.run(lambdaT, pooled.y);
+  if (!smoother.reliable) {
+    throw new FitError(`smoothing spline lambda ${lambda} is too small to be computed accurately for these ${pooled.m} distinct x values (the fit would all but interpolate them)`);
+  }
   const knots = clampedKnots(pooled.u[0] as number, pooled.u[pooled.m - 1] as number, pooled.u.subarray(1, pooled.m - 1));
-  const curve = makeCurve(knots, Float64Array.from(smoother.coefficients), Float64Array.from(smoother.covarianceBand), smoother.trace);
+  const curve = makeCurve(knots, smoother.coefficients, smoother.covarianceBand, smoother.trace);
   const fitted = new Float64Array(pooled.n);
   const leverage = new Float64Array(pooled.n);
   perRow(pooled, smoother.value, smoother.leverage, fitted, leverage);
@@ -797,7 +884,7 @@ function splineFit(pooled: Pooled, smoother: SplineSmoother, lambdaT: number, la
     fitted,
     leverage,
     lambda,
-    notes: [...notes, ...tieNote(pooled)],
+    notes: [note(smoother.trace), ...tieNote(pooled)],
   });
 }
 

@@ -38,8 +38,6 @@ interface Trainer {
   train(weights: Float64Array, sums: Float64Array | undefined): boolean;
   /** Prediction for row i after training (in centred, scaled y units). */
   predict(i: number): number;
-  /** Weighted SSE from test sums when the trainer can (power-sum path), else undefined. */
-  sseFromSums?(testSums: Float64Array): number;
 }
 
 /**
@@ -56,6 +54,8 @@ export class ResampleEngine {
   private readonly yscale: number;
   private readonly cells: Cells | undefined;
   private readonly trainers: Trainer[];
+  /** Natural-spline candidates fitted from power sums (the fast path), parallel to trainers. */
+  private readonly models: SplineFromSums[] | undefined;
   private readonly counts: Uint32Array;
   private readonly weights: Float64Array;
   private readonly testIdx: Int32Array;
@@ -88,12 +88,13 @@ export class ResampleEngine {
     const built = this.buildTrainers();
     this.trainers = built.trainers;
     this.cells = built.cells;
+    this.models = built.models;
     const cellCount = this.cells ? this.cells.breaks.length - 1 : 0;
     this.sums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
     this.testSums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
   }
 
-  private buildTrainers(): { trainers: Trainer[]; cells: Cells | undefined } {
+  private buildTrainers(): { trainers: Trainer[]; cells: Cells | undefined; models?: SplineFromSums[] } {
     const { x, family, dfs } = this.problem;
     const prepared = prepareData({ x, y: this.yc, w: this.problem.w });
     if (family === 'natural') {
@@ -103,15 +104,12 @@ export class ResampleEngine {
         return { df, basis, knots: Float64Array.of(k.lower, ...k.interior, k.upper) };
       });
       const cells = buildCells(x, bases.map((b) => b.knots));
-      const trainers = bases.map(({ df, basis }) => {
-        const model = new SplineFromSums(cells, basis, nullSpace(basis.naturalConstraint(), 2, basis.size), `natural spline with df ${df}`);
-        return {
-          train: (_w: Float64Array, sums: Float64Array | undefined) => model.fit(sums as Float64Array),
-          predict: (i: number) => model.valueAt(cells.cell[i] as number, cells.t[i] as number),
-          sseFromSums: (testSums: Float64Array) => model.sse(testSums),
-        };
-      });
-      return { trainers, cells };
+      const models = bases.map(({ df, basis }) => new SplineFromSums(cells, basis, nullSpace(basis.naturalConstraint(), 2, basis.size), `natural spline with df ${df}`));
+      const trainers = models.map((model) => ({
+        train: (_w: Float64Array, sums: Float64Array | undefined) => model.fit(sums as Float64Array),
+        predict: (i: number) => model.valueAt(cells.cell[i] as number, cells.t[i] as number),
+      }));
+      return { trainers, cells, models };
     }
     if (family === 'poly') {
       return { trainers: dfs.map((df) => basisTrainer(x, this.yc, df === 1 ? constantBasis : new OrthoPolyBasis(prepared.sortedX, x, df - 1), `polynomial with df ${df}`)), cells: undefined };
@@ -138,12 +136,15 @@ export class ResampleEngine {
       bootstrapCounts(n, this.problem.seed, r, this.counts);
       this.sums?.fill(0);
       this.testSums?.fill(0);
+      const { counts, yc, cells } = this;
+      const train = this.sums as Float64Array;
+      const test = this.testSums as Float64Array;
       for (let i = 0; i < n; i++) {
-        const c = this.counts[i] as number;
+        const c = counts[i] as number;
         const wi = w ? (w[i] as number) : 1;
         weights[i] = c * wi;
         if (c === 0) testIdx[nTest++] = i;
-        if (this.cells) accumulateRow(c > 0 ? (this.sums as Float64Array) : (this.testSums as Float64Array), this.cells.cell[i] as number, this.cells.t[i] as number, this.yc[i] as number, c > 0 ? c * wi : wi);
+        if (cells) accumulateRow(c > 0 ? train : test, cells.cell[i] as number, cells.t[i] as number, yc[i] as number, c > 0 ? c * wi : wi);
       }
     } else if (spec.kind === 'cv') {
       const repeat = Math.floor(r / spec.folds);
@@ -177,23 +178,61 @@ export class ResampleEngine {
         out[k] = out[C + k] = out[2 * C + k] = NaN;
         continue;
       }
-      let sae = 0;
-      let sse = 0;
-      let maxAbs = 0;
-      for (let j = 0; j < nTest; j++) {
-        const i = testIdx[j] as number;
-        const e = (this.yc[i] as number) - tr.predict(i);
-        const wi = w ? (w[i] as number) : 1;
-        const a = Math.abs(e);
-        sae += wi * a;
-        sse += wi * e * e;
-        if (a > maxAbs) maxAbs = a;
-      }
-      if (tr.sseFromSums && this.testSums) sse = tr.sseFromSums(this.testSums);
+      const m = this.models?.[k];
+      const acc = m ? this.testErrorsFromCells(m.fitPoly, nTest) : this.testErrors(tr, nTest);
+      const sse = m ? m.sse(this.testSums as Float64Array) : acc.sse;
       out[k] = this.yscale * Math.sqrt(sse / wTest);
-      out[C + k] = (this.yscale * sae) / wTest;
-      out[2 * C + k] = this.yscale * maxAbs;
+      out[C + k] = (this.yscale * acc.sae) / wTest;
+      out[2 * C + k] = this.yscale * acc.maxAbs;
     }
+  }
+
+  private readonly acc = { sae: 0, sse: 0, maxAbs: 0 };
+
+  /** Absolute and squared errors on the test rows through a trainer's predictions. */
+  private testErrors(tr: Trainer, nTest: number): { sae: number; sse: number; maxAbs: number } {
+    const { testIdx, yc } = this;
+    const w = this.problem.w;
+    let sae = 0;
+    let sse = 0;
+    let maxAbs = 0;
+    for (let j = 0; j < nTest; j++) {
+      const i = testIdx[j] as number;
+      const e = (yc[i] as number) - tr.predict(i);
+      const wi = w ? (w[i] as number) : 1;
+      const a = Math.abs(e);
+      sae += wi * a;
+      sse += wi * e * e;
+      if (a > maxAbs) maxAbs = a;
+    }
+    this.acc.sae = sae;
+    this.acc.sse = sse;
+    this.acc.maxAbs = maxAbs;
+    return this.acc;
+  }
+
+  /** Absolute errors on the test rows from per-cell cubics (the natural-spline hot path). */
+  private testErrorsFromCells(fp: Float64Array, nTest: number): { sae: number; sse: number; maxAbs: number } {
+    const { testIdx, yc } = this;
+    const cells = this.cells as Cells;
+    const cell = cells.cell;
+    const tt = cells.t;
+    const w = this.problem.w;
+    let sae = 0;
+    let maxAbs = 0;
+    for (let j = 0; j < nTest; j++) {
+      const i = testIdx[j] as number;
+      const o = (cell[i] as number) * 4;
+      const t = tt[i] as number;
+      const f = (fp[o] as number) + t * ((fp[o + 1] as number) + t * ((fp[o + 2] as number) + t * (fp[o + 3] as number)));
+      const a = Math.abs((yc[i] as number) - f);
+      sae += w ? (w[i] as number) * a : a;
+      if (a > maxAbs) maxAbs = a;
+    }
+    this.acc.sae = sae;
+    this.acc.sse = NaN;
+    this.acc.maxAbs = maxAbs;
+    return this.acc;
   }
 
   /** Fold labels of one repeat and, for the power-sum path, the sums of every fold plus their total. */

@@ -1,6 +1,6 @@
 import type { RowBasis } from '../basis/rowBasis';
 import { FitError } from '../errors';
-import { congruence, times, transposeTimes } from '../fit/linearFit';
+import { congruence, congruenceT, times, transposeTimes } from '../fit/linearFit';
 import { factorSpd } from '../linalg/spd';
 import { type Cells, SUMS_PER_CELL } from './cells';
 
@@ -50,6 +50,10 @@ export class SplineFromSums {
   private readonly m = new Float64Array(16);
   /** Per-cell cubic of the last fit: fitPoly[c*4 + p]. */
   readonly fitPoly: Float64Array;
+  /** B-spline coefficients of the last successful fit. */
+  theta: Float64Array = new Float64Array(0);
+  /** Why the last fit failed. */
+  lastError = '';
   readonly cellCount: number;
 
   constructor(
@@ -122,8 +126,13 @@ export class SplineFromSums {
     try {
       const factor = factorSpd(congruence(g, this.z, p, q), q, this.label);
       theta = times(this.z, factor.solve(transposeTimes(this.z, rhs, p, q)), p, q);
+      this.theta = theta;
+      this.inverse = factor.inverse;
     } catch (e) {
-      if (e instanceof FitError) return false;
+      if (e instanceof FitError) {
+        this.lastError = e.message;
+        return false;
+      }
       throw e;
     }
     for (let c = 0; c < this.cellCount; c++) {
@@ -154,6 +163,24 @@ export class SplineFromSums {
       total += (sums[o + 11] as number) - 2 * cross + square;
     }
     return total > 0 ? total : 0;
+  }
+
+  private inverse: Float64Array = new Float64Array(0);
+
+  /** Unscaled covariance Z (Z'GZ)^-1 Z' of the last successful fit, size x size. */
+  covariance(): Float64Array {
+    return congruenceT(this.inverse, this.z, this.basis.size, this.z.length / this.basis.size);
+  }
+
+  /** Values of the 4 active B-splines at (cell, t) into out; returns the index of the first. */
+  basisAt(cell: number, t: number, out: Float64Array): number {
+    const o = cell * 16;
+    const poly = this.poly;
+    for (let a = 0; a < 4; a++) {
+      const q = o + a * 4;
+      out[a] = (poly[q] as number) + t * ((poly[q + 1] as number) + t * ((poly[q + 2] as number) + t * (poly[q + 3] as number)));
+    }
+    return this.first[cell] as number;
   }
 
   /** Value of the last fit at a row given its cell and scaled position. */

@@ -1,5 +1,6 @@
 import { CancelledError, FitError, InputError } from '../errors';
 import { fitCurve } from '../fit/index';
+import { fitNaturalSplineBatch } from '../fit/naturalSplineBatch';
 import type { PreparedData } from '../fit/prepared';
 import type { Family, FitResult } from '../types';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from './engine';
@@ -88,15 +89,23 @@ export async function tuneCurve(
   if (metric !== 'gcv' && resample.kind === 'gcv') throw new InputError(`with GCV the rules compare the GCV score, not ${metric}`);
   const fits = new Map<number, FitResult>();
   const skipped = new Map<number, string>();
-  for (const df of dfs) {
-    if (progress?.cancelled()) throw new CancelledError();
-    try {
-      fits.set(df, fitCurve(prepared, { family, df }));
-    } catch (e) {
-      if (!(e instanceof FitError)) throw e;
-      skipped.set(df, e.message);
+  if (family === 'natural') {
+    // One pass of power sums serves every candidate (see fitNaturalSplineBatch).
+    for (const [df, r] of fitNaturalSplineBatch(prepared, dfs)) {
+      if (r instanceof FitError) skipped.set(df, r.message);
+      else fits.set(df, r);
     }
-    progress?.report(0, 1, `fitted df ${df} to all rows`);
+  } else {
+    for (const df of dfs) {
+      if (progress?.cancelled()) throw new CancelledError();
+      try {
+        fits.set(df, fitCurve(prepared, { family, df }));
+      } catch (e) {
+        if (!(e instanceof FitError)) throw e;
+        skipped.set(df, e.message);
+      }
+      progress?.report(0, 1, `fitted df ${df} to all rows`);
+    }
   }
   const fitted = dfs.filter((df) => fits.has(df));
   const errors = new Map<number, CandidateResult['errors']>();

@@ -71,6 +71,7 @@ export type Theme = 'light' | 'dark';
 /** Opens the panel page, installs the stub host and waits for the panel's `ready`. */
 export async function openPanel(browser: LaunchedChromium, server: PanelServer, fixture: Fixture | undefined, theme: Theme = 'light'): Promise<PanelPage> {
   const page = await browser.context.newPage();
+  page.setDefaultTimeout(10000);
   const sent: PanelMessage[] = [];
   const dialogs: string[] = [];
   page.on('dialog', (d) => {
@@ -78,7 +79,7 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
     void d.dismiss();
   });
   const post = async (message: HostMessage): Promise<void> => {
-    await page.evaluate('(m) => window.postMessage(m, "*")', message);
+    await page.evaluate((m) => (globalThis as unknown as { postMessage(m: unknown, origin: string): void }).postMessage(m, '*'), message);
   };
   await page.exposeFunction('__knotwiseToHost', (m: PanelMessage) => {
     sent.push(m);

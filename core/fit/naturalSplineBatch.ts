@@ -1,0 +1,73 @@
+import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
+import { FitError } from '../errors';
+import { nullSpace } from '../linalg/nullSpace';
+import { accumulateRow, buildCells, SUMS_PER_CELL } from '../tune/cells';
+import { SplineFromSums } from '../tune/splineSums';
+import type { FitResult } from '../types';
+import { RowBasisCurve } from './linearFit';
+import type { PreparedData } from './prepared';
+import { summariseFit } from './summary';
+
+/**
+ * Natural cubic regression splines at several df at once, for tuning. One pass of per-cell
+ * weighted power sums over the union of all candidates' knots gives every candidate's Gram
+ * matrix (DESIGN.md, Scale); fitted values and leverage then come from the cell cubics in
+ * O(n) per candidate without evaluating B-splines row by row. The results equal
+ * fitNaturalSpline up to rounding. Returns each df's fit, or the FitError that skipped it.
+ * Cost O(n) + candidates x O(n).
+ */
+export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly number[]): Map<number, FitResult | FitError> {
+  const out = new Map<number, FitResult | FitError>();
+  const { data } = prepared;
+  const { x, y, w } = data;
+  const n = x.length;
+  const specs: { df: number; knots: ReturnType<typeof naturalKnots>; basis: ExtrapolatingBSplineBasis }[] = [];
+  for (const df of dfs) {
+    try {
+      const knots = naturalKnots(prepared.sortedX, prepared.distinct, df);
+      specs.push({ df, knots, basis: new ExtrapolatingBSplineBasis(knots.lower, knots.upper, knots.interior) });
+    } catch (e) {
+      if (!(e instanceof FitError)) throw e;
+      out.set(df, e);
+    }
+  }
+  if (specs.length === 0) return out;
+  const cells = buildCells(
+    x,
+    specs.map((s) => Float64Array.of(s.knots.lower, ...s.knots.interior, s.knots.upper)),
+  );
+  const sums = new Float64Array((cells.breaks.length - 1) * SUMS_PER_CELL);
+  for (let i = 0; i < n; i++) accumulateRow(sums, cells.cell[i] as number, cells.t[i] as number, y[i] as number, w ? (w[i] as number) : 1);
+  const buf = new Float64Array(4);
+  for (const { df, knots, basis } of specs) {
+    const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
+    const model = new SplineFromSums(cells, basis, z, `natural spline with df ${df}`);
+    if (!model.fit(sums)) {
+      out.set(df, new FitError(model.lastError));
+      continue;
+    }
+    const cov = model.covariance();
+    const p = basis.size;
+    const fitted = new Float64Array(n);
+    const leverage = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const c = cells.cell[i] as number;
+      const t = cells.t[i] as number;
+      fitted[i] = model.valueAt(c, t);
+      const first = model.basisAt(c, t, buf);
+      let h = 0;
+      for (let a = 0; a < 4; a++) {
+        const off = (first + a) * p + first;
+        const s = (cov[off] as number) * (buf[0] as number) + (cov[off + 1] as number) * (buf[1] as number) + (cov[off + 2] as number) * (buf[2] as number) + (cov[off + 3] as number) * (buf[3] as number);
+        h += (buf[a] as number) * s;
+      }
+      leverage[i] = (w ? (w[i] as number) : 1) * h;
+    }
+    const curve = new RowBasisCurve('natural', df, knots.lower, knots.upper, basis, model.theta, cov, z);
+    out.set(
+      df,
+      summariseFit(data, { family: 'natural', df, curve, coefficients: model.theta, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, leverage, notes: knots.notes }),
+    );
+  }
+  return out;
+}
