@@ -71,10 +71,76 @@ export interface FitResult {
   readonly lambda?: number;
   /** Plain-language notes (tied knots moved, ...). */
   readonly notes: readonly string[];
+  /** Present when an outcome family other than Gaussian, shape constraints or robust fitting was used. */
+  readonly model?: ModelReport;
+}
+
+/** Distribution of the outcome: least squares, counts (log link) or proportions (logit link). */
+export type Outcome = 'gaussian' | 'poisson' | 'binomial';
+
+/** Shape constraints of a spline, guaranteed everywhere in the data range (see core/fit/shape.ts). */
+export type Shape = 'increasing' | 'decreasing' | 'nonnegative' | 'convex' | 'concave';
+
+/** How the curve is estimated besides its family and df; every field optional (absent = plain least squares). */
+export interface ModelOptions {
+  /** Outcome distribution; default 'gaussian'. */
+  readonly outcome?: Outcome | undefined;
+  /** Shape constraints (natural spline only); empty or absent for none. */
+  readonly shape?: readonly Shape[] | undefined;
+  /** Huber M-estimation (Gaussian outcome only): true for the tuning constant 1.345, or { k }. */
+  readonly robust?: boolean | { readonly k: number } | undefined;
 }
 
 /** What to fit. */
-export interface FitSpec {
+export interface FitSpec extends ModelOptions {
   readonly family: Family;
   readonly df: number;
+  /**
+   * Binomial outcome only: number of trials of each row (y is then the number of
+   * successes). Absent: y is a proportion in [0, 1] (0/1 outcomes, or proportions whose
+   * trials are the prior weights).
+   */
+  readonly trials?: Float64Array | undefined;
+}
+
+/** What a fit with an outcome family, shape constraints or robust weights adds to FitResult. */
+export interface ModelReport {
+  readonly outcome: Outcome;
+  /** 'identity', 'log' or 'logit'. */
+  readonly link: 'identity' | 'log' | 'logit';
+  readonly shape: readonly Shape[];
+  /** Iterations of the reweighting (IRLS) loop; 1 for a single constrained least-squares solve. */
+  readonly iterations: number;
+  readonly converged: boolean;
+  /** Poisson and binomial: deviance, null deviance, Pearson chi-square, per-row residuals, linear predictor. */
+  readonly glm?: {
+    readonly deviance: number;
+    readonly nullDeviance: number;
+    readonly pearsonChi2: number;
+    /** Pearson chi-square / (n - df): about 1 when the variance follows the outcome family. */
+    readonly dispersion: number;
+    readonly pearsonResiduals: Float64Array;
+    readonly devianceResiduals: Float64Array;
+    readonly linearPredictor: Float64Array;
+  };
+  /** Shape constraints: how many linear inequalities, how many hold with equality. */
+  readonly constraints?: {
+    readonly total: number;
+    readonly active: number;
+    /** df minus the independent active constraints: the trace of the hat matrix at the active set. */
+    readonly effectiveDf: number;
+  };
+  /** Huber M-estimation: tuning constant, robust scale and the rows given weight below 1. */
+  readonly robust?: {
+    readonly k: number;
+    /** Robust scale: median |residual| / 0.6745 at convergence (as MASS::rlm's default). */
+    readonly scale: number;
+    /** Huber weight of each row, min(1, k s / |r|). */
+    readonly weights: Float64Array;
+    /** Rows with weight below 1, lowest weight first (at most ROBUST_LIST_LIMIT listed). */
+    readonly downweighted: {
+      readonly total: number;
+      readonly rows: readonly { readonly index: number; readonly line: number; readonly weight: number }[];
+    };
+  };
 }

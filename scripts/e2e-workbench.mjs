@@ -62,14 +62,13 @@ export async function launchChromium({ viewport = { width: 1400, height: 900 } }
     blocked.push(url);
     return route.abort('blockedbyclient');
   });
-  // Service workers and web sockets bypass context.route; watch them too.
-  context.on('request', (req) => {
-    if (!isLocalUrl(req.url()) && !blocked.includes(req.url())) blocked.push(req.url());
-  });
+  // Requests that a page's service worker answers itself (VS Code serves webview resources
+  // from a virtual *.vscode-resource host that way) never reach the network and are not
+  // routed; everything that would reach the network passes the route above. Web sockets
+  // are not routed: watch them separately.
   const page = context.pages()[0] ?? (await context.newPage());
-  page.on('websocket', (ws) => {
-    if (!isLocalUrl(ws.url().replace(/^ws/, 'http'))) blocked.push(ws.url());
-  });
+  context.on('page', (p) => watchSockets(p, blocked));
+  watchSockets(page, blocked);
   return {
     context,
     page,
@@ -79,6 +78,12 @@ export async function launchChromium({ viewport = { width: 1400, height: 900 } }
       rmSync(profile, { recursive: true, force: true });
     },
   };
+}
+
+function watchSockets(page, blocked) {
+  page.on('websocket', (ws) => {
+    if (!isLocalUrl(ws.url().replace(/^ws/, 'http'))) blocked.push(ws.url());
+  });
 }
 
 /** An unused TCP port on 127.0.0.1. */

@@ -25,7 +25,7 @@ export const PIVOT_TOLERANCE = 1e-13;
  * LDL' factorisation of a symmetric positive definite band matrix, A = L D L'.
  *
  * Method: band version of the square-root-free Cholesky factorisation, Golub & Van Loan,
- * "Matrix Computations", 4th ed. (2013), section 4.1.2 (LDL') and 4.3.5 (band Cholesky).
+ * "Matrix Computations", 4th ed. (2013), chapter 4 (LDL' and band Cholesky).
  * Cost O(n p^2) time, no allocation besides `out`.
  *
  * Checks: every pivot must satisfy D(j) > PIVOT_TOLERANCE * A(j, j). Because
@@ -35,7 +35,7 @@ export const PIVOT_TOLERANCE = 1e-13;
  *
  * @param band A in compact lower band storage (see the module comment); not modified.
  * @param n order of A.
- * @param p half-bandwidth (0 <= p < n).
+ * @param p half-bandwidth (p >= 0; slots beyond the last row are ignored).
  * @param out factor storage of length n (p + 1); allocated when absent.
  * @returns the factor (D on slot 0, L below).
  * @throws FitError when a pivot fails the check.
@@ -78,7 +78,7 @@ export function bandLdl(band: Float64Array, n: number, p: number, out: Float64Ar
 
 /**
  * Solves A x = b from the factor of `bandLdl` (forward substitution with L, division by D,
- * back substitution with L'). Golub & Van Loan (2013), section 4.3.6. Cost O(n p).
+ * back substitution with L'). Golub & Van Loan (2013), chapter 4. Cost O(n p).
  *
  * `out` may be the same array as `b` (in-place solve).
  * @example
@@ -113,7 +113,7 @@ export function bandSolve(factor: Float64Array, n: number, p: number, b: Float64
  * (generally full) inverse.
  *
  * Method: Hutchinson & de Hoog (1985), "Smoothing noisy data with spline functions",
- * Numerische Mathematik 47, 99-106, section 3: from A = L D L' follows
+ * Numerische Mathematik 47, 99-106: from A = L D L' follows
  * S = D^-1 L^-1 + (I - L') S, and since D^-1 L^-1 is lower triangular with diagonal D^-1,
  *
  *     S(i, j) = delta(i, j) / D(i) - sum_{k = i+1}^{i+p} L(k, i) S(k, j),   j >= i,
@@ -148,8 +148,8 @@ export function bandInverse(factor: Float64Array, n: number, p: number, out: Flo
 }
 
 function checkShape(a: Float64Array, n: number, p: number, what: string): void {
-  if (!Number.isInteger(n) || !Number.isInteger(p) || n < 1 || p < 0 || p >= n) {
-    throw new RangeError(`band ${what}: order ${n} and half-bandwidth ${p} must be integers with 0 <= p < n`);
+  if (!Number.isInteger(n) || !Number.isInteger(p) || n < 1 || p < 0) {
+    throw new RangeError(`band ${what}: order ${n} and half-bandwidth ${p} must be integers with n >= 1 and p >= 0`);
   }
   if (a.length !== n * (p + 1)) throw new RangeError(`band ${what}: expected length ${n * (p + 1)} for order ${n} and half-bandwidth ${p}, got ${a.length}`);
 }

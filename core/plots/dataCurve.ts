@@ -37,9 +37,10 @@ export function dataCurveSvg(spec: DataCurveSpec): string {
     `<g clip-path="${frame.clip}">` +
     `<path class="kw-band-pi" d="${bandPath(px, map(curve.piLower), map(curve.piUpper))}"/>` +
     `<path class="kw-band-ci" d="${bandPath(px, map(curve.ciLower), map(curve.ciUpper))}"/>` +
+    `<path class="kw-curve" d="${linePath(px, map(curve.fit))}"/>` +
     `</g>` +
-    cloudMarks(spec.data, frame, { x: spec.xLabel, y: spec.yLabel }) +
-    `<path class="kw-curve" clip-path="${frame.clip}" d="${linePath(px, map(curve.fit))}"/>`;
+    // Readings last, so they stay on top for hovering and clicking.
+    cloudMarks(spec.data, frame, { x: spec.xLabel, y: spec.yLabel });
   const lo = grid[0] ?? NaN;
   const hi = grid[grid.length - 1] ?? NaN;
   return svgDocument(

@@ -3,7 +3,11 @@ import type { FitResult } from '../types';
 
 /** Column names of the curve table, in order (a public interface: see README). */
 export const TABLE_COLUMNS = ['x', 'fit', 'se', 'ciLower', 'ciUpper', 'piLower', 'piUpper', 'extrapolated'] as const;
-export type TableColumn = (typeof TABLE_COLUMNS)[number];
+/** Columns added on request: `negative` (1 where the fit is below zero) for a quantity declared non-negative. */
+export const OPTIONAL_COLUMNS = ['negative'] as const;
+/** Columns that hold 0/1 flags and print as integers. */
+export const FLAG_COLUMNS: readonly TableColumn[] = ['extrapolated', 'negative'];
+export type TableColumn = (typeof TABLE_COLUMNS)[number] | (typeof OPTIONAL_COLUMNS)[number];
 
 /** A curve table: columns and one row of numbers per grid point. */
 export interface CurveTable {

@@ -5,7 +5,13 @@ export type GridSpec =
   | { readonly kind: 'count'; readonly start: number; readonly stop: number; readonly count: number }
   | { readonly kind: 'step'; readonly start: number; readonly stop: number; readonly step: number }
   | { readonly kind: 'data' }
-  | { readonly kind: 'list'; readonly values: readonly number[] };
+  | { readonly kind: 'list'; readonly values: readonly number[] }
+  /**
+   * The coarsest uniform step for which straight lines between adjacent table rows stay
+   * within `tolerance` (units of y) of the fitted curve; over [start, stop] when given,
+   * else over the data range. Resolved against the fit by resolveGrid (core/table/autoStep.ts).
+   */
+  | { readonly kind: 'auto'; readonly tolerance: number; readonly start?: number; readonly stop?: number };
 
 /** Most grid points in one table. */
 export const MAX_GRID_POINTS = 1_000_000;
@@ -14,17 +20,20 @@ export const DEFAULT_GRID_COUNT = 101;
 
 /**
  * Parses a grid: `<start>:<stop>:<count>`, `<start>:<stop>:step=<step>`, `data` (the
- * distinct x of the data) or a list `1,2.5,4`.
+ * distinct x of the data), a list `1,2.5,4`, or an automatic step `auto:<tolerance>`
+ * (over the data range) or `<start>:<stop>:auto=<tolerance>`.
  */
 export function parseGrid(text: string): GridSpec {
   const t = text.trim();
   if (t === 'data') return { kind: 'data' };
   const parts = t.split(':');
+  if (parts.length === 2 && (parts[0] as string).trim() === 'auto') return { kind: 'auto', tolerance: tolerance(parts[1] as string, t) };
   if (parts.length === 3) {
     const start = num(parts[0] as string, 'start', t);
     const stop = num(parts[1] as string, 'stop', t);
     if (!(stop > start)) throw new InputError(`grid "${t}": stop must be greater than start`);
     const last = parts[2] as string;
+    if (last.trim().startsWith('auto=')) return { kind: 'auto', tolerance: tolerance(last.trim().slice(5), t), start, stop };
     if (last.startsWith('step=')) {
       const step = num(last.slice(5), 'step', t);
       if (!(step > 0)) throw new InputError(`grid "${t}": step must be positive`);
@@ -37,6 +46,28 @@ export function parseGrid(text: string): GridSpec {
   }
   const values = t.split(',').map((s) => num(s, 'value', t));
   return { kind: 'list', values: [...values].sort((a, b) => a - b) };
+}
+
+function tolerance(s: string, whole: string): number {
+  const v = num(s, 'tolerance', whole);
+  if (!(v > 0)) throw new InputError(`grid "${whole}": the tolerance of the automatic step must be a positive number (in units of y)`);
+  return v;
+}
+
+/** The text form of a grid, as parseGrid reads it (the inverse of parseGrid up to spacing and list order). */
+export function formatGrid(spec: GridSpec): string {
+  switch (spec.kind) {
+    case 'count':
+      return `${spec.start}:${spec.stop}:${spec.count}`;
+    case 'step':
+      return `${spec.start}:${spec.stop}:step=${spec.step}`;
+    case 'data':
+      return 'data';
+    case 'list':
+      return spec.values.join(',');
+    case 'auto':
+      return spec.start !== undefined && spec.stop !== undefined ? `${spec.start}:${spec.stop}:auto=${spec.tolerance}` : `auto:${spec.tolerance}`;
+  }
 }
 
 function num(s: string, what: string, whole: string): number {
@@ -70,6 +101,9 @@ export function gridPoints(spec: GridSpec, sortedX: Float64Array): Float64Array 
     }
     case 'list':
       return Float64Array.from(spec.values);
+    case 'auto':
+      // The step depends on the fitted curve: resolveGrid (core/table/autoStep.ts) turns it into a count grid.
+      throw new InputError(`grid "${formatGrid(spec)}": an automatic step needs the fitted curve; resolve it with resolveGrid first`);
   }
 }
 

@@ -151,12 +151,11 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
   it('hovering a reading shows its values and CSV line; an influential row reveals its line', async function () {
     const pp = await shown(mcycle);
     const page = pp.page;
-    const circle = page.locator('#fig-data circle.kw-point').first();
+    // The last reading of mcycle.csv (line 134: times 57.6, accel 10.7) stands alone at the right edge.
+    const circle = page.locator('#fig-data circle.kw-point').last();
     await circle.hover();
-    const line = await circle.getAttribute('data-line');
-    // mcycle.csv: the first data row is on line 2 (line 1 holds the header).
-    assert.equal(line, '2');
-    assert.match((await page.textContent('#fig-data .kw-readout')) ?? '', /times 2\.4, accel 0, CSV line 2/);
+    assert.equal(await circle.getAttribute('data-line'), '134');
+    assert.match((await page.textContent('#fig-data .kw-readout')) ?? '', /times 57\.6, accel 10\.7, CSV line 134/);
     const button = page.locator('#kw-influence-body button[data-line]').first();
     assert.equal(await button.count(), 1, 'mcycle has influential rows at this df');
     const want = Number(await button.getAttribute('data-line'));
@@ -185,7 +184,13 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
       })()`)) as string;
       reached.add(id);
     }
-    for (const id of ['kw-rule', 'kw-df', 'kw-save', 'kw-rerun']) assert.ok(reached.has(id), `${id} reached (got ${[...reached].join(', ')})`);
+    // The rule radios form one tab stop (arrow keys move within the group).
+    assert.ok([...reached].some((id) => id.startsWith('kw-rule-')), `a rule radio reached (got ${[...reached].join(', ')})`);
+    for (const id of ['kw-df', 'kw-save', 'kw-rerun']) assert.ok(reached.has(id), `${id} reached (got ${[...reached].join(', ')})`);
+    await page.focus('#kw-rule-1se');
+    await page.keyboard.press('ArrowDown');
+    assert.equal(await page.isChecked('#kw-rule-tol'), true, 'arrow keys switch the rule');
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${expected(mcycle.payload, { kind: 'tol', percent: 2 }).df}`);
     await page.close();
   });
 

@@ -1,0 +1,41 @@
+/**
+ * The curve table as JSON for programs: the columns as arrays of numbers, with where the
+ * data came from and how to regenerate it.
+ */
+import { printedValue, type EmitInput } from './common';
+
+/**
+ * The JSON text (2-space indent, LF, final newline): `generatedBy`, `source` ({file,
+ * sha256}), `record`, `regenerate`, `curve`, `length`, `xFirst`, `xLast`, `dataXMin`,
+ * `dataXMax`, `xStep` (null when uneven), `columns` ({name: number[]}) and `caution`. Values
+ * are the CSV's numbers (read back from the printed text); non-finite values are null.
+ * O(rows x columns). Example: JSON.parse(jsonTable(input)).columns.fit[0].
+ */
+export function jsonTable(input: EmitInput): string {
+  const t = input.table;
+  const v = (x: number): number | null => {
+    const p = printedValue(x, input.digits);
+    return Number.isFinite(p) ? p : null;
+  };
+  const xs = t.rows.map((r) => r[0] as number);
+  const columns: Record<string, (number | null)[]> = {};
+  t.columns.forEach((c, j) => {
+    columns[c] = t.rows.map((r) => v(r[j] as number));
+  });
+  const doc = {
+    generatedBy: 'knotwise',
+    source: { file: input.source.file, sha256: input.source.sha256 },
+    record: input.recordFile,
+    regenerate: input.regenerate,
+    curve: input.curve,
+    length: t.rows.length,
+    xFirst: xs.length ? v(xs[0] as number) : null,
+    xLast: xs.length ? v(xs[xs.length - 1] as number) : null,
+    dataXMin: v(input.dataRange[0]),
+    dataXMax: v(input.dataRange[1]),
+    xStep: input.step !== undefined ? v(input.step) : null,
+    columns,
+    caution: input.caution,
+  };
+  return JSON.stringify(doc, null, 2) + '\n';
+}

@@ -1,0 +1,217 @@
+/**
+ * Non-negative least squares: minimise ||E x - f||_2 subject to x >= 0.
+ *
+ * Method: algorithm NNLS of Lawson & Hanson, "Solving Least Squares Problems"
+ * (Prentice-Hall 1974; SIAM reprint 1995), chapter 23, section 3 (Algorithm 23.10), an
+ * active-set method. The variables are split into a passive set P (free, positive) and a
+ * zero set; each outer step moves the zero variable with the largest dual value
+ * w_j = e_j'(f - E x) into P, and the inner loop solves the unconstrained least-squares
+ * problem on the columns of P, backing up along the segment towards it whenever a passive
+ * variable would turn non-positive. The least-squares subproblem is solved by a fresh
+ * Householder QR of the passive columns (Lawson & Hanson chapter 11; Golub & Van Loan,
+ * Matrix Computations, 4th ed., section 5.2), which keeps full accuracy when the columns are
+ * badly scaled. As in Lawson & Hanson's own program, a candidate whose least-squares
+ * coefficient is not positive (its column is numerically dependent on the passive ones) is
+ * rejected for that outer step, and the outer iterations are capped at 3 n.
+ *
+ * The problems Knotwise hands to it are small (n = number of shape constraints, m = number
+ * of spline coefficients + 1, both below a few hundred); cost per inner solve O(m |P|^2),
+ * typically O(n) outer steps.
+ */
+
+/** Machine epsilon of doubles. */
+const EPS = 2.220446049250313e-16;
+/** Outer iterations are capped at this multiple of the number of variables (Lawson & Hanson's ITMAX = 3 n). */
+export const NNLS_ITERATION_FACTOR = 3;
+/** Dual values below this multiple of eps * max(m, n) * (largest column norm) * ||f|| count as zero. */
+export const NNLS_DUAL_TOLERANCE_FACTOR = 10;
+
+/** Result of `nnls`. */
+export interface NnlsResult {
+  /** The solution, x >= 0. */
+  readonly x: Float64Array;
+  /** The dual vector w = E'(f - E x): w_j <= 0 (to tolerance) where x_j = 0, w_j = 0 where x_j > 0. */
+  readonly dual: Float64Array;
+  /** ||E x - f||_2. */
+  readonly residualNorm: number;
+  /** Outer iterations used. */
+  readonly iterations: number;
+  /** False when the iteration cap stopped the search (the returned x is feasible but may not be optimal). */
+  readonly converged: boolean;
+}
+
+/**
+ * Solves min ||E x - f||_2 subject to x >= 0 by Lawson & Hanson's NNLS (see the module
+ * comment for the method and reference). E is m x n, row-major; neither E nor f is
+ * modified. Scratch space is allocated once per call, O(m n). Cost: O(m n) per dual update
+ * and O(m |P|^2) per passive least-squares solve.
+ *
+ * Example: nnls(Float64Array.of(1, 0, 0, 1), 2, 2, Float64Array.of(1, -1)).x = [1, 0].
+ */
+export function nnls(e: Float64Array, m: number, n: number, f: Float64Array): NnlsResult {
+  if (e.length !== m * n || f.length !== m) throw new Error(`nnls: E must be ${m} x ${n} and f of length ${m}`);
+  const x = new Float64Array(n);
+  const w = new Float64Array(n);
+  const z = new Float64Array(n);
+  const passive = new Uint8Array(n);
+  const rejected = new Uint8Array(n);
+  const order = new Int32Array(n);
+  const resid = new Float64Array(m);
+  const qr = new Float64Array(m * n);
+  const rhs = new Float64Array(m);
+  let np = 0;
+
+  let maxColNorm = 0;
+  for (let j = 0; j < n; j++) {
+    let s = 0;
+    for (let i = 0; i < m; i++) s += (e[i * n + j] as number) ** 2;
+    if (s > maxColNorm) maxColNorm = s;
+  }
+  maxColNorm = Math.sqrt(maxColNorm);
+  let fNorm = 0;
+  for (let i = 0; i < m; i++) fNorm += (f[i] as number) ** 2;
+  fNorm = Math.sqrt(fNorm);
+  const dualTol = NNLS_DUAL_TOLERANCE_FACTOR * EPS * Math.max(m, n) * maxColNorm * fNorm;
+
+  const updateDual = (): void => {
+    for (let i = 0; i < m; i++) {
+      let s = f[i] as number;
+      for (let j = 0; j < n; j++) s -= (e[i * n + j] as number) * (x[j] as number);
+      resid[i] = s;
+    }
+    for (let j = 0; j < n; j++) {
+      let s = 0;
+      for (let i = 0; i < m; i++) s += (e[i * n + j] as number) * (resid[i] as number);
+      w[j] = s;
+    }
+  };
+
+  /** Least squares on the passive columns (in `order[0..np)`), result in z; false if a pivot vanishes. */
+  const solvePassive = (): boolean => {
+    // qr holds the passive columns column-major: column k at qr[k * m .. k * m + m).
+    for (let k = 0; k < np; k++) {
+      const j = order[k] as number;
+      for (let i = 0; i < m; i++) qr[k * m + i] = e[i * n + j] as number;
+    }
+    for (let i = 0; i < m; i++) rhs[i] = f[i] as number;
+    if (np > m) return false;
+    for (let k = 0; k < np; k++) {
+      let norm = 0;
+      for (let i = k; i < m; i++) norm += (qr[k * m + i] as number) ** 2;
+      norm = Math.sqrt(norm);
+      if (!(norm > 0)) return false;
+      const akk = qr[k * m + k] as number;
+      const alpha = akk > 0 ? -norm : norm;
+      // Householder vector v = a_k - alpha e_k stored in place; beta = 1 / (v'v / 2) = 1 / (alpha (alpha - akk)).
+      qr[k * m + k] = akk - alpha;
+      const vtv2 = alpha * (alpha - akk);
+      for (let c = k + 1; c < np; c++) {
+        let s = 0;
+        for (let i = k; i < m; i++) s += (qr[k * m + i] as number) * (qr[c * m + i] as number);
+        const t = s / vtv2;
+        for (let i = k; i < m; i++) qr[c * m + i] = (qr[c * m + i] as number) - t * (qr[k * m + i] as number);
+      }
+      let s = 0;
+      for (let i = k; i < m; i++) s += (qr[k * m + i] as number) * (rhs[i] as number);
+      const t = s / vtv2;
+      for (let i = k; i < m; i++) rhs[i] = (rhs[i] as number) - t * (qr[k * m + i] as number);
+      // The diagonal of R is alpha; keep it where the vector's head was (the vector is no longer needed).
+      qr[k * m + k] = alpha;
+    }
+    // Back substitution R z_P = (Q'f)[0..np); a pivot tiny against the largest means dependent columns.
+    let maxDiag = 0;
+    for (let k = 0; k < np; k++) maxDiag = Math.max(maxDiag, Math.abs(qr[k * m + k] as number));
+    for (let k = np - 1; k >= 0; k--) {
+      const d = qr[k * m + k] as number;
+      if (!(Math.abs(d) > EPS * m * maxDiag)) return false;
+      let s = rhs[k] as number;
+      for (let c = k + 1; c < np; c++) s -= (qr[c * m + k] as number) * (z[order[c] as number] as number);
+      z[order[k] as number] = s / d;
+    }
+    return true;
+  };
+
+  const maxIterations = NNLS_ITERATION_FACTOR * n;
+  let iterations = 0;
+  let converged = false;
+  outer: for (;;) {
+    updateDual();
+    // Step 3-4: the zero variable with the largest dual value, skipping ones rejected in this round.
+    let t = -1;
+    let best = dualTol;
+    for (let j = 0; j < n; j++) {
+      if (passive[j] === 1 || rejected[j] === 1) continue;
+      if ((w[j] as number) > best) {
+        best = w[j] as number;
+        t = j;
+      }
+    }
+    if (t < 0) {
+      converged = true;
+      break;
+    }
+    if (iterations >= maxIterations) break;
+    iterations++;
+    // Step 5-6: move t into P and solve on P.
+    passive[t] = 1;
+    order[np++] = t;
+    if (!solvePassive() || !((z[t] as number) > 0)) {
+      // Lawson & Hanson's test: the new column does not help (numerically dependent); leave it at zero.
+      passive[t] = 0;
+      np--;
+      rejected[t] = 1;
+      continue;
+    }
+    rejected.fill(0);
+    // Steps 7-11: back up while a passive variable would go non-positive.
+    for (;;) {
+      let alpha = Infinity;
+      let hit = -1;
+      for (let k = 0; k < np; k++) {
+        const j = order[k] as number;
+        const zj = z[j] as number;
+        if (zj <= 0) {
+          const xj = x[j] as number;
+          const a = xj / (xj - zj);
+          if (a < alpha) {
+            alpha = a;
+            hit = j;
+          }
+        }
+      }
+      if (hit < 0) {
+        for (let k = 0; k < np; k++) {
+          const j = order[k] as number;
+          x[j] = z[j] as number;
+        }
+        continue outer;
+      }
+      for (let k = 0; k < np; k++) {
+        const j = order[k] as number;
+        x[j] = (x[j] as number) + alpha * ((z[j] as number) - (x[j] as number));
+      }
+      x[hit] = 0;
+      // Move every passive variable that reached zero back to the zero set.
+      let kept = 0;
+      for (let k = 0; k < np; k++) {
+        const j = order[k] as number;
+        if (j === hit || (x[j] as number) <= 0) {
+          x[j] = 0;
+          passive[j] = 0;
+        } else {
+          order[kept++] = j;
+        }
+      }
+      np = kept;
+      if (np === 0) continue outer;
+      if (!solvePassive()) {
+        // Cannot happen for columns that were independent before; stop with the feasible x.
+        break outer;
+      }
+    }
+  }
+  updateDual();
+  let rn = 0;
+  for (let i = 0; i < m; i++) rn += (resid[i] as number) ** 2;
+  return { x, dual: Float64Array.from(w), residualNorm: Math.sqrt(rn), iterations, converged };
+}

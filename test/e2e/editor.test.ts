@@ -1,0 +1,144 @@
+/**
+ * One scenario in the real workbench, as a person would do it: right-click MASS::mcycle
+ * (Silverman 1985, from R's MASS package; see fixtures/make-fixtures.R) in the explorer,
+ * pick the columns, wait for the panel, read the explanation, press save, find the files
+ * on disk, look at it in a light and a dark theme. No request may leave 127.0.0.1.
+ */
+import assert from 'node:assert/strict';
+import { copyFileSync, existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+import type { Frame, Page } from 'playwright-core';
+import type { CodeServer, LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
+
+const fixtures = join(__dirname, 'fixtures');
+const artifacts = join(__dirname, '..', '..', 'test-artifacts');
+
+describe('Knotwise in the whole editor (code-server workbench)', function () {
+  let server: CodeServer;
+  let browser: LaunchedChromium;
+  let page: Page;
+  let runDir: string;
+  let workspace: string;
+  let panel: Frame;
+  let chosenDf = 0;
+  let failed = false;
+
+  before(async function () {
+    const wb = await import('../../scripts/e2e-workbench.mjs');
+    runDir = wb.freshRunDir('editor');
+    workspace = join(runDir, 'workspace');
+    mkdirSync(workspace, { recursive: true });
+    copyFileSync(join(fixtures, 'mcycle.csv'), join(workspace, 'mcycle.csv'));
+    server = await wb.startCodeServer({ runDir, settings: { 'workbench.colorTheme': 'Default Light Modern' } });
+    browser = await wb.launchChromium({ viewport: { width: 1500, height: 950 } });
+    page = browser.page;
+    page.setDefaultTimeout(30000);
+    await page.goto(server.workbenchUrl(workspace, [['extensionDevelopmentPath', server.remotePath(wb.repoRoot)]]));
+  });
+
+  afterEach(function () {
+    if (this.currentTest?.state === 'failed') failed = true;
+  });
+
+  beforeEach(function () {
+    // Steps build on each other: after a failure the rest cannot tell anything.
+    if (failed) this.skip();
+  });
+
+  after(async function () {
+    if (failed) await page?.screenshot({ path: join(artifacts, 'editor-failure.png') }).catch(() => undefined);
+    await browser?.close();
+    await server?.stop();
+    if (!failed && runDir) rmSync(runDir, { recursive: true, force: true });
+  });
+
+  async function findPanel(): Promise<Frame> {
+    const deadline = Date.now() + 60000;
+    while (Date.now() < deadline) {
+      for (const f of page.frames()) {
+        const ready = await f.$('#knotwise-root[data-state="ready"]').catch(() => null);
+        if (ready) return f;
+      }
+      await page.waitForTimeout(250);
+    }
+    throw new Error('the Knotwise panel did not show a result within 60 s');
+  }
+
+  it('the explorer context menu of a CSV offers Knotwise', async function () {
+    const row = page.getByRole('treeitem', { name: 'mcycle.csv' });
+    await row.waitFor({ timeout: 60000 });
+    const item = page.locator('.monaco-menu .action-label', { hasText: 'Tune a Curve for This Data' });
+    // The menu lists the extension's entry once the extension host has registered it.
+    const deadline = Date.now() + 60000;
+    for (;;) {
+      await row.click({ button: 'right' });
+      const shown = await item.waitFor({ timeout: 3000 }).then(() => true, () => false);
+      if (shown) break;
+      await page.keyboard.press('Escape');
+      if (Date.now() > deadline) throw new Error('the explorer menu never offered Knotwise');
+    }
+    await item.click();
+  });
+
+  it('quick picks ask for x, y and weights, numeric columns first with previews', async function () {
+    const input = page.locator('.quick-input-widget input.input');
+    const title = page.locator('.quick-input-widget .quick-input-title');
+    await title.filter({ hasText: 'the x column of mcycle.csv' }).waitFor();
+    // The preview of the first values of `times` (MASS::mcycle starts 2.4, 2.6, 3.2, ...).
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: '2.4, 2.6, 3.2' }).first().waitFor();
+    await input.fill('times');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'the y column' }).waitFor();
+    await input.fill('accel');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'weights' }).waitFor();
+    await page.keyboard.press('Enter');
+  });
+
+  it('the panel appears and explains the chosen df in plain words', async function () {
+    panel = await findPanel();
+    const badge = (await panel.textContent('#kw-chosen-df')) ?? '';
+    assert.match(badge, /^df \d+$/);
+    chosenDf = Number(badge.slice(3));
+    const reason = (await panel.textContent('#kw-reason')) ?? '';
+    assert.match(reason, new RegExp(`One-SE threshold .* The smallest df at or under it is ${chosenDf} `));
+    assert.equal(await panel.locator('figure.kw-figure svg[role="img"]').count(), 7);
+    // The panel's own styles loaded (theme variables applied to the badge).
+    const bg = await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor');
+    assert.notEqual(bg, 'rgba(0, 0, 0, 0)');
+    await page.screenshot({ path: join(artifacts, 'editor-light.png') });
+  });
+
+  it('pressing save writes the curve table and fit record next to the CSV', async function () {
+    await panel.click('#kw-save');
+    await panel.locator('#kw-status', { hasText: 'Saved' }).waitFor();
+    const table = join(workspace, 'mcycle.curve.csv');
+    const record = join(workspace, 'mcycle.fit.json');
+    assert.ok(existsSync(table) && existsSync(record));
+    assert.equal(readFileSync(table, 'utf8').split('\n')[0], 'x,fit,se,ciLower,ciUpper,piLower,piUpper,extrapolated');
+    const rec = JSON.parse(readFileSync(record, 'utf8')) as { format: string; selection: { df: number }; data: { file: string } };
+    assert.equal(rec.format, 'knotwise-fit-record');
+    assert.equal(rec.selection.df, chosenDf);
+    assert.equal(rec.data.file, 'mcycle.csv');
+  });
+
+  it('the panel follows a dark theme', async function () {
+    // Through the command palette, as a person would.
+    const input = page.locator('.quick-input-widget input.input');
+    await page.keyboard.press('F1');
+    await input.waitFor();
+    await input.fill('>Preferences: Color Theme');
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Preferences: Color Theme' }).first().waitFor();
+    await page.keyboard.press('Enter');
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Dark Modern' }).first().waitFor();
+    await input.fill('Dark Modern');
+    await page.keyboard.press('Enter');
+    await page.locator('.monaco-workbench.vs-dark').waitFor({ timeout: 30000 });
+    await page.waitForTimeout(800);
+    await page.screenshot({ path: join(artifacts, 'editor-dark.png') });
+  });
+
+  it('no request left 127.0.0.1', function () {
+    assert.deepEqual(browser.blocked, []);
+  });
+});
