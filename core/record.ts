@@ -1,7 +1,9 @@
 import type { Analysis } from './analysisTypes';
 import type { Diagnostics } from './analysisTypes';
 import type { RejectedRow } from './ingest/select';
+import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from './plan';
 import { formatResample } from './spec';
+import type { TableColumn } from './table/curveTable';
 import type { GridSpec } from './table/grid';
 import { ruleLabel } from './tune/format';
 import type { FitResult } from './types';
@@ -28,6 +30,53 @@ export interface RecordInput {
   readonly extrapolate: boolean;
   readonly tableFile: string;
   readonly tableSha256: string;
+  /** Path of the data file relative to the record's folder, `/`-separated; default: dataFile (the record lies beside the data). */
+  readonly dataPath?: string | undefined;
+  /** The plan the outputs were made with (the command line passes it); default: derived from the other fields. */
+  readonly plan?: FitPlan | undefined;
+  /** What the table holds (the command line passes it). */
+  readonly table?: TableSummary | undefined;
+  /** Every other file written with the table (emitted code, report, figures). */
+  readonly outputs?: readonly OutputEntry[] | undefined;
+  /** Every warning shown for the run (table flags and residual checks). */
+  readonly warnings?: readonly string[] | undefined;
+}
+
+/** What a written curve table holds, for the record. */
+export interface TableSummary {
+  readonly columns: readonly TableColumn[];
+  readonly points: number;
+  /** The grid evaluated (an automatic step resolved to a count grid). */
+  readonly grid: GridSpec;
+  /** First and last x. */
+  readonly range: readonly [number, number];
+  /** Largest gap between the curve and linear interpolation of the printed table, with the automatic step's tolerance and step. */
+  readonly interpolation: { readonly maxError: number; readonly at: number; readonly tolerance: number | null; readonly step: number | null } | null;
+  /** x of the rows outside the data range. */
+  readonly extrapolated: readonly number[];
+  /** x of the rows where the fit is below zero, when the quantity is declared non-negative; else null. */
+  readonly negative: readonly number[] | null;
+}
+
+/** Kinds of files written beside the table and the record. */
+export type OutputKind = 'c' | 'ts' | 'json' | 'report' | 'figure';
+
+/** One written file and the SHA-256 of its bytes. */
+export interface OutputEntry {
+  readonly kind: OutputKind;
+  readonly file: string;
+  readonly sha256: string;
+}
+
+/** Level of the table's confidence and prediction bands (DESIGN.md "Bands"). */
+export const BAND_LEVEL = 0.95;
+
+/** The plan of a record made without one (the editor's save): what the fields say. */
+function derivedPlan(input: RecordInput): FitPlan {
+  const a = input.analysis;
+  const output = { ...DEFAULT_OUTPUT, grid: input.grid, digits: input.digits, extrapolate: input.extrapolate };
+  if (a) return { columns: input.columns, tune: true, options: { ...a.options, candidates: a.tune.candidates.map((c) => c.df), rule: a.tune.selected.rule }, output };
+  return { columns: input.columns, tune: false, options: { family: input.fit.family, candidates: [input.fit.df], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0 }, output };
 }
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -41,12 +90,17 @@ const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
 export function fitRecord(input: RecordInput): Record<string, unknown> {
   const a = input.analysis;
   const f = input.fit;
+  const plan = input.plan ?? derivedPlan(input);
+  const dataPath = input.dataPath ?? input.dataFile;
+  const rule = a ? a.tune.selected.rule : undefined;
+  const t = input.table;
   return {
     format: RECORD_FORMAT,
     version: RECORD_VERSION,
     tool: { name: 'knotwise', version: VERSION },
     data: {
       file: input.dataFile,
+      path: dataPath,
       sha256: input.dataSha256,
       columns: input.columns,
       rowsRead: input.rowsRead,
@@ -55,14 +109,23 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
     },
     spec: {
       family: input.family,
+      tuned: a !== undefined,
       candidates: a ? a.tune.candidates.map((c) => c.df) : [f.df],
+      candidatesDefault: a !== undefined && plan.options.candidates === undefined,
       resample: a ? formatResample(a.tune.resample) : null,
       seed: a ? a.tune.seed : null,
-      rule: a ? ruleLabel(a.tune.selected.rule) : `df:${f.df}`,
+      rule: rule ? ruleLabel(rule) : `df:${f.df}`,
+      tolerancePercent: rule?.kind === 'tol' ? rule.percent : null,
       holdout: a?.options.holdout ?? null,
-      grid: input.grid,
+      grid: plan.output.grid ?? input.grid,
+      gridDefault: plan.output.grid === undefined,
       digits: input.digits,
       extrapolate: input.extrapolate,
+      columns: plan.output.columns ?? null,
+      nonnegative: plan.output.nonnegative,
+      emit: plan.output.emit,
+      report: plan.output.report,
+      level: BAND_LEVEL,
     },
     fit: {
       family: f.family,
@@ -101,7 +164,20 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       influentialRows: input.diagnostics.influential.rows.map((r) => r.line),
       warnings: input.diagnostics.warnings,
     },
-    table: { file: input.tableFile, sha256: input.tableSha256 },
+    table: {
+      file: input.tableFile,
+      sha256: input.tableSha256,
+      columns: t ? t.columns : null,
+      points: t ? t.points : null,
+      grid: t ? t.grid : null,
+      range: t ? t.range : null,
+      interpolation: t ? t.interpolation : null,
+      extrapolated: t ? t.extrapolated : null,
+      negative: t ? t.negative : null,
+    },
+    outputs: input.outputs ?? [],
+    warnings: input.warnings ?? input.diagnostics.warnings,
+    regenerate: fitCommand(plan, dataPath),
     caution: CAUTION,
   };
 }

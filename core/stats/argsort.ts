@@ -6,6 +6,8 @@ const DIGIT_MASK = RADIX - 1;
 const PASSES_PER_WORD = 3;
 /** Below this many values a stable insertion sort beats the radix passes' fixed cost. */
 const INSERTION_LIMIT = 32;
+/** Index of the low 32-bit word of a double in a Uint32Array view (0 on little-endian hosts). */
+const LOW_WORD = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1 ? 0 : 1;
 
 /**
  * Stable argsort of doubles: the row indices ordered by value, ties (and -0 against +0) by
@@ -31,13 +33,13 @@ export function argsortStable(values: Float64Array): Int32Array {
     const v = values[i] as number;
     normalised[i] = v !== v ? NaN : v + 0;
   }
-  const words = new Uint32Array(normalised.buffer); // little-endian: low word first
+  const words = new Uint32Array(normalised.buffer);
   let hiKeys = new Uint32Array(n);
   let loKeys = new Uint32Array(n);
   const histograms = new Int32Array(2 * PASSES_PER_WORD * RADIX);
   for (let i = 0; i < n; i++) {
-    let lo = words[2 * i] as number;
-    let hi = words[2 * i + 1] as number;
+    let lo = words[2 * i + LOW_WORD] as number;
+    let hi = words[2 * i + 1 - LOW_WORD] as number;
     if (hi >>> 31) {
       hi = ~hi >>> 0;
       lo = ~lo >>> 0;

@@ -2,11 +2,14 @@ import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { InputError } from '../errors';
 import type { DesignRows } from './design';
 import { pnorm } from './distributions';
+import { addCrossProducts, ScaledCholesky } from './crossProducts';
 import { GivensQR } from './givensQR';
 import { quadraticFormLowerTail } from './imhof';
 
 /** Below this many rows (with a design) the p-value is exact, as in R's lmtest::dwtest. */
 export const DW_EXACT_LIMIT = 100;
+/** Rows gathered per block of cross products (column-major scratch of BLOCK_ROWS x p). */
+const BLOCK_ROWS = 128;
 /** Eigenvalues of M A M at or below this are the structural zeros of the projection. */
 const EIGEN_TOLERANCE = 1e-10;
 
@@ -68,6 +71,10 @@ export function durbinWatson(residualsInXOrder: Float64Array, design?: DesignRow
   }
   const p = design.p;
   if (p >= n) throw new InputError(`Durbin-Watson needs more rows (${n}) than design columns (${p})`);
+  if (n >= DW_EXACT_LIMIT) {
+    const moments = crossProductMoments(design, n);
+    if (moments) return { statistic, pValue: pnorm((statistic - moments.mean) / Math.sqrt(moments.variance)), method: 'normal' };
+  }
   const qr = new GivensQR(p);
   const row = new Float64Array(p);
   for (let i = 0; i < n; i++) {
@@ -150,7 +157,75 @@ function exactPValue(d: number, design: DesignRows, qr: GivensQR, n: number): nu
   return quadraticFormLowerTail(lambda.subarray(0, count));
 }
 
-/** Exact null mean and variance of d given the design (Durbin & Watson 1971). O(n p^2). */
+/** Mean and variance of d under the null from P = tr(MA) and Q = tr((MA)^2) (Durbin & Watson 1971). */
+function momentsFromTraces(n: number, p: number, trHA: number, trHA2: number, trHAHA: number): { mean: number; variance: number } {
+  // tr A = 2(n - 1) and tr A^2 = 6n - 8 for the first-difference matrix A; with M = I - H,
+  // tr(MA) = tr A - tr(HA) and tr((MA)^2) = tr A^2 - 2 tr(HA^2) + tr(HAHA).
+  const bigP = 2 * (n - 1) - trHA;
+  const bigQ = 2 * (3 * n - 4) - 2 * trHA2 + trHAHA;
+  const mean = bigP / (n - p);
+  const variance = (2 * (bigQ - bigP * mean)) / ((n - p) * (n - p + 2));
+  return { mean, variance };
+}
+
+/**
+ * Null mean and variance of d from cross products gathered in one pass over the rows:
+ * G = X'X, X'AX = sum_i d_i d_i' with d_i = x_i - x_(i-1) (d_0 = d_n = 0), and
+ * X'A^2X = sum_i a_i a_i' with a_i = d_i - d_(i+1), the rows of AX. Then
+ * tr(HA) = tr W, tr(HAHA) = |W|_F^2 and tr(HA^2) = tr V, with W and V the whitened
+ * X'AX and X'A^2X (`ScaledCholesky.whiten`). Undefined when G is too ill-conditioned for
+ * this route (see GRAM_CONDITION_LIMIT). O(n p^2) time, O(p^2 + p BLOCK_ROWS) memory.
+ */
+function crossProductMoments(design: DesignRows, n: number): { mean: number; variance: number } | undefined {
+  const p = design.p;
+  const m = BLOCK_ROWS;
+  const row = new Float64Array(p);
+  const xBlock = new Float64Array(p * m);
+  const dBlock = new Float64Array(p * m);
+  const aBlock = new Float64Array(p * m);
+  const prevRow = new Float64Array(p);
+  const prevDiff = new Float64Array(p); // d_(i-1)
+  const gram = new Float64Array(p * p);
+  const xax = new Float64Array(p * p);
+  const xa2x = new Float64Array(p * p);
+  for (let start = 0; start < n; start += m) {
+    const rows = Math.min(m, n - start);
+    for (let t = 0; t < rows; t++) {
+      const i = start + t;
+      design.row(i, row);
+      for (let k = 0; k < p; k++) {
+        const v = row[k] as number;
+        const d = i === 0 ? 0 : v - (prevRow[k] as number);
+        xBlock[k * m + t] = v;
+        dBlock[k * m + t] = d;
+        // a_(i-1) = d_(i-1) - d_i (zero for i = 0).
+        aBlock[k * m + t] = (prevDiff[k] as number) - d;
+        prevRow[k] = v;
+        prevDiff[k] = d;
+      }
+    }
+    addCrossProducts(xBlock, m, rows, p, gram);
+    addCrossProducts(dBlock, m, rows, p, xax);
+    addCrossProducts(aBlock, m, rows, p, xa2x);
+  }
+  // The last row of AX is a_(n-1) = d_(n-1).
+  addCrossProducts(prevDiff, 1, 1, p, xa2x);
+  const factor = ScaledCholesky.of(gram, p);
+  if (!factor) return undefined;
+  const w = factor.whiten(xax);
+  const v = factor.whiten(xa2x);
+  let trHA = 0;
+  let trHA2 = 0;
+  let trHAHA = 0;
+  for (let a = 0; a < p; a++) {
+    trHA += w[a * p + a] as number;
+    trHA2 += v[a * p + a] as number;
+    for (let b = 0; b < p; b++) trHAHA += (w[a * p + b] as number) ** 2;
+  }
+  return momentsFromTraces(n, p, trHA, trHA2, trHAHA);
+}
+
+/** Exact null mean and variance of d given the design (Durbin & Watson 1971), by Givens QR. O(n p^2). */
 function nullMoments(design: DesignRows, qr: GivensQR, n: number): { mean: number; variance: number } {
   const p = design.p;
   const row = new Float64Array(p);
@@ -189,9 +264,5 @@ function nullMoments(design: DesignRows, qr: GivensQR, n: number): { mean: numbe
   for (let k = 0; k < p; k++) trHA2 += (dPrev[k] as number) * (dPrev[k] as number);
   let trHAHA = 0;
   for (let k = 0; k < p * p; k++) trHAHA += (g[k] as number) * (g[k] as number);
-  const bigP = 2 * (n - 1) - trHA;
-  const bigQ = 2 * (3 * n - 4) - 2 * trHA2 + trHAHA;
-  const mean = bigP / (n - p);
-  const variance = (2 * (bigQ - bigP * mean)) / ((n - p) * (n - p + 2));
-  return { mean, variance };
+  return momentsFromTraces(n, p, trHA, trHA2, trHAHA);
 }

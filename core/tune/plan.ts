@@ -1,4 +1,5 @@
 import { InputError } from '../errors';
+import { argsortStable } from '../stats/argsort';
 import { RandomStream } from './rng';
 import type { ResampleSpec } from './types';
 
@@ -26,12 +27,9 @@ export function checkResampleSpec(spec: ResampleSpec, n: number): void {
   }
 }
 
-/** Row indices sorted by x (ties by row index), O(n log n). */
+/** Row indices sorted by x (ties by row index), by the stable radix argsort `argsortStable`; O(n). */
 export function orderByX(x: Float64Array): Int32Array {
-  const n = x.length;
-  const idx = new Int32Array(n);
-  for (let i = 0; i < n; i++) idx[i] = i;
-  return idx.sort((a, b) => (x[a] as number) - (x[b] as number) || a - b);
+  return argsortStable(x);
 }
 
 /**

@@ -125,6 +125,8 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   it('the panel follows a dark theme', async function () {
     // Through the command palette, as a person would.
     const input = page.locator('.quick-input-widget input.input');
+    // Give the workbench the keyboard (the panel had it after the click on save).
+    await page.locator('.part.sidebar .title-label').first().click();
     await page.keyboard.press('F1');
     await input.waitFor();
     await input.fill('>Preferences: Color Theme');

@@ -24,6 +24,7 @@ import { ExtrapolatingBSplineBasis, naturalKnots } from '../../../core/basis/nat
 import { CancelledError, FitError } from '../../../core/errors';
 import { fitRowBasis } from '../../../core/fit/linearFit';
 import { fitPolynomial } from '../../../core/fit/polynomial';
+import { lambdaForDf, smoothingSplineAtLambda } from '../../../core/fit/smoothingSpline';
 import { prepareData } from '../../../core/fit/prepared';
 import { nullSpace } from '../../../core/linalg/nullSpace';
 import { workerRunner } from '../../../core/node/pool';
@@ -105,11 +106,13 @@ function bruteErrors(d: Data, family: Family, df: number, trainWeights: Float64A
       const fit = fitRowBasis({ x: d.x, y: d.y, w: trainWeights }, basis, z, `brute-force natural spline df ${df}`);
       return errorsOn(test, (i) => fit.fitted[i] as number, d);
     }
-    // Polynomial: a fresh fit on the training rows alone (with multiplicities as weights).
+    // Polynomial and smoothing spline: a fresh fit on the training rows alone (with
+    // multiplicities as weights); the smoothing spline keeps the lambda of the all-row fit.
     const idx: number[] = [];
     for (let i = 0; i < d.x.length; i++) if ((trainWeights[i] as number) > 0) idx.push(i);
     const pick = (a: Float64Array): Float64Array => Float64Array.from(idx, (i) => a[i] as number);
-    const fit = fitPolynomial(prepareData({ x: pick(d.x), y: pick(d.y), w: pick(trainWeights) }), df);
+    const train = { x: pick(d.x), y: pick(d.y), w: pick(trainWeights) };
+    const fit = family === 'smooth' ? smoothingSplineAtLambda(train, lambdaForDf({ x: d.x, y: d.y, w: d.w }, df)) : fitPolynomial(prepareData(train), df);
     return errorsOn(test, (i) => fit.curve.value(d.x[i] as number), d);
   } catch (e) {
     if (e instanceof FitError) return [NaN, NaN, NaN];
@@ -142,7 +145,8 @@ function resampleRows(d: Data, spec: ResampleSpec, seed: number, r: number): { t
 }
 
 function problemOf(d: Data, family: Family, dfs: readonly number[], resample: ResampleSpec, seed: number): ResampleProblem {
-  return { x: d.x, y: d.y, w: d.w, family, dfs, resample, seed, order: orderByX(d.x) };
+  const lambdas = family === 'smooth' ? dfs.map((df) => lambdaForDf({ x: d.x, y: d.y, w: d.w }, df)) : undefined;
+  return { x: d.x, y: d.y, w: d.w, family, dfs, lambdas, resample, seed, order: orderByX(d.x) };
 }
 
 /**
@@ -428,5 +432,16 @@ describe('runners', () => {
     const progress = recorder(3);
     await assert.rejects(inlineRunner.run(p, 20, progress), CancelledError);
     assert.equal(progress.reports.length, 3);
+  });
+});
+
+describe('ResampleEngine with the cubic smoothing spline', () => {
+  it('ResampleEngine(smooth, boot) gives the errors of smoothing splines refitted at the all-row lambda on the bootstrap rows (mcycle, df 4 and 8)', () => {
+    const r = compareWithBruteForce(MCYCLE, 'smooth', [4, 8], { kind: 'boot', resamples: 4 }, 11);
+    assert.ok(r.compared >= 8);
+  });
+  it('ResampleEngine(smooth, cv) gives the errors of smoothing splines refitted on the training folds (cars with weights 1/speed, df 3 and 5)', () => {
+    const r = compareWithBruteForce(CARS_W, 'smooth', [3, 5], { kind: 'cv', folds: 5, repeats: 1 }, 2);
+    assert.ok(r.compared >= 10);
   });
 });

@@ -1,0 +1,78 @@
+/**
+ * A fit plan: everything the command line was asked to do (columns, curve family, tuning,
+ * table grid and format, emitters, report), and the command that does it again. The fit
+ * record stores the plan, so `knotwise check` can rebuild the outputs from the data.
+ */
+import type { AnalysisOptions } from './analysisTypes';
+import type { EmitKind } from './emit/common';
+import type { ColumnChoice } from './ingest/select';
+import { formatResample } from './spec';
+import type { TableColumn } from './table/curveTable';
+import { DEFAULT_DIGITS } from './table/formatCsv';
+import { formatGrid, type GridSpec } from './table/grid';
+import { ruleLabel } from './tune/format';
+
+/** What to write besides the fit: table grid and format, safety flags, emitters, report. */
+export interface OutputOptions {
+  /** Table grid; undefined: DEFAULT_GRID_COUNT points over the data range. */
+  readonly grid?: GridSpec | undefined;
+  readonly extrapolate: boolean;
+  readonly digits: number;
+  /** Table columns asked for; undefined: all. */
+  readonly columns?: readonly TableColumn[] | undefined;
+  /** The quantity cannot be negative: flag table rows where the curve is below zero. */
+  readonly nonnegative: boolean;
+  readonly emit: readonly EmitKind[];
+  readonly report: boolean;
+}
+
+/** Output options when nothing is asked for. */
+export const DEFAULT_OUTPUT: OutputOptions = { extrapolate: false, digits: DEFAULT_DIGITS, nonnegative: false, emit: [], report: false };
+
+/** One run of `knotwise fit`. */
+export interface FitPlan {
+  readonly columns: ColumnChoice;
+  /** False: fit the single df in options.candidates as is; true: tune. */
+  readonly tune: boolean;
+  readonly options: AnalysisOptions;
+  readonly output: OutputOptions;
+}
+
+/** Characters a POSIX shell word may hold without quotes. */
+const PLAIN_WORD = /^[A-Za-z0-9_./:,=@%+-]+$/;
+
+/** A shell word: as is when plain, else in single quotes (a quote inside becomes '\''). */
+export function shellWord(text: string): string {
+  return PLAIN_WORD.test(text) ? text : `'${text.replace(/'/g, `'\\''`)}'`;
+}
+
+/**
+ * The `knotwise fit` command that carries out `plan` on the data at `dataPath` and writes
+ * into the current folder (`--out .`): run it in the folder holding the outputs, with
+ * `dataPath` relative to that folder. Options at their defaults are left out, except the
+ * family, resampling, rule and seed of a tuned fit, which are always spelled out.
+ * Example: fitCommand(plan, '../data/cal.csv') -> "knotwise fit ../data/cal.csv --x rh --y volts --model natural --resample cv:10 --rule 1se --seed 1 --out .".
+ */
+export function fitCommand(plan: FitPlan, dataPath: string): string {
+  const o = plan.options;
+  const w: string[] = ['knotwise', 'fit', shellWord(dataPath), '--x', shellWord(plan.columns.x), '--y', shellWord(plan.columns.y)];
+  if (plan.columns.weights !== undefined) w.push('--weights', shellWord(plan.columns.weights));
+  w.push('--model', o.family);
+  if (plan.tune) {
+    if (o.candidates !== undefined) w.push('--df', o.candidates.join(','));
+    w.push('--resample', formatResample(o.resample), '--rule', ruleLabel(o.rule), '--seed', String(o.seed));
+    if (o.holdout) w.push('--holdout', String(o.holdout));
+  } else {
+    w.push('--df', String(o.candidates?.[0]));
+  }
+  const out = plan.output;
+  if (out.grid !== undefined) w.push('--grid', shellWord(formatGrid(out.grid)));
+  if (out.extrapolate) w.push('--extrapolate');
+  if (out.digits !== DEFAULT_DIGITS) w.push('--digits', String(out.digits));
+  if (out.columns !== undefined) w.push('--columns', out.columns.join(','));
+  if (out.nonnegative) w.push('--nonnegative');
+  if (out.emit.length) w.push('--emit', out.emit.join(','));
+  if (out.report) w.push('--report');
+  w.push('--out', '.');
+  return w.join(' ');
+}
