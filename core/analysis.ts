@@ -22,7 +22,7 @@ export async function analyse(data: XYData, options: AnalysisOptions, runner: Re
   const prepared = prepareData(tuning);
   const { result, fits } = await tuneCurve(
     prepared,
-    { family: options.family, candidates: options.candidates, resample: options.resample, rule: options.rule, seed: options.seed },
+    { family: options.family, candidates: options.candidates, resample: options.resample, rule: options.rule, seed: options.seed, outcome: options.outcome, shape: options.shape, robust: options.robust },
     runner,
     progress,
   );

@@ -1,8 +1,8 @@
-import type { Family, FitResult } from './types';
+import type { Family, FitResult, ModelOptions } from './types';
 import type { ResampleSpec, RuleSpec, TuneResult } from './tune/types';
 
-/** Everything one analysis needs besides the data. */
-export interface AnalysisOptions {
+/** Everything one analysis needs besides the data (ModelOptions: outcome family, shape, robust fitting). */
+export interface AnalysisOptions extends ModelOptions {
   readonly family: Family;
   /** Candidate df; absent means the family's default range. */
   readonly candidates?: readonly number[] | undefined;

@@ -8,6 +8,7 @@ import { lackOfFit } from './stats/lackOfFit';
 import { normalQuantiles } from './stats/normalQuantiles';
 import { shapiroWilk } from './stats/shapiroWilk';
 import { sig } from './tune/format';
+import { orderByX } from './tune/plan';
 import type { FitResult, XYData } from './types';
 
 /** Significance level of the residual checks' warnings (common practice). */
@@ -25,14 +26,21 @@ const QQ_POINTS = 400;
 export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   const n = fit.n;
   const { x, w } = data;
-  const order = Int32Array.from({ length: n }, (_, i) => i).sort((a, b) => (x[a] as number) - (x[b] as number) || a - b);
+  const order = orderByX(x);
+  // x, sqrt(w) and the scaled residuals gathered once in x order, so that the design rows
+  // below read memory in sequence instead of jumping through `order` on every call.
+  const xSorted = new Float64Array(n);
+  const rootW = w ? new Float64Array(n) : undefined;
   const scaled = new Float64Array(n);
   for (let j = 0; j < n; j++) {
     const i = order[j] as number;
-    scaled[j] = (fit.residuals[i] as number) * (w ? Math.sqrt(w[i] as number) : 1);
+    xSorted[j] = x[i] as number;
+    const s = w ? Math.sqrt(w[i] as number) : 1;
+    if (rootW) rootW[j] = s;
+    scaled[j] = (fit.residuals[i] as number) * s;
   }
   const warnings: string[] = [];
-  const design = designInXOrder(fit, x, order, w);
+  const design = designInXOrder(fit, xSorted, rootW);
   const out: { -readonly [K in keyof Diagnostics]: Diagnostics[K] } = { influential: influentialRows(fit.leverage, fit.cooksDistance, fit.df, data.lines), warnings };
   const spread = scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
   if (n >= 3 && spread) {
@@ -44,11 +52,11 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
     const dw = durbinWatson(scaled, design);
     out.durbinWatson = dw;
     if (dw.pValue < CHECK_LEVEL) warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${sig(dw.statistic)}, p = ${sig(dw.pValue, 2)}): the curve may be too stiff, or the readings drift.`);
-    const bp = breuschPagan(scaled, design ?? lineDesign(x, order, w));
+    const bp = breuschPagan(scaled, design ?? lineDesign(xSorted, rootW));
     out.breuschPagan = bp;
     if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${sig(bp.statistic)}, df ${bp.df}, p = ${sig(bp.pValue, 2)}); the bands assume constant spread. Consider weights.`);
   }
-  const lof = lackOfFit(data.x, data.y, w, fit.rss, fit.df);
+  const lof = lackOfFit(data.x, data.y, w, fit.rss, fit.df, order);
   if (lof) {
     out.lackOfFit = lof;
     if (lof.pValue < CHECK_LEVEL) warnings.push(`The curve misses the means of replicated readings more than their scatter explains (lack-of-fit F = ${sig(lof.F)}, p = ${sig(lof.pValue, 2)}); a more flexible curve may be needed.`);
@@ -69,32 +77,30 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   return out;
 }
 
-/** Model-matrix rows of a regression basis in x order (scaled by sqrt(w)), or undefined for the smoothing spline. */
-function designInXOrder(fit: FitResult, x: Float64Array, order: Int32Array, w: Float64Array | undefined): DesignRows | undefined {
+/** Model-matrix rows of a regression basis at x sorted ascending (scaled by sqrt(w)), or undefined for the smoothing spline. */
+function designInXOrder(fit: FitResult, xSorted: Float64Array, rootW: Float64Array | undefined): DesignRows | undefined {
   const curve = fit.curve;
   if (!(curve instanceof RowBasisCurve)) return undefined;
   return {
     p: curve.designSize,
     row(j: number, out: Float64Array): void {
-      const i = order[j] as number;
-      curve.designRow(x[i] as number, out);
-      if (w) {
-        const s = Math.sqrt(w[i] as number);
+      curve.designRow(xSorted[j] as number, out);
+      if (rootW) {
+        const s = rootW[j] as number;
         for (let k = 0; k < out.length; k++) out[k] = (out[k] as number) * s;
       }
     },
   };
 }
 
-/** [1, x] rows in x order: the Breusch-Pagan regressors when the model has no finite design. */
-function lineDesign(x: Float64Array, order: Int32Array, w: Float64Array | undefined): DesignRows {
+/** [1, x] rows at x sorted ascending (scaled by sqrt(w)): the Breusch-Pagan regressors when the model has no finite design. */
+function lineDesign(xSorted: Float64Array, rootW: Float64Array | undefined): DesignRows {
   return {
     p: 2,
     row(j: number, out: Float64Array): void {
-      const i = order[j] as number;
-      const s = w ? Math.sqrt(w[i] as number) : 1;
+      const s = rootW ? (rootW[j] as number) : 1;
       out[0] = s;
-      out[1] = s * (x[i] as number);
+      out[1] = s * (xSorted[j] as number);
     },
   };
 }

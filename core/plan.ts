@@ -36,6 +36,8 @@ export interface FitPlan {
   readonly tune: boolean;
   readonly options: AnalysisOptions;
   readonly output: OutputOptions;
+  /** Binomial outcome: the column holding each row's number of trials (y holds the successes). */
+  readonly trials?: string | undefined;
 }
 
 /** Characters a POSIX shell word may hold without quotes. */
@@ -58,6 +60,12 @@ export function fitCommand(plan: FitPlan, dataPath: string): string {
   const w: string[] = ['knotwise', 'fit', shellWord(dataPath), '--x', shellWord(plan.columns.x), '--y', shellWord(plan.columns.y)];
   if (plan.columns.weights !== undefined) w.push('--weights', shellWord(plan.columns.weights));
   w.push('--model', o.family);
+  // Outcome family, trials, shapes, robust fitting (core/fit/model.ts).
+  if (o.outcome !== undefined && o.outcome !== 'gaussian') w.push('--family', o.outcome);
+  if (plan.trials !== undefined) w.push('--trials', shellWord(plan.trials));
+  if (o.shape !== undefined && o.shape.length > 0) w.push('--shape', o.shape.join(','));
+  if (o.robust === true) w.push('--robust');
+  else if (o.robust) w.push('--huber-k', String(o.robust.k));
   if (plan.tune) {
     if (o.candidates !== undefined) w.push('--df', o.candidates.join(','));
     w.push('--resample', formatResample(o.resample), '--rule', ruleLabel(o.rule), '--seed', String(o.seed));

@@ -94,6 +94,8 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
   const dataPath = input.dataPath ?? input.dataFile;
   const rule = a ? a.tune.selected.rule : undefined;
   const t = input.table;
+  // The df asked for (a smoothing spline's achieved trace differs from it in the last digits).
+  const askedDf = a ? f.df : (plan.options.candidates?.[0] ?? f.df);
   return {
     format: RECORD_FORMAT,
     version: RECORD_VERSION,
@@ -110,11 +112,11 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
     spec: {
       family: input.family,
       tuned: a !== undefined,
-      candidates: a ? a.tune.candidates.map((c) => c.df) : [f.df],
+      candidates: a ? a.tune.candidates.map((c) => c.df) : [askedDf],
       candidatesDefault: a !== undefined && plan.options.candidates === undefined,
       resample: a ? formatResample(a.tune.resample) : null,
       seed: a ? a.tune.seed : null,
-      rule: rule ? ruleLabel(rule) : `df:${f.df}`,
+      rule: rule ? ruleLabel(rule) : `df:${askedDf}`,
       tolerancePercent: rule?.kind === 'tol' ? rule.percent : null,
       holdout: a?.options.holdout ?? null,
       grid: plan.output.grid ?? input.grid,
@@ -126,6 +128,13 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       emit: plan.output.emit,
       report: plan.output.report,
       level: BAND_LEVEL,
+      // Outcome family, shapes, robust fitting and trials column exactly as asked (read back by core/recordPlan.ts).
+      model: {
+        outcome: plan.options.outcome ?? null,
+        shape: plan.options.shape ?? [],
+        robust: plan.options.robust === true ? true : plan.options.robust ? { k: plan.options.robust.k } : null,
+        trials: plan.trials ?? null,
+      },
     },
     fit: {
       family: f.family,

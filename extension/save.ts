@@ -11,6 +11,7 @@ import { diagnose } from '../core/diagnose';
 import { InputError } from '../core/errors';
 import { prepareData } from '../core/fit/prepared';
 import type { RejectedRow } from '../core/ingest/select';
+import { recordedFiles } from '../core/node/outputs';
 import { fitRecord, RECORD_FORMAT } from '../core/record';
 import { curveTable } from '../core/table/curveTable';
 import { curveTableCsv } from '../core/table/formatCsv';
@@ -118,7 +119,8 @@ async function readText(uri: vscode.Uri): Promise<string | undefined> {
 
 /**
  * True when `target` does not exist or Knotwise wrote it: a fit record (its format field),
- * or a table whose SHA-256 the neighbouring record lists (the command line's rule).
+ * or a file the neighbouring record lists by name with the SHA-256 of its current bytes
+ * (the command line's rule, core/node/outputs.ts).
  */
 export async function writtenByKnotwise(target: vscode.Uri, recordUri: vscode.Uri): Promise<boolean> {
   const text = await readText(target);
@@ -126,9 +128,10 @@ export async function writtenByKnotwise(target: vscode.Uri, recordUri: vscode.Ur
   const recordText = target.toString() === recordUri.toString() ? text : await readText(recordUri);
   if (recordText === undefined) return false;
   try {
-    const rec = JSON.parse(recordText) as { format?: unknown; table?: { sha256?: unknown } };
+    const rec = JSON.parse(recordText) as { format?: unknown };
     if (rec.format !== RECORD_FORMAT) return false;
-    return target.toString() === recordUri.toString() || rec.table?.sha256 === sha256(text);
+    const name = target.path.slice(target.path.lastIndexOf('/') + 1);
+    return target.toString() === recordUri.toString() || recordedFiles(rec).get(name) === sha256(text);
   } catch {
     return false;
   }
@@ -156,6 +159,9 @@ export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer
   const folder = outputFolder(input.dataUri, input.settings.outputFolder);
   const tableUri = vscode.Uri.joinPath(folder, out.table.name);
   const recordUri = vscode.Uri.joinPath(folder, out.record.name);
+  for (const u of [tableUri, recordUri]) {
+    if (u.toString() === input.dataUri.toString()) throw new InputError(`the output name ${out.table.name === out.record.name ? out.table.name : u.path.slice(u.path.lastIndexOf('/') + 1)} would replace the data file; change knotwise.output.tableName or recordName`);
+  }
   const foreign: string[] = [];
   for (const u of [tableUri, recordUri]) if (!(await writtenByKnotwise(u, recordUri))) foreign.push(vscode.workspace.asRelativePath(u));
   if (foreign.length) {

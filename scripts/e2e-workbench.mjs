@@ -130,6 +130,7 @@ export async function startCodeServer({ runDir, settings = {}, timeoutMs = 60000
         'update.mode': 'none',
         'workbench.enableExperiments': false,
         'chat.commandCenter.enabled': false,
+        'git.openRepositoryInParentFolders': 'never',
         ...settings,
       },
       null,

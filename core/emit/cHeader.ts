@@ -37,9 +37,9 @@ function macroValue(v: number, digits: number): string {
   return lit.startsWith('-') ? `(${lit})` : lit;
 }
 
-/** Keeps generated text from closing the block comment early. */
+/** Keeps generated text from closing the block comment early or opening a nested one (gcc -Wcomment). */
 function commentSafe(line: string): string {
-  return line.replace(/\*\//g, '* /');
+  return line.replace(/\*\//g, '* /').replace(/\/\*/g, '/ *');
 }
 
 /**

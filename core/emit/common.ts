@@ -3,6 +3,7 @@
  * each table value (the same digits as the CSV, so a program reads the table's numbers).
  */
 import { FLAG_COLUMNS, type CurveTable, type TableColumn } from '../table/curveTable';
+import { shellWord } from '../plan';
 import { formatNumber } from '../table/formatCsv';
 
 /** The code emitters: C header, TypeScript module, JSON. */
@@ -21,6 +22,8 @@ export interface EmitInput {
   readonly source: { readonly file: string; readonly sha256: string };
   /** The curve in words, e.g. "natural cubic regression spline, df 5". */
   readonly curve: string;
+  /** Names of the x and y columns in the data. */
+  readonly labels: { readonly x: string; readonly y: string };
   /** Smallest and largest x of the data the curve was fitted to. */
   readonly dataRange: readonly [number, number];
   /** Step of a uniform grid; undefined when the x are not evenly spaced. */
@@ -98,11 +101,11 @@ export function noticeLines(input: EmitInput, width = 92): string[] {
     `Curve: ${input.curve}; ${rows}`,
     `Data range of x: ${formatNumber(input.dataRange[0], input.digits)} to ${formatNumber(input.dataRange[1], input.digits)}.`,
     'Columns:',
-    ...t.columns.map((c) => `  ${c}: ${COLUMN_WORDS[c]}`),
+    ...t.columns.map((c) => `  ${c}: ${c === 'x' ? oneLine(input.labels.x) : c === 'fit' ? `fitted ${oneLine(input.labels.y)}` : COLUMN_WORDS[c]}`),
     'Regenerate (run in the folder holding this file):',
     `  ${oneLine(input.regenerate)}`,
     'Check that it is current:',
-    `  knotwise check ${oneLine(input.recordFile)}`,
+    `  knotwise check ${shellWord(oneLine(input.recordFile))}`,
     ...wrap(`Caution: ${input.caution}`, width),
   ];
 }

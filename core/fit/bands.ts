@@ -1,5 +1,6 @@
 import { qt } from '../stats/distributions';
 import type { FitResult } from '../types';
+import { clipNonnegative, LinkCurve, linkBandsAt } from './linkCurve';
 
 /** The fitted curve with pointwise bands at a set of x. */
 export interface Bands {
@@ -25,6 +26,8 @@ export interface Bands {
  * Example: bandsAt(fit, [1, 2, 3]).ciUpper.
  */
 export function bandsAt(fit: FitResult, xs: ArrayLike<number>, level = 0.95): Bands {
+  // Poisson and binomial fits: bands on the link scale, mapped back (core/fit/linkCurve.ts).
+  if (fit.curve instanceof LinkCurve) return linkBandsAt(fit.curve, xs, level);
   const m = xs.length;
   const t = fit.residualDf > 0 ? qt(0.5 + level / 2, fit.residualDf) : NaN;
   const out = {
@@ -51,5 +54,7 @@ export function bandsAt(fit: FitResult, xs: ArrayLike<number>, level = 0.95): Ba
     out.piUpper[i] = f + t * pe;
     out.extrapolated[i] = x < fit.curve.lower || x > fit.curve.upper ? 1 : 0;
   }
+  // A curve constrained non-negative: lower limits below 0 are raised to 0 within the data range.
+  if (fit.model?.shape.includes('nonnegative')) clipNonnegative(out);
   return out;
 }

@@ -6,25 +6,25 @@
 import { parseArgs } from 'node:util';
 import { existsSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
-import { analyse } from '../analysis';
-import type { Analysis, AnalysisOptions } from '../analysisTypes';
-import { diagnose } from '../diagnose';
+import type { AnalysisOptions } from '../analysisTypes';
+import { parseEmit } from '../emit/index';
 import { CancelledError, InputError } from '../errors';
-import { fitCurve } from '../fit/index';
-import { prepareData } from '../fit/prepared';
-import { selectColumns } from '../ingest/select';
+import type { FitPlan, OutputOptions } from '../plan';
+import { CAUTION } from '../record';
 import { parseDfList, parseFamily, parseResample, parseRule, parseSeed } from '../spec';
-import { checkInRange, defaultGrid, gridPoints, parseGrid } from '../table/grid';
-import { curveTable } from '../table/curveTable';
+import { parseColumns } from '../table/columns';
+import { parseGrid } from '../table/grid';
 import { formatResample } from '../spec';
 import { sig } from '../tune/format';
-import type { FitResult } from '../types';
-import { workerRunner } from './pool';
-import { readCsvFile } from './readCsv';
+import { isPlainModel, parseOutcome, resolveModel } from '../fit/model';
+import { modelReportJson, modelSpecJson } from '../fit/modelJson';
+import { parseShapeList } from '../fit/shape';
+import type { FitResult, ModelOptions } from '../types';
 import { VERSION } from '../version';
-import { fitRecord } from '../record';
-import { curveTableCsv, DEFAULT_DIGITS } from '../table/formatCsv';
-import { outputNames, writeDeliverables } from './outputs';
+import { DEFAULT_DIGITS } from '../table/formatCsv';
+import { runCheck } from './check';
+import { writeOutputs } from './outputs';
+import { runPipeline } from './pipeline';
 
 const USAGE = `knotwise ${VERSION}: smooth curves and curve tables from measured CSV data
 
@@ -33,6 +33,13 @@ Usage:
 
 Options:
   --weights <column>        prior weights (positive)
+  --family gaussian|poisson|binomial   outcome: least squares (default), counts (log link),
+                            proportions or 0/1 outcomes (logit link); fitted by IRLS
+  --trials <column>         binomial: number of trials per row (y is then the successes)
+  --shape <list>            comma list of increasing, decreasing, nonnegative, convex, concave:
+                            guaranteed everywhere in the data range (natural spline only)
+  --robust                  Huber M-estimation (k = 1.345), down-weighted rows listed by line
+  --huber-k <k>             Huber tuning constant (implies --robust)
   --model natural|poly|smooth   curve family (default natural)
   --df <k | a,b,c | a..b>   one df (fit as is) or candidates to tune over
   --resample boot:<B> | cv:<K>[x<R>] | loo | gcv   how errors are estimated (default boot:50)
@@ -40,13 +47,24 @@ Options:
   --seed <int>              random seed (default 1)
   --holdout <fraction>      rows held out (stratified by x) and checked once at the end
   --grid <start>:<stop>:<count> | <start>:<stop>:step=<h> | data | <x1,x2,...>
+         | auto:<tolerance> | <start>:<stop>:auto=<tolerance>
+                            table grid; auto: the coarsest even step at which linear
+                            interpolation stays within the tolerance (units of y) of the curve
   --extrapolate             allow table points outside the data range (flagged)
+  --columns <x,fit,se,...>  table columns (default all: x,fit,se,ciLower,ciUpper,piLower,piUpper,extrapolated)
+  --nonnegative             the quantity cannot be negative: flag rows where the curve is below zero
   --out <folder>            write the curve table (<name>.curve.csv) and fit record (<name>.fit.json) there
   --save                    write them next to the data file
+  --emit c,ts,json          also write code: C header (<name>.curve.h), TypeScript (<name>.curve.ts), JSON (<name>.curve.json)
+  --report                  also write a review report (<name>.report.md with SVG figures)
   --digits <n>              significant digits in the table (default 8)
   --force                   replace output files that Knotwise did not write
   --json                    print one JSON object instead of the summary
 
+  knotwise check [<record.fit.json> | <folder> ...]
+                            rebuild each recorded table from its data and compare: exit 0 when
+                            current, 1 when data or outputs changed, 2 on error; no argument:
+                            every *.fit.json under the current folder
   knotwise demo [--out <folder>]   fit a bundled example and write its outputs (default ./knotwise-demo)
   --help                    this text`;
 
@@ -56,13 +74,14 @@ interface FitArgs {
   readonly x: string;
   readonly y: string;
   readonly weights?: string | undefined;
+  /** Binomial outcome: column with the number of trials of each row. */
+  readonly trials?: string | undefined;
   readonly json: boolean;
   readonly tune: boolean;
   readonly options: AnalysisOptions;
-  readonly grid?: string | undefined;
-  readonly extrapolate: boolean;
+  /** Table grid and format, emitters, report (see core/plan.ts). */
+  readonly output: OutputOptions;
   readonly out?: string | undefined;
-  readonly digits: number;
   readonly force: boolean;
 }
 
@@ -74,6 +93,11 @@ function parseFitArgs(argv: string[]): FitArgs {
       x: { type: 'string' },
       y: { type: 'string' },
       weights: { type: 'string' },
+      family: { type: 'string' },
+      trials: { type: 'string' },
+      shape: { type: 'string' },
+      robust: { type: 'boolean' },
+      'huber-k': { type: 'string' },
       model: { type: 'string' },
       df: { type: 'string' },
       resample: { type: 'string' },
@@ -87,6 +111,10 @@ function parseFitArgs(argv: string[]): FitArgs {
       save: { type: 'boolean' },
       digits: { type: 'string' },
       force: { type: 'boolean' },
+      columns: { type: 'string' },
+      nonnegative: { type: 'boolean' },
+      emit: { type: 'string' },
+      report: { type: 'boolean' },
     },
   });
   const file = positionals[0];
@@ -97,17 +125,25 @@ function parseFitArgs(argv: string[]): FitArgs {
   const tune = !(dfs && dfs.length === 1 && values.resample === undefined && values.rule === undefined && values.holdout === undefined);
   const holdout = values.holdout !== undefined ? Number(values.holdout) : undefined;
   if (holdout !== undefined && !(holdout > 0 && holdout <= 0.5)) throw new InputError(`--holdout must be a fraction above 0 and at most 0.5; got "${values.holdout}"`);
+  const model = parseModelFlags(values);
   return {
     file,
     x: values.x,
     y: values.y,
     weights: values.weights,
+    trials: values.trials,
     json: values.json === true,
     tune,
-    grid: values.grid,
-    extrapolate: values.extrapolate === true,
+    output: {
+      grid: values.grid !== undefined ? parseGrid(values.grid) : undefined,
+      extrapolate: values.extrapolate === true,
+      digits: parseDigits(values.digits ?? String(DEFAULT_DIGITS)),
+      columns: values.columns !== undefined ? parseColumns(values.columns) : undefined,
+      nonnegative: values.nonnegative === true,
+      emit: values.emit !== undefined ? parseEmit(values.emit) : [],
+      report: values.report === true,
+    },
     out: values.out ?? (values.save ? dirname(file) : undefined),
-    digits: parseDigits(values.digits ?? String(DEFAULT_DIGITS)),
     force: values.force === true,
     options: {
       family: parseFamily(values.model ?? 'natural'),
@@ -116,8 +152,28 @@ function parseFitArgs(argv: string[]): FitArgs {
       rule: parseRule(values.rule ?? '1se'),
       seed: parseSeed(values.seed ?? '1'),
       holdout,
+      ...model,
     },
   };
+}
+
+/** --family, --trials, --shape, --robust, --huber-k as model options (checked against --model). */
+function parseModelFlags(values: { family?: string | undefined; trials?: string | undefined; shape?: string | undefined; robust?: boolean | undefined; 'huber-k'?: string | undefined; model?: string | undefined }): ModelOptions {
+  const outcome = values.family !== undefined ? parseOutcome(values.family) : undefined;
+  if (values.trials !== undefined && outcome !== 'binomial') throw new InputError('--trials needs --family binomial');
+  let robust: ModelOptions['robust'];
+  if (values['huber-k'] !== undefined) {
+    const k = Number(values['huber-k']);
+    if (!(k > 0) || !Number.isFinite(k)) throw new InputError(`--huber-k must be a positive number; got "${values['huber-k']}"`);
+    robust = { k };
+  } else if (values.robust === true) robust = true;
+  const options: ModelOptions = {
+    ...(outcome !== undefined ? { outcome } : {}),
+    ...(values.shape !== undefined ? { shape: parseShapeList(values.shape) } : {}),
+    ...(robust !== undefined ? { robust } : {}),
+  };
+  resolveModel(parseFamily(values.model ?? 'natural'), options);
+  return options;
 }
 
 function parseDigits(text: string): number {
@@ -157,67 +213,20 @@ function fitJson(fit: FitResult): Record<string, unknown> {
   };
 }
 
-/**
- * Errors raised while fitting know the row but not the file, and name the columns by role
- * (x, y, weights): give them the file and the CSV's own column names.
- */
-function placed(e: unknown, file: string, labels: { readonly x: string; readonly y: string; readonly weights?: string }): unknown {
-  if (!(e instanceof InputError) || e.place.file !== undefined) return e;
-  const role = e.place.column;
-  const column = role === 'x' ? labels.x : role === 'y' ? labels.y : role === 'weights' ? labels.weights : role;
-  return new InputError(e.message, { file, line: e.place.line, column });
-}
-
 async function runFit(argv: string[]): Promise<number> {
   const args = parseFitArgs(argv);
-  const table = await readCsvFile(args.file);
-  const sel = selectColumns(table, { x: args.x, y: args.y, weights: args.weights }, args.file);
-  let fit: FitResult;
-  let analysis: Analysis | undefined;
-  try {
-    if (args.tune) {
-      analysis = await analyse(sel.data, args.options, workerRunner());
-      fit = analysis.chosen;
-    } else {
-      fit = fitCurve(sel.data, { family: args.options.family, df: (args.options.candidates as number[])[0] as number });
-    }
-  } catch (e) {
-    throw placed(e, args.file, sel.labels);
+  if (args.out === undefined && (args.output.emit.length > 0 || args.output.report)) {
+    throw new InputError('--emit and --report write files: add --out <folder> or --save');
   }
-  const diagnostics = analysis ? analysis.diagnostics : diagnose(sel.data, fit);
-  const sorted = prepareData(sel.data).sortedX;
-  const grid = args.grid ? parseGrid(args.grid) : defaultGrid(sorted);
-  const points = gridPoints(grid, sorted);
-  const outside = checkInRange(points, fit.curve.lower, fit.curve.upper, args.extrapolate);
-  const tableOut = curveTable(fit, points);
-  let written: { table: string; record: string } | undefined;
+  const plan: FitPlan = { columns: { x: args.x, y: args.y, weights: args.weights }, tune: args.tune, options: args.options, output: args.output, ...(args.trials !== undefined ? { trials: args.trials } : {}) };
+  const run = await runPipeline(args.file, plan, args.out ?? dirname(args.file));
+  const { table, selection: sel, analysis, fit, diagnostics, deliverables } = run;
+  const tableOut = deliverables.table;
+  const outside = deliverables.summary.extrapolated.length;
+  let written: { table: string; record: string; files: string[] } | undefined;
   if (args.out !== undefined) {
-    const tableText = curveTableCsv(tableOut, args.digits);
-    written = writeDeliverables(args.out, args.file, {
-      table: tableText,
-      record: (tableSha) =>
-        JSON.stringify(
-          fitRecord({
-            dataFile: basename(args.file),
-            dataSha256: table.sha256,
-            columns: sel.labels,
-            rowsRead: table.rowCount,
-            rowsUsed: sel.data.x.length,
-            rejected: sel.rejected,
-            family: args.options.family,
-            analysis,
-            fit,
-            diagnostics,
-            grid,
-            digits: args.digits,
-            extrapolate: args.extrapolate,
-            tableFile: outputNames(args.file).table,
-            tableSha256: tableSha,
-          }),
-          null,
-          2,
-        ) + '\n',
-    }, args.force);
+    const files = writeOutputs(args.out, deliverables.files, args.file, args.force);
+    written = { table: files[0] as string, record: files[files.length - 1] as string, files };
   }
   if (args.json) {
     const out: Record<string, unknown> = {
@@ -231,9 +240,20 @@ async function runFit(argv: string[]): Promise<number> {
         rowsUsed: sel.data.x.length,
         rejected: sel.rejected,
       },
-      fit: fitJson(fit),
-      table: { columns: tableOut.columns, rows: tableOut.rows.map((r) => r.map(finite)), extrapolatedPoints: outside },
+      model: modelSpecJson(args.options, args.trials),
+      fit: { ...fitJson(fit), model: modelReportJson(fit.model) },
+      table: {
+        columns: tableOut.columns,
+        rows: tableOut.rows.map((r) => r.map(finite)),
+        extrapolatedPoints: outside,
+        grid: deliverables.summary.grid,
+        interpolation: deliverables.summary.interpolation,
+        negativePoints: deliverables.summary.negative === null ? null : deliverables.summary.negative.length,
+      },
       diagnostics,
+      warnings: deliverables.warnings,
+      regenerate: deliverables.regenerate,
+      caution: CAUTION,
     };
     if (written) out.written = written;
     if (analysis) {
@@ -260,14 +280,34 @@ async function runFit(argv: string[]): Promise<number> {
       if (analysis.tune.holdout) lines.push(`Held-out rows: ${analysis.tune.holdout.rows}, RMSE ${sig(analysis.tune.holdout.rmse)}${analysis.tune.holdout.warning ? ` - ${analysis.tune.holdout.warning}` : ''}`);
     }
     lines.push(`Fit: ${fit.family} df ${sig(fit.df, 4)}, sigma ${sig(fit.sigma)}, R² ${sig(fit.r2, 4)}, LOO RMSE ${sig(fit.looRmse)}, GCV ${sig(fit.gcv)}`);
+    if (!isPlainModel(args.options)) lines.push(modelLine(fit, args.trials));
     for (const note of fit.notes) lines.push(`Note: ${note}`);
-    for (const w of diagnostics.warnings) lines.push(`Warning: ${w}`);
-    if (outside) lines.push(`Warning: ${outside} table point(s) are extrapolated beyond the data range.`);
-    if (written) lines.push(`Wrote ${written.table}`, `Wrote ${written.record}`);
-    lines.push('Caution: an empirical fit is not a certified calibration; safety-related use must follow the applicable standards and qualified review.');
+    const ip = deliverables.summary.interpolation;
+    lines.push(
+      `Table: ${deliverables.summary.points} rows` +
+        (ip ? `; linear interpolation between rows stays within ${sig(ip.maxError)} of the curve${ip.tolerance !== null ? ` (automatic step ${sig(ip.step ?? NaN, 6)}, tolerance ${sig(ip.tolerance)})` : ''}` : ''),
+    );
+    for (const w of deliverables.warnings) lines.push(`Warning: ${w}`);
+    if (written) for (const f of written.files) lines.push(`Wrote ${f}`);
+    lines.push(`Caution: ${CAUTION}`);
     process.stdout.write(lines.join('\n') + '\n');
   }
   return 0;
+}
+
+/** One summary line on the outcome family, shape and robust fitting of a fit, with down-weighted rows by line. */
+function modelLine(fit: FitResult, trials: string | undefined): string {
+  const m = fit.model;
+  if (!m) return 'Model: Gaussian outcome, least squares';
+  const parts = [`${m.outcome} outcome (${m.link} link)${trials !== undefined ? `, trials from column "${trials}"` : ''}`];
+  if (m.glm) parts.push(`deviance ${sig(m.glm.deviance)} (null ${sig(m.glm.nullDeviance)}), Pearson dispersion ${sig(m.glm.dispersion)}`);
+  if (m.constraints) parts.push(`shape ${m.shape.join(' + ')}: ${m.constraints.active} of ${m.constraints.total} constraints active`);
+  if (m.robust) {
+    const rows = m.robust.downweighted.rows;
+    parts.push(`Huber k = ${m.robust.k}, scale ${sig(m.robust.scale)}, ${m.robust.downweighted.total} rows down-weighted` + (rows.length ? ` (lines ${rows.slice(0, 10).map((r) => `${r.line}: ${sig(r.weight, 2)}`).join(', ')}${m.robust.downweighted.total > 10 ? ', ...' : ''})` : ''));
+  }
+  if (!m.converged) parts.push('NOT CONVERGED');
+  return `Model: ${parts.join('; ')}`;
 }
 
 /** Fits the bundled humidity-sensor example (invented data) and writes its deliverables. */
@@ -277,7 +317,9 @@ async function runDemo(argv: string[]): Promise<number> {
   if (!example) throw new InputError('the bundled example examples/humidity-sensor.csv was not found');
   const out = resolve(values.out ?? 'knotwise-demo');
   process.stdout.write(`Demo: invented humidity-sensor calibration data (${example})\n`);
-  return runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resample', 'cv:10x5', '--rule', '1se', '--grid', '10:92.5:step=2.5', '--out', out]);
+  const code = await runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resample', 'cv:10x5', '--rule', '1se', '--grid', '10:92.5:step=2.5', '--nonnegative', '--emit', 'c,ts,json', '--report', '--out', out]);
+  process.stdout.write(`Outputs are in ${out}: open ${join(out, 'humidity-sensor.report.md')} for the review report; check them with: knotwise check ${out}\n`);
+  return code;
 }
 
 /** Runs the command line; returns the exit code. */
@@ -289,6 +331,8 @@ export async function main(argv: string[]): Promise<number> {
         return await runFit(rest);
       case 'demo':
         return await runDemo(rest);
+      case 'check':
+        return await runCheck(rest);
       case undefined:
       case '--help':
       case '-h':

@@ -1,53 +1,74 @@
 import { createHash } from 'node:crypto';
-import { mkdirSync } from 'node:fs';
-import { basename, extname, join } from 'node:path';
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { basename, extname, join, resolve } from 'node:path';
+import type { OutputFile } from '../deliver';
 import { InputError } from '../errors';
 import { RECORD_FORMAT } from '../record';
 import { readIfExists, writeFileAtomic } from './atomicWrite';
 
-/** File names of the deliverables for a data file: `<stem>.curve.csv` and `<stem>.fit.json`. */
+/** File names of the table and the record for a data file: `<stem>.curve.csv` and `<stem>.fit.json`. */
 export function outputNames(dataFile: string): { table: string; record: string } {
   const stem = basename(dataFile, extname(dataFile));
   return { table: `${stem}.curve.csv`, record: `${stem}.fit.json` };
 }
 
+/** SHA-256 (FIPS 180-4) of a text's UTF-8 bytes or of a buffer, as hex. */
 export function sha256(text: string | Buffer): string {
   return createHash('sha256').update(text).digest('hex');
 }
 
+/** The files a fit record lists with their SHA-256: the table and every other output, by file name. */
+export function recordedFiles(record: unknown): Map<string, string> {
+  const out = new Map<string, string>();
+  const rec = record as { table?: { file?: unknown; sha256?: unknown }; outputs?: unknown };
+  if (typeof rec.table?.file === 'string' && typeof rec.table.sha256 === 'string') out.set(rec.table.file, rec.table.sha256);
+  if (Array.isArray(rec.outputs)) {
+    for (const o of rec.outputs as { file?: unknown; sha256?: unknown }[]) if (typeof o?.file === 'string' && typeof o.sha256 === 'string') out.set(o.file, o.sha256);
+  }
+  return out;
+}
+
 /**
- * True when `path` does not exist or was written by Knotwise: a fit record (its `format`
- * field), or a table whose SHA-256 the neighbouring record lists.
+ * True when `path` does not exist or was written by Knotwise: the fit record itself (its
+ * `format` field), or a file the neighbouring record lists by name with the SHA-256 of its
+ * current bytes. A listed file edited by hand is no longer Knotwise's.
  */
 export function isOurs(path: string, recordPath: string): boolean {
-  const text = readIfExists(path);
-  if (text === undefined) return true;
+  if (!existsSync(path)) return true;
   const recordText = readIfExists(recordPath);
   if (recordText === undefined) return false;
   try {
-    const rec = JSON.parse(recordText) as { format?: string; table?: { sha256?: string } };
+    const rec = JSON.parse(recordText) as { format?: unknown };
     if (rec.format !== RECORD_FORMAT) return false;
-    return path === recordPath || rec.table?.sha256 === sha256(text);
+    if (resolve(path) === resolve(recordPath)) return true;
+    return recordedFiles(rec).get(basename(path)) === sha256(readFileSync(path));
   } catch {
     return false;
   }
 }
 
 /**
- * Writes the table and the record into `folder` atomically. Refuses (InputError) to replace
- * a file Knotwise did not write unless `force`. Returns the written paths.
+ * Writes a fit's files (the record last) into `folder`, each atomically. Refuses
+ * (InputError) before writing anything when a file would replace the data file, or would
+ * replace a file Knotwise did not write unless `force`. Returns the written paths in order.
  */
-export function writeDeliverables(folder: string, dataFile: string, files: { table: string; record: (tableSha: string) => string }, force: boolean): { table: string; record: string } {
-  mkdirSync(folder, { recursive: true });
-  const names = outputNames(dataFile);
-  const tablePath = join(folder, names.table);
-  const recordPath = join(folder, names.record);
-  for (const p of [tablePath, recordPath]) {
+export function writeOutputs(folder: string, files: readonly OutputFile[], dataFile: string, force: boolean): string[] {
+  const record = files.find((f) => f.kind === 'record');
+  if (!record) throw new Error('writeOutputs: no fit record among the files');
+  const recordPath = join(folder, record.name);
+  const data = resolve(dataFile);
+  for (const f of files) {
+    const p = join(folder, f.name);
+    if (resolve(p) === data) throw new InputError(`${p} is the data file; refusing to overwrite it`);
     if (!force && !isOurs(p, recordPath)) {
       throw new InputError(`${p} exists and was not written by Knotwise; refusing to overwrite it (use --force to replace it)`);
     }
   }
-  writeFileAtomic(tablePath, files.table);
-  writeFileAtomic(recordPath, files.record(sha256(files.table)));
-  return { table: tablePath, record: recordPath };
+  mkdirSync(folder, { recursive: true });
+  const order = [...files.filter((f) => f !== record), record];
+  return order.map((f) => {
+    const p = join(folder, f.name);
+    writeFileAtomic(p, f.text);
+    return p;
+  });
 }

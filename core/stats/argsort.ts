@@ -21,25 +21,23 @@ const LOW_WORD = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1 ? 0 : 1;
  * non-negative values, all bits flipped for negative ones), in six 11-bit passes over the
  * two 32-bit halves; each pass is a stable counting sort, so equal keys keep index order.
  * Passes whose digit is the same for every value are skipped. Cost O(n) time (six passes
- * at most) and 7 n 32-bit words of scratch; n below 32 uses insertion sort, O(n^2).
+ * at most) and six n-word buffers, one of them the result; n below 32 uses insertion sort.
  * Example: argsortStable(Float64Array.of(3, -1, 3, 0)) -> Int32Array [1, 3, 0, 2].
  */
 export function argsortStable(values: Float64Array): Int32Array {
   const n = values.length;
   if (n < INSERTION_LIMIT) return insertionArgsort(values);
-  // One bit pattern for every NaN, and +0 for -0, so that they tie as numbers do.
-  const normalised = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    const v = values[i] as number;
-    normalised[i] = v !== v ? NaN : v + 0;
-  }
-  const words = new Uint32Array(normalised.buffer);
+  const scratch = new Float64Array(1);
+  const words = new Uint32Array(scratch.buffer);
   let hiKeys = new Uint32Array(n);
   let loKeys = new Uint32Array(n);
   const histograms = new Int32Array(2 * PASSES_PER_WORD * RADIX);
   for (let i = 0; i < n; i++) {
-    let lo = words[2 * i + LOW_WORD] as number;
-    let hi = words[2 * i + 1 - LOW_WORD] as number;
+    const v = values[i] as number;
+    // One bit pattern for every NaN, and +0 for -0, so that they tie as numbers do.
+    scratch[0] = v !== v ? NaN : v + 0;
+    let lo = words[LOW_WORD] as number;
+    let hi = words[1 - LOW_WORD] as number;
     if (hi >>> 31) {
       hi = ~hi >>> 0;
       lo = ~lo >>> 0;

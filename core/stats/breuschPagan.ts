@@ -1,5 +1,7 @@
 import { InputError } from '../errors';
+import { ScaledCholesky } from './crossProducts';
 import type { DesignRows } from './design';
+import { designCrossProducts, type DesignCrossProducts } from './designCrossProducts';
 import { pchisq } from './distributions';
 import { GivensQR } from './givensQR';
 
@@ -20,8 +22,11 @@ export interface BreuschPaganResult {
  * heteroscedasticity", Journal of Econometrics 17(1), 107-112. With u_i = e_i^2 - mean(e^2),
  * the statistic is n * (fitted sum of squares / total sum of squares) of the regression
  * of u on the design (intercept included), referred to chi-square with p - 1 df; this is
- * R's lmtest::bptest default (studentize = TRUE). The auxiliary regression is solved by
- * row-wise Givens QR (`GivensQR`): O(n p^2) time, O(p^2) memory.
+ * R's lmtest::bptest default (studentize = TRUE). The auxiliary regression is solved from
+ * the cross products X'X and X'u gathered in one pass over the rows
+ * (`designCrossProducts`) with the scaled Cholesky factor of X'X (`ScaledCholesky`), or,
+ * when X'X is too ill-conditioned for that (GRAM_CONDITION_LIMIT), by row-wise Givens QR
+ * (`GivensQR`): O(n p^2) time, O(p^2) memory plus a block of rows.
  *
  * Throws InputError for fewer than p + 1 residuals, fewer than 2 design columns,
  * non-finite residuals or squared residuals that are all equal; FitError for a
@@ -30,6 +35,15 @@ export interface BreuschPaganResult {
  * grows or shrinks with x.
  */
 export function breuschPagan(residuals: Float64Array, design: DesignRows): BreuschPaganResult {
+  return breuschPaganWith(residuals, design, undefined);
+}
+
+/**
+ * `breuschPagan`, taking X'X and X'u from cross products already gathered for these
+ * residuals and this design (`designCrossProducts` with `squaresOf: residuals`) when
+ * given, so that one pass over the rows can serve several tests.
+ */
+export function breuschPaganWith(residuals: Float64Array, design: DesignRows, sums: DesignCrossProducts | undefined): BreuschPaganResult {
   const n = residuals.length;
   const p = design.p;
   if (p < 2) throw new InputError(`Breusch-Pagan needs an intercept and at least one regressor; the design has ${p} column(s)`);
@@ -41,6 +55,34 @@ export function breuschPagan(residuals: Float64Array, design: DesignRows): Breus
     meanSquare += v * v;
   }
   meanSquare /= n;
+  // Cross products when X'X is well enough conditioned (nearly always), else Givens QR.
+  if (sums && (sums.p !== p || sums.n !== n)) throw new Error(`Breusch-Pagan: cross products of ${sums.n} x ${sums.p} given for ${n} rows and ${p} columns`);
+  const gathered = sums?.squares ? sums : designCrossProducts(design, n, { squaresOf: residuals });
+  const { fitted, total } = fittedFromCrossProducts(gathered) ?? fittedByGivens(residuals, meanSquare, design);
+  if (!(total > 0)) throw new InputError('Breusch-Pagan: the squared residuals are all equal, so the test is undefined');
+  const statistic = (n * fitted) / total;
+  const df = p - 1;
+  return { statistic, df, pValue: pchisq(statistic, df, false) };
+}
+
+/**
+ * Fitted and total sums of squares of u on the design from its cross products
+ * (`designCrossProducts` with `squaresOf`): fitted = |L^-1 S X'u|^2 with the scaled
+ * Cholesky factor of X'X. Undefined when X'X is too ill-conditioned for this route
+ * (GRAM_CONDITION_LIMIT). O(p^3).
+ */
+function fittedFromCrossProducts(sums: DesignCrossProducts): { fitted: number; total: number } | undefined {
+  const { squares } = sums;
+  if (!squares) throw new Error('Breusch-Pagan needs the cross products of the squared residuals');
+  const factor = ScaledCholesky.of(sums.gram, sums.p);
+  if (!factor) return undefined;
+  return { fitted: factor.projectedSquare(squares.xu), total: squares.uu };
+}
+
+/** The same sums by row-wise Givens QR (`GivensQR`), for designs too ill-conditioned for cross products. O(n p^2). */
+function fittedByGivens(residuals: Float64Array, meanSquare: number, design: DesignRows): { fitted: number; total: number } {
+  const n = residuals.length;
+  const p = design.p;
   const qr = new GivensQR(p);
   const row = new Float64Array(p);
   let total = 0;
@@ -52,10 +94,7 @@ export function breuschPagan(residuals: Float64Array, design: DesignRows): Breus
     qr.addRow(row, u);
   }
   qr.checkRank();
-  if (!(total > 0)) throw new InputError('Breusch-Pagan: the squared residuals are all equal, so the test is undefined');
   let fitted = 0;
   for (let j = 0; j < p; j++) fitted += (qr.qty[j] as number) * (qr.qty[j] as number);
-  const statistic = (n * fitted) / total;
-  const df = p - 1;
-  return { statistic, df, pValue: pchisq(statistic, df, false) };
+  return { fitted, total };
 }

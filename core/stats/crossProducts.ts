@@ -1,50 +1,98 @@
 /**
  * Largest 1-norm condition number of the column-scaled Gram matrix for which the
  * cross-product (normal-equations) route is used. Its relative rounding error is about
- * this times the unit roundoff (Higham 2002, section 20.4), so at most 1e6 * 1.1e-16 ~ 1e-10;
+ * this times the unit roundoff (Higham 2002, "Accuracy and Stability of Numerical
+ * Algorithms", 2nd ed., chapter 20 on the normal equations), so at most about 1e-10;
  * worse-conditioned designs go through an orthogonal (Givens QR) route instead.
  */
 export const GRAM_CONDITION_LIMIT = 1e6;
 
 /**
  * Adds the cross products of the columns of a block of rows to the upper triangle of a
- * p x p matrix: out[a p + b] += sum_{i < rows} block[a stride + i] block[b stride + i] for
- * a <= b. The block is column-major (column a at block[a stride ...]), so every product
- * is a contiguous dot product; four interleaved partial sums keep the additions from
- * waiting on each other, and summing a block before adding it to `out` is blocked
- * summation, whose error grows with stride + n / stride rather than n (Higham 2002,
- * "Accuracy and Stability of Numerical Algorithms", 2nd ed., section 4.2).
+ * p x p matrix: out[a p + b] += sum_{t < rows} block[t p + a] block[t p + b] for a <= b
+ * (the block is row-major, row t at block[t p ...]). Columns are taken two by two, so
+ * each pass over the block does four independent multiply-adds per row from four loads;
+ * summing a block before adding it to `out` is blocked summation, whose error grows with
+ * rows + n / rows rather than n (Higham 2002, chapter 4 on summation).
  * Cost O(rows p^2 / 2), no allocation.
- * Example: the block [1, 1 | 0, 2] (columns (1, 1) and (0, 2), stride 2, rows 2) adds
- * [2, 2; ., 4] to the upper triangle.
+ * Example: the rows (1, 0) and (1, 2) add [2, 2; ., 4] to the upper triangle.
  */
-export function addCrossProducts(block: Float64Array, stride: number, rows: number, p: number, out: Float64Array): void {
-  const tail = rows & 3;
-  const body = rows - tail;
-  for (let a = 0; a < p; a++) {
-    const ca = a * stride;
-    for (let b = a; b < p; b++) {
-      const cb = b * stride;
+export function addCrossProducts(block: Float64Array, rows: number, p: number, out: Float64Array): void {
+  const end = rows * p;
+  let a = 0;
+  for (; a + 1 < p; a += 2) {
+    let d00 = 0;
+    let d01 = 0;
+    let d11 = 0;
+    for (let o = 0; o < end; o += p) {
+      const x0 = block[o + a] as number;
+      const x1 = block[o + a + 1] as number;
+      d00 += x0 * x0;
+      d01 += x0 * x1;
+      d11 += x1 * x1;
+    }
+    add(out, a * p + a, d00);
+    add(out, a * p + a + 1, d01);
+    add(out, (a + 1) * p + a + 1, d11);
+    let b = a + 2;
+    for (; b + 1 < p; b += 2) {
+      let s00 = 0;
+      let s01 = 0;
+      let s10 = 0;
+      let s11 = 0;
+      for (let o = 0; o < end; o += p) {
+        const x0 = block[o + a] as number;
+        const x1 = block[o + a + 1] as number;
+        const y0 = block[o + b] as number;
+        const y1 = block[o + b + 1] as number;
+        s00 += x0 * y0;
+        s01 += x0 * y1;
+        s10 += x1 * y0;
+        s11 += x1 * y1;
+      }
+      add(out, a * p + b, s00);
+      add(out, a * p + b + 1, s01);
+      add(out, (a + 1) * p + b, s10);
+      add(out, (a + 1) * p + b + 1, s11);
+    }
+    if (b < p) {
+      // Odd p: the last column against the pair.
       let s0 = 0;
       let s1 = 0;
-      let s2 = 0;
-      let s3 = 0;
-      for (let i = 0; i < body; i += 4) {
-        s0 += (block[ca + i] as number) * (block[cb + i] as number);
-        s1 += (block[ca + i + 1] as number) * (block[cb + i + 1] as number);
-        s2 += (block[ca + i + 2] as number) * (block[cb + i + 2] as number);
-        s3 += (block[ca + i + 3] as number) * (block[cb + i + 3] as number);
+      for (let o = 0; o < end; o += p) {
+        const y = block[o + b] as number;
+        s0 += (block[o + a] as number) * y;
+        s1 += (block[o + a + 1] as number) * y;
       }
-      for (let i = body; i < rows; i++) s0 += (block[ca + i] as number) * (block[cb + i] as number);
-      out[a * p + b] = (out[a * p + b] as number) + (s0 + s1 + (s2 + s3));
+      add(out, a * p + b, s0);
+      add(out, (a + 1) * p + b, s1);
     }
   }
+  if (a < p) {
+    let s = 0;
+    for (let o = 0; o < end; o += p) s += (block[o + a] as number) ** 2;
+    add(out, a * p + a, s);
+  }
+}
+
+function add(out: Float64Array, at: number, v: number): void {
+  out[at] = (out[at] as number) + v;
+}
+
+/**
+ * Views of the first `width` entries of each row of a row-major block with `stride`
+ * entries per row, made once so that `DesignRows.row` can write straight into the block.
+ */
+export function rowViews(block: Float64Array, rows: number, stride: number, width: number): Float64Array[] {
+  const views: Float64Array[] = [];
+  for (let t = 0; t < rows; t++) views.push(block.subarray(t * stride, t * stride + width));
+  return views;
 }
 
 /**
  * Cholesky factor of a Gram matrix G = X'X after scaling its columns to unit diagonal:
  * G_s = S G S = L L' with S = diag(1 / sqrt(G_jj)) (Golub & Van Loan, "Matrix
- * Computations", 4th ed. (2013), algorithm 4.2.2; the scaling is the equilibration of
+ * Computations", 4th ed. (2013), section 4.2; the scaling is the equilibration of
  * van der Sluis (1969), "Condition numbers and equilibration of matrices", Numer. Math. 14,
  * which makes the condition number nearly the smallest over diagonal scalings). Used to
  * evaluate projections onto the column space of X from cross products alone:

@@ -1,15 +1,14 @@
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { InputError } from '../errors';
+import { ScaledCholesky } from './crossProducts';
 import type { DesignRows } from './design';
+import { designCrossProducts, type DesignCrossProducts } from './designCrossProducts';
 import { pnorm } from './distributions';
-import { addCrossProducts, ScaledCholesky } from './crossProducts';
 import { GivensQR } from './givensQR';
 import { quadraticFormLowerTail } from './imhof';
 
 /** Below this many rows (with a design) the p-value is exact, as in R's lmtest::dwtest. */
 export const DW_EXACT_LIMIT = 100;
-/** Rows gathered per block of cross products (column-major scratch of BLOCK_ROWS x p). */
-const BLOCK_ROWS = 128;
 /** Eigenvalues of M A M at or below this are the structural zeros of the projection. */
 const EIGEN_TOLERANCE = 1e-10;
 
@@ -40,7 +39,11 @@ export interface DurbinWatsonResult {
  * - design and n >= 100: normal approximation with the exact moments (Durbin & Watson
  *   1971, "Testing for serial correlation in least squares regression III", Biometrika
  *   58, 1-19): E d = P / (n - p), Var d = 2 (Q - P E d) / ((n - p)(n - p + 2)) with
- *   P = tr(MA) and Q = tr((MA)^2), computed from the rows q_i of Q = X R^-1 in O(n p^2).
+ *   P = tr(MA) and Q = tr((MA)^2). The traces tr(HA), tr(HA^2), tr(HAHA) come from X'X,
+ *   X'AX and X'A^2X gathered in one pass over the rows (`designCrossProducts`) and the
+ *   scaled Cholesky factor of X'X (`ScaledCholesky`); when X'X is too ill-conditioned for
+ *   that (GRAM_CONDITION_LIMIT), from the rows q_i of Q = X R^-1 by Givens QR in two
+ *   passes. O(n p^2) either way.
  * - no design: mean 2, variance 4 / n; O(n).
  * This is what R's lmtest::dwtest reports (exact below 100 rows, normal approximation
  * above). For weighted fits pass sqrt(w)-scaled residuals and design rows.
@@ -50,6 +53,15 @@ export interface DurbinWatsonResult {
  * Example: durbinWatson(Float64Array.of(1, 1, -1, -1, 1, 1, -1, -1)).statistic = 12 / 8 = 1.5.
  */
 export function durbinWatson(residualsInXOrder: Float64Array, design?: DesignRows): DurbinWatsonResult {
+  return durbinWatsonWith(residualsInXOrder, design, undefined);
+}
+
+/**
+ * `durbinWatson`, taking the normal-approximation moments from cross products already
+ * gathered for this design (`designCrossProducts` with `differences`) when given, so that
+ * one pass over the rows can serve several tests (`durbinWatsonAndBreuschPagan`).
+ */
+export function durbinWatsonWith(residualsInXOrder: Float64Array, design: DesignRows | undefined, sums: DesignCrossProducts | undefined): DurbinWatsonResult {
   const e = residualsInXOrder;
   const n = e.length;
   if (n < 3) throw new InputError(`the Durbin-Watson test needs at least 3 residuals; got ${n}`);
@@ -71,8 +83,9 @@ export function durbinWatson(residualsInXOrder: Float64Array, design?: DesignRow
   }
   const p = design.p;
   if (p >= n) throw new InputError(`Durbin-Watson needs more rows (${n}) than design columns (${p})`);
+  if (sums && (sums.p !== p || sums.n !== n)) throw new Error(`Durbin-Watson: cross products of ${sums.n} x ${sums.p} given for ${n} rows and ${p} columns`);
   if (n >= DW_EXACT_LIMIT) {
-    const moments = crossProductMoments(design, n);
+    const moments = momentsFromCrossProducts(sums?.differences ? sums : designCrossProducts(design, n, { differences: true }));
     if (moments) return { statistic, pValue: pnorm((statistic - moments.mean) / Math.sqrt(moments.variance)), method: 'normal' };
   }
   const qr = new GivensQR(p);
@@ -169,51 +182,18 @@ function momentsFromTraces(n: number, p: number, trHA: number, trHA2: number, tr
 }
 
 /**
- * Null mean and variance of d from cross products gathered in one pass over the rows:
- * G = X'X, X'AX = sum_i d_i d_i' with d_i = x_i - x_(i-1) (d_0 = d_n = 0), and
- * X'A^2X = sum_i a_i a_i' with a_i = d_i - d_(i+1), the rows of AX. Then
- * tr(HA) = tr W, tr(HAHA) = |W|_F^2 and tr(HA^2) = tr V, with W and V the whitened
- * X'AX and X'A^2X (`ScaledCholesky.whiten`). Undefined when G is too ill-conditioned for
- * this route (see GRAM_CONDITION_LIMIT). O(n p^2) time, O(p^2 + p BLOCK_ROWS) memory.
+ * Null mean and variance of d from the design's cross products (`designCrossProducts` with
+ * `differences`): with G = X'X factored by `ScaledCholesky`, tr(HA) = tr W,
+ * tr(HAHA) = |W|_F^2 and tr(HA^2) = tr V, W and V being the whitened X'AX and X'A^2X.
+ * Undefined when G is too ill-conditioned for this route (GRAM_CONDITION_LIMIT). O(p^3).
  */
-function crossProductMoments(design: DesignRows, n: number): { mean: number; variance: number } | undefined {
-  const p = design.p;
-  const m = BLOCK_ROWS;
-  const row = new Float64Array(p);
-  const xBlock = new Float64Array(p * m);
-  const dBlock = new Float64Array(p * m);
-  const aBlock = new Float64Array(p * m);
-  const prevRow = new Float64Array(p);
-  const prevDiff = new Float64Array(p); // d_(i-1)
-  const gram = new Float64Array(p * p);
-  const xax = new Float64Array(p * p);
-  const xa2x = new Float64Array(p * p);
-  for (let start = 0; start < n; start += m) {
-    const rows = Math.min(m, n - start);
-    for (let t = 0; t < rows; t++) {
-      const i = start + t;
-      design.row(i, row);
-      for (let k = 0; k < p; k++) {
-        const v = row[k] as number;
-        const d = i === 0 ? 0 : v - (prevRow[k] as number);
-        xBlock[k * m + t] = v;
-        dBlock[k * m + t] = d;
-        // a_(i-1) = d_(i-1) - d_i (zero for i = 0).
-        aBlock[k * m + t] = (prevDiff[k] as number) - d;
-        prevRow[k] = v;
-        prevDiff[k] = d;
-      }
-    }
-    addCrossProducts(xBlock, m, rows, p, gram);
-    addCrossProducts(dBlock, m, rows, p, xax);
-    addCrossProducts(aBlock, m, rows, p, xa2x);
-  }
-  // The last row of AX is a_(n-1) = d_(n-1).
-  addCrossProducts(prevDiff, 1, 1, p, xa2x);
+function momentsFromCrossProducts(sums: DesignCrossProducts): { mean: number; variance: number } | undefined {
+  const { p, n, gram, differences } = sums;
+  if (!differences) throw new Error('Durbin-Watson moments need the cross products of the differences');
   const factor = ScaledCholesky.of(gram, p);
   if (!factor) return undefined;
-  const w = factor.whiten(xax);
-  const v = factor.whiten(xa2x);
+  const w = factor.whiten(differences.xax);
+  const v = factor.whiten(differences.xa2x);
   let trHA = 0;
   let trHA2 = 0;
   let trHAHA = 0;

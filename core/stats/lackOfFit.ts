@@ -1,4 +1,5 @@
 import { InputError } from '../errors';
+import { argsortStable } from './argsort';
 import { pf } from './distributions';
 
 /** Result of the lack-of-fit F test against one mean per distinct x. */
@@ -31,8 +32,11 @@ export interface LackOfFitResult {
  * `w` are prior weights (> 0) or undefined; `modelRss` is the model's weighted residual
  * sum of squares and `modelDf` its df (trace of the hat matrix, intercept included).
  * Returns undefined when no x value is replicated or df1 <= 0. x values are grouped by
- * exact equality. Cost O(n log n) for the sort by x.
- * Throws InputError for arrays of different lengths, non-finite values or weights <= 0.
+ * exact equality. `order` lists the rows by ascending x (ties in any order), e.g.
+ * `orderByX(x)` when the caller has it already; otherwise the rows are ordered here with
+ * the radix `argsortStable`. Cost O(n).
+ * Throws InputError for arrays of different lengths, non-finite values, weights <= 0 or
+ * an `order` that is not a permutation of the rows by ascending x.
  * Example: x = [1, 1, 2, 2, 3, 3] under a straight line (modelDf 2) gives df1 = 1, df2 = 3.
  */
 export function lackOfFit(
@@ -41,6 +45,7 @@ export function lackOfFit(
   w: Float64Array | undefined,
   modelRss: number,
   modelDf: number,
+  order: Int32Array = argsortStable(x),
 ): LackOfFitResult | undefined {
   const n = x.length;
   if (y.length !== n) throw new InputError(`lack of fit: x has ${n} values but y has ${y.length}`);
@@ -52,15 +57,15 @@ export function lackOfFit(
     if (w && !((w[i] as number) > 0)) throw new InputError(`lack of fit: weight ${i + 1} must be > 0, got ${w[i]}`);
   }
   if (!(modelRss >= 0)) throw new InputError(`lack of fit: the model's residual sum of squares must be >= 0, got ${modelRss}`);
-  const order = Uint32Array.from({ length: n }, (_, i) => i).sort((a, b) => (x[a] as number) - (x[b] as number));
+  const xSorted = sortedByOrder(x, order);
   let levels = 0;
   let replicated = 0;
   let pureError = 0;
   let start = 0;
   while (start < n) {
-    const xv = x[order[start] as number] as number;
+    const xv = xSorted[start] as number;
     let end = start + 1;
-    while (end < n && (x[order[end] as number] as number) === xv) end++;
+    while (end < n && (xSorted[end] as number) === xv) end++;
     levels++;
     if (end - start > 1) {
       replicated++;
@@ -97,4 +102,27 @@ export function lackOfFit(
   const F = lackOfFitSS / df1 / (pureError / df2);
   const pValue = pf(F, df1, df2, false);
   return { F, df1, df2, pValue, pureErrorSS: pureError, lackOfFitSS, replicatedLevels: replicated };
+}
+
+/**
+ * x in the given row order, checking that `order` is a permutation of the row indices by
+ * ascending x (throws InputError otherwise). O(n).
+ */
+function sortedByOrder(x: Float64Array, order: Int32Array): Float64Array {
+  const n = x.length;
+  const bad = (): InputError => new InputError('lack of fit: the row order given does not list every row once by ascending x');
+  if (order.length !== n) throw bad();
+  const seen = new Uint8Array(n);
+  const out = new Float64Array(n);
+  let prev = -Infinity;
+  for (let k = 0; k < n; k++) {
+    const i = order[k] as number;
+    if (!(i >= 0 && i < n) || seen[i] === 1) throw bad();
+    seen[i] = 1;
+    const v = x[i] as number;
+    if (v < prev) throw bad();
+    out[k] = v;
+    prev = v;
+  }
+  return out;
 }

@@ -1,4 +1,5 @@
 import { InputError } from '../errors';
+import { argsortStable } from './argsort';
 import { qnorm } from './distributions';
 
 /** Points of a normal quantile (QQ) plot, sorted by sample value. */
@@ -24,7 +25,7 @@ export interface NormalQuantiles {
  * ppoints). When n exceeds `maxPoints`, the lowest and highest tenth of `maxPoints` ranks
  * are kept whole at each end (where departures from normality show) and the middle ranks
  * are thinned evenly; positions always use the full n. Non-finite inputs are skipped
- * and counted. Cost O(n log n) for the sort.
+ * and counted. Cost O(n): the ranks come from the radix `argsortStable`.
  * Throws InputError when `maxPoints` is not a whole number >= 3.
  * Example: normalQuantiles(Float64Array.of(0.3, -1, 2)).theoretical =
  * qnorm([0.5/3.25, 1.5/3.25, 2.5/3.25]) (n = 3 uses a = 3/8).
@@ -36,9 +37,22 @@ export function normalQuantiles(standardizedResiduals: Float64Array, maxPoints =
   const values = standardizedResiduals;
   let n = 0;
   for (let i = 0; i < values.length; i++) if (Number.isFinite(values[i] as number)) n++;
-  const order = new Uint32Array(n);
-  for (let i = 0, k = 0; i < values.length; i++) if (Number.isFinite(values[i] as number)) order[k++] = i;
-  order.sort((a, b) => (values[a] as number) - (values[b] as number) || a - b);
+  // With non-finite values: the finite ones, in input order, and where each came from.
+  let source: Uint32Array | undefined;
+  let finite = values;
+  if (n < values.length) {
+    finite = new Float64Array(n);
+    source = new Uint32Array(n);
+    for (let i = 0, k = 0; i < values.length; i++) {
+      const v = values[i] as number;
+      if (Number.isFinite(v)) {
+        finite[k] = v;
+        source[k++] = i;
+      }
+    }
+  }
+  // Ascending, ties in input order (argsortStable is stable and `source` increases).
+  const order = argsortStable(finite);
   const kept = Math.min(n, maxPoints);
   const rank = new Uint32Array(kept);
   if (kept === n) {
@@ -60,7 +74,8 @@ export function normalQuantiles(standardizedResiduals: Float64Array, maxPoints =
   const index = new Uint32Array(kept);
   for (let k = 0; k < kept; k++) {
     const r = rank[k] as number;
-    const i = order[r] as number;
+    const o = order[r] as number;
+    const i = source ? (source[o] as number) : o;
     theoretical[k] = qnorm((r + 1 - a) / (n + 1 - 2 * a));
     sample[k] = values[i] as number;
     index[k] = i;

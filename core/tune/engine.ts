@@ -6,9 +6,12 @@ import { prepareData } from '../fit/prepared';
 import { smoothingSplineAtLambda } from '../fit/smoothingSpline';
 import { factorSpd } from '../linalg/spd';
 import { nullSpace } from '../linalg/nullSpace';
-import type { Family } from '../types';
+import type { OutcomeFamily } from '../fit/glm';
+import { isPlainModel, resolveModel } from '../fit/model';
+import type { Family, ModelOptions } from '../types';
 import { accumulateRow, buildCells, type Cells, SUMS_PER_CELL } from './cells';
 import { bootstrapCounts, foldLabels } from './plan';
+import { modelTrainer } from './modelTrainer';
 import { SplineFromSums } from './splineSums';
 import type { ResampleSpec } from './types';
 
@@ -27,10 +30,15 @@ export interface ResampleProblem {
   readonly seed: number;
   /** Row indices in x order (for stratified folds). */
   readonly order: Int32Array;
+  /** Outcome family, shape constraints, robust fitting (absent: plain least squares). */
+  readonly model?: ModelOptions | undefined;
 }
 
-/** Number of error values per candidate and resample: RMSE, MAE, maximum absolute error. */
-export const ERRORS_PER_CANDIDATE = 3;
+/**
+ * Number of error values per candidate and resample: RMSE, MAE, maximum absolute error,
+ * mean deviance (Poisson/binomial unit deviance, or squared error for a Gaussian outcome).
+ */
+export const ERRORS_PER_CANDIDATE = 4;
 
 /** Predicts at test rows after training on weighted rows: one per candidate. */
 interface Trainer {
@@ -38,6 +46,9 @@ interface Trainer {
   train(weights: Float64Array, sums: Float64Array | undefined): boolean;
   /** Prediction for row i after training (in centred, scaled y units). */
   predict(i: number): number;
+  /** Poisson/binomial trainers: the predicted mean in y units and the family scoring deviance. */
+  mean?(i: number): number;
+  readonly family?: OutcomeFamily | undefined;
 }
 
 /**
@@ -97,6 +108,11 @@ export class ResampleEngine {
   private buildTrainers(): { trainers: Trainer[]; cells: Cells | undefined; models?: SplineFromSums[] } {
     const { x, family, dfs } = this.problem;
     const prepared = prepareData({ x, y: this.yc, w: this.problem.w });
+    if (!isPlainModel(this.problem.model)) {
+      // Outcome families, shapes, robust fits: refit on weighted rows (the power sums need plain least squares).
+      const model = resolveModel(family, this.problem.model);
+      return { trainers: dfs.map((df) => modelTrainer(prepared, this.problem.y, family, df, model, this.ymean, this.yscale)), cells: undefined };
+    }
     if (family === 'natural') {
       const bases = dfs.map((df) => {
         const k = naturalKnots(prepared.sortedX, prepared.distinct, df);
@@ -175,7 +191,7 @@ export class ResampleEngine {
     for (let k = 0; k < C; k++) {
       const tr = this.trainers[k] as Trainer;
       if (nTest === 0 || !tr.train(weights, this.sums)) {
-        out[k] = out[C + k] = out[2 * C + k] = NaN;
+        out[k] = out[C + k] = out[2 * C + k] = out[3 * C + k] = NaN;
         continue;
       }
       const m = this.models?.[k];
@@ -184,10 +200,25 @@ export class ResampleEngine {
       out[k] = this.yscale * Math.sqrt(sse / wTest);
       out[C + k] = (this.yscale * acc.sae) / wTest;
       out[2 * C + k] = this.yscale * acc.maxAbs;
+      // Mean deviance per unit weight of the held-out rows (DESIGN.md "Errors"); Gaussian: mean squared error.
+      out[3 * C + k] = tr.family ? this.testDeviance(tr, nTest) / wTest : (this.yscale * this.yscale * sse) / wTest;
     }
   }
 
   private readonly acc = { sae: 0, sse: 0, maxAbs: 0 };
+
+  /** Sum of the outcome family's deviance over the test rows (prior weights included). */
+  private testDeviance(tr: Trainer, nTest: number): number {
+    const fam = tr.family as OutcomeFamily;
+    const { testIdx } = this;
+    const { y, w } = this.problem;
+    let dev = 0;
+    for (let j = 0; j < nTest; j++) {
+      const i = testIdx[j] as number;
+      dev += fam.deviance(y[i] as number, (tr.mean as (i: number) => number)(i), w ? (w[i] as number) : 1);
+    }
+    return dev;
+  }
 
   /** Absolute and squared errors on the test rows through a trainer's predictions. */
   private testErrors(tr: Trainer, nTest: number): { sae: number; sse: number; maxAbs: number } {

@@ -20,6 +20,8 @@ export function metricLabel(metric: Metric): string {
       return 'maximum absolute error';
     case 'gcv':
       return 'GCV score';
+    case 'deviance':
+      return 'deviance';
   }
 }
 

@@ -2,21 +2,27 @@ import { CancelledError, FitError, InputError } from '../errors';
 import { fitCurve } from '../fit/index';
 import { fitNaturalSplineBatch } from '../fit/naturalSplineBatch';
 import type { PreparedData } from '../fit/prepared';
-import type { Family, FitResult } from '../types';
+import { isPlainModel, resolveModel } from '../fit/model';
+import type { Family, FitResult, ModelOptions } from '../types';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from './engine';
 import { checkResampleSpec, orderByX, resampleCount } from './plan';
 import { selectDf } from './rules';
 import { summarise } from './summaries';
 import type { CandidateResult, ErrorSummary, Metric, Progress, ResampleSpec, RuleSpec, TuneResult } from './types';
 
-/** What to tune. */
-export interface TuneOptions {
+/**
+ * What to tune. The ModelOptions fields (outcome, shape, robust) apply to every candidate;
+ * such candidates are refitted on each resample through a trainer (core/tune/modelTrainer.ts),
+ * the power-sum fast path serving plain least-squares natural splines only. A binomial
+ * outcome with trials is passed as proportions with the trials as prior weights.
+ */
+export interface TuneOptions extends ModelOptions {
   readonly family: Family;
   readonly candidates?: readonly number[] | undefined;
   readonly resample: ResampleSpec;
   readonly rule: RuleSpec;
   readonly seed: number;
-  /** Error the rules compare; default RMSE (the GCV score with `gcv` resampling). */
+  /** Error the rules compare; default RMSE (mean deviance for Poisson/binomial outcomes; the GCV score with `gcv` resampling). */
   readonly metric?: Metric | undefined;
 }
 
@@ -84,12 +90,20 @@ export async function tuneCurve(
   checkResampleSpec(resample, n);
   const dfs = [...new Set(options.candidates ?? defaultCandidates(family, prepared.distinct))].sort((a, b) => a - b);
   if (dfs.length === 0) throw new InputError('no candidate df given');
-  const metric: Metric = options.metric ?? (resample.kind === 'gcv' ? 'gcv' : 'rmse');
+  const model = resolveModel(family, options);
+  const plain = isPlainModel(options);
+  const glm = model.outcome !== 'gaussian';
+  if (!plain && resample.kind === 'loo') {
+    throw new InputError('exact leave-one-out needs a plain least-squares fit; with a Poisson or binomial outcome, shape constraints or robust fitting use boot:<B> or cv:<K> resampling');
+  }
+  const metric: Metric = options.metric ?? (resample.kind === 'gcv' ? 'gcv' : glm ? 'deviance' : 'rmse');
+  if (metric === 'deviance' && !glm) throw new InputError('the mean deviance is the error of Poisson and binomial outcomes; use rmse, mae or maxAbs here');
   if (metric === 'gcv' && resample.kind !== 'gcv') throw new InputError('the GCV score is only available with --resample gcv');
   if (metric !== 'gcv' && resample.kind === 'gcv') throw new InputError(`with GCV the rules compare the GCV score, not ${metric}`);
   const fits = new Map<number, FitResult>();
   const skipped = new Map<number, string>();
-  if (family === 'natural') {
+  const modelSpec: ModelOptions = plain ? {} : { outcome: model.outcome, shape: model.shape, robust: model.robustK !== undefined ? { k: model.robustK } : undefined };
+  if (family === 'natural' && plain) {
     // One pass of power sums serves every candidate (see fitNaturalSplineBatch).
     for (const [df, r] of fitNaturalSplineBatch(prepared, dfs)) {
       if (r instanceof FitError) skipped.set(df, r.message);
@@ -99,7 +113,7 @@ export async function tuneCurve(
     for (const df of dfs) {
       if (progress?.cancelled()) throw new CancelledError();
       try {
-        fits.set(df, fitCurve(prepared, { family, df }));
+        fits.set(df, fitCurve(prepared, { family, df, ...modelSpec }));
       } catch (e) {
         if (!(e instanceof FitError)) throw e;
         skipped.set(df, e.message);
@@ -122,6 +136,7 @@ export async function tuneCurve(
       resample,
       seed,
       order: orderByX(prepared.data.x),
+      ...(plain ? {} : { model: modelSpec }),
     };
     const perResample = await runner.run(problem, count, progress);
     const C = fitted.length;
@@ -134,7 +149,7 @@ export async function tuneCurve(
         return;
       }
       if (failed > 0) notes.push(`df ${df}: ${failed} of ${count} resamples could not be fitted and were left out of its mean error.`);
-      errors.set(df, { rmse: strip(rmse), mae: strip(summarise(pick(1))), maxAbs: strip(summarise(pick(2))) });
+      errors.set(df, { rmse: strip(rmse), mae: strip(summarise(pick(1))), maxAbs: strip(summarise(pick(2))), ...(glm ? { deviance: strip(summarise(pick(3))) } : {}) });
     });
   } else if (resample.kind === 'loo') {
     for (const df of fitted) errors.set(df, leaveOneOutErrors(prepared, fits.get(df) as FitResult));

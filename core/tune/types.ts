@@ -14,8 +14,12 @@ export type RuleSpec =
   | { readonly kind: 'tol'; readonly percent: number }
   | { readonly kind: 'manual'; readonly df: number };
 
-/** Error measure the rules compare. */
-export type Metric = 'rmse' | 'mae' | 'maxAbs' | 'gcv';
+/**
+ * Error measure the rules compare. 'deviance' is the mean deviance per unit prior weight of
+ * the held-out rows (Poisson and binomial outcomes; McCullagh & Nelder 1989, section 2.3):
+ * sum_i w_i d(y_i, mu_i) / sum_i w_i, with d the family's unit deviance.
+ */
+export type Metric = 'rmse' | 'mae' | 'maxAbs' | 'gcv' | 'deviance';
 
 /** Mean over resamples, its standard error (SD / sqrt(count)) and the per-resample values. */
 export interface ErrorSummary {
@@ -33,6 +37,8 @@ export interface CandidateResult {
     readonly mae?: ErrorSummary;
     readonly maxAbs?: ErrorSummary;
     readonly gcv?: ErrorSummary;
+    /** Poisson and binomial outcomes: mean deviance of the held-out rows. */
+    readonly deviance?: ErrorSummary;
   };
   /** Information criteria of the fit to all tuning rows (absent when skipped). */
   readonly aic?: number;

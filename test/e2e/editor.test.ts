@@ -78,6 +78,11 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
       if (Date.now() > deadline) throw new Error('the explorer menu never offered Knotwise');
     }
     await item.click();
+    // A click that lands while the menu is still settling only highlights the entry; Enter runs it.
+    if (await item.isVisible().catch(() => false)) {
+      await page.waitForTimeout(300);
+      if (await item.isVisible().catch(() => false)) await page.keyboard.press('Enter');
+    }
   });
 
   it('quick picks ask for x, y and weights, numeric columns first with previews', async function () {
@@ -130,10 +135,10 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.keyboard.press('F1');
     await input.waitFor();
     await input.fill('>Preferences: Color Theme');
-    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Preferences: Color Theme' }).first().waitFor();
-    await page.keyboard.press('Enter');
-    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Dark Modern' }).first().waitFor();
+    await page.getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ }).first().click();
+    await page.waitForTimeout(500);
     await input.fill('Dark Modern');
+    await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Dark Modern"]').first().waitFor();
     await page.keyboard.press('Enter');
     await page.locator('.monaco-workbench.vs-dark').waitFor({ timeout: 30000 });
     await page.waitForTimeout(800);

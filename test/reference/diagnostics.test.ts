@@ -19,6 +19,7 @@ import { join } from 'node:path';
 import { breuschPagan } from '../../core/stats/breuschPagan';
 import { binnedDensity } from '../../core/stats/density';
 import { denseDesign } from '../../core/stats/design';
+import { durbinWatsonAndBreuschPagan } from '../../core/stats/designTests';
 import { lgamma, pbeta, pchisq, pf, pgamma, pnorm, pt, qnorm, qt } from '../../core/stats/distributions';
 import { durbinWatson } from '../../core/stats/durbinWatson';
 import { influentialRows } from '../../core/stats/influence';
@@ -178,6 +179,14 @@ for (const c of fixture.cases) {
         rel(bp.statistic, r.breuschPagan.statistic, STAT_REL, 'BP');
         assert.equal(bp.df, r.breuschPagan.df);
         abs(bp.pValue, r.breuschPagan.pValue, P_ABS, 'p');
+      });
+
+      it('durbinWatsonAndBreuschPagan matches lmtest::dwtest and lmtest::bptest (same tolerances as above)', () => {
+        const both = durbinWatsonAndBreuschPagan(residuals, design);
+        rel(both.durbinWatson.statistic, r.durbinWatson.statistic, STAT_REL, 'DW');
+        abs(both.durbinWatson.pValue, r.durbinWatson.pValue, r.durbinWatson.method === 'exact' ? P_ABS_APPROX : P_ABS, 'DW p');
+        rel(both.breuschPagan.statistic, r.breuschPagan.statistic, STAT_REL, 'BP');
+        abs(both.breuschPagan.pValue, r.breuschPagan.pValue, P_ABS, 'BP p');
       });
 
       it('lackOfFit matches anova(fit, lm(y ~ factor(x))) (F and sums of squares 1e-8 relative, p 1e-8 absolute)', () => {

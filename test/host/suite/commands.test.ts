@@ -7,7 +7,7 @@
  */
 import assert from 'node:assert/strict';
 import { execFileSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
+import { copyFileSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as vscode from 'vscode';
@@ -121,9 +121,11 @@ describe('Knotwise commands in the extension host', function () {
     const record = await text(file('mcycle.fit.json'));
     assert.equal(table.split('\n')[0], 'x,fit,se,ciLower,ciUpper,piLower,piUpper,extrapolated');
     assert.equal(table.trimEnd().split('\n').length, 102, '101 grid points and a header');
+    // The command line on a copy of the same file, writing next to it as the editor does.
     const out = mkdtempSync(join(tmpdir(), 'knotwise-cli-'));
     try {
-      execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'fit', file('mcycle.csv').fsPath, '--x', 'times', '--y', 'accel', '--resample', 'loo', '--rule', 'lowest', '--df', '3..15', '--out', out]);
+      copyFileSync(file('mcycle.csv').fsPath, join(out, 'mcycle.csv'));
+      execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'fit', join(out, 'mcycle.csv'), '--x', 'times', '--y', 'accel', '--resample', 'loo', '--rule', 'lowest', '--df', '3..15', '--save']);
       assert.equal(table, readFileSync(join(out, 'mcycle.curve.csv'), 'utf8'));
       assert.equal(record, readFileSync(join(out, 'mcycle.fit.json'), 'utf8'));
     } finally {

@@ -369,3 +369,56 @@ describe('knotwise fit (command line)', () => {
     });
   });
 });
+
+describe('knotwise fit: table options, emitters and report (issue #5)', () => {
+  let dir = '';
+  let mcycle = '';
+  before(() => {
+    dir = mkdtempSync(join(tmpdir(), 'knotwise-cli5-'));
+    // MASS::mcycle (Silverman 1985), written by test/e2e/fixtures/make-fixtures.R.
+    mcycle = join(dir, 'mcycle.csv');
+    writeFileSync(mcycle, readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv')));
+  });
+  after(() => {
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('fit --json adds table.grid, table.interpolation, table.negativePoints, warnings, regenerate and caution', async () => {
+    const r0 = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', 'auto:2', '--nonnegative', '--columns', 'x,fit', '--json');
+    assert.equal(r0.code, 0, r0.stderr);
+    const out = JSON.parse(r0.stdout) as Record<string, any>;
+    assert.equal(out.table.grid.kind, 'count');
+    assert.equal(out.table.rows.length, out.table.grid.count);
+    assert.equal(out.table.interpolation.tolerance, 2);
+    assert.ok(out.table.interpolation.maxError <= 2 && out.table.interpolation.maxError > 0);
+    // mcycle's acceleration goes well below zero: the flag column is added and rows counted.
+    assert.deepEqual(out.table.columns, ['x', 'fit', 'negative']);
+    assert.ok(out.table.negativePoints > 0);
+    assert.ok(out.warnings.some((w: string) => /below zero/.test(w)));
+    assert.match(out.regenerate, /^knotwise fit mcycle\.csv --x times --y accel --model natural --df 8 --grid auto:2 --columns x,fit --nonnegative --out \.$/);
+    assert.match(out.caution, /not a certified calibration/);
+    assert.equal(out.written, undefined);
+  });
+
+  it('fit without --json prints the table line with the interpolation error, the warnings and the caution', async () => {
+    const r0 = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', '0:60:13', '--extrapolate');
+    assert.equal(r0.code, 0, r0.stderr);
+    assert.match(r0.stdout, /^Table: 13 rows; linear interpolation between rows stays within [0-9.e+-]+ of the curve$/m);
+    assert.match(r0.stdout, /^Warning: 2 table row\(s\) lie outside the data range \[2\.4, 57\.6\] and are extrapolated \(x = 0, 60\)/m);
+    assert.match(r0.stdout, /^Caution: An empirical fit is not a certified calibration\./m);
+  });
+
+  it('bad --columns, --emit and automatic grids exit 2 with a message', async () => {
+    assertRefused(await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--columns', 'fit,se'), /must include x/);
+    assertRefused(await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--emit', 'cobol', '--save'), /unknown emitter "cobol"/);
+    assertRefused(await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', 'auto:-1'), /tolerance of the automatic step must be a positive number/);
+    assertRefused(await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', 'auto:1e-9'), /not above the rounding of the printed table values/);
+  });
+
+  it('check --help prints its usage; an unknown check option exits 2', async () => {
+    const h = await run('check', '--help');
+    assert.equal(h.code, 0);
+    assert.match(h.stdout, /usage: knotwise check/);
+    assertRefused(await run('check', '--everything'), /unknown option "--everything" for check/);
+  });
+});

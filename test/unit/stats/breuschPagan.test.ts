@@ -1,8 +1,11 @@
 import { strict as assert } from 'node:assert';
 import { FitError, InputError } from '../../../core/errors';
 import { breuschPagan } from '../../../core/stats/breuschPagan';
+import { ScaledCholesky } from '../../../core/stats/crossProducts';
 import { denseDesign } from '../../../core/stats/design';
+import { designCrossProducts } from '../../../core/stats/designCrossProducts';
 import { pchisq } from '../../../core/stats/distributions';
+import { polynomialDesigns } from './polynomialDesigns';
 import { seededNormals } from './seededNormal';
 
 function lineDesign(x: Float64Array): ReturnType<typeof denseDesign> {
@@ -74,6 +77,18 @@ describe('breuschPagan', () => {
     const x = Float64Array.from({ length: n }, (_, i) => i / n);
     const e = seededNormals(77, n).map((v, i) => v * (0.2 + 3 * (x[i] as number)));
     assert.ok(breuschPagan(e, lineDesign(x)).pValue < 1e-6);
+  });
+
+  it('breuschPagan depends on the design only through its column space: monomials (too ill-conditioned for cross products, Givens route) give the Chebyshev result', () => {
+    // n R^2 of the auxiliary regression (Koenker 1981) depends on the fitted values only.
+    const n = 150;
+    const p = 8;
+    const { monomials, chebyshev } = polynomialDesigns(n, p);
+    assert.equal(ScaledCholesky.of(designCrossProducts(monomials, n, {}).gram, p), undefined, 'premise: the monomial Gram matrix is refused');
+    const e = seededNormals(43, n).map((v, i) => v * (1 + (2 * i) / n));
+    const viaGivens = breuschPagan(e, monomials);
+    const viaCrossProducts = breuschPagan(e, chebyshev);
+    assert.ok(Math.abs(viaGivens.statistic - viaCrossProducts.statistic) <= 1e-9 * viaCrossProducts.statistic, `${viaGivens.statistic} vs ${viaCrossProducts.statistic}`);
   });
 
   it('breuschPagan rejects intercept-only designs, too few rows, non-finite or equal-magnitude residuals and collinear designs', () => {

@@ -1,9 +1,12 @@
 import { strict as assert } from 'node:assert';
 import { FitError, InputError } from '../../../core/errors';
+import { ScaledCholesky } from '../../../core/stats/crossProducts';
 import { denseDesign } from '../../../core/stats/design';
+import { designCrossProducts } from '../../../core/stats/designCrossProducts';
 import { pnorm } from '../../../core/stats/distributions';
 import { durbinWatson } from '../../../core/stats/durbinWatson';
 import { quadraticFormLowerTail } from '../../../core/stats/imhof';
+import { polynomialDesigns } from './polynomialDesigns';
 import { seededNormals } from './seededNormal';
 
 /** Intercept-only design with n rows. */
@@ -108,6 +111,25 @@ describe('durbinWatson', () => {
     assert.ok(durbinWatson(e).pValue < 1e-6);
     assert.ok(durbinWatson(e, interceptOnly(n)).pValue < 1e-6);
     assert.ok(durbinWatson(e.subarray(0, 60), interceptOnly(60)).pValue < 1e-4);
+  });
+
+  it('durbinWatson(normal) depends on the design only through its column space: monomials (too ill-conditioned for cross products, Givens route) give the Chebyshev result', () => {
+    // Durbin & Watson (1971): the moments are traces of M A and (M A)^2, and M = I - H is
+    // the same for any basis of the column space. Degree-7 monomials on [0, 1] and the
+    // Chebyshev polynomials T_0..T_7(2x - 1) span the same space.
+    const n = 150;
+    const p = 8;
+    const { monomials, chebyshev } = polynomialDesigns(n, p);
+    assert.equal(ScaledCholesky.of(designCrossProducts(monomials, n, {}).gram, p), undefined, 'premise: the monomial Gram matrix is refused');
+    assert.ok(ScaledCholesky.of(designCrossProducts(chebyshev, n, {}).gram, p), 'premise: the Chebyshev Gram matrix is accepted');
+    const z = seededNormals(41, n);
+    const e = new Float64Array(n);
+    e[0] = z[0] as number;
+    for (let i = 1; i < n; i++) e[i] = 0.3 * (e[i - 1] as number) + (z[i] as number);
+    const viaGivens = durbinWatson(e, monomials);
+    const viaCrossProducts = durbinWatson(e, chebyshev);
+    assert.equal(viaGivens.method, 'normal');
+    assert.ok(Math.abs(viaGivens.pValue - viaCrossProducts.pValue) <= 1e-9 * viaCrossProducts.pValue, `${viaGivens.pValue} vs ${viaCrossProducts.pValue}`);
   });
 
   it('durbinWatson rejects short, non-finite or all-zero residuals and unusable designs', () => {

@@ -2,6 +2,7 @@ import { strict as assert } from 'node:assert';
 import { InputError } from '../../../core/errors';
 import { pf } from '../../../core/stats/distributions';
 import { lackOfFit } from '../../../core/stats/lackOfFit';
+import { orderByX } from '../../../core/tune/plan';
 
 describe('lackOfFit', () => {
   it('lackOfFit splits a straight-line RSS into pure error and lack of fit (worked by hand from Draper & Smith 1998, section 2.1)', () => {
@@ -55,6 +56,24 @@ describe('lackOfFit', () => {
     assert.ok(r);
     assert.equal(r.F, Infinity);
     assert.equal(r.pValue, 0);
+  });
+
+  it('lackOfFit with the row order given (orderByX) gives the same split as sorting itself, and rejects an order that is not one', () => {
+    // The Draper & Smith example above, rows shuffled.
+    const x = Float64Array.of(3, 1, 2, 1, 3, 2);
+    const y = Float64Array.of(6, 1, 2, 3, 8, 4);
+    const own = lackOfFit(x, y, undefined, 9, 2);
+    const given = lackOfFit(x, y, undefined, 9, 2, orderByX(x));
+    assert.ok(own && given);
+    assert.deepEqual(given, own);
+    assert.ok(Math.abs(given.pureErrorSS - 6) <= 1e-13);
+    const bad = (order: number[]): void => {
+      assert.throws(() => lackOfFit(x, y, undefined, 9, 2, Int32Array.from(order)), (e: unknown) => e instanceof InputError && /does not list every row once by ascending x/.test(e.message));
+    };
+    bad([1, 3, 2, 5, 4]); // a row missing
+    bad([1, 1, 2, 5, 0, 4]); // a row twice
+    bad([1, 2, 3, 5, 0, 4]); // not ascending
+    bad([1, 3, 2, 5, 0, 6]); // out of range
   });
 
   it('lackOfFit rejects mismatched lengths, non-finite values, non-positive weights and a negative RSS', () => {

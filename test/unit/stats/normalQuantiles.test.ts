@@ -39,6 +39,18 @@ describe('normalQuantiles', () => {
     assert.deepEqual(Array.from(q.index), [2, 4, 0]);
   });
 
+  it('normalQuantiles orders tied values, -0 and +0 included, by input index (stable sort)', () => {
+    const q = normalQuantiles(Float64Array.of(2, 0, -1, -0, 2, NaN, 0, -1));
+    assert.deepEqual(Array.from(q.index), [2, 7, 1, 3, 6, 0, 4]);
+    assert.deepEqual(Array.from(q.rank), [0, 1, 2, 3, 4, 5, 6]);
+    const many = Float64Array.from({ length: 5000 }, (_, i) => (i * 37) % 5);
+    const big = normalQuantiles(many, 5000);
+    for (let k = 1; k < 5000; k++) {
+      const [a, b] = [big.index[k - 1] as number, big.index[k] as number];
+      assert.ok((many[a] as number) < (many[b] as number) || ((many[a] as number) === (many[b] as number) && a < b), `position ${k}`);
+    }
+  });
+
   it('normalQuantiles rejects maxPoints below 3', () => {
     assert.throws(() => normalQuantiles(Float64Array.of(1, 2, 3), 2), /maxPoints must be a whole number >= 3, got 2/);
   });

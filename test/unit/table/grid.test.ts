@@ -9,7 +9,7 @@
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import { InputError } from '../../../core/errors';
-import { checkInRange, DEFAULT_GRID_COUNT, defaultGrid, gridPoints, MAX_GRID_POINTS, parseGrid } from '../../../core/table/grid';
+import { checkInRange, DEFAULT_GRID_COUNT, defaultGrid, formatGrid, gridPoints, MAX_GRID_POINTS, parseGrid } from '../../../core/table/grid';
 
 /** datasets::cars$speed (R 4.2), already sorted in the dataset. */
 const CARS_SPEED = Float64Array.of(
@@ -151,5 +151,39 @@ describe('checkInRange', () => {
     const pts = Float64Array.of(3.5, 4, 25, 25.5, 30);
     throwsInput(() => checkInRange(pts, 4, 25, false), /^3 grid point\(s\) lie outside the data range \[4, 25\]/, /--extrapolate/);
     assert.equal(checkInRange(pts, 4, 25, true), 3);
+  });
+});
+
+describe('parseGrid auto and formatGrid', () => {
+  it('parseGrid reads auto:<tolerance> and <start>:<stop>:auto=<tolerance>', () => {
+    assert.deepEqual(parseGrid('auto:0.001'), { kind: 'auto', tolerance: 0.001 });
+    assert.deepEqual(parseGrid(' auto : 1e-4 '), { kind: 'auto', tolerance: 1e-4 });
+    assert.deepEqual(parseGrid('10:90:auto=0.5'), { kind: 'auto', tolerance: 0.5, start: 10, stop: 90 });
+  });
+
+  it('parseGrid refuses a tolerance that is not a positive number, naming the grid', () => {
+    throwsInput(() => parseGrid('auto:0'), /grid "auto:0": the tolerance of the automatic step must be a positive number/);
+    throwsInput(() => parseGrid('auto:-1'), /must be a positive number/);
+    throwsInput(() => parseGrid('auto:x'), /tolerance "x" is not a number/);
+    throwsInput(() => parseGrid('0:1:auto='), /tolerance "" is not a number/);
+  });
+
+  it('gridPoints refuses an unresolved automatic step with a clear message', () => {
+    throwsInput(() => gridPoints({ kind: 'auto', tolerance: 1 }, CARS_SPEED), /an automatic step needs the fitted curve/);
+  });
+
+  it('formatGrid is the inverse of parseGrid for every kind', () => {
+    for (const text of ['0:10:11', '-2.5:75:step=0.25', 'data', '1,2.5,4', 'auto:0.001', '10:90:auto=0.5', '0.1:0.30000000000000004:3']) {
+      const spec = parseGrid(text);
+      assert.deepEqual(parseGrid(formatGrid(spec)), spec, text);
+    }
+    fc.assert(
+      fc.property(finite(-1e6, 1e6), finite(1e-9, 1e6), finite(1e-12, 1e3), (start, span, tolerance) => {
+        const spec = { kind: 'auto' as const, tolerance, start, stop: start + span };
+        fc.pre(spec.stop > start);
+        assert.deepEqual(parseGrid(formatGrid(spec)), spec);
+      }),
+      { numRuns: 200, seed: 7103 },
+    );
   });
 });

@@ -1,0 +1,277 @@
+/**
+ * Fits with an outcome family (Poisson, binomial), shape constraints or Huber weights: the
+ * routing, checks and result assembly shared by fitCurve and the resampling engine.
+ */
+import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
+import { OrthoPolyBasis } from '../basis/orthoPoly';
+import type { RowBasis } from '../basis/rowBasis';
+import { FitError, InputError } from '../errors';
+import { nullSpace } from '../linalg/nullSpace';
+import type { Family, FitResult, ModelOptions, ModelReport, Outcome, Shape } from '../types';
+import { CachedRows } from './cachedRows';
+import { checkOutcomeData, irls, outcomeFamily } from './glm';
+import { summariseGlm } from './glmSummary';
+import { RowBasisCurve } from './linearFit';
+import { LinearSystem } from './linearSystem';
+import { LinkCurve } from './linkCurve';
+import type { PreparedData } from './prepared';
+import { HUBER_K, huberIrls } from './robust';
+import { checkShapes, shapeRows, shapeWords, type ShapeRows } from './shape';
+import { summariseFit } from './summary';
+
+/** Most down-weighted rows listed by line in a robust fit's report (the count is always given). */
+export const ROBUST_LIST_LIMIT = 1000;
+/** Largest accepted Huber tuning constant; beyond it the fit is least squares in practice. */
+export const MAX_HUBER_K = 100;
+
+/** Model options after checking: every field present. */
+export interface ResolvedModel {
+  readonly outcome: Outcome;
+  readonly shape: readonly Shape[];
+  /** Huber tuning constant, or undefined for least squares. */
+  readonly robustK: number | undefined;
+}
+
+/** True when the options ask for plain (weighted) least squares: Gaussian, no shape, not robust. */
+export function isPlainModel(m: ModelOptions | undefined): boolean {
+  return !m || ((m.outcome ?? 'gaussian') === 'gaussian' && (m.shape ?? []).length === 0 && !m.robust);
+}
+
+/**
+ * Checks model options against a curve family and normalises them. Shape constraints are
+ * available for the natural spline; Poisson, binomial and robust fitting for the natural
+ * spline and the polynomial; robust fitting for the Gaussian outcome only. The smoothing
+ * spline supports none of them: it is computed by a state-space smoother with a knot at
+ * every distinct x (core/fit/smoothingSpline.ts), which has no finite coefficient system
+ * to put inequalities or reweighting steps on without giving up its O(n) cost, and its df
+ * (the trace fixing lambda) is not defined for a constrained, non-linear fit.
+ * Throws InputError with the reason. Example: resolveModel('natural', { shape: ['convex'] }).
+ */
+export function resolveModel(family: Family, m: ModelOptions | undefined): ResolvedModel {
+  const outcome = m?.outcome ?? 'gaussian';
+  if (outcome !== 'gaussian' && outcome !== 'poisson' && outcome !== 'binomial') {
+    throw new InputError(`unknown outcome family "${String(outcome)}"; use gaussian, poisson or binomial`);
+  }
+  const shape = checkShapes(m?.shape ?? []);
+  const robust = m?.robust;
+  let robustK: number | undefined;
+  if (robust === true) robustK = HUBER_K;
+  else if (robust && typeof robust === 'object') {
+    robustK = robust.k;
+    if (!(robustK > 0 && robustK <= MAX_HUBER_K)) throw new InputError(`the Huber tuning constant must be above 0 and at most ${MAX_HUBER_K}; got ${robust.k}`);
+  }
+  if (family === 'smooth' && (outcome !== 'gaussian' || shape.length > 0 || robustK !== undefined)) {
+    throw new InputError(
+      'the cubic smoothing spline supports only least squares: shape constraints, Poisson and binomial outcomes and robust fitting need the natural spline (--model natural)',
+    );
+  }
+  if (family === 'poly' && shape.length > 0) throw new InputError('shape constraints need the natural spline (--model natural); the polynomial has no B-spline coefficients to constrain');
+  if (robustK !== undefined && outcome !== 'gaussian') throw new InputError(`robust (Huber) fitting applies to the Gaussian outcome only; it cannot be combined with a ${outcome} outcome`);
+  return { outcome, shape, robustK };
+}
+
+/** The row basis of one candidate, with its natural-spline restriction and shape rows. */
+export interface ModelBasis {
+  readonly basis: RowBasis;
+  readonly z: Float64Array | undefined;
+  readonly shape: ShapeRows | undefined;
+  readonly knots: Float64Array;
+  readonly lower: number;
+  readonly upper: number;
+  readonly notes: readonly string[];
+  readonly what: string;
+}
+
+/**
+ * Basis of a natural spline (knots as DESIGN.md, natural boundary conditions through the
+ * null space) or an orthogonal polynomial at df, with the shape rows of core/fit/shape.ts.
+ * Shapes other than non-negativity on a Poisson or binomial outcome apply to the linear
+ * predictor; non-negativity is dropped there (the mean is always positive). Cost O(n) for
+ * the polynomial recurrence, O(p^2) for the spline's constraints.
+ * Example: modelBasis(prepared, 'natural', 6, resolveModel('natural', { shape: ['convex'] })).shape.rows = 4.
+ */
+export function modelBasis(prepared: PreparedData, family: Family, df: number, model: ResolvedModel): ModelBasis {
+  const { sortedX } = prepared;
+  const lower = sortedX[0] as number;
+  const upper = sortedX[sortedX.length - 1] as number;
+  if (family === 'natural') {
+    const k = naturalKnots(sortedX, prepared.distinct, df);
+    const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
+    const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
+    const shapes = model.outcome === 'gaussian' ? model.shape : model.shape.filter((s) => s !== 'nonnegative');
+    const rows = shapes.length > 0 ? shapeRows(basis.knotVector, shapes, true) : undefined;
+    return { basis, z, shape: rows, knots: Float64Array.of(k.lower, ...k.interior, k.upper), lower, upper, notes: k.notes, what: `natural spline with df ${df}` };
+  }
+  if (family === 'poly') {
+    if (!(df >= 1) || !Number.isInteger(df)) throw new FitError(`polynomial df must be a whole number of at least 1; got ${df}`);
+    if (df > prepared.distinct) throw new FitError(`polynomial with df ${df} needs at least ${df} distinct x values; the data has ${prepared.distinct}`);
+    const basis: RowBasis = df === 1 ? { size: 1, width: 1, row: (_x: number, out: Float64Array) => ((out[0] = 1), 0) } : new OrthoPolyBasis(sortedX, prepared.data.x, df - 1);
+    return { basis, z: undefined, shape: undefined, knots: new Float64Array(0), lower, upper, notes: [], what: `polynomial with df ${df}` };
+  }
+  throw new InputError('the cubic smoothing spline supports only least squares');
+}
+
+/**
+ * Fits `family` at `df` with an outcome family, shape constraints and/or Huber weights
+ * (see core/fit/glm.ts, core/fit/shape.ts, core/fit/robust.ts). The result is a complete
+ * FitResult with a `model` report. Conventions:
+ *
+ * - df stays the number of free basis coefficients (the candidate df); with shape
+ *   constraints `model.constraints.effectiveDf` = df minus the independent active
+ *   constraints is the trace of the hat matrix at the active set (Meyer & Woodroofe 2000,
+ *   "On the degrees of freedom in shape-restricted regression", Annals of Statistics 28);
+ *   sigma, AIC and the bands keep n - df residual df, a conservative choice.
+ * - Bands and leverage of a constrained fit use the covariance of the least-squares fit
+ *   with the active constraints held as equalities (core/linalg/lsi.ts
+ *   activeSetCovariance): an approximation that treats the active set as known.
+ * - Robust fits report sigma = the robust scale and Huber's standard errors (robust.ts);
+ *   leverage is the hat diagonal of the final weighted least-squares step.
+ * - Poisson and binomial fits: fitted values are means, bands are built on the link scale
+ *   (core/fit/linkCurve.ts), statistics as in core/fit/glmSummary.ts.
+ *
+ * Cost: O(n) to cache the basis rows, then O(n) per reweighting iteration.
+ * Throws InputError for data that do not fit the outcome (naming the line), FitError when
+ * the data cannot support df.
+ * Example: fitModel(prepareData({ x, y }), 'natural', 6, resolveModel('natural', { outcome: 'poisson' })).
+ */
+export function fitModel(prepared: PreparedData, family: Family, df: number, model: ResolvedModel): FitResult {
+  const { data } = prepared;
+  if (model.outcome !== 'gaussian') checkOutcomeData(model.outcome, data);
+  const mb = modelBasis(prepared, family, df, model);
+  const rows = new CachedRows(mb.basis, data.x);
+  const system = new LinearSystem(mb.basis.size, mb.z, mb.shape, mb.what);
+  const n = data.x.length;
+  const w = data.w ?? new Float64Array(n).fill(1);
+  const shapeNotes = constraintNotes(model, mb, df);
+  if (model.outcome !== 'gaussian') {
+    const fam = outcomeFamily(model.outcome);
+    const res = irls(rows, system, data.y, w, fam);
+    const { cov, rank } = system.covariance(res.solution);
+    const leverage = new Float64Array(n);
+    rows.quadratic(cov, res.workingWeights, leverage);
+    const etaCurve = new RowBasisCurve(family, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
+    const curve = new LinkCurve(etaCurve, fam, fam.outcome === 'binomial' ? medianTrials(w) : 1);
+    const notes = [...mb.notes, ...shapeNotes(rank, res.solution.activeCount)];
+    const label = fam.outcome === 'poisson' ? 'Poisson outcome (log link)' : 'binomial outcome (logit link)';
+    notes.push(
+      res.converged
+        ? `${label} fitted by iteratively reweighted least squares in ${res.iterations} iterations.`
+        : `${label}: the iteratively reweighted least squares did not converge (${res.problem ?? 'unknown reason'}); treat this curve with caution.`,
+    );
+    return summariseGlm(data, fam, {
+      family,
+      df,
+      curve,
+      coefficients: res.theta,
+      knots: mb.knots,
+      eta: res.eta,
+      mu: res.mu,
+      leverage,
+      notes,
+      report: { ...reportBase(model, res.iterations, res.converged, fam.link), ...constraintReport(mb, df, rank, model) },
+    });
+  }
+  if (model.robustK !== undefined) {
+    const k = model.robustK;
+    const res = huberIrls(rows, system, data.y, w, k);
+    const total = new Float64Array(n);
+    for (let i = 0; i < n; i++) total[i] = (w[i] as number) * (res.weights[i] as number);
+    const weighted = system.covariance(res.solution);
+    const leverage = new Float64Array(n);
+    rows.quadratic(weighted.cov, total, leverage);
+    // Huber's standard errors: tau^2 (B'WB)^-1 with the prior weights only, as tau^2 / s^2 times the covariance factor.
+    const g = new Float64Array(mb.basis.size * mb.basis.size);
+    const rhs = new Float64Array(mb.basis.size);
+    rows.gram(w, data.y, g, rhs);
+    const prior = system.covarianceFor(g, res.solution);
+    const f2 = res.seFactor * res.seFactor;
+    const cov = prior.cov.map((v) => v * f2);
+    const curve = new RowBasisCurve(family, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
+    const down = downweighted(res.weights, w, data.lines);
+    const notes = [...mb.notes, ...shapeNotes(weighted.rank, res.solution.activeCount)];
+    notes.push(
+      `Robust fit (Huber M-estimation, k = ${k}, scale = median |residual| / 0.6745 = ${res.scale.toPrecision(4)}): ${down.total} of ${n} rows down-weighted` +
+        (down.rows.length > 0 ? ` (lowest weights at lines ${down.rows.slice(0, 5).map((r) => r.line).join(', ')})` : '') +
+        (res.converged ? `; converged in ${res.iterations} iterations.` : `; did not converge: ${res.problem ?? ''}.`),
+    );
+    if (res.converged && res.problem) notes.push(`Robust fit: ${res.problem}.`);
+    const base = summariseFit(data, { family, df, curve, coefficients: res.theta, knots: mb.knots, fitted: res.fitted, leverage, notes });
+    const report: ModelReport = {
+      ...reportBase(model, res.iterations, res.converged, 'identity'),
+      ...constraintReport(mb, df, weighted.rank, model),
+      robust: { k, scale: res.scale, weights: res.weights, downweighted: down },
+    };
+    return { ...base, sigma: res.scale, model: report };
+  }
+  const g = new Float64Array(mb.basis.size * mb.basis.size);
+  const rhs = new Float64Array(mb.basis.size);
+  rows.gram(w, data.y, g, rhs);
+  const sol = system.solve(g, rhs);
+  const { cov, rank } = system.covariance(sol);
+  const fitted = new Float64Array(n);
+  rows.apply(sol.theta, fitted);
+  const leverage = new Float64Array(n);
+  rows.quadratic(cov, w, leverage);
+  const curve = new RowBasisCurve(family, df, mb.lower, mb.upper, mb.basis, sol.theta, cov, mb.z);
+  const notes = [...mb.notes, ...shapeNotes(rank, sol.activeCount)];
+  const base = summariseFit(data, { family, df, curve, coefficients: sol.theta, knots: mb.knots, fitted, leverage, notes });
+  return { ...base, model: { ...reportBase(model, 1, true, 'identity'), ...constraintReport(mb, df, rank, model) } };
+}
+
+function reportBase(model: ResolvedModel, iterations: number, converged: boolean, link: ModelReport['link']): ModelReport {
+  return { outcome: model.outcome, link, shape: model.shape, iterations, converged };
+}
+
+/** The shapes imposed as inequalities: non-negativity is implied by a Poisson or binomial outcome. */
+function imposedShapes(model: ResolvedModel): readonly Shape[] {
+  return model.outcome === 'gaussian' ? model.shape : model.shape.filter((s) => s !== 'nonnegative');
+}
+
+function constraintReport(mb: ModelBasis, df: number, rank: number, model: ResolvedModel): Pick<ModelReport, 'constraints'> {
+  if (imposedShapes(model).length === 0) return {};
+  return { constraints: { total: mb.shape?.rows ?? 0, active: rank, effectiveDf: df - rank } };
+}
+
+/** Notes on the shape constraints of a fit, as a function of the active count. */
+function constraintNotes(model: ResolvedModel, mb: ModelBasis, df: number): (rank: number, active: number) => string[] {
+  return (rank, active) => {
+    const notes: string[] = [];
+    const shapes = imposedShapes(model);
+    if (model.outcome !== 'gaussian' && model.shape.includes('nonnegative')) notes.push(`Shape "nonnegative" is implied by the ${model.outcome} outcome (its mean is always positive) and was not imposed separately.`);
+    if (shapes.length === 0) return notes;
+    const total = mb.shape?.rows ?? 0;
+    const scale = model.outcome === 'gaussian' ? '' : ` on the ${model.outcome === 'poisson' ? 'log' : 'logit'} scale`;
+    notes.push(
+      `Shape: ${shapeWords(shapes)}${scale}, guaranteed everywhere in the data range through ${total} linear inequalities on the B-spline coefficients; ` +
+        (active === 0
+          ? 'none is active, so the curve equals the unconstrained fit.'
+          : `${active} active${rank < active ? ` (${rank} independent)` : ''}, so ${df - rank} of the ${df} coefficients remain free. The bands treat the active constraints as fixed equalities, an approximation that ignores the chance of a different active set.`),
+    );
+    if (shapes.includes('nonnegative')) notes.push('Non-negativity is guaranteed within the data range only: beyond it the natural spline continues linearly and may cross zero.');
+    return notes;
+  };
+}
+
+/** Rows whose Huber weight is below 1, lowest weight first, at most ROBUST_LIST_LIMIT. */
+function downweighted(hw: Float64Array, w: Float64Array, lines: Int32Array | undefined): NonNullable<ModelReport['robust']>['downweighted'] {
+  const idx: number[] = [];
+  for (let i = 0; i < hw.length; i++) if ((hw[i] as number) < 1 && (w[i] as number) > 0) idx.push(i);
+  idx.sort((a, b) => (hw[a] as number) - (hw[b] as number) || a - b);
+  const rows = idx.slice(0, ROBUST_LIST_LIMIT).map((i) => ({ index: i, line: lines ? (lines[i] as number) : i + 1, weight: hw[i] as number }));
+  return { total: idx.length, rows };
+}
+
+/** Median prior weight, rounded, at least 1: the trials of a new binomial reading. */
+function medianTrials(w: Float64Array): number {
+  const s = Float64Array.from(w).sort();
+  const mid = s.length >> 1;
+  const med = s.length % 2 === 1 ? (s[mid] as number) : 0.5 * ((s[mid - 1] as number) + (s[mid] as number));
+  return Math.max(1, Math.round(med));
+}
+
+/** Parses an outcome family name: gaussian | poisson | binomial. Throws InputError. */
+export function parseOutcome(text: string): Outcome {
+  const t = text.trim().toLowerCase();
+  if (t === 'gaussian' || t === 'poisson' || t === 'binomial') return t;
+  throw new InputError(`unknown outcome family "${text}"; use gaussian, poisson or binomial`);
+}

@@ -1,0 +1,101 @@
+/**
+ * One fit from a file: read the CSV, choose the columns, fit or tune, and build every
+ * output's text. Shared by `knotwise fit` (which then writes them) and `knotwise check`
+ * (which compares them with what is on disk), so both take exactly the same steps.
+ */
+import { relative, resolve, sep, basename, extname } from 'node:path';
+import { analyse } from '../analysis';
+import type { Analysis, Diagnostics } from '../analysisTypes';
+import { buildDeliverables, type Deliverables } from '../deliver';
+import { diagnose } from '../diagnose';
+import { InputError } from '../errors';
+import { fitCurve } from '../fit/index';
+import { selectColumns, type Selection } from '../ingest/select';
+import { selectTrials } from '../ingest/trials';
+import type { FitPlan } from '../plan';
+import { holdoutMask, orderByX } from '../tune/plan';
+import type { FitResult, XYData } from '../types';
+import { sha256 } from './outputs';
+import { workerRunner } from './pool';
+import { readCsvFile, type FileTable } from './readCsv';
+
+/** Everything one run produced. */
+export interface PipelineRun {
+  readonly table: FileTable;
+  readonly selection: Selection;
+  /** The rows the fit used (without held-out rows). */
+  readonly fitted: XYData;
+  readonly analysis?: Analysis | undefined;
+  readonly fit: FitResult;
+  readonly diagnostics: Diagnostics;
+  readonly deliverables: Deliverables;
+}
+
+/**
+ * Errors raised while fitting know the row but not the file, and name the columns by role
+ * (x, y, weights): give them the file and the CSV's own column names.
+ */
+export function placed(e: unknown, file: string, labels: { readonly x: string; readonly y: string; readonly weights?: string }): unknown {
+  if (!(e instanceof InputError) || e.place.file !== undefined) return e;
+  const role = e.place.column;
+  const column = role === 'x' ? labels.x : role === 'y' ? labels.y : role === 'weights' ? labels.weights : role;
+  return new InputError(e.message, { file, line: e.place.line, column });
+}
+
+/** The rows left for fitting after the analysis's held-out split (the same split analyse makes). */
+function fittedRows(data: XYData, analysis: Analysis | undefined): XYData {
+  const fraction = analysis?.options.holdout;
+  if (!analysis || !fraction) return data;
+  const mask = holdoutMask(orderByX(data.x), fraction, analysis.options.seed);
+  const idx: number[] = [];
+  for (let i = 0; i < mask.length; i++) if (mask[i] === 0) idx.push(i);
+  const pick = (a: Float64Array): Float64Array => Float64Array.from(idx, (i) => a[i] as number);
+  return { x: pick(data.x), y: pick(data.y), w: data.w ? pick(data.w) : undefined, lines: data.lines ? Int32Array.from(idx, (i) => (data.lines as Int32Array)[i] as number) : undefined };
+}
+
+/** `target` relative to `folder`, with `/` separators (so records read the same on every system). */
+export function portableRelative(folder: string, target: string): string {
+  return relative(resolve(folder), resolve(target)).split(sep).join('/');
+}
+
+/**
+ * Reads `file`, fits as `plan` says, and builds the outputs as they would be written into
+ * `outFolder` (the data path in the record and the regenerate command is relative to it).
+ * Throws InputError (with file, line and column where known) for bad input.
+ * Example: const run = await runPipeline('cal.csv', plan, 'out'); run.deliverables.files.
+ */
+export async function runPipeline(file: string, plan: FitPlan, outFolder: string): Promise<PipelineRun> {
+  const table = await readCsvFile(file);
+  // A binomial outcome with a trials column: proportions, with the trials as weights (core/ingest/trials.ts).
+  const selection = plan.trials !== undefined ? selectTrials(table, plan.columns, plan.trials, file) : selectColumns(table, plan.columns, file);
+  let fit: FitResult;
+  let analysis: Analysis | undefined;
+  try {
+    if (plan.tune) {
+      analysis = await analyse(selection.data, plan.options, workerRunner());
+      fit = analysis.chosen;
+    } else {
+      const { outcome, shape, robust } = plan.options;
+      fit = fitCurve(selection.data, { family: plan.options.family, df: plan.options.candidates?.[0] as number, outcome, shape, robust });
+    }
+  } catch (e) {
+    throw placed(e, file, selection.labels);
+  }
+  const fitted = fittedRows(selection.data, analysis);
+  const diagnostics = analysis ? analysis.diagnostics : diagnose(selection.data, fit);
+  const deliverables = buildDeliverables({
+    plan,
+    stem: basename(file, extname(file)),
+    dataFile: basename(file),
+    dataPath: portableRelative(outFolder, file),
+    dataSha256: table.sha256,
+    rowsRead: table.rowCount,
+    selection,
+    fitted,
+    analysis,
+    fit,
+    diagnostics,
+    sha256,
+  });
+  return { table, selection, fitted, analysis, fit, diagnostics, deliverables };
+}

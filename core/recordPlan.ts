@@ -1,0 +1,215 @@
+/**
+ * Reads a fit record back into the plan that made it, so its outputs can be rebuilt from
+ * the data (`knotwise check`). Every field is checked; a bad record is refused with the
+ * key at fault.
+ */
+import type { AnalysisOptions } from './analysisTypes';
+import { EMIT_KINDS, type EmitKind } from './emit/common';
+import { InputError } from './errors';
+import { DEFAULT_OUTPUT, type FitPlan } from './plan';
+import { RECORD_FORMAT, RECORD_VERSION } from './record';
+import { parseOutcome } from './fit/model';
+import { parseShapeList } from './fit/shape';
+import { parseFamily, parseResample, parseRule } from './spec';
+import type { ModelOptions } from './types';
+import { parseColumns } from './table/columns';
+import { formatGrid, parseGrid, type GridSpec } from './table/grid';
+import type { RuleSpec } from './tune/types';
+
+/** What a record says about its run. */
+export interface RecordedRun {
+  readonly plan: FitPlan;
+  /** The data file relative to the record's folder, `/`-separated. */
+  readonly dataPath: string;
+  readonly dataFile: string;
+  readonly dataSha256: string;
+  readonly rowsUsed: number;
+  /** Version of Knotwise that wrote the record. */
+  readonly toolVersion: string;
+  /** Chosen df and family of the recorded fit. */
+  readonly df: number;
+  /** Every recorded output (table first) by file name, with its SHA-256. */
+  readonly files: readonly { readonly file: string; readonly sha256: string }[];
+}
+
+type Json = Record<string, unknown>;
+
+/** Reads typed fields of one record, naming the key at fault. */
+class Fields {
+  constructor(private readonly where: string) {}
+  fail(key: string, what: string): never {
+    throw new InputError(`fit record: "${key}" ${what}`, { file: this.where });
+  }
+  obj(o: Json, key: string, path = key): Json {
+    const v = o[key];
+    if (v === null || typeof v !== 'object' || Array.isArray(v)) this.fail(path, 'must be an object');
+    return v as Json;
+  }
+  str(o: Json, key: string, path = key): string {
+    const v = o[key];
+    if (typeof v !== 'string') this.fail(path, 'must be a string');
+    return v;
+  }
+  num(o: Json, key: string, path = key): number {
+    const v = o[key];
+    if (typeof v !== 'number' || !Number.isFinite(v)) this.fail(path, 'must be a number');
+    return v;
+  }
+  bool(o: Json, key: string, path = key, fallback?: boolean): boolean {
+    const v = o[key];
+    if (v === undefined && fallback !== undefined) return fallback;
+    if (typeof v !== 'boolean') this.fail(path, 'must be true or false');
+    return v;
+  }
+  /** Runs a parser on a field, giving its errors the record and the key. */
+  parse<T>(path: string, read: () => T): T {
+    try {
+      return read();
+    } catch (e) {
+      if (e instanceof InputError && e.place.file === undefined) this.fail(path, `is not valid: ${e.message}`);
+      throw e;
+    }
+  }
+  arr(o: Json, key: string, path = key): unknown[] {
+    const v = o[key];
+    if (!Array.isArray(v)) this.fail(path, 'must be an array');
+    return v;
+  }
+}
+
+/** A rule label as ruleLabel writes it: lowest, 1se, tol:<p>, or df:<k> (chosen by hand). */
+function parseRuleLabel(text: string): RuleSpec {
+  const manual = /^df:(\d+(?:\.\d+)?)$/.exec(text);
+  return manual ? { kind: 'manual', df: Number(manual[1]) } : parseRule(text);
+}
+
+/** A grid object as the record stores it, checked through its text form. */
+function gridOf(v: unknown, f: Fields): GridSpec {
+  if (v === null || typeof v !== 'object') f.fail('spec.grid', 'must be an object');
+  const g = v as Json;
+  const numbers = (keys: string[]): void => {
+    for (const k of keys) if (g[k] !== undefined && (typeof g[k] !== 'number' || !Number.isFinite(g[k]))) f.fail(`spec.grid.${k}`, 'must be a number');
+  };
+  switch (g.kind) {
+    case 'count':
+      numbers(['start', 'stop', 'count']);
+      break;
+    case 'step':
+      numbers(['start', 'stop', 'step']);
+      break;
+    case 'auto':
+      numbers(['tolerance', 'start', 'stop']);
+      break;
+    case 'list':
+      if (!Array.isArray(g.values) || g.values.some((x) => typeof x !== 'number' || !Number.isFinite(x))) f.fail('spec.grid.values', 'must be an array of numbers');
+      break;
+    case 'data':
+      break;
+    default:
+      f.fail('spec.grid.kind', 'must be count, step, data, list or auto');
+  }
+  return f.parse('spec.grid', () => parseGrid(formatGrid(g as GridSpec)));
+}
+
+/** spec.model (absent in records without model options): outcome, shapes, robust fitting, trials column. */
+function modelOf(v: unknown, f: Fields): { options: ModelOptions; trials?: string } {
+  if (v === undefined || v === null) return { options: {} };
+  if (typeof v !== 'object' || Array.isArray(v)) return f.fail('spec.model', 'must be an object');
+  const m = v as Json;
+  const options: { -readonly [K in keyof ModelOptions]: ModelOptions[K] } = {};
+  if (m.outcome !== null && m.outcome !== undefined) options.outcome = f.parse('spec.model.outcome', () => parseOutcome(f.str(m, 'outcome', 'spec.model.outcome')));
+  const shape = m.shape === undefined ? [] : f.arr(m, 'shape', 'spec.model.shape');
+  if (shape.length) options.shape = f.parse('spec.model.shape', () => parseShapeList(shape.map(String).join(',')));
+  if (m.robust === true) options.robust = true;
+  else if (m.robust !== null && m.robust !== undefined) options.robust = { k: f.num(f.obj(m, 'robust', 'spec.model.robust'), 'k', 'spec.model.robust.k') };
+  const trials = m.trials === null || m.trials === undefined ? undefined : f.str(m, 'trials', 'spec.model.trials');
+  return trials !== undefined ? { options, trials } : { options };
+}
+
+/**
+ * Reads a parsed fit record (format RECORD_FORMAT, version up to RECORD_VERSION) into its
+ * plan and provenance. `where` names the record in messages. Throws InputError for another
+ * format, a newer version, or a missing or mistyped field. O(size of the record).
+ * Example: readRecord(JSON.parse(text), 'cal.fit.json').plan.options.seed.
+ */
+export function readRecord(json: unknown, where: string): RecordedRun {
+  const f = new Fields(where);
+  if (json === null || typeof json !== 'object' || Array.isArray(json)) throw new InputError('not a fit record: the file is not a JSON object', { file: where });
+  const rec = json as Json;
+  if (rec.format !== RECORD_FORMAT) throw new InputError(`not a fit record: "format" is ${JSON.stringify(rec.format)}, expected "${RECORD_FORMAT}"`, { file: where });
+  const version = f.num(rec, 'version');
+  if (version > RECORD_VERSION) throw new InputError(`fit record version ${version} was written by a newer Knotwise; this one reads up to version ${RECORD_VERSION}`, { file: where });
+  const tool = f.obj(rec, 'tool');
+  const data = f.obj(rec, 'data');
+  const columns = f.obj(data, 'columns', 'data.columns');
+  const spec = f.obj(rec, 'spec');
+  const fit = f.obj(rec, 'fit');
+  const table = f.obj(rec, 'table');
+  const family = f.parse('spec.family', () => parseFamily(f.str(spec, 'family', 'spec.family')));
+  const candidates = f.arr(spec, 'candidates', 'spec.candidates').map((v, i): number => {
+    if (typeof v !== 'number' || !(v >= 1)) return f.fail(`spec.candidates[${i}]`, 'must be a number of at least 1');
+    return v;
+  });
+  if (candidates.length === 0) f.fail('spec.candidates', 'must not be empty');
+  const resample = spec.resample === null || spec.resample === undefined ? null : f.str(spec, 'resample', 'spec.resample');
+  const tune = f.bool(spec, 'tuned', 'spec.tuned', resample !== null);
+  const holdout = spec.holdout === null || spec.holdout === undefined ? undefined : f.num(spec, 'holdout', 'spec.holdout');
+  const model = modelOf(spec.model, f);
+  let options: AnalysisOptions;
+  if (tune) {
+    if (resample === null) return f.fail('spec.resample', 'must be given for a tuned fit');
+    options = {
+      family,
+      candidates: f.bool(spec, 'candidatesDefault', 'spec.candidatesDefault', false) ? undefined : candidates,
+      resample: f.parse('spec.resample', () => parseResample(resample)),
+      rule: f.parse('spec.rule', () => parseRuleLabel(f.str(spec, 'rule', 'spec.rule'))),
+      seed: f.num(spec, 'seed', 'spec.seed'),
+      holdout,
+      ...model.options,
+    };
+  } else {
+    options = { family, candidates: [candidates[0] as number], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0, ...model.options };
+  }
+  const emit = f.arr(spec, 'emit', 'spec.emit').map((k, i) => {
+    const kind = EMIT_KINDS.find((e) => e === k);
+    if (kind === undefined) f.fail(`spec.emit[${i}]`, `must be one of ${EMIT_KINDS.join(', ')}`);
+    return kind as EmitKind;
+  });
+  const requested = spec.columns === null || spec.columns === undefined ? undefined : f.parse('spec.columns', () => parseColumns(f.arr(spec, 'columns', 'spec.columns').map(String).join(',')));
+  const output = {
+    ...DEFAULT_OUTPUT,
+    grid: f.bool(spec, 'gridDefault', 'spec.gridDefault', false) ? undefined : gridOf(spec.grid, f),
+    extrapolate: f.bool(spec, 'extrapolate', 'spec.extrapolate'),
+    digits: f.num(spec, 'digits', 'spec.digits'),
+    columns: requested,
+    nonnegative: f.bool(spec, 'nonnegative', 'spec.nonnegative', false),
+    emit: spec.emit === undefined ? [] : emit,
+    report: f.bool(spec, 'report', 'spec.report', false),
+  };
+  const weights = columns.weights === undefined || columns.weights === null ? undefined : f.str(columns, 'weights', 'data.columns.weights');
+  const plan: FitPlan = {
+    columns: { x: f.str(columns, 'x', 'data.columns.x'), y: f.str(columns, 'y', 'data.columns.y'), ...(weights !== undefined ? { weights } : {}) },
+    tune,
+    options,
+    output,
+    ...(model.trials !== undefined ? { trials: model.trials } : {}),
+  };
+  const files = [{ file: f.str(table, 'file', 'table.file'), sha256: f.str(table, 'sha256', 'table.sha256') }];
+  if (rec.outputs !== undefined) {
+    f.arr(rec, 'outputs').forEach((o, i) => {
+      if (o === null || typeof o !== 'object') f.fail(`outputs[${i}]`, 'must be an object');
+      files.push({ file: f.str(o as Json, 'file', `outputs[${i}].file`), sha256: f.str(o as Json, 'sha256', `outputs[${i}].sha256`) });
+    });
+  }
+  const dataFile = f.str(data, 'file', 'data.file');
+  return {
+    plan,
+    dataPath: data.path === undefined ? dataFile : f.str(data, 'path', 'data.path'),
+    dataFile,
+    dataSha256: f.str(data, 'sha256', 'data.sha256'),
+    rowsUsed: f.num(data, 'rowsUsed', 'data.rowsUsed'),
+    toolVersion: f.str(tool, 'version', 'tool.version'),
+    df: f.num(fit, 'df', 'fit.df'),
+    files,
+  };
+}

@@ -1,0 +1,186 @@
+/**
+ * The review report: a Markdown page that renders in a code review, with the figures as
+ * SVG files beside it, the explanation of the chosen df, the candidate errors, residual
+ * checks, influential rows, what the table holds (extrapolated and negative rows flagged),
+ * the warnings, the data's provenance, how to reproduce it, and the caution.
+ */
+import type { Analysis, Diagnostics } from '../analysisTypes';
+import type { RejectedRow } from '../ingest/select';
+import { shellWord } from '../plan';
+import { num } from '../plots/svg';
+import type { TableSummary } from '../record';
+import { metricLabel, ruleLabel, ruleWords } from '../tune/format';
+import type { FitResult } from '../types';
+import { checkViews, familyWords, resampleWords } from '../view/words';
+import type { ReportFigure } from './figures';
+
+/** Rows of long lists (rejected rows, influential rows, flagged x) shown before "... and N more". */
+export const REPORT_LIST_LIMIT = 20;
+
+/** What the report says. */
+export interface ReportInput {
+  readonly dataFile: string;
+  readonly dataSha256: string;
+  readonly labels: { readonly x: string; readonly y: string; readonly weights?: string | undefined };
+  readonly rowsRead: number;
+  readonly rowsUsed: number;
+  readonly rejected: readonly RejectedRow[];
+  readonly fit: FitResult;
+  readonly analysis?: Analysis | undefined;
+  readonly diagnostics: Diagnostics;
+  readonly table: TableSummary & { readonly file: string; readonly digits: number; readonly gridText: string };
+  readonly figures: readonly ReportFigure[];
+  readonly warnings: readonly string[];
+  readonly recordFile: string;
+  readonly regenerate: string;
+  /** Names of the emitted code files. */
+  readonly emitted: readonly string[];
+  readonly caution: string;
+}
+
+/** Text from the CSV or a file name, with Markdown and HTML punctuation escaped. */
+export function md(text: string): string {
+  return text.replace(/[\\`*_[\]<>|#!~&]/g, (c) => `\\${c}`).replace(/[\r\n]+/g, ' ');
+}
+
+/** A file name as a relative link target (spaces and parentheses percent-encoded). */
+function link(file: string): string {
+  return encodeURI(file).replace(/\(/g, '%28').replace(/\)/g, '%29');
+}
+
+/** Up to REPORT_LIST_LIMIT numbers, then "... and N more". */
+function someNumbers(values: readonly number[]): string {
+  const head = values.slice(0, REPORT_LIST_LIMIT).map((v) => num(v, 6)).join(', ');
+  return values.length > REPORT_LIST_LIMIT ? `${head}, … and ${values.length - REPORT_LIST_LIMIT} more` : head;
+}
+
+function figure(f: ReportFigure | undefined): string[] {
+  return f ? [`![${md(f.caption)}](${link(f.name)})`, '', `*${md(f.caption)}.*`, ''] : [];
+}
+
+function whyThisDf(a: Analysis | undefined, fit: FitResult): string[] {
+  if (!a) return [`The df was given (${num(fit.df, 4)}); it was not tuned.`, ''];
+  const t = a.tune;
+  const s = t.selected;
+  const out = [`${md(s.reason)}`, '', `Errors were estimated by ${md(resampleWords(t.resample, t.seed))}; the rule is the ${md(ruleWords(s.rule))} (\`--rule ${ruleLabel(s.rule)}\`).`];
+  if (t.holdout) {
+    const h = t.holdout;
+    out.push('', `Held-out check (${h.rows} rows, ${num(100 * h.fraction, 3)} % set aside before tuning and used once): RMSE ${num(h.rmse)} against the resampled ${num(h.resampledRmse)}.${h.warning ? ` **${md(h.warning)}**` : ''}`);
+  }
+  return [...out, ''];
+}
+
+function candidateTable(a: Analysis): string[] {
+  const metric = a.tune.metric;
+  const label = metricLabel(metric);
+  const out = [`| df | mean ${label} | SE | AIC | BIC | |`, '| ---: | ---: | ---: | ---: | ---: | --- |'];
+  for (const c of a.tune.candidates) {
+    if (c.skipped !== undefined) {
+      out.push(`| ${num(c.df)} | | | | | skipped: ${md(c.skipped)} |`);
+      continue;
+    }
+    const e = c.errors[metric];
+    const chosen = c.df === a.tune.selected.df ? '**chosen**' : '';
+    out.push(`| ${num(c.df)} | ${e ? num(e.mean, 5) : ''} | ${e && Number.isFinite(e.se) ? num(e.se, 3) : ''} | ${c.aic !== undefined ? num(c.aic, 6) : ''} | ${c.bic !== undefined ? num(c.bic, 6) : ''} | ${chosen} |`);
+  }
+  if (a.tune.selected.threshold !== undefined) out.push('', `Threshold of the rule: ${num(a.tune.selected.threshold, 5)}.`);
+  return [...out, ''];
+}
+
+function checks(d: Diagnostics, fit: FitResult): string[] {
+  const out = checkViews(d).map((c) => `- ${c.flagged ? '⚠ ' : ''}**${md(c.name)}**: ${md(c.text)}`);
+  if (!out.length) out.push('- No residual check applies to this fit.');
+  out.push('', `Fit: residual standard error ${num(fit.sigma)}, R² ${num(fit.r2)}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`);
+  const inf = d.influential;
+  if (inf.total === 0) out.push('', 'No row exceeds the influence thresholds.');
+  else {
+    out.push('', `Influential rows (${inf.total}; thresholds: ${inf.thresholds.map((t) => `${t.measure === 'cooks' ? "Cook's distance" : 'leverage'} > ${num(t.value, 3)} (${md(t.source)})`).join(', ')}):`, '');
+    for (const r of inf.rows.slice(0, REPORT_LIST_LIMIT)) out.push(`- line ${r.line}: leverage ${num(r.leverage, 3)}, Cook's distance ${num(r.cooksDistance, 3)}`);
+    if (inf.rows.length > REPORT_LIST_LIMIT) out.push(`- … and ${inf.rows.length - REPORT_LIST_LIMIT} more`);
+  }
+  return [...out, ''];
+}
+
+function tableSection(input: ReportInput): string[] {
+  const t = input.table;
+  const out = [
+    `[${md(t.file)}](${link(t.file)}): ${t.points} rows from x = ${num(t.range[0], 6)} to ${num(t.range[1], 6)} (grid \`${t.gridText}\`), columns ${t.columns.map((c) => `\`${c}\``).join(', ')}, ${t.digits} significant digits. Bands are pointwise 95 %.`,
+    '',
+  ];
+  const ip = t.interpolation;
+  if (ip) {
+    out.push(
+      ip.tolerance !== null
+        ? `Automatic step ${num(ip.step ?? NaN, 6)}: linear interpolation between adjacent rows stays within ${num(ip.maxError, 3)} of the curve (tolerance ${num(ip.tolerance, 3)}; largest at x = ${num(ip.at, 6)}).`
+        : `Linear interpolation between adjacent rows stays within ${num(ip.maxError, 3)} of the curve (largest at x = ${num(ip.at, 6)}).`,
+      '',
+    );
+  }
+  const [lo, hi] = [input.fit.curve.lower, input.fit.curve.upper];
+  out.push(
+    t.extrapolated.length
+      ? `**Extrapolated rows: ${t.extrapolated.length}** (outside the data range ${num(lo, 6)} to ${num(hi, 6)}; flagged in the \`extrapolated\` column): x = ${someNumbers(t.extrapolated)}.`
+      : `No row is extrapolated: every x lies within the data range ${num(lo, 6)} to ${num(hi, 6)}.`,
+  );
+  if (t.negative !== null) {
+    out.push(
+      '',
+      t.negative.length
+        ? `**The curve is below zero at ${t.negative.length} rows** although the quantity was declared non-negative (flagged in the \`negative\` column): x = ${someNumbers(t.negative)}.`
+        : 'The quantity was declared non-negative; the curve stays at or above zero at every row.',
+    );
+  }
+  return [...out, ''];
+}
+
+function dataSection(input: ReportInput): string[] {
+  const l = input.labels;
+  const out = [
+    `- File: ${md(input.dataFile)}, SHA-256 \`${input.dataSha256}\``,
+    `- Columns: x = ${md(l.x)}, y = ${md(l.y)}${l.weights !== undefined ? `, weights = ${md(l.weights)}` : ''}`,
+    `- Rows: ${input.rowsRead} read, ${input.rowsUsed} used, ${input.rejected.length} rejected`,
+  ];
+  for (const r of input.rejected.slice(0, REPORT_LIST_LIMIT)) out.push(`  - line ${r.line}${r.column ? ` (${md(r.column)})` : ''}: ${md(r.reason)}`);
+  if (input.rejected.length > REPORT_LIST_LIMIT) out.push(`  - … and ${input.rejected.length - REPORT_LIST_LIMIT} more (all are listed in the fit record)`);
+  return [...out, ''];
+}
+
+/**
+ * The report's Markdown text (LF, final newline). Figures are referenced by relative file
+ * name, so the page renders wherever it is committed beside them. Deterministic: no dates,
+ * no tool version. O(candidates + listed rows).
+ * Example: reportMarkdown(input).startsWith('# Curve review: ').
+ */
+export function reportMarkdown(input: ReportInput): string {
+  const { fit, analysis: a } = input;
+  const fig = (key: string): ReportFigure | undefined => input.figures.find((f) => f.name.endsWith(`.report.${key}.svg`));
+  const lines: string[] = [
+    `# Curve review: ${md(input.dataFile)}`,
+    '',
+    `> **Caution.** ${md(input.caution)}`,
+    '',
+    `A ${familyWords(fit.family)} with df ${num(fit.df, 4)} was fitted to ${input.rowsUsed} rows of ${md(input.dataFile)} (${md(input.labels.y)} against ${md(input.labels.x)})${a?.options.holdout ? `, of which ${a.n} were used for fitting and the rest held out` : ''}. The curve table ${md(input.table.file)} has ${input.table.points} rows.`,
+    '',
+  ];
+  if (input.warnings.length) lines.push('## Warnings', '', ...input.warnings.map((w) => `- ⚠ ${md(w)}`), '');
+  lines.push('## The curve', '', ...figure(fig('curve')), '## Why this df', '', ...whyThisDf(a, fit));
+  if (a) lines.push(...figure(fig('error')), ...candidateTable(a));
+  lines.push('## Residual checks', '', ...checks(input.diagnostics, fit), ...figure(fig('residuals-x')), ...figure(fig('residuals-fitted')), ...figure(fig('normal-quantiles')));
+  const notes = [...fit.notes, ...(a ? a.tune.notes : [])];
+  if (notes.length) lines.push('## Notes', '', ...notes.map((n) => `- ${md(n)}`), '');
+  lines.push('## Curve table', '', ...tableSection(input), '## Data', '', ...dataSection(input));
+  lines.push(
+    '## Reproduce and check',
+    '',
+    `Fit record: [${md(input.recordFile)}](${link(input.recordFile)})${input.emitted.length ? `; generated code: ${input.emitted.map((e) => `[${md(e)}](${link(e)})`).join(', ')}` : ''}.`,
+    '',
+    'Regenerate every output (in the folder holding this report), and check that they are current:',
+    '',
+    '```sh',
+    input.regenerate,
+    `knotwise check ${shellWord(input.recordFile)}`,
+    '```',
+    '',
+  );
+  return lines.join('\n');
+}

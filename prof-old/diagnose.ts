@@ -1,0 +1,100 @@
+import type { Diagnostics } from '../core/analysisTypes';
+import { RowBasisCurve } from '../core/fit/linearFit';
+import { breuschPagan } from './breuschPagan';
+import type { DesignRows } from '../core/stats/design';
+import { durbinWatson } from './durbinWatson';
+import { influentialRows } from '../core/stats/influence';
+import { lackOfFit } from './lackOfFit';
+import { normalQuantiles } from './normalQuantiles';
+import { shapiroWilk } from '../core/stats/shapiroWilk';
+import { sig } from '../core/tune/format';
+import type { FitResult, XYData } from '../core/types';
+
+/** Significance level of the residual checks' warnings (common practice). */
+export const CHECK_LEVEL = 0.05;
+/** Most points of the normal-quantile plot sent to a figure. */
+const QQ_POINTS = 400;
+
+/**
+ * Residual diagnostics of a fit: Shapiro-Wilk on the residuals, Durbin-Watson on the rows
+ * ordered by x, Breusch-Pagan (Koenker) on the model's design, the lack-of-fit F test when
+ * x has replicates, influential rows with CSV lines, normal-quantile plot data, and
+ * plain-language warnings for checks that fail at the 5 % level. Weighted fits use
+ * residuals scaled by sqrt(w). O(n log n + n p^2).
+ */
+export function diagnose(data: XYData, fit: FitResult): Diagnostics {
+  const n = fit.n;
+  const { x, w } = data;
+  const order = Int32Array.from({ length: n }, (_, i) => i).sort((a, b) => (x[a] as number) - (x[b] as number) || a - b);
+  const scaled = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    const i = order[j] as number;
+    scaled[j] = (fit.residuals[i] as number) * (w ? Math.sqrt(w[i] as number) : 1);
+  }
+  const warnings: string[] = [];
+  const design = designInXOrder(fit, x, order, w);
+  const out: { -readonly [K in keyof Diagnostics]: Diagnostics[K] } = { influential: influentialRows(fit.leverage, fit.cooksDistance, fit.df, data.lines), warnings };
+  const spread = scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
+  if (n >= 3 && spread) {
+    const sw = shapiroWilk(scaled);
+    out.shapiroWilk = sw;
+    if (sw.pValue < CHECK_LEVEL) warnings.push(`Residuals do not look normal (Shapiro-Wilk W = ${sig(sw.statistic, 4)}, p = ${sig(sw.pValue, 2)}); the bands assume normal errors.`);
+  }
+  if (n >= 3 && spread) {
+    const dw = durbinWatson(scaled, design);
+    out.durbinWatson = dw;
+    if (dw.pValue < CHECK_LEVEL) warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${sig(dw.statistic)}, p = ${sig(dw.pValue, 2)}): the curve may be too stiff, or the readings drift.`);
+    const bp = breuschPagan(scaled, design ?? lineDesign(x, order, w));
+    out.breuschPagan = bp;
+    if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${sig(bp.statistic)}, df ${bp.df}, p = ${sig(bp.pValue, 2)}); the bands assume constant spread. Consider weights.`);
+  }
+  const lof = lackOfFit(data.x, data.y, w, fit.rss, fit.df);
+  if (lof) {
+    out.lackOfFit = lof;
+    if (lof.pValue < CHECK_LEVEL) warnings.push(`The curve misses the means of replicated readings more than their scatter explains (lack-of-fit F = ${sig(lof.F)}, p = ${sig(lof.pValue, 2)}); a more flexible curve may be needed.`);
+  }
+  if (out.influential.total > 0) {
+    const strong = out.influential.rows.filter((r) => r.cooksDistance > 1);
+    if (strong.length) warnings.push(`${strong.length} row(s) have Cook's distance above 1 (lines ${strong.slice(0, 5).map((r) => r.line).join(', ')}): check them before trusting the curve.`);
+  }
+  if (n >= 3 && fit.sigma > 0) {
+    const std = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const h = fit.leverage[i] as number;
+      std[i] = ((fit.residuals[i] as number) * (w ? Math.sqrt(w[i] as number) : 1)) / (fit.sigma * Math.sqrt(Math.max(1e-12, 1 - h)));
+    }
+    const qq = normalQuantiles(std, QQ_POINTS);
+    out.normalQuantiles = { theoretical: Array.from(qq.theoretical), sample: Array.from(qq.sample) };
+  }
+  return out;
+}
+
+/** Model-matrix rows of a regression basis in x order (scaled by sqrt(w)), or undefined for the smoothing spline. */
+function designInXOrder(fit: FitResult, x: Float64Array, order: Int32Array, w: Float64Array | undefined): DesignRows | undefined {
+  const curve = fit.curve;
+  if (!(curve instanceof RowBasisCurve)) return undefined;
+  return {
+    p: curve.designSize,
+    row(j: number, out: Float64Array): void {
+      const i = order[j] as number;
+      curve.designRow(x[i] as number, out);
+      if (w) {
+        const s = Math.sqrt(w[i] as number);
+        for (let k = 0; k < out.length; k++) out[k] = (out[k] as number) * s;
+      }
+    },
+  };
+}
+
+/** [1, x] rows in x order: the Breusch-Pagan regressors when the model has no finite design. */
+function lineDesign(x: Float64Array, order: Int32Array, w: Float64Array | undefined): DesignRows {
+  return {
+    p: 2,
+    row(j: number, out: Float64Array): void {
+      const i = order[j] as number;
+      const s = w ? Math.sqrt(w[i] as number) : 1;
+      out[0] = s;
+      out[1] = s * (x[i] as number);
+    },
+  };
+}

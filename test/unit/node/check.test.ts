@@ -1,0 +1,195 @@
+/**
+ * Tests of `knotwise check` (core/node/check.ts): a current set of outputs passes; a
+ * one-byte change in the data or in the table (or the C header) is caught, saying which
+ * file changed and how; errors exit with 2; with no argument every record under the folder
+ * is found, skipping node_modules and dot folders. Data: MASS::mcycle (Silverman 1985) and
+ * datasets::cars (Ezekiel 1930), written by test/e2e/fixtures/make-fixtures.R.
+ */
+import { strict as assert } from 'node:assert';
+import { execFile } from 'node:child_process';
+import { mkdirSync, mkdtempSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { checkRecord, findRecords, runCheck } from '../../../core/node/check';
+import { copyFixture, REPO, runMain, type Run } from './runMain';
+
+/** Runs runCheck with `cwd` and output captured. */
+async function check(cwd: string, ...argv: string[]): Promise<Run> {
+  let stdout = '';
+  const out = process.stdout.write;
+  process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
+  try {
+    return { code: await runCheck(argv, cwd), stdout, stderr: '' };
+  } finally {
+    process.stdout.write = out;
+  }
+}
+
+/** Replaces the byte at `offset` of a file by `to`; returns a function that restores the file. */
+function changeByte(path: string, offset: number, to: string): () => void {
+  const before = readFileSync(path);
+  const after = Buffer.from(before);
+  after[offset] = to.charCodeAt(0);
+  assert.notEqual(after[offset], before[offset], 'the byte really changes');
+  writeFileSync(path, after);
+  return () => writeFileSync(path, before);
+}
+
+describe('knotwise check', () => {
+  let dir = '';
+  let data = '';
+  let out = '';
+  let record = '';
+
+  before(async function () {
+    this.timeout(120_000);
+    dir = mkdtempSync(join(tmpdir(), 'knotwise-check-'));
+    data = copyFixture('mcycle.csv', join(dir, 'data', 'mcycle.csv'));
+    out = join(dir, 'tables');
+    const r = await runMain('fit', data, '--x', 'times', '--y', 'accel', '--df', '4..12', '--resample', 'cv:5', '--seed', '7', '--grid', 'auto:2', '--emit', 'c,ts,json', '--report', '--out', out);
+    assert.equal(r.code, 0, r.stderr);
+    record = join(out, 'mcycle.fit.json');
+  });
+  after(() => {
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('check exits 0 and says "current" when data and every output are unchanged', async () => {
+    const r = await check(dir, join('tables', 'mcycle.fit.json'));
+    assert.equal(r.code, 0, r.stdout);
+    assert.match(r.stdout, /^current tables\/mcycle\.fit\.json$/m);
+    assert.match(r.stdout, /1 record\(s\): 1 current, 0 changed, 0 could not be checked/);
+  });
+
+  it('check catches a one-byte change in the data: exit 1, data SHA-256 differs, and the table no longer matches', async function () {
+    this.timeout(60_000);
+    // Line 10 of mcycle.csv is "7.8,-2.7"; make it "7.8,-2.8" (the last digit before the newline).
+    const text = readFileSync(data, 'utf8');
+    const lineStart = text.split('\n').slice(0, 9).join('\n').length + 1;
+    assert.equal(text.slice(lineStart, lineStart + 8), '7.8,-2.7');
+    const restore = changeByte(data, lineStart + 7, '8');
+    try {
+      const r = await check(dir);
+      assert.equal(r.code, 1, r.stdout);
+      assert.match(r.stdout, /^CHANGED tables\/mcycle\.fit\.json$/m);
+      assert.match(r.stdout, /data \.\.\/data\/mcycle\.csv changed: SHA-256 was [0-9a-f]{16}\.\.\., now [0-9a-f]{16}\.\.\./);
+      assert.match(r.stdout, /mcycle\.curve\.csv differs from the rebuilt table at line \d+ \(x = [-0-9.e+]+\), column \w+: \S+ in the file, \S+ rebuilt; \d+ lines? differs?\./);
+      assert.match(r.stdout, /to update: cd tables && knotwise fit \.\.\/data\/mcycle\.csv --x times --y accel/);
+    } finally {
+      restore();
+    }
+    assert.equal((await check(dir)).code, 0, 'current again once the data is restored');
+  });
+
+  it('check catches a one-byte change in the table, naming the line, the x, the column and both values', async () => {
+    const table = join(out, 'mcycle.curve.csv');
+    const lines = readFileSync(table, 'utf8').split('\n');
+    // The last digit of the fit value on line 6 (the 5th row).
+    const header = (lines[0] as string).split(',');
+    const row = (lines[5] as string).split(',');
+    const fitText = row[header.indexOf('fit')] as string;
+    const offset = lines.slice(0, 5).join('\n').length + 1 + (row.slice(0, header.indexOf('fit')).join(',').length + 1) + fitText.length - 1;
+    const last = fitText[fitText.length - 1] as string;
+    const changed = last === '1' ? '2' : '1';
+    const restore = changeByte(table, offset, changed);
+    try {
+      const r = await check(dir, 'tables');
+      assert.equal(r.code, 1, r.stdout);
+      const edited = fitText.slice(0, -1) + changed;
+      assert.ok(
+        r.stdout.includes(`mcycle.curve.csv differs from the rebuilt table at line 6 (x = ${row[0]}), column fit: ${edited} in the file, ${fitText} rebuilt; 1 line differs.`),
+        r.stdout,
+      );
+      assert.doesNotMatch(r.stdout, /data .* changed/);
+    } finally {
+      restore();
+    }
+  });
+
+  it('check catches a one-byte change in the emitted C header and a missing report figure', async () => {
+    const h = join(out, 'mcycle.curve.h');
+    const restore = changeByte(h, readFileSync(h, 'utf8').indexOf('static const double') + 7, 'x');
+    const fig = join(out, 'mcycle.report.curve.svg');
+    renameSync(fig, fig + '.away');
+    try {
+      const r = await check(dir, join('tables', 'mcycle.fit.json'));
+      assert.equal(r.code, 1);
+      assert.match(r.stdout, /mcycle\.curve\.h differs from the rebuilt one at line \d+: "static xonst double/);
+      assert.match(r.stdout, /mcycle\.report\.curve\.svg is missing/);
+    } finally {
+      restore();
+      renameSync(fig + '.away', fig);
+    }
+  });
+
+  it('check exits 2 when a record cannot be checked: not JSON, another format, data file missing', async () => {
+    const bad = join(dir, 'bad');
+    mkdirSync(bad, { recursive: true });
+    writeFileSync(join(bad, 'broken.fit.json'), '{ "format": "knotwise-fit-record", ');
+    writeFileSync(join(bad, 'other.fit.json'), '{"format": "someone-else"}\n');
+    const r1 = await check(dir, join('bad', 'broken.fit.json'));
+    assert.equal(r1.code, 2);
+    assert.match(r1.stdout, /ERROR {3}bad\/broken\.fit\.json\n {2}.*broken\.fit\.json: not valid JSON/);
+    const r2 = await check(dir, join('bad', 'other.fit.json'));
+    assert.equal(r2.code, 2);
+    assert.match(r2.stdout, /not a fit record: "format" is "someone-else", expected "knotwise-fit-record"/);
+    // A record whose data has gone.
+    const moved = join(dir, 'data', 'mcycle.csv');
+    renameSync(moved, moved + '.away');
+    try {
+      const r3 = await check(dir, join('tables', 'mcycle.fit.json'));
+      assert.equal(r3.code, 2);
+      assert.match(r3.stdout, /the data file \.\.\/data\/mcycle\.csv \(data\.path in the record\) was not found/);
+    } finally {
+      renameSync(moved + '.away', moved);
+      rmSync(bad, { recursive: true, force: true });
+    }
+  });
+
+  it('check with no argument finds records below the folder, skipping node_modules, dot folders and other formats', async () => {
+    for (const hidden of ['node_modules', '.git', join('sub', '.cache')]) {
+      mkdirSync(join(dir, hidden), { recursive: true });
+      writeFileSync(join(dir, hidden, 'x.fit.json'), 'not even JSON');
+    }
+    writeFileSync(join(dir, 'sub', 'foreign.fit.json'), '{"format": "someone-else"}\n');
+    try {
+      assert.deepEqual(
+        findRecords(dir).map((p) => p.slice(dir.length + 1)),
+        [join('sub', 'foreign.fit.json'), join('tables', 'mcycle.fit.json')],
+      );
+      const r = await check(dir);
+      assert.equal(r.code, 0, r.stdout);
+      assert.match(r.stdout, /1 record\(s\): 1 current/);
+      const empty = mkdtempSync(join(tmpdir(), 'knotwise-empty-'));
+      const e = await check(empty);
+      rmSync(empty, { recursive: true, force: true });
+      assert.equal(e.code, 0);
+      assert.match(e.stdout, /no fit records \(\*\.fit\.json\)/);
+    } finally {
+      for (const p of ['node_modules', '.git', 'sub']) rmSync(join(dir, p), { recursive: true, force: true });
+    }
+  });
+
+  it('checkRecord gives the status and the record\'s regenerate command; runCheck refuses an unknown option', async function () {
+    this.timeout(60_000);
+    const res = await checkRecord(record);
+    assert.equal(res.status, 'current');
+    assert.match(res.regenerate ?? '', /--grid auto:2 --emit c,ts,json --report --out \.$/);
+    await assert.rejects(runCheck(['--all'], dir), /unknown option "--all" for check/);
+  });
+
+  it('knotwise check as a process exits 1 when the table changed (the exit code CI and a pre-commit hook see)', async function () {
+    this.timeout(60_000);
+    const table = join(out, 'mcycle.curve.csv');
+    const bytes = readFileSync(table);
+    const restore = changeByte(table, bytes.length - 2, bytes[bytes.length - 2] === 0x31 ? '2' : '1');
+    try {
+      const code = await new Promise<number>((resolve) => {
+        execFile(process.execPath, ['--import', 'tsx', join(REPO, 'core', 'node', 'cli.ts'), 'check'], { cwd: dir, timeout: 60_000 }, (error) => resolve(error ? (typeof error.code === 'number' ? error.code : -1) : 0));
+      });
+      assert.equal(code, 1);
+    } finally {
+      restore();
+    }
+  });
+});

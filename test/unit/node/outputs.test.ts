@@ -1,0 +1,155 @@
+/**
+ * Tests of writing the outputs safely (core/node/outputs.ts, through `knotwise fit`): a file
+ * Knotwise did not write is refused without --force, rerunning over Knotwise's own outputs
+ * works and gives the same bytes, a hand-edited output counts as not Knotwise's, the data
+ * file is byte-identical after a run, and no temporary file is left behind. Data:
+ * datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R).
+ */
+import { strict as assert } from 'node:assert';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { InputError } from '../../../core/errors';
+import { isOurs, recordedFiles, sha256, writeOutputs } from '../../../core/node/outputs';
+import { copyFixture, runMain } from './runMain';
+
+/** Every file of a folder with its bytes. */
+function snapshot(dir: string): Map<string, Buffer> {
+  return new Map(readdirSync(dir).map((f) => [f, readFileSync(join(dir, f))]));
+}
+
+describe('writing the outputs', () => {
+  let dir = '';
+  let data = '';
+  const fitArgs = (...extra: string[]): string[] => ['fit', data, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resample', 'boot:20', '--seed', '3', '--emit', 'c,ts,json', '--report', ...extra];
+
+  beforeEach(() => {
+    dir = mkdtempSync(join(tmpdir(), 'knotwise-out-'));
+    data = copyFixture('cars.csv', join(dir, 'cars.csv'));
+  });
+  afterEach(() => {
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('a table file Knotwise did not write is refused without --force (exit 2, nothing written) and replaced with it', async () => {
+    const out = join(dir, 'out');
+    const foreign = join(out, 'cars.curve.csv');
+    // A hand-made file where the table goes.
+    mkdirSync(out);
+    writeFileSync(foreign, 'speed,dist\n1,2\n');
+    const r = await runMain(...fitArgs('--out', out));
+    assert.equal(r.code, 2);
+    assert.match(r.stderr, /cars\.curve\.csv exists and was not written by Knotwise; refusing to overwrite it \(use --force to replace it\)/);
+    assert.equal(readFileSync(foreign, 'utf8'), 'speed,dist\n1,2\n', 'left as it was');
+    assert.deepEqual(readdirSync(out), ['cars.curve.csv'], 'nothing else written');
+    const forced = await runMain(...fitArgs('--out', out, '--force'));
+    assert.equal(forced.code, 0, forced.stderr);
+    assert.match(readFileSync(foreign, 'utf8'), /^x,fit,se,/);
+  });
+
+  it('a fit record, header or report Knotwise did not write is refused too', async () => {
+    const out = join(dir, 'out');
+    for (const name of ['cars.fit.json', 'cars.curve.h', 'cars.report.md']) {
+      rmSync(out, { recursive: true, force: true });
+      mkdirSync(out);
+      writeFileSync(join(out, name), name.endsWith('.json') ? '{"format": "not-ours"}\n' : '/* mine */\n');
+      const r = await runMain(...fitArgs('--out', out));
+      assert.equal(r.code, 2, name);
+      assert.match(r.stderr, new RegExp(`${name.replace(/\./g, '\\.')} exists and was not written by Knotwise`));
+    }
+  });
+
+  it('rerunning over its own outputs works and gives byte-identical files', async function () {
+    this.timeout(60_000);
+    const out = join(dir, 'out');
+    const first = await runMain(...fitArgs('--out', out));
+    assert.equal(first.code, 0, first.stderr);
+    const before = snapshot(out);
+    assert.deepEqual([...before.keys()].sort(), [
+      'cars.curve.csv',
+      'cars.curve.h',
+      'cars.curve.json',
+      'cars.curve.ts',
+      'cars.fit.json',
+      'cars.report.curve.svg',
+      'cars.report.error.svg',
+      'cars.report.md',
+      'cars.report.normal-quantiles.svg',
+      'cars.report.residuals-fitted.svg',
+      'cars.report.residuals-x.svg',
+    ]);
+    const second = await runMain(...fitArgs('--out', out));
+    assert.equal(second.code, 0, second.stderr);
+    const after = snapshot(out);
+    assert.deepEqual([...after.keys()].sort(), [...before.keys()].sort(), 'no temporary files left');
+    for (const [name, bytes] of before) assert.ok(bytes.equals(after.get(name) as Buffer), `${name} is byte-identical`);
+  });
+
+  it('an output edited by hand is no longer Knotwise\'s: refused without --force', async () => {
+    const out = join(dir, 'out');
+    assert.equal((await runMain(...fitArgs('--out', out))).code, 0);
+    const table = join(out, 'cars.curve.csv');
+    writeFileSync(table, readFileSync(table, 'utf8').replace(/\n4,/, '\n4.0,'));
+    const r = await runMain(...fitArgs('--out', out));
+    assert.equal(r.code, 2);
+    assert.match(r.stderr, /cars\.curve\.csv exists and was not written by Knotwise/);
+  });
+
+  it('the data file is byte-identical after a run that writes next to it (--save)', async () => {
+    const before = readFileSync(data);
+    const r = await runMain(...fitArgs('--save'));
+    assert.equal(r.code, 0, r.stderr);
+    assert.ok(readFileSync(data).equals(before));
+    assert.ok(existsSync(join(dir, 'cars.curve.csv')) && existsSync(join(dir, 'cars.fit.json')));
+    assert.ok(readFileSync(data).equals(before), 'still after the record was written');
+  });
+
+  it('--emit and --report without --out or --save are refused (they write files)', async () => {
+    const r = await runMain('fit', data, '--x', 'speed', '--y', 'dist', '--df', '3', '--report');
+    assert.equal(r.code, 2);
+    assert.match(r.stderr, /--emit and --report write files: add --out <folder> or --save/);
+  });
+});
+
+describe('isOurs and writeOutputs', () => {
+  let dir = '';
+  beforeEach(() => {
+    dir = mkdtempSync(join(tmpdir(), 'knotwise-own-'));
+  });
+  afterEach(() => {
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('isOurs: missing files are free; listed files count by name and SHA-256; the record by its format', () => {
+    const rec = join(dir, 'a.fit.json');
+    const t = join(dir, 'a.curve.csv');
+    assert.equal(isOurs(t, rec), true);
+    writeFileSync(t, 'x\n1\n');
+    assert.equal(isOurs(t, rec), false, 'no record');
+    writeFileSync(rec, JSON.stringify({ format: 'knotwise-fit-record', table: { file: 'a.curve.csv', sha256: sha256('x\n1\n') }, outputs: [{ kind: 'c', file: 'a.curve.h', sha256: sha256('h') }] }));
+    assert.equal(isOurs(t, rec), true);
+    assert.equal(isOurs(rec, rec), true);
+    writeFileSync(join(dir, 'a.curve.h'), 'h');
+    assert.equal(isOurs(join(dir, 'a.curve.h'), rec), true);
+    writeFileSync(join(dir, 'a.curve.h'), 'h2');
+    assert.equal(isOurs(join(dir, 'a.curve.h'), rec), false);
+    writeFileSync(join(dir, 'b.txt'), 'x\n1\n');
+    assert.equal(isOurs(join(dir, 'b.txt'), rec), false, 'same bytes under another name');
+    assert.deepEqual([...recordedFiles(JSON.parse(readFileSync(rec, 'utf8'))).keys()], ['a.curve.csv', 'a.curve.h']);
+  });
+
+  it('writeOutputs refuses to write over the data file and writes the record last', () => {
+    const dataFile = join(dir, 'z.csv');
+    writeFileSync(dataFile, 'x,y\n1,2\n');
+    assert.throws(
+      () => writeOutputs(dir, [{ kind: 'table', name: 'z.csv', text: 'bad' }, { kind: 'record', name: 'z.fit.json', text: '{}' }], dataFile, true),
+      (e: unknown) => e instanceof InputError && /is the data file; refusing to overwrite it/.test(e.message),
+    );
+    assert.equal(readFileSync(dataFile, 'utf8'), 'x,y\n1,2\n');
+    const paths = writeOutputs(dir, [{ kind: 'record', name: 'z.fit.json', text: '{}\n' }, { kind: 'table', name: 'z.curve.csv', text: 'x\n' }], dataFile, false);
+    assert.deepEqual(
+      paths.map((p) => p.slice(dir.length + 1)),
+      ['z.curve.csv', 'z.fit.json'],
+    );
+  });
+});

@@ -1,0 +1,65 @@
+/**
+ * Tests of the plan's command line (core/plan.ts): shell quoting, and the property that
+ * matters: the regenerate command written into the record and the generated files, run by
+ * a POSIX shell in the output folder, rewrites every output byte for byte. Data:
+ * datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R), in a
+ * folder whose name needs quoting.
+ */
+import { strict as assert } from 'node:assert';
+import { execFileSync } from 'node:child_process';
+import { chmodSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { DEFAULT_OUTPUT, fitCommand, shellWord, type FitPlan } from '../../core/plan';
+import { copyFixture, REPO, runMain } from './node/runMain';
+
+describe('shellWord', () => {
+  it('shellWord leaves plain words alone and single-quotes the rest, escaping quotes', () => {
+    assert.equal(shellWord('data/cal-2024.csv'), 'data/cal-2024.csv');
+    assert.equal(shellWord('speed [mph]'), "'speed [mph]'");
+    assert.equal(shellWord("it's"), `'it'\\''s'`);
+    assert.equal(shellWord('$HOME'), "'$HOME'");
+    // What a POSIX shell makes of the quoted words (printf '%s\n' prints each argument on a line).
+    const words = ['a b', "it's", '$HOME', 'x;rm -rf y', 'tab\there', '*'];
+    const printed = execFileSync('sh', ['-c', `printf '%s\\n' ${words.map(shellWord).join(' ')}`], { encoding: 'utf8' });
+    assert.deepEqual(printed.split('\n').slice(0, -1), words);
+  });
+});
+
+describe('fitCommand', () => {
+  it('fitCommand spells out a tuned plan and leaves out options at their defaults', () => {
+    const plan: FitPlan = { columns: { x: 'speed [mph]', y: 'dist' }, tune: true, options: { family: 'natural', resample: { kind: 'cv', folds: 10, repeats: 5 }, rule: { kind: '1se' }, seed: 1 }, output: DEFAULT_OUTPUT };
+    assert.equal(fitCommand(plan, '../cars.csv'), "knotwise fit ../cars.csv --x 'speed [mph]' --y dist --model natural --resample cv:10x5 --rule 1se --seed 1 --out .");
+    const fixed: FitPlan = { columns: { x: 'speed', y: 'dist', weights: 'w' }, tune: false, options: { family: 'smooth', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0 }, output: { grid: { kind: 'auto', tolerance: 0.01 }, extrapolate: true, digits: 6, columns: ['x', 'fit'], nonnegative: true, emit: ['c', 'ts'], report: true } };
+    assert.equal(fitCommand(fixed, 'cars.csv'), 'knotwise fit cars.csv --x speed --y dist --weights w --model smooth --df 4.5 --grid auto:0.01 --extrapolate --digits 6 --columns x,fit --nonnegative --emit c,ts --report --out .');
+  });
+
+  it('the regenerate command, run by sh in the output folder, rewrites every output byte for byte', async function () {
+    this.timeout(120_000);
+    const dir = mkdtempSync(join(tmpdir(), 'knotwise-regen-'));
+    try {
+      const data = copyFixture('cars.csv', join(dir, "field data (it's here)", 'cars.csv'));
+      const out = join(dir, 'tables');
+      const r = await runMain('fit', data, '--x', 'speed [mph]', '--y', 'dist [ft]', '--df', '2..6', '--resample', 'boot:20', '--rule', 'tol:3', '--seed', '5', '--grid', 'auto:1', '--columns', 'x,fit,piLower,piUpper', '--nonnegative', '--digits', '7', '--emit', 'c,ts,json', '--report', '--out', out);
+      assert.equal(r.code, 0, r.stderr);
+      const record = JSON.parse(readFileSync(join(out, 'cars.fit.json'), 'utf8')) as { regenerate: string };
+      const header = readFileSync(join(out, 'cars.curve.h'), 'utf8');
+      assert.ok(header.includes(`*   ${record.regenerate}\n`), 'the header carries the same command');
+      const before = new Map(readdirSync(out).map((f) => [f, readFileSync(join(out, f))]));
+      for (const f of before.keys()) rmSync(join(out, f));
+      // A `knotwise` on PATH that runs this checkout's command line.
+      const bin = join(dir, 'bin');
+      mkdirSync(bin);
+      const tsx = pathToFileURL(join(REPO, 'node_modules', 'tsx', 'dist', 'loader.mjs')).href;
+      writeFileSync(join(bin, 'knotwise'), `#!/bin/sh\nexec "${process.execPath}" --import "${tsx}" "${join(REPO, 'core', 'node', 'cli.ts')}" "$@"\n`);
+      chmodSync(join(bin, 'knotwise'), 0o755);
+      execFileSync('sh', ['-c', record.regenerate], { cwd: out, env: { ...process.env, PATH: `${bin}:${process.env.PATH ?? ''}` }, encoding: 'utf8' });
+      const after = readdirSync(out);
+      assert.deepEqual(after.sort(), [...before.keys()].sort());
+      for (const [f, bytes] of before) assert.ok(readFileSync(join(out, f)).equals(bytes), `${f} is byte-identical`);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});

@@ -1,0 +1,100 @@
+/**
+ * Tests of the review report's Markdown (core/report/markdown.ts), built through
+ * buildDeliverables from R's datasets::airquality (ozone against temperature; 37 rows with
+ * a missing ozone value are rejected) from test/fixtures/csv/airquality.csv
+ * (make-fixtures.R), tuned with a held-out check.
+ */
+import { strict as assert } from 'node:assert';
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { analyse } from '../../../core/analysis';
+import { buildDeliverables } from '../../../core/deliver';
+import { parseCsvText } from '../../../core/ingest/reader';
+import { selectColumns } from '../../../core/ingest/select';
+import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/plan';
+import { md, REPORT_LIST_LIMIT } from '../../../core/report/markdown';
+import { holdoutMask, orderByX } from '../../../core/tune/plan';
+
+const REPO = join(__dirname, '..', '..', '..');
+
+describe('reportMarkdown', () => {
+  let report = '';
+  let figureNames: string[] = [];
+
+  before(async function () {
+    this.timeout(60_000);
+    const text = readFileSync(join(REPO, 'test', 'fixtures', 'csv', 'airquality.csv'), 'utf8');
+    const sel = selectColumns(parseCsvText(text), { x: 'Temp', y: 'Ozone' }, 'airquality.csv');
+    const plan: FitPlan = {
+      columns: { x: 'Temp', y: 'Ozone' },
+      tune: true,
+      options: { family: 'natural', candidates: [2, 3, 4, 5, 6], resample: { kind: 'cv', folds: 5, repeats: 2 }, rule: { kind: '1se' }, seed: 9, holdout: 0.2 },
+      output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [50, 60, 70, 80, 90, 100] }, extrapolate: true, nonnegative: true, emit: ['c'], report: true },
+    };
+    const analysis = await analyse(sel.data, plan.options);
+    assert.ok(analysis.n < sel.data.x.length, 'rows were held out');
+    // The rows the analysis fitted: analyse's own split (its per-row arrays have analysis.n rows).
+    const keep = holdoutMask(orderByX(sel.data.x), 0.2, 9);
+    const idx = [...keep.keys()].filter((i) => keep[i] === 0);
+    const fitted = { x: Float64Array.from(idx, (i) => sel.data.x[i] as number), y: Float64Array.from(idx, (i) => sel.data.y[i] as number), lines: Int32Array.from(idx, (i) => (sel.data.lines as Int32Array)[i] as number) };
+    const d = buildDeliverables({
+      plan,
+      stem: 'airquality',
+      dataFile: 'airquality.csv',
+      dataPath: 'airquality.csv',
+      dataSha256: createHash('sha256').update(text).digest('hex'),
+      rowsRead: 153,
+      selection: sel,
+      fitted,
+      analysis,
+      fit: analysis.chosen,
+      diagnostics: analysis.diagnostics,
+      sha256: (t) => createHash('sha256').update(t).digest('hex'),
+    });
+    report = (d.files.find((f) => f.kind === 'report') as { text: string }).text;
+    figureNames = d.files.filter((f) => f.kind === 'figure').map((f) => f.name);
+  });
+
+  it('starts with the title and the caution, then the warnings', () => {
+    assert.match(report, /^# Curve review: airquality\.csv\n\n> \*\*Caution\.\*\* An empirical fit is not a certified calibration\./);
+    // The fitted rows (held-out rows excluded) span 57 to 97 degrees F; brackets are escaped for Markdown.
+    assert.match(report, /\n## Warnings\n\n- ⚠ 2 table row\(s\) lie outside the data range \\\[57, 97\\\] and are extrapolated \(x = 50, 100\)/);
+  });
+
+  it('references every figure file by its relative name, with alt text', () => {
+    assert.equal(figureNames.length, 5);
+    for (const f of figureNames) assert.match(report, new RegExp(`!\\[[^\\]]+\\]\\(${f.replace(/\./g, '\\.')}\\)`));
+  });
+
+  it('explains the choice with the rule, the resampling and the held-out check, and lists the candidates', () => {
+    assert.match(report, /One-SE threshold/);
+    assert.match(report, /5-fold cross-validation, repeated 2 times, folds stratified by x, seed 9; the rule is the one-standard-error rule \(`--rule 1se`\)/);
+    assert.match(report, /Held-out check \(\d+ rows, 20 % set aside before tuning and used once\)/);
+    assert.match(report, /\| df \| mean RMSE \| SE \| AIC \| BIC \| \|\n\| ---: /);
+    assert.match(report, /\*\*chosen\*\*/);
+  });
+
+  it('lists the residual checks, the table with extrapolated and negative rows, and the rejected rows by line (at most REPORT_LIST_LIMIT)', () => {
+    assert.match(report, /- (⚠ )?\*\*Shapiro-Wilk \(are the residuals normal\?\)\*\*: W = /);
+    assert.match(report, /\*\*Extrapolated rows: 2\*\*/);
+    assert.match(report, /The quantity was declared non-negative|\*\*The curve is below zero at \d+ rows\*\*/);
+    assert.match(report, /- Rows: 153 read, 116 used, 37 rejected/);
+    // airquality line 6 (row 5) has Ozone NA.
+    assert.match(report, /\n {2}- line 6 \(Ozone\): missing value\n/);
+    assert.match(report, new RegExp(`… and ${37 - REPORT_LIST_LIMIT} more \\(all are listed in the fit record\\)`));
+  });
+
+  it('ends with how to reproduce and check, in a shell block', () => {
+    assert.match(report, /```sh\nknotwise fit airquality\.csv --x Temp --y Ozone --model natural --df 2,3,4,5,6 --resample cv:5x2 --rule 1se --seed 9 --holdout 0\.2 --grid 50,60,70,80,90,100 --extrapolate --nonnegative --emit c --report --out \.\nknotwise check airquality\.fit\.json\n```\n$/);
+    assert.match(report, /generated code: \[airquality\.curve\.h\]\(airquality\.curve\.h\)/);
+  });
+});
+
+describe('md', () => {
+  it('md escapes Markdown and HTML punctuation from the CSV so it shows as text', () => {
+    assert.equal(md('<script>alert(1)</script>'), '\\<script\\>alert(1)\\</script\\>');
+    assert.equal(md('a_b*c|d [e](f) #g `h` ~i! &j'), 'a\\_b\\*c\\|d \\[e\\](f) \\#g \\`h\\` \\~i\\! \\&j');
+    assert.equal(md('two\nlines'), 'two lines');
+  });
+});

@@ -1,0 +1,75 @@
+import { strict as assert } from 'node:assert';
+import fc from 'fast-check';
+import { argsortStable } from '../../../core/stats/argsort';
+import { orderByX } from '../../../core/tune/plan';
+
+/**
+ * Reference order: Array.prototype.sort, which ECMAScript 2019 (ECMA-262 10th ed.,
+ * section 22.1.3.27) requires to be stable, with NaN placed after every number.
+ */
+function referenceOrder(values: Float64Array): number[] {
+  const idx = Array.from({ length: values.length }, (_, i) => i);
+  return idx.sort((a, b) => {
+    const va = values[a] as number;
+    const vb = values[b] as number;
+    const na = Number.isNaN(va);
+    const nb = Number.isNaN(vb);
+    if (na || nb) return Number(na) - Number(nb);
+    return va < vb ? -1 : va > vb ? 1 : 0;
+  });
+}
+
+/** Doubles of every kind: ordinary, huge, tiny, subnormal, signed zeros, infinities, NaN. */
+const anyDouble = fc.oneof(
+  fc.double(),
+  fc.constantFrom(0, -0, NaN, Infinity, -Infinity, 5e-324, -5e-324, Number.MAX_VALUE, -Number.MAX_VALUE, 1, -1),
+  fc.integer({ min: -3, max: 3 }),
+);
+
+describe('argsortStable', () => {
+  it('argsortStable orders by value with ties by index (worked example in the doc comment)', () => {
+    assert.deepEqual(Array.from(argsortStable(Float64Array.of(3, -1, 3, 0))), [1, 3, 0, 2]);
+  });
+
+  it('argsortStable equals the stable Array.prototype.sort order for any doubles (ECMA-262 stable sort)', () => {
+    // Short arrays take the insertion path, longer ones the radix passes.
+    for (const [minLength, maxLength] of [[0, 31], [32, 400]] as const) {
+      fc.assert(
+        fc.property(fc.array(anyDouble, { minLength, maxLength, size: 'max' }), (list) => {
+          const values = Float64Array.from(list);
+          assert.deepEqual(Array.from(argsortStable(values)), referenceOrder(values));
+        }),
+        { numRuns: 200 },
+      );
+    }
+  });
+
+  it('argsortStable treats -0 and +0 as equal and puts NaN last, both by index (radix and insertion paths)', () => {
+    for (const n of [8, 200]) {
+      const pattern = [0, -0, NaN, -1];
+      const values = Float64Array.from({ length: n }, (_, i) => pattern[i % 4] as number);
+      const rows = (keep: (i: number) => boolean): number[] => Array.from({ length: n }, (_, i) => i).filter(keep);
+      const expected = [...rows((i) => i % 4 === 3), ...rows((i) => i % 4 < 2), ...rows((i) => i % 4 === 2)];
+      assert.deepEqual(Array.from(argsortStable(values)), expected);
+    }
+  });
+
+  it('argsortStable handles many rows with heavy ties and values sharing their high bits', () => {
+    const n = 50_000;
+    const tied = Float64Array.from({ length: n }, (_, i) => ((i * 7919) % 13) - 6);
+    assert.deepEqual(Array.from(argsortStable(tied)), referenceOrder(tied));
+    // Nanosecond timestamps: equal in all but the lowest bits of the mantissa.
+    const close = Float64Array.from({ length: n }, (_, i) => 1.7e18 + ((i * 104729) % 5000) * 256);
+    assert.deepEqual(Array.from(argsortStable(close)), referenceOrder(close));
+  });
+
+  it('argsortStable of an empty or one-value array', () => {
+    assert.equal(argsortStable(new Float64Array(0)).length, 0);
+    assert.deepEqual(Array.from(argsortStable(Float64Array.of(NaN))), [0]);
+  });
+
+  it('orderByX is the stable argsort of x', () => {
+    const x = Float64Array.from({ length: 1000 }, (_, i) => Math.round(Math.sin(i) * 20) / 4);
+    assert.deepEqual(Array.from(orderByX(x)), referenceOrder(x));
+  });
+});
