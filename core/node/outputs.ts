@@ -1,16 +1,14 @@
+/**
+ * Writing a fit's files: atomically, never over the data file, and never over a file
+ * Knotwise did not write unless forced (ownership is read from the neighbouring fit record).
+ */
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
-import { basename, extname, join, resolve } from 'node:path';
+import { basename, join, resolve } from 'node:path';
 import type { OutputFile } from '../deliver';
 import { InputError } from '../errors';
 import { RECORD_FORMAT } from '../record';
 import { readIfExists, writeFileAtomic } from './atomicWrite';
-
-/** File names of the table and the record for a data file: `<stem>.curve.csv` and `<stem>.fit.json`. */
-export function outputNames(dataFile: string): { table: string; record: string } {
-  const stem = basename(dataFile, extname(dataFile));
-  return { table: `${stem}.curve.csv`, record: `${stem}.fit.json` };
-}
 
 /** SHA-256 (FIPS 180-4) of a text's UTF-8 bytes or of a buffer, as hex. */
 export function sha256(text: string | Buffer): string {
