@@ -3,6 +3,8 @@ import { RowBasisCurve } from './fit/linearFit';
 import { breuschPagan } from './stats/breuschPagan';
 import type { DesignRows } from './stats/design';
 import { durbinWatson } from './stats/durbinWatson';
+import { durbinWatsonAndBreuschPagan } from './stats/designTests';
+import { checkResiduals } from './fit/modelResiduals';
 import { influentialRows } from './stats/influence';
 import { lackOfFit } from './stats/lackOfFit';
 import { normalQuantiles } from './stats/normalQuantiles';
@@ -27,6 +29,8 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   const n = fit.n;
   const { x, w } = data;
   const order = orderByX(x);
+  // Counts and proportions are checked on deviance residuals, Gaussian fits on sqrt(w)-scaled ones.
+  const checked = checkResiduals(fit, w);
   // x, sqrt(w) and the scaled residuals gathered once in x order, so that the design rows
   // below read memory in sequence instead of jumping through `order` on every call.
   const xSorted = new Float64Array(n);
@@ -35,28 +39,31 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   for (let j = 0; j < n; j++) {
     const i = order[j] as number;
     xSorted[j] = x[i] as number;
-    const s = w ? Math.sqrt(w[i] as number) : 1;
-    if (rootW) rootW[j] = s;
-    scaled[j] = (fit.residuals[i] as number) * s;
+    if (rootW) rootW[j] = Math.sqrt(w?.[i] as number);
+    scaled[j] = checked.residuals[i] as number;
   }
   const warnings: string[] = [];
   const design = designInXOrder(fit, xSorted, rootW);
   const out: { -readonly [K in keyof Diagnostics]: Diagnostics[K] } = { influential: influentialRows(fit.leverage, fit.cooksDistance, fit.df, data.lines), warnings };
   const spread = scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
-  if (n >= 3 && spread) {
+  if (n >= 3 && spread && checked.gaussianChecks) {
     const sw = shapiroWilk(scaled);
     out.shapiroWilk = sw;
     if (sw.pValue < CHECK_LEVEL) warnings.push(`Residuals do not look normal (Shapiro-Wilk W = ${sig(sw.statistic, 4)}, p = ${sig(sw.pValue, 2)}); the bands assume normal errors.`);
   }
   if (n >= 3 && spread) {
-    const dw = durbinWatson(scaled, design);
+    // One pass over the design rows serves both tests when the model has a finite design.
+    const both = design && checked.gaussianChecks ? durbinWatsonAndBreuschPagan(scaled, design) : undefined;
+    const dw = both ? both.durbinWatson : durbinWatson(scaled, design);
     out.durbinWatson = dw;
     if (dw.pValue < CHECK_LEVEL) warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${sig(dw.statistic)}, p = ${sig(dw.pValue, 2)}): the curve may be too stiff, or the readings drift.`);
-    const bp = breuschPagan(scaled, design ?? lineDesign(xSorted, rootW));
-    out.breuschPagan = bp;
-    if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${sig(bp.statistic)}, df ${bp.df}, p = ${sig(bp.pValue, 2)}); the bands assume constant spread. Consider weights.`);
+    if (checked.gaussianChecks) {
+      const bp = both ? both.breuschPagan : breuschPagan(scaled, lineDesign(xSorted, rootW));
+      out.breuschPagan = bp;
+      if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${sig(bp.statistic)}, df ${bp.df}, p = ${sig(bp.pValue, 2)}); the bands assume constant spread. Consider weights.`);
+    }
   }
-  const lof = lackOfFit(data.x, data.y, w, fit.rss, fit.df, order);
+  const lof = checked.gaussianChecks ? lackOfFit(data.x, data.y, w, fit.rss, fit.df, order) : undefined;
   if (lof) {
     out.lackOfFit = lof;
     if (lof.pValue < CHECK_LEVEL) warnings.push(`The curve misses the means of replicated readings more than their scatter explains (lack-of-fit F = ${sig(lof.F)}, p = ${sig(lof.pValue, 2)}); a more flexible curve may be needed.`);
@@ -65,11 +72,11 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
     const strong = out.influential.rows.filter((r) => r.cooksDistance > 1);
     if (strong.length) warnings.push(`${strong.length} row(s) have Cook's distance above 1 (lines ${strong.slice(0, 5).map((r) => r.line).join(', ')}): check them before trusting the curve.`);
   }
-  if (n >= 3 && fit.sigma > 0) {
+  if (n >= 3 && checked.scale > 0) {
     const std = new Float64Array(n);
     for (let i = 0; i < n; i++) {
       const h = fit.leverage[i] as number;
-      std[i] = ((fit.residuals[i] as number) * (w ? Math.sqrt(w[i] as number) : 1)) / (fit.sigma * Math.sqrt(Math.max(1e-12, 1 - h)));
+      std[i] = (checked.residuals[i] as number) / (checked.scale * Math.sqrt(Math.max(1e-12, 1 - h)));
     }
     const qq = normalQuantiles(std, QQ_POINTS);
     out.normalQuantiles = { theoretical: Array.from(qq.theoretical), sample: Array.from(qq.sample) };
