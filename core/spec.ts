@@ -58,14 +58,16 @@ export function formatResample(spec: ResampleSpec): string {
   }
 }
 
-/** Parses a rule: `lowest`, `1se`, `tol:<percent>`. */
+/** Parses a rule: `lowest`, `1se`, `tol:<percent>`, or `df:<k>` (a df chosen by the person). */
 export function parseRule(text: string): RuleSpec {
   const t = text.trim();
   if (t === 'lowest') return { kind: 'lowest' };
   if (t === '1se') return { kind: '1se' };
   const tol = /^tol:(\d+(?:\.\d+)?)%?$/.exec(t);
   if (tol) return { kind: 'tol', percent: Number(tol[1]) };
-  throw new InputError(`rule "${text}" is not understood; use lowest, 1se or tol:<percent> (e.g. tol:2)`);
+  const manual = /^df:(\d+(?:\.\d+)?)$/.exec(t);
+  if (manual) return { kind: 'manual', df: Number(manual[1]) };
+  throw new InputError(`rule "${text}" is not understood; use lowest, 1se, tol:<percent> (e.g. tol:2) or df:<k>`);
 }
 
 /** Parses a seed: a whole number. */

@@ -43,7 +43,7 @@ Options:
   --model natural|poly|smooth   curve family (default natural)
   --df <k | a,b,c | a..b>   one df (fit as is) or candidates to tune over
   --resample boot:<B> | cv:<K>[x<R>] | loo | gcv   how errors are estimated (default boot:50)
-  --rule lowest | 1se | tol:<percent>   how the df is chosen (default 1se)
+  --rule lowest | 1se | tol:<percent> | df:<k>   how the df is chosen (default 1se; df:<k> picks a candidate by hand)
   --seed <int>              random seed (default 1)
   --holdout <fraction>      rows held out (stratified by x) and checked once at the end
   --grid <start>:<stop>:<count> | <start>:<stop>:step=<h> | data | <x1,x2,...>
@@ -54,7 +54,9 @@ Options:
   --columns <x,fit,se,...>  table columns (default all: x,fit,se,ciLower,ciUpper,piLower,piUpper,extrapolated)
   --nonnegative             the quantity cannot be negative: flag rows where the curve is below zero
   --out <folder>            write the curve table (<name>.curve.csv) and fit record (<name>.fit.json) there
-  --save                    write them next to the data file
+                            (default: next to the data file)
+  --save                    write them next to the data file (the default, for scripts that say so)
+  --print-only              write no files, only print
   --emit c,ts,json          also write code: C header (<name>.curve.h), TypeScript (<name>.curve.ts), JSON (<name>.curve.json)
   --report                  also write a review report (<name>.report.md with SVG figures)
   --digits <n>              significant digits in the table (default 8)
@@ -109,6 +111,7 @@ function parseFitArgs(argv: string[]): FitArgs {
       json: { type: 'boolean' },
       out: { type: 'string' },
       save: { type: 'boolean' },
+      'print-only': { type: 'boolean' },
       digits: { type: 'string' },
       force: { type: 'boolean' },
       columns: { type: 'string' },
@@ -143,7 +146,8 @@ function parseFitArgs(argv: string[]): FitArgs {
       emit: values.emit !== undefined ? parseEmit(values.emit) : [],
       report: values.report === true,
     },
-    out: values.out ?? (values.save ? dirname(file) : undefined),
+    // Outputs go next to the data unless --out names a folder or --print-only asks for none.
+    out: values['print-only'] === true ? undefined : (values.out ?? dirname(file)),
     force: values.force === true,
     options: {
       family: parseFamily(values.model ?? 'natural'),
@@ -216,7 +220,7 @@ function fitJson(fit: FitResult): Record<string, unknown> {
 async function runFit(argv: string[]): Promise<number> {
   const args = parseFitArgs(argv);
   if (args.out === undefined && (args.output.emit.length > 0 || args.output.report)) {
-    throw new InputError('--emit and --report write files: add --out <folder> or --save');
+    throw new InputError('--emit and --report write files: drop --print-only');
   }
   const plan: FitPlan = { columns: { x: args.x, y: args.y, weights: args.weights }, tune: args.tune, options: args.options, output: args.output, ...(args.trials !== undefined ? { trials: args.trials } : {}) };
   const run = await runPipeline(args.file, plan, args.out ?? dirname(args.file));

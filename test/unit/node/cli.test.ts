@@ -14,7 +14,7 @@ import { strict as assert } from 'node:assert';
 import { execFile } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
 import { main } from '../../../core/node/cli';
 
 const REL = 1e-8;
@@ -331,7 +331,7 @@ describe('knotwise fit (command line)', () => {
 
     it('bad --rule syntax', async () => {
       for (const bad of ['best', 'tol', 'tol:-2', '2se']) {
-        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', bad), new RegExp(`rule "${bad}" is not understood`), /lowest, 1se or tol:<percent>/);
+        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', bad), new RegExp(`rule "${bad}" is not understood`), /lowest, 1se, tol:<percent> \(e\.g\. tol:2\) or df:<k>/);
       }
     });
 
@@ -397,7 +397,8 @@ describe('knotwise fit: table options, emitters and report (issue #5)', () => {
     assert.ok(out.warnings.some((w: string) => /below zero/.test(w)));
     assert.match(out.regenerate, /^knotwise fit mcycle\.csv --x times --y accel --model natural --df 8 --grid auto:2 --columns x,fit --nonnegative --out \.$/);
     assert.match(out.caution, /not a certified calibration/);
-    assert.equal(out.written, undefined);
+    // Without --out the outputs go next to the data file (issue #5 item 5).
+    assert.equal(out.written.table, join(dirname(mcycle), 'mcycle.curve.csv'));
   });
 
   it('fit without --json prints the table line with the interpolation error, the warnings and the caution', async () => {

@@ -8,7 +8,7 @@
 import { strict as assert } from 'node:assert';
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
 import { InputError } from '../../../core/errors';
 import { isOurs, recordedFiles, sha256, writeOutputs } from '../../../core/node/outputs';
 import { copyFixture, runMain } from './runMain';
@@ -104,10 +104,13 @@ describe('writing the outputs', () => {
     assert.ok(readFileSync(data).equals(before), 'still after the record was written');
   });
 
-  it('--emit and --report without --out or --save are refused (they write files)', async () => {
+  it('without --out the outputs go next to the data file; --print-only writes none and refuses --emit/--report', async () => {
     const r = await runMain('fit', data, '--x', 'speed', '--y', 'dist', '--df', '3', '--report');
-    assert.equal(r.code, 2);
-    assert.match(r.stderr, /--emit and --report write files: add --out <folder> or --save/);
+    assert.equal(r.code, 0, r.stderr);
+    assert.ok(existsSync(join(dirname(data), 'cars.curve.csv')) && existsSync(join(dirname(data), 'cars.report.md')));
+    const p = await runMain('fit', data, '--x', 'speed', '--y', 'dist', '--df', '3', '--print-only', '--report');
+    assert.equal(p.code, 2);
+    assert.match(p.stderr, /--emit and --report write files: drop --print-only/);
   });
 });
 

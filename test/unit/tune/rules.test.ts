@@ -15,6 +15,7 @@ import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import { InputError } from '../../../core/errors';
 import { selectDf } from '../../../core/tune/rules';
+import { parseRule } from '../../../core/spec';
 import type { CandidateResult, ErrorSummary, RuleSpec } from '../../../core/tune/types';
 
 const RUNS = 300;
@@ -257,5 +258,15 @@ describe('selectDf', () => {
       [['lowest', 9], ['tol', 5]],
     );
     assert.ok(s.reason.includes('lowest mean error → df 9'), s.reason);
+  });
+});
+
+describe('parseRule', () => {
+  it('parseRule reads lowest, 1se, tol:<p> and df:<k>, and names the forms on bad input', () => {
+    assert.deepEqual(parseRule('lowest'), { kind: 'lowest' });
+    assert.deepEqual(parseRule('1se'), { kind: '1se' });
+    assert.deepEqual(parseRule('tol:2.5'), { kind: 'tol', percent: 2.5 });
+    assert.deepEqual(parseRule('df:7'), { kind: 'manual', df: 7 });
+    assert.throws(() => parseRule('best'), /use lowest, 1se, tol:<percent> \(e\.g\. tol:2\) or df:<k>/);
   });
 });
