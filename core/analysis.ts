@@ -29,7 +29,7 @@ export async function analyse(data: XYData, options: AnalysisOptions, runner: Re
   const chosen = fits.get(result.selected.df) as FitResult;
   const diagnostics = diagnose(tuning, chosen);
   const holdout = split ? holdoutReport(chosen, split.test, options.holdout as number, result.candidates.find((c) => c.df === chosen.df)?.errors.rmse?.mean ?? chosen.looRmse) : undefined;
-  return { options, n: prepared.data.x.length, tune: holdout ? { ...result, holdout } : result, fits, chosen, diagnostics };
+  return { options, n: prepared.data.x.length, data: tuning, tune: holdout ? { ...result, holdout } : result, fits, chosen, diagnostics };
 }
 
 function subset(data: XYData, keep: (i: number) => boolean): XYData {

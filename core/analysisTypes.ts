@@ -1,4 +1,4 @@
-import type { Family, FitResult, ModelOptions } from './types';
+import type { Family, FitResult, ModelOptions, XYData } from './types';
 import type { ResampleSpec, RuleSpec, TuneResult } from './tune/types';
 
 /** Everything one analysis needs besides the data (ModelOptions: outcome family, shape, robust fitting). */
@@ -35,6 +35,11 @@ export interface Analysis {
   readonly options: AnalysisOptions;
   /** Rows used for tuning and fitting (after the held-out split). */
   readonly n: number;
+  /**
+   * The rows tuned and fitted: all rows given to analyse, or those left after the held-out
+   * split, in their input order (the order of every fit's per-row arrays).
+   */
+  readonly data: XYData;
   readonly tune: TuneResult;
   /** Fits to all tuning rows, one per candidate df that was not skipped, by df. */
   readonly fits: ReadonlyMap<number, FitResult>;

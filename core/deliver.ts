@@ -47,6 +47,11 @@ export interface DeliverInput {
   readonly diagnostics: Diagnostics;
   /** SHA-256 (hex) of a text's UTF-8 bytes. */
   readonly sha256: (text: string) => string;
+  /**
+   * File names of the table and the record; default `<stem>.curve.csv` and `<stem>.fit.json`,
+   * the command line's (the editor lets them be renamed). The record lists the table by this name.
+   */
+  readonly names?: { readonly table: string; readonly record: string } | undefined;
 }
 
 /** One file to write. */
@@ -150,7 +155,7 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
   };
   const warnings = [...tableWarnings(input, summary, shaped.added), ...input.diagnostics.warnings, ...(input.analysis?.tune.holdout?.warning ? [input.analysis.tune.holdout.warning] : [])];
   const regenerate = fitCommand(plan, input.dataPath);
-  const names = { table: `${input.stem}.curve.csv`, record: `${input.stem}.fit.json`, report: `${input.stem}.report.md` };
+  const names = { table: input.names?.table ?? `${input.stem}.curve.csv`, record: input.names?.record ?? `${input.stem}.fit.json`, report: `${input.stem}.report.md` };
   const files: OutputFile[] = [{ kind: 'table', name: names.table, text: curveTableCsv(shaped.table, out.digits) }];
   const curveWords = `${familyWords(fit.family)}, df ${sig(fit.df, 4)}`;
   const emitInput: EmitInput = {

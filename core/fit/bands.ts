@@ -1,5 +1,6 @@
 import { qt } from '../stats/distributions';
 import type { FitResult } from '../types';
+import { emptyBands } from './emptyBands';
 import { clipNonnegative, LinkCurve, linkBandsAt } from './linkCurve';
 
 /** The fitted curve with pointwise bands at a set of x. */
@@ -30,16 +31,7 @@ export function bandsAt(fit: FitResult, xs: ArrayLike<number>, level = 0.95): Ba
   if (fit.curve instanceof LinkCurve) return linkBandsAt(fit.curve, xs, level);
   const m = xs.length;
   const t = fit.residualDf > 0 ? qt(0.5 + level / 2, fit.residualDf) : NaN;
-  const out = {
-    x: Float64Array.from(xs),
-    fit: new Float64Array(m),
-    se: new Float64Array(m),
-    ciLower: new Float64Array(m),
-    ciUpper: new Float64Array(m),
-    piLower: new Float64Array(m),
-    piUpper: new Float64Array(m),
-    extrapolated: new Uint8Array(m),
-  };
+  const out = emptyBands(xs);
   const s2 = fit.sigma * fit.sigma;
   for (let i = 0; i < m; i++) {
     const x = xs[i] as number;

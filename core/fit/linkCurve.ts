@@ -4,6 +4,7 @@
 import { pbeta, pgamma, qnorm } from '../stats/distributions';
 import type { Curve } from '../types';
 import type { Bands } from './bands';
+import { emptyBands } from './emptyBands';
 import type { OutcomeFamily } from './glm';
 import type { RowBasisCurve } from './linearFit';
 
@@ -78,16 +79,7 @@ export function linkBandsAt(curve: LinkCurve, xs: ArrayLike<number>, level: numb
   const z = qnorm(0.5 + level / 2);
   const fam = curve.fam;
   const trials = curve.trials;
-  const out = {
-    x: Float64Array.from(xs),
-    fit: new Float64Array(m),
-    se: new Float64Array(m),
-    ciLower: new Float64Array(m),
-    ciUpper: new Float64Array(m),
-    piLower: new Float64Array(m),
-    piUpper: new Float64Array(m),
-    extrapolated: new Uint8Array(m),
-  };
+  const out = emptyBands(xs);
   const lowP = (1 - level) / 2;
   const highP = (1 + level) / 2;
   for (let i = 0; i < m; i++) {

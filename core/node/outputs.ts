@@ -7,42 +7,26 @@ import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { basename, join, resolve } from 'node:path';
 import type { OutputFile } from '../deliver';
 import { InputError } from '../errors';
-import { RECORD_FORMAT } from '../record';
+import { writtenByKnotwise } from '../ownership';
 import { readIfExists, writeFileAtomic } from './atomicWrite';
+
+/** Kept here for callers of the command line's module; the rule itself is pure (core/ownership.ts). */
+export { recordedFiles } from '../ownership';
 
 /** SHA-256 (FIPS 180-4) of a text's UTF-8 bytes or of a buffer, as hex. */
 export function sha256(text: string | Buffer): string {
   return createHash('sha256').update(text).digest('hex');
 }
 
-/** The files a fit record lists with their SHA-256: the table and every other output, by file name. */
-export function recordedFiles(record: unknown): Map<string, string> {
-  const out = new Map<string, string>();
-  const rec = record as { table?: { file?: unknown; sha256?: unknown }; outputs?: unknown };
-  if (typeof rec.table?.file === 'string' && typeof rec.table.sha256 === 'string') out.set(rec.table.file, rec.table.sha256);
-  if (Array.isArray(rec.outputs)) {
-    for (const o of rec.outputs as { file?: unknown; sha256?: unknown }[]) if (typeof o?.file === 'string' && typeof o.sha256 === 'string') out.set(o.file, o.sha256);
-  }
-  return out;
-}
-
 /**
  * True when `path` does not exist or was written by Knotwise: the fit record itself (its
  * `format` field), or a file the neighbouring record lists by name with the SHA-256 of its
- * current bytes. A listed file edited by hand is no longer Knotwise's.
+ * current bytes (core/ownership.ts writtenByKnotwise). A listed file edited by hand is no
+ * longer Knotwise's.
  */
 export function isOurs(path: string, recordPath: string): boolean {
   if (!existsSync(path)) return true;
-  const recordText = readIfExists(recordPath);
-  if (recordText === undefined) return false;
-  try {
-    const rec = JSON.parse(recordText) as { format?: unknown };
-    if (rec.format !== RECORD_FORMAT) return false;
-    if (resolve(path) === resolve(recordPath)) return true;
-    return recordedFiles(rec).get(basename(path)) === sha256(readFileSync(path));
-  } catch {
-    return false;
-  }
+  return writtenByKnotwise({ name: basename(path), sha256: sha256(readFileSync(path)), isRecord: resolve(path) === resolve(recordPath) }, readIfExists(recordPath));
 }
 
 /**

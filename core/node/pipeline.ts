@@ -13,7 +13,6 @@ import { fitCurve } from '../fit/index';
 import { selectColumns, type Selection } from '../ingest/select';
 import { selectTrials } from '../ingest/trials';
 import type { FitPlan } from '../plan';
-import { holdoutMask, orderByX } from '../tune/plan';
 import type { FitResult, XYData } from '../types';
 import { sha256 } from './outputs';
 import { workerRunner } from './pool';
@@ -40,17 +39,6 @@ export function placed(e: unknown, file: string, labels: { readonly x: string; r
   const role = e.place.column;
   const column = role === 'x' ? labels.x : role === 'y' ? labels.y : role === 'weights' ? labels.weights : role;
   return new InputError(e.message, { file, line: e.place.line, column });
-}
-
-/** The rows left for fitting after the analysis's held-out split (the same split analyse makes). */
-function fittedRows(data: XYData, analysis: Analysis | undefined): XYData {
-  const fraction = analysis?.options.holdout;
-  if (!analysis || !fraction) return data;
-  const mask = holdoutMask(orderByX(data.x), fraction, analysis.options.seed);
-  const idx: number[] = [];
-  for (let i = 0; i < mask.length; i++) if (mask[i] === 0) idx.push(i);
-  const pick = (a: Float64Array): Float64Array => Float64Array.from(idx, (i) => a[i] as number);
-  return { x: pick(data.x), y: pick(data.y), w: data.w ? pick(data.w) : undefined, lines: data.lines ? Int32Array.from(idx, (i) => (data.lines as Int32Array)[i] as number) : undefined };
 }
 
 /** `target` relative to `folder`, with `/` separators (so records read the same on every system). */
@@ -81,7 +69,8 @@ export async function runPipeline(file: string, plan: FitPlan, outFolder: string
   } catch (e) {
     throw placed(e, file, selection.labels);
   }
-  const fitted = fittedRows(selection.data, analysis);
+  // The rows the fit used: those analyse tuned (without held-out rows), else all.
+  const fitted = analysis ? analysis.data : selection.data;
   const diagnostics = analysis ? analysis.diagnostics : diagnose(selection.data, fit);
   const deliverables = buildDeliverables({
     plan,

@@ -15,7 +15,7 @@ import { execFile } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
-import { main } from '../../../core/node/cli';
+import { type Run, runMain } from './runMain';
 
 const REL = 1e-8;
 const ABS = 1e-10;
@@ -69,28 +69,8 @@ function checkArray(what: string, got: unknown, want: readonly number[], scale: 
   want.forEach((w, i) => checkClose(`${what}[${i}]`, got[i], w, scale));
 }
 
-interface Run {
-  readonly code: number;
-  readonly stdout: string;
-  readonly stderr: string;
-}
 
-/** Runs `main` with stdout and stderr captured. */
-async function run(...argv: string[]): Promise<Run> {
-  let stdout = '';
-  let stderr = '';
-  const out = process.stdout.write;
-  const err = process.stderr.write;
-  process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
-  process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
-  try {
-    const code = await main(argv);
-    return { code, stdout, stderr };
-  } finally {
-    process.stdout.write = out;
-    process.stderr.write = err;
-  }
-}
+const run = runMain;
 
 /** Runs the CLI script in a child process (tsx loads the TypeScript). */
 function runChild(...argv: string[]): Promise<Run> {

@@ -11,7 +11,7 @@ import { strict as assert } from 'node:assert';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main } from '../../../core/node/cli';
+import { type Run, runMain } from './runMain';
 
 const REPO = join(__dirname, '..', '..', '..');
 const fixture = JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixtures', 'physics.json'), 'utf8')) as {
@@ -22,26 +22,8 @@ const fixture = JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixture
 };
 const REL = 1e-7;
 
-interface Run {
-  readonly code: number;
-  readonly stdout: string;
-  readonly stderr: string;
-}
 
-async function run(...argv: string[]): Promise<Run> {
-  let stdout = '';
-  let stderr = '';
-  const out = process.stdout.write;
-  const err = process.stderr.write;
-  process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
-  process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
-  try {
-    return { code: await main(argv), stdout, stderr };
-  } finally {
-    process.stdout.write = out;
-    process.stderr.write = err;
-  }
-}
+const run = runMain;
 
 function refused(r: Run, ...patterns: RegExp[]): void {
   assert.equal(r.code, 2, `exit code (stderr: ${r.stderr})`);
