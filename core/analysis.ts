@@ -1,10 +1,12 @@
-import type { Analysis, AnalysisOptions } from './analysisTypes';
+import type { Analysis, AnalysisOptions, Diagnostics } from './analysisTypes';
 import { diagnose } from './diagnose';
+import { InputError } from './errors';
 import { prepareData } from './fit/prepared';
 import { holdoutMask, orderByX } from './tune/plan';
 import { sig } from './tune/format';
+import { selectDf } from './tune/rules';
 import { inlineRunner, type ResampleRunner, tuneCurve } from './tune/tune';
-import type { HoldoutReport, Progress } from './tune/types';
+import type { HoldoutReport, Progress, RuleSpec } from './tune/types';
 import type { FitResult, XYData } from './types';
 
 /** Held-out RMSE above this multiple of the resampled estimate gets a warning (a Knotwise default). */
@@ -28,8 +30,38 @@ export async function analyse(data: XYData, options: AnalysisOptions, runner: Re
   );
   const chosen = fits.get(result.selected.df) as FitResult;
   const diagnostics = diagnose(tuning, chosen);
-  const holdout = split ? holdoutReport(chosen, split.test, options.holdout as number, result.candidates.find((c) => c.df === chosen.df)?.errors.rmse?.mean ?? chosen.looRmse) : undefined;
-  return { options, n: prepared.data.x.length, data: tuning, tune: holdout ? { ...result, holdout } : result, fits, chosen, diagnostics };
+  const holdout = split ? holdoutReport(chosen, split.test, options.holdout as number, resampledRmse(result.candidates, chosen)) : undefined;
+  return { options, n: prepared.data.x.length, data: tuning, ...(split ? { heldOut: split.test } : {}), tune: holdout ? { ...result, holdout } : result, fits, chosen, diagnostics };
+}
+
+/** The resampled RMSE of a fit's candidate, else its exact leave-one-out RMSE. */
+function resampledRmse(candidates: Analysis['tune']['candidates'], fit: FitResult): number {
+  return candidates.find((c) => c.df === fit.df)?.errors.rmse?.mean ?? fit.looRmse;
+}
+
+/**
+ * The analysis as analyse would have returned it with `rule` instead of options.rule: the
+ * rule's selection among the same candidates, its fit as `chosen`, that fit's residual
+ * checks (`diagnostics` when given, e.g. from a cache, else diagnose) and the held-out
+ * check redone for it. Returns `analysis` itself when the rule chooses as before. Throws
+ * InputError when the rule cannot choose (e.g. a df by hand that is no candidate).
+ * Cost: none when the df is unchanged, else diagnose's O(n log n) and the held-out rows.
+ * Example: withRule(analysis, { kind: 'lowest' }).chosen.df.
+ */
+export function withRule(analysis: Analysis, rule: RuleSpec, diagnostics?: Diagnostics): Analysis {
+  const selected = selectDf(analysis.tune.candidates, rule, analysis.tune.metric);
+  const options = { ...analysis.options, rule };
+  if (selected.df === analysis.chosen.df) {
+    if (JSON.stringify(rule) === JSON.stringify(analysis.tune.selected.rule)) return analysis;
+    return { ...analysis, options, tune: { ...analysis.tune, selected } };
+  }
+  const chosen = analysis.fits.get(selected.df);
+  if (!chosen) throw new InputError(`df ${selected.df} has no fitted curve`);
+  const checks = diagnostics ?? diagnose(analysis.data, chosen);
+  const { holdout: _old, ...tune } = analysis.tune;
+  const fraction = analysis.options.holdout;
+  const holdout = analysis.heldOut && fraction ? holdoutReport(chosen, analysis.heldOut, fraction, resampledRmse(tune.candidates, chosen)) : undefined;
+  return { ...analysis, options, tune: { ...tune, selected, ...(holdout ? { holdout } : {}) }, chosen, diagnostics: checks };
 }
 
 function subset(data: XYData, keep: (i: number) => boolean): XYData {

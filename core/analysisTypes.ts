@@ -40,6 +40,8 @@ export interface Analysis {
    * split, in their input order (the order of every fit's per-row arrays).
    */
   readonly data: XYData;
+  /** The rows held out for the final check (absent without a held-out split). */
+  readonly heldOut?: XYData | undefined;
   readonly tune: TuneResult;
   /** Fits to all tuning rows, one per candidate df that was not skipped, by df. */
   readonly fits: ReadonlyMap<number, FitResult>;

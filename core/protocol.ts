@@ -5,7 +5,7 @@
  * carry the run id they belong to so that the panel drops anything from an outdated run.
  * Everything here is plain JSON (numbers, strings, arrays): no typed arrays, no Maps.
  */
-import type { Family } from './types';
+import type { Family, Outcome, Shape } from './types';
 import type { CandidateResult, HoldoutReport, Metric, RuleSpec } from './tune/types';
 
 /** Readings drawn one by one (small n) or as a 2-D count grid (large n or heavy overplotting). */
@@ -64,6 +64,30 @@ export interface CheckView {
   readonly flagged: boolean;
 }
 
+/** A row a robust (Huber) fit gave weight below 1, named by its CSV line. */
+export interface DownweightedRow {
+  readonly line: number;
+  readonly x: number;
+  readonly y: number;
+  /** Huber weight in (0, 1). */
+  readonly weight: number;
+}
+
+/** The model report of one fitted df (outcome family, shape constraints, robust weights); see core/types.ts ModelReport. */
+export interface ModelReportView {
+  readonly converged: boolean;
+  /** Reweighting iterations (1 for a single constrained least-squares solve). */
+  readonly iterations: number;
+  /** Poisson and binomial: deviance, null deviance, Pearson dispersion (about 1 when the variance follows the family). */
+  readonly glm?: { readonly deviance: number; readonly nullDeviance: number; readonly dispersion: number };
+  /** Shape constraints: inequalities in total, how many hold with equality, df minus the independent active ones. */
+  readonly constraints?: { readonly total: number; readonly active: number; readonly effectiveDf: number };
+  /** Huber fitting: tuning constant, robust scale, rows down-weighted (lowest weight first, at most a few dozen listed). */
+  readonly robust?: { readonly k: number; readonly scale: number; readonly total: number; readonly rows: readonly DownweightedRow[] };
+  /** The report in plain words, one fact per line. */
+  readonly lines: readonly string[];
+}
+
 /** Everything the residual figures and texts need for one df. */
 export interface FitDetail {
   readonly df: number;
@@ -76,6 +100,8 @@ export interface FitDetail {
   /** Plain-language notes of the fit (tied knots moved, ...). */
   readonly notes: readonly string[];
   readonly knots: readonly number[];
+  /** What the residual figures show: reading minus fit ('response'), or deviance residuals of a Poisson or binomial fit. */
+  readonly residualKind: 'response' | 'deviance';
   readonly residualsVsX: Cloud;
   readonly residualsVsFitted: Cloud;
   /** Normal quantile plot of standardised residuals, at most a few hundred quantiles. */
@@ -94,6 +120,8 @@ export interface FitDetail {
   readonly checks: readonly CheckView[];
   /** Warnings specific to this df (failed checks, negative predictions, ...). */
   readonly warnings: readonly string[];
+  /** Present when an outcome family other than Gaussian, shape constraints or robust fitting was used. */
+  readonly model?: ModelReportView;
 }
 
 /** Where the data came from and what the columns are called (text from the CSV: insert as text only). */
@@ -104,6 +132,28 @@ export interface SourceView {
   readonly weightsLabel?: string;
 }
 
+/** The options the panel's controls switch: outcome family, shape constraints, robust fitting. */
+export interface ModelChoice {
+  readonly outcome: Outcome;
+  readonly shape: readonly Shape[];
+  readonly robust: boolean;
+}
+
+/** Which outcome family, shapes and robust fitting a run used. */
+export interface ModelView extends ModelChoice {
+  readonly link: 'identity' | 'log' | 'logit';
+  /** Huber tuning constant when robust. */
+  readonly robustK?: number;
+  /** Binomial outcome with a trials column: its label (text from the CSV). */
+  readonly trialsLabel?: string;
+  /** The options in plain words. */
+  readonly words: string;
+  /** True when the panel's controls set them (they override the settings for this file). */
+  readonly fromPanel: boolean;
+  /** What the curve family supports (core/fit/model.ts resolveModel). */
+  readonly supports: { readonly outcomes: readonly Outcome[]; readonly shapes: boolean; readonly robust: boolean };
+}
+
 /** The whole panel content of one run. */
 export interface PanelPayload {
   readonly runId: number;
@@ -111,6 +161,8 @@ export interface PanelPayload {
   /** Rows used for tuning and fitting, rows rejected while reading, rows held out. */
   readonly rows: { readonly used: number; readonly rejected: number; readonly heldOut: number };
   readonly family: Family;
+  /** Outcome family, shapes and robust fitting used. */
+  readonly model: ModelView;
   /** The curve family in words. */
   readonly familyWords: string;
   /** How candidate errors were estimated, in words (e.g. "bootstrap, 50 resamples, seed 1"). */
@@ -133,7 +185,7 @@ export interface PanelPayload {
   /** Shared x grid of every curve in `curves`. */
   readonly grid: readonly number[];
   readonly curves: readonly CurveView[];
-  /** Details prefetched for the df the rules choose; others are asked for with `needDetail`. */
+  /** Details of the df `rule` chooses; others are asked for with `needDetail`. */
   readonly details: readonly FitDetail[];
 }
 
@@ -147,8 +199,8 @@ export type HostMessage =
   | { readonly type: 'failed'; readonly runId: number; readonly message: string }
   /** Answer to `needDetail`. */
   | { readonly type: 'detail'; readonly runId: number; readonly detail: FitDetail }
-  /** Answer to `save`: the files written, as workspace-relative paths. */
-  | { readonly type: 'saved'; readonly requestId: number; readonly files: readonly string[] }
+  /** Answer to `save`: the files written, as workspace-relative paths, and a line about the table. */
+  | { readonly type: 'saved'; readonly requestId: number; readonly files: readonly string[]; readonly note?: string }
   /** Answer to `save` when nothing was written; the text says why. */
   | { readonly type: 'saveFailed'; readonly requestId: number; readonly message: string };
 
@@ -165,7 +217,9 @@ export type PanelMessage =
   /** Reveal a 1-based line of the CSV in its editor. */
   | { readonly type: 'revealLine'; readonly line: number }
   /** Run the analysis again with the current settings. */
-  | { readonly type: 'rerun' };
+  | { readonly type: 'rerun' }
+  /** Run the analysis again with these model options (they override the settings for this file). */
+  | { readonly type: 'model'; readonly runId: number; readonly model: ModelChoice };
 
 /** Compile-time exhaustiveness check for switches over message tags. */
 export function unreachable(x: never): never {
@@ -189,9 +243,21 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
       return num('requestId') && num('runId') && isRuleSpec(o.rule);
     case 'revealLine':
       return num('line');
+    case 'model':
+      return num('runId') && isModelChoice(o.model);
     default:
       return false;
   }
+}
+
+const OUTCOMES: readonly string[] = ['gaussian', 'poisson', 'binomial'];
+const SHAPE_NAMES: readonly string[] = ['increasing', 'decreasing', 'nonnegative', 'convex', 'concave'];
+
+/** True when `m` is a well-formed ModelChoice (names known; combinations are checked by the host). */
+export function isModelChoice(m: unknown): m is ModelChoice {
+  if (typeof m !== 'object' || m === null) return false;
+  const o = m as Record<string, unknown>;
+  return OUTCOMES.includes(o.outcome as string) && Array.isArray(o.shape) && o.shape.every((s) => SHAPE_NAMES.includes(s as string)) && typeof o.robust === 'boolean';
 }
 
 /** True when `r` is a well-formed RuleSpec. */

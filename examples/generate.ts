@@ -17,14 +17,14 @@ function write(name: string, header: string, rows: string[]): void {
   writeFileSync(join(__dirname, name), [header, ...rows].join('\n') + '\n');
 }
 
-/** Humidity sensor against a reference hygrometer: 12 set points, 5 readings each, a gently curved response. */
+/** Humidity sensor against a reference hygrometer: 15 set points, 4 readings each; the response bends and then stiffens near condensation. */
 function humidity(): void {
   const rng = new RandomStream(20261201, 1);
   const rows: string[] = [];
-  for (let s = 0; s < 12; s++) {
-    const rh = 10 + s * 7.5;
-    for (let r = 0; r < 5; r++) {
-      const reading = 0.35 + 0.0298 * rh - 0.000062 * rh * rh + 0.0000012 * rh ** 3 * 0.1 + 0.012 * normal(rng);
+  for (let s = 0; s < 15; s++) {
+    const rh = 10 + s * 6;
+    for (let r = 0; r < 4; r++) {
+      const reading = 0.3 + 2.6 * (1 - Math.exp(-rh / 40)) + 0.25 / (1 + Math.exp(-(rh - 78) / 4)) + 0.02 * normal(rng);
       rows.push(`${rh.toFixed(1)},${reading.toFixed(4)}`);
     }
   }

@@ -1,7 +1,8 @@
 /**
- * Quick picks for the x, y and optional weight columns: numeric columns first, each with a
- * preview of its first values; the last choice per file is remembered in workspaceState
- * and offered first next time.
+ * Quick picks for the x, y and optional weight columns (for a binomial outcome: the
+ * optional trials column instead of weights): numeric columns first, each with a preview
+ * of its first values; the last choice per file is remembered in workspaceState and
+ * offered first next time.
  */
 import * as vscode from 'vscode';
 import type { ColumnInfo, ParsedTable } from '../core/ingest/types';
@@ -11,7 +12,13 @@ import { sig } from '../core/tune/format';
 export interface ColumnChoice {
   readonly x: string;
   readonly y: string;
+  /** Prior weights (any outcome; for a binomial outcome without trials, the trials of proportions). */
   readonly weights?: string | undefined;
+  /**
+   * Binomial outcome: the column with each row's number of trials (y then holds successes);
+   * null when the person chose none, undefined when not asked yet.
+   */
+  readonly trials?: string | null | undefined;
 }
 
 const MEMORY_KEY = 'knotwise.columns';
@@ -42,7 +49,8 @@ export class ColumnMemory {
 /** True when every column of `choice` exists in `table`. */
 export function choiceFits(table: ParsedTable, choice: ColumnChoice): boolean {
   const labels = new Set(table.columns.map((c) => c.label));
-  return labels.has(choice.x) && labels.has(choice.y) && (choice.weights === undefined || labels.has(choice.weights));
+  const optional = (c: string | null | undefined): boolean => c === undefined || c === null || labels.has(c);
+  return labels.has(choice.x) && labels.has(choice.y) && optional(choice.weights) && optional(choice.trials);
 }
 
 /** The first few values of a column as text. */
@@ -61,12 +69,21 @@ interface ColumnItem extends vscode.QuickPickItem {
   readonly column?: ColumnInfo;
 }
 
-function items(table: ParsedTable, exclude: readonly string[], withNone: boolean): ColumnItem[] {
+/** The first entry of the optional third pick. */
+interface NoneItem {
+  readonly label: string;
+  readonly description: string;
+}
+
+const NO_WEIGHTS: NoneItem = { label: 'No weights', description: 'every row counts the same' };
+const NO_TRIALS: NoneItem = { label: 'No trials column', description: 'y holds 0/1 outcomes or proportions' };
+
+function items(table: ParsedTable, exclude: readonly string[], none: NoneItem | undefined): ColumnItem[] {
   const cols = table.columns.filter((c) => !exclude.includes(c.label));
   const numeric = cols.filter((c) => c.numeric);
   const other = cols.filter((c) => !c.numeric);
   const out: ColumnItem[] = [];
-  if (withNone) out.push({ label: 'No weights', description: 'every row counts the same' });
+  if (none) out.push({ label: none.label, description: none.description });
   if (numeric.length) out.push({ label: 'Numeric columns', kind: vscode.QuickPickItemKind.Separator });
   for (const c of numeric) {
     out.push({
@@ -106,15 +123,31 @@ async function pickOne(title: string, step: number, list: ColumnItem[], preferre
   });
 }
 
-/** Asks for x, y and weights; undefined when the person dismissed a pick. */
-export async function pickColumns(table: ParsedTable, fileName: string, remembered: ColumnChoice | undefined, token: vscode.CancellationToken): Promise<ColumnChoice | undefined> {
+/**
+ * Asks for x, y and, as the third step, the weights, or for a binomial outcome
+ * (`trials` true) the trials column; undefined when the person dismissed a pick. The
+ * remembered choice of the step not asked is kept.
+ */
+export async function pickColumns(table: ParsedTable, fileName: string, remembered: ColumnChoice | undefined, token: vscode.CancellationToken, trials = false): Promise<ColumnChoice | undefined> {
   if (table.columns.length < 2) throw new Error(`${fileName} has ${table.columns.length} column; Knotwise needs at least two (x and y)`);
   const numeric = table.columns.filter((c) => c.numeric);
-  const x = await pickOne(`Knotwise: the x column of ${fileName} (what was set or measured as input)`, 1, items(table, [], false), remembered?.x ?? numeric[0]?.label, token);
+  const x = await pickOne(`Knotwise: the x column of ${fileName} (what was set or measured as input)`, 1, items(table, [], undefined), remembered?.x ?? numeric[0]?.label, token);
   if (!x?.column) return undefined;
-  const y = await pickOne(`Knotwise: the y column of ${fileName} (the reading the curve describes)`, 2, items(table, [x.label], false), remembered?.y ?? numeric.find((c) => c.label !== x.label)?.label, token);
+  const y = await pickOne(`Knotwise: the y column of ${fileName} (the reading the curve describes)`, 2, items(table, [x.label], undefined), remembered?.y ?? numeric.find((c) => c.label !== x.label)?.label, token);
   if (!y?.column) return undefined;
-  const w = await pickOne(`Knotwise: weights for ${fileName} (optional)`, 3, items(table, [x.label, y.label], true), remembered?.weights ?? 'No weights', token);
+  if (trials) {
+    const t = await pickOne(`Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`, 3, items(table, [x.label, y.label], NO_TRIALS), remembered?.trials ?? NO_TRIALS.label, token);
+    if (!t) return undefined;
+    return { x: x.label, y: y.label, weights: remembered?.weights, trials: t.column ? t.label : null };
+  }
+  const w = await pickOne(`Knotwise: weights for ${fileName} (optional)`, 3, items(table, [x.label, y.label], NO_WEIGHTS), remembered?.weights ?? NO_WEIGHTS.label, token);
   if (!w) return undefined;
-  return { x: x.label, y: y.label, weights: w.column ? w.label : undefined };
+  return { x: x.label, y: y.label, weights: w.column ? w.label : undefined, trials: remembered?.trials };
+}
+
+/** Asks only for the trials column of a binomial outcome (x and y already chosen); undefined when dismissed. */
+export async function pickTrials(table: ParsedTable, fileName: string, choice: ColumnChoice, token: vscode.CancellationToken): Promise<ColumnChoice | undefined> {
+  const t = await pickOne(`Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`, 3, items(table, [choice.x, choice.y], NO_TRIALS), choice.trials ?? NO_TRIALS.label, token);
+  if (!t) return undefined;
+  return { ...choice, trials: t.column ? t.label : null };
 }

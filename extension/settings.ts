@@ -5,10 +5,13 @@
  * line's syntax (core/spec.ts), so a setting and a CLI flag mean the same thing.
  */
 import type { AnalysisOptions } from '../core/analysisTypes';
+import { MAX_HUBER_K, resolveModel } from '../core/fit/model';
+import { HUBER_K } from '../core/fit/robust';
+import { checkShapes } from '../core/fit/shape';
 import { parseDfList, parseResample } from '../core/spec';
 import { parseGrid, type GridSpec } from '../core/table/grid';
 import type { ResampleSpec, RuleSpec } from '../core/tune/types';
-import type { Family } from '../core/types';
+import type { Family, ModelOptions, Outcome, Shape } from '../core/types';
 
 /** Reads one raw setting (vscode's WorkspaceConfiguration.get, or a plain object in tests). */
 export type SettingReader = (key: string) => unknown;
@@ -16,6 +19,8 @@ export type SettingReader = (key: string) => unknown;
 /** The settings snapshot. */
 export interface Settings {
   readonly family: Family;
+  /** Outcome family, shapes and Huber constant (undefined: least squares), checked against the family. */
+  readonly model: ModelSettings;
   /** Candidate df; undefined means the family's default range. */
   readonly candidates: readonly number[] | undefined;
   readonly resample: ResampleSpec;
@@ -37,9 +42,21 @@ export interface Settings {
   readonly problems: readonly string[];
 }
 
+/** The model options of the settings (the command line's --family, --shape, --robust / --huber-k). */
+export interface ModelSettings {
+  readonly outcome: Outcome;
+  readonly shape: readonly Shape[];
+  /** Huber tuning constant; undefined for least squares. */
+  readonly robustK: number | undefined;
+}
+
 /** Defaults, the same as the command line's. */
 export const DEFAULTS = {
   family: 'natural' as Family,
+  outcome: 'gaussian' as Outcome,
+  shape: [] as readonly Shape[],
+  robust: false,
+  huberK: HUBER_K,
   candidates: '',
   resampling: 'boot:50',
   rule: '1se',
@@ -99,6 +116,8 @@ export function readSettings(get: SettingReader): Settings {
   const family: Family = familyText === 'natural' || familyText === 'poly' || familyText === 'smooth' ? familyText : DEFAULTS.family;
   if (family !== familyText) problems.push(`knotwise.curveFamily "${familyText}" is not natural, poly or smooth; using ${DEFAULTS.family}`);
 
+  const model = readModel(get, family, problems);
+
   const candText = str('candidates', DEFAULTS.candidates);
   const candidates = candText === '' ? undefined : attempt<number[] | undefined>('candidates', undefined, () => parseDfList(candText));
 
@@ -133,6 +152,7 @@ export function readSettings(get: SettingReader): Settings {
 
   return {
     family,
+    model,
     candidates,
     resample,
     rule,
@@ -146,6 +166,77 @@ export function readSettings(get: SettingReader): Settings {
     tableName,
     recordName,
     problems,
+  };
+}
+
+/**
+ * knotwise.outcome, .shape, .robust and .huberK, checked one after the other against the
+ * curve family (core/fit/model.ts resolveModel): an option the family cannot combine with
+ * the ones before it is dropped and listed in `problems`.
+ */
+function readModel(get: SettingReader, family: Family, problems: string[]): ModelSettings {
+  const fits = (m: ModelOptions): string | undefined => {
+    try {
+      resolveModel(family, m);
+      return undefined;
+    } catch (err) {
+      return err instanceof Error ? err.message : String(err);
+    }
+  };
+  const outcomeRaw = get('outcome');
+  let outcome: Outcome = DEFAULTS.outcome;
+  if (outcomeRaw !== undefined && outcomeRaw !== null) {
+    if (outcomeRaw === 'gaussian' || outcomeRaw === 'poisson' || outcomeRaw === 'binomial') outcome = outcomeRaw;
+    else problems.push(`knotwise.outcome "${String(outcomeRaw)}" is not gaussian, poisson or binomial; using gaussian`);
+  }
+  const outcomeProblem = fits({ outcome });
+  if (outcomeProblem) {
+    problems.push(`knotwise.outcome: ${outcomeProblem}; using gaussian`);
+    outcome = 'gaussian';
+  }
+  const shapeRaw = get('shape');
+  let shape: readonly Shape[] = DEFAULTS.shape;
+  if (shapeRaw !== undefined && shapeRaw !== null) {
+    try {
+      if (!Array.isArray(shapeRaw) || shapeRaw.some((v) => typeof v !== 'string')) throw new Error('must be a list of shape names');
+      shape = checkShapes(shapeRaw as string[]);
+    } catch (err) {
+      problems.push(`knotwise.shape: ${err instanceof Error ? err.message : String(err)}; using no shape constraint`);
+    }
+  }
+  const shapeProblem = shape.length ? fits({ outcome, shape }) : undefined;
+  if (shapeProblem) {
+    problems.push(`knotwise.shape: ${shapeProblem}; using no shape constraint`);
+    shape = [];
+  }
+  const robustRaw = get('robust');
+  let robust = typeof robustRaw === 'boolean' ? robustRaw : DEFAULTS.robust;
+  if (robustRaw !== undefined && robustRaw !== null && typeof robustRaw !== 'boolean') problems.push('knotwise.robust must be true or false; using false');
+  const kRaw = get('huberK');
+  let k: number = DEFAULTS.huberK;
+  if (kRaw !== undefined && kRaw !== null) {
+    if (typeof kRaw === 'number' && Number.isFinite(kRaw) && kRaw > 0 && kRaw <= MAX_HUBER_K) k = kRaw;
+    else problems.push(`knotwise.huberK must be a number above 0 and at most ${MAX_HUBER_K}; using ${DEFAULTS.huberK}`);
+  }
+  const robustProblem = robust ? fits({ outcome, shape, robust: { k } }) : undefined;
+  if (robustProblem) {
+    problems.push(`knotwise.robust: ${robustProblem}; fitting by least squares`);
+    robust = false;
+  }
+  return { outcome, shape, robustK: robust ? k : undefined };
+}
+
+/**
+ * Model settings as the command line's model options: only what differs from plain least
+ * squares, and the default Huber constant as `true` (--robust) rather than { k } (--huber-k),
+ * so the record and its regenerate command read as the command line writes them.
+ * Example: modelOptions({ outcome: 'poisson', shape: [], robustK: undefined }) -> { outcome: 'poisson' }.
+ */
+export function modelOptions(m: ModelSettings): ModelOptions {
+  return {
+    ...(m.outcome !== 'gaussian' ? { outcome: m.outcome } : {}),
+    ...(m.shape.length > 0 ? { shape: m.shape } : {}),
+    ...(m.robustK !== undefined ? { robust: m.robustK === HUBER_K ? true : { k: m.robustK } } : {}),
   };
 }
 
@@ -169,9 +260,13 @@ function checkName(key: string, value: string, fallback: string, problems: strin
   return value;
 }
 
-/** The analysis options the settings ask for (rule as set; the panel may change it later). */
-export function analysisOptions(s: Settings): AnalysisOptions {
-  return { family: s.family, candidates: s.candidates, resample: s.resample, rule: s.rule, seed: s.seed, holdout: s.holdout > 0 ? s.holdout : undefined };
+/**
+ * The analysis options the settings ask for (rule as set; the panel may change it later),
+ * with `model` in place of the settings' model options when given (the panel's controls).
+ * Keys in the command line's order, so equal options compare equal as JSON.
+ */
+export function analysisOptions(s: Settings, model: ModelSettings = s.model): AnalysisOptions {
+  return { family: s.family, candidates: s.candidates, resample: s.resample, rule: s.rule, seed: s.seed, holdout: s.holdout > 0 ? s.holdout : undefined, ...modelOptions(model) };
 }
 
 /** A file name from a pattern: ${name} is the data file's name without extension. */

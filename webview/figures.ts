@@ -58,8 +58,8 @@ function figureSpecs(payload: PanelPayload, selection: Selection, detail: FitDet
     return specs;
   }
   specs.push(
-    { id: 'fig-resid-x', caption: `Residuals against ${xLabel}`, svg: residualSvg({ id: 'fig-resid-x', cloud: detail.residualsVsX, against: xLabel, df }) },
-    { id: 'fig-resid-fit', caption: 'Residuals against fitted values', svg: residualSvg({ id: 'fig-resid-fit', cloud: detail.residualsVsFitted, against: 'fitted value', df }) },
+    { id: 'fig-resid-x', caption: `Residuals against ${xLabel}`, svg: residualSvg({ id: 'fig-resid-x', cloud: detail.residualsVsX, against: xLabel, df, kind: detail.residualKind }) },
+    { id: 'fig-resid-fit', caption: 'Residuals against fitted values', svg: residualSvg({ id: 'fig-resid-fit', cloud: detail.residualsVsFitted, against: 'fitted value', df, kind: detail.residualKind }) },
     { id: 'fig-qq', caption: 'Normal quantile plot of standardised residuals', svg: normalQqSvg({ id: 'fig-qq', theoretical: detail.qq.theoretical, sample: detail.qq.sample, df }) },
     {
       id: 'fig-cooks',

@@ -321,7 +321,7 @@ async function runDemo(argv: string[]): Promise<number> {
   if (!example) throw new InputError('the bundled example examples/humidity-sensor.csv was not found');
   const out = resolve(values.out ?? 'knotwise-demo');
   process.stdout.write(`Demo: invented humidity-sensor calibration data (${example})\n`);
-  const code = await runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resample', 'cv:10x5', '--rule', '1se', '--grid', '10:92.5:step=2.5', '--nonnegative', '--emit', 'c,ts,json', '--report', '--out', out]);
+  const code = await runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resample', 'cv:10x5', '--rule', '1se', '--grid', '10:94:step=2', '--nonnegative', '--emit', 'c,ts,json', '--report', '--out', out]);
   process.stdout.write(`Outputs are in ${out}: open ${join(out, 'humidity-sensor.report.md')} for the review report; check them with: knotwise check ${out}\n`);
   return code;
 }

@@ -13,24 +13,28 @@ export interface ResidualSpec {
   readonly cloud: Cloud;
   readonly against: string;
   readonly df: number;
+  /** 'response' (default): reading minus fitted value; 'deviance': deviance residuals of a Poisson or binomial fit. */
+  readonly kind?: 'response' | 'deviance' | undefined;
 }
 
 /** SVG text of a residual figure. Example: residualSvg({ id: 'fig-rx', cloud, against: 'speed', df: 4 }). */
 export function residualSvg(spec: ResidualSpec): string {
   const r = cloudRanges(spec.cloud);
   const ys = extent([r.y, [0]]);
-  const frame = plotFrame({ id: spec.id, xDomain: extent([r.x], 0.02), yDomain: ys, xLabel: spec.against, yLabel: 'residual' });
+  const deviance = spec.kind === 'deviance';
+  const yName = deviance ? 'deviance residual' : 'residual';
+  const frame = plotFrame({ id: spec.id, xDomain: extent([r.x], 0.02), yDomain: ys, xLabel: spec.against, yLabel: yName });
   const y0 = coord(frame.sy(0));
   const body =
     frame.clipDef +
     frame.axes +
     `<path class="kw-zero" d="M${frame.left} ${y0}H${frame.right}"/>` +
-    cloudMarks(spec.cloud, frame, { x: spec.against, y: 'residual' });
+    cloudMarks(spec.cloud, frame, { x: spec.against, y: yName });
   return svgDocument(
     spec.id,
     {
-      title: `Residuals against ${spec.against} (df ${spec.df})`,
-      desc: `${cloudWords(spec.cloud)}; residual = reading minus fitted value. Without structure they scatter evenly around the zero line.`,
+      title: `${deviance ? 'Deviance residuals' : 'Residuals'} against ${spec.against} (df ${spec.df})`,
+      desc: `${cloudWords(spec.cloud)}; ${deviance ? "deviance residual = the signed square root of the row's contribution to the deviance" : 'residual = reading minus fitted value'}. Without structure they scatter evenly around the zero line.`,
     },
     body,
   );

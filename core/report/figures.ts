@@ -79,8 +79,8 @@ export function reportFigures(input: FigureInput): ReportFigure[] {
     });
   }
   out.push(
-    { name: name('residuals-x'), caption: `Residuals against ${input.xLabel}`, svg: residualSvg({ id: 'fig-resid-x', cloud: detail.residualsVsX, against: input.xLabel, df }) },
-    { name: name('residuals-fitted'), caption: 'Residuals against fitted values', svg: residualSvg({ id: 'fig-resid-fit', cloud: detail.residualsVsFitted, against: 'fitted value', df }) },
+    { name: name('residuals-x'), caption: `Residuals against ${input.xLabel}`, svg: residualSvg({ id: 'fig-resid-x', cloud: detail.residualsVsX, against: input.xLabel, df, kind: detail.residualKind }) },
+    { name: name('residuals-fitted'), caption: 'Residuals against fitted values', svg: residualSvg({ id: 'fig-resid-fit', cloud: detail.residualsVsFitted, against: 'fitted value', df, kind: detail.residualKind }) },
     { name: name('normal-quantiles'), caption: 'Normal quantile plot of standardised residuals', svg: normalQqSvg({ id: 'fig-qq', theoretical: detail.qq.theoretical, sample: detail.qq.sample, df }) },
   );
   return out.map((f) => ({ ...f, svg: standaloneSvg(f.svg) }));

@@ -3,16 +3,19 @@
  * stays small at any n.
  */
 import type { Diagnostics } from '../analysisTypes';
-import type { FitDetail, InfluentialRow } from '../protocol';
+import { checkResiduals } from '../fit/modelResiduals';
+import type { FitDetail, InfluentialRow, ModelReportView } from '../protocol';
 import { num } from '../plots/svg';
 import type { FitResult, XYData } from '../types';
 import { cloudOf, DEFAULT_CLOUD_LIMITS, type CloudLimits } from './cloud';
 import { roundAll, roundSig } from './round';
 import { maxPerCell, normalQuantiles } from './series';
-import { checkViews } from './words';
+import { checkViews, modelReportLines } from './words';
 
 /** Largest number of influential rows listed by line. */
 export const MAX_INFLUENTIAL_LISTED = 30;
+/** Largest number of down-weighted rows (robust fits) listed by line. */
+export const MAX_DOWNWEIGHTED_LISTED = 30;
 /** Number of x cells of the thinned influence figures. */
 const INFLUENCE_CELLS = 240;
 /** Number of quantiles of the normal quantile plot for large n. */
@@ -41,8 +44,35 @@ export interface DetailOptions {
 }
 
 /**
+ * The model report of a fit for the panel (undefined for plain least squares): the numbers
+ * rounded for display, the first MAX_DOWNWEIGHTED_LISTED down-weighted rows with their x,
+ * y and CSV line, and the report in words. O(listed rows).
+ * Example: modelReportView(fitCurve(data, { family: 'natural', df: 5, robust: true }), data)?.robust?.total.
+ */
+export function modelReportView(fit: FitResult, data: XYData): ModelReportView | undefined {
+  const m = fit.model;
+  if (!m) return undefined;
+  const out: { -readonly [K in keyof ModelReportView]: ModelReportView[K] } = { converged: m.converged, iterations: m.iterations, lines: modelReportLines(m, fit.residualDf) };
+  if (m.glm) out.glm = { deviance: roundSig(m.glm.deviance), nullDeviance: roundSig(m.glm.nullDeviance), dispersion: roundSig(m.glm.dispersion) };
+  if (m.constraints) out.constraints = { total: m.constraints.total, active: m.constraints.active, effectiveDf: roundSig(m.constraints.effectiveDf) };
+  if (m.robust) {
+    const r = m.robust;
+    out.robust = {
+      k: r.k,
+      scale: roundSig(r.scale),
+      total: r.downweighted.total,
+      rows: r.downweighted.rows.slice(0, MAX_DOWNWEIGHTED_LISTED).map((d) => ({ line: d.line, x: roundSig(data.x[d.index] as number), y: roundSig(data.y[d.index] as number), weight: roundSig(d.weight, 4) })),
+    };
+  }
+  return out;
+}
+
+/**
  * Builds the FitDetail of `fit`, whose per-row arrays match the rows of `data` (the rows
- * it was fitted to). O(n log n) for the normal quantiles, O(n) otherwise.
+ * it was fitted to). Residuals are those the checks examine (core/fit/modelResiduals.ts
+ * checkResiduals): reading minus fit for least-squares and robust fits, deviance residuals
+ * for Poisson and binomial fits; the normal quantile plot standardises them by their scale
+ * and sqrt(1 - leverage). O(n log n) for the normal quantiles, O(n) otherwise.
  * Example: fitDetail(fitCurve(data, { family: 'natural', df: 4 }), data).influential.
  */
 export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions = {}): FitDetail {
@@ -50,13 +80,14 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
   if (data.x.length !== n) throw new Error(`fitDetail: the fit has ${n} rows but the data ${data.x.length}`);
   const limits = options.limits ?? DEFAULT_CLOUD_LIMITS;
   const lines = data.lines;
+  const checked = checkResiduals(fit, data.w);
   const standardised = new Float64Array(n);
-  const w = data.w;
   for (let i = 0; i < n; i++) {
     const h = fit.leverage[i] as number;
-    const r = (fit.residuals[i] as number) * Math.sqrt(w ? (w[i] as number) : 1);
-    standardised[i] = h < 1 && fit.sigma > 0 ? r / (fit.sigma * Math.sqrt(1 - h)) : NaN;
+    standardised[i] = h < 1 && checked.scale > 0 ? (checked.residuals[i] as number) / (checked.scale * Math.sqrt(1 - h)) : NaN;
   }
+  // Counts and proportions: deviance residuals (on a common scale); otherwise reading minus fit, in units of y.
+  const shown = checked.kind === 'deviance' ? checked.residuals : fit.residuals;
   const given = options.diagnostics?.influential.thresholds;
   const th = defaultThresholds(n, fit.df);
   const cooksThreshold = given?.find((t) => t.measure === 'cooks')?.value ?? th.cooks;
@@ -89,6 +120,8 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
 
   const cooks = maxPerCell(data.x, fit.cooksDistance, lines, limits.maxPoints, INFLUENCE_CELLS);
   const lev = maxPerCell(data.x, fit.leverage, lines, limits.maxPoints, INFLUENCE_CELLS);
+  const model = modelReportView(fit, data);
+  if (fit.model && !fit.model.converged) warnings.push(`The fit at df ${num(fit.df, 4)} did not converge; treat this curve with caution.`);
   return {
     df: fit.df,
     sigma: roundSig(fit.sigma),
@@ -99,8 +132,9 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
     ...(fit.lambda !== undefined ? { lambda: roundSig(fit.lambda) } : {}),
     notes: fit.notes,
     knots: roundAll(fit.knots),
-    residualsVsX: cloudOf(data.x, fit.residuals, lines, limits),
-    residualsVsFitted: cloudOf(fit.fitted, fit.residuals, lines, limits),
+    residualKind: checked.kind === 'deviance' ? 'deviance' : 'response',
+    residualsVsX: cloudOf(data.x, shown, lines, limits),
+    residualsVsFitted: cloudOf(fit.fitted, shown, lines, limits),
     qq: normalQuantiles(standardised, QQ_POINTS),
     cooks: { x: cooks.x, d: cooks.v, lines: cooks.lines, binned: cooks.binned },
     leverage: { x: lev.x, h: lev.v, lines: lev.lines, binned: lev.binned },
@@ -110,5 +144,6 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
     influentialTotal: flagged.length,
     checks,
     warnings,
+    ...(model ? { model } : {}),
   };
 }

@@ -1,30 +1,30 @@
 /**
  * Turns an Analysis into the panel's message: per candidate df the curve with both bands
- * on a few hundred grid points, the readings as dots or a density grid, and the residual
- * details of the df the rules choose (others are built on request with detailFor). The
- * message size depends on the number of candidates, not on n.
+ * on a few hundred grid points, the readings as dots or a density grid, the model options
+ * used, and the residual details of the one df the starting rule chooses (others are built
+ * on request with detailFor, since each costs a pass of residual checks over every row).
+ * The message size depends on the number of candidates, not on n.
  */
 import type { Analysis } from '../analysisTypes';
 import { diagnose } from '../diagnose';
 import { bandsAt } from '../fit/bands';
-import type { FitDetail, PanelPayload, SourceView, CurveView } from '../protocol';
+import { resolveModel } from '../fit/model';
+import type { FitDetail, PanelPayload, SourceView, CurveView, ModelView } from '../protocol';
 import { selectDf } from '../tune/rules';
-import type { CandidateResult, ErrorSummary, RuleSpec } from '../tune/types';
-import type { FitResult, XYData } from '../types';
+import type { CandidateResult, ErrorSummary, RuleSpec, Selection } from '../tune/types';
+import type { Family, FitResult, Outcome } from '../types';
 import { cloudOf } from './cloud';
 import { fitDetail } from './detail';
 import { roundAll } from './round';
-import { CAUTION, familyWords, resampleWords } from './words';
+import { CAUTION, familyWords, modelWords, resampleWords } from './words';
 
 /** Number of grid points of each curve in the panel. */
 export const PANEL_GRID_POINTS = 240;
 
-/** What buildPanelPayload needs besides the analysis. */
+/** What buildPanelPayload needs besides the analysis (whose `data` are the rows shown). */
 export interface PayloadInput {
   readonly runId: number;
   readonly analysis: Analysis;
-  /** The rows the analysis fitted, in the order of the fits' per-row arrays. */
-  readonly data: XYData;
   readonly source: SourceView;
   /** Rows rejected while reading the CSV. */
   readonly rejected: number;
@@ -32,10 +32,17 @@ export interface PayloadInput {
   readonly heldOut: number;
   /** Tolerance the panel offers for the tolerance rule. */
   readonly tolerancePercent: number;
+  /** Rule the panel starts with; default (and when it cannot choose) the analysis's own rule. */
+  readonly rule?: RuleSpec | undefined;
+  /** Binomial outcome with a trials column: the column's label. */
+  readonly trialsLabel?: string | undefined;
+  /** True when the model options came from the panel's controls rather than the settings. */
+  readonly modelFromPanel?: boolean | undefined;
+  /** Residual details by df (e.g. a host's cache); default detailFor. */
+  readonly detail?: ((df: number) => FitDetail | undefined) | undefined;
   /** Extra run-level warnings (e.g. from the grid settings). */
   readonly warnings?: readonly string[];
 }
-
 /** `count` equally spaced points from lo to hi (both included). */
 export function evenGrid(lo: number, hi: number, count: number): Float64Array {
   const g = new Float64Array(count);
@@ -53,41 +60,80 @@ export function curveView(fit: FitResult, grid: Float64Array): CurveView {
 function slim(c: CandidateResult): CandidateResult {
   const s = (e: ErrorSummary | undefined): ErrorSummary | undefined => (e ? { mean: e.mean, se: e.se, values: [] } : undefined);
   const errors: Record<string, ErrorSummary> = {};
-  for (const k of ['rmse', 'mae', 'maxAbs', 'gcv'] as const) {
+  // Every metric a rule may compare, deviance included (Poisson and binomial candidates are tuned on it).
+  for (const k of ['rmse', 'mae', 'maxAbs', 'gcv', 'deviance'] as const) {
     const e = s(c.errors[k]);
     if (e) errors[k] = e;
   }
   return { ...c, errors };
 }
 
-/** The residual details and checks of df `df` of an analysis (undefined when df was not fitted). O(n log n). */
-export function detailFor(analysis: Analysis, data: XYData, df: number): FitDetail | undefined {
+/**
+ * The residual details and checks of df `df` of an analysis, on its tuning rows
+ * (undefined when df was not fitted). The chosen df reuses the analysis's diagnostics;
+ * another df runs the residual checks (diagnose) first. O(n log n).
+ * Example: detailFor(analysis, 6)?.checks.
+ */
+export function detailFor(analysis: Analysis, df: number): FitDetail | undefined {
   const fit = analysis.fits.get(df);
   if (!fit) return undefined;
-  return fitDetail(fit, data, { diagnostics: df === analysis.chosen.df ? analysis.diagnostics : diagnose(data, fit) });
+  return fitDetail(fit, analysis.data, { diagnostics: fit === analysis.chosen ? analysis.diagnostics : diagnose(analysis.data, fit) });
 }
 
-/** The df each rule would choose (settings' rule, lowest, one-SE, tolerance). */
-export function ruleChoices(analysis: Analysis, tolerancePercent: number): number[] {
-  const rules: RuleSpec[] = [analysis.tune.selected.rule, { kind: 'lowest' }, { kind: '1se' }, { kind: 'tol', percent: tolerancePercent }];
-  const out = new Set<number>([analysis.chosen.df]);
-  for (const r of rules) {
+/** The selection of `rule`, or of the analysis's own rule when `rule` cannot choose (e.g. a df by hand that is no candidate). */
+export function startSelection(analysis: Analysis, rule: RuleSpec | undefined): Selection {
+  if (rule) {
     try {
-      out.add(selectDf(analysis.tune.candidates, r, analysis.tune.metric).df);
+      const sel = selectDf(analysis.tune.candidates, rule, analysis.tune.metric);
+      if (analysis.fits.has(sel.df)) return sel;
     } catch {
-      // A rule that cannot choose (e.g. manual df no longer a candidate) adds nothing.
+      // Fall back to the analysis's own choice below.
     }
   }
-  return [...out];
+  return analysis.tune.selected;
+}
+
+/** What each curve family supports (core/fit/model.ts resolveModel decides; probed here so the two never disagree). */
+function supports(family: Family): ModelView['supports'] {
+  const ok = (m: Parameters<typeof resolveModel>[1]): boolean => {
+    try {
+      resolveModel(family, m);
+      return true;
+    } catch {
+      return false;
+    }
+  };
+  const outcomes = (['gaussian', 'poisson', 'binomial'] as const).filter((o) => ok({ outcome: o })) as Outcome[];
+  return { outcomes, shapes: ok({ shape: ['increasing'] }), robust: ok({ robust: true }) };
+}
+
+/** The model options of an analysis for the panel. */
+export function modelView(analysis: Analysis, trialsLabel: string | undefined, fromPanel: boolean): ModelView {
+  const m = resolveModel(analysis.options.family, analysis.options);
+  const trials = m.outcome === 'binomial' ? trialsLabel : undefined;
+  return {
+    outcome: m.outcome,
+    shape: m.shape,
+    robust: m.robustK !== undefined,
+    link: m.outcome === 'poisson' ? 'log' : m.outcome === 'binomial' ? 'logit' : 'identity',
+    ...(m.robustK !== undefined ? { robustK: m.robustK } : {}),
+    ...(trials !== undefined ? { trialsLabel: trials } : {}),
+    words: modelWords({ outcome: m.outcome, shape: m.shape, robustK: m.robustK, trialsLabel: trials }),
+    fromPanel,
+    supports: supports(analysis.options.family),
+  };
 }
 
 /**
- * Builds the panel message of one run. O(n) per prefetched df plus O(n log n) for the
- * normal quantiles; curves cost O(grid) per candidate.
- * Example: buildPanelPayload({ runId: 1, analysis, data, source, rejected: 0, heldOut: 0, tolerancePercent: 2 }).
+ * Builds the panel message of one run: O(grid) per candidate curve, O(n) for the readings'
+ * cloud, and the details of the starting rule's df (O(n log n); the chosen df's residual
+ * checks come from the analysis, so nothing is diagnosed again unless the starting rule
+ * chooses another df).
+ * Example: buildPanelPayload({ runId: 1, analysis, source, rejected: 0, heldOut: 0, tolerancePercent: 2 }).
  */
 export function buildPanelPayload(input: PayloadInput): PanelPayload {
-  const { analysis, data } = input;
+  const { analysis } = input;
+  const data = analysis.data;
   let lo = Infinity;
   let hi = -Infinity;
   for (const v of data.x) {
@@ -97,11 +143,8 @@ export function buildPanelPayload(input: PayloadInput): PanelPayload {
   const grid = evenGrid(lo, hi, PANEL_GRID_POINTS);
   const curves: CurveView[] = [];
   for (const fit of [...analysis.fits.values()].sort((a, b) => a.df - b.df)) curves.push(curveView(fit, grid));
-  const details: FitDetail[] = [];
-  for (const df of ruleChoices(analysis, input.tolerancePercent)) {
-    const d = detailFor(analysis, data, df);
-    if (d) details.push(d);
-  }
+  const selection = startSelection(analysis, input.rule);
+  const detail = (input.detail ?? ((df: number) => detailFor(analysis, df)))(selection.df);
   const tune = analysis.tune;
   const warnings = [...(input.warnings ?? [])];
   if (tune.holdout?.warning) warnings.push(tune.holdout.warning);
@@ -110,11 +153,12 @@ export function buildPanelPayload(input: PayloadInput): PanelPayload {
     source: input.source,
     rows: { used: analysis.n, rejected: input.rejected, heldOut: input.heldOut },
     family: analysis.options.family,
+    model: modelView(analysis, input.trialsLabel, input.modelFromPanel === true),
     familyWords: familyWords(analysis.options.family),
     resampleWords: resampleWords(tune.resample, tune.seed),
     metric: tune.metric,
     candidates: tune.candidates.map(slim),
-    rule: tune.selected.rule,
+    rule: selection.rule,
     tolerancePercent: input.tolerancePercent,
     ...(tune.holdout ? { holdout: tune.holdout } : {}),
     notes: [...tune.notes],
@@ -123,6 +167,6 @@ export function buildPanelPayload(input: PayloadInput): PanelPayload {
     data: cloudOf(data.x, data.y, data.lines),
     grid: roundAll(grid),
     curves,
-    details,
+    details: detail ? [detail] : [],
   };
 }

@@ -3,10 +3,11 @@
  * residual checks and the standing caution.
  */
 import type { Diagnostics } from '../analysisTypes';
+import { shapeWords } from '../fit/shape';
 import type { CheckView } from '../protocol';
 import { num } from '../plots/svg';
 import type { ResampleSpec } from '../tune/types';
-import type { Family } from '../types';
+import type { Family, ModelReport, Outcome, Shape } from '../types';
 
 /** The caution every panel and report carries. */
 export const CAUTION =
@@ -82,6 +83,67 @@ export function checkViews(d: Diagnostics): CheckView[] {
       text: `F = ${num(s.F, 4)} on ${s.df1} and ${s.df2} df, ${pText(s.pValue)}: ${flagged ? 'the curve misses the means of repeated readings by more than their scatter' : 'the curve agrees with the means of repeated readings'}.`,
       flagged,
     });
+  }
+  return out;
+}
+
+/** What modelWords describes. */
+export interface ModelWordsInput {
+  readonly outcome: Outcome;
+  readonly shape: readonly Shape[];
+  /** Huber tuning constant, undefined for least squares. */
+  readonly robustK: number | undefined;
+  /** Binomial outcome: the trials column's label, if any. */
+  readonly trialsLabel?: string | undefined;
+}
+
+/**
+ * The outcome family, shapes and robust fitting of a run in one phrase.
+ * Example: modelWords({ outcome: 'poisson', shape: ['increasing'], robustK: undefined }) ->
+ * 'Poisson counts (log link); shape: increasing, guaranteed everywhere in the data range'.
+ */
+export function modelWords(m: ModelWordsInput): string {
+  const parts: string[] = [];
+  switch (m.outcome) {
+    case 'gaussian':
+      parts.push(m.robustK !== undefined ? `robust least squares (Huber M-estimation, k = ${m.robustK})` : 'least squares');
+      break;
+    case 'poisson':
+      parts.push('Poisson counts (log link)');
+      break;
+    case 'binomial':
+      parts.push(m.trialsLabel !== undefined ? `binomial proportions (logit link), successes out of the trials in column \u201c${m.trialsLabel}\u201d` : 'binomial proportions (logit link), readings as 0/1 or proportions');
+      break;
+  }
+  if (m.shape.length > 0) parts.push(`shape: ${shapeWords(m.shape)}, guaranteed everywhere in the data range`);
+  return parts.join('; ');
+}
+
+/**
+ * A fit's model report in plain words, one fact per line: reweighting iterations and
+ * convergence, deviance and Pearson dispersion (Poisson, binomial), active shape
+ * constraints, Huber constant, robust scale and the number of down-weighted rows.
+ * Example: modelReportLines(fit.model, fit.residualDf)[0] -> 'Fitted by iteratively reweighted least squares in 5 iterations; converged.'.
+ */
+export function modelReportLines(r: ModelReport, residualDf: number): string[] {
+  const out: string[] = [];
+  if (r.glm || r.robust) {
+    out.push(`Fitted by iteratively reweighted least squares in ${r.iterations} iteration${r.iterations === 1 ? '' : 's'}; ${r.converged ? 'converged' : 'did NOT converge, so treat this curve with caution'}.`);
+  } else if (!r.converged) {
+    out.push('The constrained least-squares solve did NOT converge; treat this curve with caution.');
+  }
+  if (r.glm) {
+    const g = r.glm;
+    out.push(`Deviance ${num(g.deviance, 5)} on ${num(residualDf, 4)} residual df (null deviance ${num(g.nullDeviance, 5)}).`);
+    out.push(`Pearson dispersion ${num(g.dispersion, 3)}: about 1 when the spread follows the ${r.outcome} family; well above 1 means overdispersion, and the bands are then too narrow.`);
+  }
+  if (r.constraints) {
+    const c = r.constraints;
+    out.push(`Shape ${shapeWords(r.shape)}: ${c.active} of ${c.total} linear inequalities active${c.active ? `, effective df ${num(c.effectiveDf, 4)}` : ', so the curve equals the unconstrained fit'}.`);
+  }
+  if (r.robust) {
+    const b = r.robust;
+    out.push(`Huber M-estimation with k = ${b.k}; robust scale ${num(b.scale, 4)} (median absolute residual / 0.6745); ${b.downweighted.total} row${b.downweighted.total === 1 ? '' : 's'} down-weighted.`);
   }
   return out;
 }
