@@ -15,6 +15,7 @@ import { selectColumns } from '../core/ingest/select';
 import { readCsvFile } from '../core/node/readCsv';
 import { workerRunner } from '../core/node/pool';
 import { RandomStream } from '../core/tune/rng';
+import { buildPanelPayload } from '../core/view/payload';
 
 const ROWS = Number(process.env.KNOTWISE_BENCH_ROWS ?? 1_000_000);
 const dir = join(__dirname, '..', 'bench', 'tmp');
@@ -24,15 +25,48 @@ const log = (s: string): void => {
   lines.push(s);
 };
 
-function makeCsv(path: string, n: number): void {
+/** The invented readings of the benchmark (seed 7): y = 3 sin(x / 12) + 0.05 x + uniform noise, x in [0, 100). */
+function makeRows(n: number): { x: Float64Array; y: Float64Array; lines: Int32Array } {
   const rng = new RandomStream(7, 0);
-  const parts: string[] = ['x,y'];
+  const x = new Float64Array(n);
+  const y = new Float64Array(n);
+  const lines = new Int32Array(n);
   for (let i = 0; i < n; i++) {
-    const x = (rng.int(1e9) / 1e9) * 100;
+    const xi = (rng.int(1e9) / 1e9) * 100;
     const noise = (rng.int(1e6) / 1e6 - 0.5) * 0.6;
-    parts.push(`${x.toFixed(6)},${(Math.sin(x / 12) * 3 + x * 0.05 + noise).toFixed(6)}`);
+    // Rounded as the CSV prints them, so the in-memory rows equal the file's.
+    x[i] = Number(xi.toFixed(6));
+    y[i] = Number((Math.sin(xi / 12) * 3 + xi * 0.05 + noise).toFixed(6));
+    lines[i] = i + 2;
   }
+  return { x, y, lines };
+}
+
+function makeCsv(path: string, n: number): void {
+  const { x, y } = makeRows(n);
+  const parts: string[] = ['x,y'];
+  for (let i = 0; i < n; i++) parts.push(`${(x[i] as number).toFixed(6)},${(y[i] as number).toFixed(6)}`);
   writeFileSync(path, parts.join('\n') + '\n');
+}
+
+/**
+ * What the editor does between reading the columns and showing the panel, with the
+ * settings' defaults (natural spline, default candidates, 50 bootstrap resamples on worker
+ * threads, one-SE rule): analyse, then build the panel message; and the message's size.
+ */
+async function panelTimings(sizes: readonly number[]): Promise<void> {
+  for (const n of sizes) {
+    const data = makeRows(n);
+    const t0 = performance.now();
+    const analysis = await analyse(data, { family: 'natural', resample: { kind: 'boot', resamples: 50 }, rule: { kind: '1se' }, seed: 1 }, workerRunner());
+    const t1 = performance.now();
+    const payload = buildPanelPayload({ runId: 1, analysis, source: { fileName: 'bench.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
+    const bytes = Buffer.byteLength(JSON.stringify(payload));
+    const t2 = performance.now();
+    log(
+      `| panel for ${n} rows: analyse (default settings: natural, ${analysis.tune.candidates.length} candidates, boot:50, 1se) + panel message | ${((t2 - t0) / 1000).toFixed(2)} s (analyse ${((t1 - t0) / 1000).toFixed(2)} s, message ${((t2 - t1) / 1000).toFixed(2)} s, ${bytes} bytes) |`,
+    );
+  }
 }
 
 /** Invented counts: Poisson draws (by inversion, seed 11) around the mean exp(1 + sin(x / 12)). */
@@ -73,6 +107,8 @@ async function main(): Promise<void> {
   log('');
   log('| stage | time |');
   log('| --- | --- |');
+  await panelTimings([100_000, ROWS]);
+  if (process.env.KNOTWISE_BENCH_PART === 'panel') return;
   const table = await time(`ingest (stream, parse, SHA-256) of ${ROWS} rows`, () => readCsvFile(csv));
   const data = selectColumns(table, { x: 'x', y: 'y' }).data;
   const prepared = prepareData(data);

@@ -85,7 +85,7 @@ export type Shape = 'increasing' | 'decreasing' | 'nonnegative' | 'convex' | 'co
 export interface ModelOptions {
   /** Outcome distribution; default 'gaussian'. */
   readonly outcome?: Outcome | undefined;
-  /** Shape constraints (natural spline only); empty or absent for none. */
+  /** Shape constraints (natural spline and smoothing spline); empty or absent for none. */
   readonly shape?: readonly Shape[] | undefined;
   /** Huber M-estimation (Gaussian outcome only): true for the tuning constant 1.345, or { k }. */
   readonly robust?: boolean | { readonly k: number } | undefined;

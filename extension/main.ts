@@ -3,7 +3,7 @@
  * one store when the extension deactivates.
  */
 import * as vscode from 'vscode';
-import { Controller, type SaveCommandOptions, type TuneCommandOptions, type RunSummary } from './controller';
+import { Controller, type KnotwiseApi, type SaveCommandOptions, type TuneCommandOptions, type RunSummary } from './controller';
 import { isTableFile } from './csvSource';
 import { DisposableStore } from './disposables';
 
@@ -22,7 +22,8 @@ function noTarget(): RunSummary {
   return { status: 'failed', file: '', message: 'no CSV file' };
 }
 
-export function activate(context: vscode.ExtensionContext): void {
+/** Registers the commands; returns the API other extensions and the tests read (KnotwiseApi). */
+export function activate(context: vscode.ExtensionContext): KnotwiseApi {
   const controller = store.add(new Controller(context));
   store.add(
     vscode.commands.registerCommand(COMMANDS.tune, async (arg?: unknown, options?: TuneCommandOptions) => {
@@ -46,6 +47,7 @@ export function activate(context: vscode.ExtensionContext): void {
     }),
   );
   context.subscriptions.push(store);
+  return controller.api();
 }
 
 export function deactivate(): void {

@@ -1,24 +1,22 @@
 /**
- * Writes the curve table and the fit record through workspace.fs, each atomically (a
- * temporary file in the same folder, then a rename). A file Knotwise did not write is
- * replaced only after the person agrees. The bytes are those the command line writes for
- * the same inputs (core/table, core/record).
+ * Saving from the editor: the curve table and the fit record are built by core's
+ * buildDeliverables from the same plan the command line would carry out (so the bytes are
+ * those of `knotwise fit ... --out <folder>` for the same inputs), then written through
+ * workspace.fs, each atomically (a temporary file in the same folder, then a rename). A
+ * file Knotwise did not write is replaced only after the person agrees (core/ownership.ts).
  */
 import { createHash, randomBytes } from 'node:crypto';
+import { posix } from 'node:path';
 import * as vscode from 'vscode';
+import { withRule } from '../core/analysis';
 import type { Analysis, Diagnostics } from '../core/analysisTypes';
-import { diagnose } from '../core/diagnose';
+import { buildDeliverables, type Deliverables } from '../core/deliver';
 import { InputError } from '../core/errors';
-import { prepareData } from '../core/fit/prepared';
-import type { RejectedRow } from '../core/ingest/select';
-import { recordedFiles } from '../core/node/outputs';
-import { fitRecord, RECORD_FORMAT } from '../core/record';
-import { curveTable } from '../core/table/curveTable';
-import { curveTableCsv } from '../core/table/formatCsv';
-import { checkInRange, defaultGrid, gridPoints } from '../core/table/grid';
+import type { Selection } from '../core/ingest/select';
+import { writtenByKnotwise } from '../core/ownership';
+import { DEFAULT_OUTPUT, type FitPlan } from '../core/plan';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec } from '../core/tune/types';
-import type { FitResult, XYData } from '../core/types';
 import { outputName, type Settings } from './settings';
 
 /** Everything a save needs from a finished run. */
@@ -27,71 +25,40 @@ export interface SaveInput {
   readonly fileName: string;
   readonly dataSha256: string;
   readonly rowsRead: number;
-  readonly labels: { readonly x: string; readonly y: string; readonly weights?: string };
-  /** All rows selected from the CSV (the table's grid and range come from these, as on the command line). */
-  readonly data: XYData;
-  /** The rows the analysis fitted (after the held-out split). */
-  readonly tuning: XYData;
-  readonly rejected: readonly RejectedRow[];
+  /** The columns as asked for (the command line's --x, --y, --weights) and the trials column of a binomial outcome. */
+  readonly columns: { readonly x: string; readonly y: string; readonly weights?: string | undefined; readonly trials?: string | undefined };
+  /** All rows selected from the CSV (the table's grid and range come from these, as on the command line), rejected rows, labels. */
+  readonly selection: Pick<Selection, 'data' | 'rejected' | 'labels'>;
   readonly analysis: Analysis;
   readonly rule: RuleSpec;
   readonly settings: Settings;
+  /** Residual checks of a df already computed (the panel's cache), to avoid running them again. */
+  readonly diagnostics?: ((df: number) => Diagnostics | undefined) | undefined;
 }
 
 /** How to answer "replace a file Knotwise did not write?": ask the person, or a fixed answer (automation). */
 export type OverwriteAnswer = 'ask' | 'yes' | 'no';
 
-/** The two files to write, with their text. */
-export interface Deliverables {
-  readonly table: { readonly name: string; readonly text: string };
-  readonly record: { readonly name: string; readonly text: string };
-  /** Table points outside the data range (only when extrapolation is allowed). */
-  readonly extrapolated: number;
+/** SHA-256 (FIPS 180-4) of a text's UTF-8 bytes or of bytes, as hex. */
+function sha256(data: string | Uint8Array): string {
+  return createHash('sha256').update(data).digest('hex');
 }
 
-function sha256(text: string): string {
-  return createHash('sha256').update(text, 'utf8').digest('hex');
-}
-
-/** Builds the table and record texts for the chosen rule (throws InputError for grid problems). */
-export function deliverables(input: SaveInput): Deliverables {
-  const { analysis, settings } = input;
-  const selection = selectDf(analysis.tune.candidates, input.rule, analysis.tune.metric);
-  const fit = analysis.fits.get(selection.df) as FitResult | undefined;
-  if (!fit) throw new InputError(`df ${selection.df} has no fitted curve`);
-  const sorted = prepareData(input.data).sortedX;
-  const grid = settings.grid ?? defaultGrid(sorted);
-  const points = gridPoints(grid, sorted);
-  const extrapolated = checkInRange(points, fit.curve.lower, fit.curve.upper, settings.extrapolate);
-  const tableText = curveTableCsv(curveTable(fit, points), settings.digits);
-  const same = fit === analysis.chosen && JSON.stringify(selection.rule) === JSON.stringify(analysis.tune.selected.rule);
-  const diagnostics: Diagnostics = fit === analysis.chosen ? analysis.diagnostics : diagnose(input.tuning, fit);
-  const recorded: Analysis = same ? analysis : { ...analysis, tune: { ...analysis.tune, selected: selection }, chosen: fit, diagnostics };
-  const tableName = outputName(settings.tableName, input.fileName);
-  const recordName = outputName(settings.recordName, input.fileName);
-  const record =
-    JSON.stringify(
-      fitRecord({
-        dataFile: input.fileName,
-        dataSha256: input.dataSha256,
-        columns: input.labels,
-        rowsRead: input.rowsRead,
-        rowsUsed: input.data.x.length,
-        rejected: input.rejected,
-        family: analysis.options.family,
-        analysis: recorded,
-        fit,
-        diagnostics,
-        grid,
-        digits: settings.digits,
-        extrapolate: settings.extrapolate,
-        tableFile: tableName,
-        tableSha256: sha256(tableText),
-      }),
-      null,
-      2,
-    ) + '\n';
-  return { table: { name: tableName, text: tableText }, record: { name: recordName, text: record }, extrapolated };
+/**
+ * The plan the command line would carry out for this save: the analysis's options with the
+ * rule to save, the table settings, no emitted code or report (the editor writes the table
+ * and the record).
+ */
+export function savePlan(input: SaveInput): FitPlan {
+  const { settings } = input;
+  const { x, y, weights, trials } = input.columns;
+  return {
+    columns: { x, y, weights: trials !== undefined ? undefined : weights },
+    tune: true,
+    options: { ...input.analysis.options, rule: input.rule },
+    output: { ...DEFAULT_OUTPUT, grid: settings.grid, extrapolate: settings.extrapolate, digits: settings.digits },
+    ...(trials !== undefined ? { trials } : {}),
+  };
 }
 
 /** The folder the outputs go to: next to the data, or the configured folder (relative to the data file's folder). */
@@ -109,37 +76,73 @@ export function outputFolder(dataUri: vscode.Uri, folderSetting: string): vscode
   return vscode.Uri.joinPath(dataFolder, f);
 }
 
-async function readText(uri: vscode.Uri): Promise<string | undefined> {
+/** The data file's path relative to the output folder, `/`-separated (as the command line records it). */
+function relativeDataPath(folder: vscode.Uri, dataUri: vscode.Uri): string {
+  if (folder.scheme !== dataUri.scheme || folder.authority !== dataUri.authority) return dataUri.path;
+  return posix.relative(folder.path, dataUri.path) || posix.basename(dataUri.path);
+}
+
+/**
+ * Builds the table and record texts for the chosen rule into `folder` (throws InputError for
+ * grid problems and a rule that cannot choose). The names follow the settings; with the
+ * default names the bytes equal the command line's.
+ */
+export function deliverables(input: SaveInput, folder: vscode.Uri): Deliverables {
+  const { analysis, settings } = input;
+  const plan = savePlan(input);
+  const selected = withRule(analysis, input.rule, cachedDiagnostics(input));
+  const dot = input.fileName.lastIndexOf('.');
+  const stem = dot > 0 ? input.fileName.slice(0, dot) : input.fileName;
+  const names = { table: outputName(settings.tableName, input.fileName), record: outputName(settings.recordName, input.fileName) };
+  if (names.table === names.record) throw new InputError(`knotwise.output.tableName and recordName give the same file name ${names.table}`);
+  return buildDeliverables({
+    plan,
+    stem,
+    dataFile: input.fileName,
+    dataPath: relativeDataPath(folder, input.dataUri),
+    dataSha256: input.dataSha256,
+    rowsRead: input.rowsRead,
+    selection: input.selection,
+    fitted: selected.data,
+    analysis: selected,
+    fit: selected.chosen,
+    diagnostics: selected.diagnostics,
+    sha256,
+    names,
+  });
+}
+
+/** The cached checks of the df `input.rule` chooses, if that df differs from the analysis's choice and is cached. */
+function cachedDiagnostics(input: SaveInput): Diagnostics | undefined {
+  if (!input.diagnostics) return undefined;
   try {
-    return new TextDecoder().decode(await vscode.workspace.fs.readFile(uri));
+    return input.diagnostics(selectDf(input.analysis.tune.candidates, input.rule, input.analysis.tune.metric).df);
   } catch {
     return undefined;
   }
 }
 
-/**
- * True when `target` does not exist or Knotwise wrote it: a fit record (its format field),
- * or a file the neighbouring record lists by name with the SHA-256 of its current bytes
- * (the command line's rule, core/node/outputs.ts).
- */
-export async function writtenByKnotwise(target: vscode.Uri, recordUri: vscode.Uri): Promise<boolean> {
-  const text = await readText(target);
-  if (text === undefined) return true;
-  const recordText = target.toString() === recordUri.toString() ? text : await readText(recordUri);
-  if (recordText === undefined) return false;
+async function readBytes(uri: vscode.Uri): Promise<Uint8Array | undefined> {
   try {
-    const rec = JSON.parse(recordText) as { format?: unknown };
-    if (rec.format !== RECORD_FORMAT) return false;
-    const name = target.path.slice(target.path.lastIndexOf('/') + 1);
-    return target.toString() === recordUri.toString() || recordedFiles(rec).get(name) === sha256(text);
+    return await vscode.workspace.fs.readFile(uri);
   } catch {
-    return false;
+    return undefined;
   }
+}
+
+/** True when `target` does not exist or Knotwise wrote it (core/ownership.ts, with the bytes read through workspace.fs). */
+export async function ownedByKnotwise(target: vscode.Uri, recordUri: vscode.Uri): Promise<boolean> {
+  const bytes = await readBytes(target);
+  const recordBytes = target.toString() === recordUri.toString() ? bytes : await readBytes(recordUri);
+  return writtenByKnotwise(
+    { name: posix.basename(target.path), sha256: bytes ? sha256(bytes) : undefined, isRecord: target.toString() === recordUri.toString() },
+    recordBytes ? new TextDecoder().decode(recordBytes) : undefined,
+  );
 }
 
 /** Writes `text` to `target` through a temporary file in the same folder and a rename. */
 export async function writeAtomically(target: vscode.Uri, text: string): Promise<void> {
-  const name = target.path.slice(target.path.lastIndexOf('/') + 1);
+  const name = posix.basename(target.path);
   const tmp = vscode.Uri.joinPath(target, '..', `.${name}.${randomBytes(6).toString('hex')}.knotwise-tmp`);
   await vscode.workspace.fs.writeFile(tmp, new TextEncoder().encode(text));
   try {
@@ -150,20 +153,40 @@ export async function writeAtomically(target: vscode.Uri, text: string): Promise
   }
 }
 
+/** What a save wrote. */
+export interface Saved {
+  /** The written files, the table first and the record last. */
+  readonly uris: readonly vscode.Uri[];
+  /** One line about the table (rows, grid, interpolation error). */
+  readonly note: string;
+}
+
+/** One line about the written table. */
+function tableNote(d: Deliverables): string {
+  const s = d.summary;
+  const ip = s.interpolation;
+  const fmt = (v: number): string => String(Number(v.toPrecision(3)));
+  const step = d.grid.auto ? `automatic step ${fmt(d.grid.auto.step)} (tolerance ${fmt(d.grid.auto.tolerance)})` : '';
+  const interp = ip ? `; straight lines between rows stay within ${fmt(ip.maxError)} of the curve` : '';
+  return `The table has ${s.points} rows${step ? `, ${step}` : ''}${interp}${s.extrapolated.length ? `; ${s.extrapolated.length} extrapolated` : ''}.`;
+}
+
 /**
- * Saves the deliverables. Resolves to the written URIs, or undefined when the person
- * declined to replace a file Knotwise did not write.
+ * Saves the deliverables. Resolves to what was written, or undefined when the person
+ * declined to replace a file Knotwise did not write (then nothing is written).
  */
-export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer): Promise<vscode.Uri[] | undefined> {
-  const out = deliverables(input);
+export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer): Promise<Saved | undefined> {
   const folder = outputFolder(input.dataUri, input.settings.outputFolder);
-  const tableUri = vscode.Uri.joinPath(folder, out.table.name);
-  const recordUri = vscode.Uri.joinPath(folder, out.record.name);
-  for (const u of [tableUri, recordUri]) {
-    if (u.toString() === input.dataUri.toString()) throw new InputError(`the output name ${out.table.name === out.record.name ? out.table.name : u.path.slice(u.path.lastIndexOf('/') + 1)} would replace the data file; change knotwise.output.tableName or recordName`);
+  const out = deliverables(input, folder);
+  const record = out.files.find((f) => f.kind === 'record');
+  if (!record) throw new Error('buildDeliverables returned no fit record');
+  const recordUri = vscode.Uri.joinPath(folder, record.name);
+  const targets = out.files.map((f) => ({ file: f, uri: vscode.Uri.joinPath(folder, f.name) }));
+  for (const t of targets) {
+    if (t.uri.toString() === input.dataUri.toString()) throw new InputError(`the output name ${t.file.name} would replace the data file; change knotwise.output.tableName or recordName`);
   }
   const foreign: string[] = [];
-  for (const u of [tableUri, recordUri]) if (!(await writtenByKnotwise(u, recordUri))) foreign.push(vscode.workspace.asRelativePath(u));
+  for (const t of targets) if (!(await ownedByKnotwise(t.uri, recordUri))) foreign.push(vscode.workspace.asRelativePath(t.uri));
   if (foreign.length) {
     let yes = answer === 'yes';
     if (answer === 'ask') {
@@ -178,7 +201,8 @@ export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer
     if (!yes) return undefined;
   }
   await vscode.workspace.fs.createDirectory(folder);
-  await writeAtomically(tableUri, out.table.text);
-  await writeAtomically(recordUri, out.record.text);
-  return [tableUri, recordUri];
+  // The record last: it vouches for the files written before it.
+  const order = [...targets.filter((t) => t.file !== record), ...targets.filter((t) => t.file === record)];
+  for (const t of order) await writeAtomically(t.uri, t.file.text);
+  return { uris: order.map((t) => t.uri), note: tableNote(out) };
 }

@@ -21,6 +21,8 @@ export interface Settings {
   readonly family: Family;
   /** Outcome family, shapes and Huber constant (undefined: least squares), checked against the family. */
   readonly model: ModelSettings;
+  /** knotwise.huberK, also when robust fitting is off (the panel's robust switch uses it). */
+  readonly huberK: number;
   /** Candidate df; undefined means the family's default range. */
   readonly candidates: readonly number[] | undefined;
   readonly resample: ResampleSpec;
@@ -116,7 +118,7 @@ export function readSettings(get: SettingReader): Settings {
   const family: Family = familyText === 'natural' || familyText === 'poly' || familyText === 'smooth' ? familyText : DEFAULTS.family;
   if (family !== familyText) problems.push(`knotwise.curveFamily "${familyText}" is not natural, poly or smooth; using ${DEFAULTS.family}`);
 
-  const model = readModel(get, family, problems);
+  const { model, huberK } = readModel(get, family, problems);
 
   const candText = str('candidates', DEFAULTS.candidates);
   const candidates = candText === '' ? undefined : attempt<number[] | undefined>('candidates', undefined, () => parseDfList(candText));
@@ -153,6 +155,7 @@ export function readSettings(get: SettingReader): Settings {
   return {
     family,
     model,
+    huberK,
     candidates,
     resample,
     rule,
@@ -174,7 +177,7 @@ export function readSettings(get: SettingReader): Settings {
  * curve family (core/fit/model.ts resolveModel): an option the family cannot combine with
  * the ones before it is dropped and listed in `problems`.
  */
-function readModel(get: SettingReader, family: Family, problems: string[]): ModelSettings {
+function readModel(get: SettingReader, family: Family, problems: string[]): { model: ModelSettings; huberK: number } {
   const fits = (m: ModelOptions): string | undefined => {
     try {
       resolveModel(family, m);
@@ -223,7 +226,7 @@ function readModel(get: SettingReader, family: Family, problems: string[]): Mode
     problems.push(`knotwise.robust: ${robustProblem}; fitting by least squares`);
     robust = false;
   }
-  return { outcome, shape, robustK: robust ? k : undefined };
+  return { model: { outcome, shape, robustK: robust ? k : undefined }, huberK: k };
 }
 
 /**

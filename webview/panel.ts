@@ -1,11 +1,13 @@
 /**
  * The Knotwise panel: shows one run's payload, lets the person switch the rule, the
  * tolerance or pick a df by hand (applied at once with core's selectDf, no round trip),
- * asks the host for residual details it does not have yet, and sends save and
+ * asks the host for residual details it does not have yet, switches the outcome family,
+ * shape constraints and robust fitting (the host reruns the analysis), and sends save and
  * reveal-line requests. Every text from the CSV is set with textContent.
  */
-import type { FitDetail, HostMessage, PanelPayload } from '../core/protocol';
+import type { FitDetail, HostMessage, ModelChoice, PanelPayload } from '../core/protocol';
 import { unreachable } from '../core/protocol';
+import type { Outcome, Shape } from '../core/types';
 import { metricLabel, ruleWords, sig } from '../core/tune/format';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec, Selection } from '../core/tune/types';
@@ -14,6 +16,20 @@ import { renderFigures } from './figures';
 import type { Host } from './vscodeApi';
 
 type RuleKind = RuleSpec['kind'];
+
+const OUTCOME_CHOICES: readonly { readonly outcome: Outcome; readonly label: string }[] = [
+  { outcome: 'gaussian', label: 'Least squares (Gaussian)' },
+  { outcome: 'poisson', label: 'Counts (Poisson, log link)' },
+  { outcome: 'binomial', label: 'Proportions (binomial, logit link)' },
+];
+
+const SHAPE_CHOICES: readonly { readonly shape: Shape; readonly label: string; readonly opposite?: Shape }[] = [
+  { shape: 'increasing', label: 'increasing', opposite: 'decreasing' },
+  { shape: 'decreasing', label: 'decreasing', opposite: 'increasing' },
+  { shape: 'nonnegative', label: 'non-negative' },
+  { shape: 'convex', label: 'convex', opposite: 'concave' },
+  { shape: 'concave', label: 'concave', opposite: 'convex' },
+];
 
 const RULE_CHOICES: readonly { readonly kind: RuleKind; readonly label: string }[] = [
   { kind: '1se', label: 'One-standard-error rule' },
@@ -62,6 +78,8 @@ export class Panel {
         this.root.dataset.state = this.payload ? 'ready' : 'failed';
         this.status(message.message);
         if (!this.payload) replaceChildren(this.root, el('p', { class: 'kw-error', role: 'alert' }, message.message));
+        // The shown result still stands: its model options go back into the controls.
+        else this.syncModelControls();
         return;
       case 'detail':
         if (!this.payload || message.runId !== this.payload.runId) return;
@@ -72,7 +90,7 @@ export class Panel {
         if (message.requestId !== this.pendingSave) return;
         this.pendingSave = undefined;
         this.setSaveBusy(false);
-        this.status(`Saved ${message.files.join(' and ')}.`);
+        this.status(`Saved ${message.files.join(' and ')}.${message.note ? ` ${message.note}` : ''}`);
         return;
       case 'saveFailed':
         if (message.requestId !== this.pendingSave) return;
@@ -119,9 +137,10 @@ export class Panel {
     }
     const dfSelect = el('select', { id: 'kw-df', 'aria-label': 'df chosen by hand' });
     for (const c of evaluated) dfSelect.append(el('option', { value: c.df }, `df ${c.df}`));
+    const modelGroup = this.modelControls(p);
     const controls = el(
       'section',
-      { class: 'kw-controls', 'aria-label': 'Choice of df' },
+      { class: 'kw-controls', 'aria-label': 'Choice of df and model' },
       ruleGroup,
       el(
         'div',
@@ -131,6 +150,7 @@ export class Panel {
         el('label', { for: 'kw-df' }, 'df by hand'),
         dfSelect,
       ),
+      modelGroup,
       el(
         'div',
         { class: 'kw-actions' },
@@ -146,6 +166,7 @@ export class Panel {
         { class: 'kw-header' },
         el('h1', {}, `${s.yLabel} against ${s.xLabel}`),
         el('p', { class: 'kw-meta' }, `${s.fileName} · ${rows}${s.weightsLabel ? ` · weights: ${s.weightsLabel}` : ''} · ${p.familyWords} · ${p.resampleWords}`),
+        el('p', { class: 'kw-meta', id: 'kw-model-words' }, `Model: ${p.model.words}${p.model.fromPanel ? ' (set in this panel; the settings say otherwise)' : ''}`),
       ),
       el(
         'section',
@@ -159,6 +180,7 @@ export class Panel {
       el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }),
       el('section', { class: 'kw-warnings', 'aria-labelledby': 'kw-warn-title' }, el('h2', { id: 'kw-warn-title' }, 'Warnings and checks'), el('ul', { id: 'kw-warning-list', class: 'kw-list' }), el('ul', { id: 'kw-check-list', class: 'kw-list' })),
       el('section', { class: 'kw-figures', id: 'kw-figures', 'aria-label': 'Figures' }),
+      el('section', { class: 'kw-model', 'aria-labelledby': 'kw-model-title' }, el('h2', { id: 'kw-model-title' }, 'Model report'), el('div', { id: 'kw-model-body' })),
       el('section', { class: 'kw-influence', 'aria-labelledby': 'kw-infl-title' }, el('h2', { id: 'kw-infl-title' }, 'Influential rows'), el('div', { id: 'kw-influence-body' })),
       el('section', { class: 'kw-candidates', 'aria-labelledby': 'kw-cand-title' }, el('h2', { id: 'kw-cand-title' }, 'Candidates'), el('div', { id: 'kw-candidate-body' })),
       el('section', { class: 'kw-notes', 'aria-labelledby': 'kw-notes-title' }, el('h2', { id: 'kw-notes-title' }, 'Notes'), el('ul', { id: 'kw-note-list', class: 'kw-list' })),
@@ -178,7 +200,83 @@ export class Panel {
     });
     dfSelect.addEventListener('change', () => this.setRule({ kind: 'manual', df: Number(dfSelect.value) }));
     this.byId('kw-save').addEventListener('click', () => this.save());
-    this.byId('kw-rerun').addEventListener('click', () => this.host.post({ type: 'rerun' }));
+    this.byId('kw-rerun').addEventListener('click', () => this.rerun());
+    for (const input of Array.from(this.root.querySelectorAll<HTMLInputElement | HTMLSelectElement>('#kw-model-controls select, #kw-model-controls input'))) {
+      input.addEventListener('change', () => this.modelChanged());
+    }
+    this.syncModelControls();
+  }
+
+  /** Outcome family, shape constraints and robust fitting: changing one reruns the analysis in the host. */
+  private modelControls(p: PanelPayload): HTMLFieldSetElement {
+    const sup = p.model.supports;
+    const outcome = el('select', { id: 'kw-outcome' });
+    for (const o of OUTCOME_CHOICES) outcome.append(el('option', { value: o.outcome, disabled: !sup.outcomes.includes(o.outcome) }, o.label));
+    const shapes = el('div', { class: 'kw-shapes', role: 'group', 'aria-label': 'Shape the curve must have' });
+    for (const c of SHAPE_CHOICES) {
+      const id = `kw-shape-${c.shape}`;
+      shapes.append(el('span', { class: 'kw-check-item' }, el('input', { type: 'checkbox', id, value: c.shape }), el('label', { for: id }, c.label)));
+    }
+    const unsupported = [!sup.shapes ? 'shape constraints' : '', !sup.robust ? 'robust fitting' : '', sup.outcomes.length < 3 ? 'count and proportion outcomes' : ''].filter((t) => t !== '');
+    return el(
+      'fieldset',
+      { class: 'kw-model-controls', id: 'kw-model-controls' },
+      el('legend', {}, 'Outcome and shape (reruns)'),
+      el('div', { class: 'kw-inputs' }, el('label', { for: 'kw-outcome' }, 'Readings are'), outcome),
+      el('div', { class: 'kw-shape-row' }, el('span', { class: 'kw-muted' }, 'Shape: '), shapes),
+      el('div', { class: 'kw-check-item' }, el('input', { type: 'checkbox', id: 'kw-robust' }), el('label', { for: 'kw-robust' }, `Robust (Huber${p.model.robustK !== undefined ? `, k = ${p.model.robustK}` : ''}): down-weight outliers`)),
+      unsupported.length ? el('p', { class: 'kw-muted kw-small' }, `The ${p.familyWords} does not support ${unsupported.join(', ')}.`) : null,
+    );
+  }
+
+  /** Sets the model controls to the shown result's options and enables what the family and outcome allow. */
+  private syncModelControls(): void {
+    const p = this.payload;
+    const outcome = this.root.querySelector<HTMLSelectElement>('#kw-outcome');
+    if (!p || !outcome) return;
+    outcome.value = p.model.outcome;
+    for (const c of SHAPE_CHOICES) {
+      const box = this.byId<HTMLInputElement>(`kw-shape-${c.shape}`);
+      box.checked = p.model.shape.includes(c.shape);
+    }
+    this.byId<HTMLInputElement>('kw-robust').checked = p.model.robust;
+    this.enableModelControls();
+  }
+
+  /** Disables the controls the current combination does not allow (opposite shapes, robust with counts, ...). */
+  private enableModelControls(): void {
+    const p = this.payload;
+    if (!p) return;
+    const sup = p.model.supports;
+    const choice = this.modelChoice();
+    for (const c of SHAPE_CHOICES) {
+      const box = this.byId<HTMLInputElement>(`kw-shape-${c.shape}`);
+      box.disabled = !sup.shapes || (c.opposite !== undefined && choice.shape.includes(c.opposite));
+    }
+    this.byId<HTMLInputElement>('kw-robust').disabled = !sup.robust || choice.outcome !== 'gaussian';
+  }
+
+  /** The options the controls show. */
+  private modelChoice(): ModelChoice {
+    const outcome = this.byId<HTMLSelectElement>('kw-outcome').value as Outcome;
+    const shape = SHAPE_CHOICES.filter((c) => this.byId<HTMLInputElement>(`kw-shape-${c.shape}`).checked).map((c) => c.shape);
+    const robust = outcome === 'gaussian' && this.byId<HTMLInputElement>('kw-robust').checked;
+    return { outcome, shape, robust };
+  }
+
+  private modelChanged(): void {
+    const p = this.payload;
+    if (!p) return;
+    this.enableModelControls();
+    const model = this.modelChoice();
+    this.root.dataset.state = 'running';
+    this.status('Running the analysis again with the new outcome and shape…');
+    this.host.post({ type: 'model', runId: p.runId, model });
+  }
+
+  private rerun(): void {
+    this.status('Running the analysis again…');
+    this.host.post({ type: 'rerun' });
   }
 
   private setRuleKind(kind: RuleKind): void {
@@ -243,9 +341,46 @@ export class Panel {
       ...(detail?.checks ?? []).map((c) => el('li', { class: c.flagged ? 'kw-check kw-flagged' : 'kw-check' }, el('strong', {}, `${c.name}: `), c.text)),
     );
     replaceChildren(this.byId('kw-figures'), ...renderFigures(p, sel, detail));
+    this.renderModel(p, detail);
     this.renderInfluence(detail);
     this.renderCandidates(p, sel);
     replaceChildren(this.byId('kw-note-list'), ...[...p.notes, ...(detail?.notes ?? [])].map((n) => el('li', {}, n)));
+  }
+
+  /** The fit's model report: how it was fitted, deviance and dispersion, active constraints, down-weighted rows (each opens its CSV line). */
+  private renderModel(p: PanelPayload, detail: FitDetail | undefined): void {
+    const body = this.byId('kw-model-body');
+    const intro = el('p', {}, `${capitalise(p.model.words)}.`);
+    if (!detail) return replaceChildren(body, intro, el('p', { class: 'kw-muted' }, 'Computing…'));
+    const m = detail.model;
+    if (!m) return replaceChildren(body, intro, el('p', { class: 'kw-muted' }, 'One weighted least-squares solve: no reweighting, no shape constraints.'));
+    const lines = el('ul', { class: 'kw-list', id: 'kw-model-lines' }, ...m.lines.map((l) => el('li', { class: m.converged ? undefined : 'kw-warning' }, l)));
+    const parts: Node[] = [intro, lines];
+    const rob = m.robust;
+    if (rob && rob.rows.length > 0) {
+      const table = el(
+        'table',
+        { class: 'kw-table', id: 'kw-downweighted' },
+        el('caption', {}, `${rob.total} row${rob.total === 1 ? '' : 's'} down-weighted${rob.total > rob.rows.length ? `; the ${rob.rows.length} with the lowest weight` : ''}`),
+        el('thead', {}, el('tr', {}, ...['CSV line', p.source.xLabel, p.source.yLabel, 'Huber weight'].map((h) => el('th', { scope: 'col' }, h)))),
+      );
+      const tbody = el('tbody');
+      for (const r of rob.rows) {
+        tbody.append(
+          el(
+            'tr',
+            {},
+            el('td', {}, r.line > 0 ? el('button', { type: 'button', class: 'kw-link', 'data-line': r.line, title: `Show line ${r.line} in the CSV` }, `line ${r.line}`) : '–'),
+            el('td', {}, sig(r.x, 6)),
+            el('td', {}, sig(r.y, 6)),
+            el('td', {}, sig(r.weight, 3)),
+          ),
+        );
+      }
+      table.append(tbody);
+      parts.push(table);
+    }
+    replaceChildren(body, ...parts);
   }
 
   private renderInfluence(detail: FitDetail | undefined): void {

@@ -11,6 +11,7 @@ import type { Family, FitResult, ModelOptions, ModelReport, Outcome, Shape } fro
 import { CachedRows } from './cachedRows';
 import { checkOutcomeData, irls, outcomeFamily } from './glm';
 import { summariseGlm } from './glmSummary';
+import { fitShapedSmoothingSpline } from './shapedSmoothing';
 import { RowBasisCurve } from './linearFit';
 import { LinearSystem } from './linearSystem';
 import { LinkCurve } from './linkCurve';
@@ -39,12 +40,12 @@ export function isPlainModel(m: ModelOptions | undefined): boolean {
 
 /**
  * Checks model options against a curve family and normalises them. Shape constraints are
- * available for the natural spline; Poisson, binomial and robust fitting for the natural
- * spline and the polynomial; robust fitting for the Gaussian outcome only. The smoothing
- * spline supports none of them: it is computed by a state-space smoother with a knot at
- * every distinct x (core/fit/smoothingSpline.ts), which has no finite coefficient system
- * to put inequalities or reweighting steps on without giving up its O(n) cost, and its df
- * (the trace fixing lambda) is not defined for a constrained, non-linear fit.
+ * available for the natural spline and the smoothing spline (core/fit/shapedSmoothing.ts,
+ * lambda fixed by the unconstrained df); Poisson, binomial and robust fitting for the
+ * natural spline and the polynomial; robust fitting for the Gaussian outcome only. The
+ * smoothing spline takes no reweighting: it is computed by a state-space smoother with a
+ * knot at every distinct x (core/fit/smoothingSpline.ts), and its df (the trace fixing
+ * lambda) is not defined for a non-linear fit.
  * Throws InputError with the reason. Example: resolveModel('natural', { shape: ['convex'] }).
  */
 export function resolveModel(family: Family, m: ModelOptions | undefined): ResolvedModel {
@@ -60,12 +61,12 @@ export function resolveModel(family: Family, m: ModelOptions | undefined): Resol
     robustK = robust.k;
     if (!(robustK > 0 && robustK <= MAX_HUBER_K)) throw new InputError(`the Huber tuning constant must be above 0 and at most ${MAX_HUBER_K}; got ${robust.k}`);
   }
-  if (family === 'smooth' && (outcome !== 'gaussian' || shape.length > 0 || robustK !== undefined)) {
+  if (family === 'smooth' && (outcome !== 'gaussian' || robustK !== undefined)) {
     throw new InputError(
-      'the cubic smoothing spline supports only least squares: shape constraints, Poisson and binomial outcomes and robust fitting need the natural spline (--model natural)',
+      'the cubic smoothing spline supports only least squares (with or without --shape): Poisson and binomial outcomes and robust fitting need the natural spline (--model natural)',
     );
   }
-  if (family === 'poly' && shape.length > 0) throw new InputError('shape constraints need the natural spline (--model natural); the polynomial has no B-spline coefficients to constrain');
+  if (family === 'poly' && shape.length > 0) throw new InputError('shape constraints need the natural spline (--model natural) or the smoothing spline; the polynomial has no B-spline coefficients to constrain');
   if (robustK !== undefined && outcome !== 'gaussian') throw new InputError(`robust (Huber) fitting applies to the Gaussian outcome only; it cannot be combined with a ${outcome} outcome`);
   return { outcome, shape, robustK };
 }
@@ -128,6 +129,8 @@ export function modelBasis(prepared: PreparedData, family: Family, df: number, m
  *   leverage is the hat diagonal of the final weighted least-squares step.
  * - Poisson and binomial fits: fitted values are means, bands are built on the link scale
  *   (core/fit/linkCurve.ts), statistics as in core/fit/glmSummary.ts.
+ * - The smoothing spline with shapes is fitted by core/fit/shapedSmoothing.ts (same
+ *   conventions, with the hat-matrix trace at the active set as effectiveDf).
  *
  * Cost: O(n) to cache the basis rows, then O(n) per reweighting iteration.
  * Throws InputError for data that do not fit the outcome (naming the line), FitError when
@@ -135,6 +138,8 @@ export function modelBasis(prepared: PreparedData, family: Family, df: number, m
  * Example: fitModel(prepareData({ x, y }), 'natural', 6, resolveModel('natural', { outcome: 'poisson' })).
  */
 export function fitModel(prepared: PreparedData, family: Family, df: number, model: ResolvedModel): FitResult {
+  // resolveModel admits only least squares with shapes for the smoothing spline.
+  if (family === 'smooth') return fitShapedSmoothingSpline(prepared.data, df, model.shape);
   const { data } = prepared;
   if (model.outcome !== 'gaussian') checkOutcomeData(model.outcome, data);
   const mb = modelBasis(prepared, family, df, model);

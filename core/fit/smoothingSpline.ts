@@ -162,7 +162,7 @@ const LINE_NOTE_LAMBDA = 'lambda = infinity is the limit of the smoothing spline
 // Input: checks and pooling of tied x
 
 /** Rows pooled by distinct x: u sorted distinct x, w summed weights, y weighted mean y. */
-interface Pooled {
+export interface Pooled {
   readonly data: XYData;
   readonly n: number;
   readonly m: number;
@@ -174,7 +174,7 @@ interface Pooled {
 }
 
 /** Checks the data (via prepareData) and pools tied x. O(n log n). */
-function poolTies(data: XYData): Pooled {
+export function poolTies(data: XYData): Pooled {
   const prepared = prepareData(data);
   const m = prepared.distinct;
   if (m < MIN_DISTINCT_X) throw new FitError(`smoothing spline needs at least ${MIN_DISTINCT_X} distinct x values; the data has ${m}`);
@@ -890,7 +890,7 @@ function splineFit(pooled: Pooled, smoother: SplineSmoother, lambdaT: number, la
 }
 
 /** Pooled values and hat diagonal back to rows: leverage_i = w_i / W_j S_jj. */
-function perRow(pooled: Pooled, value: Float64Array, lev: Float64Array, fitted: Float64Array, leverage: Float64Array): void {
+export function perRow(pooled: Pooled, value: Float64Array, lev: Float64Array, fitted: Float64Array, leverage: Float64Array): void {
   const w = pooled.data.w;
   for (let i = 0; i < pooled.n; i++) {
     const g = pooled.group[i] as number;
@@ -899,7 +899,8 @@ function perRow(pooled: Pooled, value: Float64Array, lev: Float64Array, fitted: 
   }
 }
 
-function tieNote(pooled: Pooled): string[] {
+/** The note on pooled ties, or none when every x is distinct. */
+export function tieNote(pooled: Pooled): string[] {
   if (pooled.m === pooled.n) return [];
   return [`${pooled.n} rows have ${pooled.m} distinct x values; rows with equal x were pooled (weights summed, weighted mean of y) before smoothing, which does not change the fit.`];
 }
@@ -963,7 +964,8 @@ function straightLineFit(pooled: Pooled, notes: string[]): FitResult {
   });
 }
 
-interface SplineCurve extends Curve {
+/** A smoothing-spline curve with its B-spline coefficients. */
+export interface SplineCurve extends Curve {
   readonly coefficients: Float64Array;
 }
 
@@ -973,7 +975,7 @@ interface SplineCurve extends Curve {
  * the value continues linearly with the boundary slope and the variance factor is that of
  * the linear continuation.
  */
-function makeCurve(knots: Float64Array, coefficients: Float64Array, band: Float64Array, df: number): SplineCurve {
+export function makeCurve(knots: Float64Array, coefficients: Float64Array, band: Float64Array, df: number): SplineCurve {
   const ev = new BSplineEvaluator(knots);
   const lower = knots[0] as number;
   const upper = knots[knots.length - 1] as number;

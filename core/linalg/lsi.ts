@@ -70,8 +70,7 @@ export function solveLsi(g: Float64Array, rhs: Float64Array, q: number, a: Float
   }
   if (feasible) return { beta: beta0, multipliers: new Float64Array(r), active: new Uint8Array(r), activeCount: 0, iterations: 0, converged: true };
   // E is (q + 1) x r: column i holds (A_i R^-1)' = L^-1 D A_i' over h_i - A_i b0.
-  const m = q + 1;
-  const e = new Float64Array(m * r);
+  const e = new Float64Array((q + 1) * r);
   const col = new Float64Array(q);
   for (let i = 0; i < r; i++) {
     for (let j = 0; j < q; j++) col[j] = (d[j] as number) * (a[i * q + j] as number);
@@ -79,6 +78,33 @@ export function solveLsi(g: Float64Array, rhs: Float64Array, q: number, a: Float
     for (let j = 0; j < q; j++) e[j * r + i] = col[j] as number;
     e[q * r + i] = -(slack[i] as number);
   }
+  const ldp = solveLdp(e, q, r, what);
+  // b = b0 + R^-1 z with R^-1 = D L^-T.
+  const z = ldp.z;
+  backward(l, q, z);
+  const beta = new Float64Array(q);
+  for (let j = 0; j < q; j++) beta[j] = (beta0[j] as number) + (d[j] as number) * (z[j] as number);
+  return { beta, multipliers: ldp.multipliers, active: ldp.active, activeCount: ldp.activeCount, iterations: ldp.iterations, converged: ldp.converged };
+}
+
+/** Result of `solveLdp`: as LsiResult, with the minimum-norm point z in place of beta. */
+export interface LdpResult extends Omit<LsiResult, 'beta'> {
+  readonly z: Float64Array;
+}
+
+/**
+ * Least-distance problem (LDP): minimise ||z|| subject to F z >= f, F r x q, by Lawson &
+ * Hanson (1974), section 23.4, Algorithm 23.27 (see the module comment): the NNLS problem
+ * min ||E u - e_{q+1}||, u >= 0, with E = [F' ; f'] ((q + 1) x r), has residual rho, and
+ * z = -rho_{1..q} / rho_{q+1}; the multipliers are u / (-rho_{q+1}). `e` holds E row-major
+ * (e[j * r + i] = F_ij for j < q, e[q * r + i] = f_i) and is not modified. Callers that
+ * already have a triangular factor (solveLsi, core/fit/shapedSmoothing.ts) pass F = A R^-1.
+ * Throws FitError naming `what` when the constraints are inconsistent. Cost: the NNLS on
+ * r variables with q + 1 equations, O((q + 1) r) per dual update.
+ * Example: solveLdp(Float64Array.of(1, 1), 1, 1, 'x').z = [1] (min |z| subject to z >= 1).
+ */
+export function solveLdp(e: Float64Array, q: number, r: number, what: string): LdpResult {
+  const m = q + 1;
   const f = new Float64Array(m);
   f[q] = 1;
   const sol = nnls(e, m, r, f);
@@ -94,12 +120,8 @@ export function solveLsi(g: Float64Array, rhs: Float64Array, q: number, a: Float
   if (!(Math.sqrt(rhoNorm) > LDP_INFEASIBLE_TOLERANCE) || !(last < 0)) {
     throw new FitError(`${what}: the shape constraints cannot all hold at once`);
   }
-  // b = b0 + R^-1 z with R^-1 = D L^-T and z = -rho_{1..q} / rho_{q+1}.
   const z = new Float64Array(q);
   for (let j = 0; j < q; j++) z[j] = -(rho[j] as number) / last;
-  backward(l, q, z);
-  const beta = new Float64Array(q);
-  for (let j = 0; j < q; j++) beta[j] = (beta0[j] as number) + (d[j] as number) * (z[j] as number);
   const multipliers = new Float64Array(r);
   const active = new Uint8Array(r);
   let activeCount = 0;
@@ -111,7 +133,7 @@ export function solveLsi(g: Float64Array, rhs: Float64Array, q: number, a: Float
       activeCount++;
     }
   }
-  return { beta, multipliers, active, activeCount, iterations: sol.iterations, converged: sol.converged };
+  return { z, multipliers, active, activeCount, iterations: sol.iterations, converged: sol.converged };
 }
 
 /**

@@ -7,15 +7,18 @@
  * zero set; each outer step moves the zero variable with the largest dual value
  * w_j = e_j'(f - E x) into P, and the inner loop solves the unconstrained least-squares
  * problem on the columns of P, backing up along the segment towards it whenever a passive
- * variable would turn non-positive. The least-squares subproblem is solved by a fresh
- * Householder QR of the passive columns (Lawson & Hanson chapter 11; Golub & Van Loan,
- * Matrix Computations, 4th ed., section 5.2), which keeps full accuracy when the columns are
- * badly scaled. As in Lawson & Hanson's own program, a candidate whose least-squares
- * coefficient is not positive (its column is numerically dependent on the passive ones) is
- * rejected for that outer step, and the outer iterations are capped at 3 n.
+ * variable would turn non-positive. The least-squares subproblem is solved by a Householder
+ * QR of the passive columns (Lawson & Hanson chapter 11; Golub & Van Loan, Matrix
+ * Computations, 4th ed., section 5.2), which keeps full accuracy when the columns are badly
+ * scaled; the factorisation is kept between steps and redone only from the first passive
+ * column that changed (results are identical to refactoring at every step). As in Lawson &
+ * Hanson's own program, a candidate whose least-squares coefficient is not positive (its
+ * column is numerically dependent on the passive ones) is rejected for that outer step, and
+ * the outer iterations are capped at 3 n.
  *
  * The problems Knotwise hands to it are small (n = number of shape constraints, m = number
- * of spline coefficients + 1, both below a few hundred); cost per inner solve O(m |P|^2),
+ * of spline coefficients + 1, up to a few thousand for the shape-constrained smoothing
+ * spline); cost O(m n) per dual update and O(m |P|) per column added to the passive set,
  * typically O(n) outer steps.
  */
 
@@ -73,50 +76,77 @@ export function nnls(e: Float64Array, m: number, n: number, f: Float64Array): Nn
   fNorm = Math.sqrt(fNorm);
   const dualTol = NNLS_DUAL_TOLERANCE_FACTOR * EPS * Math.max(m, n) * maxColNorm * fNorm;
 
+  const nonzero = new Int32Array(n);
   const updateDual = (): void => {
+    // Terms with x_j = 0 add nothing, and w is accumulated row by row (E is row-major): the
+    // same sums in the same order, without a strided pass over E for every column.
+    let nz = 0;
+    for (let j = 0; j < n; j++) if ((x[j] as number) !== 0) nonzero[nz++] = j;
     for (let i = 0; i < m; i++) {
       let s = f[i] as number;
-      for (let j = 0; j < n; j++) s -= (e[i * n + j] as number) * (x[j] as number);
+      for (let k = 0; k < nz; k++) {
+        const j = nonzero[k] as number;
+        s -= (e[i * n + j] as number) * (x[j] as number);
+      }
       resid[i] = s;
     }
-    for (let j = 0; j < n; j++) {
-      let s = 0;
-      for (let i = 0; i < m; i++) s += (e[i * n + j] as number) * (resid[i] as number);
-      w[j] = s;
+    w.fill(0);
+    for (let i = 0; i < m; i++) {
+      const ri = resid[i] as number;
+      const o = i * n;
+      for (let j = 0; j < n; j++) w[j] = (w[j] as number) + (e[o + j] as number) * ri;
     }
+  };
+
+  // Householder QR of the passive columns, kept between steps: the reflections of the first
+  // `factored` columns of `order` stay valid while those columns stay (a QR's leading columns
+  // do not depend on later ones), so a step refactors only from the first changed position.
+  // Each column and f meet the same reflections in the same order as in a fresh
+  // factorisation, so the result is identical to refactoring from scratch.
+  const vhead = new Float64Array(n);
+  const vscale = new Float64Array(n);
+  let factored = 0;
+  for (let i = 0; i < m; i++) rhs[i] = f[i] as number;
+
+  /** Applies reflection k (vhead[k] at row k, qr[k * m + i] below it, scale vscale[k]) to v[off..off + m). */
+  const reflect = (k: number, v: Float64Array, off: number): void => {
+    const head = vhead[k] as number;
+    let s = head * (v[off + k] as number);
+    for (let i = k + 1; i < m; i++) s += (qr[k * m + i] as number) * (v[off + i] as number);
+    const t = s / (vscale[k] as number);
+    v[off + k] = (v[off + k] as number) - t * head;
+    for (let i = k + 1; i < m; i++) v[off + i] = (v[off + i] as number) - t * (qr[k * m + i] as number);
+  };
+
+  /** Keeps the reflections of the first `pos` passive columns only; rebuilds Q'f from f for them. */
+  const truncate = (pos: number): void => {
+    if (pos >= factored) return;
+    factored = pos;
+    for (let i = 0; i < m; i++) rhs[i] = f[i] as number;
+    for (let k = 0; k < pos; k++) reflect(k, rhs, 0);
   };
 
   /** Least squares on the passive columns (in `order[0..np)`), result in z; false if a pivot vanishes. */
   const solvePassive = (): boolean => {
     // qr holds the passive columns column-major: column k at qr[k * m .. k * m + m).
-    for (let k = 0; k < np; k++) {
+    if (np > m) return false;
+    for (let k = factored; k < np; k++) {
       const j = order[k] as number;
       for (let i = 0; i < m; i++) qr[k * m + i] = e[i * n + j] as number;
-    }
-    for (let i = 0; i < m; i++) rhs[i] = f[i] as number;
-    if (np > m) return false;
-    for (let k = 0; k < np; k++) {
+      for (let c = 0; c < k; c++) reflect(c, qr, k * m);
       let norm = 0;
       for (let i = k; i < m; i++) norm += (qr[k * m + i] as number) ** 2;
       norm = Math.sqrt(norm);
       if (!(norm > 0)) return false;
       const akk = qr[k * m + k] as number;
       const alpha = akk > 0 ? -norm : norm;
-      // Householder vector v = a_k - alpha e_k stored in place; beta = 1 / (v'v / 2) = 1 / (alpha (alpha - akk)).
-      qr[k * m + k] = akk - alpha;
-      const vtv2 = alpha * (alpha - akk);
-      for (let c = k + 1; c < np; c++) {
-        let s = 0;
-        for (let i = k; i < m; i++) s += (qr[k * m + i] as number) * (qr[c * m + i] as number);
-        const t = s / vtv2;
-        for (let i = k; i < m; i++) qr[c * m + i] = (qr[c * m + i] as number) - t * (qr[k * m + i] as number);
-      }
-      let s = 0;
-      for (let i = k; i < m; i++) s += (qr[k * m + i] as number) * (rhs[i] as number);
-      const t = s / vtv2;
-      for (let i = k; i < m; i++) rhs[i] = (rhs[i] as number) - t * (qr[k * m + i] as number);
-      // The diagonal of R is alpha; keep it where the vector's head was (the vector is no longer needed).
+      // Householder vector v = a_k - alpha e_k, its head kept aside; v'v / 2 = alpha (alpha - akk).
+      vhead[k] = akk - alpha;
+      vscale[k] = alpha * (alpha - akk);
+      reflect(k, rhs, 0);
+      // The diagonal of R is alpha; the rest of the vector stays below it.
       qr[k * m + k] = alpha;
+      factored = k + 1;
     }
     // Back substitution R z_P = (Q'f)[0..np); a pivot tiny against the largest means dependent columns.
     let maxDiag = 0;
@@ -159,6 +189,7 @@ export function nnls(e: Float64Array, m: number, n: number, f: Float64Array): Nn
       // Lawson & Hanson's test: the new column does not help (numerically dependent); leave it at zero.
       passive[t] = 0;
       np--;
+      truncate(np);
       rejected[t] = 1;
       continue;
     }
@@ -193,16 +224,19 @@ export function nnls(e: Float64Array, m: number, n: number, f: Float64Array): Nn
       x[hit] = 0;
       // Move every passive variable that reached zero back to the zero set.
       let kept = 0;
+      let firstRemoved = np;
       for (let k = 0; k < np; k++) {
         const j = order[k] as number;
         if (j === hit || (x[j] as number) <= 0) {
           x[j] = 0;
           passive[j] = 0;
+          if (k < firstRemoved) firstRemoved = k;
         } else {
           order[kept++] = j;
         }
       }
       np = kept;
+      truncate(firstRemoved);
       if (np === 0) continue outer;
       if (!solvePassive()) {
         // Cannot happen for columns that were independent before; stop with the feasible x.

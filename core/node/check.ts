@@ -5,7 +5,7 @@
  * Without arguments it checks every `*.fit.json` under the current folder.
  */
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
-import { dirname, join, relative, resolve } from 'node:path';
+import { basename, dirname, join, relative, resolve } from 'node:path';
 import { describeDifference, textDifference } from '../compare';
 import { InputError } from '../errors';
 import { shellWord } from '../plan';
@@ -85,7 +85,8 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
   const messages: string[] = [];
   let run: PipelineRun;
   try {
-    run = await runPipeline(dataFile, rec.plan, folder);
+    // The table and record under the names they were written with (the editor lets them be renamed).
+    run = await runPipeline(dataFile, rec.plan, folder, { table: (rec.files[0] as { file: string }).file, record: basename(recordPath) });
   } catch (e) {
     // The data may have changed so that it no longer fits: say both.
     const sha = sha256(readFileSync(dataFile));

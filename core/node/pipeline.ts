@@ -49,10 +49,12 @@ export function portableRelative(folder: string, target: string): string {
 /**
  * Reads `file`, fits as `plan` says, and builds the outputs as they would be written into
  * `outFolder` (the data path in the record and the regenerate command is relative to it).
+ * `names` renames the table and the record (as the editor's output name settings do;
+ * default `<name>.curve.csv` and `<name>.fit.json`).
  * Throws InputError (with file, line and column where known) for bad input.
  * Example: const run = await runPipeline('cal.csv', plan, 'out'); run.deliverables.files.
  */
-export async function runPipeline(file: string, plan: FitPlan, outFolder: string): Promise<PipelineRun> {
+export async function runPipeline(file: string, plan: FitPlan, outFolder: string, names?: { readonly table: string; readonly record: string }): Promise<PipelineRun> {
   const table = await readCsvFile(file);
   // A binomial outcome with a trials column: proportions, with the trials as weights (core/ingest/trials.ts).
   const selection = plan.trials !== undefined ? selectTrials(table, plan.columns, plan.trials, file) : selectColumns(table, plan.columns, file);
@@ -85,6 +87,7 @@ export async function runPipeline(file: string, plan: FitPlan, outFolder: string
     fit,
     diagnostics,
     sha256,
+    names,
   });
   return { table, selection, fitted, analysis, fit, diagnostics, deliverables };
 }

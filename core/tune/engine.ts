@@ -11,7 +11,7 @@ import { isPlainModel, resolveModel } from '../fit/model';
 import type { Family, ModelOptions } from '../types';
 import { accumulateRow, buildCells, type Cells, SUMS_PER_CELL } from './cells';
 import { bootstrapCounts, foldLabels } from './plan';
-import { modelTrainer } from './modelTrainer';
+import { modelTrainer, shapedSmoothTrainer } from './modelTrainer';
 import { SplineFromSums } from './splineSums';
 import type { ResampleSpec } from './types';
 
@@ -111,6 +111,11 @@ export class ResampleEngine {
     if (!isPlainModel(this.problem.model)) {
       // Outcome families, shapes, robust fits: refit on weighted rows (the power sums need plain least squares).
       const model = resolveModel(family, this.problem.model);
+      if (family === 'smooth') {
+        // Shape-constrained smoothing splines: refit at each candidate's full-data lambda.
+        const lambdas = this.problem.lambdas ?? [];
+        return { trainers: dfs.map((_, k) => shapedSmoothTrainer(x, this.problem.y, lambdas[k] as number, model.shape, this.ymean, this.yscale)), cells: undefined };
+      }
       return { trainers: dfs.map((df) => modelTrainer(prepared, this.problem.y, family, df, model, this.ymean, this.yscale)), cells: undefined };
     }
     if (family === 'natural') {

@@ -9,7 +9,8 @@ import { LinearSystem } from '../fit/linearSystem';
 import { modelBasis, type ResolvedModel } from '../fit/model';
 import type { PreparedData } from '../fit/prepared';
 import { huberIrls } from '../fit/robust';
-import type { Family } from '../types';
+import { shapedSmoothingSplineAtLambda } from '../fit/shapedSmoothing';
+import type { Curve, Family, Shape } from '../types';
 
 /** A candidate refitted on weighted rows (0 = not in training) and evaluated at rows. */
 export interface ModelTrainer {
@@ -76,6 +77,50 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, family: Fa
     },
     mean(i: number): number {
       return fitted[i] as number;
+    },
+  };
+}
+
+/**
+ * Trainer of one shape-constrained smoothing-spline candidate: each resample refits the rows
+ * with positive weight at `lambda`, the smoothing parameter of the candidate's df on all
+ * tuning rows (as the unconstrained smoothing spline's resamples do), by
+ * core/fit/shapedSmoothing.ts. It fits the raw `y` (non-negativity does not survive the
+ * engine's centring) and maps predictions to the engine's units by (f - ymean) / yscale.
+ * Cost per resample: O(n log n) plus the constrained solve, O(m^3) for m distinct x.
+ */
+export function shapedSmoothTrainer(x: Float64Array, y: Float64Array, lambda: number, shapes: readonly Shape[], ymean: number, yscale: number): ModelTrainer {
+  let curve: Curve | undefined;
+  return {
+    family: undefined,
+    train(weights: Float64Array): boolean {
+      let m = 0;
+      for (let i = 0; i < weights.length; i++) if ((weights[i] as number) > 0) m++;
+      const sx = new Float64Array(m);
+      const sy = new Float64Array(m);
+      const sw = new Float64Array(m);
+      m = 0;
+      for (let i = 0; i < weights.length; i++) {
+        const wi = weights[i] as number;
+        if (wi > 0) {
+          sx[m] = x[i] as number;
+          sy[m] = y[i] as number;
+          sw[m++] = wi;
+        }
+      }
+      try {
+        curve = shapedSmoothingSplineAtLambda({ x: sx, y: sy, w: sw }, lambda, shapes).curve;
+        return true;
+      } catch (e) {
+        if (e instanceof FitError) return false;
+        throw e;
+      }
+    },
+    predict(i: number): number {
+      return ((curve as Curve).value(x[i] as number) - ymean) / yscale;
+    },
+    mean(i: number): number {
+      return (curve as Curve).value(x[i] as number);
     },
   };
 }

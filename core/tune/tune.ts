@@ -3,6 +3,7 @@ import { fitCurve } from '../fit/index';
 import { fitNaturalSplineBatch } from '../fit/naturalSplineBatch';
 import type { PreparedData } from '../fit/prepared';
 import { isPlainModel, resolveModel } from '../fit/model';
+import { checkShapedSmoothingSize } from '../fit/shapedSmoothing';
 import type { Family, FitResult, ModelOptions } from '../types';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from './engine';
 import { checkResampleSpec, orderByX, resampleCount } from './plan';
@@ -91,6 +92,8 @@ export async function tuneCurve(
   const dfs = [...new Set(options.candidates ?? defaultCandidates(family, prepared.distinct))].sort((a, b) => a - b);
   if (dfs.length === 0) throw new InputError('no candidate df given');
   const model = resolveModel(family, options);
+  // Refuse an oversized shape-constrained smoothing spline once, not once per candidate.
+  if (family === 'smooth' && model.shape.length > 0) checkShapedSmoothingSize(prepared.distinct);
   const plain = isPlainModel(options);
   const glm = model.outcome !== 'gaussian';
   if (!plain && resample.kind === 'loo') {

@@ -2,10 +2,12 @@
  * One scenario in the real workbench, as a person would do it: right-click MASS::mcycle
  * (Silverman 1985, from R's MASS package; see fixtures/make-fixtures.R) in the explorer,
  * pick the columns, wait for the panel, read the explanation, press save, find the files
- * on disk, look at it in a light and a dark theme. No request may leave 127.0.0.1.
+ * on disk, run it again from the panel, look at it in a light and a dark theme; then start
+ * a long run from the command palette and stop it with the notification's Cancel button,
+ * which leaves no file behind. No request may leave 127.0.0.1.
  */
 import assert from 'node:assert/strict';
-import { copyFileSync, existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Frame, Page } from 'playwright-core';
 import type { CodeServer, LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
@@ -127,6 +129,22 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     assert.equal(rec.data.file, 'mcycle.csv');
   });
 
+  it('Run again in the panel runs the analysis again and shows the new run', async function () {
+    const before = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
+    await panel.click('#kw-rerun');
+    const deadline = Date.now() + 60000;
+    for (;;) {
+      const state = await panel.getAttribute('#knotwise-root', 'data-state');
+      const run = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
+      if (state === 'ready' && run > before) break;
+      if (Date.now() > deadline) throw new Error(`no new run after Run again (run ${run}, state ${state})`);
+      await page.waitForTimeout(200);
+    }
+    // The same data and settings: the same choice, explained again.
+    assert.equal(await panel.textContent('#kw-chosen-df'), `df ${chosenDf}`);
+    assert.match((await panel.textContent('#kw-reason')) ?? '', /One-SE threshold/);
+  });
+
   it('the panel follows a dark theme', async function () {
     // Through the command palette, as a person would.
     const input = page.locator('.quick-input-widget input.input');
@@ -143,6 +161,81 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.locator('.monaco-workbench.vs-dark').waitFor({ timeout: 30000 });
     await page.waitForTimeout(800);
     await page.screenshot({ path: join(artifacts, 'editor-dark.png') });
+  });
+
+  it('ticking a shape in the panel reruns the analysis in the host with that constraint', async function () {
+    const before = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
+    await panel.check('#kw-shape-nonnegative');
+    const deadline = Date.now() + 60000;
+    for (;;) {
+      const state = await panel.getAttribute('#knotwise-root', 'data-state');
+      const run = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
+      if (state === 'ready' && run > before) break;
+      if (Date.now() > deadline) throw new Error(`no new run after ticking the shape (run ${run}, state ${state})`);
+      await page.waitForTimeout(200);
+    }
+    assert.match((await panel.textContent('#kw-model-words')) ?? '', /shape: non-negative, guaranteed everywhere in the data range \(set in this panel/);
+    assert.equal(await panel.isChecked('#kw-shape-nonnegative'), true);
+    assert.match((await panel.textContent('#kw-model-lines')) ?? '', /Shape non-negative: \d+ of \d+ linear inequalities active/);
+  });
+
+  it("a long run started from the command palette stops with the notification's Cancel button and leaves no file behind", async function () {
+    // Close the panel first, so the settings change below reruns nothing.
+    await page.keyboard.press('F1');
+    const input = page.locator('.quick-input-widget input.input');
+    await input.waitFor();
+    await input.fill('>View: Close All Editors');
+    await page.getByRole('option', { name: /View: Close All Editors/ }).first().click();
+    await page.locator('.tab', { hasText: 'Curve review' }).first().waitFor({ state: 'detached' });
+    // Invented seeded readings, only to make a run long enough to stop (no reference value).
+    let seed = 987654321;
+    const rand = (): number => (seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32;
+    const rows = ['load [kN],strain [um]'];
+    for (let i = 0; i < 40000; i++) {
+      const x = 100 * rand();
+      rows.push(`${x.toFixed(4)},${(Math.sqrt(x) * 30 + 5 * (rand() - 0.5)).toFixed(3)}`);
+    }
+    writeFileSync(join(workspace, 'drift.csv'), rows.join('\n') + '\n');
+    mkdirSync(join(workspace, '.vscode'), { recursive: true });
+    writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'boot:2000' }));
+    const before = readdirSync(workspace).sort();
+    // Open the file with quick open, then run the command from the palette.
+    await page.keyboard.press('Control+P');
+    await input.fill('drift.csv');
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'drift.csv' }).first().waitFor();
+    await page.keyboard.press('Enter');
+    await page.locator('.tab', { hasText: 'drift.csv' }).first().waitFor();
+    await page.waitForTimeout(1000);
+    await page.keyboard.press('F1');
+    await input.fill('>Knotwise: Tune a Curve');
+    await page.getByRole('option', { name: /Knotwise: Tune a Curve for This Data/ }).first().click();
+    const title = page.locator('.quick-input-widget .quick-input-title');
+    await title.filter({ hasText: 'the x column of drift.csv' }).waitFor();
+    await input.fill('load');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'the y column' }).waitFor();
+    await input.fill('strain');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'weights' }).waitFor();
+    await page.keyboard.press('Enter');
+    const toast = page.locator('.notification-toast', { hasText: 'Knotwise: tuning the curve for drift.csv' });
+    await toast.waitFor({ timeout: 30000 });
+    await toast.getByRole('button', { name: 'Cancel' }).click();
+    // The panel says so, and nothing was written next to the data.
+    const deadline = Date.now() + 30000;
+    let said = false;
+    while (!said && Date.now() < deadline) {
+      for (const f of page.frames()) {
+        // $ does not wait, so frames without the panel are passed over at once.
+        const root = await f.$('#knotwise-root').catch(() => null);
+        const text = root ? await root.textContent() : null;
+        if (text && /Tuning was cancelled/.test(text)) said = true;
+      }
+      if (!said) await page.waitForTimeout(200);
+    }
+    assert.ok(said, 'the panel says the run was cancelled');
+    await page.screenshot({ path: join(artifacts, 'editor-cancelled.png') });
+    assert.deepEqual(readdirSync(workspace).sort(), before);
   });
 
   it('no request left 127.0.0.1', function () {

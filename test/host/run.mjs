@@ -37,7 +37,7 @@ try {
   runDir = freshRunDir('host');
   const workspace = join(runDir, 'workspace');
   mkdirSync(join(workspace, '.vscode'), { recursive: true });
-  for (const f of ['mcycle.csv', 'mcycle-bad.csv', 'cars.csv']) copyFileSync(join(fixtures, f), join(workspace, f));
+  for (const f of ['mcycle.csv', 'mcycle-bad.csv', 'cars.csv', 'menarche.csv']) copyFileSync(join(fixtures, f), join(workspace, f));
   writeFileSync(
     join(workspace, '.vscode', 'settings.json'),
     JSON.stringify({ 'knotwise.resampling': 'loo', 'knotwise.rule': 'lowest', 'knotwise.candidates': '3..15' }, null, 2),

@@ -135,4 +135,16 @@ describe('buildDeliverables', () => {
     assert.ok(ip.maxError > 0 && ip.maxError < 0.05, `maxError ${ip.maxError}`);
     assert.ok(Math.abs((ip.step as number) - 0.21) <= 1e-12);
   });
+
+  it('names the table and the record as asked (the editor\'s output names), and the record lists the table by that name', () => {
+    const d = buildDeliverables({ ...input(cars, 3, {}, 'cars'), names: { table: 'braking.csv', record: 'braking.json' } });
+    assert.deepEqual(d.files.map((f) => f.name), ['braking.csv', 'braking.json']);
+    const rec = JSON.parse(text(d, 'record')) as { table: { file: string; sha256: string } };
+    assert.equal(rec.table.file, 'braking.csv');
+    assert.equal(rec.table.sha256, createHash('sha256').update(text(d, 'table')).digest('hex'));
+    // Without names, the command line's: <stem>.curve.csv and <stem>.fit.json; same bytes otherwise.
+    const plain = buildDeliverables(input(cars, 3, {}, 'cars'));
+    assert.deepEqual(plain.files.map((f) => f.name), ['cars.curve.csv', 'cars.fit.json']);
+    assert.equal(text(plain, 'table'), text(d, 'table'));
+  });
 });

@@ -84,7 +84,7 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
   await page.exposeFunction('__knotwiseToHost', (m: PanelMessage) => {
     sent.push(m);
     if (m.type === 'needDetail' && fixture && m.runId === fixture.payload.runId) {
-      const detail = detailFor(fixture.analysis, fixture.data, m.df);
+      const detail = detailFor(fixture.analysis, m.df);
       if (detail) void post({ type: 'detail', runId: m.runId, detail });
     }
   });

@@ -6,8 +6,10 @@
  * that the panel shows what the rules decide, not a copy of itself.
  */
 import assert from 'node:assert/strict';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../core/analysis';
+import { num } from '../../core/plots/svg';
 import type { HostMessage, PanelPayload } from '../../core/protocol';
 import { selectDf } from '../../core/tune/rules';
 import type { RuleSpec } from '../../core/tune/types';
@@ -17,6 +19,13 @@ import { analysedFixture, mcycleFixture, type Fixture } from './fixture';
 import { openPanel, startPanelServer, type PanelPage, type PanelServer } from './harness';
 
 const artifacts = join(__dirname, '..', '..', 'test-artifacts');
+
+/** R reference fits (test/reference/r/physics.R: glm with splines::ns, MASS::rlm with psi.huber). */
+interface Physics {
+  readonly glm: readonly { readonly dataset: string; readonly outcome: string; readonly df: number; readonly deviance: number; readonly rCall: string }[];
+  readonly rlm: readonly { readonly dataset: string; readonly df: number; readonly weights: readonly number[]; readonly scale: number; readonly rCall: string }[];
+}
+const physics = (): Physics => JSON.parse(readFileSync(join(__dirname, '..', 'reference', 'fixtures', 'physics.json'), 'utf8')) as Physics;
 
 describe('Knotwise panel (webview in headless Chromium)', function () {
   let browser: LaunchedChromium;
@@ -233,7 +242,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     }
     const data = { x, y, lines };
     const analysis = await analyse(data, { family: 'natural', candidates: [4, 6, 8, 10], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1 });
-    const payload = buildPanelPayload({ runId: 1, analysis, data, source: { fileName: 'big.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
+    const payload = buildPanelPayload({ runId: 1, analysis, source: { fileName: 'big.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
     const bytes = Buffer.byteLength(JSON.stringify(payload));
     assert.ok(bytes < 3_000_000, `payload is ${bytes} bytes`);
     assert.equal(payload.data.kind, 'bins');
@@ -243,6 +252,101 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.equal(await page.locator('#fig-data circle').count(), 0);
     assert.match((await page.textContent('#fig-data svg > desc')) ?? '', /200000 readings drawn as a density grid/);
     await page.close();
+  });
+
+  it('the Run again button asks the host to run the analysis again', async function () {
+    const pp = await shown(mcycle);
+    const mark = pp.sent.length;
+    await pp.page.click('#kw-rerun');
+    assert.deepEqual(await pp.waitForSent('rerun', mark), { type: 'rerun' });
+    assert.match((await pp.page.textContent('#kw-status')) ?? '', /again/);
+    // Reachable and usable from the keyboard as well.
+    await pp.page.focus('#kw-rerun');
+    const mark2 = pp.sent.length;
+    await pp.page.keyboard.press('Enter');
+    assert.deepEqual(await pp.waitForSent('rerun', mark2), { type: 'rerun' });
+    await pp.page.close();
+  });
+
+  it('a binomial fit with trials (MASS::menarche) shows the model report with the deviance R gives', async function () {
+    const fx = await analysedFixture('menarche.csv', 'Age', 'Menarche', { family: 'natural', candidates: [3, 5], resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: 'lowest' }, seed: 1, outcome: 'binomial' }, undefined, 'Total');
+    // Counts and proportions are tuned on the deviance, and the panel keeps it to choose with.
+    assert.equal(fx.payload.metric, 'deviance');
+    const pp = await shown(fx);
+    const page = pp.page;
+    const sel = expected(fx.payload, fx.payload.rule);
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${sel.df}`);
+    assert.match((await page.textContent('#kw-model-words')) ?? '', /binomial proportions \(logit link\), successes out of the trials in column “Total”/);
+    assert.equal(await page.inputValue('#kw-outcome'), 'binomial');
+    assert.equal(await page.isDisabled('#kw-robust'), true, 'robust fitting is for least squares only');
+    // Reference: glm(cbind(y, trials - y) ~ ns(x, df = k - 1), family = binomial) in physics.json; the
+    // panel prints 5 significant digits, so the tolerance is the display precision.
+    const ref = physics().glm.find((c) => c.dataset === 'menarche' && c.df === sel.df);
+    assert.ok(ref, `physics.json has menarche at df ${sel.df}`);
+    const lines = await page.$$eval('#kw-model-lines li', (ls) => ls.map((l) => l.textContent ?? ''));
+    assert.ok(lines.some((l) => l.startsWith(`Deviance ${num(ref.deviance, 5)} on `)), `${lines.join(' | ')} (R: ${ref.rCall} deviance ${ref.deviance})`);
+    assert.ok(lines.some((l) => /converged/.test(l)));
+    assert.ok(lines.some((l) => /Pearson dispersion/.test(l)));
+    // Residual figures show deviance residuals for proportions.
+    assert.match((await page.textContent('#fig-resid-x svg > title')) ?? '', /^Deviance residuals against Age/);
+    await page.close();
+  });
+
+  it('a robust fit (MASS::mcycle) lists the rows R down-weights by CSV line; a click reveals the line', async function () {
+    const fx = await analysedFixture('mcycle.csv', 'times', 'accel', { family: 'natural', candidates: [5, 8], resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: 'lowest' }, seed: 1, robust: true });
+    const pp = await shown(fx);
+    const page = pp.page;
+    const sel = expected(fx.payload, fx.payload.rule);
+    // Reference: MASS::rlm(y ~ ns(x, df = k - 1), psi = psi.huber) weights in physics.json; rows
+    // are CSV lines 2.. in data order. Weights within 1e-6 of 1 count as not down-weighted.
+    const ref = physics().rlm.find((c) => c.dataset === 'mcycle' && c.df === sel.df);
+    assert.ok(ref, `physics.json has the robust mcycle fit at df ${sel.df}`);
+    const rDown = new Set(ref.weights.flatMap((w, i) => (w < 1 - 1e-6 ? [i + 2] : [])));
+    const caption = (await page.textContent('#kw-downweighted caption')) ?? '';
+    assert.match(caption, new RegExp(`^${rDown.size} rows down-weighted`), `${caption} (R: ${ref.rCall})`);
+    const listed = await page.$$eval('#kw-downweighted button[data-line]', (bs) => bs.map((b) => Number(b.getAttribute('data-line'))));
+    assert.ok(listed.length > 0 && listed.every((l) => rDown.has(l)), `listed lines ${listed.join(', ')} are among R's down-weighted rows`);
+    // The lowest weight first: R's smallest weight is on the first listed line.
+    const lowest = ref.weights.reduce((best, w, i) => (w < (ref.weights[best] as number) ? i : best), 0) + 2;
+    assert.equal(listed[0], lowest);
+    assert.match((await page.textContent('#kw-model-lines')) ?? '', new RegExp(`robust scale ${num(ref.scale, 4).replace('.', '\\.')}`));
+    assert.equal(await page.isChecked('#kw-robust'), true);
+    const mark = pp.sent.length;
+    await page.click(`#kw-downweighted button[data-line="${lowest}"]`);
+    assert.deepEqual(await pp.waitForSent('revealLine', mark), { type: 'revealLine', line: lowest });
+    await page.close();
+  });
+
+  it('switching the outcome or a shape asks the host to rerun; impossible combinations are disabled, a refusal restores the controls', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    assert.equal(await page.inputValue('#kw-outcome'), 'gaussian');
+    assert.match((await page.textContent('#kw-model-body')) ?? '', /One weighted least-squares solve/);
+    let mark = pp.sent.length;
+    await page.check('#kw-shape-increasing');
+    assert.deepEqual(await pp.waitForSent('model', mark), { type: 'model', runId: 1, model: { outcome: 'gaussian', shape: ['increasing'], robust: false } });
+    assert.equal(await page.isDisabled('#kw-shape-decreasing'), true, 'increasing and decreasing exclude each other');
+    mark = pp.sent.length;
+    await page.selectOption('#kw-outcome', 'poisson');
+    assert.deepEqual(await pp.waitForSent('model', mark), { type: 'model', runId: 1, model: { outcome: 'poisson', shape: ['increasing'], robust: false } });
+    assert.equal(await page.isDisabled('#kw-robust'), true, 'robust fitting is for least squares only');
+    // The host refuses (mcycle has negative readings): the controls show the run's options again.
+    await pp.send({ type: 'failed', runId: 1, message: 'Knotwise could not tune mcycle.csv: a Poisson outcome needs counts' });
+    assert.equal(await page.inputValue('#kw-outcome'), 'gaussian');
+    assert.equal(await page.isChecked('#kw-shape-increasing'), false);
+    assert.equal(await page.isDisabled('#kw-shape-decreasing'), false);
+    await page.close();
+  });
+
+  it('a saved answer shows the files and the line about the table', async function () {
+    const pp = await shown(mcycle);
+    const mark = pp.sent.length;
+    await pp.page.click('#kw-save');
+    const save = await pp.waitForSent('save', mark);
+    if (save.type !== 'save') throw new Error('expected a save request');
+    await pp.send({ type: 'saved', requestId: save.requestId, files: ['mcycle.curve.csv', 'mcycle.fit.json'], note: 'The table has 41 rows.' });
+    assert.equal(await pp.page.textContent('#kw-status'), 'Saved mcycle.curve.csv and mcycle.fit.json. The table has 41 rows.');
+    await pp.page.close();
   });
 
   for (const theme of ['light', 'dark'] as const) {

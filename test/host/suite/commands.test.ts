@@ -1,9 +1,12 @@
 /**
- * Knotwise inside the real extension host. Data: MASS::mcycle and R's `cars` (shipped
- * with R; written by test/e2e/fixtures/make-fixtures.R). The expected chosen df comes from
- * that script: R's splines::ns + lm + hatvalues, exact leave-one-out RMSE, lowest mean
- * (test/e2e/fixtures/expected.json). The workspace settings of the runner select the
- * same method: knotwise.resampling = loo, knotwise.rule = lowest, candidates 3..15.
+ * Knotwise inside the real extension host. Data: MASS::mcycle, MASS::menarche and R's
+ * `cars` (shipped with R; written by test/e2e/fixtures/make-fixtures.R). The expected
+ * chosen df comes from that script: R's splines::ns + lm + hatvalues, exact leave-one-out
+ * RMSE, lowest mean (test/e2e/fixtures/expected.json). The workspace settings of the
+ * runner select the same method: knotwise.resampling = loo, knotwise.rule = lowest,
+ * candidates 3..15. Binomial and robust fits are checked against R's glm and MASS::rlm
+ * (test/reference/fixtures/physics.json, from test/reference/r/physics.R). Saved files
+ * are compared byte for byte with what the command line writes for the same inputs.
  */
 import assert from 'node:assert/strict';
 import { execFileSync } from 'node:child_process';
@@ -11,7 +14,8 @@ import { copyFileSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'no
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as vscode from 'vscode';
-import type { RunSummary } from '../../../extension/controller';
+import { selectDf } from '../../../core/tune/rules';
+import type { KnotwiseApi, RunSummary } from '../../../extension/controller';
 
 const EXTENSION_ID = 'knotwise.knotwise';
 
@@ -61,6 +65,55 @@ async function setSetting(key: string, value: unknown): Promise<void> {
 }
 
 const MCYCLE = { columns: { x: 'times', y: 'accel' } };
+
+/** The value the extension's activate returned. */
+function api(): KnotwiseApi {
+  const ext = vscode.extensions.getExtension(EXTENSION_ID);
+  assert.ok(ext?.isActive, 'Knotwise is active');
+  return ext.exports as KnotwiseApi;
+}
+
+/** Polls `probe` until it returns a value (at most `ms`). */
+async function waitFor<T>(what: string, probe: () => T | undefined, ms = 60000): Promise<T> {
+  const deadline = Date.now() + ms;
+  for (;;) {
+    const v = probe();
+    if (v !== undefined) return v;
+    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+/**
+ * Runs the command line on a copy of a workspace file (in a fresh folder, writing next to
+ * it as the editor does) and returns the table and record it wrote.
+ */
+function cliOutputs(name: string, args: readonly string[]): { table: string; record: string } {
+  const out = mkdtempSync(join(tmpdir(), 'knotwise-cli-'));
+  try {
+    copyFileSync(file(name).fsPath, join(out, name));
+    execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'fit', join(out, name), ...args, '--save']);
+    const stem = name.replace(/\.csv$/, '');
+    return { table: readFileSync(join(out, `${stem}.curve.csv`), 'utf8'), record: readFileSync(join(out, `${stem}.fit.json`), 'utf8') };
+  } finally {
+    rmSync(out, { recursive: true, force: true });
+  }
+}
+
+/** R reference fits (test/reference/r/physics.R). */
+interface Physics {
+  readonly glm: readonly { readonly dataset: string; readonly df: number; readonly deviance: number; readonly rCall: string }[];
+  readonly rlm: readonly { readonly dataset: string; readonly df: number; readonly weights: readonly number[]; readonly scale: number; readonly rCall: string }[];
+}
+
+function physics(): Physics {
+  return JSON.parse(readFileSync(join(extensionPath(), 'test', 'reference', 'fixtures', 'physics.json'), 'utf8')) as Physics;
+}
+
+/** |actual - expected| <= rel |expected|. */
+function close(what: string, actual: number | undefined, expected: number, rel: number): void {
+  assert.ok(actual !== undefined && Math.abs(actual - expected) <= rel * Math.abs(expected), `${what}: got ${actual}, R gives ${expected} (relative tolerance ${rel})`);
+}
 
 describe('Knotwise commands in the extension host', function () {
   before(async function () {
@@ -122,19 +175,138 @@ describe('Knotwise commands in the extension host', function () {
     assert.equal(table.split('\n')[0], 'x,fit,se,ciLower,ciUpper,piLower,piUpper,extrapolated');
     assert.equal(table.trimEnd().split('\n').length, 102, '101 grid points and a header');
     // The command line on a copy of the same file, writing next to it as the editor does.
-    const out = mkdtempSync(join(tmpdir(), 'knotwise-cli-'));
-    try {
-      copyFileSync(file('mcycle.csv').fsPath, join(out, 'mcycle.csv'));
-      execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'fit', join(out, 'mcycle.csv'), '--x', 'times', '--y', 'accel', '--resample', 'loo', '--rule', 'lowest', '--df', '3..15', '--save']);
-      assert.equal(table, readFileSync(join(out, 'mcycle.curve.csv'), 'utf8'));
-      assert.equal(record, readFileSync(join(out, 'mcycle.fit.json'), 'utf8'));
-    } finally {
-      rmSync(out, { recursive: true, force: true });
-    }
+    const cli = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--resample', 'loo', '--rule', 'lowest', '--df', '3..15']);
+    assert.equal(table, cli.table);
+    assert.equal(record, cli.record);
     const rec = JSON.parse(record) as { selection: { df: number } };
     assert.equal(rec.selection.df, expected().mcycle.chosenDf);
     // No temporary file is left next to the outputs.
     assert.deepEqual(readdirSync(folder().fsPath).filter((f) => f.includes('knotwise-tmp')), []);
+  });
+
+  it('every grid form of the command line works from the settings: an automatic step and a stepped grid save what the command line writes', async function () {
+    try {
+      for (const grid of ['auto:0.5', '5:55:step=2.5']) {
+        await setSetting('table.grid', grid);
+        const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('mcycle.csv'), { ...MCYCLE, replaceForeignFiles: 'no', rule: { kind: 'lowest' } })) as RunSummary;
+        assert.equal(saved.status, 'done', `${grid}: ${saved.message}`);
+        const cli = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--resample', 'loo', '--rule', 'lowest', '--df', '3..15', '--grid', grid]);
+        assert.equal(await text(file('mcycle.curve.csv')), cli.table, grid);
+        assert.equal(await text(file('mcycle.fit.json')), cli.record, grid);
+      }
+      const rec = JSON.parse(await text(file('mcycle.fit.json'))) as { spec: { grid: { kind: string } }; table: { grid: { kind: string; step: number } } };
+      assert.equal(rec.spec.grid.kind, 'step');
+    } finally {
+      await setSetting('table.grid', undefined);
+    }
+  });
+
+  it('a setting change re-renders open panels where it matters: the rule re-renders the same run, resampling reruns it, table settings do neither', async function () {
+    const uri = file('mcycle.csv');
+    const run = (await vscode.commands.executeCommand('knotwise.tuneCurve', uri, MCYCLE)) as RunSummary;
+    assert.equal(run.status, 'done', run.message);
+    const s0 = api().panelState(uri);
+    assert.ok(s0, 'the panel shows a result');
+    assert.deepEqual(s0.payload.rule, { kind: 'lowest' });
+    try {
+      // A table setting matters only when saving; the rule changes the panel's choice.
+      await setSetting('table.significantDigits', 6);
+      await setSetting('rule', '1se');
+      const s1 = await waitFor('the panel to show the one-SE rule', () => {
+        const s = api().panelState(uri);
+        return s && s.posted > s0.posted ? s : undefined;
+      });
+      assert.equal(s1.posted, s0.posted + 1, 'one re-render, for the rule');
+      assert.equal(s1.analysed, s0.analysed, 'the rule does not rerun the analysis');
+      assert.deepEqual(s1.payload.rule, { kind: '1se' });
+      assert.notEqual(s1.payload.runId, s0.payload.runId, 'a new view, so the panel starts from the new rule');
+      assert.equal(s1.payload.details[0]?.df, selectDf(s0.payload.candidates, { kind: '1se' }, s0.payload.metric).df);
+      // Resampling changes the analysis: it runs again.
+      await setSetting('resampling', 'cv:5');
+      const s2 = await waitFor('the rerun with 5-fold cross-validation', () => {
+        const s = api().panelState(uri);
+        return s && s.analysed > s1.analysed && s.posted > s1.posted ? s : undefined;
+      });
+      assert.match(s2.payload.resampleWords, /^5-fold cross-validation/);
+    } finally {
+      // Panels closed first, so restoring the settings reruns nothing in the background.
+      await closeEverything();
+      await setSetting('table.significantDigits', undefined);
+      await setSetting('rule', 'lowest');
+      await setSetting('resampling', 'loo');
+    }
+  });
+
+  it('outcome, trials and robust settings reach the analysis: binomial MASS::menarche and robust MASS::mcycle match R and save what the command line writes', async function () {
+    try {
+      await setSetting('outcome', 'binomial');
+      await setSetting('candidates', '3,5');
+      await setSetting('resampling', 'cv:5');
+      const menarche = file('menarche.csv');
+      const bin = (await vscode.commands.executeCommand('knotwise.tuneCurve', menarche, { columns: { x: 'Age', y: 'Menarche', trials: 'Total' } })) as RunSummary;
+      assert.equal(bin.status, 'done', bin.message);
+      assert.equal(bin.model?.outcome, 'binomial');
+      assert.equal(bin.model?.trials, 'Total');
+      assert.equal(bin.model?.converged, true);
+      const glm = physics().glm.find((c) => c.dataset === 'menarche' && c.df === bin.chosenDf);
+      assert.ok(glm, `physics.json has menarche at df ${bin.chosenDf}`);
+      // Reference: R glm(cbind(y, trials - y) ~ ns(x, df = k - 1), family = binomial), physics.json.
+      close(`deviance (${glm.rCall})`, bin.model?.deviance, glm.deviance, 1e-7);
+      const shown = api().panelState(menarche)?.payload;
+      assert.equal(shown?.model.trialsLabel, 'Total');
+      assert.equal(shown?.metric, 'deviance');
+      close('deviance in the panel (7 significant digits)', shown?.details[0]?.model?.glm?.deviance, glm.deviance, 1e-6);
+      const savedBin = (await vscode.commands.executeCommand('knotwise.saveCurveTable', menarche, { replaceForeignFiles: 'no' })) as RunSummary;
+      assert.equal(savedBin.status, 'done', savedBin.message);
+      const cliBin = cliOutputs('menarche.csv', ['--x', 'Age', '--y', 'Menarche', '--family', 'binomial', '--trials', 'Total', '--df', '3,5', '--resample', 'cv:5', '--rule', 'lowest']);
+      assert.equal(await text(file('menarche.curve.csv')), cliBin.table);
+      assert.equal(await text(file('menarche.fit.json')), cliBin.record);
+
+      await closeEverything();
+      await setSetting('outcome', undefined);
+      await setSetting('robust', true);
+      await setSetting('candidates', '5,8');
+      const rob = (await vscode.commands.executeCommand('knotwise.tuneCurve', file('mcycle.csv'), MCYCLE)) as RunSummary;
+      assert.equal(rob.status, 'done', rob.message);
+      assert.equal(rob.model?.robustK, 1.345);
+      const rlm = physics().rlm.find((c) => c.dataset === 'mcycle' && c.df === rob.chosenDf);
+      assert.ok(rlm, `physics.json has the robust mcycle fit at df ${rob.chosenDf}`);
+      // Reference: MASS::rlm(y ~ ns(x, df = k - 1), psi = psi.huber), physics.json; rows are CSV lines 2...
+      close(`robust scale (${rlm.rCall})`, rob.model?.scale, rlm.scale, 1e-7);
+      const rDown = new Set(rlm.weights.flatMap((w, i) => (w < 1 - 1e-6 ? [i + 2] : [])));
+      assert.ok((rob.model?.downweightedLines ?? []).length === rDown.size && (rob.model?.downweightedLines ?? []).every((l) => rDown.has(l)), `down-weighted lines ${rob.model?.downweightedLines?.join(', ')}`);
+      const savedRob = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('mcycle.csv'), { replaceForeignFiles: 'no' })) as RunSummary;
+      assert.equal(savedRob.status, 'done', savedRob.message);
+      const cliRob = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--robust', '--df', '5,8', '--resample', 'cv:5', '--rule', 'lowest']);
+      assert.equal(await text(file('mcycle.curve.csv')), cliRob.table);
+      assert.equal(await text(file('mcycle.fit.json')), cliRob.record);
+    } finally {
+      await closeEverything();
+      await setSetting('outcome', undefined);
+      await setSetting('robust', undefined);
+      await setSetting('candidates', '3..15');
+      await setSetting('resampling', 'loo');
+    }
+  });
+
+  it('what the editor saves passes `knotwise check`, also under other output names and with a df chosen by hand', async function () {
+    try {
+      await setSetting('output.tableName', '${name}.table.csv');
+      await setSetting('output.recordName', '${name}.record.json');
+      const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('cars.csv'), { columns: { x: 'speed', y: 'dist' }, replaceForeignFiles: 'no', rule: { kind: 'manual', df: 5 } })) as RunSummary;
+      assert.equal(saved.status, 'done', saved.message);
+      assert.equal(saved.chosenDf, 5);
+      const rec = JSON.parse(await text(file('cars.record.json'))) as { table: { file: string }; selection: { df: number; rule: string } };
+      assert.equal(rec.table.file, 'cars.table.csv');
+      assert.deepEqual([rec.selection.df, rec.selection.rule], [5, 'df:5']);
+      // The command line rebuilds the table from the data and the record and finds it current.
+      const out = execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'check', file('cars.record.json').fsPath], { encoding: 'utf8' });
+      assert.match(out, /^current /m);
+    } finally {
+      await setSetting('output.tableName', undefined);
+      await setSetting('output.recordName', undefined);
+      for (const f of ['cars.table.csv', 'cars.record.json']) await vscode.workspace.fs.delete(file(f)).then(undefined, () => undefined);
+    }
   });
 
   it('a file Knotwise did not write is replaced only when the person agrees', async function () {

@@ -1,12 +1,12 @@
 /**
  * The settings snapshot: defaults equal the command line's documented defaults
- * (core/node/cli.ts usage text: natural, boot:50, 1se, seed 1, 8 digits), values outside
- * their limits fall back with a message, and the contributed schema in package.json has
- * the same defaults.
+ * (core/node/cli.ts usage text: natural, boot:50, 1se, seed 1, 8 digits, least squares,
+ * Huber k = 1.345), values outside their limits fall back with a message, and the
+ * contributed schema in package.json has the same defaults.
  */
 import assert from 'node:assert/strict';
 import * as vscode from 'vscode';
-import { DEFAULTS, readSettings } from '../../../extension/settings';
+import { analysisOptions, DEFAULTS, modelOptions, readSettings } from '../../../extension/settings';
 
 describe('settings snapshot (readSettings)', function () {
   it('readSettings() with nothing set gives the command line defaults', function () {
@@ -18,7 +18,46 @@ describe('settings snapshot (readSettings)', function () {
     assert.equal(s.digits, 8);
     assert.equal(s.candidates, undefined);
     assert.equal(s.grid, undefined);
+    assert.deepEqual(s.model, { outcome: 'gaussian', shape: [], robustK: undefined });
     assert.deepEqual(s.problems, []);
+  });
+
+  it('readSettings() takes every grid form of the command line (core/table/grid.ts parseGrid)', function () {
+    const forms: Record<string, unknown> = {
+      '0:10:21': { kind: 'count', start: 0, stop: 10, count: 21 },
+      '0:10:step=0.5': { kind: 'step', start: 0, stop: 10, step: 0.5 },
+      data: { kind: 'data' },
+      '1,2.5,4': { kind: 'list', values: [1, 2.5, 4] },
+      'auto:0.01': { kind: 'auto', tolerance: 0.01 },
+      '0:10:auto=0.01': { kind: 'auto', tolerance: 0.01, start: 0, stop: 10 },
+    };
+    for (const [text, grid] of Object.entries(forms)) {
+      const s = readSettings((k) => (k === 'table.grid' ? text : undefined));
+      assert.deepEqual(s.grid, grid, text);
+      assert.deepEqual(s.problems, [], text);
+    }
+    const bad = readSettings((k) => (k === 'table.grid' ? 'auto:-1' : undefined));
+    assert.equal(bad.grid, undefined);
+    assert.match(bad.problems.join(), /knotwise\.table\.grid: .*tolerance/);
+  });
+
+  it('model settings become the command line\'s model options; combinations the curve family cannot fit are dropped with a message', function () {
+    const raw: Record<string, unknown> = { outcome: 'poisson', shape: ['convex', 'increasing'] };
+    const s = readSettings((k) => raw[k]);
+    assert.deepEqual(s.model, { outcome: 'poisson', shape: ['increasing', 'convex'], robustK: undefined });
+    assert.deepEqual(analysisOptions(s), { family: 'natural', candidates: undefined, resample: { kind: 'boot', resamples: 50 }, rule: { kind: '1se' }, seed: 1, holdout: undefined, outcome: 'poisson', shape: ['increasing', 'convex'] });
+    // --robust is Huber with k = 1.345 (core/fit/robust.ts HUBER_K); another k is --huber-k.
+    const read = (values: Record<string, unknown>) => readSettings((k) => values[k]);
+    assert.deepEqual(modelOptions(read({ robust: true }).model), { robust: true });
+    assert.deepEqual(modelOptions(read({ robust: true, huberK: 2 }).model), { robust: { k: 2 } });
+    // The smoothing spline fits least squares only; robust fitting needs a Gaussian outcome; opposite shapes are refused.
+    const smooth = read({ curveFamily: 'smooth', outcome: 'binomial', shape: ['convex'] });
+    assert.deepEqual(smooth.model, { outcome: 'gaussian', shape: [], robustK: undefined });
+    assert.equal(smooth.problems.length, 2, smooth.problems.join('\n'));
+    const mixed = read({ outcome: 'poisson', robust: true, shape: ['increasing', 'decreasing'], huberK: -1 });
+    assert.deepEqual(mixed.model, { outcome: 'poisson', shape: [], robustK: undefined });
+    assert.equal(mixed.problems.length, 3, mixed.problems.join('\n'));
+    assert.ok(mixed.problems.some((p) => p.startsWith('knotwise.robust: ')));
   });
 
   it('readSettings() refuses values outside their limits and says which', function () {
@@ -44,6 +83,10 @@ describe('settings snapshot (readSettings)', function () {
     const props = ext.packageJSON.contributes.configuration.properties as Record<string, { default: unknown }>;
     const expected: Record<string, unknown> = {
       'knotwise.curveFamily': DEFAULTS.family,
+      'knotwise.outcome': DEFAULTS.outcome,
+      'knotwise.shape': DEFAULTS.shape,
+      'knotwise.robust': DEFAULTS.robust,
+      'knotwise.huberK': DEFAULTS.huberK,
       'knotwise.candidates': DEFAULTS.candidates,
       'knotwise.resampling': DEFAULTS.resampling,
       'knotwise.rule': DEFAULTS.rule,

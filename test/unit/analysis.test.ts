@@ -1,0 +1,66 @@
+/**
+ * Tests of core/analysis.ts beyond tuning itself: the rows an analysis tuned (`data`) and
+ * held out (`heldOut`), and withRule, which must give what a fresh analyse with that rule
+ * gives (selection, chosen fit, residual checks, held-out check), without tuning again.
+ * Data: datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R).
+ */
+import { strict as assert } from 'node:assert';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { analyse, withRule } from '../../core/analysis';
+import type { AnalysisOptions } from '../../core/analysisTypes';
+import type { RuleSpec } from '../../core/tune/types';
+import type { XYData } from '../../core/types';
+
+function cars(): XYData {
+  const rows = readFileSync(join(__dirname, '..', 'e2e', 'fixtures', 'cars.csv'), 'utf8').trim().split('\n').slice(1);
+  return {
+    x: Float64Array.from(rows, (r) => Number(r.split(',')[0])),
+    y: Float64Array.from(rows, (r) => Number(r.split(',')[1])),
+    lines: Int32Array.from(rows, (_, i) => i + 2),
+  };
+}
+
+const OPTIONS: AnalysisOptions = { family: 'natural', candidates: [2, 3, 4, 5, 6, 7], resample: { kind: 'cv', folds: 5, repeats: 2 }, rule: { kind: '1se' }, seed: 1, holdout: 0.2 };
+
+describe('analyse and withRule', () => {
+  const data = cars();
+
+  it('analyse: `data` holds the tuned rows and `heldOut` the rest, each row once, in input order', async () => {
+    const a = await analyse(data, OPTIONS);
+    const held = a.heldOut as XYData;
+    assert.ok(held, 'rows were held out');
+    assert.equal(a.data.x.length, a.n);
+    assert.equal(a.n + held.x.length, data.x.length);
+    const lines = [...(a.data.lines as Int32Array), ...(held.lines as Int32Array)].sort((p, q) => p - q);
+    assert.deepEqual(lines, Array.from(data.lines as Int32Array));
+    const tuned = Array.from(a.data.lines as Int32Array);
+    assert.deepEqual(tuned, [...tuned].sort((p, q) => p - q), 'input order kept');
+    // Every fit's per-row arrays follow these rows.
+    assert.equal(a.chosen.fitted.length, a.data.x.length);
+    const none = await analyse(data, { ...OPTIONS, holdout: undefined });
+    assert.equal(none.data, data);
+    assert.equal(none.heldOut, undefined);
+  });
+
+  for (const rule of [{ kind: 'lowest' }, { kind: 'tol', percent: 5 }, { kind: 'manual', df: 6 }, { kind: '1se' }] as RuleSpec[]) {
+    it(`withRule(analysis, ${JSON.stringify(rule)}) equals analyse with that rule (selection, fit, checks, held-out check)`, async () => {
+      const base = await analyse(data, OPTIONS);
+      const fresh = await analyse(data, { ...OPTIONS, rule });
+      const re = withRule(base, rule);
+      // Precondition for the df chosen by hand: it differs from the base choice, so the fit, checks and held-out check are redone.
+      if (rule.kind === 'manual') assert.notEqual(base.chosen.df, rule.df);
+      assert.deepEqual(re.tune.selected, fresh.tune.selected);
+      assert.equal(re.chosen.df, fresh.chosen.df);
+      assert.deepEqual(Array.from(re.chosen.fitted), Array.from(fresh.chosen.fitted));
+      assert.deepEqual(re.diagnostics, fresh.diagnostics);
+      assert.deepEqual(re.tune.holdout, fresh.tune.holdout);
+      assert.deepEqual(re.options, fresh.options);
+    });
+  }
+
+  it('withRule refuses a df by hand that is no candidate', async () => {
+    const base = await analyse(data, { ...OPTIONS, holdout: undefined });
+    assert.throws(() => withRule(base, { kind: 'manual', df: 11 }));
+  });
+});

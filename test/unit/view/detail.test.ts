@@ -1,0 +1,128 @@
+/**
+ * Tests of the panel's residual details (core/view/detail.ts): standardised residuals as R
+ * standardises them, deviance residuals for counts, and the model report of Poisson and
+ * robust fits with down-weighted rows by line. References: test/reference/fixtures/fits.json
+ * (test/reference/r/fits.R: lm with splines::ns; R's rstandard.lm is
+ * sqrt(w) r / (sigma sqrt(1 - h))) and physics.json (test/reference/r/physics.R: glm with
+ * family poisson, whose rstandard.glm is the deviance residual / sqrt(1 - h) with dispersion
+ * 1; MASS::rlm with psi.huber).
+ */
+import { strict as assert } from 'node:assert';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { fitCurve } from '../../../core/fit/index';
+import type { Cloud } from '../../../core/protocol';
+import type { FitSpec, XYData } from '../../../core/types';
+import { fitDetail, MAX_DOWNWEIGHTED_LISTED, modelReportView } from '../../../core/view/detail';
+
+const FIXTURES = join(__dirname, '..', '..', 'reference', 'fixtures');
+
+interface Dataset {
+  readonly x: number[];
+  readonly y: number[];
+  readonly w?: number[];
+}
+interface FitsCase {
+  readonly name: string;
+  readonly dataset: string;
+  readonly family: 'natural' | 'poly';
+  readonly df: number;
+  readonly residuals: number[];
+  readonly hat: number[];
+  readonly sigma: number;
+}
+interface GlmCase {
+  readonly name: string;
+  readonly dataset: string;
+  readonly df: number;
+  readonly deviance: number;
+  readonly devianceResiduals: number[];
+  readonly hat: number[];
+}
+interface RlmCase {
+  readonly name: string;
+  readonly dataset: string;
+  readonly df: number;
+  readonly weights: number[];
+  readonly scale: number;
+}
+
+const fits = JSON.parse(readFileSync(join(FIXTURES, 'fits.json'), 'utf8')) as { datasets: Record<string, Dataset>; cases: FitsCase[] };
+const physics = JSON.parse(readFileSync(join(FIXTURES, 'physics.json'), 'utf8')) as { datasets: Record<string, Dataset>; glm: GlmCase[]; rlm: RlmCase[] };
+
+function data(d: Dataset): XYData {
+  return { x: Float64Array.from(d.x), y: Float64Array.from(d.y), w: d.w ? Float64Array.from(d.w) : undefined, lines: Int32Array.from(d.x, (_, i) => i + 2) };
+}
+
+/** The panel rounds to 7 significant digits (core/view/round.ts); fits agree with R to about 1e-8 relative. */
+function closeAll(what: string, actual: readonly number[], expected: readonly number[], rel = 2e-6): void {
+  assert.equal(actual.length, expected.length, `${what}: length`);
+  for (let i = 0; i < expected.length; i++) {
+    const e = expected[i] as number;
+    const a = actual[i] as number;
+    assert.ok(Math.abs(a - e) <= rel * Math.max(1, Math.abs(e)), `${what}[${i}]: ${a} vs R ${e}`);
+  }
+}
+
+const sorted = (v: readonly number[]): number[] => [...v].sort((a, b) => a - b);
+const pointsY = (c: Cloud): number[] => (c.kind === 'points' ? [...c.y] : []);
+
+describe('fitDetail', () => {
+  for (const name of ['mcycle natural df=5', 'cars_w natural df=4']) {
+    it(`fitDetail(${name}): the normal quantile plot shows R's rstandard and the residual figures reading minus fit`, () => {
+      const c = fits.cases.find((k) => k.name === name) as FitsCase;
+      const d = data(fits.datasets[c.dataset] as Dataset);
+      const detail = fitDetail(fitCurve(d, { family: c.family, df: c.df }), d);
+      const w = d.w;
+      const rstandard = c.residuals.map((r, i) => (r * Math.sqrt(w ? (w[i] as number) : 1)) / (c.sigma * Math.sqrt(1 - (c.hat[i] as number))));
+      closeAll(`${name} standardised residuals`, detail.qq.sample, sorted(rstandard));
+      assert.equal(detail.residualKind, 'response');
+      assert.equal(detail.residualsVsX.kind, 'points');
+      closeAll(`${name} residuals`, pointsY(detail.residualsVsX), c.residuals, 1e-6);
+      assert.equal(detail.model, undefined, 'plain least squares has no model report');
+    });
+  }
+
+  it("fitDetail(discoveries Poisson df=5): deviance residuals, standardised as R's rstandard.glm, and the deviance in the model report", () => {
+    const c = physics.glm.find((k) => k.name === 'discoveries poisson df=5') as GlmCase;
+    const d = data(physics.datasets.discoveries as Dataset);
+    const spec: FitSpec = { family: 'natural', df: c.df, outcome: 'poisson' };
+    const detail = fitDetail(fitCurve(d, spec), d);
+    assert.equal(detail.residualKind, 'deviance');
+    closeAll('deviance residuals', pointsY(detail.residualsVsX), c.devianceResiduals, 1e-6);
+    closeAll('rstandard.glm', detail.qq.sample, sorted(c.devianceResiduals.map((r, i) => r / Math.sqrt(1 - (c.hat[i] as number)))));
+    const m = detail.model;
+    assert.ok(m?.glm, 'Poisson fits report the deviance');
+    closeAll('deviance', [m.glm.deviance], [c.deviance]);
+    assert.equal(m.converged, true);
+    assert.ok(m.lines.some((l) => l.startsWith('Deviance ')));
+  });
+
+  it('modelReportView(mcycle robust df=8): down-weighted rows by CSV line, lowest weight first, as MASS::rlm weights them', () => {
+    const c = physics.rlm.find((k) => k.name === 'mcycle huber df=8') as RlmCase;
+    const d = data(physics.datasets.mcycle as Dataset);
+    const view = modelReportView(fitCurve(d, { family: 'natural', df: c.df, robust: true }), d);
+    const r = view?.robust;
+    assert.ok(r, 'robust fits list their down-weighted rows');
+    // Rows with R weight below 1 (weights within 1e-6 of 1 count as 1), CSV line = index + 2.
+    const down = c.weights.flatMap((w, i) => (w < 1 - 1e-6 ? [{ line: i + 2, w }] : [])).sort((a, b) => a.w - b.w);
+    assert.equal(r.total, down.length);
+    assert.equal(r.rows.length, Math.min(down.length, MAX_DOWNWEIGHTED_LISTED));
+    assert.deepEqual(r.rows.map((row) => row.line), down.slice(0, r.rows.length).map((x) => x.line));
+    closeAll('weights', r.rows.map((row) => row.weight), down.slice(0, r.rows.length).map((x) => x.w), 1e-3);
+    closeAll('scale', [r.scale], [c.scale]);
+    for (const row of r.rows) {
+      assert.equal(row.x, (physics.datasets.mcycle as Dataset).x[row.line - 2]);
+      assert.equal(row.y, (physics.datasets.mcycle as Dataset).y[row.line - 2]);
+    }
+  });
+
+  it('modelReportView: a shape-constrained fit reports its active constraints; plain least squares has no report', () => {
+    const d = data(fits.datasets.cars as Dataset);
+    const view = modelReportView(fitCurve(d, { family: 'natural', df: 5, shape: ['increasing'] }), d);
+    assert.ok(view?.constraints, 'constraints reported');
+    assert.ok(view.constraints.total > 0 && view.constraints.active <= view.constraints.total);
+    assert.ok(view.lines.some((l) => l.startsWith('Shape increasing: ')));
+    assert.equal(modelReportView(fitCurve(d, { family: 'natural', df: 5 }), d), undefined);
+  });
+});

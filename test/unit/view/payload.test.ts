@@ -1,0 +1,82 @@
+/**
+ * Tests of the panel message (core/view/payload.ts): Poisson candidates keep the deviance
+ * they were tuned on, only the starting rule's df gets its residual details up front, and
+ * the model options and what each curve family supports are described. Data:
+ * datasets::discoveries (inventions per year 1860-1959) and MASS::mcycle (Silverman 1985),
+ * both shipped with R, as stored in test/reference/fixtures/physics.json.
+ */
+import { strict as assert } from 'node:assert';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { analyse } from '../../../core/analysis';
+import type { AnalysisOptions } from '../../../core/analysisTypes';
+import type { FitDetail } from '../../../core/protocol';
+import { selectDf } from '../../../core/tune/rules';
+import type { XYData } from '../../../core/types';
+import { buildPanelPayload, detailFor, modelView, startSelection } from '../../../core/view/payload';
+
+const physics = JSON.parse(readFileSync(join(__dirname, '..', '..', 'reference', 'fixtures', 'physics.json'), 'utf8')) as { datasets: Record<string, { x: number[]; y: number[] }> };
+
+function data(name: string): XYData {
+  const d = physics.datasets[name] as { x: number[]; y: number[] };
+  return { x: Float64Array.from(d.x), y: Float64Array.from(d.y), lines: Int32Array.from(d.x, (_, i) => i + 2) };
+}
+
+const base = { runId: 7, source: { fileName: 'd.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 };
+
+describe('buildPanelPayload', () => {
+  const poisson: AnalysisOptions = { family: 'natural', candidates: [3, 5, 7], resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: '1se' }, seed: 1, outcome: 'poisson' };
+
+  it('buildPanelPayload keeps the deviance of Poisson candidates, so the panel chooses as the analysis did', async () => {
+    const a = await analyse(data('discoveries'), poisson);
+    const p = buildPanelPayload({ ...base, analysis: a });
+    assert.equal(p.metric, 'deviance');
+    for (const c of p.candidates) {
+      const orig = a.tune.candidates.find((k) => k.df === c.df);
+      assert.equal(c.errors.deviance?.mean, orig?.errors.deviance?.mean);
+      assert.equal(c.errors.deviance?.se, orig?.errors.deviance?.se);
+      assert.deepEqual(c.errors.deviance?.values, [], 'per-resample values are left out');
+    }
+    for (const rule of [{ kind: '1se' }, { kind: 'lowest' }, { kind: 'tol', percent: 5 }] as const) {
+      assert.equal(selectDf(p.candidates, rule, p.metric).df, selectDf(a.tune.candidates, rule, a.tune.metric).df, rule.kind);
+    }
+    assert.equal(p.model.outcome, 'poisson');
+    assert.equal(p.model.link, 'log');
+    assert.match(p.model.words, /^Poisson counts \(log link\)/);
+  });
+
+  it("buildPanelPayload sends the residual details of the starting rule's df only; others come from detailFor", async () => {
+    const a = await analyse(data('mcycle'), { family: 'natural', candidates: [4, 6, 8, 10, 12], resample: { kind: 'cv', folds: 5, repeats: 2 }, rule: { kind: '1se' }, seed: 1 });
+    const p = buildPanelPayload({ ...base, analysis: a });
+    assert.deepEqual(p.details.map((d) => d.df), [a.chosen.df]);
+    assert.deepEqual(p.rule, a.tune.selected.rule);
+    // Precondition: the lowest-error rule chooses another df on these data.
+    const lowest = selectDf(a.tune.candidates, { kind: 'lowest' }, a.tune.metric).df;
+    assert.notEqual(lowest, a.chosen.df);
+    const asked: number[] = [];
+    const cache = (df: number): FitDetail | undefined => {
+      asked.push(df);
+      return detailFor(a, df);
+    };
+    const q = buildPanelPayload({ ...base, analysis: a, rule: { kind: 'lowest' }, detail: cache });
+    assert.deepEqual(asked, [lowest], 'the host cache is asked for the one df shown');
+    assert.deepEqual(q.details.map((d) => d.df), [lowest]);
+    assert.deepEqual(q.rule, { kind: 'lowest' });
+    assert.ok((q.details[0]?.checks.length ?? 0) > 0, 'another df gets its own residual checks');
+    // A df by hand that is no candidate falls back to the analysis's own rule.
+    assert.deepEqual(startSelection(a, { kind: 'manual', df: 5 }), a.tune.selected);
+    assert.equal(detailFor(a, 5), undefined);
+  });
+
+  it('modelView says what each curve family supports (core/fit/model.ts resolveModel)', async () => {
+    const d = data('mcycle');
+    const opts = { candidates: [4, 5], resample: { kind: 'gcv' as const }, rule: { kind: 'lowest' as const }, seed: 1 };
+    const natural = modelView(await analyse(d, { family: 'natural', ...opts, robust: true }), undefined, true);
+    assert.deepEqual(natural.supports, { outcomes: ['gaussian', 'poisson', 'binomial'], shapes: true, robust: true });
+    assert.equal(natural.robust, true);
+    assert.equal(natural.robustK, 1.345);
+    assert.equal(natural.fromPanel, true);
+    assert.deepEqual(modelView(await analyse(d, { family: 'poly', ...opts }), undefined, false).supports, { outcomes: ['gaussian', 'poisson', 'binomial'], shapes: false, robust: true });
+    assert.deepEqual(modelView(await analyse(d, { family: 'smooth', ...opts }), undefined, false).supports, { outcomes: ['gaussian'], shapes: false, robust: false });
+  });
+});
