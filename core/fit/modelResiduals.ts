@@ -27,6 +27,12 @@ export interface CheckResiduals {
 export function checkResiduals(fit: FitResult, w: Float64Array | undefined): CheckResiduals {
   const glm = fit.model?.glm;
   if (glm) return { residuals: glm.devianceResiduals, kind: 'deviance', gaussianChecks: false, scale: 1 };
-  const r = Float64Array.from(fit.residuals, (v, i) => v * (w ? Math.sqrt(w[i] as number) : 1));
+  // Unweighted fits examine the residuals as they are; a plain loop scales weighted ones
+  // (Float64Array.from with a mapping function is several times slower at a million rows).
+  let r = fit.residuals;
+  if (w) {
+    r = new Float64Array(fit.residuals.length);
+    for (let i = 0; i < r.length; i++) r[i] = (fit.residuals[i] as number) * Math.sqrt(w[i] as number);
+  }
   return { residuals: r, kind: 'weighted', gaussianChecks: true, scale: fit.sigma };
 }
