@@ -19,6 +19,7 @@ import { sig } from '../tune/format';
 import { isPlainModel, parseOutcome, resolveModel } from '../fit/model';
 import { modelReportJson, modelSpecJson } from '../fit/modelJson';
 import { parseShapeList } from '../fit/shape';
+import { MAX_SHAPED_SMOOTHING_DISTINCT } from '../fit/shapedSmoothing';
 import type { FitResult, ModelOptions } from '../types';
 import { VERSION } from '../version';
 import { DEFAULT_DIGITS } from '../table/formatCsv';
@@ -37,7 +38,8 @@ Options:
                             proportions or 0/1 outcomes (logit link); fitted by IRLS
   --trials <column>         binomial: number of trials per row (y is then the successes)
   --shape <list>            comma list of increasing, decreasing, nonnegative, convex, concave:
-                            guaranteed everywhere in the data range (natural spline only)
+                            guaranteed everywhere in the data range (natural spline; smoothing
+                            spline up to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x)
   --robust                  Huber M-estimation (k = 1.345), down-weighted rows listed by line
   --huber-k <k>             Huber tuning constant (implies --robust)
   --model natural|poly|smooth   curve family (default natural)

@@ -173,9 +173,8 @@ describe('fitCurve with shape constraints (natural spline)', () => {
     assert.ok(b.piLower.some((v) => v === 0), 'some prediction limit was raised to 0 (so the test is not vacuous)');
   });
 
-  it('shape constraints are refused for the polynomial and the smoothing spline with the reason', () => {
+  it('shape constraints are refused for the polynomial with the reason (the smoothing spline: test/unit/fit/shapedSmoothing.test.ts)', () => {
     const d = noisy(1, 30, (x) => x, 0.1);
     assert.throws(() => fitCurve(d, { family: 'poly', df: 3, shape: ['increasing'] }), /shape constraints need the natural spline/);
-    assert.throws(() => fitCurve(d, { family: 'smooth', df: 4, shape: ['convex'] }), /smoothing spline supports only least squares/);
   });
 });

@@ -116,7 +116,7 @@ describe('knotwise fit --family, --trials, --shape, --robust', () => {
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--shape', 'wiggly'), /unknown shape "wiggly"/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--family', 'gamma'), /unknown outcome family "gamma"/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--family', 'poisson', '--robust'), /Gaussian outcome only/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--model', 'smooth', '--shape', 'convex'), /smoothing spline supports only least squares/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--model', 'smooth', '--robust'), /smoothing spline supports only least squares/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--huber-k', '0'), /--huber-k must be a positive number/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--family', 'binomial', '--df', '3'), /cars\.csv, line 2, column "dist": a binomial outcome without a trials column must be a proportion/);
   });

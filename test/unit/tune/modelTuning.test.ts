@@ -144,7 +144,7 @@ describe('tuneCurve with outcome families, shapes and robust fitting', () => {
     const base = { family: 'natural' as const, rule: { kind: '1se' as const }, seed: 1 };
     await assert.rejects(tuneCurve(p, { ...base, robust: true, resample: { kind: 'loo' } }), (e: unknown) => e instanceof InputError && /exact leave-one-out needs a plain least-squares fit/.test(e.message));
     await assert.rejects(tuneCurve(p, { ...base, metric: 'deviance', resample: { kind: 'cv', folds: 5, repeats: 1 } }), /mean deviance is the error of Poisson and binomial outcomes/);
-    await assert.rejects(tuneCurve(p, { ...base, family: 'smooth', shape: ['convex'], resample: { kind: 'cv', folds: 5, repeats: 1 } }), /smoothing spline supports only least squares/);
+    await assert.rejects(tuneCurve(p, { ...base, family: 'smooth', robust: true, resample: { kind: 'cv', folds: 5, repeats: 1 } }), /smoothing spline supports only least squares/);
   });
 
   it('worker threads give the same Poisson resample errors as the inline runner', async function () {

@@ -77,6 +77,6 @@ describe('buildPanelPayload', () => {
     assert.equal(natural.robustK, 1.345);
     assert.equal(natural.fromPanel, true);
     assert.deepEqual(modelView(await analyse(d, { family: 'poly', ...opts }), undefined, false).supports, { outcomes: ['gaussian', 'poisson', 'binomial'], shapes: false, robust: true });
-    assert.deepEqual(modelView(await analyse(d, { family: 'smooth', ...opts }), undefined, false).supports, { outcomes: ['gaussian'], shapes: false, robust: false });
+    assert.deepEqual(modelView(await analyse(d, { family: 'smooth', ...opts }), undefined, false).supports, { outcomes: ['gaussian'], shapes: true, robust: false });
   });
 });
