@@ -1,3 +1,4 @@
+import { trainingRows } from './trainingRows';
 import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
 import { OrthoPolyBasis } from '../basis/orthoPoly';
 import type { RowBasis } from '../basis/rowBasis';
@@ -341,22 +342,8 @@ function smoothTrainer(x: Float64Array, yc: Float64Array, lambda: number, df: nu
   let curve: { value(x: number): number } | undefined;
   return {
     train(weights: Float64Array): boolean {
-      let m = 0;
-      for (let i = 0; i < weights.length; i++) if ((weights[i] as number) > 0) m++;
-      const sx = new Float64Array(m);
-      const sy = new Float64Array(m);
-      const sw = new Float64Array(m);
-      m = 0;
-      for (let i = 0; i < weights.length; i++) {
-        const wi = weights[i] as number;
-        if (wi > 0) {
-          sx[m] = x[i] as number;
-          sy[m] = yc[i] as number;
-          sw[m++] = wi;
-        }
-      }
       try {
-        curve = smoothingSplineAtLambda({ x: sx, y: sy, w: sw }, lambda).curve;
+        curve = smoothingSplineAtLambda(trainingRows(x, yc, weights), lambda).curve;
         return true;
       } catch (e) {
         if (e instanceof FitError) return false;

@@ -2,6 +2,7 @@
  * Resample trainers for fits with an outcome family, shape constraints or Huber weights:
  * the resampling engine's way of refitting such a candidate on weighted rows.
  */
+import { trainingRows } from './trainingRows';
 import { FitError } from '../errors';
 import { CachedRows } from '../fit/cachedRows';
 import { irls, outcomeFamily, type OutcomeFamily } from '../fit/glm';
@@ -94,22 +95,8 @@ export function shapedSmoothTrainer(x: Float64Array, y: Float64Array, lambda: nu
   return {
     family: undefined,
     train(weights: Float64Array): boolean {
-      let m = 0;
-      for (let i = 0; i < weights.length; i++) if ((weights[i] as number) > 0) m++;
-      const sx = new Float64Array(m);
-      const sy = new Float64Array(m);
-      const sw = new Float64Array(m);
-      m = 0;
-      for (let i = 0; i < weights.length; i++) {
-        const wi = weights[i] as number;
-        if (wi > 0) {
-          sx[m] = x[i] as number;
-          sy[m] = y[i] as number;
-          sw[m++] = wi;
-        }
-      }
       try {
-        curve = shapedSmoothingSplineAtLambda({ x: sx, y: sy, w: sw }, lambda, shapes).curve;
+        curve = shapedSmoothingSplineAtLambda(trainingRows(x, y, weights), lambda, shapes).curve;
         return true;
       } catch (e) {
         if (e instanceof FitError) return false;
