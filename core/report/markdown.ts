@@ -146,6 +146,31 @@ function dataSection(input: ReportInput): string[] {
 }
 
 /**
+ * What the fit assumed beyond least squares: the outcome family and link, the shape
+ * constraints with how many are active, and the robust fit with the rows it down-weighted
+ * by CSV line. Empty for a plain least-squares fit.
+ */
+function modelSection(fit: FitResult): string[] {
+  const m = fit.model;
+  if (!m) return [];
+  const out = ['## Model', ''];
+  const outcome = m.outcome === 'gaussian' ? 'Gaussian (least squares)' : `${m.outcome === 'poisson' ? 'Poisson' : 'binomial'} (${m.link} link), fitted by iteratively reweighted least squares`;
+  out.push(`- Outcome: ${outcome}; ${m.converged ? `converged in ${m.iterations} iteration${m.iterations === 1 ? '' : 's'}` : `**did not converge** in ${m.iterations} iterations`}.`);
+  if (m.glm) out.push(`- Deviance ${num(m.glm.deviance, 6)} (null deviance ${num(m.glm.nullDeviance, 6)}); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`);
+  if (m.shape.length) {
+    const c = m.constraints;
+    out.push(`- Shape: ${m.shape.join(', ')}, imposed on the B-spline coefficients so that it holds everywhere in the data range${c ? `; ${c.active} of ${c.total} constraints are active (effective df ${num(c.effectiveDf, 4)})` : ''}. Bands treat the active constraints as known (an approximation).`);
+  }
+  if (m.robust) {
+    const r = m.robust;
+    const listed = r.downweighted.rows.map((row) => `line ${row.line} (weight ${num(row.weight, 3)})`).join(', ');
+    out.push(`- Robust fit: Huber M-estimation, k = ${num(r.k, 4)}, robust scale ${num(r.scale, 4)}; ${r.downweighted.total} row${r.downweighted.total === 1 ? '' : 's'} down-weighted${listed ? `: ${listed}` : ''}${r.downweighted.total > r.downweighted.rows.length ? ', ...' : ''}.`);
+  }
+  out.push('');
+  return out;
+}
+
+/**
  * The report's Markdown text (LF, final newline). Figures are referenced by relative file
  * name, so the page renders wherever it is committed beside them. Deterministic: no dates,
  * no tool version. O(candidates + listed rows).
@@ -163,6 +188,7 @@ export function reportMarkdown(input: ReportInput): string {
     '',
   ];
   if (input.warnings.length) lines.push('## Warnings', '', ...input.warnings.map((w) => `- ⚠ ${md(w)}`), '');
+  lines.push(...modelSection(fit));
   lines.push('## The curve', '', ...figure(fig('curve')), '## Why this df', '', ...whyThisDf(a, fit));
   if (a) lines.push(...figure(fig('error')), ...candidateTable(a));
   lines.push('## Residual checks', '', ...checks(input.diagnostics, fit), ...figure(fig('residuals-x')), ...figure(fig('residuals-fitted')), ...figure(fig('normal-quantiles')));

@@ -98,3 +98,41 @@ describe('md', () => {
     assert.equal(md('two\nlines'), 'two lines');
   });
 });
+
+describe('reportMarkdown model section', () => {
+  const REPO_ROOT = join(__dirname, '..', '..', '..');
+  async function reportFor(file: string, x: string, y: string, options: FitPlan['options'], trials?: string): Promise<string> {
+    const text = readFileSync(join(REPO_ROOT, 'test', 'e2e', 'fixtures', file), 'utf8');
+    const sel = selectColumns(parseCsvText(text), { x, y }, file);
+    const plan: FitPlan = { columns: { x, y }, tune: false, options, output: { ...DEFAULT_OUTPUT, report: true }, ...(trials ? { trials } : {}) };
+    const analysis = await analyse(sel.data, options);
+    const d = buildDeliverables({
+      plan,
+      stem: 'r',
+      dataFile: file,
+      dataPath: file,
+      dataSha256: createHash('sha256').update(text).digest('hex'),
+      rowsRead: sel.data.x.length,
+      selection: sel,
+      fitted: sel.data,
+      analysis,
+      fit: analysis.chosen,
+      diagnostics: analysis.diagnostics,
+      sha256: (t) => createHash('sha256').update(t).digest('hex'),
+    });
+    return (d.files.find((f) => f.kind === 'report') as { text: string }).text;
+  }
+
+  it('a robust fit of MASS::mcycle names Huber, k and the down-weighted rows by CSV line', async () => {
+    const r = await reportFor('mcycle.csv', 'times', 'accel', { family: 'natural', candidates: [8], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1, robust: true });
+    assert.match(r, /## Model\n\n- Outcome: Gaussian \(least squares\)/);
+    assert.match(r, /- Robust fit: Huber M-estimation, k = 1\.345, robust scale [0-9.]+; \d+ rows down-weighted: line \d+ \(weight 0\.\d+\)/);
+  });
+
+  it('a shape-constrained fit says which shape and how many constraints are active; a plain fit has no model section', async () => {
+    const shaped = await reportFor('cars.csv', 'speed', 'dist', { family: 'natural', candidates: [6], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1, shape: ['increasing'] });
+    assert.match(shaped, /- Shape: increasing, imposed on the B-spline coefficients so that it holds everywhere in the data range; \d+ of \d+ constraints are active/);
+    const plain = await reportFor('cars.csv', 'speed', 'dist', { family: 'natural', candidates: [6], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1 });
+    assert.doesNotMatch(plain, /## Model/);
+  });
+});
