@@ -50,10 +50,11 @@ describe('settings snapshot (readSettings)', function () {
     const read = (values: Record<string, unknown>) => readSettings((k) => values[k]);
     assert.deepEqual(modelOptions(read({ robust: true }).model), { robust: true });
     assert.deepEqual(modelOptions(read({ robust: true, huberK: 2 }).model), { robust: { k: 2 } });
-    // The smoothing spline fits least squares only; robust fitting needs a Gaussian outcome; opposite shapes are refused.
+    // The smoothing spline fits least squares only (shapes yes, up to 1000 distinct x); robust
+    // fitting needs a Gaussian outcome; opposite shapes are refused.
     const smooth = read({ curveFamily: 'smooth', outcome: 'binomial', shape: ['convex'] });
-    assert.deepEqual(smooth.model, { outcome: 'gaussian', shape: [], robustK: undefined });
-    assert.equal(smooth.problems.length, 2, smooth.problems.join('\n'));
+    assert.deepEqual(smooth.model, { outcome: 'gaussian', shape: ['convex'], robustK: undefined });
+    assert.equal(smooth.problems.length, 1, smooth.problems.join('\n'));
     const mixed = read({ outcome: 'poisson', robust: true, shape: ['increasing', 'decreasing'], huberK: -1 });
     assert.deepEqual(mixed.model, { outcome: 'poisson', shape: [], robustK: undefined });
     assert.equal(mixed.problems.length, 3, mixed.problems.join('\n'));
