@@ -370,7 +370,7 @@ export class Panel {
           el(
             'tr',
             {},
-            el('td', {}, r.line > 0 ? el('button', { type: 'button', class: 'kw-link', 'data-line': r.line, title: `Show line ${r.line} in the CSV` }, `line ${r.line}`) : '–'),
+            lineCell(r.line),
             el('td', {}, sig(r.x, 6)),
             el('td', {}, sig(r.y, 6)),
             el('td', {}, sig(r.weight, 3)),
@@ -399,7 +399,7 @@ export class Panel {
         el(
           'tr',
           {},
-          el('td', {}, r.line > 0 ? el('button', { type: 'button', class: 'kw-link', 'data-line': r.line, title: `Show line ${r.line} in the CSV` }, `line ${r.line}`) : '–'),
+          lineCell(r.line),
           el('td', {}, sig(r.x, 6)),
           el('td', {}, sig(r.y, 6)),
           el('td', {}, sig(r.cooksDistance, 3)),
@@ -486,4 +486,9 @@ export class Panel {
 
 function capitalise(s: string): string {
   return s.charAt(0).toUpperCase() + s.slice(1);
+}
+
+/** A table cell with a button that reveals a CSV line (handled by the panel's data-line click), or a dash. */
+function lineCell(line: number): HTMLElement {
+  return el('td', {}, line > 0 ? el('button', { type: 'button', class: 'kw-link', 'data-line': line, title: `Show line ${line} in the CSV` }, `line ${line}`) : '–');
 }

@@ -26,32 +26,7 @@ suppressPackageStartupMessages({
 out_path <- file.path("test", "reference", "fixtures", "fits.json")
 if (!dir.exists(dirname(out_path))) dir.create(dirname(out_path), recursive = TRUE)
 
-# ---- minimal JSON writer with round-trip number formatting --------------------------------
-# Vectors wrapped in I() are always written as arrays; other length-1 values as scalars.
-num_text <- function(v) {
-  if (any(!is.finite(v))) stop("non-finite number in fixture")
-  out <- sprintf("%.15g", v)
-  for (digits in 16:17) {
-    bad <- as.numeric(out) != v
-    if (!any(bad)) break
-    out[bad] <- sprintf(paste0("%.", digits, "g"), v[bad])
-  }
-  stopifnot(all(as.numeric(out) == v))
-  out
-}
-str_text <- function(s) paste0('"', gsub('"', '\\\\"', gsub("\\\\", "\\\\\\\\", s)), '"')
-to_json <- function(v) {
-  if (is.null(v)) return("null")
-  if (is.list(v)) {
-    items <- vapply(v, to_json, "")
-    if (!is.null(names(v))) return(paste0("{", paste0(str_text(names(v)), ":", items, collapse = ","), "}"))
-    return(paste0("[", paste(items, collapse = ","), "]"))
-  }
-  items <- if (is.character(v)) str_text(v)
-    else if (is.logical(v)) ifelse(v, "true", "false")
-    else num_text(as.numeric(v))
-  if (length(v) == 1 && !inherits(v, "AsIs")) items else paste0("[", paste(items, collapse = ","), "]")
-}
+source(file.path("test", "reference", "r", "json.R"))
 
 # ---- open datasets shipped with R --------------------------------------------------------
 datasets <- list(

@@ -43,28 +43,8 @@ script <- sub("^--file=", "", args[grep("^--file=", args)])
 here <- if (length(script) == 1) dirname(normalizePath(script)) else file.path(getwd(), "test", "reference", "r")
 out_path <- file.path(here, "..", "fixtures", "shapedSmoothing.json")
 
-# ---- minimal JSON writer with round-trip number formatting --------------------------------
-num_text <- function(v) {
-  out <- sprintf("%.15g", v)
-  for (digits in 16:17) {
-    bad <- is.finite(v) & as.numeric(out) != v
-    if (!any(bad)) break
-    out[bad] <- sprintf(paste0("%.", digits, "g"), v[bad])
-  }
-  out[!is.finite(v)] <- "null"
-  out
-}
-str_text <- function(s) paste0('"', gsub('"', '\\\\"', gsub("\\\\", "\\\\\\\\", s)), '"')
-to_json <- function(v) {
-  if (is.null(v)) return("null")
-  if (is.list(v)) {
-    items <- vapply(v, to_json, "")
-    if (!is.null(names(v))) return(paste0("{", paste0(str_text(names(v)), ":", items, collapse = ","), "}"))
-    return(paste0("[", paste(items, collapse = ","), "]"))
-  }
-  items <- if (is.character(v)) str_text(v) else num_text(as.numeric(v))
-  if (length(v) == 1 && !inherits(v, "AsIs")) items else paste0("[", paste(items, collapse = ","), "]")
-}
+options(fixture.allow_null = TRUE)
+source(file.path("test", "reference", "r", "json.R"))
 arr <- function(v) I(as.vector(v))
 
 # ---- the penalised problem -----------------------------------------------------------------
