@@ -58,13 +58,13 @@ async function panelTimings(sizes: readonly number[]): Promise<void> {
   for (const n of sizes) {
     const data = makeRows(n);
     const t0 = performance.now();
-    const analysis = await analyse(data, { family: 'natural', resample: { kind: 'boot', resamples: 50 }, rule: { kind: '1se' }, seed: 1 }, workerRunner());
+    const analysis = await analyse(data, { kind: 'natural-spline', resample: { kind: 'bootstrap', resamples: 50 }, rule: { kind: 'one-se' }, seed: 1 }, workerRunner());
     const t1 = performance.now();
     const payload = buildPanelPayload({ runId: 1, analysis, source: { fileName: 'bench.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
     const bytes = Buffer.byteLength(JSON.stringify(payload));
     const t2 = performance.now();
     log(
-      `| panel for ${n} rows: analyse (default settings: natural, ${analysis.tune.candidates.length} candidates, boot:50, 1se) + panel message | ${((t2 - t0) / 1000).toFixed(2)} s (analyse ${((t1 - t0) / 1000).toFixed(2)} s, message ${((t2 - t1) / 1000).toFixed(2)} s, ${bytes} bytes) |`,
+      `| panel for ${n} rows: analyse (default settings: natural, ${analysis.tune.candidates.length} candidates, bootstrap:50, 1se) + panel message | ${((t2 - t0) / 1000).toFixed(2)} s (analyse ${((t1 - t0) / 1000).toFixed(2)} s, message ${((t2 - t1) / 1000).toFixed(2)} s, ${bytes} bytes) |`,
     );
   }
 }
@@ -126,20 +126,20 @@ async function main(): Promise<void> {
   const table = await timeMedian(`ingest (stream, parse, SHA-256) of ${ROWS} rows`, () => readCsvFile(csv));
   const data = selectColumns(table, { x: 'x', y: 'y' }).data;
   const prepared = prepareData(data);
-  const fit = await timeMedian('natural spline df 10, full regression output', () => fitCurve(prepared, { family: 'natural', df: 10 }));
+  const fit = await timeMedian('natural spline df 10, full regression output', () => fitCurve(prepared, { kind: 'natural-spline', df: 10 }));
   await timeMedian('residual diagnostics of that fit', () => diagnose(data, fit));
-  await timeMedian('natural spline df 10 with full regression output and residual diagnostics, together', () => diagnose(data, fitCurve(prepared, { family: 'natural', df: 10 })));
-  await timeMedian('polynomial df 8', () => fitCurve(prepared, { family: 'poly', df: 8 }));
-  await time('smoothing spline df 20 (lambda search)', () => fitCurve(prepared, { family: 'smooth', df: 20 }));
+  await timeMedian('natural spline df 10 with full regression output and residual diagnostics, together', () => diagnose(data, fitCurve(prepared, { kind: 'natural-spline', df: 10 })));
+  await timeMedian('polynomial df 8', () => fitCurve(prepared, { kind: 'polynomial', df: 8 }));
+  await time('smoothing spline df 20 (lambda search)', () => fitCurve(prepared, { kind: 'smoothing-spline', df: 20 }));
   const counts = prepareData({ x: data.x, y: poissonCounts(data.x) });
-  await timeMedian('Poisson natural spline df 10 (IRLS), full output', () => fitCurve(counts, { family: 'natural', df: 10, outcome: 'poisson' }));
-  await timeMedian('increasing natural spline df 10 (constrained least squares, NNLS), full output', () => fitCurve(prepared, { family: 'natural', df: 10, shape: ['increasing'] }));
+  await timeMedian('Poisson natural spline df 10 (IRLS), full output', () => fitCurve(counts, { kind: 'natural-spline', df: 10, outcome: 'counts' }));
+  await timeMedian('increasing natural spline df 10 (constrained least squares, NNLS), full output', () => fitCurve(prepared, { kind: 'natural-spline', df: 10, shape: ['increasing'] }));
   const cands = [3, 4, 5, 6, 7, 8, 9, 10, 11, 12];
   await time('tuning: 10 natural-spline candidates x 50 bootstrap resamples (worker threads)', () =>
-    analyse(data, { family: 'natural', candidates: cands, resample: { kind: 'boot', resamples: 50 }, rule: { kind: '1se' }, seed: 1 }, workerRunner()),
+    analyse(data, { kind: 'natural-spline', candidates: cands, resample: { kind: 'bootstrap', resamples: 50 }, rule: { kind: 'one-se' }, seed: 1 }, workerRunner()),
   );
   await time('tuning: 10 natural-spline candidates x 10-fold CV', () =>
-    analyse(data, { family: 'natural', candidates: cands, resample: { kind: 'cv', folds: 10, repeats: 1 }, rule: { kind: '1se' }, seed: 1 }, workerRunner()),
+    analyse(data, { kind: 'natural-spline', candidates: cands, resample: { kind: 'folds', folds: 10, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }, workerRunner()),
   );
   log(`| peak resident memory of the whole run | ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB |`);
   const r = spawnSync('Rscript', ['--version'], { encoding: 'utf8' });

@@ -16,7 +16,7 @@ export const HOLDOUT_WARN_RATIO = 1.25;
  * One whole analysis: optional stratified held-out split, tuning of the df by resampling,
  * the chosen fit with its diagnostics, and the held-out check used once at the end.
  * `runner` decides where resamples run (inline, or worker threads from core/node/pool).
- * Example: await analyse({ x, y }, { family: 'natural', resample: { kind: 'cv', folds: 10, repeats: 1 }, rule: { kind: '1se' }, seed: 1 }).
+ * Example: await analyse({ x, y }, { family: 'natural-spline', resample: { kind: 'folds', folds: 10, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }).
  */
 export async function analyse(data: XYData, options: AnalysisOptions, runner: ResampleRunner = inlineRunner, progress?: Progress): Promise<Analysis> {
   const split = options.holdout ? splitHoldout(data, options.holdout, options.seed) : undefined;
@@ -24,7 +24,7 @@ export async function analyse(data: XYData, options: AnalysisOptions, runner: Re
   const prepared = prepareData(tuning);
   const { result, fits } = await tuneCurve(
     prepared,
-    { family: options.family, candidates: options.candidates, resample: options.resample, rule: options.rule, seed: options.seed, outcome: options.outcome, shape: options.shape, robust: options.robust },
+    { kind: options.kind, candidates: options.candidates, resample: options.resample, rule: options.rule, seed: options.seed, outcome: options.outcome, shape: options.shape, robust: options.robust },
     runner,
     progress,
   );
@@ -46,7 +46,7 @@ function resampledRmse(candidates: Analysis['tune']['candidates'], fit: FitResul
  * check redone for it. Returns `analysis` itself when the rule chooses as before. Throws
  * InputError when the rule cannot choose (e.g. a df by hand that is no candidate).
  * Cost: none when the df is unchanged, else diagnose's O(n log n) and the held-out rows.
- * Example: withRule(analysis, { kind: 'lowest' }).chosen.df.
+ * Example: withRule(analysis, { kind: 'least-error' }).chosen.df.
  */
 export function withRule(analysis: Analysis, rule: RuleSpec, diagnostics?: Diagnostics): Analysis {
   const selected = selectDf(analysis.tune.candidates, rule, analysis.tune.metric);

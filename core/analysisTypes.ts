@@ -1,9 +1,9 @@
-import type { Family, FitResult, ModelOptions, XYData } from './types';
+import type { CurveKindId, FitResult, ModelOptions, XYData } from './types';
 import type { ResampleSpec, RuleSpec, TuneResult } from './tune/types';
 
 /** Everything one analysis needs besides the data (ModelOptions: outcome family, shape, robust fitting). */
 export interface AnalysisOptions extends ModelOptions {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   /** Candidate df; absent means the family's default range. */
   readonly candidates?: readonly number[] | undefined;
   readonly resample: ResampleSpec;

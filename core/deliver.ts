@@ -20,7 +20,7 @@ import { checkInRange, formatGrid, type GridSpec } from './table/grid';
 import { interpolationError } from './table/interpolation';
 import { sig } from './tune/format';
 import type { FitResult, XYData } from './types';
-import { familyWords } from './view/words';
+import { curveWords } from './registry/curves/index';
 
 /** Above this many rows the interpolation error of a given (not automatic) grid is not computed. */
 export const INTERPOLATION_CHECK_LIMIT = 200_000;
@@ -97,7 +97,7 @@ function tableWarnings(input: DeliverInput, summary: TableSummary, added: readon
   if (summary.negative?.length) {
     out.push(`The curve is below zero at ${summary.negative.length} table row(s) (${xList(summary.negative)}) although the quantity was declared non-negative; they are flagged in the negative column.`);
   }
-  if (input.plan.output.nonnegative) {
+  if (input.plan.output.flagNegative) {
     const { y, lines } = input.selection.data;
     let count = 0;
     let first = -1;
@@ -131,7 +131,7 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
   const points = grid.points;
   checkInRange(points, fit.curve.lower, fit.curve.upper, out.extrapolate);
   const full = curveTable(fit, points);
-  const shaped = shapeTable(full, out.columns, out.nonnegative);
+  const shaped = shapeTable(full, out.columns, out.flagNegative);
   const step = grid.auto ? grid.auto.step : uniformStep(grid.spec, points);
   let interpolation: TableSummary['interpolation'] = null;
   if (grid.auto) interpolation = { maxError: grid.auto.maxError, at: grid.auto.at, tolerance: grid.auto.tolerance, step: grid.auto.step };
@@ -151,19 +151,19 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
     range: [points[0] as number, points[points.length - 1] as number],
     interpolation,
     extrapolated: full.rows.filter((r) => r[extAt] === 1).map((r) => r[0] as number),
-    negative: out.nonnegative ? full.rows.filter((r) => (r[fitAt] as number) < 0).map((r) => r[0] as number) : null,
+    negative: out.flagNegative ? full.rows.filter((r) => (r[fitAt] as number) < 0).map((r) => r[0] as number) : null,
   };
   const warnings = [...tableWarnings(input, summary, shaped.added), ...input.diagnostics.warnings, ...(input.analysis?.tune.holdout?.warning ? [input.analysis.tune.holdout.warning] : [])];
   const regenerate = fitCommand(plan, input.dataPath);
   const names = { table: input.names?.table ?? `${input.stem}.curve.csv`, record: input.names?.record ?? `${input.stem}.fit.json`, report: `${input.stem}.report.md` };
   const files: OutputFile[] = [{ kind: 'table', name: names.table, text: curveTableCsv(shaped.table, out.digits) }];
-  const curveWords = `${familyWords(fit.family)}, df ${sig(fit.df, 4)}`;
+  const curveText = `${curveWords(fit.kind)}, df ${sig(fit.df, 4)}`;
   const emitInput: EmitInput = {
     stem: input.stem,
     table: shaped.table,
     digits: out.digits,
     source: { file: input.dataFile, sha256: input.dataSha256 },
-    curve: curveWords,
+    curve: curveText,
     labels: input.selection.labels,
     dataRange: [fit.curve.lower, fit.curve.upper],
     step,
@@ -203,7 +203,7 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
     rowsRead: input.rowsRead,
     rowsUsed: input.selection.data.x.length,
     rejected: input.selection.rejected,
-    family: plan.options.family,
+    curve: plan.options.kind,
     analysis: input.analysis,
     fit,
     diagnostics: input.diagnostics,

@@ -1,3 +1,5 @@
+import { renderOptions, type Audience } from './words/options';
+
 /** Where a problem is: file, 1-based line, column name. All optional. */
 export interface Place {
   readonly file?: string | undefined;
@@ -11,18 +13,22 @@ export interface Place {
  */
 export class InputError extends Error {
   readonly place: Place;
+  /** The message as written, with option references (core/words/options.ts) not yet rendered. */
+  readonly raw: string;
   constructor(message: string, place: Place = {}) {
-    super(message);
+    super(renderOptions(message, 'cli'));
+    this.raw = message;
     this.name = 'InputError';
     this.place = place;
   }
-  /** The message prefixed with file:line and column where known. */
-  describe(): string {
+  /** The message in the audience's words (flags or settings), prefixed with file:line and column where known. */
+  describe(audience: Audience = 'cli'): string {
     const p = this.place;
+    const text = renderOptions(this.raw, audience);
     const at = [p.file, p.line !== undefined ? `line ${p.line}` : undefined, p.column !== undefined ? `column "${p.column}"` : undefined]
       .filter((s) => s !== undefined)
       .join(', ');
-    return at ? `${at}: ${this.message}` : this.message;
+    return at ? `${at}: ${text}` : text;
   }
 }
 

@@ -6,11 +6,12 @@
 import type { AnalysisOptions } from './analysisTypes';
 import type { EmitKind } from './emit/common';
 import type { ColumnChoice } from './ingest/select';
-import { formatResample } from './spec';
+import { shellWord } from './shellWord';
 import type { TableColumn } from './table/curveTable';
 import { DEFAULT_DIGITS } from './table/formatCsv';
 import { formatGrid, type GridSpec } from './table/grid';
-import { ruleLabel } from './tune/format';
+import { formatResampling } from './registry/resampling/index';
+import { formatRule } from './registry/rules/index';
 
 /** What to write besides the fit: table grid and format, safety flags, emitters, report. */
 export interface OutputOptions {
@@ -21,13 +22,13 @@ export interface OutputOptions {
   /** Table columns asked for; undefined: all. */
   readonly columns?: readonly TableColumn[] | undefined;
   /** The quantity cannot be negative: flag table rows where the curve is below zero. */
-  readonly nonnegative: boolean;
+  readonly flagNegative: boolean;
   readonly emit: readonly EmitKind[];
   readonly report: boolean;
 }
 
 /** Output options when nothing is asked for. */
-export const DEFAULT_OUTPUT: OutputOptions = { extrapolate: false, digits: DEFAULT_DIGITS, nonnegative: false, emit: [], report: false };
+export const DEFAULT_OUTPUT: OutputOptions = { extrapolate: false, digits: DEFAULT_DIGITS, flagNegative: false, emit: [], report: false };
 
 /** One run of `knotwise fit`. */
 export interface FitPlan {
@@ -40,35 +41,27 @@ export interface FitPlan {
   readonly trials?: string | undefined;
 }
 
-/** Characters a POSIX shell word may hold without quotes. */
-const PLAIN_WORD = /^[A-Za-z0-9_./:,=@%+-]+$/;
-
-/** A shell word: as is when plain, else in single quotes (a quote inside becomes '\''). */
-export function shellWord(text: string): string {
-  return PLAIN_WORD.test(text) ? text : `'${text.replace(/'/g, `'\\''`)}'`;
-}
-
 /**
  * The `knotwise fit` command that carries out `plan` on the data at `dataPath` and writes
  * into the current folder (`--out .`): run it in the folder holding the outputs, with
  * `dataPath` relative to that folder. Options at their defaults are left out, except the
- * family, resampling, rule and seed of a tuned fit, which are always spelled out.
- * Example: fitCommand(plan, '../data/cal.csv') -> "knotwise fit ../data/cal.csv --x rh --y volts --model natural --resample cv:10 --rule 1se --seed 1 --out .".
+ * curve, resampling, rule and seed of a tuned fit, which are always spelled out.
+ * Example: fitCommand(plan, '../data/cal.csv') -> "knotwise fit ../data/cal.csv --x rh --y volts --curve natural-spline --resampling folds:10 --rule one-se --seed 1 --out .".
  */
 export function fitCommand(plan: FitPlan, dataPath: string): string {
   const o = plan.options;
   const w: string[] = ['knotwise', 'fit', shellWord(dataPath), '--x', shellWord(plan.columns.x), '--y', shellWord(plan.columns.y)];
   if (plan.columns.weights !== undefined) w.push('--weights', shellWord(plan.columns.weights));
-  w.push('--model', o.family);
-  // Outcome family, trials, shapes, robust fitting (core/fit/model.ts).
-  if (o.outcome !== undefined && o.outcome !== 'gaussian') w.push('--family', o.outcome);
+  w.push('--curve', o.kind);
+  // Outcome, trials, shapes, robust fitting (core/fit/model.ts).
+  if (o.outcome !== undefined && o.outcome !== 'continuous') w.push('--outcome', o.outcome);
   if (plan.trials !== undefined) w.push('--trials', shellWord(plan.trials));
   if (o.shape !== undefined && o.shape.length > 0) w.push('--shape', o.shape.join(','));
   if (o.robust === true) w.push('--robust');
-  else if (o.robust) w.push('--huber-k', String(o.robust.k));
+  else if (o.robust) w.push('--robust-k', String(o.robust.k));
   if (plan.tune) {
     if (o.candidates !== undefined) w.push('--df', o.candidates.join(','));
-    w.push('--resample', formatResample(o.resample), '--rule', ruleLabel(o.rule), '--seed', String(o.seed));
+    w.push('--resampling', formatResampling(o.resample), '--rule', formatRule(o.rule), '--seed', String(o.seed));
     if (o.holdout) w.push('--holdout', String(o.holdout));
   } else {
     w.push('--df', String(o.candidates?.[0]));
@@ -78,7 +71,7 @@ export function fitCommand(plan: FitPlan, dataPath: string): string {
   if (out.extrapolate) w.push('--extrapolate');
   if (out.digits !== DEFAULT_DIGITS) w.push('--digits', String(out.digits));
   if (out.columns !== undefined) w.push('--columns', out.columns.join(','));
-  if (out.nonnegative) w.push('--nonnegative');
+  if (out.flagNegative) w.push('--flag-negative');
   if (out.emit.length) w.push('--emit', out.emit.join(','));
   if (out.report) w.push('--report');
   w.push('--out', '.');

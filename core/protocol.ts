@@ -5,7 +5,7 @@
  * carry the run id they belong to so that the panel drops anything from an outdated run.
  * Everything here is plain JSON (numbers, strings, arrays): no typed arrays, no Maps.
  */
-import type { Family, Outcome, Shape } from './types';
+import type { CurveKindId, Outcome, Shape } from './types';
 import type { CandidateResult, HoldoutReport, Metric, RuleSpec } from './tune/types';
 
 /** Readings drawn one by one (small n) or as a 2-D count grid (large n or heavy overplotting). */
@@ -160,13 +160,13 @@ export interface PanelPayload {
   readonly source: SourceView;
   /** Rows used for tuning and fitting, rows rejected while reading, rows held out. */
   readonly rows: { readonly used: number; readonly rejected: number; readonly heldOut: number };
-  readonly family: Family;
+  readonly kind: CurveKindId;
   /** Outcome family, shapes and robust fitting used. */
   readonly model: ModelView;
   /** The curve family in words. */
-  readonly familyWords: string;
+  readonly curveWords: string;
   /** How candidate errors were estimated, in words (e.g. "bootstrap, 50 resamples, seed 1"). */
-  readonly resampleWords: string;
+  readonly resamplingWords: string;
   readonly metric: Metric;
   /** Candidates as tuned (per-resample values removed to keep the message small). */
   readonly candidates: readonly CandidateResult[];
@@ -250,7 +250,7 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
   }
 }
 
-const OUTCOMES: readonly string[] = ['gaussian', 'poisson', 'binomial'];
+const OUTCOMES: readonly string[] = ['continuous', 'counts', 'proportions'];
 const SHAPE_NAMES: readonly string[] = ['increasing', 'decreasing', 'nonnegative', 'convex', 'concave'];
 
 /** True when `m` is a well-formed ModelChoice (names known; combinations are checked by the host). */
@@ -265,12 +265,12 @@ export function isRuleSpec(r: unknown): r is RuleSpec {
   if (typeof r !== 'object' || r === null) return false;
   const o = r as Record<string, unknown>;
   switch (o.kind) {
-    case 'lowest':
-    case '1se':
+    case 'least-error':
+    case 'one-se':
       return true;
-    case 'tol':
+    case 'simplest-within':
       return typeof o.percent === 'number' && Number.isFinite(o.percent) && o.percent >= 0;
-    case 'manual':
+    case 'pick':
       return typeof o.df === 'number' && Number.isFinite(o.df);
     default:
       return false;

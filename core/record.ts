@@ -2,16 +2,19 @@ import type { Analysis } from './analysisTypes';
 import type { Diagnostics } from './analysisTypes';
 import type { RejectedRow } from './ingest/select';
 import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from './plan';
-import { formatResample } from './spec';
 import type { TableColumn } from './table/curveTable';
 import type { GridSpec } from './table/grid';
-import { ruleLabel } from './tune/format';
 import type { FitResult } from './types';
 import { VERSION } from './version';
+import { CAUTION } from './words/caution';
+
+export { CAUTION };
+import { formatResampling } from './registry/resampling/index';
+import { formatRule } from './registry/rules/index';
 
 /** Format name and version of the fit record (schema: schema/fit-record.schema.json). */
 export const RECORD_FORMAT = 'knotwise-fit-record';
-export const RECORD_VERSION = 1;
+export const RECORD_VERSION = 2;
 
 /** What the fit record is built from. */
 export interface RecordInput {
@@ -21,7 +24,8 @@ export interface RecordInput {
   readonly rowsRead: number;
   readonly rowsUsed: number;
   readonly rejected: readonly RejectedRow[];
-  readonly family: string;
+  /** Curve kind id (core/registry/curves/). */
+  readonly curve: string;
   readonly analysis?: Analysis | undefined;
   readonly fit: FitResult;
   readonly diagnostics: Diagnostics;
@@ -68,7 +72,7 @@ export interface OutputEntry {
   readonly sha256: string;
 }
 
-/** Level of the table's confidence and prediction bands (DESIGN.md "Bands"). */
+/** Level of the table's confidence and prediction bands (docs/design.md, "Bands"). */
 export const BAND_LEVEL = 0.95;
 
 /** The plan of a record made without one (the editor's save): what the fields say. */
@@ -76,7 +80,7 @@ function derivedPlan(input: RecordInput): FitPlan {
   const a = input.analysis;
   const output = { ...DEFAULT_OUTPUT, grid: input.grid, digits: input.digits, extrapolate: input.extrapolate };
   if (a) return { columns: input.columns, tune: true, options: { ...a.options, candidates: a.tune.candidates.map((c) => c.df), rule: a.tune.selected.rule }, output };
-  return { columns: input.columns, tune: false, options: { family: input.fit.family, candidates: [input.fit.df], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0 }, output };
+  return { columns: input.columns, tune: false, options: { kind: input.fit.kind, candidates: [input.fit.df], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output };
 }
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -110,21 +114,21 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       rejected: input.rejected.map((r) => ({ line: r.line, column: r.column, reason: r.reason })),
     },
     spec: {
-      family: input.family,
+      curve: input.curve,
       tuned: a !== undefined,
       candidates: a ? a.tune.candidates.map((c) => c.df) : [askedDf],
       candidatesDefault: a !== undefined && plan.options.candidates === undefined,
-      resample: a ? formatResample(a.tune.resample) : null,
+      resampling: a ? formatResampling(a.tune.resample) : null,
       seed: a ? a.tune.seed : null,
-      rule: rule ? ruleLabel(rule) : `df:${askedDf}`,
-      tolerancePercent: rule?.kind === 'tol' ? rule.percent : null,
+      rule: rule ? formatRule(rule) : `df:${askedDf}`,
+      tolerancePercent: rule?.kind === 'simplest-within' ? rule.percent : null,
       holdout: a?.options.holdout ?? null,
       grid: plan.output.grid ?? input.grid,
       gridDefault: plan.output.grid === undefined,
       digits: input.digits,
       extrapolate: input.extrapolate,
       columns: plan.output.columns ?? null,
-      nonnegative: plan.output.nonnegative,
+      flagNegative: plan.output.flagNegative,
       emit: plan.output.emit,
       report: plan.output.report,
       level: BAND_LEVEL,
@@ -137,13 +141,14 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       },
     },
     fit: {
-      family: f.family,
+      curve: f.kind,
       df: f.df,
       knots: Array.from(f.knots),
       coefficients: Array.from(f.coefficients, num),
       lambda: f.lambda ?? null,
-      sigma: num(f.sigma),
-      r2: num(f.r2),
+      residualSd: num(f.sigma),
+      r2: f.model?.glm ? null : num(f.r2),
+      devianceExplained: f.model?.glm ? num(f.r2) : null,
       aic: num(f.aic),
       bic: num(f.bic),
       looRmse: num(f.looRmse),
@@ -154,7 +159,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
     selection: a
       ? {
           df: a.tune.selected.df,
-          rule: ruleLabel(a.tune.selected.rule),
+          rule: formatRule(a.tune.selected.rule),
           metric: a.tune.selected.metric,
           reason: a.tune.selected.reason,
           candidates: a.tune.candidates.map((c) =>
@@ -191,6 +196,4 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
   };
 }
 
-/** The short caution every deliverable carries. */
-export const CAUTION =
-  'An empirical fit is not a certified calibration. Where this table feeds safety-related equipment or decisions, its use must follow the applicable standards and be reviewed by qualified people.';
+

@@ -8,13 +8,15 @@ import { EMIT_KINDS, type EmitKind } from './emit/common';
 import { InputError } from './errors';
 import { DEFAULT_OUTPUT, type FitPlan } from './plan';
 import { RECORD_FORMAT, RECORD_VERSION } from './record';
-import { parseOutcome } from './fit/model';
 import { parseShapeList } from './fit/shape';
-import { parseFamily, parseResample, parseRule } from './spec';
 import type { ModelOptions } from './types';
 import { parseColumns } from './table/columns';
 import { formatGrid, parseGrid, type GridSpec } from './table/grid';
 import type { RuleSpec } from './tune/types';
+import { parseOutcome } from './registry/outcomes/index';
+import { parseCurve } from './registry/curves/index';
+import { parseResampling } from './registry/resampling/index';
+import { parseRule } from './registry/rules/index';
 
 /** What a record says about its run. */
 export interface RecordedRun {
@@ -77,12 +79,6 @@ class Fields {
   }
 }
 
-/** A rule label as ruleLabel writes it: lowest, 1se, tol:<p>, or df:<k> (chosen by hand). */
-function parseRuleLabel(text: string): RuleSpec {
-  const manual = /^df:(\d+(?:\.\d+)?)$/.exec(text);
-  return manual ? { kind: 'manual', df: Number(manual[1]) } : parseRule(text);
-}
-
 /** A grid object as the record stores it, checked through its text form. */
 function gridOf(v: unknown, f: Fields): GridSpec {
   if (v === null || typeof v !== 'object') f.fail('spec.grid', 'must be an object');
@@ -138,37 +134,38 @@ export function readRecord(json: unknown, where: string): RecordedRun {
   const rec = json as Json;
   if (rec.format !== RECORD_FORMAT) throw new InputError(`not a fit record: "format" is ${JSON.stringify(rec.format)}, expected "${RECORD_FORMAT}"`, { file: where });
   const version = f.num(rec, 'version');
-  if (version > RECORD_VERSION) throw new InputError(`fit record version ${version} was written by a newer Knotwise; this one reads up to version ${RECORD_VERSION}`, { file: where });
+  if (version > RECORD_VERSION) throw new InputError(`fit record version ${version} was written by a newer Knotwise; this one reads version ${RECORD_VERSION}`, { file: where });
+  if (version < RECORD_VERSION) throw new InputError(`fit record version ${version} was written by an earlier Knotwise whose words have changed (see CHANGELOG.md); this one reads version ${RECORD_VERSION}: fit the data again to write a new record`, { file: where });
   const tool = f.obj(rec, 'tool');
   const data = f.obj(rec, 'data');
   const columns = f.obj(data, 'columns', 'data.columns');
   const spec = f.obj(rec, 'spec');
   const fit = f.obj(rec, 'fit');
   const table = f.obj(rec, 'table');
-  const family = f.parse('spec.family', () => parseFamily(f.str(spec, 'family', 'spec.family')));
+  const kind = f.parse('spec.curve', () => parseCurve(f.str(spec, 'curve', 'spec.curve')));
   const candidates = f.arr(spec, 'candidates', 'spec.candidates').map((v, i): number => {
     if (typeof v !== 'number' || !(v >= 1)) return f.fail(`spec.candidates[${i}]`, 'must be a number of at least 1');
     return v;
   });
   if (candidates.length === 0) f.fail('spec.candidates', 'must not be empty');
-  const resample = spec.resample === null || spec.resample === undefined ? null : f.str(spec, 'resample', 'spec.resample');
+  const resample = spec.resampling === null || spec.resampling === undefined ? null : f.str(spec, 'resampling', 'spec.resampling');
   const tune = f.bool(spec, 'tuned', 'spec.tuned', resample !== null);
   const holdout = spec.holdout === null || spec.holdout === undefined ? undefined : f.num(spec, 'holdout', 'spec.holdout');
   const model = modelOf(spec.model, f);
   let options: AnalysisOptions;
   if (tune) {
-    if (resample === null) return f.fail('spec.resample', 'must be given for a tuned fit');
+    if (resample === null) return f.fail('spec.resampling', 'must be given for a tuned fit');
     options = {
-      family,
+      kind,
       candidates: f.bool(spec, 'candidatesDefault', 'spec.candidatesDefault', false) ? undefined : candidates,
-      resample: f.parse('spec.resample', () => parseResample(resample)),
-      rule: f.parse('spec.rule', () => parseRuleLabel(f.str(spec, 'rule', 'spec.rule'))),
+      resample: f.parse('spec.resampling', () => parseResampling(resample)),
+      rule: f.parse('spec.rule', () => parseRule(f.str(spec, 'rule', 'spec.rule'))),
       seed: f.num(spec, 'seed', 'spec.seed'),
       holdout,
       ...model.options,
     };
   } else {
-    options = { family, candidates: [candidates[0] as number], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0, ...model.options };
+    options = { kind, candidates: [candidates[0] as number], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, ...model.options };
   }
   const emit = f.arr(spec, 'emit', 'spec.emit').map((k, i) => {
     const kind = EMIT_KINDS.find((e) => e === k);
@@ -182,7 +179,7 @@ export function readRecord(json: unknown, where: string): RecordedRun {
     extrapolate: f.bool(spec, 'extrapolate', 'spec.extrapolate'),
     digits: f.num(spec, 'digits', 'spec.digits'),
     columns: requested,
-    nonnegative: f.bool(spec, 'nonnegative', 'spec.nonnegative', false),
+    flagNegative: f.bool(spec, 'flagNegative', 'spec.flagNegative', false),
     emit: spec.emit === undefined ? [] : emit,
     report: f.bool(spec, 'report', 'spec.report', false),
   };

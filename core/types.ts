@@ -1,11 +1,11 @@
 /**
  * Shared data shapes of the Knotwise core. Everything here is plain data or a small
  * interface over typed arrays, so the command line, the VS Code host and the webview can
- * all use it. Definitions follow DESIGN.md (df = trace of the hat matrix, intercept included).
+ * all use it. Definitions follow docs/design.md (df = trace of the hat matrix, intercept included).
  */
 
-/** The curve families. */
-export type Family = 'natural' | 'poly' | 'smooth';
+/** Id of a registered curve kind (core/registry/curves/): 'natural-spline', 'polynomial', 'smoothing-spline', ... */
+export type CurveKindId = string;
 
 /** Paired observations, all arrays of the same length n. */
 export interface XYData {
@@ -19,7 +19,7 @@ export interface XYData {
 
 /** A fitted curve that can be evaluated anywhere (linearly beyond the data for splines). */
 export interface Curve {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   /** Effective degrees of freedom (trace of the hat matrix). */
   readonly df: number;
   /** Smallest and largest x of the data the curve was fitted to. */
@@ -37,7 +37,7 @@ export interface Curve {
 
 /** Complete regression output of one curve fitted at one df. */
 export interface FitResult {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   /** Effective degrees of freedom: trace of the hat matrix, intercept included. */
   readonly df: number;
   /** Rows used. */
@@ -76,14 +76,14 @@ export interface FitResult {
 }
 
 /** Distribution of the outcome: least squares, counts (log link) or proportions (logit link). */
-export type Outcome = 'gaussian' | 'poisson' | 'binomial';
+export type Outcome = 'continuous' | 'counts' | 'proportions';
 
 /** Shape constraints of a spline, guaranteed everywhere in the data range (see core/fit/shape.ts). */
 export type Shape = 'increasing' | 'decreasing' | 'nonnegative' | 'convex' | 'concave';
 
 /** How the curve is estimated besides its family and df; every field optional (absent = plain least squares). */
 export interface ModelOptions {
-  /** Outcome distribution; default 'gaussian'. */
+  /** Outcome distribution; default 'continuous'. */
   readonly outcome?: Outcome | undefined;
   /** Shape constraints (natural spline and smoothing spline); empty or absent for none. */
   readonly shape?: readonly Shape[] | undefined;
@@ -93,7 +93,7 @@ export interface ModelOptions {
 
 /** What to fit. */
 export interface FitSpec extends ModelOptions {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   readonly df: number;
   /**
    * Binomial outcome only: number of trials of each row (y is then the number of

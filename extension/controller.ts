@@ -8,7 +8,6 @@ import { analyse } from '../core/analysis';
 import type { Analysis, AnalysisOptions, Diagnostics } from '../core/analysisTypes';
 import { diagnose } from '../core/diagnose';
 import { CancelledError, InputError } from '../core/errors';
-import { resolveModel } from '../core/fit/model';
 import { selectColumns, type Selection as ColumnSelection } from '../core/ingest/select';
 import { selectTrials } from '../core/ingest/trials';
 import { placed } from '../core/node/pipeline';
@@ -26,6 +25,7 @@ import { PanelView } from './panel';
 import { RejectedRowsView } from './problems';
 import { saveDeliverables, type OverwriteAnswer } from './save';
 import { analysisOptions, modelOptions, readSettings, sameAnalysis, type ModelSettings, type Settings } from './settings';
+import { resolveModel } from '../core/registry/curves/index';
 
 /** Options of the tune command (for keybindings, other extensions and tests). */
 export interface TuneCommandOptions {
@@ -115,12 +115,12 @@ interface FileSession {
 const PROGRESS_INTERVAL_MS = 150;
 
 function errorText(err: unknown): string {
-  return err instanceof InputError ? err.describe() : err instanceof Error ? err.message : String(err);
+  return err instanceof InputError ? err.describe('editor') : err instanceof Error ? err.message : String(err);
 }
 
 /** The model report of a fit as a RunSummary field. */
 function modelSummary(fit: FitResult, options: AnalysisOptions, trials: string | undefined): ModelSummary {
-  const m = resolveModel(options.family, options);
+  const m = resolveModel(options.kind, options);
   const r = fit.model;
   return {
     outcome: m.outcome,
@@ -190,7 +190,7 @@ export class Controller implements vscode.Disposable {
   private modelFor(session: FileSession): ModelSettings {
     if (session.model) {
       try {
-        resolveModel(this.settings.family, modelOptions(session.model));
+        resolveModel(this.settings.kind, modelOptions(session.model));
         return session.model;
       } catch {
         session.model = undefined;
@@ -238,7 +238,7 @@ export class Controller implements vscode.Disposable {
       const source = await readCsv(uri);
       const settings = this.settings;
       const model = this.modelFor(session);
-      const binomial = model.outcome === 'binomial';
+      const binomial = model.outcome === 'proportions';
       const choice = await this.columnsFor(uri, source, options, ask, binomial, cancel.token);
       if (!choice) return { status: 'dismissed', file, runId };
       if (session.running?.runId !== runId) return { status: 'superseded', file, runId };
@@ -416,7 +416,7 @@ export class Controller implements vscode.Disposable {
       robustK: choice.robust ? (current.robustK ?? this.settings.huberK) : undefined,
     };
     try {
-      resolveModel(this.settings.family, modelOptions(next));
+      resolveModel(this.settings.kind, modelOptions(next));
     } catch (err) {
       session.panel?.post({ type: 'failed', runId: r.runId, message: `Not changed: ${errorText(err)}` });
       return;

@@ -2,23 +2,29 @@
  * Knotwise's settings (`knotwise.*`) read once into a typed, read-only snapshot with
  * defaults and limits. Values outside their limits fall back to the default and are
  * listed in `problems`, so the host can say what it ignored. The texts use the command
- * line's syntax (core/spec.ts), so a setting and a CLI flag mean the same thing.
+ * line's words from core/registry/, so a setting and a command-line option mean the same
+ * thing and have the same limits.
  */
 import type { AnalysisOptions } from '../core/analysisTypes';
-import { MAX_HUBER_K, resolveModel } from '../core/fit/model';
+import { InputError } from '../core/errors';
+import { MAX_HUBER_K } from '../core/fit/model';
 import { HUBER_K } from '../core/fit/robust';
 import { checkShapes } from '../core/fit/shape';
-import { parseDfList, parseResample } from '../core/spec';
+import { parseDfList } from '../core/spec';
 import { parseGrid, type GridSpec } from '../core/table/grid';
 import type { ResampleSpec, RuleSpec } from '../core/tune/types';
-import type { Family, ModelOptions, Outcome, Shape } from '../core/types';
+import type { CurveKindId, ModelOptions, Outcome, Shape } from '../core/types';
+import { DEFAULT_CURVE, parseCurve, resolveModel } from '../core/registry/curves/index';
+import { DEFAULT_OUTCOME, OUTCOME_LIST } from '../core/registry/outcomes/index';
+import { DEFAULT_RESAMPLING, parseResampling } from '../core/registry/resampling/index';
+import { DEFAULT_RULE, MAX_TOLERANCE_PERCENT, parseRule, RULE_LIST } from '../core/registry/rules/index';
 
 /** Reads one raw setting (vscode's WorkspaceConfiguration.get, or a plain object in tests). */
 export type SettingReader = (key: string) => unknown;
 
 /** The settings snapshot. */
 export interface Settings {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   /** Outcome family, shapes and Huber constant (undefined: least squares), checked against the family. */
   readonly model: ModelSettings;
   /** knotwise.huberK, also when robust fitting is off (the panel's robust switch uses it). */
@@ -44,7 +50,7 @@ export interface Settings {
   readonly problems: readonly string[];
 }
 
-/** The model options of the settings (the command line's --family, --shape, --robust / --huber-k). */
+/** The model options of the settings (the command line's --outcome, --shape, --robust / --robust-k). */
 export interface ModelSettings {
   readonly outcome: Outcome;
   readonly shape: readonly Shape[];
@@ -54,14 +60,14 @@ export interface ModelSettings {
 
 /** Defaults, the same as the command line's. */
 export const DEFAULTS = {
-  family: 'natural' as Family,
-  outcome: 'gaussian' as Outcome,
+  kind: DEFAULT_CURVE as CurveKindId,
+  outcome: DEFAULT_OUTCOME,
   shape: [] as readonly Shape[],
   robust: false,
   huberK: HUBER_K,
   candidates: '',
-  resampling: 'boot:50',
-  rule: '1se',
+  resampling: DEFAULT_RESAMPLING,
+  rule: DEFAULT_RULE,
   tolerancePercent: 2,
   seed: 1,
   holdoutFraction: 0,
@@ -73,16 +79,16 @@ export const DEFAULTS = {
   recordName: '${name}.fit.json',
 } as const;
 
-/** Limits of the numeric settings. */
+/** Limits of the numeric settings (the resampling limits live in core/registry/resampling/). */
 export const LIMITS = {
-  resamples: [10, 5000],
-  folds: [2, 100],
-  repeats: [1, 100],
-  tolerancePercent: [0, 100],
+  tolerancePercent: [0, MAX_TOLERANCE_PERCENT],
   holdoutFraction: [0, 0.5],
   significantDigits: [3, 17],
   seed: [0, 2 ** 32 - 1],
 } as const;
+
+/** Rules a setting may name (the person's own pick is a per-file choice in the panel). */
+export const SETTING_RULES: readonly string[] = RULE_LIST.filter((r) => r.setting).map((r) => r.id);
 
 /** Reads and checks every Knotwise setting. */
 export function readSettings(get: SettingReader): Settings {
@@ -109,40 +115,30 @@ export function readSettings(get: SettingReader): Settings {
     try {
       return parse();
     } catch (err) {
-      problems.push(`knotwise.${key}: ${err instanceof Error ? err.message : String(err)}; using the default`);
+      problems.push(`knotwise.${key}: ${err instanceof InputError ? err.describe('editor') : err instanceof Error ? err.message : String(err)}; using the default`);
       return fallback;
     }
   };
 
-  const familyText = str('curveFamily', DEFAULTS.family);
-  const family: Family = familyText === 'natural' || familyText === 'poly' || familyText === 'smooth' ? familyText : DEFAULTS.family;
-  if (family !== familyText) problems.push(`knotwise.curveFamily "${familyText}" is not natural, poly or smooth; using ${DEFAULTS.family}`);
+  const curveText = str('curve', DEFAULTS.kind);
+  const kind: CurveKindId = attempt('curve', DEFAULTS.kind, () => parseCurve(curveText));
 
-  const { model, huberK } = readModel(get, family, problems);
+  const { model, huberK } = readModel(get, kind, problems);
 
   const candText = str('candidates', DEFAULTS.candidates);
   const candidates = candText === '' ? undefined : attempt<number[] | undefined>('candidates', undefined, () => parseDfList(candText));
 
-  const defaultResample: ResampleSpec = { kind: 'boot', resamples: 50 };
-  const resample = attempt('resampling', defaultResample, () => checkResample(parseResample(str('resampling', DEFAULTS.resampling))));
+  const defaultResample: ResampleSpec = { kind: 'bootstrap', resamples: 50 };
+  // The resampling registry's limits apply here as on the command line.
+  const resample = attempt('resampling', defaultResample, () => parseResampling(str('resampling', DEFAULTS.resampling)));
 
   const tolerancePercent = numIn('tolerancePercent', DEFAULTS.tolerancePercent, LIMITS.tolerancePercent);
   const ruleText = str('rule', DEFAULTS.rule);
-  let rule: RuleSpec;
-  switch (ruleText) {
-    case 'lowest':
-      rule = { kind: 'lowest' };
-      break;
-    case '1se':
-      rule = { kind: '1se' };
-      break;
-    case 'tolerance':
-      rule = { kind: 'tol', percent: tolerancePercent };
-      break;
-    default:
-      problems.push(`knotwise.rule "${ruleText}" is not lowest, 1se or tolerance; using 1se`);
-      rule = { kind: '1se' };
-  }
+  // The settings name a rule without its number; the tolerance comes from its own setting.
+  const ruleDef = RULE_LIST.find((r) => r.setting && r.id === ruleText);
+  if (!ruleDef) problems.push(`knotwise.rule "${ruleText}" is not one of ${SETTING_RULES.join(', ')}; using ${DEFAULTS.rule}`);
+  const ruleSyntax = ruleDef?.id === 'simplest-within' ? `simplest-within:${tolerancePercent}` : (ruleDef?.id ?? DEFAULTS.rule);
+  const rule: RuleSpec = attempt('rule', { kind: 'one-se' }, () => parseRule(ruleSyntax));
 
   const gridText = str('table.grid', DEFAULTS.grid);
   const grid = gridText === '' ? undefined : attempt<GridSpec | undefined>('table.grid', undefined, () => parseGrid(gridText));
@@ -153,7 +149,7 @@ export function readSettings(get: SettingReader): Settings {
   const recordName = checkName('output.recordName', str('output.recordName', DEFAULTS.recordName), DEFAULTS.recordName, problems);
 
   return {
-    family,
+    kind,
     model,
     huberK,
     candidates,
@@ -177,25 +173,26 @@ export function readSettings(get: SettingReader): Settings {
  * curve family (core/fit/model.ts resolveModel): an option the family cannot combine with
  * the ones before it is dropped and listed in `problems`.
  */
-function readModel(get: SettingReader, family: Family, problems: string[]): { model: ModelSettings; huberK: number } {
+function readModel(get: SettingReader, kind: CurveKindId, problems: string[]): { model: ModelSettings; huberK: number } {
   const fits = (m: ModelOptions): string | undefined => {
     try {
-      resolveModel(family, m);
+      resolveModel(kind, m);
       return undefined;
     } catch (err) {
-      return err instanceof Error ? err.message : String(err);
+      return err instanceof InputError ? err.describe('editor') : err instanceof Error ? err.message : String(err);
     }
   };
   const outcomeRaw = get('outcome');
   let outcome: Outcome = DEFAULTS.outcome;
   if (outcomeRaw !== undefined && outcomeRaw !== null) {
-    if (outcomeRaw === 'gaussian' || outcomeRaw === 'poisson' || outcomeRaw === 'binomial') outcome = outcomeRaw;
-    else problems.push(`knotwise.outcome "${String(outcomeRaw)}" is not gaussian, poisson or binomial; using gaussian`);
+    const hit = OUTCOME_LIST.find((o) => o.id === outcomeRaw);
+    if (hit) outcome = hit.id;
+    else problems.push(`knotwise.outcome "${String(outcomeRaw)}" is not one of ${OUTCOME_LIST.map((o) => o.id).join(', ')}; using ${DEFAULTS.outcome}`);
   }
   const outcomeProblem = fits({ outcome });
   if (outcomeProblem) {
-    problems.push(`knotwise.outcome: ${outcomeProblem}; using gaussian`);
-    outcome = 'gaussian';
+    problems.push(`knotwise.outcome: ${outcomeProblem}; using ${DEFAULTS.outcome}`);
+    outcome = DEFAULTS.outcome;
   }
   const shapeRaw = get('shape');
   let shape: readonly Shape[] = DEFAULTS.shape;
@@ -215,11 +212,11 @@ function readModel(get: SettingReader, family: Family, problems: string[]): { mo
   const robustRaw = get('robust');
   let robust = typeof robustRaw === 'boolean' ? robustRaw : DEFAULTS.robust;
   if (robustRaw !== undefined && robustRaw !== null && typeof robustRaw !== 'boolean') problems.push('knotwise.robust must be true or false; using false');
-  const kRaw = get('huberK');
+  const kRaw = get('robustK');
   let k: number = DEFAULTS.huberK;
   if (kRaw !== undefined && kRaw !== null) {
     if (typeof kRaw === 'number' && Number.isFinite(kRaw) && kRaw > 0 && kRaw <= MAX_HUBER_K) k = kRaw;
-    else problems.push(`knotwise.huberK must be a number above 0 and at most ${MAX_HUBER_K}; using ${DEFAULTS.huberK}`);
+    else problems.push(`knotwise.robustK must be a number above 0 and at most ${MAX_HUBER_K}; using ${DEFAULTS.huberK}`);
   }
   const robustProblem = robust ? fits({ outcome, shape, robust: { k } }) : undefined;
   if (robustProblem) {
@@ -231,28 +228,16 @@ function readModel(get: SettingReader, family: Family, problems: string[]): { mo
 
 /**
  * Model settings as the command line's model options: only what differs from plain least
- * squares, and the default Huber constant as `true` (--robust) rather than { k } (--huber-k),
+ * squares, and the default Huber constant as `true` (--robust) rather than { k } (--robust-k),
  * so the record and its regenerate command read as the command line writes them.
- * Example: modelOptions({ outcome: 'poisson', shape: [], robustK: undefined }) -> { outcome: 'poisson' }.
+ * Example: modelOptions({ outcome: 'counts', shape: [], robustK: undefined }) -> { outcome: 'counts' }.
  */
 export function modelOptions(m: ModelSettings): ModelOptions {
   return {
-    ...(m.outcome !== 'gaussian' ? { outcome: m.outcome } : {}),
+    ...(m.outcome !== 'continuous' ? { outcome: m.outcome } : {}),
     ...(m.shape.length > 0 ? { shape: m.shape } : {}),
     ...(m.robustK !== undefined ? { robust: m.robustK === HUBER_K ? true : { k: m.robustK } } : {}),
   };
-}
-
-function checkResample(spec: ResampleSpec): ResampleSpec {
-  const within = (v: number, [lo, hi]: readonly [number, number], what: string): void => {
-    if (!Number.isInteger(v) || v < lo || v > hi) throw new Error(`${what} must be a whole number from ${lo} to ${hi}; got ${v}`);
-  };
-  if (spec.kind === 'boot') within(spec.resamples, LIMITS.resamples, 'the number of bootstrap resamples');
-  if (spec.kind === 'cv') {
-    within(spec.folds, LIMITS.folds, 'the number of folds');
-    within(spec.repeats, LIMITS.repeats, 'the number of repeats');
-  }
-  return spec;
 }
 
 function checkName(key: string, value: string, fallback: string, problems: string[]): string {
@@ -269,7 +254,7 @@ function checkName(key: string, value: string, fallback: string, problems: strin
  * Keys in the command line's order, so equal options compare equal as JSON.
  */
 export function analysisOptions(s: Settings, model: ModelSettings = s.model): AnalysisOptions {
-  return { family: s.family, candidates: s.candidates, resample: s.resample, rule: s.rule, seed: s.seed, holdout: s.holdout > 0 ? s.holdout : undefined, ...modelOptions(model) };
+  return { kind: s.kind, candidates: s.candidates, resample: s.resample, rule: s.rule, seed: s.seed, holdout: s.holdout > 0 ? s.holdout : undefined, ...modelOptions(model) };
 }
 
 /** A file name from a pattern: ${name} is the data file's name without extension. */

@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Installs code-server 4.100.3 (VS Code 1.100.3's server and web workbench) into the
 # git-ignored folder .e2e/cs of the repository, for the extension-host and whole-editor
-# tests (see TESTING.md in the shared notes). Works offline apart from the npm registry
+# tests (see docs/testing.md, "Offline workbench"). Works offline apart from the npm registry
 # and Debian's repositories. Does nothing when the right version is already there.
 set -euo pipefail
 

@@ -1,6 +1,6 @@
 // Shared parts of the browser-driven test layers: headless Chromium through playwright-core
 // with every request outside 127.0.0.1 blocked and recorded, and a code-server workbench
-// (VS Code 1.100.3 for the web) started in a fresh run folder. See TESTING.md in the shared notes.
+// (VS Code 1.100.3 for the web) started in a fresh run folder. See docs/testing.md, "Offline workbench".
 import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, writeFileSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';

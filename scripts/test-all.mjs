@@ -1,7 +1,9 @@
 // Runs every test layer in order and ends with one line "N passed, M failed" over all of them.
-// Layers: type check, core unit + external-reference tests (mocha on Node), the webview in
+// Layers: type check, lint (ESLint, including the import rules of the layers), format check
+// (Prettier), build, core unit + external-reference tests (mocha on Node), the webview in
 // headless Chromium, the extension inside the real VS Code extension host, and the whole
-// editor driven in the browser. A layer that cannot start counts as one failure.
+// editor driven in the browser. A layer that cannot start, or whose runner file is missing,
+// counts as one failure. Usage: node scripts/test-all.mjs [layer ...] runs only those layers.
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 
@@ -43,17 +45,34 @@ const layerCounts = (out, status) => {
   return counts;
 };
 
+/** A layer whose runner file is missing fails: a renamed or deleted runner must not pass silently. */
+function missing(name, file) {
+  if (only.length && !only.includes(name)) return;
+  console.log(`\n=== ${name}: runner ${file} is missing`);
+  failed += 1;
+  console.log(`=== ${name}: 0 passed, 1 failed`);
+}
+
 const npx = 'npx';
-run('typecheck', npx, ['tsc', '-p', 'tsconfig.json', '--noEmit'], step);
-if (existsSync('webview/tsconfig.json')) run('typecheck-webview', npx, ['tsc', '-p', 'webview/tsconfig.json', '--noEmit'], step);
-run('build', process.execPath, ['scripts/build.mjs'], step);
-run('core', npx, ['mocha', 'test/unit/**/*.test.ts', 'test/reference/**/*.test.ts'], mochaCounts);
-for (const [name, file] of [
+const runners = [
   ['webview', 'test/webview/run.mjs'],
   ['host', 'test/host/run.mjs'],
   ['editor', 'test/e2e/run.mjs'],
-]) {
+];
+const layers = ['typecheck', 'typecheck-webview', 'lint', 'format', 'build', 'core', ...runners.map(([name]) => name)];
+for (const name of only.filter((n) => !layers.includes(n))) {
+  console.log(`\n=== ${name}: no such layer (layers: ${layers.join(', ')})`);
+  failed += 1;
+}
+run('typecheck', npx, ['tsc', '-p', 'tsconfig.json', '--noEmit'], step);
+run('typecheck-webview', npx, ['tsc', '-p', 'webview/tsconfig.json', '--noEmit'], step);
+run('lint', npx, ['eslint', '.'], step);
+run('format', npx, ['prettier', '--check', '.'], step);
+run('build', process.execPath, ['scripts/build.mjs'], step);
+run('core', npx, ['mocha', 'test/unit/**/*.test.ts', 'test/reference/**/*.test.ts'], mochaCounts);
+for (const [name, file] of runners) {
   if (existsSync(file)) run(name, process.execPath, [file], layerCounts);
+  else missing(name, file);
 }
 console.log(`\n${passed} passed, ${failed} failed`);
 process.exitCode = failed === 0 ? 0 : 1;

@@ -8,9 +8,10 @@ import { influenceSvg } from '../core/plots/influence';
 import { normalQqSvg } from '../core/plots/normalQq';
 import { residualSvg } from '../core/plots/residuals';
 import type { FitDetail, PanelPayload } from '../core/protocol';
-import { metricLabel, ruleWords } from '../core/tune/format';
+import { metricLabel } from '../core/tune/format';
 import type { Selection } from '../core/tune/types';
 import { el, svgFromText } from './dom';
+import { ruleWords } from '../core/registry/rules/index';
 
 /** One figure: an id, a caption and its SVG text (or a placeholder text while details load). */
 interface FigureSpec {

@@ -8,19 +8,20 @@
 import type { FitDetail, HostMessage, ModelChoice, PanelPayload } from '../core/protocol';
 import { unreachable } from '../core/protocol';
 import type { Outcome, Shape } from '../core/types';
-import { metricLabel, ruleWords, sig } from '../core/tune/format';
+import { metricLabel, sig } from '../core/tune/format';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec, Selection } from '../core/tune/types';
 import { el, replaceChildren } from './dom';
 import { renderFigures } from './figures';
 import type { Host } from './vscodeApi';
+import { ruleWords } from '../core/registry/rules/index';
 
 type RuleKind = RuleSpec['kind'];
 
 const OUTCOME_CHOICES: readonly { readonly outcome: Outcome; readonly label: string }[] = [
-  { outcome: 'gaussian', label: 'Least squares (Gaussian)' },
-  { outcome: 'poisson', label: 'Counts (Poisson, log link)' },
-  { outcome: 'binomial', label: 'Proportions (binomial, logit link)' },
+  { outcome: 'continuous', label: 'Least squares (Gaussian)' },
+  { outcome: 'counts', label: 'Counts (Poisson, log link)' },
+  { outcome: 'proportions', label: 'Proportions (binomial, logit link)' },
 ];
 
 const SHAPE_CHOICES: readonly { readonly shape: Shape; readonly label: string; readonly opposite?: Shape }[] = [
@@ -32,16 +33,16 @@ const SHAPE_CHOICES: readonly { readonly shape: Shape; readonly label: string; r
 ];
 
 const RULE_CHOICES: readonly { readonly kind: RuleKind; readonly label: string }[] = [
-  { kind: '1se', label: 'One-standard-error rule' },
-  { kind: 'tol', label: 'Within a tolerance of the lowest error' },
-  { kind: 'lowest', label: 'Lowest mean error' },
-  { kind: 'manual', label: 'My own df' },
+  { kind: 'one-se', label: 'One-standard-error rule' },
+  { kind: 'simplest-within', label: 'Within a tolerance of the lowest error' },
+  { kind: 'least-error', label: 'Lowest mean error' },
+  { kind: 'pick', label: 'My own df' },
 ];
 
 /** The panel's state and DOM. */
 export class Panel {
   private payload: PanelPayload | undefined;
-  private rule: RuleSpec = { kind: '1se' };
+  private rule: RuleSpec = { kind: 'one-se' };
   private tolerance = 2;
   private readonly details = new Map<number, FitDetail>();
   private readonly requested = new Set<number>();
@@ -111,7 +112,7 @@ export class Panel {
     this.requested.clear();
     for (const d of payload.details) this.details.set(d.df, d);
     this.rule = kept && kept.runId === payload.runId ? (kept.rule as RuleSpec) : payload.rule;
-    this.tolerance = this.rule.kind === 'tol' ? this.rule.percent : payload.tolerancePercent;
+    this.tolerance = this.rule.kind === 'simplest-within' ? this.rule.percent : payload.tolerancePercent;
     this.root.dataset.state = 'ready';
     this.root.dataset.runId = String(payload.runId);
     this.build(payload);
@@ -165,7 +166,7 @@ export class Panel {
         'header',
         { class: 'kw-header' },
         el('h1', {}, `${s.yLabel} against ${s.xLabel}`),
-        el('p', { class: 'kw-meta' }, `${s.fileName} · ${rows}${s.weightsLabel ? ` · weights: ${s.weightsLabel}` : ''} · ${p.familyWords} · ${p.resampleWords}`),
+        el('p', { class: 'kw-meta' }, `${s.fileName} · ${rows}${s.weightsLabel ? ` · weights: ${s.weightsLabel}` : ''} · ${p.curveWords} · ${p.resamplingWords}`),
         el('p', { class: 'kw-meta', id: 'kw-model-words' }, `Model: ${p.model.words}${p.model.fromPanel ? ' (set in this panel; the settings say otherwise)' : ''}`),
       ),
       el(
@@ -196,9 +197,9 @@ export class Panel {
         return;
       }
       this.tolerance = v;
-      this.setRule({ kind: 'tol', percent: v });
+      this.setRule({ kind: 'simplest-within', percent: v });
     });
-    dfSelect.addEventListener('change', () => this.setRule({ kind: 'manual', df: Number(dfSelect.value) }));
+    dfSelect.addEventListener('change', () => this.setRule({ kind: 'pick', df: Number(dfSelect.value) }));
     this.byId('kw-save').addEventListener('click', () => this.save());
     this.byId('kw-rerun').addEventListener('click', () => this.rerun());
     for (const input of Array.from(this.root.querySelectorAll<HTMLInputElement | HTMLSelectElement>('#kw-model-controls select, #kw-model-controls input'))) {
@@ -225,7 +226,7 @@ export class Panel {
       el('div', { class: 'kw-inputs' }, el('label', { for: 'kw-outcome' }, 'Readings are'), outcome),
       el('div', { class: 'kw-shape-row' }, el('span', { class: 'kw-muted' }, 'Shape: '), shapes),
       el('div', { class: 'kw-check-item' }, el('input', { type: 'checkbox', id: 'kw-robust' }), el('label', { for: 'kw-robust' }, `Robust (Huber${p.model.robustK !== undefined ? `, k = ${p.model.robustK}` : ''}): down-weight outliers`)),
-      unsupported.length ? el('p', { class: 'kw-muted kw-small' }, `The ${p.familyWords} does not support ${unsupported.join(', ')}.`) : null,
+      unsupported.length ? el('p', { class: 'kw-muted kw-small' }, `The ${p.curveWords} does not support ${unsupported.join(', ')}.`) : null,
     );
   }
 
@@ -253,14 +254,14 @@ export class Panel {
       const box = this.byId<HTMLInputElement>(`kw-shape-${c.shape}`);
       box.disabled = !sup.shapes || (c.opposite !== undefined && choice.shape.includes(c.opposite));
     }
-    this.byId<HTMLInputElement>('kw-robust').disabled = !sup.robust || choice.outcome !== 'gaussian';
+    this.byId<HTMLInputElement>('kw-robust').disabled = !sup.robust || choice.outcome !== 'continuous';
   }
 
   /** The options the controls show. */
   private modelChoice(): ModelChoice {
     const outcome = this.byId<HTMLSelectElement>('kw-outcome').value as Outcome;
     const shape = SHAPE_CHOICES.filter((c) => this.byId<HTMLInputElement>(`kw-shape-${c.shape}`).checked).map((c) => c.shape);
-    const robust = outcome === 'gaussian' && this.byId<HTMLInputElement>('kw-robust').checked;
+    const robust = outcome === 'continuous' && this.byId<HTMLInputElement>('kw-robust').checked;
     return { outcome, shape, robust };
   }
 
@@ -281,15 +282,15 @@ export class Panel {
 
   private setRuleKind(kind: RuleKind): void {
     switch (kind) {
-      case 'lowest':
-      case '1se':
+      case 'least-error':
+      case 'one-se':
         this.setRule({ kind });
         return;
-      case 'tol':
-        this.setRule({ kind: 'tol', percent: this.tolerance });
+      case 'simplest-within':
+        this.setRule({ kind: 'simplest-within', percent: this.tolerance });
         return;
-      case 'manual':
-        this.setRule({ kind: 'manual', df: this.currentSelection()?.df ?? Number(this.byId<HTMLSelectElement>('kw-df').value) });
+      case 'pick':
+        this.setRule({ kind: 'pick', df: this.currentSelection()?.df ?? Number(this.byId<HTMLSelectElement>('kw-df').value) });
         return;
       default:
         unreachable(kind);
@@ -307,7 +308,7 @@ export class Panel {
     if (!p) return;
     const sel = this.currentSelection();
     for (const input of Array.from(this.root.querySelectorAll<HTMLInputElement>('input[name="kw-rule"]'))) input.checked = input.value === this.rule.kind;
-    this.byId<HTMLInputElement>('kw-tolerance').disabled = this.rule.kind !== 'tol';
+    this.byId<HTMLInputElement>('kw-tolerance').disabled = this.rule.kind !== 'simplest-within';
     if (!sel) {
       this.byId('kw-reason').textContent = 'No candidate df could be evaluated with this rule.';
       return;

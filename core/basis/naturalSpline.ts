@@ -12,7 +12,7 @@ export interface NaturalKnots {
 }
 
 /**
- * Knot placement of DESIGN.md: df - 2 interior knots at equally spaced probability levels
+ * Knot placement (docs/design.md, "Knots"): df - 2 interior knots at equally spaced probability levels
  * j / (df - 1), j = 1..df-2, of the empirical distribution of all x (Hyndman & Fan 1996,
  * "Sample quantiles in statistical packages", The American Statistician 50(4),
  * definition 7), boundary knots at min(x) and max(x). When two knots coincide (tied x),

@@ -3,7 +3,7 @@
  * each table value (the same digits as the CSV, so a program reads the table's numbers).
  */
 import { FLAG_COLUMNS, type CurveTable, type TableColumn } from '../table/curveTable';
-import { shellWord } from '../plan';
+import { shellWord } from '../shellWord';
 import { formatNumber } from '../table/formatCsv';
 
 /** The code emitters: C header, TypeScript module, JSON. */
@@ -80,6 +80,7 @@ export function wrap(text: string, width: number): string[] {
 
 /** Control characters removed, so a file name cannot break a comment line. */
 function oneLine(text: string): string {
+  // eslint-disable-next-line no-control-regex -- control characters are what this removes
   return text.replace(/[\u0000-\u001f\u007f]/g, ' ');
 }
 

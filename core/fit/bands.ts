@@ -1,26 +1,14 @@
 import { qt } from '../stats/distributions';
 import type { FitResult } from '../types';
-import { emptyBands } from './emptyBands';
+import { emptyBands, type Bands } from './emptyBands';
 import { clipNonnegative, LinkCurve, linkBandsAt } from './linkCurve';
 
-/** The fitted curve with pointwise bands at a set of x. */
-export interface Bands {
-  readonly x: Float64Array;
-  readonly fit: Float64Array;
-  /** Standard error of the fitted mean. */
-  readonly se: Float64Array;
-  readonly ciLower: Float64Array;
-  readonly ciUpper: Float64Array;
-  readonly piLower: Float64Array;
-  readonly piUpper: Float64Array;
-  /** 1 where x lies outside the data range. */
-  readonly extrapolated: Uint8Array;
-}
+export type { Bands } from './emptyBands';
 
 /**
  * Pointwise confidence band for the mean curve, fit +- t se, and prediction band for a
  * new reading of weight 1, fit +- t sqrt(se^2 + sigma^2), with t the (1 + level)/2
- * quantile of Student's t on n - df residual degrees of freedom (DESIGN.md "Bands";
+ * quantile of Student's t on n - df residual degrees of freedom (docs/design.md, "Bands";
  * Weisberg, Applied Linear Regression, 4th ed., 2014, section 3.5). se = sigma
  * sqrt(b(x)' V b(x)). O(m) for m points. Points outside the data range are computed
  * (splines extend linearly) and flagged in `extrapolated`.

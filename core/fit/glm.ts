@@ -35,7 +35,7 @@ const LOGIT_THRESH = 30;
 
 /** Link, variance and deviance of an outcome family (McCullagh & Nelder 1989, table 2.1). */
 export interface OutcomeFamily {
-  readonly outcome: Exclude<Outcome, 'gaussian'>;
+  readonly outcome: Exclude<Outcome, 'continuous'>;
   readonly link: 'log' | 'logit';
   linkfun(mu: number): number;
   linkinv(eta: number): number;
@@ -54,7 +54,7 @@ const yLogY = (y: number, mu: number): number => (y > 0 ? y * Math.log(y / mu) :
 
 /** Poisson outcome with log link: mu = exp(eta), V(mu) = mu. */
 export const poissonFamily: OutcomeFamily = {
-  outcome: 'poisson',
+  outcome: 'counts',
   link: 'log',
   linkfun: (mu) => Math.log(mu),
   linkinv: (eta) => Math.max(Math.exp(eta), EPS),
@@ -67,7 +67,7 @@ export const poissonFamily: OutcomeFamily = {
 
 /** Binomial outcome with logit link: mu = 1 / (1 + exp(-eta)), V(mu) = mu (1 - mu). */
 export const binomialFamily: OutcomeFamily = {
-  outcome: 'binomial',
+  outcome: 'proportions',
   link: 'logit',
   linkfun: (mu) => Math.log(mu / (1 - mu)),
   linkinv: (eta) => {
@@ -92,24 +92,20 @@ export const binomialFamily: OutcomeFamily = {
   start: (y, w) => (w * y + 0.5) / (w + 1),
 };
 
-/** The family of a non-Gaussian outcome. */
-export function outcomeFamily(outcome: Exclude<Outcome, 'gaussian'>): OutcomeFamily {
-  return outcome === 'poisson' ? poissonFamily : binomialFamily;
-}
 
 /**
  * Checks that y fits the outcome: Poisson counts y >= 0; binomial proportions 0 <= y <= 1.
  * Throws InputError naming the first bad row's CSV line. O(n).
- * Example: checkOutcomeData('poisson', { x, y: Float64Array.of(0, 2, -1) }) throws for the third row.
+ * Example: checkOutcomeData('counts', { x, y: Float64Array.of(0, 2, -1) }) throws for the third row.
  */
-export function checkOutcomeData(outcome: Exclude<Outcome, 'gaussian'>, data: XYData): void {
+export function checkOutcomeData(outcome: Exclude<Outcome, 'continuous'>, data: XYData): void {
   const { y, lines } = data;
   for (let i = 0; i < y.length; i++) {
     const yi = y[i] as number;
-    const bad = outcome === 'poisson' ? !(yi >= 0) : !(yi >= 0 && yi <= 1);
+    const bad = outcome === 'counts' ? !(yi >= 0) : !(yi >= 0 && yi <= 1);
     if (bad) {
       const what =
-        outcome === 'poisson'
+        outcome === 'counts'
           ? `a Poisson outcome must be a count of at least 0; got ${yi}`
           : `a binomial outcome without a trials column must be a proportion from 0 to 1 (or a 0/1 outcome); got ${yi}`;
       throw new InputError(what, { line: lines ? lines[i] : undefined, column: 'y' });

@@ -1,4 +1,4 @@
-import type { Curve, Family, FitResult, ModelReport, XYData } from '../types';
+import type { Curve, CurveKindId, FitResult, ModelReport, XYData } from '../types';
 import type { OutcomeFamily } from './glm';
 
 /** A Pearson dispersion above this suggests more scatter than the outcome family allows (a Knotwise rule of thumb). */
@@ -6,7 +6,7 @@ export const OVERDISPERSION_NOTE = 1.5;
 
 /** What a Poisson or binomial fit hands to `summariseGlm`. */
 export interface SolvedGlm {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   readonly df: number;
   readonly curve: Curve;
   readonly coefficients: Float64Array;
@@ -86,7 +86,7 @@ export function summariseGlm(data: XYData, fam: OutcomeFamily, s: SolvedGlm): Fi
       const e = yi - fam.linkinv(eta - step);
       loo += wi * e * e;
     }
-    if (mu <= 1e-10 * Math.max(1, yi) || (fam.outcome === 'binomial' && mu >= 1 - 1e-10)) atBound++;
+    if (mu <= 1e-10 * Math.max(1, yi) || (fam.outcome === 'proportions' && mu >= 1 - 1e-10)) atBound++;
   }
   const ybar = swy / sw;
   let nullDev = 0;
@@ -94,7 +94,7 @@ export function summariseGlm(data: XYData, fam: OutcomeFamily, s: SolvedGlm): Fi
   const residualDf = n - df;
   const dispersion = residualDf > 0 ? chi2 / residualDf : NaN;
   const notes = [...s.notes];
-  const name = fam.outcome === 'poisson' ? 'Poisson' : 'binomial';
+  const name = fam.outcome === 'counts' ? 'Poisson' : 'proportions';
   if (dispersion > OVERDISPERSION_NOTE) {
     notes.push(
       `The Pearson dispersion is ${dispersion.toPrecision(3)} (about 1 is expected): the readings scatter more than a ${name} outcome allows, so the bands are too narrow; check for missing structure or use a more flexible curve.`,
@@ -102,7 +102,7 @@ export function summariseGlm(data: XYData, fam: OutcomeFamily, s: SolvedGlm): Fi
   }
   if (atBound > 0) {
     notes.push(
-      fam.outcome === 'poisson'
+      fam.outcome === 'counts'
         ? `${atBound} row(s) have a fitted mean numerically 0; the curve's logarithm runs off to minus infinity there and its bands are unreliable.`
         : `${atBound} row(s) have fitted probabilities numerically 0 or 1 (the outcome separates along x); the curve is too steep to estimate there and its bands are unreliable.`,
     );
@@ -114,7 +114,7 @@ export function summariseGlm(data: XYData, fam: OutcomeFamily, s: SolvedGlm): Fi
     glm: { deviance: dev, nullDeviance: nullDev, pearsonChi2: chi2, dispersion, pearsonResiduals: pearson, devianceResiduals: devRes, linearPredictor: s.eta },
   };
   return {
-    family: s.family,
+    kind: s.kind,
     df,
     n,
     residualDf,

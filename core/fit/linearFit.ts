@@ -1,6 +1,6 @@
 import type { RowBasis } from '../basis/rowBasis';
 import { factorSpd } from '../linalg/spd';
-import type { Curve, Family, XYData } from '../types';
+import type { Curve, CurveKindId, XYData } from '../types';
 
 /** Weighted least-squares fit in a row basis, optionally restricted to span(Z). */
 export interface LinearFit {
@@ -129,7 +129,7 @@ export function times(z: Float64Array, v: Float64Array, p: number, q: number): F
 export class RowBasisCurve implements Curve {
   private readonly buf: Float64Array;
   constructor(
-    readonly family: Family,
+    readonly kind: CurveKindId,
     readonly df: number,
     readonly lower: number,
     readonly upper: number,

@@ -3,7 +3,7 @@
  */
 import { pbeta, pgamma, qnorm } from '../stats/distributions';
 import type { Curve } from '../types';
-import type { Bands } from './bands';
+import type { Bands } from './emptyBands';
 import { emptyBands } from './emptyBands';
 import type { OutcomeFamily } from './glm';
 import type { RowBasisCurve } from './linearFit';
@@ -25,8 +25,8 @@ export class LinkCurve implements Curve {
     readonly trials = 1,
   ) {}
 
-  get family(): RowBasisCurve['family'] {
-    return this.eta.family;
+  get kind(): RowBasisCurve['kind'] {
+    return this.eta.kind;
   }
   get df(): number {
     return this.eta.df;
@@ -92,7 +92,7 @@ export function linkBandsAt(curve: LinkCurve, xs: ArrayLike<number>, level: numb
     out.se[i] = fam.muEta(eta) * seEta;
     out.ciLower[i] = lo;
     out.ciUpper[i] = hi;
-    if (fam.outcome === 'poisson') {
+    if (fam.outcome === 'counts') {
       out.piLower[i] = qpois(lowP, lo);
       out.piUpper[i] = qpois(highP, hi);
     } else {

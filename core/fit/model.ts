@@ -2,22 +2,20 @@
  * Fits with an outcome family (Poisson, binomial), shape constraints or Huber weights: the
  * routing, checks and result assembly shared by fitCurve and the resampling engine.
  */
-import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
-import { OrthoPolyBasis } from '../basis/orthoPoly';
 import type { RowBasis } from '../basis/rowBasis';
-import { FitError, InputError } from '../errors';
-import { nullSpace } from '../linalg/nullSpace';
-import type { Family, FitResult, ModelOptions, ModelReport, Outcome, Shape } from '../types';
+import { InputError } from '../errors';
+import type { CurveKind } from '../registry/curves/types';
+import { OUTCOMES } from '../registry/outcomes/index';
+import type { FitResult, ModelOptions, ModelReport, Outcome, Shape } from '../types';
 import { CachedRows } from './cachedRows';
-import { checkOutcomeData, irls, outcomeFamily } from './glm';
+import { checkOutcomeData, irls, type OutcomeFamily } from './glm';
 import { summariseGlm } from './glmSummary';
-import { fitShapedSmoothingSpline } from './shapedSmoothing';
 import { RowBasisCurve } from './linearFit';
 import { LinearSystem } from './linearSystem';
 import { LinkCurve } from './linkCurve';
 import type { PreparedData } from './prepared';
 import { HUBER_K, huberIrls } from './robust';
-import { checkShapes, shapeRows, shapeWords, type ShapeRows } from './shape';
+import { checkShapes, shapeWords, type ShapeRows } from './shape';
 import { summariseFit } from './summary';
 
 /** Most down-weighted rows listed by line in a robust fit's report (the count is always given). */
@@ -35,40 +33,40 @@ export interface ResolvedModel {
 
 /** True when the options ask for plain (weighted) least squares: Gaussian, no shape, not robust. */
 export function isPlainModel(m: ModelOptions | undefined): boolean {
-  return !m || ((m.outcome ?? 'gaussian') === 'gaussian' && (m.shape ?? []).length === 0 && !m.robust);
+  return !m || ((m.outcome ?? 'continuous') === 'continuous' && (m.shape ?? []).length === 0 && !m.robust);
 }
 
 /**
- * Checks model options against a curve family and normalises them. Shape constraints are
- * available for the natural spline and the smoothing spline (core/fit/shapedSmoothing.ts,
- * lambda fixed by the unconstrained df); Poisson, binomial and robust fitting for the
- * natural spline and the polynomial; robust fitting for the Gaussian outcome only. The
- * smoothing spline takes no reweighting: it is computed by a state-space smoother with a
- * knot at every distinct x (core/fit/smoothingSpline.ts), and its df (the trace fixing
- * lambda) is not defined for a non-linear fit.
- * Throws InputError with the reason. Example: resolveModel('natural', { shape: ['convex'] }).
+ * Checks model options against a curve kind's supports (core/registry/curves/) and
+ * normalises them: the outcome must be one the kind takes, shape constraints and robust
+ * fitting only where the kind supports them, robust fitting for continuous readings only.
+ * `all` lists the kinds a refusal may suggest instead. Throws InputError with the reason.
+ * Example: resolveModelFor(naturalSpline, { shape: ['convex'] }).
  */
-export function resolveModel(family: Family, m: ModelOptions | undefined): ResolvedModel {
-  const outcome = m?.outcome ?? 'gaussian';
-  if (outcome !== 'gaussian' && outcome !== 'poisson' && outcome !== 'binomial') {
-    throw new InputError(`unknown outcome family "${String(outcome)}"; use gaussian, poisson or binomial`);
-  }
+export function resolveModelFor(kind: CurveKind, m: ModelOptions | undefined, all: readonly CurveKind[] = [kind]): ResolvedModel {
+  const outcome = m?.outcome ?? 'continuous';
+  if (!(outcome in OUTCOMES)) throw new InputError(`unknown outcome "${String(outcome)}"; use ${Object.keys(OUTCOMES).join(', ')}`);
   const shape = checkShapes(m?.shape ?? []);
   const robust = m?.robust;
   let robustK: number | undefined;
   if (robust === true) robustK = HUBER_K;
   else if (robust && typeof robust === 'object') {
     robustK = robust.k;
-    if (!(robustK > 0 && robustK <= MAX_HUBER_K)) throw new InputError(`the Huber tuning constant must be above 0 and at most ${MAX_HUBER_K}; got ${robust.k}`);
+    if (!(robustK > 0 && robustK <= MAX_HUBER_K)) throw new InputError(`the robust fit's tuning constant must be above 0 and at most ${MAX_HUBER_K}; got ${robust.k}`);
   }
-  if (family === 'smooth' && (outcome !== 'gaussian' || robustK !== undefined)) {
-    throw new InputError(
-      'the cubic smoothing spline supports only least squares (with or without --shape): Poisson and binomial outcomes and robust fitting need the natural spline (--model natural)',
-    );
+  const s = kind.supports;
+  if (!s.outcomes.includes(outcome)) {
+    throw new InputError(`the ${kind.name} takes ${s.outcomes.join(' or ')} readings only; ${outcome} need a curve that supports them (${supporting(all, (k) => k.outcomes.includes(outcome))})`);
   }
-  if (family === 'poly' && shape.length > 0) throw new InputError('shape constraints need the natural spline (--model natural) or the smoothing spline; the polynomial has no B-spline coefficients to constrain');
-  if (robustK !== undefined && outcome !== 'gaussian') throw new InputError(`robust (Huber) fitting applies to the Gaussian outcome only; it cannot be combined with a ${outcome} outcome`);
+  if (robustK !== undefined && !s.robust) throw new InputError(`the ${kind.name} has no robust fit; robust fitting needs another curve (${supporting(all, (k) => k.robust)})`);
+  if (shape.length > 0 && !s.shapes) throw new InputError(`the ${kind.name} takes no shape constraints; shapes need another curve (${supporting(all, (k) => k.shapes)})`);
+  if (robustK !== undefined && outcome !== 'continuous') throw new InputError(`robust fitting applies to continuous readings only; it cannot be combined with ${outcome}`);
   return { outcome, shape, robustK };
+}
+
+/** Ids of the kinds whose support passes the test, for messages. */
+function supporting(all: readonly CurveKind[], test: (s: CurveKind['supports']) => boolean): string {
+  return all.filter((k) => test(k.supports)).map((k) => k.id).join(', ') || 'none';
 }
 
 /** The row basis of one candidate, with its natural-spline restriction and shape rows. */
@@ -84,36 +82,7 @@ export interface ModelBasis {
 }
 
 /**
- * Basis of a natural spline (knots as DESIGN.md, natural boundary conditions through the
- * null space) or an orthogonal polynomial at df, with the shape rows of core/fit/shape.ts.
- * Shapes other than non-negativity on a Poisson or binomial outcome apply to the linear
- * predictor; non-negativity is dropped there (the mean is always positive). Cost O(n) for
- * the polynomial recurrence, O(p^2) for the spline's constraints.
- * Example: modelBasis(prepared, 'natural', 6, resolveModel('natural', { shape: ['convex'] })).shape.rows = 4.
- */
-export function modelBasis(prepared: PreparedData, family: Family, df: number, model: ResolvedModel): ModelBasis {
-  const { sortedX } = prepared;
-  const lower = sortedX[0] as number;
-  const upper = sortedX[sortedX.length - 1] as number;
-  if (family === 'natural') {
-    const k = naturalKnots(sortedX, prepared.distinct, df);
-    const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
-    const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
-    const shapes = model.outcome === 'gaussian' ? model.shape : model.shape.filter((s) => s !== 'nonnegative');
-    const rows = shapes.length > 0 ? shapeRows(basis.knotVector, shapes, true) : undefined;
-    return { basis, z, shape: rows, knots: Float64Array.of(k.lower, ...k.interior, k.upper), lower, upper, notes: k.notes, what: `natural spline with df ${df}` };
-  }
-  if (family === 'poly') {
-    if (!(df >= 1) || !Number.isInteger(df)) throw new FitError(`polynomial df must be a whole number of at least 1; got ${df}`);
-    if (df > prepared.distinct) throw new FitError(`polynomial with df ${df} needs at least ${df} distinct x values; the data has ${prepared.distinct}`);
-    const basis: RowBasis = df === 1 ? { size: 1, width: 1, row: (_x: number, out: Float64Array) => ((out[0] = 1), 0) } : new OrthoPolyBasis(sortedX, prepared.data.x, df - 1);
-    return { basis, z: undefined, shape: undefined, knots: new Float64Array(0), lower, upper, notes: [], what: `polynomial with df ${df}` };
-  }
-  throw new InputError('the cubic smoothing spline supports only least squares');
-}
-
-/**
- * Fits `family` at `df` with an outcome family, shape constraints and/or Huber weights
+ * Fits a curve kind at `df` with an outcome family, shape constraints and/or Huber weights
  * (see core/fit/glm.ts, core/fit/shape.ts, core/fit/robust.ts). The result is a complete
  * FitResult with a `model` report. Conventions:
  *
@@ -135,36 +104,37 @@ export function modelBasis(prepared: PreparedData, family: Family, df: number, m
  * Cost: O(n) to cache the basis rows, then O(n) per reweighting iteration.
  * Throws InputError for data that do not fit the outcome (naming the line), FitError when
  * the data cannot support df.
- * Example: fitModel(prepareData({ x, y }), 'natural', 6, resolveModel('natural', { outcome: 'poisson' })).
+ * Example: fitModel(prepareData({ x, y }), naturalSpline, 6, resolveModel('natural-spline', { outcome: 'counts' })).
  */
-export function fitModel(prepared: PreparedData, family: Family, df: number, model: ResolvedModel): FitResult {
-  // resolveModel admits only least squares with shapes for the smoothing spline.
-  if (family === 'smooth') return fitShapedSmoothingSpline(prepared.data, df, model.shape);
+export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: number, model: ResolvedModel): FitResult {
+  if (curveKind.fitModel) return curveKind.fitModel(prepared, df, model);
+  if (!curveKind.rowBasis) throw new InputError(`the ${curveKind.name} cannot be fitted with these options`);
+  const kind = curveKind.id;
   const { data } = prepared;
-  if (model.outcome !== 'gaussian') checkOutcomeData(model.outcome, data);
-  const mb = modelBasis(prepared, family, df, model);
+  if (model.outcome !== 'continuous') checkOutcomeData(model.outcome, data);
+  const mb = curveKind.rowBasis(prepared, df, model);
   const rows = new CachedRows(mb.basis, data.x);
   const system = new LinearSystem(mb.basis.size, mb.z, mb.shape, mb.what);
   const n = data.x.length;
   const w = data.w ?? new Float64Array(n).fill(1);
   const shapeNotes = constraintNotes(model, mb, df);
-  if (model.outcome !== 'gaussian') {
-    const fam = outcomeFamily(model.outcome);
+  if (model.outcome !== 'continuous') {
+    const fam = OUTCOMES[model.outcome].glm as OutcomeFamily;
     const res = irls(rows, system, data.y, w, fam);
     const { cov, rank } = system.covariance(res.solution);
     const leverage = new Float64Array(n);
     rows.quadratic(cov, res.workingWeights, leverage);
-    const etaCurve = new RowBasisCurve(family, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
-    const curve = new LinkCurve(etaCurve, fam, fam.outcome === 'binomial' ? medianTrials(w) : 1);
+    const etaCurve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
+    const curve = new LinkCurve(etaCurve, fam, fam.outcome === 'proportions' ? medianTrials(w) : 1);
     const notes = [...mb.notes, ...shapeNotes(rank, res.solution.activeCount)];
-    const label = fam.outcome === 'poisson' ? 'Poisson outcome (log link)' : 'binomial outcome (logit link)';
+    const label = fam.outcome === 'counts' ? 'Poisson outcome (log link)' : 'binomial outcome (logit link)';
     notes.push(
       res.converged
         ? `${label} fitted by iteratively reweighted least squares in ${res.iterations} iterations.`
         : `${label}: the iteratively reweighted least squares did not converge (${res.problem ?? 'unknown reason'}); treat this curve with caution.`,
     );
     return summariseGlm(data, fam, {
-      family,
+      kind,
       df,
       curve,
       coefficients: res.theta,
@@ -191,7 +161,7 @@ export function fitModel(prepared: PreparedData, family: Family, df: number, mod
     const prior = system.covarianceFor(g, res.solution);
     const f2 = res.seFactor * res.seFactor;
     const cov = prior.cov.map((v) => v * f2);
-    const curve = new RowBasisCurve(family, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
+    const curve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
     const down = downweighted(res.weights, w, data.lines);
     const notes = [...mb.notes, ...shapeNotes(weighted.rank, res.solution.activeCount)];
     notes.push(
@@ -200,7 +170,7 @@ export function fitModel(prepared: PreparedData, family: Family, df: number, mod
         (res.converged ? `; converged in ${res.iterations} iterations.` : `; did not converge: ${res.problem ?? ''}.`),
     );
     if (res.converged && res.problem) notes.push(`Robust fit: ${res.problem}.`);
-    const base = summariseFit(data, { family, df, curve, coefficients: res.theta, knots: mb.knots, fitted: res.fitted, leverage, notes });
+    const base = summariseFit(data, { kind, df, curve, coefficients: res.theta, knots: mb.knots, fitted: res.fitted, leverage, notes });
     const report: ModelReport = {
       ...reportBase(model, res.iterations, res.converged, 'identity'),
       ...constraintReport(mb, df, weighted.rank, model),
@@ -217,9 +187,9 @@ export function fitModel(prepared: PreparedData, family: Family, df: number, mod
   rows.apply(sol.theta, fitted);
   const leverage = new Float64Array(n);
   rows.quadratic(cov, w, leverage);
-  const curve = new RowBasisCurve(family, df, mb.lower, mb.upper, mb.basis, sol.theta, cov, mb.z);
+  const curve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, sol.theta, cov, mb.z);
   const notes = [...mb.notes, ...shapeNotes(rank, sol.activeCount)];
-  const base = summariseFit(data, { family, df, curve, coefficients: sol.theta, knots: mb.knots, fitted, leverage, notes });
+  const base = summariseFit(data, { kind, df, curve, coefficients: sol.theta, knots: mb.knots, fitted, leverage, notes });
   return { ...base, model: { ...reportBase(model, 1, true, 'identity'), ...constraintReport(mb, df, rank, model) } };
 }
 
@@ -229,7 +199,7 @@ function reportBase(model: ResolvedModel, iterations: number, converged: boolean
 
 /** The shapes imposed as inequalities: non-negativity is implied by a Poisson or binomial outcome. */
 function imposedShapes(model: ResolvedModel): readonly Shape[] {
-  return model.outcome === 'gaussian' ? model.shape : model.shape.filter((s) => s !== 'nonnegative');
+  return model.outcome === 'continuous' ? model.shape : model.shape.filter((s) => s !== 'nonnegative');
 }
 
 function constraintReport(mb: ModelBasis, df: number, rank: number, model: ResolvedModel): Pick<ModelReport, 'constraints'> {
@@ -242,10 +212,10 @@ function constraintNotes(model: ResolvedModel, mb: ModelBasis, df: number): (ran
   return (rank, active) => {
     const notes: string[] = [];
     const shapes = imposedShapes(model);
-    if (model.outcome !== 'gaussian' && model.shape.includes('nonnegative')) notes.push(`Shape "nonnegative" is implied by the ${model.outcome} outcome (its mean is always positive) and was not imposed separately.`);
+    if (model.outcome !== 'continuous' && model.shape.includes('nonnegative')) notes.push(`Shape "nonnegative" is implied by the ${model.outcome} outcome (its mean is always positive) and was not imposed separately.`);
     if (shapes.length === 0) return notes;
     const total = mb.shape?.rows ?? 0;
-    const scale = model.outcome === 'gaussian' ? '' : ` on the ${model.outcome === 'poisson' ? 'log' : 'logit'} scale`;
+    const scale = model.outcome === 'continuous' ? '' : ` on the ${model.outcome === 'counts' ? 'log' : 'logit'} scale`;
     notes.push(
       `Shape: ${shapeWords(shapes)}${scale}, guaranteed everywhere in the data range through ${total} linear inequalities on the B-spline coefficients; ` +
         (active === 0
@@ -272,11 +242,4 @@ function medianTrials(w: Float64Array): number {
   const mid = s.length >> 1;
   const med = s.length % 2 === 1 ? (s[mid] as number) : 0.5 * ((s[mid - 1] as number) + (s[mid] as number));
   return Math.max(1, Math.round(med));
-}
-
-/** Parses an outcome family name: gaussian | poisson | binomial. Throws InputError. */
-export function parseOutcome(text: string): Outcome {
-  const t = text.trim().toLowerCase();
-  if (t === 'gaussian' || t === 'poisson' || t === 'binomial') return t;
-  throw new InputError(`unknown outcome family "${text}"; use gaussian, poisson or binomial`);
 }

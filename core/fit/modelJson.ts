@@ -4,14 +4,14 @@
  * fitting").
  */
 import type { ModelOptions, ModelReport } from '../types';
-import { resolveModel } from './model';
+import { resolveModel } from '../registry/curves/index';
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
 const arr = (a: Float64Array): (number | null)[] => Array.from(a, num);
 
 /** Which outcome family, link, shapes, robust fitting and trials column a run used. */
 export interface ModelSpecJson {
-  readonly outcome: 'gaussian' | 'poisson' | 'binomial';
+  readonly outcome: 'continuous' | 'counts' | 'proportions';
   readonly link: 'identity' | 'log' | 'logit';
   readonly shape: readonly string[];
   readonly robust: { readonly k: number } | null;
@@ -21,14 +21,14 @@ export interface ModelSpecJson {
 /**
  * The model part of a run's spec: outcome, link, shapes (canonical order), Huber constant
  * (null when not robust) and trials column (null when none). Options are checked as
- * resolveModel does for the natural spline. Example: modelSpecJson({ outcome: 'poisson' }) ->
- * { outcome: 'poisson', link: 'log', shape: [], robust: null, trials: null }.
+ * resolveModel does for the natural spline. Example: modelSpecJson({ outcome: 'counts' }) ->
+ * { outcome: 'counts', link: 'log', shape: [], robust: null, trials: null }.
  */
 export function modelSpecJson(options: ModelOptions, trials?: string): ModelSpecJson {
-  const m = resolveModel('natural', options);
+  const m = resolveModel('natural-spline', options);
   return {
     outcome: m.outcome,
-    link: m.outcome === 'poisson' ? 'log' : m.outcome === 'binomial' ? 'logit' : 'identity',
+    link: m.outcome === 'counts' ? 'log' : m.outcome === 'proportions' ? 'logit' : 'identity',
     shape: m.shape,
     robust: m.robustK !== undefined ? { k: m.robustK } : null,
     trials: trials ?? null,

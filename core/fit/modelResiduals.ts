@@ -22,7 +22,7 @@ export interface CheckResiduals {
  * sign(y - mu) sqrt(d_i) (McCullagh & Nelder, Generalized Linear Models, 2nd ed., 1989,
  * section 2.4.3), which include the prior weights and are closer to normal than Pearson
  * residuals; standardised by sqrt(1 - h_i) they have variance about 1. O(n).
- * Example: checkResiduals(fit, data.w).gaussianChecks is false for fit.model.outcome 'poisson'.
+ * Example: checkResiduals(fit, data.w).gaussianChecks is false for fit.model.outcome 'counts'.
  */
 export function checkResiduals(fit: FitResult, w: Float64Array | undefined): CheckResiduals {
   const glm = fit.model?.glm;

@@ -6,7 +6,7 @@ import type { PreparedData } from './prepared';
 import { summariseFit } from './summary';
 
 /**
- * Natural cubic regression spline with df = k (DESIGN.md): k - 2 interior knots at
+ * Natural cubic regression spline with df = k (docs/design.md, "Natural cubic regression spline"): k - 2 interior knots at
  * quantiles of x, cubic B-splines on the clamped knot vector restricted by the natural
  * boundary conditions f''(min x) = f''(max x) = 0 (de Boor, A Practical Guide to Splines,
  * 2001, chapter IX; the same space as R's splines::ns with an intercept), linear beyond
@@ -20,10 +20,10 @@ export function fitNaturalSpline(prepared: PreparedData, df: number): FitResult 
   const basis = new ExtrapolatingBSplineBasis(knots.lower, knots.upper, knots.interior);
   const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
   const lin = fitRowBasis(prepared.data, basis, z, `natural spline with df ${df}`);
-  const curve = new RowBasisCurve('natural', df, knots.lower, knots.upper, basis, lin.theta, lin.cov, z);
+  const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, lin.theta, lin.cov, z);
   const allKnots = Float64Array.of(knots.lower, ...knots.interior, knots.upper);
   return summariseFit(prepared.data, {
-    family: 'natural',
+    kind: 'natural-spline',
     df,
     curve,
     coefficients: lin.theta,

@@ -1,8 +1,8 @@
 import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
 import { FitError } from '../errors';
 import { nullSpace } from '../linalg/nullSpace';
-import { accumulateRow, buildCells, SUMS_PER_CELL } from '../tune/cells';
-import { SplineFromSums } from '../tune/splineSums';
+import { accumulateRow, buildCells, SUMS_PER_CELL } from './powerSums/cells';
+import { SplineFromSums } from './powerSums/splineSums';
 import type { FitResult } from '../types';
 import { RowBasisCurve } from './linearFit';
 import type { PreparedData } from './prepared';
@@ -11,7 +11,7 @@ import { summariseFit } from './summary';
 /**
  * Natural cubic regression splines at several df at once, for tuning. One pass of per-cell
  * weighted power sums over the union of all candidates' knots gives every candidate's Gram
- * matrix (DESIGN.md, Scale); fitted values and leverage then come from the cell cubics in
+ * matrix (docs/design.md, "Power sums"); fitted values and leverage then come from the cell cubics in
  * O(n) per candidate without evaluating B-splines row by row. The results equal
  * fitNaturalSpline up to rounding. Returns each df's fit, or the FitError that skipped it.
  * Cost O(n) + candidates x O(n).
@@ -63,10 +63,10 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
       }
       leverage[i] = (w ? (w[i] as number) : 1) * h;
     }
-    const curve = new RowBasisCurve('natural', df, knots.lower, knots.upper, basis, model.theta, cov, z);
+    const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, model.theta, cov, z);
     out.set(
       df,
-      summariseFit(data, { family: 'natural', df, curve, coefficients: model.theta, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, leverage, notes: knots.notes }),
+      summariseFit(data, { kind: 'natural-spline', df, curve, coefficients: model.theta, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, leverage, notes: knots.notes }),
     );
   }
   return out;

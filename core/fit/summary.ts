@@ -1,8 +1,8 @@
-import type { Curve, Family, FitResult, XYData } from '../types';
+import type { Curve, CurveKindId, FitResult, XYData } from '../types';
 
 /** What a family's solver hands to `summariseFit`. */
 export interface SolvedFit {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   readonly df: number;
   readonly curve: Curve;
   readonly coefficients: Float64Array;
@@ -77,7 +77,7 @@ export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
   const notes = [...solved.notes];
   if (looInfinite) notes.push('Some rows have leverage 1, so their leave-one-out error is undefined; the leave-one-out RMSE is reported as infinite.');
   return {
-    family: solved.family,
+    kind: solved.kind,
     df,
     n,
     residualDf,

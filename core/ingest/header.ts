@@ -9,7 +9,7 @@ export interface HeaderName {
 }
 
 /** Name, then a unit in [..] or (..) at the very end: `flow [L/min]`, `T(degC)`. */
-const UNIT_PATTERN = /^(.*?)\s*(?:\[\s*([^\[\]]*?)\s*\]|\(\s*([^()]*?)\s*\))$/s;
+const UNIT_PATTERN = /^(.*?)\s*(?:\[\s*([^[\]]*?)\s*\]|\(\s*([^()]*?)\s*\))$/s;
 
 /**
  * Splits a header cell into name and unit: `flow [L/min]` -> { name: 'flow', unit:

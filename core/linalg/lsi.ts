@@ -98,7 +98,7 @@ export interface LdpResult extends Omit<LsiResult, 'beta'> {
  * min ||E u - e_{q+1}||, u >= 0, with E = [F' ; f'] ((q + 1) x r), has residual rho, and
  * z = -rho_{1..q} / rho_{q+1}; the multipliers are u / (-rho_{q+1}). `e` holds E row-major
  * (e[j * r + i] = F_ij for j < q, e[q * r + i] = f_i) and is not modified. Callers that
- * already have a triangular factor (solveLsi, core/fit/shapedSmoothing.ts) pass F = A R^-1.
+ * already have a triangular factor (solveLsi, core/fit/shapedSmoothing/) pass F = A R^-1.
  * Throws FitError naming `what` when the constraints are inconsistent. Cost: the NNLS on
  * r variables with q + 1 equations, O((q + 1) r) per dual update.
  * Example: solveLdp(Float64Array.of(1, 1), 1, 1, 'x').z = [1] (min |z| subject to z >= 1).

@@ -8,7 +8,8 @@ import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { basename, dirname, join, relative, resolve } from 'node:path';
 import { describeDifference, textDifference } from '../compare';
 import { InputError } from '../errors';
-import { shellWord } from '../plan';
+import { defineCommand, formatHelp, parseCommand } from './args';
+import { shellWord } from '../shellWord';
 import { RECORD_FORMAT } from '../record';
 import { readRecord, type RecordedRun } from '../recordPlan';
 import { VERSION } from '../version';
@@ -135,36 +136,72 @@ function isRecordFile(path: string): boolean {
   }
 }
 
-const CHECK_USAGE = 'usage: knotwise check [<record.fit.json> | <folder> ...]   (no argument: every *.fit.json under the current folder)';
+/** The table of `knotwise check`. */
+export const CHECK_COMMAND = defineCommand({
+  name: 'check',
+  summary: 'rebuild each recorded curve table from its data and compare it with the files on disk',
+  usage: ['check [<record.fit.json> | <folder> ...]'],
+  operands: { min: 0, max: Infinity, name: 'record or folder' },
+  options: [
+    { name: 'json', help: 'print one JSON object with the state of every record instead of the lines' },
+    { name: 'quiet', help: 'print nothing on standard output; the exit code tells (records that could not be checked are still named on standard error; --json still prints its object)' },
+  ],
+  notes: [
+    `Without arguments every *${'.fit.json'} under the current folder is checked, skipping node_modules and folders whose name starts with a dot; a folder argument is searched the same way.`,
+    'Exit codes: 0 every record is current; 1 data or an output changed; 2 a record could not be checked.',
+  ],
+});
+
+/** One record's state as `check --json` prints it. */
+export interface CheckRecordJson {
+  /** The record's path, relative to the folder check ran in. */
+  readonly file: string;
+  readonly status: CheckResult['status'];
+  /** What changed, or why the record could not be checked; empty when current. */
+  readonly reasons: readonly string[];
+  /** The command that brings the outputs up to date (run in the folder check ran in); null when current or unknown. */
+  readonly advice: string | null;
+}
+
+/** The exit code for a set of results: 2 when any could not be checked, else 1 when any changed, else 0. */
+function exitCode(counts: { readonly current: number; readonly changed: number; readonly error: number }): number {
+  return counts.error ? 2 : counts.changed ? 1 : 0;
+}
 
 /**
  * Runs `knotwise check`, printing one line per record (and what changed) to stdout and a
- * closing count; returns the exit code: 0 current, 1 changed, 2 error.
+ * closing count, or with --json one object `{knotwise, records[], counts, exitCode}`;
+ * returns the exit code: 0 current, 1 changed, 2 error. Throws InputError for bad options.
  */
 export async function runCheck(argv: readonly string[], cwd = process.cwd()): Promise<number> {
-  if (argv.some((a) => a === '--help' || a === '-h')) {
-    process.stdout.write(CHECK_USAGE + '\n');
+  const a = parseCommand(CHECK_COMMAND, argv);
+  if (a.help) {
+    process.stdout.write(formatHelp(CHECK_COMMAND) + '\n');
     return 0;
   }
-  const unknown = argv.find((a) => a.startsWith('-'));
-  if (unknown) throw new InputError(`unknown option "${unknown}" for check; ${CHECK_USAGE}`);
-  const found = recordsFor(argv, cwd);
+  const json = a.flag('json');
+  const quiet = a.flag('quiet');
+  const say = (text: string): void => {
+    if (!json && !quiet) process.stdout.write(text + '\n');
+  };
+  const found = recordsFor(a.operands, cwd);
   const records = found.filter((r) => r.explicit || isRecordFile(r.path));
-  if (records.length === 0) {
-    process.stdout.write(`knotwise check: no fit records (*${RECORD_SUFFIX}) under ${argv.length ? argv.join(', ') : relative(process.cwd(), cwd) || '.'}\n`);
-    return 0;
-  }
+  if (records.length === 0) say(`knotwise check: no fit records (*${RECORD_SUFFIX}) under ${a.operands.length ? a.operands.join(', ') : relative(process.cwd(), cwd) || '.'}`);
   const counts = { current: 0, changed: 0, error: 0 };
+  const states: CheckRecordJson[] = [];
   for (const r of records) {
     const res = await checkRecord(r.path);
     counts[res.status]++;
     const shown = relative(cwd, r.path) || r.path;
-    const label = res.status === 'current' ? 'current' : res.status === 'changed' ? 'CHANGED' : 'ERROR';
-    const lines = [`${label.padEnd(7)} ${shown}`, ...res.messages.map((m) => `  ${m}`)];
     const folder = relative(cwd, dirname(r.path));
-    if (res.status !== 'current' && res.regenerate) lines.push(`  to update: ${folder ? `cd ${shellWord(folder)} && ` : ''}${res.regenerate}`);
-    process.stdout.write(lines.join('\n') + '\n');
+    const advice = res.status !== 'current' && res.regenerate ? `${folder ? `cd ${shellWord(folder)} && ` : ''}${res.regenerate}` : null;
+    states.push({ file: shown, status: res.status, reasons: res.messages, advice });
+    const label = res.status === 'current' ? 'current' : res.status === 'changed' ? 'CHANGED' : 'ERROR';
+    say([`${label.padEnd(7)} ${shown}`, ...res.messages.map((m) => `  ${m}`), ...(advice !== null ? [`  to update: ${advice}`] : [])].join('\n'));
+    if (quiet && !json && res.status === 'error') process.stderr.write(`knotwise check: ${shown}: ${res.messages.join('; ')}\n`);
   }
-  process.stdout.write(`knotwise check: ${records.length} record(s): ${counts.current} current, ${counts.changed} changed, ${counts.error} could not be checked\n`);
-  return counts.error ? 2 : counts.changed ? 1 : 0;
+  if (records.length > 0) say(`knotwise check: ${records.length} record(s): ${counts.current} current, ${counts.changed} changed, ${counts.error} could not be checked`);
+  const code = exitCode(counts);
+  if (json) process.stdout.write(JSON.stringify({ knotwise: VERSION, records: states, counts, exitCode: code }) + '\n');
+  return code;
 }

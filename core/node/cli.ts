@@ -1,190 +1,328 @@
 /**
  * The `knotwise` command line. `knotwise fit <file.csv> --x <col> --y <col> ...` fits one
  * df or tunes the df by resampling and prints a summary, or one JSON object with --json.
+ * Every command's options are declared once in a table (core/node/args.ts) that drives
+ * parsing, defaults and `--help`; accepted values and limits come from the registries.
  * Errors go to stderr with exit code 2 and say what and where.
  */
-import { parseArgs } from 'node:util';
 import { existsSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import type { AnalysisOptions } from '../analysisTypes';
-import { parseEmit } from '../emit/index';
+import { EMIT_KINDS, emitName, parseEmit } from '../emit/index';
 import { CancelledError, InputError } from '../errors';
 import type { FitPlan, OutputOptions } from '../plan';
 import { CAUTION } from '../record';
-import { parseDfList, parseFamily, parseResample, parseRule, parseSeed } from '../spec';
+import { MAX_CANDIDATES, parseDfList, parseSeed } from '../spec';
 import { parseColumns } from '../table/columns';
-import { parseGrid } from '../table/grid';
-import { formatResample } from '../spec';
+import { OPTIONAL_COLUMNS, TABLE_COLUMNS } from '../table/curveTable';
+import { DEFAULT_GRID_COUNT, MAX_GRID_POINTS, parseGrid } from '../table/grid';
 import { sig } from '../tune/format';
-import { isPlainModel, parseOutcome, resolveModel } from '../fit/model';
+import { isPlainModel, MAX_HUBER_K } from '../fit/model';
 import { modelReportJson, modelSpecJson } from '../fit/modelJson';
-import { parseShapeList } from '../fit/shape';
+import { HUBER_K } from '../fit/robust';
+import { parseShapeList, SHAPES } from '../fit/shape';
 import { MAX_SHAPED_SMOOTHING_DISTINCT } from '../fit/shapedSmoothing';
 import type { FitResult, ModelOptions } from '../types';
 import { VERSION } from '../version';
 import { DEFAULT_DIGITS } from '../table/formatCsv';
-import { runCheck } from './check';
+import { curveKinds, DEFAULT_CURVE, parseCurve, resolveModel } from '../registry/curves/index';
+import { DEFAULT_OUTCOME, OUTCOME_LIST, outcomeKind, parseOutcome } from '../registry/outcomes/index';
+import { DEFAULT_RESAMPLING, formatResampling, parseResampling, RESAMPLING_LIST } from '../registry/resampling/index';
+import { DEFAULT_RULE, MAX_TOLERANCE_PERCENT, parseRule, RULE_LIST } from '../registry/rules/index';
+import { type CommandSpec, defineCommand, formatHelp, nearest, parseCommand } from './args';
+import { CHECK_COMMAND, runCheck } from './check';
 import { writeOutputs } from './outputs';
 import { runPipeline } from './pipeline';
+import { type Clock, ProgressLine, type ProgressStream } from './progress';
 
-const USAGE = `knotwise ${VERSION}: smooth curves and curve tables from measured CSV data
+/** Fewest and most significant digits of the table. */
+const DIGITS = { min: 3, max: 17 } as const;
+/** Largest held-out fraction. */
+const MAX_HOLDOUT = 0.5;
+/** The data file argument that reads standard input, and how messages name it. */
+export const STDIN_ARG = '-';
+const STDIN_NAME = 'standard input';
 
-Usage:
-  knotwise fit <file.csv> --x <column> --y <column> [options]
+/** Limits of the resampling schemes in words, from the registry: "resamples 2 to 5000; folds 2 to 100; ...". */
+function resamplingLimits(): string {
+  return RESAMPLING_LIST.flatMap((s) => Object.entries(s.limits).map(([name, l]) => `${name} ${l.min} to ${l.max}`)).join('; ');
+}
 
-Options:
-  --weights <column>        prior weights (positive)
-  --family gaussian|poisson|binomial   outcome: least squares (default), counts (log link),
-                            proportions or 0/1 outcomes (logit link); fitted by IRLS
-  --trials <column>         binomial: number of trials per row (y is then the successes)
-  --shape <list>            comma list of increasing, decreasing, nonnegative, convex, concave:
-                            guaranteed everywhere in the data range (natural spline; smoothing
-                            spline up to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x)
-  --robust                  Huber M-estimation (k = 1.345), down-weighted rows listed by line
-  --huber-k <k>             Huber tuning constant (implies --robust)
-  --model natural|poly|smooth   curve family (default natural)
-  --df <k | a,b,c | a..b>   one df (fit as is) or candidates to tune over
-  --resample boot:<B> | cv:<K>[x<R>] | loo | gcv   how errors are estimated (default boot:50)
-  --rule lowest | 1se | tol:<percent> | df:<k>   how the df is chosen (default 1se; df:<k> picks a candidate by hand)
-  --seed <int>              random seed (default 1)
-  --holdout <fraction>      rows held out (stratified by x) and checked once at the end
-  --grid <start>:<stop>:<count> | <start>:<stop>:step=<h> | data | <x1,x2,...>
-         | auto:<tolerance> | <start>:<stop>:auto=<tolerance>
-                            table grid; auto: the coarsest even step at which linear
-                            interpolation stays within the tolerance (units of y) of the curve
-  --extrapolate             allow table points outside the data range (flagged)
-  --columns <x,fit,se,...>  table columns (default all: x,fit,se,ciLower,ciUpper,piLower,piUpper,extrapolated)
-  --nonnegative             the quantity cannot be negative: flag rows where the curve is below zero
-  --out <folder>            write the curve table (<name>.curve.csv) and fit record (<name>.fit.json) there
-                            (default: next to the data file)
-  --save                    write them next to the data file (the default, for scripts that say so)
-  --print-only              write no files, only print
-  --emit c,ts,json          also write code: C header (<name>.curve.h), TypeScript (<name>.curve.ts), JSON (<name>.curve.json)
-  --report                  also write a review report (<name>.report.md with SVG figures)
-  --digits <n>              significant digits in the table (default 8)
-  --force                   replace output files that Knotwise did not write
-  --json                    print one JSON object instead of the summary
+/** The curve kinds that take an option, from the registry. */
+function kindsWith(test: (k: ReturnType<typeof curveKinds>[number]) => boolean): string {
+  return curveKinds()
+    .filter(test)
+    .map((k) => k.id)
+    .join(', ');
+}
 
-  knotwise check [<record.fit.json> | <folder> ...]
-                            rebuild each recorded table from its data and compare: exit 0 when
-                            current, 1 when data or outputs changed, 2 on error; no argument:
-                            every *.fit.json under the current folder
-  knotwise demo [--out <folder>]   fit a bundled example and write its outputs (default ./knotwise-demo)
-  --help                    this text`;
+/** The table of `knotwise fit` (built on use, so curve kinds registered later are listed). */
+function fitCommand() {
+  const allCurves = curveKinds().length;
+  return defineCommand({
+    name: 'fit',
+    summary: 'fit a curve to two columns of a CSV file, tuning its df by resampling, and write its curve table and fit record',
+    usage: ['fit <file.csv> --x <column> --y <column> [options]', 'fit - --x <column> --y <column> --print-only [options]   (the CSV from standard input)'],
+    operands: { min: 1, max: 1, name: 'data file', missing: 'no data file given: knotwise fit <file.csv> --x <column> --y <column> (or - for standard input)' },
+    options: [
+      { group: 'Data', name: 'x', value: 'column', help: 'the column of the input quantity, by header text or label', required: true },
+      { group: 'Data', name: 'y', value: 'column', help: 'the column of the readings, by header text or label', required: true },
+      { group: 'Data', name: 'weights', value: 'column', help: 'prior weights of the rows, positive', defaultText: 'every row weighs 1' },
+      { group: 'Data', name: 'trials', value: 'column', help: 'with --outcome proportions: the number of trials of each row; --y then holds the successes' },
+      {
+        group: 'Curve',
+        name: 'curve',
+        value: 'kind',
+        help: 'the kind of curve',
+        default: DEFAULT_CURVE,
+        choices: curveKinds().map((k) => ({ value: k.id, help: k.description })),
+      },
+      {
+        group: 'Curve',
+        name: 'outcome',
+        value: 'readings',
+        help: 'what the readings are',
+        default: DEFAULT_OUTCOME,
+        choices: OUTCOME_LIST.map((o) => {
+          const kinds = curveKinds().filter((k) => k.supports.outcomes.includes(o.id));
+          return { value: o.id, help: o.description + (kinds.length < allCurves ? ` (curves: ${kinds.map((k) => k.id).join(', ')})` : '') };
+        }),
+      },
+      {
+        group: 'Curve',
+        name: 'shape',
+        value: 'list',
+        help: `comma list of shapes the curve keeps everywhere in the data range: ${SHAPES.join(', ')}`,
+        defaultText: 'no constraint',
+        limits: `curves ${kindsWith((k) => k.supports.shapes)}; the smoothing spline up to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x`,
+      },
+      { group: 'Curve', name: 'robust', help: `robust fitting (Huber M-estimation, k = ${HUBER_K}): rows far from the curve are down-weighted and listed by line`, limits: `curves ${kindsWith((k) => k.supports.robust)}; continuous readings only` },
+      { group: 'Curve', name: 'robust-k', value: 'k', help: 'the robust fit\'s tuning constant; implies --robust', defaultText: `${HUBER_K} with --robust`, limits: `above 0, at most ${MAX_HUBER_K}` },
+      {
+        group: 'Tuning',
+        name: 'df',
+        value: 'df',
+        help: 'one df, fitted as is (k), or the candidates to tune over (a,b,c or a..b)',
+        defaultText: 'the curve kind\'s candidates for the data',
+        limits: `each at least 1; at most ${MAX_CANDIDATES} candidates`,
+      },
+      {
+        group: 'Tuning',
+        name: 'resampling',
+        value: 'scheme',
+        help: 'how the error of each candidate df is estimated',
+        default: DEFAULT_RESAMPLING,
+        choices: RESAMPLING_LIST.map((s) => ({ value: s.syntax, help: s.description })),
+        limits: resamplingLimits(),
+      },
+      { group: 'Tuning', name: 'rule', value: 'rule', help: 'how the df is chosen from the candidates', default: DEFAULT_RULE, choices: RULE_LIST.map((r) => ({ value: r.syntax, help: r.description })), limits: `percent 0 to ${MAX_TOLERANCE_PERCENT}` },
+      { group: 'Tuning', name: 'seed', value: 'n', help: 'seed of the resampling; part of the result', default: '1', limits: 'a whole number' },
+      { group: 'Tuning', name: 'holdout', value: 'fraction', help: 'rows held out first (stratified by x) and used once at the end', defaultText: 'no rows held out', limits: `above 0, at most ${MAX_HOLDOUT}` },
+      {
+        group: 'Table',
+        name: 'grid',
+        value: 'grid',
+        help: 'where the curve table is evaluated',
+        defaultText: `${DEFAULT_GRID_COUNT} points over the data range`,
+        choices: [
+          { value: '<start>:<stop>:count=<n>', help: 'n evenly spaced points from start to stop' },
+          { value: '<start>:<stop>:step=<h>', help: 'from start in steps of h up to stop' },
+          { value: 'auto:<tolerance>', help: 'the coarsest even step over the data range at which straight lines between rows stay within the tolerance (units of y) of the curve' },
+          { value: '<start>:<stop>:auto=<tolerance>', help: 'the same over a range of your choice' },
+          { value: 'data', help: 'the distinct x of the data' },
+          { value: '<x1>,<x2>,...', help: 'a list of x values' },
+        ],
+        limits: `at most ${MAX_GRID_POINTS} points`,
+      },
+      { group: 'Table', name: 'extrapolate', help: 'allow table points outside the data range; they are flagged' },
+      { group: 'Table', name: 'columns', value: 'list', help: 'table columns, in the order given; x is required, and a flag column that flags a row is always kept', defaultText: TABLE_COLUMNS.join(','), limits: `any of ${[...TABLE_COLUMNS, ...OPTIONAL_COLUMNS].join(', ')}` },
+      { group: 'Table', name: 'flag-negative', help: 'the quantity cannot be negative: flag table rows where the curve is below zero (--shape nonnegative constrains the curve instead)' },
+      { group: 'Table', name: 'digits', value: 'n', help: 'significant digits of the table values', default: String(DEFAULT_DIGITS), limits: `${DIGITS.min} to ${DIGITS.max}` },
+      { group: 'Files', name: 'out', value: 'folder', help: 'write the curve table <name>.curve.csv and the fit record <name>.fit.json (and what --emit and --report ask for) into this folder', defaultText: 'the data file\'s folder' },
+      { group: 'Files', name: 'save', help: 'write them next to the data file (the default, for scripts that say so)' },
+      { group: 'Files', name: 'print-only', help: 'write no files, only print' },
+      { group: 'Files', name: 'emit', value: 'list', help: 'also write the table as code (comma list)', defaultText: 'no code', choices: EMIT_KINDS.map((k) => ({ value: k, help: emitName(k, '<name>') })) },
+      { group: 'Files', name: 'report', help: 'also write a review report <name>.report.md with SVG figures' },
+      { group: 'Files', name: 'force', help: 'replace output files that Knotwise did not write' },
+      { group: 'Printing', name: 'json', help: 'print one JSON object instead of the summary' },
+      { group: 'Printing', name: 'quiet', help: 'print no summary (errors still go to standard error; --json still prints its object)' },
+      { group: 'Printing', name: 'progress', help: 'show progress and the time left on standard error even when it is not a terminal (on a terminal it shows by itself once a run takes over a second, unless --quiet)' },
+    ],
+    notes: [
+      'A single --df without --resampling, --rule or --holdout fits that df as is; anything else tunes.',
+      `- as the data file reads the CSV from standard input. Such a run writes no files (a table whose data exist on no disk could never be checked against them), so it needs --print-only or --json.`,
+      'Exit codes: 0 done; 2 bad input or options, with the message on standard error saying what and where.',
+    ],
+  });
+}
+
+/** The table of `knotwise demo`. */
+const DEMO_COMMAND = defineCommand({
+  name: 'demo',
+  summary: 'fit a bundled example (invented humidity-sensor data) and write its outputs',
+  usage: ['demo [--out <folder>]'],
+  operands: { min: 0, max: 0, name: 'argument' },
+  options: [{ name: 'out', value: 'folder', help: 'where the outputs go', default: 'knotwise-demo' }],
+});
+
+/** Every command, in the order the general help lists them. */
+function commands(): CommandSpec[] {
+  return [fitCommand(), CHECK_COMMAND, DEMO_COMMAND];
+}
+
+/** The general help: commands and where to find their options. */
+function usage(): string {
+  const list = commands();
+  const width = Math.max(...list.map((c) => c.name.length), 'help [<command>]'.length) + 3;
+  return [
+    `knotwise ${VERSION}: smooth curves and curve tables from measured CSV data`,
+    '',
+    'Usage:',
+    '  knotwise <command> [options]',
+    '',
+    'Commands:',
+    ...list.map((c) => `  ${c.name.padEnd(width)}${c.summary}`),
+    `  ${'help [<command>]'.padEnd(width)}this text, or a command's help`,
+    '',
+    `  ${'-h, --help'.padEnd(width)}this text`,
+    `  ${'-V, --version'.padEnd(width)}the version`,
+    '',
+    'Run knotwise <command> --help for its options, defaults and limits.',
+  ].join('\n');
+}
+
+/** What a run needs from its surroundings; tests inject their own. */
+export interface CliEnv {
+  /** Reads all of standard input. */
+  readonly readStdin: () => Promise<Uint8Array>;
+  /** True when standard input is a terminal (nothing piped in). */
+  readonly stdinIsTTY: boolean;
+  /** Where progress goes (standard error). */
+  readonly progressStream: ProgressStream;
+  readonly clock: Clock;
+}
+
+async function readAll(stream: NodeJS.ReadableStream): Promise<Uint8Array> {
+  const chunks: Buffer[] = [];
+  for await (const c of stream) chunks.push(typeof c === 'string' ? Buffer.from(c) : (c as Buffer));
+  return Buffer.concat(chunks);
+}
+
+function processEnv(): CliEnv {
+  return { readStdin: () => readAll(process.stdin), stdinIsTTY: process.stdin.isTTY === true, progressStream: process.stderr, clock: Date.now };
+}
 
 /** Options of `knotwise fit`, parsed. */
 interface FitArgs {
+  /** The data file as given ('-' for standard input). */
   readonly file: string;
+  readonly stdin: boolean;
   readonly x: string;
   readonly y: string;
   readonly weights?: string | undefined;
   /** Binomial outcome: column with the number of trials of each row. */
   readonly trials?: string | undefined;
   readonly json: boolean;
+  readonly quiet: boolean;
+  /** --progress: show progress even when standard error is not a terminal. */
+  readonly progress: boolean;
   readonly tune: boolean;
   readonly options: AnalysisOptions;
   /** Table grid and format, emitters, report (see core/plan.ts). */
   readonly output: OutputOptions;
+  /** Folder to write into; undefined: write nothing. */
   readonly out?: string | undefined;
   readonly force: boolean;
 }
 
-function parseFitArgs(argv: string[]): FitArgs {
-  const { values, positionals } = parseArgs({
-    args: argv,
-    allowPositionals: true,
-    options: {
-      x: { type: 'string' },
-      y: { type: 'string' },
-      weights: { type: 'string' },
-      family: { type: 'string' },
-      trials: { type: 'string' },
-      shape: { type: 'string' },
-      robust: { type: 'boolean' },
-      'huber-k': { type: 'string' },
-      model: { type: 'string' },
-      df: { type: 'string' },
-      resample: { type: 'string' },
-      rule: { type: 'string' },
-      seed: { type: 'string' },
-      holdout: { type: 'string' },
-      grid: { type: 'string' },
-      extrapolate: { type: 'boolean' },
-      json: { type: 'boolean' },
-      out: { type: 'string' },
-      save: { type: 'boolean' },
-      'print-only': { type: 'boolean' },
-      digits: { type: 'string' },
-      force: { type: 'boolean' },
-      columns: { type: 'string' },
-      nonnegative: { type: 'boolean' },
-      emit: { type: 'string' },
-      report: { type: 'boolean' },
-    },
-  });
-  const file = positionals[0];
-  if (!file) throw new InputError('no data file given: knotwise fit <file.csv> --x <column> --y <column>');
-  if (positionals.length > 1) throw new InputError(`unexpected argument "${positionals[1]}"`);
-  if (!values.x || !values.y) throw new InputError('both --x and --y columns are required');
-  const dfs = values.df !== undefined ? parseDfList(values.df) : undefined;
-  const tune = !(dfs && dfs.length === 1 && values.resample === undefined && values.rule === undefined && values.holdout === undefined);
-  const holdout = values.holdout !== undefined ? Number(values.holdout) : undefined;
-  if (holdout !== undefined && !(holdout > 0 && holdout <= 0.5)) throw new InputError(`--holdout must be a fraction above 0 and at most 0.5; got "${values.holdout}"`);
-  const model = parseModelFlags(values);
+/** Parses `knotwise fit`'s arguments; undefined when help was asked for (and printed). */
+function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
+  const spec = fitCommand();
+  const a = parseCommand(spec, argv);
+  if (a.help) {
+    process.stdout.write(formatHelp(spec) + '\n');
+    return undefined;
+  }
+  const file = a.operands[0] as string;
+  const stdin = file === STDIN_ARG;
+  const printOnly = a.flag('print-only');
+  const json = a.flag('json');
+  if (printOnly && (a.given('out') || a.flag('save'))) throw new InputError(`--print-only writes no files; drop ${a.given('out') ? '--out' : '--save'}`);
+  if (a.given('out') && a.flag('save')) throw new InputError('--save writes next to the data file and --out into another folder; give one of them');
+  if (stdin) {
+    const writes = (['out', 'save', 'emit', 'report', 'force'] as const).find((n) => a.given(n));
+    if (writes !== undefined) throw new InputError(`--${writes} writes files, but data read from standard input (-) exist on no disk, so a table written from them could never be checked against them; drop --${writes}`);
+    if (!printOnly && !json) throw new InputError('data read from standard input (-) exist on no disk, so a table written from them could never be checked against them: add --print-only (or --json) to print the result without writing files');
+  }
+  const dfText = a.text('df');
+  const dfs = dfText !== undefined ? parseDfList(dfText) : undefined;
+  const tune = !(dfs && dfs.length === 1 && !a.given('resampling') && !a.given('rule') && !a.given('holdout'));
+  const holdoutText = a.text('holdout');
+  const holdout = holdoutText !== undefined ? Number(holdoutText) : undefined;
+  if (holdout !== undefined && !(holdout > 0 && holdout <= MAX_HOLDOUT)) throw new InputError(`--holdout must be a fraction above 0 and at most ${MAX_HOLDOUT}; got "${holdoutText}"`);
+  const kind = parseCurve(a.text('curve') as string);
+  const model = parseModelFlags(kind, a.text('outcome') as string, a.given('outcome'), a.text('trials'), a.text('shape'), a.flag('robust'), a.text('robust-k'));
+  const grid = a.text('grid');
+  const columns = a.text('columns');
+  const emit = a.text('emit');
+  const printing = printOnly || stdin;
   return {
     file,
-    x: values.x,
-    y: values.y,
-    weights: values.weights,
-    trials: values.trials,
-    json: values.json === true,
+    stdin,
+    x: a.text('x') as string,
+    y: a.text('y') as string,
+    weights: a.text('weights'),
+    trials: a.text('trials'),
+    json,
+    quiet: a.flag('quiet'),
+    progress: a.flag('progress'),
     tune,
     output: {
-      grid: values.grid !== undefined ? parseGrid(values.grid) : undefined,
-      extrapolate: values.extrapolate === true,
-      digits: parseDigits(values.digits ?? String(DEFAULT_DIGITS)),
-      columns: values.columns !== undefined ? parseColumns(values.columns) : undefined,
-      nonnegative: values.nonnegative === true,
-      emit: values.emit !== undefined ? parseEmit(values.emit) : [],
-      report: values.report === true,
+      grid: grid !== undefined ? parseGrid(grid) : undefined,
+      extrapolate: a.flag('extrapolate'),
+      digits: parseDigits(a.text('digits') as string),
+      columns: columns !== undefined ? parseColumns(columns) : undefined,
+      flagNegative: a.flag('flag-negative'),
+      emit: emit !== undefined ? parseEmit(emit) : [],
+      report: a.flag('report'),
     },
     // Outputs go next to the data unless --out names a folder or --print-only asks for none.
-    out: values['print-only'] === true ? undefined : (values.out ?? dirname(file)),
-    force: values.force === true,
+    out: printing ? undefined : (a.text('out') ?? dirname(file)),
+    force: a.flag('force'),
     options: {
-      family: parseFamily(values.model ?? 'natural'),
+      kind,
       candidates: dfs,
-      resample: parseResample(values.resample ?? 'boot:50'),
-      rule: parseRule(values.rule ?? '1se'),
-      seed: parseSeed(values.seed ?? '1'),
+      resample: parseResampling(a.text('resampling') as string),
+      rule: parseRule(a.text('rule') as string),
+      seed: parseSeed(a.text('seed') as string),
       holdout,
       ...model,
     },
   };
 }
 
-/** --family, --trials, --shape, --robust, --huber-k as model options (checked against --model). */
-function parseModelFlags(values: { family?: string | undefined; trials?: string | undefined; shape?: string | undefined; robust?: boolean | undefined; 'huber-k'?: string | undefined; model?: string | undefined }): ModelOptions {
-  const outcome = values.family !== undefined ? parseOutcome(values.family) : undefined;
-  if (values.trials !== undefined && outcome !== 'binomial') throw new InputError('--trials needs --family binomial');
+/** --outcome, --trials, --shape, --robust, --robust-k as model options (checked against --curve). */
+function parseModelFlags(kind: string, outcomeText: string, outcomeGiven: boolean, trials: string | undefined, shape: string | undefined, robustFlag: boolean, robustK: string | undefined): ModelOptions {
+  const outcome = parseOutcome(outcomeText);
+  if (trials !== undefined && outcome !== 'proportions') throw new InputError('--trials needs --outcome proportions');
   let robust: ModelOptions['robust'];
-  if (values['huber-k'] !== undefined) {
-    const k = Number(values['huber-k']);
-    if (!(k > 0) || !Number.isFinite(k)) throw new InputError(`--huber-k must be a positive number; got "${values['huber-k']}"`);
+  if (robustK !== undefined) {
+    const k = Number(robustK);
+    if (!(k > 0) || !Number.isFinite(k)) throw new InputError(`--robust-k must be a positive number; got "${robustK}"`);
     robust = { k };
-  } else if (values.robust === true) robust = true;
+  } else if (robustFlag) robust = true;
   const options: ModelOptions = {
-    ...(outcome !== undefined ? { outcome } : {}),
-    ...(values.shape !== undefined ? { shape: parseShapeList(values.shape) } : {}),
+    ...(outcomeGiven ? { outcome } : {}),
+    ...(shape !== undefined ? { shape: parseShapeList(shape) } : {}),
     ...(robust !== undefined ? { robust } : {}),
   };
-  resolveModel(parseFamily(values.model ?? 'natural'), options);
+  resolveModel(kind, options);
   return options;
 }
 
 function parseDigits(text: string): number {
   const v = Number(text);
-  if (!Number.isInteger(v) || v < 3 || v > 17) throw new InputError(`--digits must be a whole number from 3 to 17; got "${text}"`);
+  if (!Number.isInteger(v) || v < DIGITS.min || v > DIGITS.max) throw new InputError(`--digits must be a whole number from ${DIGITS.min} to ${DIGITS.max}; got "${text}"`);
   return v;
 }
 
@@ -193,18 +331,26 @@ function finite(v: number): number | null {
   return Number.isFinite(v) ? v : null;
 }
 
+/** True for counts and proportions: fits by deviance, where R² does not apply. */
+function byDeviance(fit: FitResult): boolean {
+  return fit.model !== undefined && fit.model.glm !== undefined;
+}
+
 function fitJson(fit: FitResult): Record<string, unknown> {
   const arr = (a: Float64Array): (number | null)[] => Array.from(a, finite);
+  const deviance = byDeviance(fit);
   return {
-    family: fit.family,
+    curve: fit.kind,
     df: fit.df,
     n: fit.n,
     residualDf: fit.residualDf,
     knots: Array.from(fit.knots),
     coefficients: arr(fit.coefficients),
     ...(fit.lambda !== undefined ? { lambda: fit.lambda } : {}),
-    sigma: finite(fit.sigma),
-    r2: finite(fit.r2),
+    residualSd: finite(fit.sigma),
+    // For counts and proportions the fit's r2 is the share of the null deviance explained.
+    r2: deviance ? null : finite(fit.r2),
+    devianceExplained: deviance ? finite(fit.r2) : null,
     logLik: finite(fit.logLik),
     aic: finite(fit.aic),
     aicc: finite(fit.aicc),
@@ -219,13 +365,28 @@ function fitJson(fit: FitResult): Record<string, unknown> {
   };
 }
 
-async function runFit(argv: string[]): Promise<number> {
+async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
   const args = parseFitArgs(argv);
+  if (!args) return 0;
   if (args.out === undefined && (args.output.emit.length > 0 || args.output.report)) {
     throw new InputError('--emit and --report write files: drop --print-only');
   }
+  let bytes: Uint8Array | undefined;
+  if (args.stdin) {
+    if (env.stdinIsTTY) throw new InputError('- reads the CSV from standard input, but standard input is a terminal: pipe the data in, e.g. knotwise fit - --x a --y b --print-only < data.csv');
+    bytes = await env.readStdin();
+  }
   const plan: FitPlan = { columns: { x: args.x, y: args.y, weights: args.weights }, tune: args.tune, options: args.options, output: args.output, ...(args.trials !== undefined ? { trials: args.trials } : {}) };
-  const run = await runPipeline(args.file, plan, args.out ?? dirname(args.file));
+  const dataName = args.stdin ? STDIN_NAME : args.file;
+  // Progress on a terminal by itself (unless --quiet), elsewhere only when asked for.
+  const showProgress = args.progress || (env.progressStream.isTTY === true && !args.quiet);
+  const progress = showProgress ? new ProgressLine(env.progressStream, env.clock) : undefined;
+  let run;
+  try {
+    run = await runPipeline(dataName, plan, args.out ?? (args.stdin ? '.' : dirname(args.file)), undefined, { bytes, progress });
+  } finally {
+    progress?.finish();
+  }
   const { table, selection: sel, analysis, fit, diagnostics, deliverables } = run;
   const tableOut = deliverables.table;
   const outside = deliverables.summary.extrapolated.length;
@@ -238,7 +399,7 @@ async function runFit(argv: string[]): Promise<number> {
     const out: Record<string, unknown> = {
       knotwise: VERSION,
       data: {
-        file: basename(args.file),
+        file: args.stdin ? STDIN_ARG : basename(args.file),
         sha256: table.sha256,
         columns: sel.labels,
         units: sel.units,
@@ -258,26 +419,27 @@ async function runFit(argv: string[]): Promise<number> {
       },
       diagnostics,
       warnings: deliverables.warnings,
-      regenerate: deliverables.regenerate,
+      // Data from standard input cannot be read again: no command redoes the run.
+      regenerate: args.stdin ? null : deliverables.regenerate,
       caution: CAUTION,
     };
     if (written) out.written = written;
     if (analysis) {
       const t = analysis.tune;
-      out.tuning = { family: t.family, resample: formatResample(t.resample), seed: t.seed, metric: t.metric, rowsTuned: analysis.n, notes: t.notes };
+      out.tuning = { curve: t.kind, resampling: formatResampling(t.resample), seed: t.seed, metric: t.metric, rowsTuned: analysis.n, notes: t.notes };
       out.candidates = t.candidates.map((c) => ({ ...c, errors: Object.fromEntries(Object.entries(c.errors).map(([k, e]) => [k, { mean: finite(e.mean), se: finite(e.se), values: e.values.map(finite) }])) }));
       out.selected = { df: t.selected.df, rule: t.selected.rule, metric: t.selected.metric, reason: t.selected.reason, threshold: t.selected.threshold ?? null, alternatives: t.selected.alternatives };
       if (t.holdout) out.holdout = t.holdout;
     }
     process.stdout.write(JSON.stringify(out) + '\n');
-  } else {
+  } else if (!args.quiet) {
     const lines = [
-      `${basename(args.file)}: ${sel.data.x.length} rows used, ${sel.rejected.length} rejected`,
+      `${args.stdin ? STDIN_NAME : basename(args.file)}: ${sel.data.x.length} rows used, ${sel.rejected.length} rejected`,
       ...sel.rejected.slice(0, 10).map((r) => `  line ${r.line}${r.column ? ` (${r.column})` : ''}: ${r.reason}`),
       ...(sel.rejected.length > 10 ? [`  ... and ${sel.rejected.length - 10} more`] : []),
     ];
     if (analysis) {
-      lines.push(`Tuning (${formatResample(analysis.tune.resample)}, seed ${analysis.tune.seed}):`);
+      lines.push(`Tuning (${formatResampling(analysis.tune.resample)}, seed ${analysis.tune.seed}):`);
       for (const c of analysis.tune.candidates) {
         const e = c.errors[analysis.tune.metric];
         lines.push(c.skipped ? `  df ${c.df}: skipped - ${c.skipped}` : `  df ${c.df}: ${analysis.tune.metric} ${sig(e?.mean ?? NaN)} (SE ${sig(e?.se ?? NaN, 2)})`);
@@ -285,7 +447,8 @@ async function runFit(argv: string[]): Promise<number> {
       lines.push(analysis.tune.selected.reason);
       if (analysis.tune.holdout) lines.push(`Held-out rows: ${analysis.tune.holdout.rows}, RMSE ${sig(analysis.tune.holdout.rmse)}${analysis.tune.holdout.warning ? ` - ${analysis.tune.holdout.warning}` : ''}`);
     }
-    lines.push(`Fit: ${fit.family} df ${sig(fit.df, 4)}, sigma ${sig(fit.sigma)}, R² ${sig(fit.r2, 4)}, LOO RMSE ${sig(fit.looRmse)}, GCV ${sig(fit.gcv)}`);
+    const explained = byDeviance(fit) ? `deviance explained ${sig(100 * fit.r2, 3)} %` : `R² ${sig(fit.r2, 4)}`;
+    lines.push(`Fit: ${fit.kind} df ${sig(fit.df, 4)}, residual SD ${sig(fit.sigma)}, ${explained}, LOO RMSE ${sig(fit.looRmse)}, GCV ${sig(fit.gcv)}`);
     if (!isPlainModel(args.options)) lines.push(modelLine(fit, args.trials));
     for (const note of fit.notes) lines.push(`Note: ${note}`);
     const ip = deliverables.summary.interpolation;
@@ -301,12 +464,13 @@ async function runFit(argv: string[]): Promise<number> {
   return 0;
 }
 
-/** One summary line on the outcome family, shape and robust fitting of a fit, with down-weighted rows by line. */
+/** One summary line on the outcome, shape and robust fitting of a fit, with down-weighted rows by line. */
 function modelLine(fit: FitResult, trials: string | undefined): string {
   const m = fit.model;
-  if (!m) return 'Model: Gaussian outcome, least squares';
-  const parts = [`${m.outcome} outcome (${m.link} link)${trials !== undefined ? `, trials from column "${trials}"` : ''}`];
-  if (m.glm) parts.push(`deviance ${sig(m.glm.deviance)} (null ${sig(m.glm.nullDeviance)}), Pearson dispersion ${sig(m.glm.dispersion)}`);
+  if (!m) return 'Model: continuous readings, least squares';
+  const o = outcomeKind(m.outcome);
+  const parts = [`${o.id} readings (${o.distribution}, ${o.link} link)${trials !== undefined ? `, trials from column "${trials}"` : ''}`];
+  if (m.glm) parts.push(`deviance ${sig(m.glm.deviance)} (flat curve ${sig(m.glm.nullDeviance)}), Pearson dispersion ${sig(m.glm.dispersion)}`);
   if (m.constraints) parts.push(`shape ${m.shape.join(' + ')}: ${m.constraints.active} of ${m.constraints.total} constraints active`);
   if (m.robust) {
     const rows = m.robust.downweighted.rows;
@@ -317,54 +481,78 @@ function modelLine(fit: FitResult, trials: string | undefined): string {
 }
 
 /** Fits the bundled humidity-sensor example (invented data) and writes its deliverables. */
-async function runDemo(argv: string[]): Promise<number> {
-  const { values } = parseArgs({ args: argv, options: { out: { type: 'string' } } });
+async function runDemo(argv: readonly string[], env: CliEnv): Promise<number> {
+  const a = parseCommand(DEMO_COMMAND, argv);
+  if (a.help) {
+    process.stdout.write(formatHelp(DEMO_COMMAND) + '\n');
+    return 0;
+  }
   const example = [join(__dirname, '..', 'examples'), join(__dirname, '..', '..', 'examples'), resolve('examples')].map((d) => join(d, 'humidity-sensor.csv')).find((f) => existsSync(f));
   if (!example) throw new InputError('the bundled example examples/humidity-sensor.csv was not found');
-  const out = resolve(values.out ?? 'knotwise-demo');
+  const out = resolve(a.text('out') as string);
   process.stdout.write(`Demo: invented humidity-sensor calibration data (${example})\n`);
-  const code = await runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resample', 'cv:10x5', '--rule', '1se', '--grid', '10:94:step=2', '--nonnegative', '--emit', 'c,ts,json', '--report', '--out', out]);
+  const code = await runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resampling', 'folds:10x5', '--rule', 'one-se', '--grid', '10:94:step=2', '--flag-negative', '--emit', 'c,ts,json', '--report', '--out', out], env);
   process.stdout.write(`Outputs are in ${out}: open ${join(out, 'humidity-sensor.report.md')} for the review report; check them with: knotwise check ${out}\n`);
   return code;
 }
 
-/** Runs the command line; returns the exit code. */
-export async function main(argv: string[]): Promise<number> {
+/** The command named `name`, or an InputError naming the nearest one. */
+function unknownCommand(name: string): InputError {
+  const guess = nearest(name, [...commands().map((c) => c.name), 'help']);
+  return new InputError(`unknown command "${name}"; ${guess !== undefined ? `did you mean ${guess}? ` : ''}run knotwise --help for the commands`);
+}
+
+/**
+ * Runs the command line; returns the exit code (0 done, 1 `check` found changes, 2 bad
+ * input or options, 3 internal error). `env` replaces standard input, the progress stream
+ * and the clock (tests).
+ */
+export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): Promise<number> {
+  const e: CliEnv = { ...processEnv(), ...env };
   const [command, ...rest] = argv;
   try {
     switch (command) {
       case 'fit':
-        return await runFit(rest);
+        return await runFit(rest, e);
       case 'demo':
-        return await runDemo(rest);
+        return await runDemo(rest, e);
       case 'check':
         return await runCheck(rest);
       case undefined:
+        process.stderr.write(usage() + '\n');
+        return 2;
       case '--help':
       case '-h':
-      case 'help':
-        process.stdout.write(USAGE + '\n');
-        return command === undefined ? 2 : 0;
+      case 'help': {
+        const topic = command === 'help' ? rest[0] : undefined;
+        if (command === 'help' && rest.length > 1) throw new InputError(`help takes at most one command; got "${rest.join(' ')}"`);
+        if (topic === undefined) {
+          process.stdout.write(usage() + '\n');
+          return 0;
+        }
+        const spec = commands().find((c) => c.name === topic);
+        if (!spec) throw unknownCommand(topic);
+        process.stdout.write(formatHelp(spec) + '\n');
+        return 0;
+      }
       case '--version':
+      case '-V':
         process.stdout.write(VERSION + '\n');
         return 0;
       default:
-        throw new InputError(`unknown command "${command}"; run knotwise --help`);
+        if (command.startsWith('-')) throw new InputError(`${command} is not an option of knotwise itself; put options after the command, e.g. knotwise fit data.csv ${command} ...; run knotwise --help for the commands`);
+        throw unknownCommand(command);
     }
-  } catch (e) {
-    if (e instanceof InputError) {
-      process.stderr.write(`knotwise: ${e.describe()}\n`);
+  } catch (err) {
+    if (err instanceof InputError) {
+      process.stderr.write(`knotwise: ${err.describe()}\n`);
       return 2;
     }
-    if (e instanceof CancelledError) {
+    if (err instanceof CancelledError) {
       process.stderr.write('knotwise: cancelled\n');
       return 2;
     }
-    if (e instanceof TypeError && (e as { code?: string }).code?.startsWith('ERR_PARSE_ARGS')) {
-      process.stderr.write(`knotwise: ${e.message}\n`);
-      return 2;
-    }
-    process.stderr.write(`knotwise: internal error: ${(e as Error).stack ?? String(e)}\n`);
+    process.stderr.write(`knotwise: internal error: ${(err as Error).stack ?? String(err)}\n`);
     return 3;
   }
 }

@@ -13,10 +13,11 @@ import { fitCurve } from '../fit/index';
 import { selectColumns, type Selection } from '../ingest/select';
 import { selectTrials } from '../ingest/trials';
 import type { FitPlan } from '../plan';
+import type { Progress } from '../tune/types';
 import type { FitResult, XYData } from '../types';
 import { sha256 } from './outputs';
 import { workerRunner } from './pool';
-import { readCsvFile, type FileTable } from './readCsv';
+import { readCsvBytes, readCsvFile, type FileTable } from './readCsv';
 
 /** Everything one run produced. */
 export interface PipelineRun {
@@ -50,23 +51,31 @@ export function portableRelative(folder: string, target: string): string {
  * Reads `file`, fits as `plan` says, and builds the outputs as they would be written into
  * `outFolder` (the data path in the record and the regenerate command is relative to it).
  * `names` renames the table and the record (as the editor's output name settings do;
- * default `<name>.curve.csv` and `<name>.fit.json`).
+ * default `<name>.curve.csv` and `<name>.fit.json`). `source.bytes` are the data when they
+ * come from elsewhere than the file (standard input; `file` then only names them), and
+ * `source.progress` hears of the tuning's progress.
  * Throws InputError (with file, line and column where known) for bad input.
  * Example: const run = await runPipeline('cal.csv', plan, 'out'); run.deliverables.files.
  */
-export async function runPipeline(file: string, plan: FitPlan, outFolder: string, names?: { readonly table: string; readonly record: string }): Promise<PipelineRun> {
-  const table = await readCsvFile(file);
+export async function runPipeline(
+  file: string,
+  plan: FitPlan,
+  outFolder: string,
+  names?: { readonly table: string; readonly record: string },
+  source: { readonly bytes?: Uint8Array | undefined; readonly progress?: Progress | undefined } = {},
+): Promise<PipelineRun> {
+  const table = source.bytes !== undefined ? readCsvBytes(source.bytes, file) : await readCsvFile(file);
   // A binomial outcome with a trials column: proportions, with the trials as weights (core/ingest/trials.ts).
   const selection = plan.trials !== undefined ? selectTrials(table, plan.columns, plan.trials, file) : selectColumns(table, plan.columns, file);
   let fit: FitResult;
   let analysis: Analysis | undefined;
   try {
     if (plan.tune) {
-      analysis = await analyse(selection.data, plan.options, workerRunner());
+      analysis = await analyse(selection.data, plan.options, workerRunner(), source.progress);
       fit = analysis.chosen;
     } else {
       const { outcome, shape, robust } = plan.options;
-      fit = fitCurve(selection.data, { family: plan.options.family, df: plan.options.candidates?.[0] as number, outcome, shape, robust });
+      fit = fitCurve(selection.data, { kind: plan.options.kind, df: plan.options.candidates?.[0] as number, outcome, shape, robust });
     }
   } catch (e) {
     throw placed(e, file, selection.labels);

@@ -27,7 +27,7 @@ export interface ErrorByDfSpec {
   readonly ruleName: string;
 }
 
-/** SVG text of the error-against-df figure. Example: errorByDfSvg({ id: 'fig-err', points, chosenDf: 5, metricName: 'RMSE', ruleName: 'lowest' }). */
+/** SVG text of the error-against-df figure. Example: errorByDfSvg({ id: 'fig-err', points, chosenDf: 5, metricName: 'RMSE', ruleName: 'least-error' }). */
 export function errorByDfSvg(spec: ErrorByDfSpec): string {
   const pts = [...spec.points].filter((p) => Number.isFinite(p.mean)).sort((a, b) => a.df - b.df);
   const dfs = pts.map((p) => p.df);

@@ -8,12 +8,13 @@ import { dataCurveSvg } from '../plots/dataCurve';
 import { errorByDfSvg, type ErrorPoint } from '../plots/errorByDf';
 import { normalQqSvg } from '../plots/normalQq';
 import { residualSvg } from '../plots/residuals';
-import { metricLabel, ruleWords } from '../tune/format';
+import { metricLabel } from '../tune/format';
 import type { FitResult, XYData } from '../types';
 import { cloudOf } from '../view/cloud';
 import { fitDetail } from '../view/detail';
 import { curveView, evenGrid, PANEL_GRID_POINTS } from '../view/payload';
 import { standaloneSvg } from './figureStyle';
+import { ruleWords } from '../registry/rules/index';
 
 /** One figure file of the report. */
 export interface ReportFigure {

@@ -6,13 +6,16 @@
  */
 import type { Analysis, Diagnostics } from '../analysisTypes';
 import type { RejectedRow } from '../ingest/select';
-import { shellWord } from '../plan';
+import { shellWord } from '../shellWord';
 import { num } from '../plots/svg';
 import type { TableSummary } from '../record';
-import { metricLabel, ruleLabel, ruleWords } from '../tune/format';
+import { metricLabel } from '../tune/format';
 import type { FitResult } from '../types';
-import { checkViews, familyWords, resampleWords } from '../view/words';
+import { checkViews } from '../view/words';
 import type { ReportFigure } from './figures';
+import { formatRule, ruleWords } from '../registry/rules/index';
+import { curveWords } from '../registry/curves/index';
+import { resamplingWords } from '../registry/resampling/index';
 
 /** Rows of long lists (rejected rows, influential rows, flagged x) shown before "... and N more". */
 export const REPORT_LIST_LIMIT = 20;
@@ -62,7 +65,7 @@ function whyThisDf(a: Analysis | undefined, fit: FitResult): string[] {
   if (!a) return [`The df was given (${num(fit.df, 4)}); it was not tuned.`, ''];
   const t = a.tune;
   const s = t.selected;
-  const out = [`${md(s.reason)}`, '', `Errors were estimated by ${md(resampleWords(t.resample, t.seed))}; the rule is the ${md(ruleWords(s.rule))} (\`--rule ${ruleLabel(s.rule)}\`).`];
+  const out = [`${md(s.reason)}`, '', `Errors were estimated by ${md(resamplingWords(t.resample, t.seed))}; the rule is the ${md(ruleWords(s.rule))} (\`--rule ${formatRule(s.rule)}\`).`];
   if (t.holdout) {
     const h = t.holdout;
     out.push('', `Held-out check (${h.rows} rows, ${num(100 * h.fraction, 3)} % set aside before tuning and used once): RMSE ${num(h.rmse)} against the resampled ${num(h.resampledRmse)}.${h.warning ? ` **${md(h.warning)}**` : ''}`);
@@ -154,7 +157,7 @@ function modelSection(fit: FitResult): string[] {
   const m = fit.model;
   if (!m) return [];
   const out = ['## Model', ''];
-  const outcome = m.outcome === 'gaussian' ? 'Gaussian (least squares)' : `${m.outcome === 'poisson' ? 'Poisson' : 'binomial'} (${m.link} link), fitted by iteratively reweighted least squares`;
+  const outcome = m.outcome === 'continuous' ? 'Gaussian (least squares)' : `${m.outcome === 'counts' ? 'Poisson' : 'proportions'} (${m.link} link), fitted by iteratively reweighted least squares`;
   out.push(`- Outcome: ${outcome}; ${m.converged ? `converged in ${m.iterations} iteration${m.iterations === 1 ? '' : 's'}` : `**did not converge** in ${m.iterations} iterations`}.`);
   if (m.glm) out.push(`- Deviance ${num(m.glm.deviance, 6)} (null deviance ${num(m.glm.nullDeviance, 6)}); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`);
   if (m.shape.length) {
@@ -184,7 +187,7 @@ export function reportMarkdown(input: ReportInput): string {
     '',
     `> **Caution.** ${md(input.caution)}`,
     '',
-    `A ${familyWords(fit.family)} with df ${num(fit.df, 4)} was fitted to ${input.rowsUsed} rows of ${md(input.dataFile)} (${md(input.labels.y)} against ${md(input.labels.x)})${a?.options.holdout ? `, of which ${a.n} were used for fitting and the rest held out` : ''}. The curve table ${md(input.table.file)} has ${input.table.points} rows.`,
+    `A ${curveWords(fit.kind)} with df ${num(fit.df, 4)} was fitted to ${input.rowsUsed} rows of ${md(input.dataFile)} (${md(input.labels.y)} against ${md(input.labels.x)})${a?.options.holdout ? `, of which ${a.n} were used for fitting and the rest held out` : ''}. The curve table ${md(input.table.file)} has ${input.table.points} rows.`,
     '',
   ];
   if (input.warnings.length) lines.push('## Warnings', '', ...input.warnings.map((w) => `- ⚠ ${md(w)}`), '');

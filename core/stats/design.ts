@@ -3,7 +3,7 @@ import { InputError } from '../errors';
 /**
  * Rows of a model matrix, read one at a time so that diagnostics never need the whole
  * n x p matrix: row i goes into `out` (length p). Rows come in the same order as the
- * residuals they belong to, and the intercept column is included (DESIGN.md: df counts
+ * residuals they belong to, and the intercept column is included (docs/design.md, "df": df counts
  * the intercept). For weighted fits pass rows and residuals multiplied by sqrt(w).
  */
 export interface DesignRows {

@@ -3,6 +3,7 @@
  * adjacent table rows stays within a tolerance of the fitted curve.
  */
 import { InputError } from '../errors';
+import { opt } from '../words/options';
 import type { Curve } from '../types';
 import { defaultGrid, formatGrid, gridPoints, MAX_GRID_POINTS, type GridSpec } from './grid';
 import { interpolationError } from './interpolation';
@@ -57,7 +58,7 @@ function roundingFloor(value: (x: number) => number, start: number, stop: number
 export function autoStep(value: (x: number) => number, start: number, stop: number, tolerance: number, round: (v: number) => number, label = `auto:${tolerance}`): AutoStep {
   const floor = roundingFloor(value, start, stop, round);
   if (floor >= tolerance) {
-    throw new InputError(`grid "${label}": the tolerance ${tolerance} is not above the rounding of the printed table values (up to ${floor.toPrecision(2)}); raise --digits or the tolerance`);
+    throw new InputError(`grid "${label}": the tolerance ${tolerance} is not above the rounding of the printed table values (up to ${floor.toPrecision(2)}); raise ${opt('digits')} or the tolerance`);
   }
   const check = (m: number, stopAbove: number): AutoStep => {
     const pts = gridPoints({ kind: 'count', start, stop, count: m + 1 }, new Float64Array(0));

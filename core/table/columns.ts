@@ -3,6 +3,7 @@
  * columns that safety requires whenever they flag a row.
  */
 import { InputError } from '../errors';
+import { opt } from '../words/options';
 import { OPTIONAL_COLUMNS, TABLE_COLUMNS, type CurveTable, type TableColumn } from './curveTable';
 
 const KNOWN: readonly TableColumn[] = [...TABLE_COLUMNS, ...OPTIONAL_COLUMNS];
@@ -42,7 +43,7 @@ export interface ShapedTable {
 export function shapeTable(full: CurveTable, requested: readonly TableColumn[] | undefined, nonnegative: boolean): ShapedTable {
   const fitAt = full.columns.indexOf('fit');
   const extAt = full.columns.indexOf('extrapolated');
-  if (requested?.includes('negative') && !nonnegative) throw new InputError('the table column "negative" needs the quantity declared non-negative (--nonnegative)');
+  if (requested?.includes('negative') && !nonnegative) throw new InputError(`the table column "negative" needs the quantity declared non-negative (${opt('flagNegative')})`);
   const columns: TableColumn[] = requested ? [...requested] : [...TABLE_COLUMNS, ...(nonnegative ? (['negative'] as const) : [])];
   const added: TableColumn[] = [];
   if (!columns.includes('extrapolated') && full.rows.some((r) => r[extAt] === 1)) added.push('extrapolated');

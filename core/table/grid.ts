@@ -1,4 +1,5 @@
 import { InputError } from '../errors';
+import { opt } from '../words/options';
 
 /** Where the curve table is evaluated. */
 export type GridSpec =
@@ -19,9 +20,10 @@ export const MAX_GRID_POINTS = 1_000_000;
 export const DEFAULT_GRID_COUNT = 101;
 
 /**
- * Parses a grid: `<start>:<stop>:<count>`, `<start>:<stop>:step=<step>`, `data` (the
+ * Parses a grid: `<start>:<stop>:count=<n>`, `<start>:<stop>:step=<step>`, `data` (the
  * distinct x of the data), a list `1,2.5,4`, or an automatic step `auto:<tolerance>`
- * (over the data range) or `<start>:<stop>:auto=<tolerance>`.
+ * (over the data range) or `<start>:<stop>:auto=<tolerance>`. A bare third field
+ * (`10:94:2`) is refused: some read it as a count, others as a step.
  */
 export function parseGrid(text: string): GridSpec {
   const t = text.trim();
@@ -40,7 +42,12 @@ export function parseGrid(text: string): GridSpec {
       if ((stop - start) / step + 1 > MAX_GRID_POINTS) throw new InputError(`grid "${t}" has more than ${MAX_GRID_POINTS} points`);
       return { kind: 'step', start, stop, step };
     }
-    const count = num(last, 'count', t);
+    if (!last.trim().startsWith('count=')) {
+      throw new InputError(
+        `grid "${t}": the third field must say what it is: <start>:<stop>:count=<n> (n points), <start>:<stop>:step=<h> or <start>:<stop>:auto=<tolerance>; other forms: data, a list 1,2.5,4, auto:<tolerance>`,
+      );
+    }
+    const count = num(last.trim().slice(6), 'count', t);
     if (!Number.isInteger(count) || count < 2 || count > MAX_GRID_POINTS) throw new InputError(`grid "${t}": count must be a whole number from 2 to ${MAX_GRID_POINTS}`);
     return { kind: 'count', start, stop, count };
   }
@@ -58,7 +65,7 @@ function tolerance(s: string, whole: string): number {
 export function formatGrid(spec: GridSpec): string {
   switch (spec.kind) {
     case 'count':
-      return `${spec.start}:${spec.stop}:${spec.count}`;
+      return `${spec.start}:${spec.stop}:count=${spec.count}`;
     case 'step':
       return `${spec.start}:${spec.stop}:step=${spec.step}`;
     case 'data':
@@ -117,7 +124,7 @@ export function checkInRange(points: Float64Array, lower: number, upper: number,
   let outside = 0;
   for (const p of points) if (p < lower || p > upper) outside++;
   if (outside > 0 && !allowExtrapolation) {
-    throw new InputError(`${outside} grid point(s) lie outside the data range [${lower}, ${upper}]; extrapolation is refused unless asked for (--extrapolate)`);
+    throw new InputError(`${outside} grid point(s) lie outside the data range [${lower}, ${upper}]; extrapolation is refused unless asked for (${opt('extrapolate')})`);
   }
   return outside;
 }

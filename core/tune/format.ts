@@ -1,4 +1,4 @@
-import type { Metric, RuleSpec } from './types';
+import type { Metric } from './types';
 
 /** A number with 3 significant digits, without trailing zeros (0.301, 12.5, 1.23e-7). */
 export function sig(v: number, digits = 3): string {
@@ -22,33 +22,5 @@ export function metricLabel(metric: Metric): string {
       return 'GCV score';
     case 'deviance':
       return 'deviance';
-  }
-}
-
-/** Short name of a rule, as in the command line (`lowest`, `1se`, `tol:2`, `df:7`). */
-export function ruleLabel(rule: RuleSpec): string {
-  switch (rule.kind) {
-    case 'lowest':
-      return 'lowest';
-    case '1se':
-      return '1se';
-    case 'tol':
-      return `tol:${rule.percent}`;
-    case 'manual':
-      return `df:${rule.df}`;
-  }
-}
-
-/** Words for a rule in an explanation. */
-export function ruleWords(rule: RuleSpec): string {
-  switch (rule.kind) {
-    case 'lowest':
-      return 'lowest mean error';
-    case '1se':
-      return 'one-standard-error rule';
-    case 'tol':
-      return `simplest within ${rule.percent} % of the lowest`;
-    case 'manual':
-      return `chosen by hand`;
   }
 }

@@ -5,13 +5,14 @@
 import { trainingRows } from './trainingRows';
 import { FitError } from '../errors';
 import { CachedRows } from '../fit/cachedRows';
-import { irls, outcomeFamily, type OutcomeFamily } from '../fit/glm';
+import { irls, type OutcomeFamily } from '../fit/glm';
 import { LinearSystem } from '../fit/linearSystem';
-import { modelBasis, type ResolvedModel } from '../fit/model';
+import type { ModelBasis, ResolvedModel } from '../fit/model';
+import { outcomeKind } from '../registry/outcomes/index';
 import type { PreparedData } from '../fit/prepared';
 import { huberIrls } from '../fit/robust';
 import { shapedSmoothingSplineAtLambda } from '../fit/shapedSmoothing';
-import type { Curve, Family, Shape } from '../types';
+import type { Curve, Shape } from '../types';
 
 /** A candidate refitted on weighted rows (0 = not in training) and evaluated at rows. */
 export interface ModelTrainer {
@@ -22,7 +23,7 @@ export interface ModelTrainer {
   /** Prediction of the mean at row i in the units of y. */
   mean(i: number): number;
   /** The outcome family (Poisson, binomial) whose deviance scores held-out rows; undefined for Gaussian. */
-  readonly family: OutcomeFamily | undefined;
+  readonly scoring: OutcomeFamily | undefined;
 }
 
 /**
@@ -33,17 +34,16 @@ export interface ModelTrainer {
  * O(n) per reweighting iteration. `y` are the raw outcomes; predictions are mapped to the
  * engine's units by (mu - ymean) / yscale.
  */
-export function modelTrainer(prepared: PreparedData, y: Float64Array, family: Family, df: number, model: ResolvedModel, ymean: number, yscale: number): ModelTrainer {
+export function modelTrainer(prepared: PreparedData, y: Float64Array, mb: ModelBasis, model: ResolvedModel, ymean: number, yscale: number): ModelTrainer {
   const { data } = prepared;
   const n = data.x.length;
-  const mb = modelBasis(prepared, family, df, model);
   const rows = new CachedRows(mb.basis, data.x);
   const system = new LinearSystem(mb.basis.size, mb.z, mb.shape, mb.what);
   const p = mb.basis.size;
   const g = new Float64Array(p * p);
   const rhs = new Float64Array(p);
   const fitted = new Float64Array(n);
-  const fam = model.outcome === 'gaussian' ? undefined : outcomeFamily(model.outcome);
+  const fam = outcomeKind(model.outcome).glm;
   const prior = data.w ?? new Float64Array(n).fill(1);
   const freq = new Float64Array(n);
   let start: Float64Array | undefined;
@@ -61,7 +61,7 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, family: Fa
     return system.solve(g, rhs).theta;
   };
   return {
-    family: fam,
+    scoring: fam,
     train(weights: Float64Array): boolean {
       try {
         const theta = fitOnce(weights);
@@ -93,7 +93,7 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, family: Fa
 export function shapedSmoothTrainer(x: Float64Array, y: Float64Array, lambda: number, shapes: readonly Shape[], ymean: number, yscale: number): ModelTrainer {
   let curve: Curve | undefined;
   return {
-    family: undefined,
+    scoring: undefined,
     train(weights: Float64Array): boolean {
       try {
         curve = shapedSmoothingSplineAtLambda(trainingRows(x, y, weights), lambda, shapes).curve;

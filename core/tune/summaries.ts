@@ -1,7 +1,7 @@
 import type { ErrorSummary } from './types';
 
 /**
- * Mean, standard error (sample SD / sqrt(count), DESIGN.md "Errors") and values of the
+ * Mean, standard error (sample SD / sqrt(count), docs/design.md, "Errors") and values of the
  * finite entries of `values`. O(m).
  */
 export function summarise(values: ArrayLike<number>, keepValues = true): ErrorSummary & { readonly count: number } {

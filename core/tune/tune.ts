@@ -1,15 +1,15 @@
 import { CancelledError, FitError, InputError } from '../errors';
 import { fitCurve } from '../fit/index';
-import { fitNaturalSplineBatch } from '../fit/naturalSplineBatch';
 import type { PreparedData } from '../fit/prepared';
-import { isPlainModel, resolveModel } from '../fit/model';
-import { checkShapedSmoothingSize } from '../fit/shapedSmoothing';
-import type { Family, FitResult, ModelOptions } from '../types';
+import { isPlainModel } from '../fit/model';
+import type { CurveKindId, FitResult, ModelOptions } from '../types';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from './engine';
-import { checkResampleSpec, orderByX, resampleCount } from './plan';
+import { orderByX } from './plan';
 import { selectDf } from './rules';
 import { summarise } from './summaries';
 import type { CandidateResult, ErrorSummary, Metric, Progress, ResampleSpec, RuleSpec, TuneResult } from './types';
+import { curveKind, resolveModel } from '../registry/curves/index';
+import { resamplingScheme } from '../registry/resampling/index';
 
 /**
  * What to tune. The ModelOptions fields (outcome, shape, robust) apply to every candidate;
@@ -18,7 +18,7 @@ import type { CandidateResult, ErrorSummary, Metric, Progress, ResampleSpec, Rul
  * outcome with trials is passed as proportions with the trials as prior weights.
  */
 export interface TuneOptions extends ModelOptions {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   readonly candidates?: readonly number[] | undefined;
   readonly resample: ResampleSpec;
   readonly rule: RuleSpec;
@@ -34,25 +34,9 @@ export interface ResampleRunner {
 
 /** A larger share of failed resamples than this skips the candidate. */
 const MAX_FAILED_SHARE = 0.5;
-/** Largest default df of the natural spline and the smoothing spline (DESIGN/issue: 2 .. min(12, distinct x)). */
-const DEFAULT_MAX_DF = 12;
-/** Largest default polynomial df (degree 7); higher degrees are rarely defensible. */
-const DEFAULT_MAX_POLY_DF = 8;
-
-/**
- * Default candidates: natural spline 2..min(12, distinct x); polynomial 1..min(8, distinct x);
- * smoothing spline 2..min(12, distinct x - 1) (its df must stay below the distinct count).
- */
-export function defaultCandidates(family: Family, distinct: number): number[] {
-  const range = (a: number, b: number): number[] => Array.from({ length: Math.max(0, b - a + 1) }, (_, i) => a + i);
-  switch (family) {
-    case 'natural':
-      return range(2, Math.max(2, Math.min(DEFAULT_MAX_DF, distinct)));
-    case 'poly':
-      return range(1, Math.max(1, Math.min(DEFAULT_MAX_POLY_DF, distinct)));
-    case 'smooth':
-      return range(2, Math.max(2, Math.min(DEFAULT_MAX_DF, distinct - 1)));
-  }
+/** Default candidates of a curve kind for data with `distinct` distinct x (from the kind's registry entry). */
+export function defaultCandidates(kind: CurveKindId, distinct: number): number[] {
+  return curveKind(kind).defaultCandidates(distinct);
 }
 
 /** Runs every resample on this thread. */
@@ -86,29 +70,31 @@ export async function tuneCurve(
   runner: ResampleRunner = inlineRunner,
   progress?: Progress,
 ): Promise<{ result: TuneResult; fits: Map<number, FitResult> }> {
-  const { family, resample, rule, seed } = options;
+  const { kind, resample, rule, seed } = options;
   const n = prepared.data.x.length;
-  checkResampleSpec(resample, n);
-  const dfs = [...new Set(options.candidates ?? defaultCandidates(family, prepared.distinct))].sort((a, b) => a - b);
+  resamplingScheme(resample).check(resample, n);
+  const dfs = [...new Set(options.candidates ?? defaultCandidates(kind, prepared.distinct))].sort((a, b) => a - b);
   if (dfs.length === 0) throw new InputError('no candidate df given');
-  const model = resolveModel(family, options);
-  // Refuse an oversized shape-constrained smoothing spline once, not once per candidate.
-  if (family === 'smooth' && model.shape.length > 0) checkShapedSmoothingSize(prepared.distinct);
+  const def = curveKind(kind);
+  const model = resolveModel(kind, options);
+  // Limits of a kind's model options are checked once, not once per candidate.
+  def.checkModel?.(model, prepared.distinct);
   const plain = isPlainModel(options);
-  const glm = model.outcome !== 'gaussian';
-  if (!plain && resample.kind === 'loo') {
-    throw new InputError('exact leave-one-out needs a plain least-squares fit; with a Poisson or binomial outcome, shape constraints or robust fitting use boot:<B> or cv:<K> resampling');
+  const glm = model.outcome !== 'continuous';
+  const scheme = resamplingScheme(resample);
+  if (!plain && scheme.method === 'leverage') {
+    throw new InputError('exact leave-one-out needs a plain least-squares fit; with counts or proportions, shape constraints or robust fitting use bootstrap:<resamples> or folds:<k> resampling');
   }
-  const metric: Metric = options.metric ?? (resample.kind === 'gcv' ? 'gcv' : glm ? 'deviance' : 'rmse');
-  if (metric === 'deviance' && !glm) throw new InputError('the mean deviance is the error of Poisson and binomial outcomes; use rmse, mae or maxAbs here');
-  if (metric === 'gcv' && resample.kind !== 'gcv') throw new InputError('the GCV score is only available with --resample gcv');
-  if (metric !== 'gcv' && resample.kind === 'gcv') throw new InputError(`with GCV the rules compare the GCV score, not ${metric}`);
+  const metric: Metric = options.metric ?? (scheme.method === 'fit' ? 'gcv' : glm ? 'deviance' : 'rmse');
+  if (metric === 'deviance' && !glm) throw new InputError('the mean deviance is the error of counts and proportions; use rmse, mae or maxAbs here');
+  if (metric === 'gcv' && scheme.method !== 'fit') throw new InputError('the GCV score is only available with gcv resampling');
+  if (metric !== 'gcv' && scheme.method === 'fit') throw new InputError(`with GCV the rules compare the GCV score, not ${metric}`);
   const fits = new Map<number, FitResult>();
   const skipped = new Map<number, string>();
   const modelSpec: ModelOptions = plain ? {} : { outcome: model.outcome, shape: model.shape, robust: model.robustK !== undefined ? { k: model.robustK } : undefined };
-  if (family === 'natural' && plain) {
-    // One pass of power sums serves every candidate (see fitNaturalSplineBatch).
-    for (const [df, r] of fitNaturalSplineBatch(prepared, dfs)) {
+  if (def.fitAll && plain) {
+    // The kind shares work across candidates (the natural spline's power sums).
+    for (const [df, r] of def.fitAll(prepared, dfs)) {
       if (r instanceof FitError) skipped.set(df, r.message);
       else fits.set(df, r);
     }
@@ -116,7 +102,7 @@ export async function tuneCurve(
     for (const df of dfs) {
       if (progress?.cancelled()) throw new CancelledError();
       try {
-        fits.set(df, fitCurve(prepared, { family, df, ...modelSpec }));
+        fits.set(df, fitCurve(prepared, { kind, df, ...modelSpec }));
       } catch (e) {
         if (!(e instanceof FitError)) throw e;
         skipped.set(df, e.message);
@@ -127,15 +113,15 @@ export async function tuneCurve(
   const fitted = dfs.filter((df) => fits.has(df));
   const errors = new Map<number, CandidateResult['errors']>();
   const notes: string[] = [];
-  const count = resampleCount(resample);
-  if ((resample.kind === 'boot' || resample.kind === 'cv') && fitted.length > 0) {
+  const count = scheme.count(resample);
+  if (scheme.method === 'resamples' && fitted.length > 0) {
     const problem: ResampleProblem = {
       x: prepared.data.x,
       y: prepared.data.y,
       w: prepared.data.w,
-      family,
+      kind,
       dfs: fitted,
-      lambdas: family === 'smooth' ? fitted.map((df) => (fits.get(df) as FitResult).lambda as number) : undefined,
+      params: def.resampleParams?.(fitted.map((df) => fits.get(df) as FitResult)),
       resample,
       seed,
       order: orderByX(prepared.data.x),
@@ -154,9 +140,9 @@ export async function tuneCurve(
       if (failed > 0) notes.push(`df ${df}: ${failed} of ${count} resamples could not be fitted and were left out of its mean error.`);
       errors.set(df, { rmse: strip(rmse), mae: strip(summarise(pick(1))), maxAbs: strip(summarise(pick(2))), ...(glm ? { deviance: strip(summarise(pick(3))) } : {}) });
     });
-  } else if (resample.kind === 'loo') {
+  } else if (scheme.method === 'leverage') {
     for (const df of fitted) errors.set(df, leaveOneOutErrors(prepared, fits.get(df) as FitResult));
-  } else if (resample.kind === 'gcv') {
+  } else if (scheme.method === 'fit') {
     for (const df of fitted) errors.set(df, { gcv: { mean: (fits.get(df) as FitResult).gcv, se: NaN, values: [] } });
   }
   const candidates: CandidateResult[] = dfs.map((df) => {
@@ -167,7 +153,7 @@ export async function tuneCurve(
   });
   for (const df of skipped.keys()) fits.delete(df);
   const selected = selectDf(candidates, rule, metric);
-  return { result: { family, resample, seed, metric, candidates, selected, notes }, fits };
+  return { result: { kind, resample, seed, metric, candidates, selected, notes }, fits };
 }
 
 function strip(s: ErrorSummary & { count: number }): ErrorSummary {

@@ -1,18 +1,18 @@
-import type { Family } from '../types';
+import type { CurveKindId } from '../types';
 
 /** How candidate errors are estimated. The same resamples serve every candidate. */
 export type ResampleSpec =
-  | { readonly kind: 'boot'; readonly resamples: number }
-  | { readonly kind: 'cv'; readonly folds: number; readonly repeats: number }
-  | { readonly kind: 'loo' }
+  | { readonly kind: 'bootstrap'; readonly resamples: number }
+  | { readonly kind: 'folds'; readonly folds: number; readonly repeats: number }
+  | { readonly kind: 'leave-one-out' }
   | { readonly kind: 'gcv' };
 
 /** How the df is chosen from the candidates. */
 export type RuleSpec =
-  | { readonly kind: 'lowest' }
-  | { readonly kind: '1se' }
-  | { readonly kind: 'tol'; readonly percent: number }
-  | { readonly kind: 'manual'; readonly df: number };
+  | { readonly kind: 'least-error' }
+  | { readonly kind: 'one-se' }
+  | { readonly kind: 'simplest-within'; readonly percent: number }
+  | { readonly kind: 'pick'; readonly df: number };
 
 /**
  * Error measure the rules compare. 'deviance' is the mean deviance per unit prior weight of
@@ -72,7 +72,7 @@ export interface HoldoutReport {
 
 /** The full outcome of tuning one family. */
 export interface TuneResult {
-  readonly family: Family;
+  readonly kind: CurveKindId;
   readonly resample: ResampleSpec;
   readonly seed: number;
   readonly metric: Metric;

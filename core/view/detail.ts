@@ -47,7 +47,7 @@ export interface DetailOptions {
  * The model report of a fit for the panel (undefined for plain least squares): the numbers
  * rounded for display, the first MAX_DOWNWEIGHTED_LISTED down-weighted rows with their x,
  * y and CSV line, and the report in words. O(listed rows).
- * Example: modelReportView(fitCurve(data, { family: 'natural', df: 5, robust: true }), data)?.robust?.total.
+ * Example: modelReportView(fitCurve(data, { family: 'natural-spline', df: 5, robust: true }), data)?.robust?.total.
  */
 export function modelReportView(fit: FitResult, data: XYData): ModelReportView | undefined {
   const m = fit.model;
@@ -73,7 +73,7 @@ export function modelReportView(fit: FitResult, data: XYData): ModelReportView |
  * checkResiduals): reading minus fit for least-squares and robust fits, deviance residuals
  * for Poisson and binomial fits; the normal quantile plot standardises them by their scale
  * and sqrt(1 - leverage). O(n log n) for the normal quantiles, O(n) otherwise.
- * Example: fitDetail(fitCurve(data, { family: 'natural', df: 4 }), data).influential.
+ * Example: fitDetail(fitCurve(data, { family: 'natural-spline', df: 4 }), data).influential.
  */
 export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions = {}): FitDetail {
   const n = fit.fitted.length;

@@ -8,15 +8,16 @@
 import type { Analysis } from '../analysisTypes';
 import { diagnose } from '../diagnose';
 import { bandsAt } from '../fit/bands';
-import { resolveModel } from '../fit/model';
 import type { FitDetail, PanelPayload, SourceView, CurveView, ModelView } from '../protocol';
 import { selectDf } from '../tune/rules';
 import type { CandidateResult, ErrorSummary, RuleSpec, Selection } from '../tune/types';
-import type { Family, FitResult, Outcome } from '../types';
+import type { CurveKindId, FitResult, Outcome } from '../types';
 import { cloudOf } from './cloud';
 import { fitDetail } from './detail';
 import { roundAll } from './round';
-import { CAUTION, familyWords, modelWords, resampleWords } from './words';
+import { CAUTION, modelWords } from './words';
+import { curveWords, resolveModel } from '../registry/curves/index';
+import { resamplingWords } from '../registry/resampling/index';
 
 /** Number of grid points of each curve in the panel. */
 export const PANEL_GRID_POINTS = 240;
@@ -94,33 +95,33 @@ export function startSelection(analysis: Analysis, rule: RuleSpec | undefined): 
 }
 
 /** What each curve family supports (core/fit/model.ts resolveModel decides; probed here so the two never disagree). */
-function supports(family: Family): ModelView['supports'] {
+function supports(kind: CurveKindId): ModelView['supports'] {
   const ok = (m: Parameters<typeof resolveModel>[1]): boolean => {
     try {
-      resolveModel(family, m);
+      resolveModel(kind, m);
       return true;
     } catch {
       return false;
     }
   };
-  const outcomes = (['gaussian', 'poisson', 'binomial'] as const).filter((o) => ok({ outcome: o })) as Outcome[];
+  const outcomes = (['continuous', 'counts', 'proportions'] as const).filter((o) => ok({ outcome: o })) as Outcome[];
   return { outcomes, shapes: ok({ shape: ['increasing'] }), robust: ok({ robust: true }) };
 }
 
 /** The model options of an analysis for the panel. */
 export function modelView(analysis: Analysis, trialsLabel: string | undefined, fromPanel: boolean): ModelView {
-  const m = resolveModel(analysis.options.family, analysis.options);
-  const trials = m.outcome === 'binomial' ? trialsLabel : undefined;
+  const m = resolveModel(analysis.options.kind, analysis.options);
+  const trials = m.outcome === 'proportions' ? trialsLabel : undefined;
   return {
     outcome: m.outcome,
     shape: m.shape,
     robust: m.robustK !== undefined,
-    link: m.outcome === 'poisson' ? 'log' : m.outcome === 'binomial' ? 'logit' : 'identity',
+    link: m.outcome === 'counts' ? 'log' : m.outcome === 'proportions' ? 'logit' : 'identity',
     ...(m.robustK !== undefined ? { robustK: m.robustK } : {}),
     ...(trials !== undefined ? { trialsLabel: trials } : {}),
     words: modelWords({ outcome: m.outcome, shape: m.shape, robustK: m.robustK, trialsLabel: trials }),
     fromPanel,
-    supports: supports(analysis.options.family),
+    supports: supports(analysis.options.kind),
   };
 }
 
@@ -152,10 +153,10 @@ export function buildPanelPayload(input: PayloadInput): PanelPayload {
     runId: input.runId,
     source: input.source,
     rows: { used: analysis.n, rejected: input.rejected, heldOut: input.heldOut },
-    family: analysis.options.family,
+    kind: analysis.options.kind,
     model: modelView(analysis, input.trialsLabel, input.modelFromPanel === true),
-    familyWords: familyWords(analysis.options.family),
-    resampleWords: resampleWords(tune.resample, tune.seed),
+    curveWords: curveWords(analysis.options.kind),
+    resamplingWords: resamplingWords(tune.resample, tune.seed),
     metric: tune.metric,
     candidates: tune.candidates.map(slim),
     rule: selection.rule,

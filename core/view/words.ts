@@ -1,44 +1,15 @@
 /**
- * Plain words the panel (and later the report) shows for families, resampling schemes,
- * residual checks and the standing caution.
+ * Plain words the panel and the report show for residual checks and model reports (the
+ * words of curve kinds, outcomes, resampling schemes and rules live in core/registry/).
  */
 import type { Diagnostics } from '../analysisTypes';
 import { shapeWords } from '../fit/shape';
 import type { CheckView } from '../protocol';
 import { num } from '../plots/svg';
-import type { ResampleSpec } from '../tune/types';
-import type { Family, ModelReport, Outcome, Shape } from '../types';
+import { outcomeKind } from '../registry/outcomes/index';
+import type { ModelReport, Outcome, Shape } from '../types';
 
-/** The caution every panel and report carries. */
-export const CAUTION =
-  'This curve is an empirical fit to the readings shown, not a certified calibration. ' +
-  'Safety-related use must follow the applicable standards and needs review by a qualified person.';
-
-/** A curve family in words. */
-export function familyWords(family: Family): string {
-  switch (family) {
-    case 'natural':
-      return 'natural cubic regression spline';
-    case 'poly':
-      return 'polynomial (orthogonal basis)';
-    case 'smooth':
-      return 'cubic smoothing spline';
-  }
-}
-
-/** A resampling scheme in words, with its seed where it matters. */
-export function resampleWords(spec: ResampleSpec, seed: number): string {
-  switch (spec.kind) {
-    case 'boot':
-      return `bootstrap, ${spec.resamples} resamples, error on the out-of-bag rows, seed ${seed}`;
-    case 'cv':
-      return `${spec.folds}-fold cross-validation${spec.repeats > 1 ? `, repeated ${spec.repeats} times` : ''}, folds stratified by x, seed ${seed}`;
-    case 'loo':
-      return 'exact leave-one-out';
-    case 'gcv':
-      return 'generalised cross-validation (GCV)';
-  }
-}
+export { CAUTION } from '../words/caution';
 
 /** p-value text: "p = 0.034" or "p < 0.0001". */
 export function pText(p: number): string {
@@ -99,22 +70,11 @@ export interface ModelWordsInput {
 
 /**
  * The outcome family, shapes and robust fitting of a run in one phrase.
- * Example: modelWords({ outcome: 'poisson', shape: ['increasing'], robustK: undefined }) ->
+ * Example: modelWords({ outcome: 'counts', shape: ['increasing'], robustK: undefined }) ->
  * 'Poisson counts (log link); shape: increasing, guaranteed everywhere in the data range'.
  */
 export function modelWords(m: ModelWordsInput): string {
-  const parts: string[] = [];
-  switch (m.outcome) {
-    case 'gaussian':
-      parts.push(m.robustK !== undefined ? `robust least squares (Huber M-estimation, k = ${m.robustK})` : 'least squares');
-      break;
-    case 'poisson':
-      parts.push('Poisson counts (log link)');
-      break;
-    case 'binomial':
-      parts.push(m.trialsLabel !== undefined ? `binomial proportions (logit link), successes out of the trials in column \u201c${m.trialsLabel}\u201d` : 'binomial proportions (logit link), readings as 0/1 or proportions');
-      break;
-  }
+  const parts = [outcomeKind(m.outcome).words(m.robustK, m.trialsLabel)];
   if (m.shape.length > 0) parts.push(`shape: ${shapeWords(m.shape)}, guaranteed everywhere in the data range`);
   return parts.join('; ');
 }
@@ -135,7 +95,7 @@ export function modelReportLines(r: ModelReport, residualDf: number): string[] {
   if (r.glm) {
     const g = r.glm;
     out.push(`Deviance ${num(g.deviance, 5)} on ${num(residualDf, 4)} residual df (null deviance ${num(g.nullDeviance, 5)}).`);
-    out.push(`Pearson dispersion ${num(g.dispersion, 3)}: about 1 when the spread follows the ${r.outcome} family; well above 1 means overdispersion, and the bands are then too narrow.`);
+    out.push(`Pearson dispersion ${num(g.dispersion, 3)}: about 1 when the spread follows the ${r.outcome} kind; well above 1 means overdispersion, and the bands are then too narrow.`);
   }
   if (r.constraints) {
     const c = r.constraints;

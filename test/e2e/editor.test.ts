@@ -197,7 +197,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     }
     writeFileSync(join(workspace, 'drift.csv'), rows.join('\n') + '\n');
     mkdirSync(join(workspace, '.vscode'), { recursive: true });
-    writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'boot:2000' }));
+    writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'bootstrap:2000' }));
     const before = readdirSync(workspace).sort();
     // Open the file with quick open, then run the command from the palette.
     await page.keyboard.press('Control+P');

@@ -1,5 +1,5 @@
 // Whole-editor layer: the real VS Code workbench (code-server 4.100.3) in headless Chromium,
-// driven like a person (TESTING.md). Usage: node test/e2e/run.mjs
+// driven like a person (docs/testing.md, "Whole editor"). Usage: node test/e2e/run.mjs
 // Prints "N passed, M failed" last; exit 1 on failure. Installs code-server first if needed.
 import { spawnSync } from 'node:child_process';
 import { build } from 'esbuild';

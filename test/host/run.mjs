@@ -1,5 +1,5 @@
 // Extension-host layer: mocha inside the real VS Code extension host (code-server 4.100.3's
-// workbench in headless Chromium, TESTING.md), loaded through the workbench's
+// workbench in headless Chromium, docs/testing.md, "Extension host"), loaded through the workbench's
 // extensionDevelopmentPath / extensionTestsPath payload.
 // Usage: node test/host/run.mjs   (prints "N passed, M failed" last; exit 1 on failure)
 import { build } from 'esbuild';
@@ -40,7 +40,7 @@ try {
   for (const f of ['mcycle.csv', 'mcycle-bad.csv', 'cars.csv', 'menarche.csv']) copyFileSync(join(fixtures, f), join(workspace, f));
   writeFileSync(
     join(workspace, '.vscode', 'settings.json'),
-    JSON.stringify({ 'knotwise.resampling': 'loo', 'knotwise.rule': 'lowest', 'knotwise.candidates': '3..15' }, null, 2),
+    JSON.stringify({ 'knotwise.resampling': 'leave-one-out', 'knotwise.rule': 'least-error', 'knotwise.candidates': '3..15' }, null, 2),
   );
   server = await startCodeServer({ runDir });
   console.log(`host layer: code-server up on port ${server.port} after ${seconds(t0)}`);

@@ -1,5 +1,5 @@
 /**
- * External reference check of fitCurve (families 'natural' and 'poly') and bandsAt against
+ * External reference check of fitCurve (families 'natural-spline' and 'polynomial') and bandsAt against
  * R 4.2 stats::lm with splines::ns / stats::poly, fixture from test/reference/r/fits.R
  * (regenerate with `Rscript test/reference/r/fits.R` from the repository root).
  *
@@ -16,7 +16,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { bandsAt } from '../../core/fit/bands';
 import { fitCurve } from '../../core/fit/index';
-import type { Family, FitResult, XYData } from '../../core/types';
+import type { CurveKindId, FitResult, XYData } from '../../core/types';
 
 const SOURCE = 'R 4.2 stats::lm with splines::ns, fixture from test/reference/r/fits.R';
 const REL = 1e-8;
@@ -32,7 +32,8 @@ interface FixtureDataset {
 interface FixtureCase {
   readonly name: string;
   readonly dataset: string;
-  readonly family: Family;
+  /** The R basis the case was built with: splines::ns or stats::poly (test/reference/r/fits.R). */
+  readonly family: 'natural' | 'poly';
   readonly df: number;
   readonly rCall: string;
   readonly n: number;
@@ -75,6 +76,9 @@ interface Fixture {
 }
 
 const fixture = JSON.parse(readFileSync(join(__dirname, 'fixtures', 'fits.json'), 'utf8')) as Fixture;
+
+/** Knotwise's curve kind for the R basis of a case: ns() is the natural spline, poly() the polynomial. */
+const kindOf = (c: FixtureCase): CurveKindId => (c.family === 'natural' ? 'natural-spline' : 'polynomial');
 
 /** |actual - expected| <= REL |expected| + ABS scale, else a message with both numbers. */
 function checkClose(what: string, actual: number, expected: number, scale: number): void {
@@ -120,11 +124,11 @@ function dataOf(d: FixtureDataset): XYData {
 describe(`fitCurve and bandsAt against ${SOURCE}`, () => {
   it('fixture covers both families on every dataset, with the plain quantile knots of ns()', () => {
     // Source: the fixture itself (test/reference/r/fits.R); guards against a regenerated
-    // fixture silently losing coverage or hitting the moved-knot rule of DESIGN.md.
+    // fixture silently losing coverage or hitting the moved-knot rule of docs/design.md ("Knots").
     assert.ok(fixture.cases.length >= 50, `only ${fixture.cases.length} cases`);
     for (const name of Object.keys(fixture.datasets)) {
-      for (const family of ['natural', 'poly'] as const) {
-        assert.ok(fixture.cases.some((c) => c.dataset === name && c.family === family), `${name} ${family}`);
+      for (const kind of ['natural-spline', 'polynomial'] as const) {
+        assert.ok(fixture.cases.some((c) => c.dataset === name && kindOf(c) === kind), `${name} ${kind}`);
       }
     }
     for (const c of fixture.cases) assert.ok(c.knotsDistinct, `${c.name}: quantile knots coincide`);
@@ -137,12 +141,12 @@ describe(`fitCurve and bandsAt against ${SOURCE}`, () => {
     describe(`${c.name} (${c.rCall}; ${ds.source})`, () => {
       let fit: FitResult;
       before(() => {
-        fit = fitCurve(dataOf(ds), { family: c.family, df: c.df });
+        fit = fitCurve(dataOf(ds), { kind: kindOf(c), df: c.df });
       });
 
       it('df, n and residual df equal the rank and residual df of the lm fit', () => {
         // R: lm()$rank and df.residual [R 4.2 stats::lm with splines::ns, fixture from test/reference/r/fits.R]
-        assert.equal(fit.family, c.family);
+        assert.equal(fit.kind, kindOf(c));
         checkClose('df', fit.df, c.df, 1);
         assert.equal(fit.n, c.n);
         checkClose('residualDf', fit.residualDf, c.residualDf, 1);

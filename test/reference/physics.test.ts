@@ -36,6 +36,7 @@ interface Dataset {
 interface GlmCase {
   readonly name: string;
   readonly dataset: string;
+  /** The R glm family of the case (test/reference/r/physics.R). */
   readonly outcome: 'poisson' | 'binomial';
   readonly df: number;
   readonly rCall: string;
@@ -86,6 +87,7 @@ interface ShapeCase {
 interface GlmShapeCase {
   readonly name: string;
   readonly dataset: string;
+  /** The R glm family of the case (test/reference/r/physics.R). */
   readonly outcome: 'poisson' | 'binomial';
   readonly df: number;
   readonly shape: Shape[];
@@ -124,6 +126,9 @@ interface Fixture {
 }
 
 const fixture = JSON.parse(readFileSync(join(__dirname, 'fixtures', 'physics.json'), 'utf8')) as Fixture;
+
+/** Knotwise's outcome for R's glm family: poisson() fits counts, binomial() proportions. */
+const outcomeOf = (c: { outcome: 'poisson' | 'binomial' }): 'counts' | 'proportions' => (c.outcome === 'poisson' ? 'counts' : 'proportions');
 const SOURCE = `${fixture.rVersion}, fixture test/reference/r/physics.R`;
 
 function data(name: string): Dataset {
@@ -153,7 +158,7 @@ describe(`Poisson and binomial natural splines against R glm with splines::ns ($
       const d = data(c.dataset);
       const fit: FitResult = fitCurve(
         { x: Float64Array.from(d.x), y: Float64Array.from(d.y) },
-        { family: 'natural', df: c.df, outcome: c.outcome, ...(d.trials ? { trials: Float64Array.from(d.trials) } : {}) },
+        { kind: 'natural-spline', df: c.df, outcome: outcomeOf(c), ...(d.trials ? { trials: Float64Array.from(d.trials) } : {}) },
       );
       const glm = fit.model?.glm;
       assert.ok(glm, 'a glm report');
@@ -190,7 +195,7 @@ describe(`Huber fits against MASS::rlm(psi = psi.huber) (${SOURCE})`, () => {
   for (const c of fixture.rlm) {
     it(`fitCurve(${c.name}, robust) matches ${c.rCall}: fitted, weights, scale, hat, standard errors`, () => {
       const d = data(c.dataset);
-      const fit = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { family: 'natural', df: c.df, robust: true });
+      const fit = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { kind: 'natural-spline', df: c.df, robust: true });
       const robust = fit.model?.robust;
       assert.ok(robust && fit.model?.converged, 'a converged robust report');
       closeAll(`${c.name} fitted`, fit.fitted, c.fitted, GLM_REL);
@@ -212,7 +217,7 @@ describe(`Shape-constrained natural splines against brute-force active-set enume
   for (const c of fixture.shape) {
     it(`fitCurve(${c.name}) equals the best feasible equality-constrained fit`, () => {
       const d = data(c.dataset);
-      const fit = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { family: 'natural', df: c.df, shape: c.shape });
+      const fit = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { kind: 'natural-spline', df: c.df, shape: c.shape });
       closeAll(`${c.name} fitted`, fit.fitted, c.fitted, EXACT_REL);
       close(`${c.name} RSS`, fit.rss, c.rss, EXACT_REL, c.rss);
       closeAll(`${c.name} B-spline coefficients`, fit.coefficients, c.coefficients, EXACT_REL);
@@ -221,7 +226,7 @@ describe(`Shape-constrained natural splines against brute-force active-set enume
       const inactive = Math.abs(c.rss - c.unconstrainedRss) <= 1e-12 * c.rss;
       assert.equal(fit.model?.constraints?.active === 0, inactive, `${c.name}: active constraints reported iff the constrained RSS exceeds the unconstrained one`);
       if (inactive) {
-        const plain = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { family: 'natural', df: c.df });
+        const plain = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { kind: 'natural-spline', df: c.df });
         closeAll(`${c.name} equals the unconstrained fit`, fit.fitted, Array.from(plain.fitted), 1e-10);
       }
     });
@@ -232,7 +237,7 @@ describe(`Shape-constrained Poisson and binomial splines against brute-force act
   for (const c of fixture.glmShape) {
     it(`fitCurve(${c.name}) equals the feasible equality-constrained glm fit of least deviance`, () => {
       const d = data(c.dataset);
-      const fit = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { family: 'natural', df: c.df, outcome: c.outcome, shape: c.shape });
+      const fit = fitCurve({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }, { kind: 'natural-spline', df: c.df, outcome: outcomeOf(c), shape: c.shape });
       assert.ok(fit.model?.converged, 'IRLS converged');
       assert.ok((fit.model?.constraints?.active ?? 0) > 0, 'some constraint active (R: constrained deviance above the unconstrained one)');
       assert.ok(c.deviance > c.unconstrainedDeviance);

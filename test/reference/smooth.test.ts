@@ -1,6 +1,6 @@
 /**
  * External reference check of the cubic smoothing spline (fitSmoothingSpline, family
- * 'smooth') against R 4.2, fixture from test/reference/r/smooth.R (regenerate with
+ * 'smoothing-spline') against R 4.2, fixture from test/reference/r/smooth.R (regenerate with
  * `Rscript test/reference/r/smooth.R` from the repository root).
  *
  * Datasets (open, shipped with R): datasets::cars (tied x), MASS::mcycle (Silverman 1985;
@@ -11,7 +11,7 @@
  *
  * 1. R's stats::smooth.spline(x, y, w, all.knots = TRUE, df = k): fitted values at every
  *    row and predictions on a 41-point grid inside the data range, within 1e-4 of max |y|
- *    (DESIGN.md allows 1e-4 against R's smooth.spline); pooled leverages (fit$lev) within
+ *    (docs/testing.md, "External references", allows 1e-4 against R's smooth.spline); pooled leverages (fit$lev) within
  *    2e-4. smooth.spline's penalty matrix differs from the exact integral of B_j'' B_l'' by
  *    about 0.3 % (penaltyRelDiff in the fixture), which moves its fit by up to ~4e-5 of max
  *    |y| and its leverages by up to ~1.2e-4, so the tolerance is relative to the scale of the

@@ -21,7 +21,7 @@ function cars(): XYData {
   };
 }
 
-const OPTIONS: AnalysisOptions = { family: 'natural', candidates: [2, 3, 4, 5, 6, 7], resample: { kind: 'cv', folds: 5, repeats: 2 }, rule: { kind: '1se' }, seed: 1, holdout: 0.2 };
+const OPTIONS: AnalysisOptions = { kind: 'natural-spline', candidates: [2, 3, 4, 5, 6, 7], resample: { kind: 'folds', folds: 5, repeats: 2 }, rule: { kind: 'one-se' }, seed: 1, holdout: 0.2 };
 
 describe('analyse and withRule', () => {
   const data = cars();
@@ -43,13 +43,13 @@ describe('analyse and withRule', () => {
     assert.equal(none.heldOut, undefined);
   });
 
-  for (const rule of [{ kind: 'lowest' }, { kind: 'tol', percent: 5 }, { kind: 'manual', df: 6 }, { kind: '1se' }] as RuleSpec[]) {
+  for (const rule of [{ kind: 'least-error' }, { kind: 'simplest-within', percent: 5 }, { kind: 'pick', df: 6 }, { kind: 'one-se' }] as RuleSpec[]) {
     it(`withRule(analysis, ${JSON.stringify(rule)}) equals analyse with that rule (selection, fit, checks, held-out check)`, async () => {
       const base = await analyse(data, OPTIONS);
       const fresh = await analyse(data, { ...OPTIONS, rule });
       const re = withRule(base, rule);
       // Precondition for the df chosen by hand: it differs from the base choice, so the fit, checks and held-out check are redone.
-      if (rule.kind === 'manual') assert.notEqual(base.chosen.df, rule.df);
+      if (rule.kind === 'pick') assert.notEqual(base.chosen.df, rule.df);
       assert.deepEqual(re.tune.selected, fresh.tune.selected);
       assert.equal(re.chosen.df, fresh.chosen.df);
       assert.deepEqual(Array.from(re.chosen.fitted), Array.from(fresh.chosen.fitted));
@@ -61,6 +61,6 @@ describe('analyse and withRule', () => {
 
   it('withRule refuses a df by hand that is no candidate', async () => {
     const base = await analyse(data, { ...OPTIONS, holdout: undefined });
-    assert.throws(() => withRule(base, { kind: 'manual', df: 11 }));
+    assert.throws(() => withRule(base, { kind: 'pick', df: 11 }));
   });
 });

@@ -30,9 +30,9 @@ function load(name: string): XYData {
 }
 
 function input(data: XYData, df: number, output: Partial<OutputOptions>, stem: string): DeliverInput {
-  const fit = fitCurve(data, { family: 'natural', df });
+  const fit = fitCurve(data, { kind: 'natural-spline', df });
   return {
-    plan: { columns: { x: 'x', y: 'y' }, tune: false, options: { family: 'natural', candidates: [df], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0 }, output: { ...DEFAULT_OUTPUT, ...output } },
+    plan: { columns: { x: 'x', y: 'y' }, tune: false, options: { kind: 'natural-spline', candidates: [df], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output: { ...DEFAULT_OUTPUT, ...output } },
     stem,
     dataFile: `${stem}.csv`,
     dataPath: `${stem}.csv`,
@@ -76,7 +76,7 @@ describe('buildDeliverables', () => {
   });
 
   it('with nonnegative, flags where the curve goes below zero and the readings that are negative (MASS::mcycle)', () => {
-    const d = buildDeliverables(input(mcycle, 8, { grid: { kind: 'count', start: 2.4, stop: 57.6, count: 47 }, nonnegative: true, report: true }, 'mcycle'));
+    const d = buildDeliverables(input(mcycle, 8, { grid: { kind: 'count', start: 2.4, stop: 57.6, count: 47 }, flagNegative: true, report: true }, 'mcycle'));
     const csv = text(d, 'table').trim().split('\n');
     const header = (csv[0] as string).split(',');
     assert.equal(header[header.length - 1], 'negative');

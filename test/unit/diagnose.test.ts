@@ -26,7 +26,7 @@ describe('diagnose', () => {
     if (!ref) continue;
     it(`diagnose(natural df 4) on ${c.name} equals R's shapiro.test, dwtest, bptest and lack-of-fit anova`, () => {
       const data = { x: Float64Array.from(c.x), y: Float64Array.from(c.y) };
-      const d = diagnose(data, fitCurve(data, { family: 'natural', df: 4 }));
+      const d = diagnose(data, fitCurve(data, { kind: 'natural-spline', df: 4 }));
       const r = ref.record;
       near(d.shapiroWilk?.statistic as number, r.shapiroWilk.statistic, 1e-8, 'Shapiro-Wilk W');
       near(d.shapiroWilk?.pValue as number, r.shapiroWilk.pValue, 1e-6, 'Shapiro-Wilk p');
@@ -51,7 +51,7 @@ describe('diagnose', () => {
     const c = fixture.cases.find((k) => k.name === 'women') as Case;
     const lines = Int32Array.from(c.x, (_, i) => i + 2);
     const data = { x: Float64Array.from(c.x), y: Float64Array.from(c.y), lines };
-    const d = diagnose(data, fitCurve(data, { family: 'natural', df: 4 }));
+    const d = diagnose(data, fitCurve(data, { kind: 'natural-spline', df: 4 }));
     // R: cooks.distance > 1 at rows 1 and 15 of women (fixture influentialCooks1 = [0, 14]).
     const strong = d.influential.rows.filter((r) => r.cooksDistance > 1).map((r) => r.line).sort((a, b) => a - b);
     assert.deepEqual(strong, [2, 16]);

@@ -11,7 +11,8 @@ import { chmodSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, w
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { DEFAULT_OUTPUT, fitCommand, shellWord, type FitPlan } from '../../core/plan';
+import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from '../../core/plan';
+import { shellWord } from '../../core/shellWord';
 import { copyFixture, REPO, runMain } from './node/runMain';
 
 describe('shellWord', () => {
@@ -29,10 +30,10 @@ describe('shellWord', () => {
 
 describe('fitCommand', () => {
   it('fitCommand spells out a tuned plan and leaves out options at their defaults', () => {
-    const plan: FitPlan = { columns: { x: 'speed [mph]', y: 'dist' }, tune: true, options: { family: 'natural', resample: { kind: 'cv', folds: 10, repeats: 5 }, rule: { kind: '1se' }, seed: 1 }, output: DEFAULT_OUTPUT };
-    assert.equal(fitCommand(plan, '../cars.csv'), "knotwise fit ../cars.csv --x 'speed [mph]' --y dist --model natural --resample cv:10x5 --rule 1se --seed 1 --out .");
-    const fixed: FitPlan = { columns: { x: 'speed', y: 'dist', weights: 'w' }, tune: false, options: { family: 'smooth', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0 }, output: { grid: { kind: 'auto', tolerance: 0.01 }, extrapolate: true, digits: 6, columns: ['x', 'fit'], nonnegative: true, emit: ['c', 'ts'], report: true } };
-    assert.equal(fitCommand(fixed, 'cars.csv'), 'knotwise fit cars.csv --x speed --y dist --weights w --model smooth --df 4.5 --grid auto:0.01 --extrapolate --digits 6 --columns x,fit --nonnegative --emit c,ts --report --out .');
+    const plan: FitPlan = { columns: { x: 'speed [mph]', y: 'dist' }, tune: true, options: { kind: 'natural-spline', resample: { kind: 'folds', folds: 10, repeats: 5 }, rule: { kind: 'one-se' }, seed: 1 }, output: DEFAULT_OUTPUT };
+    assert.equal(fitCommand(plan, '../cars.csv'), "knotwise fit ../cars.csv --x 'speed [mph]' --y dist --curve natural --resampling folds:10x5 --rule 1se --seed 1 --out .");
+    const fixed: FitPlan = { columns: { x: 'speed', y: 'dist', weights: 'w' }, tune: false, options: { kind: 'smoothing-spline', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output: { grid: { kind: 'auto', tolerance: 0.01 }, extrapolate: true, digits: 6, columns: ['x', 'fit'], flagNegative: true, emit: ['c', 'ts'], report: true } };
+    assert.equal(fitCommand(fixed, 'cars.csv'), 'knotwise fit cars.csv --x speed --y dist --weights w --curve smooth --df 4.5 --grid auto:0.01 --extrapolate --digits 6 --columns x,fit --flag-negative --emit c,ts --report --out .');
   });
 
   it('the regenerate command, run by sh in the output folder, rewrites every output byte for byte', async function () {
@@ -41,7 +42,7 @@ describe('fitCommand', () => {
     try {
       const data = copyFixture('cars.csv', join(dir, "field data (it's here)", 'cars.csv'));
       const out = join(dir, 'tables');
-      const r = await runMain('fit', data, '--x', 'speed [mph]', '--y', 'dist [ft]', '--df', '2..6', '--resample', 'boot:20', '--rule', 'tol:3', '--seed', '5', '--grid', 'auto:1', '--columns', 'x,fit,piLower,piUpper', '--nonnegative', '--digits', '7', '--emit', 'c,ts,json', '--report', '--out', out);
+      const r = await runMain('fit', data, '--x', 'speed [mph]', '--y', 'dist [ft]', '--df', '2..6', '--resampling', 'bootstrap:20', '--rule', 'simplest-within:3', '--seed', '5', '--grid', 'auto:1', '--columns', 'x,fit,piLower,piUpper', '--flag-negative', '--digits', '7', '--emit', 'c,ts,json', '--report', '--out', out);
       assert.equal(r.code, 0, r.stderr);
       const record = JSON.parse(readFileSync(join(out, 'cars.fit.json'), 'utf8')) as { regenerate: string };
       const header = readFileSync(join(out, 'cars.curve.h'), 'utf8');

@@ -28,7 +28,7 @@ function assertValid(record: unknown, what: string): void {
 }
 
 function plan(over: Partial<FitPlan> & { columns: FitPlan['columns'] }): FitPlan {
-  return { tune: true, options: { family: 'natural', resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: '1se' }, seed: 1 }, output: DEFAULT_OUTPUT, ...over };
+  return { tune: true, options: { kind: 'natural-spline', resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }, output: DEFAULT_OUTPUT, ...over };
 }
 
 describe('fit record and its JSON Schema', () => {
@@ -49,11 +49,11 @@ describe('fit record and its JSON Schema', () => {
     const out = join(dir, 'out');
     const run = async (file: string, p: FitPlan): Promise<Record<string, unknown>> => (await runPipeline(file, p, out)).deliverables.record;
     records.tunedAuto = await run(mcycle, plan({ columns: { x: 'times', y: 'accel' }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'auto', tolerance: 1 }, emit: ['c', 'ts', 'json'], report: true } }));
-    records.fixedList = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, tune: false, options: { family: 'poly', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0 }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [0, 10, 20, 30] }, extrapolate: true, columns: ['x', 'fit'], nonnegative: true, digits: 6 } }));
-    records.weightedHoldout = await run(carsW, plan({ columns: { x: 'speed', y: 'dist', weights: 'w' }, options: { family: 'smooth', candidates: [2, 3, 4, 5], resample: { kind: 'boot', resamples: 20 }, rule: { kind: 'tol', percent: 5 }, seed: 4, holdout: 0.2 }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'data' } } }));
-    records.poissonTuned = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, options: { family: 'natural', candidates: [2, 3, 4], resample: { kind: 'boot', resamples: 20 }, rule: { kind: '1se' }, seed: 5, outcome: 'poisson' } }));
-    records.shapeRobust = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, tune: false, options: { family: 'natural', candidates: [4], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0, shape: ['increasing'], robust: { k: 2 } } }));
-    records.rejectedLoo = await run(air, plan({ columns: { x: 'Temp', y: 'Ozone' }, options: { family: 'natural', resample: { kind: 'loo' }, rule: { kind: 'lowest' }, seed: 1 } }));
+    records.fixedList = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, tune: false, options: { kind: 'polynomial', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [0, 10, 20, 30] }, extrapolate: true, columns: ['x', 'fit'], flagNegative: true, digits: 6 } }));
+    records.weightedHoldout = await run(carsW, plan({ columns: { x: 'speed', y: 'dist', weights: 'w' }, options: { kind: 'smoothing-spline', candidates: [2, 3, 4, 5], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'simplest-within', percent: 5 }, seed: 4, holdout: 0.2 }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'data' } } }));
+    records.poissonTuned = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, options: { kind: 'natural-spline', candidates: [2, 3, 4], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'one-se' }, seed: 5, outcome: 'counts' } }));
+    records.shapeRobust = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, tune: false, options: { kind: 'natural-spline', candidates: [4], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, shape: ['increasing'], robust: { k: 2 } } }));
+    records.rejectedLoo = await run(air, plan({ columns: { x: 'Temp', y: 'Ozone' }, options: { kind: 'natural-spline', resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1 } }));
   });
   after(() => {
     rmSync(dir, { recursive: true, force: true });
@@ -81,10 +81,10 @@ describe('fit record and its JSON Schema', () => {
     const r = records.tunedAuto as Record<string, any>;
     assert.match(r.data.sha256, /^[0-9a-f]{64}$/);
     assert.equal(r.data.path, '../mcycle.csv');
-    for (const key of ['family', 'tuned', 'candidates', 'candidatesDefault', 'resample', 'seed', 'rule', 'tolerancePercent', 'holdout', 'grid', 'gridDefault', 'digits', 'extrapolate', 'columns', 'nonnegative', 'emit', 'report', 'level']) {
+    for (const key of ['kind', 'tuned', 'candidates', 'candidatesDefault', 'resample', 'seed', 'rule', 'tolerancePercent', 'holdout', 'grid', 'gridDefault', 'digits', 'extrapolate', 'columns', 'nonnegative', 'emit', 'report', 'level']) {
       assert.ok(key in r.spec, `spec.${key}`);
     }
-    assert.equal(r.regenerate, 'knotwise fit ../mcycle.csv --x times --y accel --model natural --resample cv:5 --rule 1se --seed 1 --grid auto:1 --emit c,ts,json --report --out .');
+    assert.equal(r.regenerate, 'knotwise fit ../mcycle.csv --x times --y accel --curve natural --resampling folds:5 --rule 1se --seed 1 --grid auto:1 --emit c,ts,json --report --out .');
     assert.ok(r.table.interpolation.maxError <= 1 && r.table.interpolation.tolerance === 1);
     const f = records.fixedList as Record<string, any>;
     assert.deepEqual(f.table.extrapolated, [0, 30]);
@@ -99,8 +99,8 @@ describe('fit record and its JSON Schema', () => {
     const cars = (JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixtures', 'fits.json'), 'utf8')) as { datasets: { cars: { x: number[]; y: number[] } } }).datasets.cars;
     const x = Float64Array.from(cars.x);
     const y = Float64Array.from(cars.y);
-    const fit = fitCurve({ x, y }, { family: 'natural', df: 3 });
-    const rec = fitRecord({ dataFile: 'd.csv', dataSha256: 'e'.repeat(64), columns: { x: 'speed', y: 'dist' }, rowsRead: 50, rowsUsed: 50, rejected: [], family: 'natural', fit, diagnostics: diagnose({ x, y }, fit), grid: { kind: 'data' }, digits: 8, extrapolate: false, tableFile: 'd.curve.csv', tableSha256: 'f'.repeat(64) });
+    const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 3 });
+    const rec = fitRecord({ dataFile: 'd.csv', dataSha256: 'e'.repeat(64), columns: { x: 'speed', y: 'dist' }, rowsRead: 50, rowsUsed: 50, rejected: [], curve: 'natural-spline', fit, diagnostics: diagnose({ x, y }, fit), grid: { kind: 'data' }, digits: 8, extrapolate: false, tableFile: 'd.curve.csv', tableSha256: 'f'.repeat(64) });
     assertValid(JSON.parse(JSON.stringify(rec)), 'record without plan');
     assert.equal((rec.table as { points: unknown }).points, null);
   });

@@ -23,37 +23,37 @@ const PLANS: Record<string, FitPlan> = {
   'tuned with default candidates and the default grid': {
     columns: { x: 'speed', y: 'dist' },
     tune: true,
-    options: { family: 'natural', candidates: undefined, resample: { kind: 'boot', resamples: 20 }, rule: { kind: '1se' }, seed: 11, holdout: undefined },
+    options: { kind: 'natural-spline', candidates: undefined, resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'one-se' }, seed: 11, holdout: undefined },
     output: DEFAULT_OUTPUT,
   },
   'tuned with candidates, tolerance rule, holdout, automatic step, emitters, report': {
     columns: { x: 'speed', y: 'dist' },
     tune: true,
-    options: { family: 'poly', candidates: [1, 2, 3, 4], resample: { kind: 'cv', folds: 5, repeats: 3 }, rule: { kind: 'tol', percent: 2.5 }, seed: 2, holdout: 0.2 },
-    output: { grid: { kind: 'auto', tolerance: 0.5, start: 5, stop: 24 }, extrapolate: false, digits: 6, columns: ['x', 'fit', 'se'], nonnegative: true, emit: ['c', 'json'], report: true },
+    options: { kind: 'polynomial', candidates: [1, 2, 3, 4], resample: { kind: 'folds', folds: 5, repeats: 3 }, rule: { kind: 'simplest-within', percent: 2.5 }, seed: 2, holdout: 0.2 },
+    output: { grid: { kind: 'auto', tolerance: 0.5, start: 5, stop: 24 }, extrapolate: false, digits: 6, columns: ['x', 'fit', 'se'], flagNegative: true, emit: ['c', 'json'], report: true },
   },
   'fixed df with a shape constraint and robust fitting (model options)': {
     columns: { x: 'speed', y: 'dist' },
     tune: false,
-    options: { family: 'natural', candidates: [4], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0, shape: ['increasing'], robust: true },
+    options: { kind: 'natural-spline', candidates: [4], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, shape: ['increasing'], robust: true },
     output: DEFAULT_OUTPUT,
   },
   'fixed df with a Poisson outcome': {
     columns: { x: 'speed', y: 'dist' },
     tune: false,
-    options: { family: 'natural', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0, outcome: 'poisson' },
+    options: { kind: 'natural-spline', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, outcome: 'counts' },
     output: DEFAULT_OUTPUT,
   },
   'fixed df with robust fitting at k = 2': {
     columns: { x: 'speed', y: 'dist' },
     tune: false,
-    options: { family: 'natural', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0, robust: { k: 2 } },
+    options: { kind: 'natural-spline', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, robust: { k: 2 } },
     output: DEFAULT_OUTPUT,
   },
   'fixed df with a list grid and extrapolation': {
     columns: { x: 'speed', y: 'dist' },
     tune: false,
-    options: { family: 'smooth', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 0 },
+    options: { kind: 'smoothing-spline', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 },
     output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [0, 12.5, 30] }, extrapolate: true },
   },
 };
@@ -88,9 +88,9 @@ describe('readRecord', () => {
 
   it('readRecord reads a hand-chosen df (rule df:<k>) as the manual rule', async function () {
     this.timeout(60_000);
-    const run = await runPipeline(data, { ...(PLANS['tuned with default candidates and the default grid'] as FitPlan), options: { family: 'natural', candidates: [2, 3, 4, 5], resample: { kind: 'loo' }, rule: { kind: 'manual', df: 4 }, seed: 1 } }, dir);
+    const run = await runPipeline(data, { ...(PLANS['tuned with default candidates and the default grid'] as FitPlan), options: { kind: 'natural-spline', candidates: [2, 3, 4, 5], resample: { kind: 'leave-one-out' }, rule: { kind: 'pick', df: 4 }, seed: 1 } }, dir);
     const back = readRecord(JSON.parse(JSON.stringify(run.deliverables.record)), 'x');
-    assert.deepEqual(back.plan.options.rule, { kind: 'manual', df: 4 });
+    assert.deepEqual(back.plan.options.rule, { kind: 'pick', df: 4 });
   });
 
   it('readRecord refuses other formats, newer versions and missing or mistyped keys, naming the record and the key', () => {
@@ -104,12 +104,12 @@ describe('readRecord', () => {
     refuse({ format: 'x' }, /not a fit record: "format" is "x", expected "knotwise-fit-record"/);
     refuse({ format: 'knotwise-fit-record', version: 9 }, /version 9 was written by a newer Knotwise/);
     refuse({ format: 'knotwise-fit-record', version: 1, tool: {}, data: { columns: {} } }, /"spec" must be an object/);
-    const spec = { family: 'natural', candidates: [3], resample: null, rule: 'df:3', grid: { kind: 'count', start: 0, stop: 1, count: 'x' }, extrapolate: false, digits: 8, emit: [] };
+    const spec = { kind: 'natural-spline', candidates: [3], resample: null, rule: 'df:3', grid: { kind: 'count', start: 0, stop: 1, count: 'x' }, extrapolate: false, digits: 8, emit: [] };
     const rec = { format: 'knotwise-fit-record', version: 1, tool: { version: '0' }, data: { file: 'a.csv', sha256: 'a', rowsUsed: 1, columns: { x: 'a', y: 'b' } }, spec, fit: { df: 3 }, table: { file: 't', sha256: 's' } };
     refuse(rec, /"spec.grid.count" must be a number/);
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, candidates: [0.5] } }, /"spec.candidates\[0\]" must be a number of at least 1/);
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, emit: ['rust'] } }, /"spec.emit\[0\]" must be one of c, ts, json/);
-    refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, family: 'spline' } }, /"spec.family" is not valid: unknown curve family "spline"/);
+    refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, kind: 'spline' } }, /"spec.kind" is not valid: unknown curve kind "spline"/);
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, tuned: true } }, /"spec.resample" must be given for a tuned fit/);
     // The same record with a valid grid reads.
     assert.equal(readRecord({ ...rec, spec: { ...spec, grid: { kind: 'data' } } }, 'a.fit.json').plan.tune, false);

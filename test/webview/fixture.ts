@@ -47,10 +47,10 @@ export async function analysedFixture(file: string, x: string, y: string, option
 /** MASS::mcycle, natural spline df 3..15, 10-fold cross-validation repeated 3 times (seed 1), one-SE rule. */
 export function mcycleFixture(): Promise<Fixture> {
   return analysedFixture('mcycle.csv', 'times', 'accel', {
-    family: 'natural',
+    kind: 'natural-spline',
     candidates: [3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15],
-    resample: { kind: 'cv', folds: 10, repeats: 3 },
-    rule: { kind: '1se' },
+    resample: { kind: 'folds', folds: 10, repeats: 3 },
+    rule: { kind: 'one-se' },
     seed: 1,
   });
 }

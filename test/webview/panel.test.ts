@@ -90,8 +90,8 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
   it('switching the rule changes the chosen df and the explanation at once', async function () {
     const pp = await shown(mcycle);
     const page = pp.page;
-    const oneSe = expected(mcycle.payload, { kind: '1se' });
-    const lowest = expected(mcycle.payload, { kind: 'lowest' });
+    const oneSe = expected(mcycle.payload, { kind: 'one-se' });
+    const lowest = expected(mcycle.payload, { kind: 'least-error' });
     // Precondition of this fixture (seeded): the two rules disagree, so a change is visible.
     assert.notEqual(oneSe.df, lowest.df);
     const before = pp.sent.length;
@@ -99,7 +99,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.equal(await page.textContent('#kw-chosen-df'), `df ${lowest.df}`);
     assert.equal(await page.textContent('#kw-reason'), lowest.reason);
     const choice = await pp.waitForSent('choice', before);
-    assert.deepEqual(choice, { type: 'choice', runId: 1, rule: { kind: 'lowest' }, df: lowest.df });
+    assert.deepEqual(choice, { type: 'choice', runId: 1, rule: { kind: 'least-error' }, df: lowest.df });
     assert.match((await page.textContent('#fig-error title')) ?? '', /RMSE/);
     assert.match((await page.textContent('#fig-data svg > title')) ?? '', new RegExp(`df ${lowest.df}\\)`));
 
@@ -108,7 +108,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await page.fill('#kw-tolerance', '10');
     await page.press('#kw-tolerance', 'Enter');
     await page.locator('#kw-tolerance').dispatchEvent('change');
-    const tol = expected(mcycle.payload, { kind: 'tol', percent: 10 });
+    const tol = expected(mcycle.payload, { kind: 'simplest-within', percent: 10 });
     assert.equal(await page.textContent('#kw-chosen-df'), `df ${tol.df}`);
     assert.equal(await page.textContent('#kw-reason'), tol.reason);
 
@@ -126,7 +126,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
 
   it('a column named <img src=x onerror=alert(1)> shows as text and runs nothing', async function () {
     const evil = '<img src=x onerror=alert(1)>';
-    const fx = await analysedFixture('mcycle.csv', evil, 'accel', { family: 'natural', candidates: [3, 4, 5, 6], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1 }, `${evil},accel [g]`);
+    const fx = await analysedFixture('mcycle.csv', evil, 'accel', { kind: 'natural-spline', candidates: [3, 4, 5, 6], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1 }, `${evil},accel [g]`);
     const pp = await shown(fx);
     const page = pp.page;
     assert.equal(await page.textContent('h1'), `accel against ${evil}`);
@@ -199,7 +199,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await page.focus('#kw-rule-1se');
     await page.keyboard.press('ArrowDown');
     assert.equal(await page.isChecked('#kw-rule-tol'), true, 'arrow keys switch the rule');
-    assert.equal(await page.textContent('#kw-chosen-df'), `df ${expected(mcycle.payload, { kind: 'tol', percent: 2 }).df}`);
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${expected(mcycle.payload, { kind: 'simplest-within', percent: 2 }).df}`);
     await page.close();
   });
 
@@ -212,7 +212,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     const save = await pp.waitForSent('save', mark);
     assert.equal(save.type, 'save');
     if (save.type !== 'save') return;
-    assert.deepEqual(save.rule, { kind: 'lowest' });
+    assert.deepEqual(save.rule, { kind: 'least-error' });
     assert.equal(await page.isDisabled('#kw-save'), true);
     await pp.send({ type: 'saved', requestId: save.requestId, files: ['mcycle.curve.csv', 'mcycle.fit.json'] });
     assert.equal(await page.textContent('#kw-status'), 'Saved mcycle.curve.csv and mcycle.fit.json.');
@@ -241,7 +241,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
       lines[i] = i + 2;
     }
     const data = { x, y, lines };
-    const analysis = await analyse(data, { family: 'natural', candidates: [4, 6, 8, 10], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1 });
+    const analysis = await analyse(data, { kind: 'natural-spline', candidates: [4, 6, 8, 10], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1 });
     const payload = buildPanelPayload({ runId: 1, analysis, source: { fileName: 'big.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
     const bytes = Buffer.byteLength(JSON.stringify(payload));
     assert.ok(bytes < 3_000_000, `payload is ${bytes} bytes`);
@@ -269,7 +269,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
   });
 
   it('a binomial fit with trials (MASS::menarche) shows the model report with the deviance R gives', async function () {
-    const fx = await analysedFixture('menarche.csv', 'Age', 'Menarche', { family: 'natural', candidates: [3, 5], resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: 'lowest' }, seed: 1, outcome: 'binomial' }, undefined, 'Total');
+    const fx = await analysedFixture('menarche.csv', 'Age', 'Menarche', { kind: 'natural-spline', candidates: [3, 5], resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'least-error' }, seed: 1, outcome: 'proportions' }, undefined, 'Total');
     // Counts and proportions are tuned on the deviance, and the panel keeps it to choose with.
     assert.equal(fx.payload.metric, 'deviance');
     const pp = await shown(fx);
@@ -277,7 +277,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     const sel = expected(fx.payload, fx.payload.rule);
     assert.equal(await page.textContent('#kw-chosen-df'), `df ${sel.df}`);
     assert.match((await page.textContent('#kw-model-words')) ?? '', /binomial proportions \(logit link\), successes out of the trials in column “Total”/);
-    assert.equal(await page.inputValue('#kw-outcome'), 'binomial');
+    assert.equal(await page.inputValue('#kw-outcome'), 'proportions');
     assert.equal(await page.isDisabled('#kw-robust'), true, 'robust fitting is for least squares only');
     // Reference: glm(cbind(y, trials - y) ~ ns(x, df = k - 1), family = binomial) in physics.json; the
     // panel prints 5 significant digits, so the tolerance is the display precision.
@@ -293,7 +293,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
   });
 
   it('a robust fit (MASS::mcycle) lists the rows R down-weights by CSV line; a click reveals the line', async function () {
-    const fx = await analysedFixture('mcycle.csv', 'times', 'accel', { family: 'natural', candidates: [5, 8], resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: 'lowest' }, seed: 1, robust: true });
+    const fx = await analysedFixture('mcycle.csv', 'times', 'accel', { kind: 'natural-spline', candidates: [5, 8], resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'least-error' }, seed: 1, robust: true });
     const pp = await shown(fx);
     const page = pp.page;
     const sel = expected(fx.payload, fx.payload.rule);
@@ -320,19 +320,19 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
   it('switching the outcome or a shape asks the host to rerun; impossible combinations are disabled, a refusal restores the controls', async function () {
     const pp = await shown(mcycle);
     const page = pp.page;
-    assert.equal(await page.inputValue('#kw-outcome'), 'gaussian');
+    assert.equal(await page.inputValue('#kw-outcome'), 'continuous');
     assert.match((await page.textContent('#kw-model-body')) ?? '', /One weighted least-squares solve/);
     let mark = pp.sent.length;
     await page.check('#kw-shape-increasing');
-    assert.deepEqual(await pp.waitForSent('model', mark), { type: 'model', runId: 1, model: { outcome: 'gaussian', shape: ['increasing'], robust: false } });
+    assert.deepEqual(await pp.waitForSent('model', mark), { type: 'model', runId: 1, model: { outcome: 'continuous', shape: ['increasing'], robust: false } });
     assert.equal(await page.isDisabled('#kw-shape-decreasing'), true, 'increasing and decreasing exclude each other');
     mark = pp.sent.length;
-    await page.selectOption('#kw-outcome', 'poisson');
-    assert.deepEqual(await pp.waitForSent('model', mark), { type: 'model', runId: 1, model: { outcome: 'poisson', shape: ['increasing'], robust: false } });
+    await page.selectOption('#kw-outcome', 'counts');
+    assert.deepEqual(await pp.waitForSent('model', mark), { type: 'model', runId: 1, model: { outcome: 'counts', shape: ['increasing'], robust: false } });
     assert.equal(await page.isDisabled('#kw-robust'), true, 'robust fitting is for least squares only');
     // The host refuses (mcycle has negative readings): the controls show the run's options again.
     await pp.send({ type: 'failed', runId: 1, message: 'Knotwise could not tune mcycle.csv: a Poisson outcome needs counts' });
-    assert.equal(await page.inputValue('#kw-outcome'), 'gaussian');
+    assert.equal(await page.inputValue('#kw-outcome'), 'continuous');
     assert.equal(await page.isChecked('#kw-shape-increasing'), false);
     assert.equal(await page.isDisabled('#kw-shape-decreasing'), false);
     await page.close();

@@ -175,7 +175,7 @@ describe('Knotwise commands in the extension host', function () {
     assert.equal(table.split('\n')[0], 'x,fit,se,ciLower,ciUpper,piLower,piUpper,extrapolated');
     assert.equal(table.trimEnd().split('\n').length, 102, '101 grid points and a header');
     // The command line on a copy of the same file, writing next to it as the editor does.
-    const cli = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--resample', 'loo', '--rule', 'lowest', '--df', '3..15']);
+    const cli = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--resampling', 'leave-one-out', '--rule', 'least-error', '--df', '3..15']);
     assert.equal(table, cli.table);
     assert.equal(record, cli.record);
     const rec = JSON.parse(record) as { selection: { df: number } };
@@ -188,9 +188,9 @@ describe('Knotwise commands in the extension host', function () {
     try {
       for (const grid of ['auto:0.5', '5:55:step=2.5']) {
         await setSetting('table.grid', grid);
-        const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('mcycle.csv'), { ...MCYCLE, replaceForeignFiles: 'no', rule: { kind: 'lowest' } })) as RunSummary;
+        const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('mcycle.csv'), { ...MCYCLE, replaceForeignFiles: 'no', rule: { kind: 'least-error' } })) as RunSummary;
         assert.equal(saved.status, 'done', `${grid}: ${saved.message}`);
-        const cli = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--resample', 'loo', '--rule', 'lowest', '--df', '3..15', '--grid', grid]);
+        const cli = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--resampling', 'leave-one-out', '--rule', 'least-error', '--df', '3..15', '--grid', grid]);
         assert.equal(await text(file('mcycle.curve.csv')), cli.table, grid);
         assert.equal(await text(file('mcycle.fit.json')), cli.record, grid);
       }
@@ -207,45 +207,45 @@ describe('Knotwise commands in the extension host', function () {
     assert.equal(run.status, 'done', run.message);
     const s0 = api().panelState(uri);
     assert.ok(s0, 'the panel shows a result');
-    assert.deepEqual(s0.payload.rule, { kind: 'lowest' });
+    assert.deepEqual(s0.payload.rule, { kind: 'least-error' });
     try {
       // A table setting matters only when saving; the rule changes the panel's choice.
       await setSetting('table.significantDigits', 6);
-      await setSetting('rule', '1se');
+      await setSetting('rule', 'one-se');
       const s1 = await waitFor('the panel to show the one-SE rule', () => {
         const s = api().panelState(uri);
         return s && s.posted > s0.posted ? s : undefined;
       });
       assert.equal(s1.posted, s0.posted + 1, 'one re-render, for the rule');
       assert.equal(s1.analysed, s0.analysed, 'the rule does not rerun the analysis');
-      assert.deepEqual(s1.payload.rule, { kind: '1se' });
+      assert.deepEqual(s1.payload.rule, { kind: 'one-se' });
       assert.notEqual(s1.payload.runId, s0.payload.runId, 'a new view, so the panel starts from the new rule');
-      assert.equal(s1.payload.details[0]?.df, selectDf(s0.payload.candidates, { kind: '1se' }, s0.payload.metric).df);
+      assert.equal(s1.payload.details[0]?.df, selectDf(s0.payload.candidates, { kind: 'one-se' }, s0.payload.metric).df);
       // Resampling changes the analysis: it runs again.
-      await setSetting('resampling', 'cv:5');
+      await setSetting('resampling', 'folds:5');
       const s2 = await waitFor('the rerun with 5-fold cross-validation', () => {
         const s = api().panelState(uri);
         return s && s.analysed > s1.analysed && s.posted > s1.posted ? s : undefined;
       });
-      assert.match(s2.payload.resampleWords, /^5-fold cross-validation/);
+      assert.match(s2.payload.resamplingWords, /^5-fold cross-validation/);
     } finally {
       // Panels closed first, so restoring the settings reruns nothing in the background.
       await closeEverything();
       await setSetting('table.significantDigits', undefined);
-      await setSetting('rule', 'lowest');
-      await setSetting('resampling', 'loo');
+      await setSetting('rule', 'least-error');
+      await setSetting('resampling', 'leave-one-out');
     }
   });
 
   it('outcome, trials and robust settings reach the analysis: binomial MASS::menarche and robust MASS::mcycle match R and save what the command line writes', async function () {
     try {
-      await setSetting('outcome', 'binomial');
+      await setSetting('outcome', 'proportions');
       await setSetting('candidates', '3,5');
-      await setSetting('resampling', 'cv:5');
+      await setSetting('resampling', 'folds:5');
       const menarche = file('menarche.csv');
       const bin = (await vscode.commands.executeCommand('knotwise.tuneCurve', menarche, { columns: { x: 'Age', y: 'Menarche', trials: 'Total' } })) as RunSummary;
       assert.equal(bin.status, 'done', bin.message);
-      assert.equal(bin.model?.outcome, 'binomial');
+      assert.equal(bin.model?.outcome, 'proportions');
       assert.equal(bin.model?.trials, 'Total');
       assert.equal(bin.model?.converged, true);
       const glm = physics().glm.find((c) => c.dataset === 'menarche' && c.df === bin.chosenDf);
@@ -258,7 +258,7 @@ describe('Knotwise commands in the extension host', function () {
       close('deviance in the panel (7 significant digits)', shown?.details[0]?.model?.glm?.deviance, glm.deviance, 1e-6);
       const savedBin = (await vscode.commands.executeCommand('knotwise.saveCurveTable', menarche, { replaceForeignFiles: 'no' })) as RunSummary;
       assert.equal(savedBin.status, 'done', savedBin.message);
-      const cliBin = cliOutputs('menarche.csv', ['--x', 'Age', '--y', 'Menarche', '--family', 'binomial', '--trials', 'Total', '--df', '3,5', '--resample', 'cv:5', '--rule', 'lowest']);
+      const cliBin = cliOutputs('menarche.csv', ['--x', 'Age', '--y', 'Menarche', '--outcome', 'proportions', '--trials', 'Total', '--df', '3,5', '--resampling', 'folds:5', '--rule', 'least-error']);
       assert.equal(await text(file('menarche.curve.csv')), cliBin.table);
       assert.equal(await text(file('menarche.fit.json')), cliBin.record);
 
@@ -277,7 +277,7 @@ describe('Knotwise commands in the extension host', function () {
       assert.ok((rob.model?.downweightedLines ?? []).length === rDown.size && (rob.model?.downweightedLines ?? []).every((l) => rDown.has(l)), `down-weighted lines ${rob.model?.downweightedLines?.join(', ')}`);
       const savedRob = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('mcycle.csv'), { replaceForeignFiles: 'no' })) as RunSummary;
       assert.equal(savedRob.status, 'done', savedRob.message);
-      const cliRob = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--robust', '--df', '5,8', '--resample', 'cv:5', '--rule', 'lowest']);
+      const cliRob = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--robust', '--df', '5,8', '--resampling', 'folds:5', '--rule', 'least-error']);
       assert.equal(await text(file('mcycle.curve.csv')), cliRob.table);
       assert.equal(await text(file('mcycle.fit.json')), cliRob.record);
     } finally {
@@ -285,7 +285,7 @@ describe('Knotwise commands in the extension host', function () {
       await setSetting('outcome', undefined);
       await setSetting('robust', undefined);
       await setSetting('candidates', '3..15');
-      await setSetting('resampling', 'loo');
+      await setSetting('resampling', 'leave-one-out');
     }
   });
 
@@ -293,7 +293,7 @@ describe('Knotwise commands in the extension host', function () {
     try {
       await setSetting('output.tableName', '${name}.table.csv');
       await setSetting('output.recordName', '${name}.record.json');
-      const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('cars.csv'), { columns: { x: 'speed', y: 'dist' }, replaceForeignFiles: 'no', rule: { kind: 'manual', df: 5 } })) as RunSummary;
+      const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('cars.csv'), { columns: { x: 'speed', y: 'dist' }, replaceForeignFiles: 'no', rule: { kind: 'pick', df: 5 } })) as RunSummary;
       assert.equal(saved.status, 'done', saved.message);
       assert.equal(saved.chosenDf, 5);
       const rec = JSON.parse(await text(file('cars.record.json'))) as { table: { file: string }; selection: { df: number; rule: string } };
@@ -338,7 +338,7 @@ describe('Knotwise commands in the extension host', function () {
       }
       await vscode.workspace.fs.writeFile(big(), new TextEncoder().encode(rows.join('\n') + '\n'));
       await closeEverything();
-      await setSetting('resampling', 'boot:2000');
+      await setSetting('resampling', 'bootstrap:2000');
     });
     after(async function () {
       await closeEverything();
@@ -360,7 +360,7 @@ describe('Knotwise commands in the extension host', function () {
     it('a second run on the same file replaces the first', async function () {
       const first = vscode.commands.executeCommand('knotwise.tuneCurve', big(), drift) as Thenable<RunSummary>;
       await new Promise((r) => setTimeout(r, 800));
-      await setSetting('resampling', 'cv:5');
+      await setSetting('resampling', 'folds:5');
       // The settings change reruns open panels; the explicit second run supersedes both.
       const second = (await vscode.commands.executeCommand('knotwise.tuneCurve', big(), drift)) as RunSummary;
       const firstResult = await first;

@@ -1,6 +1,6 @@
 /**
  * The settings snapshot: defaults equal the command line's documented defaults
- * (core/node/cli.ts usage text: natural, boot:50, 1se, seed 1, 8 digits, least squares,
+ * (core/node/cli.ts usage text: natural, bootstrap:50, 1se, seed 1, 8 digits, least squares,
  * Huber k = 1.345), values outside their limits fall back with a message, and the
  * contributed schema in package.json has the same defaults.
  */
@@ -11,20 +11,20 @@ import { analysisOptions, DEFAULTS, modelOptions, readSettings } from '../../../
 describe('settings snapshot (readSettings)', function () {
   it('readSettings() with nothing set gives the command line defaults', function () {
     const s = readSettings(() => undefined);
-    assert.equal(s.family, 'natural');
-    assert.deepEqual(s.resample, { kind: 'boot', resamples: 50 });
-    assert.deepEqual(s.rule, { kind: '1se' });
+    assert.equal(s.kind, 'natural-spline');
+    assert.deepEqual(s.resample, { kind: 'bootstrap', resamples: 50 });
+    assert.deepEqual(s.rule, { kind: 'one-se' });
     assert.equal(s.seed, 1);
     assert.equal(s.digits, 8);
     assert.equal(s.candidates, undefined);
     assert.equal(s.grid, undefined);
-    assert.deepEqual(s.model, { outcome: 'gaussian', shape: [], robustK: undefined });
+    assert.deepEqual(s.model, { outcome: 'continuous', shape: [], robustK: undefined });
     assert.deepEqual(s.problems, []);
   });
 
   it('readSettings() takes every grid form of the command line (core/table/grid.ts parseGrid)', function () {
     const forms: Record<string, unknown> = {
-      '0:10:21': { kind: 'count', start: 0, stop: 10, count: 21 },
+      '0:10:count=21': { kind: 'count', start: 0, stop: 10, count: 21 },
       '0:10:step=0.5': { kind: 'step', start: 0, stop: 10, step: 0.5 },
       data: { kind: 'data' },
       '1,2.5,4': { kind: 'list', values: [1, 2.5, 4] },
@@ -41,32 +41,32 @@ describe('settings snapshot (readSettings)', function () {
     assert.match(bad.problems.join(), /knotwise\.table\.grid: .*tolerance/);
   });
 
-  it('model settings become the command line\'s model options; combinations the curve family cannot fit are dropped with a message', function () {
-    const raw: Record<string, unknown> = { outcome: 'poisson', shape: ['convex', 'increasing'] };
+  it('model settings become the command line\'s model options; combinations the curve kind cannot fit are dropped with a message', function () {
+    const raw: Record<string, unknown> = { outcome: 'counts', shape: ['convex', 'increasing'] };
     const s = readSettings((k) => raw[k]);
-    assert.deepEqual(s.model, { outcome: 'poisson', shape: ['increasing', 'convex'], robustK: undefined });
-    assert.deepEqual(analysisOptions(s), { family: 'natural', candidates: undefined, resample: { kind: 'boot', resamples: 50 }, rule: { kind: '1se' }, seed: 1, holdout: undefined, outcome: 'poisson', shape: ['increasing', 'convex'] });
-    // --robust is Huber with k = 1.345 (core/fit/robust.ts HUBER_K); another k is --huber-k.
+    assert.deepEqual(s.model, { outcome: 'counts', shape: ['increasing', 'convex'], robustK: undefined });
+    assert.deepEqual(analysisOptions(s), { kind: 'natural-spline', candidates: undefined, resample: { kind: 'bootstrap', resamples: 50 }, rule: { kind: 'one-se' }, seed: 1, holdout: undefined, outcome: 'counts', shape: ['increasing', 'convex'] });
+    // --robust is Huber with k = 1.345 (core/fit/robust.ts HUBER_K); another k is --robust-k.
     const read = (values: Record<string, unknown>) => readSettings((k) => values[k]);
     assert.deepEqual(modelOptions(read({ robust: true }).model), { robust: true });
     assert.deepEqual(modelOptions(read({ robust: true, huberK: 2 }).model), { robust: { k: 2 } });
     // The smoothing spline fits least squares only (shapes yes, up to 1000 distinct x); robust
     // fitting needs a Gaussian outcome; opposite shapes are refused.
-    const smooth = read({ curveFamily: 'smooth', outcome: 'binomial', shape: ['convex'] });
-    assert.deepEqual(smooth.model, { outcome: 'gaussian', shape: ['convex'], robustK: undefined });
+    const smooth = read({ curveFamily: 'smoothing-spline', outcome: 'proportions', shape: ['convex'] });
+    assert.deepEqual(smooth.model, { outcome: 'continuous', shape: ['convex'], robustK: undefined });
     assert.equal(smooth.problems.length, 1, smooth.problems.join('\n'));
-    const mixed = read({ outcome: 'poisson', robust: true, shape: ['increasing', 'decreasing'], huberK: -1 });
-    assert.deepEqual(mixed.model, { outcome: 'poisson', shape: [], robustK: undefined });
+    const mixed = read({ outcome: 'counts', robust: true, shape: ['increasing', 'decreasing'], huberK: -1 });
+    assert.deepEqual(mixed.model, { outcome: 'counts', shape: [], robustK: undefined });
     assert.equal(mixed.problems.length, 3, mixed.problems.join('\n'));
     assert.ok(mixed.problems.some((p) => p.startsWith('knotwise.robust: ')));
   });
 
   it('readSettings() refuses values outside their limits and says which', function () {
-    const raw: Record<string, unknown> = { resampling: 'boot:3', 'table.significantDigits': 40, rule: 'median', 'output.tableName': '../x.csv', candidates: '5..2' };
+    const raw: Record<string, unknown> = { resampling: 'bootstrap:3', 'table.significantDigits': 40, rule: 'median', 'output.tableName': '../x.csv', candidates: '5..2' };
     const s = readSettings((k) => raw[k]);
-    assert.deepEqual(s.resample, { kind: 'boot', resamples: 50 });
+    assert.deepEqual(s.resample, { kind: 'bootstrap', resamples: 50 });
     assert.equal(s.digits, 8);
-    assert.deepEqual(s.rule, { kind: '1se' });
+    assert.deepEqual(s.rule, { kind: 'one-se' });
     assert.equal(s.tableName, DEFAULTS.tableName);
     assert.equal(s.candidates, undefined);
     assert.equal(s.problems.length, 5, s.problems.join('\n'));
@@ -75,7 +75,7 @@ describe('settings snapshot (readSettings)', function () {
 
   it('the tolerance rule takes its percentage from knotwise.tolerancePercent', function () {
     const raw: Record<string, unknown> = { rule: 'tolerance', tolerancePercent: 5 };
-    assert.deepEqual(readSettings((k) => raw[k]).rule, { kind: 'tol', percent: 5 });
+    assert.deepEqual(readSettings((k) => raw[k]).rule, { kind: 'simplest-within', percent: 5 });
   });
 
   it('package.json declares every setting readSettings reads, with the same defaults', function () {
@@ -83,7 +83,7 @@ describe('settings snapshot (readSettings)', function () {
     assert.ok(ext, 'the Knotwise extension is loaded');
     const props = ext.packageJSON.contributes.configuration.properties as Record<string, { default: unknown }>;
     const expected: Record<string, unknown> = {
-      'knotwise.curveFamily': DEFAULTS.family,
+      'knotwise.curveFamily': DEFAULTS.kind,
       'knotwise.outcome': DEFAULTS.outcome,
       'knotwise.shape': DEFAULTS.shape,
       'knotwise.robust': DEFAULTS.robust,

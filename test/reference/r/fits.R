@@ -7,7 +7,7 @@
 # Numbers are written with the shortest of 15, 16 or 17 significant digits that reads back to
 # the identical double (jsonlite 1.8 stops at 15 digits, so a small writer is used instead).
 #
-# Definitions (DESIGN.md): df counts the intercept.
+# Definitions (docs/design.md, "df"): df counts the intercept.
 #   natural, df = k  <=>  lm(y ~ splines::ns(x, df = k - 1))  (k - 2 interior knots at
 #                         type-7 quantiles of all x, boundary knots at range(x), linear beyond)
 #   poly,    df = k  <=>  lm(y ~ poly(x, k - 1))             (degree k - 1, orthogonal basis)
@@ -113,7 +113,7 @@ make_case <- function(name, d, family, k) {
 
   knots <- if (family == "natural") as.numeric(attr(B, "knots")) else numeric(0)
   bknots <- if (family == "natural") as.numeric(attr(B, "Boundary.knots")) else numeric(0)
-  # DESIGN.md moves coinciding quantile knots; such cases would not equal plain ns(), so
+  # docs/design.md ("Knots") moves coinciding quantile knots; such cases would not equal plain ns(), so
   # they are flagged (the test then checks only what does not depend on the knots).
   all_k <- c(bknots[1], knots, bknots[2])
   knots_distinct <- family != "natural" || all(diff(all_k) > 0)

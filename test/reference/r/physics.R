@@ -5,7 +5,7 @@
 # Writes:                         test/reference/fixtures/physics.json
 # Needs:                          R >= 4.2 (stats, splines) and MASS (Debian: r-base, r-cran-mass)
 #
-# Definitions (DESIGN.md): df counts the intercept; the natural spline with df = k is
+# Definitions (docs/design.md, "df"): df counts the intercept; the natural spline with df = k is
 # ns(x, df = k - 1) plus an intercept (knots at type-7 quantiles of all x).
 #
 # glm:   glm(y ~ ns(x, df = k - 1), family = poisson | binomial), converged to machine

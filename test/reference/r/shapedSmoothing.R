@@ -1,4 +1,4 @@
-# Reference values for the shape-constrained cubic smoothing spline (core/fit/shapedSmoothing.ts).
+# Reference values for the shape-constrained cubic smoothing spline (core/fit/shapedSmoothing/).
 #
 # Run from anywhere:   Rscript test/reference/r/shapedSmoothing.R
 # Writes:              test/reference/fixtures/shapedSmoothing.json (next to this script's folder)

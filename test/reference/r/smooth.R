@@ -7,7 +7,7 @@
 #
 # Reference: stats::smooth.spline(x, y, w, all.knots = TRUE, df = k), which minimises
 # sum w_i (y_i - f(x_i))^2 + lambda * integral f''^2 over cubic splines with a knot at every
-# distinct x (B-spline basis, exact penalty), i.e. the definition in DESIGN.md. R matches
+# distinct x (B-spline basis, exact penalty), i.e. the definition in docs/design.md ("Cubic smoothing spline"). R matches
 # the asked df only approximately (it searches its own smoothing parameter 'spar'), so the
 # achieved trace fit$df (= sum(fit$lev)) is recorded and the test fits at that df.
 #

@@ -84,7 +84,7 @@ describe('cHeader', () => {
   });
 
   it('cHeader compiles with gcc -std=c99 -pedantic -Wall -Wextra -Werror, and a C program reading it prints the values of the CSV table exactly', () => {
-    const fit = fitCurve({ x: Float64Array.from(CARS.x), y: Float64Array.from(CARS.y) }, { family: 'natural', df: 4 });
+    const fit = fitCurve({ x: Float64Array.from(CARS.x), y: Float64Array.from(CARS.y) }, { kind: 'natural-spline', df: 4 });
     // 4 to 25 mph in steps of 1.5 plus two extrapolated points (2.5 and 26.5 mph).
     const points = Float64Array.from({ length: 17 }, (_, i) => 2.5 + 1.5 * i);
     const table = shapeTable(curveTable(fit, points), undefined, true).table;

@@ -26,14 +26,14 @@ function input(table: CurveTable, digits = 6): EmitInput {
     dataRange: [4, 25],
     step: 3,
     recordFile: 'cars.fit.json',
-    regenerate: 'knotwise fit cars.csv --x speed --y dist --model poly --df 3 --out .',
+    regenerate: 'knotwise fit cars.csv --x speed --y dist --curve poly --df 3 --out .',
     caution: 'An empirical fit is not a certified calibration.',
   };
 }
 
 describe('jsonTable', () => {
   it('jsonTable holds every column of the table with the CSV values (6 digits), and the provenance', () => {
-    const fit = fitCurve({ x: Float64Array.from(CARS.x), y: Float64Array.from(CARS.y) }, { family: 'poly', df: 3 });
+    const fit = fitCurve({ x: Float64Array.from(CARS.x), y: Float64Array.from(CARS.y) }, { kind: 'polynomial', df: 3 });
     const table = curveTable(fit, Float64Array.from({ length: 8 }, (_, i) => 4 + 3 * i));
     const doc = JSON.parse(jsonTable(input(table))) as Record<string, any>;
     const csv = curveTableCsv(table, 6).trim().split('\n');

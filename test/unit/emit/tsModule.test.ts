@@ -56,7 +56,7 @@ describe('tsModule', () => {
 
   it('tsModule type-checks under strict tsc with a consumer of its exports, and its values equal the CSV table', function () {
     this.timeout(120_000);
-    const fit = fitCurve({ x, y }, { family: 'natural', df: 9 });
+    const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 9 });
     // The data's distinct times, which are unevenly spaced: xStep is null.
     const points = Float64Array.from(new Set(x));
     const table = shapeTable(curveTable(fit, points), undefined, true).table;

@@ -1,5 +1,5 @@
 /**
- * Exactness properties of fitCurve ('natural' and 'poly') and bandsAt, checked with
+ * Exactness properties of fitCurve ('natural-spline' and 'polynomial') and bandsAt, checked with
  * fast-check on seeded random data (fixed seeds, so every run sees the same cases).
  *
  * Each property is a theorem about weighted least squares in a fixed linear space, so it
@@ -44,7 +44,7 @@ function tiedXArb(minDistinct: number, minRows: number, maxDistinct = minDistinc
 const finite = (min: number, max: number): fc.Arbitrary<number> => fc.double({ min, max, noNaN: true, noDefaultInfinity: true });
 
 describe('fitCurve exactness properties', () => {
-  it("fitCurve('natural', any df 2..8) reproduces a straight line exactly and its bands collapse", () => {
+  it("fitCurve('natural-spline', any df 2..8) reproduces a straight line exactly and its bands collapse", () => {
     // Source: natural cubic splines contain every linear function and are linear beyond the
     // boundary knots (Green & Silverman 1994, Nonparametric Regression and Generalized Linear
     // Models, section 2.1), so least squares reproduces a line with zero residuals, sigma = 0
@@ -60,7 +60,7 @@ describe('fitCurve exactness properties', () => {
           const n = x.length;
           const y = x.map((xi) => a + b * xi);
           const w = wPool ? Float64Array.from({ length: n }, (_, i) => wPool[i % wPool.length] as number) : undefined;
-          const fit = fitCurve({ x, y, w }, { family: 'natural', df });
+          const fit = fitCurve({ x, y, w }, { kind: 'natural-spline', df });
           const lo = Math.min(...x);
           const hi = Math.max(...x);
           const grid = Float64Array.from({ length: 13 }, (_, i) => lo - 0.2 * (hi - lo) + (i * 1.4 * (hi - lo)) / 12);
@@ -81,7 +81,7 @@ describe('fitCurve exactness properties', () => {
     );
   });
 
-  it("fitCurve('poly', df = d + 1) reproduces degree-d data exactly and its bands collapse", () => {
+  it("fitCurve('polynomial', df = d + 1) reproduces degree-d data exactly and its bands collapse", () => {
     // Source: least squares reproduces any response that lies in the column space (the
     // polynomials of degree <= d); Seber & Lee 2003, Linear Regression Analysis, 2nd ed.,
     // section 3.1 (y in the range of X gives residual 0).
@@ -100,7 +100,7 @@ describe('fitCurve exactness properties', () => {
           const x = Float64Array.from(ints, (v) => v / 100 + shift);
           const poly = (t: number): number => coef.reduceRight((acc, c) => acc * t + c, 0);
           const y = x.map(poly);
-          const fit = fitCurve({ x, y }, { family: 'poly', df: d + 1 });
+          const fit = fitCurve({ x, y }, { kind: 'polynomial', df: d + 1 });
           const xMax = Math.max(maxAbs(x), 1) * 1.2;
           const scale = coef.reduce((s, c, j) => s + Math.abs(c) * xMax ** j, 0);
           const tol = 1e-9 * Math.max(scale, 1e-300);
@@ -119,7 +119,7 @@ describe('fitCurve exactness properties', () => {
     );
   });
 
-  it("fitCurve('poly') exact leave-one-out RMSE equals brute-force refits without each row", () => {
+  it("fitCurve('polynomial') exact leave-one-out RMSE equals brute-force refits without each row", () => {
     // Source: the deleted residual y_i - f_(-i)(x_i) = r_i / (1 - h_ii) for least squares in a
     // fixed space (Cook & Weisberg 1982, Residuals and Influence in Regression, section 2.2);
     // the brute force here refits through fitCurve n times. Weighted: sqrt(sum w e^2 / sum w).
@@ -144,7 +144,7 @@ describe('fitCurve exactness properties', () => {
           const x = Float64Array.from(ints, (v) => v / 100);
           const y = Float64Array.from({ length: n }, (_, i) => yPool[i] as number);
           const w = wPool ? Float64Array.from({ length: n }, (_, i) => wPool[i] as number) : undefined;
-          const fit = fitCurve({ x, y, w }, { family: 'poly', df });
+          const fit = fitCurve({ x, y, w }, { kind: 'polynomial', df });
           // Rows of leverage within 1e-3 of 1 make r / (1 - h) lose up to 1e3 times the
           // rounding of h, and the implementation treats 1 - h <= 1e-10 as leverage 1; such
           // near-degenerate designs are outside this identity check.
@@ -154,7 +154,7 @@ describe('fitCurve exactness properties', () => {
           for (let i = 0; i < n; i++) {
             const keep = (_: number, j: number): boolean => j !== i;
             const sub: XYData = { x: x.filter(keep), y: y.filter(keep), w: w ? w.filter(keep) : undefined };
-            const e = (y[i] as number) - fitCurve(sub, { family: 'poly', df }).curve.value(x[i] as number);
+            const e = (y[i] as number) - fitCurve(sub, { kind: 'polynomial', df }).curve.value(x[i] as number);
             const wi = w ? (w[i] as number) : 1;
             sse += wi * e * e;
             sw += wi;
@@ -167,22 +167,22 @@ describe('fitCurve exactness properties', () => {
     );
   });
 
-  for (const family of ['natural', 'poly'] as const) {
-    it(`fitCurve('${family}') leverage sums to df, and fitted + residuals = y`, () => {
+  for (const kind of ['natural-spline', 'polynomial'] as const) {
+    it(`fitCurve('${kind}') leverage sums to df, and fitted + residuals = y`, () => {
       // Source: trace of the hat matrix of a full-rank regression = number of coefficients
-      // (DESIGN.md definition of df; Hoaglin & Welsch 1978, "The hat matrix in regression
+      // (docs/design.md, "df"; Hoaglin & Welsch 1978, "The hat matrix in regression
       // and ANOVA", Am. Stat. 32(1)), with or without weights. Residuals are y - fitted by
       // definition. Tolerance: 1e-9 df for the trace, 1e-12 max|y| for the sum.
       fc.assert(
         fc.property(
-          fc.integer({ min: 2, max: family === 'natural' ? 8 : 6 }).chain((df) => fc.tuple(fc.constant(df), tiedXArb(df, df + 1))),
+          fc.integer({ min: 2, max: kind === 'natural-spline' ? 8 : 6 }).chain((df) => fc.tuple(fc.constant(df), tiedXArb(df, df + 1))),
           fc.array(finite(-1e3, 1e3), { minLength: 60, maxLength: 60 }),
           fc.option(fc.array(finite(0.1, 10), { minLength: 60, maxLength: 60 }), { nil: undefined }),
           ([df, x], yPool, wPool) => {
             const n = x.length;
             const y = Float64Array.from({ length: n }, (_, i) => yPool[i % yPool.length] as number);
             const w = wPool ? Float64Array.from({ length: n }, (_, i) => wPool[i % wPool.length] as number) : undefined;
-            const fit = fitCurve({ x, y, w }, { family, df });
+            const fit = fitCurve({ x, y, w }, { kind, df });
             let trace = 0;
             for (const h of fit.leverage) trace += h;
             assert.ok(Math.abs(trace - df) <= 1e-9 * df, `sum of leverage ${trace} vs df ${df}`);
@@ -198,9 +198,9 @@ describe('fitCurve exactness properties', () => {
       );
     });
 
-    it(`fitCurve('${family}') with df above the number of distinct x throws, naming that number`, () => {
+    it(`fitCurve('${kind}') with df above the number of distinct x throws, naming that number`, () => {
       // Source: a regression space of dimension df is identifiable only on at least df
-      // distinct x (DESIGN.md: such a candidate is skipped with that reason; STYLE.md
+      // distinct x (docs/design.md, "df": such a candidate is skipped with that reason; STYLE.md
       // message form "... needs at least 9 distinct x values; the data has 6").
       fc.assert(
         fc.property(
@@ -209,7 +209,7 @@ describe('fitCurve exactness properties', () => {
             const m = new Set(x).size;
             const y = x.map((v, i) => v * 0.5 + (i % 3));
             assert.throws(
-              () => fitCurve({ x, y }, { family, df }),
+              () => fitCurve({ x, y }, { kind, df }),
               (err: unknown) =>
                 err instanceof InputError && new RegExp(`(^|\\D)${m}(\\D|$)`).test(err.message) && /distinct/i.test(err.message),
               `df ${df} on ${m} distinct x`,
@@ -220,17 +220,17 @@ describe('fitCurve exactness properties', () => {
       );
     });
 
-    it(`fitCurve('${family}') on constant x throws`, () => {
-      // Source: with one distinct x no curve of df >= 2 is identifiable (DESIGN.md df rule).
+    it(`fitCurve('${kind}') on constant x throws`, () => {
+      // Source: with one distinct x no curve of df >= 2 is identifiable (docs/design.md, "df").
       const x = new Float64Array(12).fill(3.5);
       const y = Float64Array.from({ length: 12 }, (_, i) => i);
       for (let df = 2; df <= 6; df++) {
-        assert.throws(() => fitCurve({ x, y }, { family, df }), InputError, `df ${df}`);
+        assert.throws(() => fitCurve({ x, y }, { kind, df }), InputError, `df ${df}`);
       }
     });
 
-    it(`fitCurve('${family}') rejects NaN and infinite input, naming the CSV line`, () => {
-      // Source: DESIGN.md / project rules: bad input gets a clear error that says what and where.
+    it(`fitCurve('${kind}') rejects NaN and infinite input, naming the CSV line`, () => {
+      // Source: docs/design.md ("Input") / project rules: bad input gets a clear error that says what and where.
       const n = 12;
       const x = Float64Array.from({ length: n }, (_, i) => i);
       const y = Float64Array.from({ length: n }, (_, i) => Math.sin(i));
@@ -244,7 +244,7 @@ describe('fitCurve exactness properties', () => {
       }
       for (const [what, data] of bad) {
         assert.throws(
-          () => fitCurve(data, { family, df: 3 }),
+          () => fitCurve(data, { kind, df: 3 }),
           (err: unknown) => err instanceof InputError && err.place.line === 9,
           what,
         );

@@ -19,9 +19,10 @@ import { CachedRows } from '../../../core/fit/cachedRows';
 import { binomialFromTrials, irls, poissonFamily } from '../../../core/fit/glm';
 import { fitCurve } from '../../../core/fit/index';
 import { LinearSystem } from '../../../core/fit/linearSystem';
-import { modelBasis, resolveModel } from '../../../core/fit/model';
+import { curveKind, type CurveKind } from '../../../core/registry/curves/index';
 import { prepareData } from '../../../core/fit/prepared';
 import { seededNormals } from '../stats/seededNormal';
+import { resolveModel } from '../../../core/registry/curves/index';
 
 const fixture = JSON.parse(readFileSync(join(__dirname, '..', '..', 'reference', 'fixtures', 'physics.json'), 'utf8')) as {
   datasets: Record<string, { x: number[]; y: number[]; trials: number[] | null }>;
@@ -46,8 +47,8 @@ describe('Poisson and binomial fits (IRLS)', () => {
         ys.push(k < s ? 1 : 0);
       }
     });
-    const ones = fitCurve({ x: Float64Array.from(xs), y: Float64Array.from(ys) }, { family: 'poly', df: 4, outcome: 'binomial' });
-    const grouped = fitCurve({ x: Float64Array.from(menarche.x), y: Float64Array.from(menarche.y) }, { family: 'poly', df: 4, outcome: 'binomial', trials: Float64Array.from(menarche.trials) });
+    const ones = fitCurve({ x: Float64Array.from(xs), y: Float64Array.from(ys) }, { kind: 'polynomial', df: 4, outcome: 'proportions' });
+    const grouped = fitCurve({ x: Float64Array.from(menarche.x), y: Float64Array.from(menarche.y) }, { kind: 'polynomial', df: 4, outcome: 'proportions', trials: Float64Array.from(menarche.trials) });
     for (const x of menarche.x) {
       const a = ones.curve.value(x);
       const b = grouped.curve.value(x);
@@ -59,7 +60,7 @@ describe('Poisson and binomial fits (IRLS)', () => {
 
   it('a Poisson row with prior weight k fits as k copies of the row (datasets::discoveries)', () => {
     const w = Float64Array.from(discoveries.x, (_, i) => 1 + (i % 3));
-    const weighted = fitCurve({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y), w }, { family: 'poly', df: 4, outcome: 'poisson' });
+    const weighted = fitCurve({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y), w }, { kind: 'polynomial', df: 4, outcome: 'counts' });
     const xs: number[] = [];
     const ys: number[] = [];
     discoveries.x.forEach((x, i) => {
@@ -68,13 +69,13 @@ describe('Poisson and binomial fits (IRLS)', () => {
         ys.push(discoveries.y[i] as number);
       }
     });
-    const copies = fitCurve({ x: Float64Array.from(xs), y: Float64Array.from(ys) }, { family: 'poly', df: 4, outcome: 'poisson' });
+    const copies = fitCurve({ x: Float64Array.from(xs), y: Float64Array.from(ys) }, { kind: 'polynomial', df: 4, outcome: 'counts' });
     for (const x of discoveries.x) assert.ok(Math.abs(weighted.curve.value(x) - copies.curve.value(x)) <= REL * copies.curve.value(x), `mean at ${x}`);
     assert.ok(Math.abs((weighted.model?.glm?.deviance as number) - (copies.model?.glm?.deviance as number)) <= REL * (copies.model?.glm?.deviance as number), 'deviance');
   });
 
   it('deviance and Pearson residuals square-sum to the deviance and the Pearson chi-square', () => {
-    const fit = fitCurve({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y) }, { family: 'natural', df: 5, outcome: 'poisson' });
+    const fit = fitCurve({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y) }, { kind: 'natural-spline', df: 5, outcome: 'counts' });
     const g = fit.model?.glm;
     assert.ok(g);
     const sd = g.devianceResiduals.reduce((s, v) => s + v * v, 0);
@@ -85,8 +86,8 @@ describe('Poisson and binomial fits (IRLS)', () => {
   });
 
   it('bands of Poisson and binomial fits are built on the link scale and stay inside the valid range', () => {
-    const pois = fitCurve({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y) }, { family: 'natural', df: 5, outcome: 'poisson' });
-    const bin = fitCurve({ x: Float64Array.from(menarche.x), y: Float64Array.from(menarche.y) }, { family: 'natural', df: 4, outcome: 'binomial', trials: Float64Array.from(menarche.trials) });
+    const pois = fitCurve({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y) }, { kind: 'natural-spline', df: 5, outcome: 'counts' });
+    const bin = fitCurve({ x: Float64Array.from(menarche.x), y: Float64Array.from(menarche.y) }, { kind: 'natural-spline', df: 4, outcome: 'proportions', trials: Float64Array.from(menarche.trials) });
     for (const [fit, upper] of [[pois, Infinity], [bin, 1]] as const) {
       const xs = Float64Array.from({ length: 41 }, (_, k) => fit.curve.lower - 5 + ((fit.curve.upper - fit.curve.lower + 10) * k) / 40);
       const b = bandsAt(fit, xs);
@@ -107,25 +108,25 @@ describe('Poisson and binomial fits (IRLS)', () => {
     const x = Float64Array.of(1, 2, 3, 4, 5);
     const lines = Int32Array.of(2, 3, 4, 5, 6);
     assert.throws(
-      () => fitCurve({ x, y: Float64Array.of(1, 2, -1, 0, 3), lines }, { family: 'natural', df: 2, outcome: 'poisson' }),
+      () => fitCurve({ x, y: Float64Array.of(1, 2, -1, 0, 3), lines }, { kind: 'natural-spline', df: 2, outcome: 'counts' }),
       (e: unknown) => e instanceof InputError && e.place.line === 4 && /count of at least 0; got -1/.test(e.message),
     );
     assert.throws(
-      () => fitCurve({ x, y: Float64Array.of(0, 1, 0.5, 1.5, 0), lines }, { family: 'natural', df: 2, outcome: 'binomial' }),
+      () => fitCurve({ x, y: Float64Array.of(0, 1, 0.5, 1.5, 0), lines }, { kind: 'natural-spline', df: 2, outcome: 'proportions' }),
       (e: unknown) => e instanceof InputError && e.place.line === 5 && /proportion from 0 to 1/.test(e.message),
     );
     assert.throws(
-      () => fitCurve({ x, y: Float64Array.of(0, 1, 5, 1, 0), lines }, { family: 'natural', df: 2, outcome: 'binomial', trials: Float64Array.of(3, 3, 3, 3, 3) }),
+      () => fitCurve({ x, y: Float64Array.of(0, 1, 5, 1, 0), lines }, { kind: 'natural-spline', df: 2, outcome: 'proportions', trials: Float64Array.of(3, 3, 3, 3, 3) }),
       (e: unknown) => e instanceof InputError && e.place.line === 4 && /from 0 to the number of trials \(3\); got 5/.test(e.message),
     );
     assert.throws(() => binomialFromTrials({ x, y: Float64Array.of(0, 0, 0, 0, 0), lines }, Float64Array.of(1, 0, 1, 1, 1)), (e: unknown) => e instanceof InputError && e.place.line === 3);
-    assert.throws(() => fitCurve({ x, y: x }, { family: 'natural', df: 2, trials: x }), /a trials column needs the binomial outcome/);
+    assert.throws(() => fitCurve({ x, y: x }, { kind: 'natural-spline', df: 2, trials: x }), /a trials column needs the proportions outcome/);
   });
 
   it('irls reports non-convergence with the reason instead of throwing when its iteration cap is reached', () => {
     const prepared = prepareData({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y) });
-    const model = resolveModel('natural', { outcome: 'poisson' });
-    const mb = modelBasis(prepared, 'natural', 5, model);
+    const model = resolveModel('natural-spline', { outcome: 'counts' });
+    const mb = (curveKind('natural-spline').rowBasis as NonNullable<CurveKind['rowBasis']>)(prepared, 5, model);
     const rows = new CachedRows(mb.basis, prepared.data.x);
     const system = new LinearSystem(mb.basis.size, mb.z, mb.shape, mb.what);
     const w = new Float64Array(prepared.data.x.length).fill(1);
@@ -140,7 +141,7 @@ describe('Poisson and binomial fits (IRLS)', () => {
     // 0/1 outcomes that switch once, between x = 5 and x = 6: complete separation.
     const x = Float64Array.from({ length: 10 }, (_, i) => i + 1);
     const y = Float64Array.from(x, (v) => (v > 5 ? 1 : 0));
-    const fit = fitCurve({ x, y }, { family: 'natural', df: 2, outcome: 'binomial' });
+    const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 2, outcome: 'proportions' });
     assert.match(fit.notes.join(' '), /fitted probabilities numerically 0 or 1/);
   });
 
@@ -149,7 +150,7 @@ describe('Poisson and binomial fits (IRLS)', () => {
     const z = seededNormals(4, 200);
     const x = Float64Array.from({ length: 200 }, (_, i) => i);
     const y = Float64Array.from(z, (v) => Math.round(Math.exp(2 + 0.8 * v)));
-    const fit = fitCurve({ x, y }, { family: 'natural', df: 3, outcome: 'poisson' });
+    const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 3, outcome: 'counts' });
     assert.ok((fit.model?.glm?.dispersion as number) > 1.5);
     assert.match(fit.notes.join(' '), /Pearson dispersion is .* the bands are too narrow/);
   });

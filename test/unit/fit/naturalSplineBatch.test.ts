@@ -11,7 +11,7 @@ import type { FitResult } from '../../../core/types';
 // by the committed R script test/reference/r/fits.R into test/reference/fixtures/fits.json.
 const fixture = JSON.parse(readFileSync(join(__dirname, '..', '..', 'reference', 'fixtures', 'fits.json'), 'utf8')) as {
   datasets: Record<string, { x: number[]; y: number[]; w?: number[] | null }>;
-  cases: { dataset: string; family: string; df: number; fitted: number[]; hat: number[]; sigma: number }[];
+  cases: { dataset: string; kind: string; df: number; fitted: number[]; hat: number[]; sigma: number }[];
 };
 
 function close(a: number, b: number, rel: number, what: string): void {
@@ -44,7 +44,7 @@ describe('fitNaturalSplineBatch', () => {
   it('equals R lm(y ~ ns(x, df = k - 1)) fitted values on mcycle (fixture from test/reference/r/fits.R, 1e-8)', () => {
     const d = fixture.datasets.mcycle as { x: number[]; y: number[] };
     const batch = fitNaturalSplineBatch(prepareData({ x: Float64Array.from(d.x), y: Float64Array.from(d.y) }), [2, 5, 8]);
-    for (const c of fixture.cases.filter((k) => k.dataset === 'mcycle' && k.family === 'natural' && [2, 5, 8].includes(k.df))) {
+    for (const c of fixture.cases.filter((k) => k.dataset === 'mcycle' && k.kind === 'natural-spline' && [2, 5, 8].includes(k.df))) {
       const b = batch.get(c.df) as FitResult;
       c.fitted.forEach((f, i) => close(b.fitted[i] as number, f, 1e-8, `R fitted[${i}] df ${c.df}`));
       c.hat.forEach((h, i) => close(b.leverage[i] as number, h, 1e-8, `R hat[${i}] df ${c.df}`));

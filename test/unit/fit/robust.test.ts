@@ -43,8 +43,8 @@ describe('fitCurve with robust: true (Huber M-estimation)', () => {
   const lines = Int32Array.from({ length: n }, (_, i) => i + 2);
 
   it('with a tuning constant above every standardised residual the robust fit is least squares', () => {
-    const ls = fitCurve({ x, y: clean }, { family: 'natural', df: 6 });
-    const rob = fitCurve({ x, y: clean }, { family: 'natural', df: 6, robust: { k: 50 } });
+    const ls = fitCurve({ x, y: clean }, { kind: 'natural-spline', df: 6 });
+    const rob = fitCurve({ x, y: clean }, { kind: 'natural-spline', df: 6, robust: { k: 50 } });
     assert.equal(rob.model?.robust?.downweighted.total, 0);
     // Tolerance 1e-10 relative to the scale of y (3).
     for (let i = 0; i < n; i++) assert.ok(Math.abs((rob.fitted[i] as number) - (ls.fitted[i] as number)) <= 3e-10, `row ${i}`);
@@ -54,8 +54,8 @@ describe('fitCurve with robust: true (Huber M-estimation)', () => {
     const y = Float64Array.from(clean);
     const planted = [15, 60, 61, 100];
     for (const i of planted) y[i] = (y[i] as number) + 25;
-    const ls = fitCurve({ x, y, lines }, { family: 'natural', df: 6 });
-    const rob = fitCurve({ x, y, lines }, { family: 'natural', df: 6, robust: true });
+    const ls = fitCurve({ x, y, lines }, { kind: 'natural-spline', df: 6 });
+    const rob = fitCurve({ x, y, lines }, { kind: 'natural-spline', df: 6, robust: true });
     const r = rob.model?.robust;
     assert.ok(r && rob.model?.converged);
     assert.equal(r.k, 1.345, 'default tuning constant');
@@ -74,7 +74,7 @@ describe('fitCurve with robust: true (Huber M-estimation)', () => {
 
   it('a robust fit can also be shape constrained: the curve stays increasing on a dense grid', () => {
     const y = Float64Array.from(x, (t, i) => t + 0.5 * (z[i] as number) + (i === 50 ? -30 : 0));
-    const fit = fitCurve({ x, y, lines }, { family: 'natural', df: 7, robust: true, shape: ['increasing'] });
+    const fit = fitCurve({ x, y, lines }, { kind: 'natural-spline', df: 7, robust: true, shape: ['increasing'] });
     assert.equal(fit.model?.robust?.downweighted.rows[0]?.line, 52);
     let prev = -Infinity;
     for (let k = 0; k <= 2000; k++) {
@@ -87,7 +87,7 @@ describe('fitCurve with robust: true (Huber M-estimation)', () => {
   it('when more than half of the rows lie exactly on the curve the scale is 0, the outlier is ignored and a note says so', () => {
     const y = Float64Array.from(x, (t) => 2 * t + 1);
     y[3] = 100;
-    const fit = fitCurve({ x, y }, { family: 'natural', df: 2, robust: true });
+    const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 2, robust: true });
     assert.match(fit.notes.join(" "), /robust scale is 0/);
     assert.equal(fit.model?.robust?.scale, 0);
     assert.deepEqual(fit.model?.robust?.downweighted.rows.map((r) => r.line), [4], 'only the outlier (row 4, no CSV lines given) is down-weighted');
@@ -96,7 +96,7 @@ describe('fitCurve with robust: true (Huber M-estimation)', () => {
   });
 
   it('robust fitting is refused for Poisson and binomial outcomes and a bad tuning constant', () => {
-    assert.throws(() => fitCurve({ x, y: clean }, { family: 'natural', df: 4, outcome: 'poisson', robust: true }), /Gaussian outcome only/);
-    assert.throws(() => fitCurve({ x, y: clean }, { family: 'natural', df: 4, robust: { k: 0 } }), /tuning constant must be above 0/);
+    assert.throws(() => fitCurve({ x, y: clean }, { kind: 'natural-spline', df: 4, outcome: 'counts', robust: true }), /robust fitting applies to continuous readings only/);
+    assert.throws(() => fitCurve({ x, y: clean }, { kind: 'natural-spline', df: 4, robust: { k: 0 } }), /tuning constant must be above 0/);
   });
 });

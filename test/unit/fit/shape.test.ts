@@ -108,12 +108,12 @@ describe('fitCurve with shape constraints (natural spline)', () => {
     // unconstrained fit wiggle (checked: some constraint is active).
     for (const seed of [1, 2, 3, 4, 5]) {
       const d = noisy(seed, 120, (x) => 1 / (1 + Math.exp(-(x - 5))), 0.15);
-      const fit = fitCurve(d, { family: 'natural', df: 9, shape: ['increasing'] });
+      const fit = fitCurve(d, { kind: 'natural-spline', df: 9, shape: ['increasing'] });
       assertShape(dense(fit, 4001, 0.2), 'increasing', `seed ${seed}`);
       assert.ok((fit.model?.constraints?.total ?? 0) > 0);
     }
     const d = noisy(3, 120, (x) => 1 / (1 + Math.exp(-(x - 5))), 0.15);
-    const plain = fitCurve(d, { family: 'natural', df: 9 });
+    const plain = fitCurve(d, { kind: 'natural-spline', df: 9 });
     const plainGrid = dense(plain);
     assert.ok(plainGrid.some((v, k) => k > 0 && v < (plainGrid[k - 1] as number) - 1e-6), 'the unconstrained fit of seed 3 does decrease somewhere (so the test is not vacuous)');
   });
@@ -124,7 +124,7 @@ describe('fitCurve with shape constraints (natural spline)', () => {
       fc.property(fc.integer({ min: 1, max: 1e6 }), fc.integer({ min: 2, max: 10 }), fc.constantFrom(...combos), (seed, df, shapes) => {
         // A wavy truth around zero breaks every shape; noise SD 0.3.
         const d = noisy(seed, 80, (x) => Math.sin(x) + 0.1 * x - 0.4, 0.3);
-        const fit = fitCurve(d, { family: 'natural', df, shape: shapes });
+        const fit = fitCurve(d, { kind: 'natural-spline', df, shape: shapes });
         const grid = dense(fit, 2001);
         for (const s of shapes) assertShape(grid, s, `seed ${seed}, df ${df}, ${shapes.join('+')}`);
         // Beyond the data the spline is linear with the boundary slope: monotone and convex shapes carry on.
@@ -138,8 +138,8 @@ describe('fitCurve with shape constraints (natural spline)', () => {
   it('a constrained fit equals the unconstrained one when the constraint is inactive', () => {
     // Truth 2x + sin(x) is strongly increasing; noise SD 0.01 keeps every coefficient difference positive.
     const d = noisy(8, 100, (x) => 2 * x + Math.sin(x), 0.01);
-    const plain = fitCurve(d, { family: 'natural', df: 7 });
-    const fit = fitCurve(d, { family: 'natural', df: 7, shape: ['increasing', 'nonnegative'] });
+    const plain = fitCurve(d, { kind: 'natural-spline', df: 7 });
+    const fit = fitCurve(d, { kind: 'natural-spline', df: 7, shape: ['increasing', 'nonnegative'] });
     assert.equal(fit.model?.constraints?.active, 0);
     // Tolerance 1e-10 relative: both are the same least-squares problem solved along two routes.
     for (let i = 0; i < plain.fitted.length; i++) assert.ok(Math.abs((fit.fitted[i] as number) - (plain.fitted[i] as number)) <= 1e-10 * 20, `row ${i}`);
@@ -150,7 +150,7 @@ describe('fitCurve with shape constraints (natural spline)', () => {
 
   it('with active constraints the effective df drops and the leverage sums to it (trace of the hat matrix at the active set)', () => {
     const d = noisy(21, 150, (x) => Math.cos(x), 0.2);
-    const fit = fitCurve(d, { family: 'natural', df: 8, shape: ['increasing'] });
+    const fit = fitCurve(d, { kind: 'natural-spline', df: 8, shape: ['increasing'] });
     const c = fit.model?.constraints;
     assert.ok(c && c.active > 0, 'some constraint active');
     const trace = fit.leverage.reduce((s, v) => s + v, 0);
@@ -162,7 +162,7 @@ describe('fitCurve with shape constraints (natural spline)', () => {
   it('bands of a non-negative fit keep their lower limits at or above zero within the data range', () => {
     // Truth exp(-x) is small at the right end, so the lower band limits would go negative.
     const d = noisy(5, 60, (x) => 3 * Math.exp(-x), 0.2);
-    const fit = fitCurve(d, { family: 'natural', df: 5, shape: ['nonnegative'] });
+    const fit = fitCurve(d, { kind: 'natural-spline', df: 5, shape: ['nonnegative'] });
     const xs = Float64Array.from({ length: 101 }, (_, k) => fit.curve.lower + ((fit.curve.upper - fit.curve.lower) * k) / 100);
     const b = bandsAt(fit, xs);
     for (let k = 0; k < 101; k++) {
@@ -175,6 +175,6 @@ describe('fitCurve with shape constraints (natural spline)', () => {
 
   it('shape constraints are refused for the polynomial with the reason (the smoothing spline: test/unit/fit/shapedSmoothing.test.ts)', () => {
     const d = noisy(1, 30, (x) => x, 0.1);
-    assert.throws(() => fitCurve(d, { family: 'poly', df: 3, shape: ['increasing'] }), /shape constraints need the natural spline/);
+    assert.throws(() => fitCurve(d, { kind: 'polynomial', df: 3, shape: ['increasing'] }), /polynomial \(orthogonal basis\) takes no shape constraints; shapes need another curve \(natural-spline, smoothing-spline\)/);
   });
 });

@@ -36,7 +36,8 @@ import {
 import { SHAPES } from '../../../core/fit/shape';
 import { fitSmoothingSpline, lambdaForDf } from '../../../core/fit/smoothingSpline';
 import { ERRORS_PER_CANDIDATE, ResampleEngine } from '../../../core/tune/engine';
-import { foldLabels, orderByX } from '../../../core/tune/plan';
+import { foldLabels } from '../../../core/registry/resampling/index';
+import { orderByX } from '../../../core/tune/plan';
 import { tuneCurve } from '../../../core/tune/tune';
 import type { FitResult, Shape, XYData } from '../../../core/types';
 import { runMain } from '../node/runMain';
@@ -158,7 +159,7 @@ describe('fitShapedSmoothingSpline against R (quadprog::solve.QP on the same pen
       if (c.lambda === null) {
         assert.equal(fit.lambda, Infinity, `${c.name}: df 2 is the straight line`);
       } else {
-        // DESIGN.md: the trace matches df within 1e-6; R's root search is independent.
+        // docs/design.md, "Cubic smoothing spline": the trace matches df within 1e-6; R's root search is independent.
         assert.ok(Math.abs((fit.lambda as number) / c.lambda - 1) <= 1e-6, `${c.name}: lambda ${fit.lambda}, R ${c.lambda}`);
         assert.ok(Math.abs(lambdaForDf(caseData(c), c.df) / c.lambda - 1) <= 1e-6, `${c.name}: lambdaForDf`);
       }
@@ -184,7 +185,7 @@ describe('fitShapedSmoothingSpline: the shape on a dense grid', () => {
       const free = fitSmoothingSpline(d, c.df);
       // Second differences on the grid are of order h^2 f'', so real bends show at 1e-6 here; rounding stays near 1e-15.
       assert.ok(c.shapes.some((s) => violation(dense(free, c.out), s) > 100 * GRID_TOLERANCE), 'the unconstrained fit breaks the shape (so the check is not vacuous)');
-      const fit = fitCurve(d, { family: 'smooth', df: c.df, shape: c.shapes });
+      const fit = fitCurve(d, { kind: 'smoothing-spline', df: c.df, shape: c.shapes });
       // Within the data range always; beyond it (linear continuation) for monotone and convex/concave shapes.
       for (const s of c.shapes) assert.ok(violation(dense(fit, c.out), s) <= GRID_TOLERANCE, `${s} breaks by ${violation(dense(fit, c.out), s)}`);
       const cons = fit.model?.constraints;
@@ -207,7 +208,7 @@ describe('fitShapedSmoothingSpline: the shape on a dense grid', () => {
 
   it('bands of a constrained fit are finite, non-negative and sum of leverages is the reported effectiveDf', () => {
     const d = noisy(3, 120, (x) => 1 - Math.exp(-x / 2), 0.1);
-    const fit = fitCurve(d, { family: 'smooth', df: 9, shape: ['increasing'] });
+    const fit = fitCurve(d, { kind: 'smoothing-spline', df: 9, shape: ['increasing'] });
     const cons = fit.model?.constraints;
     assert.ok(cons && cons.active > 0);
     let trace = 0;
@@ -228,7 +229,7 @@ describe('fitShapedSmoothingSpline: inactive constraints and limits', () => {
     const d = noisy(5, 80, (x) => 5 + x + 0.05 * x * x, 0.02);
     for (const df of [2, 4, 7]) {
       const free = fitSmoothingSpline(d, df);
-      const fit = fitCurve(d, { family: 'smooth', df, shape: ['increasing', 'nonnegative', 'convex'] });
+      const fit = fitCurve(d, { kind: 'smoothing-spline', df, shape: ['increasing', 'nonnegative', 'convex'] });
       assert.deepEqual(fit.model?.constraints, { total: fit.model?.constraints?.total, active: 0, effectiveDf: free.df });
       assert.ok(Math.abs(fit.df - free.df) <= 1e-8 && fit.lambda === free.lambda);
       assertClose(`df ${df}: coefficients`, fit.coefficients, free.coefficients, 1e-8);
@@ -249,19 +250,19 @@ describe('fitShapedSmoothingSpline: inactive constraints and limits', () => {
   it(`refuses more than ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x with the limit and the alternative, before any work`, () => {
     const n = MAX_SHAPED_SMOOTHING_DISTINCT + 1;
     const d = { x: Float64Array.from({ length: n }, (_, i) => i), y: Float64Array.from({ length: n }, (_, i) => Math.sqrt(i)) };
-    const message = new RegExp(`limited to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x values.*the data has ${n}\\. Use the shape-constrained natural spline \\(--model natural\\)`);
-    assert.throws(() => fitCurve(d, { family: 'smooth', df: 5, shape: ['increasing'] }), (e: unknown) => e instanceof FitError && message.test(e.message));
+    const message = new RegExp(`limited to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x values.*the data has ${n}\\. Use the shape-constrained natural spline \\(--curve natural-spline\\)`);
+    assert.throws(() => fitCurve(d, { kind: 'smoothing-spline', df: 5, shape: ['increasing'] }), (e: unknown) => e instanceof FitError && message.test(e.message));
     assert.throws(() => checkShapedSmoothingSize(n), FitError);
     checkShapedSmoothingSize(MAX_SHAPED_SMOOTHING_DISTINCT);
     // Without a shape the smoothing spline has no such limit.
-    assert.ok(fitCurve(d, { family: 'smooth', df: 5 }).df > 4.99);
+    assert.ok(fitCurve(d, { kind: 'smoothing-spline', df: 5 }).df > 4.99);
   });
 
   it('contradictory or unknown shapes and non-least-squares options are refused with the reason', () => {
     const d = noisy(2, 30, (x) => x, 0.1);
-    assert.throws(() => fitCurve(d, { family: 'smooth', df: 4, shape: ['increasing', 'decreasing'] }), /only allow a constant/);
+    assert.throws(() => fitCurve(d, { kind: 'smoothing-spline', df: 4, shape: ['increasing', 'decreasing'] }), /only allow a constant/);
     assert.throws(() => fitShapedSmoothingSpline(d, 4, ['wiggly' as Shape]), /unknown shape "wiggly"/);
-    assert.throws(() => fitCurve(d, { family: 'smooth', df: 4, shape: ['convex'], robust: true }), /smoothing spline supports only least squares/);
+    assert.throws(() => fitCurve(d, { kind: 'smoothing-spline', df: 4, shape: ['convex'], robust: true }), /cubic smoothing spline has no robust fit/);
   });
 });
 
@@ -273,7 +274,7 @@ describe('tuning shape-constrained smoothing splines', () => {
     const lambdas = dfs.map((df) => lambdaForDf(cars, df));
     const shape: Shape[] = ['increasing', 'convex'];
     const folds = 5;
-    const engine = new ResampleEngine({ x: cars.x, y: cars.y, family: 'smooth', dfs, lambdas, resample: { kind: 'cv', folds, repeats: 1 }, seed: 3, order: orderByX(cars.x), model: { shape } });
+    const engine = new ResampleEngine({ x: cars.x, y: cars.y, kind: 'smoothing-spline', dfs, params: lambdas, resample: { kind: 'folds', folds, repeats: 1 }, seed: 3, order: orderByX(cars.x), model: { shape } });
     const labels = new Uint16Array(cars.x.length);
     foldLabels(orderByX(cars.x), folds, 3, 0, labels);
     let anyActive = false;
@@ -295,37 +296,37 @@ describe('tuning shape-constrained smoothing splines', () => {
   });
 
   it('tuneCurve tunes a shape-constrained smoothing spline and refuses an oversized one once, with the limit', async () => {
-    const { result, fits } = await tuneCurve(prepareData(cars), { family: 'smooth', shape: ['increasing'], resample: { kind: 'boot', resamples: 10 }, rule: { kind: '1se' }, seed: 1 });
+    const { result, fits } = await tuneCurve(prepareData(cars), { kind: 'smoothing-spline', shape: ['increasing'], resample: { kind: 'bootstrap', resamples: 10 }, rule: { kind: 'one-se' }, seed: 1 });
     assert.ok(result.candidates.every((c) => c.skipped === undefined && Number.isFinite(c.errors.rmse?.mean)));
     assert.ok(fits.get(result.selected.df)?.model?.constraints, 'the chosen fit carries its constraint report');
     const n = MAX_SHAPED_SMOOTHING_DISTINCT + 1;
     const big = prepareData({ x: Float64Array.from({ length: n }, (_, i) => i), y: Float64Array.from({ length: n }, (_, i) => i) });
     await assert.rejects(
-      tuneCurve(big, { family: 'smooth', shape: ['increasing'], resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: '1se' }, seed: 1 }),
+      tuneCurve(big, { kind: 'smoothing-spline', shape: ['increasing'], resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }),
       (e: unknown) => e instanceof FitError && /limited to/.test(e.message) && !/df 2:/.test(e.message),
     );
   });
 });
 
-describe('knotwise fit --model smooth --shape', () => {
+describe('knotwise fit --curve smooth --shape', () => {
   let dir = '';
   before(() => {
     dir = mkdtempSync(join(tmpdir(), 'knotwise-shaped-smooth-'));
   });
   after(() => rmSync(dir, { recursive: true, force: true }));
 
-  it('knotwise fit --model smooth --shape increasing tunes and reports the constraints (exit 0)', async () => {
+  it('knotwise fit --curve smooth --shape increasing tunes and reports the constraints (exit 0)', async () => {
     const c = fixture.cases[0] as RCase; // datasets::cars
     const file = join(dir, 'cars.csv');
     writeFileSync(file, `speed,dist\n${c.x.map((x, i) => `${x},${c.y[i]}`).join('\n')}\n`);
-    const r = await runMain('fit', file, '--x', 'speed', '--y', 'dist', '--model', 'smooth', '--shape', 'increasing', '--resample', 'cv:5', '--print-only', '--json');
+    const r = await runMain('fit', file, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--shape', 'increasing', '--resampling', 'folds:5', '--print-only', '--json');
     assert.equal(r.code, 0, r.stderr);
-    const j = JSON.parse(r.stdout) as { model: { shape: string[] }; fit: { family: string; model: { constraints: { total: number; active: number; effectiveDf: number } } } };
+    const j = JSON.parse(r.stdout) as { model: { shape: string[] }; fit: { kind: string; model: { constraints: { total: number; active: number; effectiveDf: number } } } };
     assert.deepEqual(j.model.shape, ['increasing']);
-    assert.equal(j.fit.family, 'smooth');
+    assert.equal(j.fit.kind, 'smoothing-spline');
     assert.equal(j.fit.model.constraints.total, 20, '19 distinct speeds: 21 coefficients, 20 differences');
     // A single df with active constraints: datasets::cars at df 8 (R fixture: 3 active).
-    const one = await runMain('fit', file, '--x', 'speed', '--y', 'dist', '--model', 'smooth', '--shape', 'increasing', '--df', '8', '--print-only', '--json');
+    const one = await runMain('fit', file, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--shape', 'increasing', '--df', '8', '--print-only', '--json');
     assert.equal(one.code, 0, one.stderr);
     const k = JSON.parse(one.stdout) as { fit: { model: { constraints: { active: number; effectiveDf: number } } } };
     assert.equal(k.fit.model.constraints.active, c.rank);
@@ -336,11 +337,11 @@ describe('knotwise fit --model smooth --shape', () => {
     const file = join(dir, 'big.csv');
     const n = MAX_SHAPED_SMOOTHING_DISTINCT + 500;
     writeFileSync(file, `x,y\n${Array.from({ length: n }, (_, i) => `${i / 10},${Math.log1p(i)}`).join('\n')}\n`);
-    const r = await runMain('fit', file, '--x', 'x', '--y', 'y', '--model', 'smooth', '--shape', 'increasing', '--print-only');
+    const r = await runMain('fit', file, '--x', 'x', '--y', 'y', '--curve', 'smoothing-spline', '--shape', 'increasing', '--print-only');
     assert.equal(r.code, 2, r.stderr);
     assert.doesNotMatch(r.stderr, /internal error/);
     assert.match(r.stderr, new RegExp(`limited to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x values`));
     assert.match(r.stderr, new RegExp(`the data has ${n}`));
-    assert.match(r.stderr, /--model natural/);
+    assert.match(r.stderr, /--curve natural-spline/);
   });
 });

@@ -125,7 +125,7 @@ function basisRow(ev: BSplineEvaluator, x: number): number[] {
 
 describe('fitSmoothingSpline', () => {
   it('fitSmoothingSpline reaches the asked df within 1e-6 and its row leverages sum to it', () => {
-    // Source: DESIGN.md definition (df = trace of the hat matrix, matched within 1e-6); the
+    // Source: docs/design.md, "Cubic smoothing spline" (df = trace of the hat matrix, matched within 1e-6); the
     // trace is the sum of the hat diagonal over rows.
     const cases: [string, XYData, number[]][] = [
       ['cars', cars, [2.2, 3, 5, 8, 12, 18.5]],
@@ -138,7 +138,7 @@ describe('fitSmoothingSpline', () => {
         const fit = fitSmoothingSpline(d, df);
         assert.ok(Math.abs(fit.df - df) <= 1e-6, `${name} df ${df}: achieved ${fit.df}`);
         assert.ok(Math.abs(sum(fit.leverage) - df) <= 1e-6, `${name} df ${df}: leverages sum to ${sum(fit.leverage)}`);
-        assert.equal(fit.family, 'smooth');
+        assert.equal(fit.kind, 'smoothing-spline');
         assert.ok(Math.abs(fit.residualDf - (d.x.length - df)) <= 1e-6);
         assert.ok((fit.lambda as number) > 0 && Number.isFinite(fit.lambda), `${name} df ${df}: lambda ${fit.lambda}`);
         assert.equal(fit.coefficients.length, distinctCount(d.x) + 2);
@@ -403,7 +403,7 @@ describe('fitSmoothingSpline', () => {
   });
 
   it('fitSmoothingSpline rejects bad input with precise messages', () => {
-    // Source: the input rules of DESIGN.md / STYLE.md (what and where).
+    // Source: the input rules of docs/design.md ("Input") / STYLE.md (what and where).
     const six: XYData = { x: Float64Array.of(1, 2, 3, 4, 5, 6), y: Float64Array.of(1, 3, 2, 5, 4, 6) };
     assert.throws(
       () => fitSmoothingSpline(six, 9),

@@ -2,7 +2,7 @@ import assert from 'node:assert/strict';
 import fc from 'fast-check';
 import { columnNames, splitUnit } from '../../../core/ingest/header';
 
-// Expected splits follow the header convention of DESIGN.md capability 1 (`flow [L/min]`
+// Expected splits follow the header convention of docs/design.md, "Input" (`flow [L/min]`
 // keeps the unit L/min for labels); no external reference exists for label rules.
 describe('splitUnit', () => {
   const cases: [string, string, string | undefined][] = [

@@ -46,7 +46,7 @@ describe('knotwise check', () => {
     dir = mkdtempSync(join(tmpdir(), 'knotwise-check-'));
     data = copyFixture('mcycle.csv', join(dir, 'data', 'mcycle.csv'));
     out = join(dir, 'tables');
-    const r = await runMain('fit', data, '--x', 'times', '--y', 'accel', '--df', '4..12', '--resample', 'cv:5', '--seed', '7', '--grid', 'auto:2', '--emit', 'c,ts,json', '--report', '--out', out);
+    const r = await runMain('fit', data, '--x', 'times', '--y', 'accel', '--df', '4..12', '--resampling', 'folds:5', '--seed', '7', '--grid', 'auto:2', '--emit', 'c,ts,json', '--report', '--out', out);
     assert.equal(r.code, 0, r.stderr);
     record = join(out, 'mcycle.fit.json');
   });

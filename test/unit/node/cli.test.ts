@@ -24,7 +24,7 @@ const CLI = join(REPO, 'core', 'node', 'cli.ts');
 
 interface RCase {
   readonly dataset: string;
-  readonly family: string;
+  readonly kind: string;
   readonly df: number;
   readonly fitted: number[];
   readonly residuals: number[];
@@ -52,7 +52,7 @@ const fixture = JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixture
 const CARS = fixture.datasets.cars as { x: number[]; y: number[] };
 
 function rCase(df: number): RCase {
-  const c = fixture.cases.find((k) => k.dataset === 'cars' && k.family === 'natural' && k.df === df);
+  const c = fixture.cases.find((k) => k.dataset === 'cars' && k.kind === 'natural-spline' && k.df === df);
   if (!c) throw new Error(`no R case for cars natural df ${df}`);
   return c;
 }
@@ -117,7 +117,7 @@ describe('knotwise fit (command line)', () => {
       const text = ['speed,dist', ...rows.slice(0, 10), 'NaN,10', ...rows.slice(10, 30), '12,Inf', ...rows.slice(30)].join('\n') + '\n';
       const path = file('cars-with-gaps.csv', text);
       const r = rCase(4);
-      const r0 = await run('fit', path, '--x', 'speed', '--y', 'dist', '--model', 'natural', '--df', '4', '--grid', r.grid.join(','), '--extrapolate', '--json');
+      const r0 = await run('fit', path, '--x', 'speed', '--y', 'dist', '--curve', 'natural-spline', '--df', '4', '--grid', r.grid.join(','), '--extrapolate', '--json');
       assert.equal(r0.code, 0, r0.stderr);
       assert.equal(r0.stderr, '');
       const out = JSON.parse(r0.stdout) as Record<string, any>;
@@ -163,7 +163,7 @@ describe('knotwise fit (command line)', () => {
     });
 
     it('fit --json with tuning options adds candidates (errors as {mean, se}, or skipped), selected and diagnostics', async () => {
-      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2,3,4,5,6,25', '--resample', 'boot:20', '--rule', '1se', '--seed', '3', '--json');
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2,3,4,5,6,25', '--resampling', 'bootstrap:20', '--rule', 'one-se', '--seed', '3', '--json');
       assert.equal(r0.code, 0, r0.stderr);
       const out = JSON.parse(r0.stdout) as Record<string, any>;
       assert.deepEqual(
@@ -185,21 +185,21 @@ describe('knotwise fit (command line)', () => {
         assert.equal(c.errors.rmse.values.length, 20);
       }
       assert.ok([2, 3, 4, 5, 6].includes(out.selected.df));
-      assert.deepEqual(out.selected.rule, { kind: '1se' });
+      assert.deepEqual(out.selected.rule, { kind: 'one-se' });
       assert.match(out.selected.reason, /One-SE threshold .* chosen\./);
       assert.equal(out.fit.df, out.selected.df);
       assert.equal(out.tuning.seed, 3);
-      assert.equal(out.tuning.resample, 'boot:20');
+      assert.equal(out.tuning.resample, 'bootstrap:20');
       assert.equal(typeof out.diagnostics, 'object');
       assert.ok(Array.isArray(out.diagnostics.warnings) && typeof out.diagnostics.influential === 'object');
       assert.ok(out.diagnostics.shapiroWilk && typeof out.diagnostics.shapiroWilk.pValue === 'number', 'Shapiro-Wilk result');
       // Same seed, same output (byte-identical JSON).
-      const again = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2,3,4,5,6,25', '--resample', 'boot:20', '--rule', '1se', '--seed', '3', '--json');
+      const again = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2,3,4,5,6,25', '--resampling', 'bootstrap:20', '--rule', 'one-se', '--seed', '3', '--json');
       assert.equal(again.stdout, r0.stdout);
     });
 
-    it('fit --resample loo puts the exact leave-one-out RMSE into errors.rmse.mean (cars, against R brute-force refits)', async () => {
-      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resample', 'loo', '--rule', 'lowest', '--json');
+    it('fit --resampling loo puts the exact leave-one-out RMSE into errors.rmse.mean (cars, against R brute-force refits)', async () => {
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resampling', 'leave-one-out', '--rule', 'least-error', '--json');
       assert.equal(r0.code, 0, r0.stderr);
       const out = JSON.parse(r0.stdout) as Record<string, any>;
       const sy = Math.max(...CARS.y.map(Math.abs));
@@ -212,8 +212,8 @@ describe('knotwise fit (command line)', () => {
       checkClose('fit.looRmse of the chosen fit', out.fit.looRmse, rCase(3).looRmse, sy);
     });
 
-    it('fit --resample gcv puts the GCV score into errors.gcv.mean (cars, against R)', async () => {
-      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resample', 'gcv', '--rule', 'lowest', '--json');
+    it('fit --resampling gcv puts the GCV score into errors.gcv.mean (cars, against R)', async () => {
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resampling', 'gcv', '--rule', 'least-error', '--json');
       assert.equal(r0.code, 0, r0.stderr);
       const out = JSON.parse(r0.stdout) as Record<string, any>;
       const sy = Math.max(...CARS.y.map(Math.abs));
@@ -227,10 +227,10 @@ describe('knotwise fit (command line)', () => {
     });
 
     it('fit without --json prints a short summary with the rows used and the choice', async () => {
-      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..4', '--resample', 'cv:5', '--seed', '1');
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..4', '--resampling', 'folds:5', '--seed', '1');
       assert.equal(r0.code, 0, r0.stderr);
       assert.match(r0.stdout, /cars\.csv: 50 rows used, 0 rejected/);
-      assert.match(r0.stdout, /Tuning \(cv:5, seed 1\)/);
+      assert.match(r0.stdout, /Tuning \(folds:5, seed 1\)/);
       assert.match(r0.stdout, /One-SE threshold/);
     });
   });
@@ -302,25 +302,25 @@ describe('knotwise fit (command line)', () => {
       assertRefused(await run('fit', cars, '--x', 'sped', '--y', 'dist'), /cars\.csv, column "sped"/, /no column named "sped"; the columns are "speed", "dist"/);
     });
 
-    it('bad --resample syntax', async () => {
-      for (const bad of ['boot', 'cv:', 'boot:x', 'jackknife']) {
-        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resample', bad), new RegExp(`resampling "${bad}" is not understood`), /boot:<B>, cv:<K>/);
+    it('bad --resampling syntax', async () => {
+      for (const bad of ['bootstrap', 'cv:', 'boot:x', 'jackknife']) {
+        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', bad), new RegExp(`resampling "${bad}" is not understood`), /bootstrap:<B>, folds:<K>/);
       }
-      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resample', 'boot:1'), /bootstrap needs a whole number of resamples from 2/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', 'bootstrap:1'), /bootstrap needs a whole number of resamples from 2/);
     });
 
     it('bad --rule syntax', async () => {
-      for (const bad of ['best', 'tol', 'tol:-2', '2se']) {
-        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', bad), new RegExp(`rule "${bad}" is not understood`), /lowest, 1se, tol:<percent> \(e\.g\. tol:2\) or df:<k>/);
+      for (const bad of ['best', 'simplest-within', 'tol:-2', '2se']) {
+        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', bad), new RegExp(`rule "${bad}" is not understood`), /lowest, 1se, simplest-within:<percent> \(e\.g\. simplest-within:2\) or df:<k>/);
       }
     });
 
     it('bad --grid syntax', async () => {
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '0:10'), /grid "0:10"/, /not a number/);
-      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '10:5:3'), /stop must be greater than start/);
-      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '5:25:1'), /count must be a whole number/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '10:5:count=3'), /stop must be greater than start/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '5:25:count=1'), /count must be a whole number/);
       // A grid beyond the data (cars speeds 4..25) is refused unless --extrapolate is given.
-      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '0:30:7'), /2 grid point\(s\) lie outside the data range \[4, 25\]/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '0:30:count=7'), /2 grid point\(s\) lie outside the data range \[4, 25\]/);
     });
 
     it('bad --df, an unknown option, a missing file and missing --x/--y', async () => {
@@ -364,7 +364,7 @@ describe('knotwise fit: table options, emitters and report (issue #5)', () => {
   });
 
   it('fit --json adds table.grid, table.interpolation, table.negativePoints, warnings, regenerate and caution', async () => {
-    const r0 = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', 'auto:2', '--nonnegative', '--columns', 'x,fit', '--json');
+    const r0 = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', 'auto:2', '--flag-negative', '--columns', 'x,fit', '--json');
     assert.equal(r0.code, 0, r0.stderr);
     const out = JSON.parse(r0.stdout) as Record<string, any>;
     assert.equal(out.table.grid.kind, 'count');
@@ -375,14 +375,14 @@ describe('knotwise fit: table options, emitters and report (issue #5)', () => {
     assert.deepEqual(out.table.columns, ['x', 'fit', 'negative']);
     assert.ok(out.table.negativePoints > 0);
     assert.ok(out.warnings.some((w: string) => /below zero/.test(w)));
-    assert.match(out.regenerate, /^knotwise fit mcycle\.csv --x times --y accel --model natural --df 8 --grid auto:2 --columns x,fit --nonnegative --out \.$/);
+    assert.match(out.regenerate, /^knotwise fit mcycle\.csv --x times --y accel --curve natural --df 8 --grid auto:2 --columns x,fit --flag-negative --out \.$/);
     assert.match(out.caution, /not a certified calibration/);
     // Without --out the outputs go next to the data file (issue #5 item 5).
     assert.equal(out.written.table, join(dirname(mcycle), 'mcycle.curve.csv'));
   });
 
   it('fit without --json prints the table line with the interpolation error, the warnings and the caution', async () => {
-    const r0 = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', '0:60:13', '--extrapolate');
+    const r0 = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--grid', '0:60:count=13', '--extrapolate');
     assert.equal(r0.code, 0, r0.stderr);
     assert.match(r0.stdout, /^Table: 13 rows; linear interpolation between rows stays within [0-9.e+-]+ of the curve$/m);
     assert.match(r0.stdout, /^Warning: 2 table row\(s\) lie outside the data range \[2\.4, 57\.6\] and are extrapolated \(x = 0, 60\)/m);

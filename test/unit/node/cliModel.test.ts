@@ -1,6 +1,6 @@
 /**
- * The command line's outcome, shape and robust flags (core/node/cli.ts: --family, --trials,
- * --shape, --robust, --huber-k): JSON keys `model` and `fit.model`, the text summary, and
+ * The command line's outcome, shape and robust flags (core/node/cli.ts: --outcome, --trials,
+ * --shape, --robust, --robust-k): JSON keys `model` and `fit.model`, the text summary, and
  * the refusals (exit code 2 with what and where). Reference values: R 4.2 glm with
  * splines::ns, MASS::rlm and brute-force constrained least squares, from
  * test/reference/fixtures/physics.json (test/reference/r/physics.R), compared at 1e-7
@@ -37,7 +37,7 @@ function close(what: string, got: unknown, want: number): void {
   assert.ok(Math.abs((got as number) - want) <= REL * Math.abs(want) + 1e-12, `${what}: ${String(got)}, R ${want}`);
 }
 
-describe('knotwise fit --family, --trials, --shape, --robust', () => {
+describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
   let dir = '';
   const csv = (name: string, header: string, rows: string[]): string => {
     const p = join(dir, name);
@@ -58,11 +58,11 @@ describe('knotwise fit --family, --trials, --shape, --robust', () => {
   });
   after(() => rmSync(dir, { recursive: true, force: true }));
 
-  it('--family poisson --json reports the model used and R glm\'s deviance and fitted counts (datasets::discoveries)', async () => {
-    const r = await run('fit', discoveries, '--x', 'year', '--y', 'count', '--family', 'poisson', '--df', '5', '--json');
+  it('--outcome poisson --json reports the model used and R glm\'s deviance and fitted counts (datasets::discoveries)', async () => {
+    const r = await run('fit', discoveries, '--x', 'year', '--y', 'count', '--outcome', 'counts', '--df', '5', '--json');
     assert.equal(r.code, 0, r.stderr);
     const j = JSON.parse(r.stdout) as { model: unknown; fit: { model: Record<string, unknown>; fitted: number[] }; table: { columns: string[]; rows: number[][] } };
-    assert.deepEqual(j.model, { outcome: 'poisson', link: 'log', shape: [], robust: null, trials: null });
+    assert.deepEqual(j.model, { outcome: 'counts', link: 'log', shape: [], robust: null, trials: null });
     const ref = fixture.glm.find((c) => c.dataset === 'discoveries' && c.df === 5);
     assert.ok(ref);
     close('fit.model.deviance', j.fit.model.deviance, ref.deviance);
@@ -72,8 +72,8 @@ describe('knotwise fit --family, --trials, --shape, --robust', () => {
     for (const row of j.table.rows) assert.ok((row[lo] as number) > 0, 'the confidence band of a count stays above 0');
   });
 
-  it('--family binomial --trials gives R glm(cbind(successes, failures) ~ ns(x)) proportions and names the trials column (MASS::menarche)', async () => {
-    const r = await run('fit', menarche, '--x', 'Age', '--y', 'Menarche', '--family', 'binomial', '--trials', 'Total', '--df', '5', '--json');
+  it('--outcome binomial --trials gives R glm(cbind(successes, failures) ~ ns(x)) proportions and names the trials column (MASS::menarche)', async () => {
+    const r = await run('fit', menarche, '--x', 'Age', '--y', 'Menarche', '--outcome', 'proportions', '--trials', 'Total', '--df', '5', '--json');
     assert.equal(r.code, 0, r.stderr);
     const j = JSON.parse(r.stdout) as { model: { trials: string; link: string }; fit: { fitted: number[] } };
     assert.equal(j.model.trials, 'Total');
@@ -112,18 +112,18 @@ describe('knotwise fit --family, --trials, --shape, --robust', () => {
   });
 
   it('refuses bad or contradictory model flags with exit code 2 and the reason', async () => {
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--trials', 'speed'), /--trials needs --family binomial/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--trials', 'speed'), /--trials needs --outcome binomial/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--shape', 'wiggly'), /unknown shape "wiggly"/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--family', 'gamma'), /unknown outcome family "gamma"/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--family', 'poisson', '--robust'), /Gaussian outcome only/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--model', 'smooth', '--robust'), /smoothing spline supports only least squares/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--huber-k', '0'), /--huber-k must be a positive number/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--family', 'binomial', '--df', '3'), /cars\.csv, line 2, column "dist": a binomial outcome without a trials column must be a proportion/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'gamma'), /unknown outcome family "gamma"/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'counts', '--robust'), /Gaussian outcome only/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--robust'), /smoothing spline supports only least squares/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--robust-k', '0'), /--robust-k must be a positive number/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'proportions', '--df', '3'), /cars\.csv, line 2, column "dist": a binomial outcome without a trials column must be a proportion/);
   });
 
   it('--trials rejects rows without trials by line and refuses successes above the trials, naming line and column', async () => {
     const bad = csv('trials.csv', 'dose,n,dead', ['1,10,0', '2,0,0', '3,10,4', '4,,1', '5,10,9', '6,10,10']);
-    const r = await run('fit', bad, '--x', 'dose', '--y', 'dead', '--family', 'binomial', '--trials', 'n', '--df', '2', '--json');
+    const r = await run('fit', bad, '--x', 'dose', '--y', 'dead', '--outcome', 'proportions', '--trials', 'n', '--df', '2', '--json');
     assert.equal(r.code, 0, r.stderr);
     const j = JSON.parse(r.stdout) as { data: { rejected: { line: number; column: string; reason: string }[] } };
     assert.deepEqual(
@@ -135,6 +135,6 @@ describe('knotwise fit --family, --trials, --shape, --robust', () => {
     );
     assert.match(j.data.rejected[0]?.reason ?? '', /number of trials 0 is not positive/);
     const over = csv('over.csv', 'dose,n,dead', ['1,10,0', '2,10,12', '3,10,4']);
-    refused(await run('fit', over, '--x', 'dose', '--y', 'dead', '--family', 'binomial', '--trials', 'n', '--df', '2'), /over\.csv, line 3, column "dead": the number of successes must be from 0 to the number of trials \(10\); got 12/);
+    refused(await run('fit', over, '--x', 'dose', '--y', 'dead', '--outcome', 'proportions', '--trials', 'n', '--df', '2'), /over\.csv, line 3, column "dead": the number of successes must be from 0 to the number of trials \(10\); got 12/);
   });
 });

@@ -21,7 +21,7 @@ function snapshot(dir: string): Map<string, Buffer> {
 describe('writing the outputs', () => {
   let dir = '';
   let data = '';
-  const fitArgs = (...extra: string[]): string[] => ['fit', data, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resample', 'boot:20', '--seed', '3', '--emit', 'c,ts,json', '--report', ...extra];
+  const fitArgs = (...extra: string[]): string[] => ['fit', data, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resampling', 'bootstrap:20', '--seed', '3', '--emit', 'c,ts,json', '--report', ...extra];
 
   beforeEach(() => {
     dir = mkdtempSync(join(tmpdir(), 'knotwise-out-'));

@@ -16,7 +16,7 @@ const data = { x: Float64Array.from(CARS.x), y: Float64Array.from(CARS.y), lines
 
 describe('reportFigures', () => {
   it('reportFigures of a tuned fit: curve, error against df with the threshold, two residual figures and the normal quantile plot', async () => {
-    const a = await analyse(data, { family: 'natural', candidates: [2, 3, 4, 5, 6], resample: { kind: 'boot', resamples: 20 }, rule: { kind: '1se' }, seed: 3 });
+    const a = await analyse(data, { kind: 'natural-spline', candidates: [2, 3, 4, 5, 6], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'one-se' }, seed: 3 });
     const figs = reportFigures({ stem: 'cars', fitted: data, fit: a.chosen, analysis: a, diagnostics: a.diagnostics, xLabel: 'speed', yLabel: 'dist', tableRange: [4, 25] });
     assert.deepEqual(
       figs.map((f) => f.name),
@@ -36,7 +36,7 @@ describe('reportFigures', () => {
   });
 
   it('reportFigures of a plain fit has no error figure, and draws the curve over an extrapolated table range', () => {
-    const fit = fitCurve(data, { family: 'poly', df: 3 });
+    const fit = fitCurve(data, { kind: 'polynomial', df: 3 });
     const figs = reportFigures({ stem: 'cars', fitted: data, fit, diagnostics: diagnose(data, fit), xLabel: 'speed', yLabel: 'dist', tableRange: [0, 30] });
     assert.deepEqual(
       figs.map((f) => f.name.split('.')[2]),

@@ -29,8 +29,8 @@ describe('reportMarkdown', () => {
     const plan: FitPlan = {
       columns: { x: 'Temp', y: 'Ozone' },
       tune: true,
-      options: { family: 'natural', candidates: [2, 3, 4, 5, 6], resample: { kind: 'cv', folds: 5, repeats: 2 }, rule: { kind: '1se' }, seed: 9, holdout: 0.2 },
-      output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [50, 60, 70, 80, 90, 100] }, extrapolate: true, nonnegative: true, emit: ['c'], report: true },
+      options: { kind: 'natural-spline', candidates: [2, 3, 4, 5, 6], resample: { kind: 'folds', folds: 5, repeats: 2 }, rule: { kind: 'one-se' }, seed: 9, holdout: 0.2 },
+      output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [50, 60, 70, 80, 90, 100] }, extrapolate: true, flagNegative: true, emit: ['c'], report: true },
     };
     const analysis = await analyse(sel.data, plan.options);
     assert.ok(analysis.n < sel.data.x.length, 'rows were held out');
@@ -86,7 +86,7 @@ describe('reportMarkdown', () => {
   });
 
   it('ends with how to reproduce and check, in a shell block', () => {
-    assert.match(report, /```sh\nknotwise fit airquality\.csv --x Temp --y Ozone --model natural --df 2,3,4,5,6 --resample cv:5x2 --rule 1se --seed 9 --holdout 0\.2 --grid 50,60,70,80,90,100 --extrapolate --nonnegative --emit c --report --out \.\nknotwise check airquality\.fit\.json\n```\n$/);
+    assert.match(report, /```sh\nknotwise fit airquality\.csv --x Temp --y Ozone --curve natural --df 2,3,4,5,6 --resampling folds:5x2 --rule 1se --seed 9 --holdout 0\.2 --grid 50,60,70,80,90,100 --extrapolate --flag-negative --emit c --report --out \.\nknotwise check airquality\.fit\.json\n```\n$/);
     assert.match(report, /generated code: \[airquality\.curve\.h\]\(airquality\.curve\.h\)/);
   });
 });
@@ -124,15 +124,15 @@ describe('reportMarkdown model section', () => {
   }
 
   it('a robust fit of MASS::mcycle names Huber, k and the down-weighted rows by CSV line', async () => {
-    const r = await reportFor('mcycle.csv', 'times', 'accel', { family: 'natural', candidates: [8], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1, robust: true });
+    const r = await reportFor('mcycle.csv', 'times', 'accel', { kind: 'natural-spline', candidates: [8], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1, robust: true });
     assert.match(r, /## Model\n\n- Outcome: Gaussian \(least squares\)/);
     assert.match(r, /- Robust fit: Huber M-estimation, k = 1\.345, robust scale [0-9.]+; \d+ rows down-weighted: line \d+ \(weight 0\.\d+\)/);
   });
 
   it('a shape-constrained fit says which shape and how many constraints are active; a plain fit has no model section', async () => {
-    const shaped = await reportFor('cars.csv', 'speed', 'dist', { family: 'natural', candidates: [6], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1, shape: ['increasing'] });
+    const shaped = await reportFor('cars.csv', 'speed', 'dist', { kind: 'natural-spline', candidates: [6], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1, shape: ['increasing'] });
     assert.match(shaped, /- Shape: increasing, imposed on the B-spline coefficients so that it holds everywhere in the data range; \d+ of \d+ constraints are active/);
-    const plain = await reportFor('cars.csv', 'speed', 'dist', { family: 'natural', candidates: [6], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1 });
+    const plain = await reportFor('cars.csv', 'speed', 'dist', { kind: 'natural-spline', candidates: [6], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1 });
     assert.doesNotMatch(plain, /## Model/);
   });
 });

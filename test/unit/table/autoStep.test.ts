@@ -46,7 +46,7 @@ describe('autoStep', () => {
 
   it('autoStep meets its tolerance on a dense re-evaluation (4000 samples per interval) of a spline fitted to MASS::mcycle, and one interval fewer does not', () => {
     const { x, y } = mcycle();
-    const fit = fitCurve({ x, y }, { family: 'natural', df: 10 });
+    const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 10 });
     const f = (v: number): number => fit.curve.value(v);
     const round = (v: number): number => Number(formatNumber(v, 8));
     const [start, stop] = [fit.curve.lower, fit.curve.upper];
@@ -79,7 +79,7 @@ describe('autoStep', () => {
 });
 
 describe('resolveGrid', () => {
-  const curve: Curve = { family: 'natural', df: 3, lower: 0, upper: 2, value: (x) => x * x, varianceFactor: () => 0 };
+  const curve: Curve = { kind: 'natural-spline', df: 3, lower: 0, upper: 2, value: (x) => x * x, varianceFactor: () => 0 };
   const sorted = Float64Array.of(0, 0.5, 2);
 
   it('resolveGrid turns auto:<tolerance> into a count grid over the data range with the outcome attached', () => {

@@ -15,7 +15,7 @@ const REPO = join(__dirname, '..', '..', '..');
 const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv'), 'utf8').trim().split('\n').slice(1);
 const x = Float64Array.from(rows, (r) => Number(r.split(',')[0]));
 const y = Float64Array.from(rows, (r) => Number(r.split(',')[1]));
-const fit = fitCurve({ x, y }, { family: 'natural', df: 8 });
+const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 8 });
 /** 0, 5, ..., 60 ms (the data run from 2.4 to 57.6 ms, so 0 and 60 are extrapolated). */
 const points = Float64Array.from({ length: 13 }, (_, i) => 5 * i);
 const full = curveTable(fit, points);
@@ -82,6 +82,6 @@ describe('shapeTable', () => {
   });
 
   it('shapeTable refuses the negative column unless the quantity is declared non-negative', () => {
-    throwsInput(() => shapeTable(full, ['x', 'negative'], false), /needs the quantity declared non-negative \(--nonnegative\)/);
+    throwsInput(() => shapeTable(full, ['x', 'negative'], false), /needs the quantity declared non-negative \(--flag-negative\)/);
   });
 });

@@ -1,8 +1,8 @@
 /**
  * Tests of the curve-table grid (core/table/grid.ts): parseGrid, gridPoints, defaultGrid and
- * checkInRange. The grid forms are those of DESIGN.md capability 7 ("a grid the user
- * chooses (start/stop/step, a count, the distinct data x, or a list)") and capability 9
- * ("grid points outside the data range are refused unless extrapolation is asked for").
+ * checkInRange. The grid forms are those of docs/design.md, "Grids" (a grid the user
+ * chooses: start/stop/step, a count, the distinct data x, or a list), and "Safety"
+ * (grid points outside the data range are refused unless extrapolation is asked for).
  * Data for the `data` grid: the speeds of R's datasets::cars (Ezekiel 1930), typed in from
  * R 4.2 `cars$speed`.
  */
@@ -30,8 +30,8 @@ const finite = (min: number, max: number): fc.Arbitrary<number> => fc.double({ m
 
 describe('parseGrid', () => {
   it('parseGrid reads start:stop:count, start:stop:step=h, data and lists (sorted)', () => {
-    assert.deepEqual(parseGrid('0:10:11'), { kind: 'count', start: 0, stop: 10, count: 11 });
-    assert.deepEqual(parseGrid(' -2.5 : 7.5e1 : 3 '), { kind: 'count', start: -2.5, stop: 75, count: 3 });
+    assert.deepEqual(parseGrid('0:10:count=11'), { kind: 'count', start: 0, stop: 10, count: 11 });
+    assert.deepEqual(parseGrid(' -2.5 : 7.5e1 : count=3 '), { kind: 'count', start: -2.5, stop: 75, count: 3 });
     assert.deepEqual(parseGrid('0:1:step=0.25'), { kind: 'step', start: 0, stop: 1, step: 0.25 });
     assert.deepEqual(parseGrid('data'), { kind: 'data' });
     assert.deepEqual(parseGrid('3, 1,2.5'), { kind: 'list', values: [1, 2.5, 3] });
@@ -45,7 +45,7 @@ describe('parseGrid', () => {
 
   it('parseGrid refuses counts that are not whole numbers from 2 to the limit', () => {
     for (const count of ['1', '0', '-3', '2.5', String(MAX_GRID_POINTS + 1)]) {
-      throwsInput(() => parseGrid(`0:1:${count}`), new RegExp(`grid "0:1:${count.replace('.', '\\.')}"`), /count must be a whole number from 2/);
+      throwsInput(() => parseGrid(`0:1:count=${count}`), new RegExp(`grid "0:1:count=${count.replace('.', '\\.')}"`), /count must be a whole number from 2/);
     }
   });
 
@@ -59,7 +59,7 @@ describe('parseGrid', () => {
   it('parseGrid names the part that is not a number', () => {
     throwsInput(() => parseGrid('a:10:5'), /grid "a:10:5": start "a" is not a number/);
     throwsInput(() => parseGrid('0:b:5'), /stop "b" is not a number/);
-    throwsInput(() => parseGrid('0:10:many'), /count "many" is not a number/);
+    throwsInput(() => parseGrid('0:10:count=many'), /count "many" is not a number/);
     throwsInput(() => parseGrid('0:Infinity:5'), /stop "Infinity" is not a number/);
     throwsInput(() => parseGrid('1,,2'), /grid "1,,2": value "" is not a number/);
     throwsInput(() => parseGrid('1,NaN'), /value "NaN" is not a number/);
@@ -67,6 +67,8 @@ describe('parseGrid', () => {
     // Two parts are neither a range nor a list of numbers.
     throwsInput(() => parseGrid('0:10'), /grid "0:10": value "0:10" is not a number/);
     throwsInput(() => parseGrid('0:10:5:2'), /is not a number/);
+    // A bare third field is ambiguous (a count to some, a step to others): refused with the accepted forms.
+    throwsInput(() => parseGrid('10:94:2'), /grid "10:94:2": the third field must say what it is/, /count=<n>/, /step=<h>/, /auto=<tolerance>/);
   });
 });
 
@@ -173,7 +175,7 @@ describe('parseGrid auto and formatGrid', () => {
   });
 
   it('formatGrid is the inverse of parseGrid for every kind', () => {
-    for (const text of ['0:10:11', '-2.5:75:step=0.25', 'data', '1,2.5,4', 'auto:0.001', '10:90:auto=0.5', '0.1:0.30000000000000004:3']) {
+    for (const text of ['0:10:count=11', '-2.5:75:step=0.25', 'data', '1,2.5,4', 'auto:0.001', '10:90:auto=0.5', '0.1:0.30000000000000004:count=3']) {
       const spec = parseGrid(text);
       assert.deepEqual(parseGrid(formatGrid(spec)), spec, text);
     }

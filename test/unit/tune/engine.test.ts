@@ -4,7 +4,7 @@
  * (core/tune/tune.ts: inlineRunner; core/node/pool.ts: workerRunner).
  *
  * The natural-spline engine fits every candidate from per-cell weighted power sums
- * (DESIGN.md, Scale). Here each resample's errors are recomputed by brute force: a weighted
+ * (docs/design.md, "Power sums"). Here each resample's errors are recomputed by brute force: a weighted
  * least-squares fit of the same natural-spline basis (knots from all rows), assembled row by
  * row with fitRowBasis, with the bootstrap multiplicities (or the fold mask) as weights, and
  * evaluated on the out-of-bag (or held-out fold) rows. Polynomials are refitted from scratch
@@ -29,10 +29,11 @@ import { prepareData } from '../../../core/fit/prepared';
 import { nullSpace } from '../../../core/linalg/nullSpace';
 import { workerRunner } from '../../../core/node/pool';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../../../core/tune/engine';
-import { bootstrapCounts, foldLabels, orderByX } from '../../../core/tune/plan';
+import { bootstrapCounts, foldLabels } from '../../../core/registry/resampling/index';
+import { orderByX } from '../../../core/tune/plan';
 import { inlineRunner } from '../../../core/tune/tune';
 import type { Progress, ResampleSpec } from '../../../core/tune/types';
-import type { Family } from '../../../core/types';
+import type { CurveKindId } from '../../../core/types';
 
 const REL = 1e-9;
 const ABS_FLOOR = 1e-12;
@@ -96,9 +97,9 @@ function errorsOn(test: readonly number[], pred: (i: number) => number, d: Data)
  * Brute-force errors of one candidate: trains on `trainWeights` (0 = not in training) and
  * measures on `test`. NaN when the training rows cannot determine the fit (FitError).
  */
-function bruteErrors(d: Data, family: Family, df: number, trainWeights: Float64Array, test: readonly number[]): [number, number, number] {
+function bruteErrors(d: Data, kind: CurveKindId, df: number, trainWeights: Float64Array, test: readonly number[]): [number, number, number] {
   try {
-    if (family === 'natural') {
+    if (kind === 'natural-spline') {
       const all = prepareData({ x: d.x, y: d.y });
       const k = naturalKnots(all.sortedX, all.distinct, df);
       const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
@@ -112,7 +113,7 @@ function bruteErrors(d: Data, family: Family, df: number, trainWeights: Float64A
     for (let i = 0; i < d.x.length; i++) if ((trainWeights[i] as number) > 0) idx.push(i);
     const pick = (a: Float64Array): Float64Array => Float64Array.from(idx, (i) => a[i] as number);
     const train = { x: pick(d.x), y: pick(d.y), w: pick(trainWeights) };
-    const fit = family === 'smooth' ? smoothingSplineAtLambda(train, lambdaForDf({ x: d.x, y: d.y, w: d.w }, df)) : fitPolynomial(prepareData(train), df);
+    const fit = kind === 'smoothing-spline' ? smoothingSplineAtLambda(train, lambdaForDf({ x: d.x, y: d.y, w: d.w }, df)) : fitPolynomial(prepareData(train), df);
     return errorsOn(test, (i) => fit.curve.value(d.x[i] as number), d);
   } catch (e) {
     if (e instanceof FitError) return [NaN, NaN, NaN];
@@ -125,14 +126,14 @@ function resampleRows(d: Data, spec: ResampleSpec, seed: number, r: number): { t
   const n = d.x.length;
   const train = new Float64Array(n);
   const test: number[] = [];
-  if (spec.kind === 'boot') {
+  if (spec.kind === 'bootstrap') {
     const counts = new Uint32Array(n);
     bootstrapCounts(n, seed, r, counts);
     for (let i = 0; i < n; i++) {
       train[i] = (counts[i] as number) * (d.w ? (d.w[i] as number) : 1);
       if (counts[i] === 0) test.push(i);
     }
-  } else if (spec.kind === 'cv') {
+  } else if (spec.kind === 'folds') {
     const labels = new Uint16Array(n);
     foldLabels(orderByX(d.x), spec.folds, seed, Math.floor(r / spec.folds), labels);
     const fold = r % spec.folds;
@@ -144,20 +145,20 @@ function resampleRows(d: Data, spec: ResampleSpec, seed: number, r: number): { t
   return { train, test };
 }
 
-function problemOf(d: Data, family: Family, dfs: readonly number[], resample: ResampleSpec, seed: number): ResampleProblem {
-  const lambdas = family === 'smooth' ? dfs.map((df) => lambdaForDf({ x: d.x, y: d.y, w: d.w }, df)) : undefined;
-  return { x: d.x, y: d.y, w: d.w, family, dfs, lambdas, resample, seed, order: orderByX(d.x) };
+function problemOf(d: Data, kind: CurveKindId, dfs: readonly number[], resample: ResampleSpec, seed: number): ResampleProblem {
+  const lambdas = kind === 'smoothing-spline' ? dfs.map((df) => lambdaForDf({ x: d.x, y: d.y, w: d.w }, df)) : undefined;
+  return { x: d.x, y: d.y, w: d.w, kind, dfs, params: lambdas, resample, seed, order: orderByX(d.x) };
 }
 
 /**
  * Runs every resample through the engine and through the brute force, and compares. Returns
  * the number of (resample, candidate) pairs compared and how many were rank deficient.
  */
-function compareWithBruteForce(d: Data, family: Family, dfs: readonly number[], resample: ResampleSpec, seed: number): { compared: number; deficient: number } {
-  const engine = new ResampleEngine(problemOf(d, family, dfs, resample, seed));
+function compareWithBruteForce(d: Data, kind: CurveKindId, dfs: readonly number[], resample: ResampleSpec, seed: number): { compared: number; deficient: number } {
+  const engine = new ResampleEngine(problemOf(d, kind, dfs, resample, seed));
   const C = dfs.length;
   assert.equal(engine.size, C);
-  const count = resample.kind === 'boot' ? resample.resamples : resample.kind === 'cv' ? resample.folds * resample.repeats : 0;
+  const count = resample.kind === 'bootstrap' ? resample.resamples : resample.kind === 'folds' ? resample.folds * resample.repeats : 0;
   const out = new Float64Array(C * ERRORS_PER_CANDIDATE);
   const floor = ABS_FLOOR * sd(d.y);
   let compared = 0;
@@ -166,13 +167,13 @@ function compareWithBruteForce(d: Data, family: Family, dfs: readonly number[], 
     engine.run(r, out);
     const { train, test } = resampleRows(d, resample, seed, r);
     dfs.forEach((df, k) => {
-      const brute = bruteErrors(d, family, df, train, test);
+      const brute = bruteErrors(d, kind, df, train, test);
       const got = [out[k], out[C + k], out[2 * C + k]] as number[];
       const names = ['RMSE', 'MAE', 'max abs'];
       for (let m = 0; m < 3; m++) {
         const b = brute[m] as number;
         const g = got[m] as number;
-        const where = `${d.name}, ${family} df ${df}, ${resample.kind} resample ${r}, ${names[m]}`;
+        const where = `${d.name}, ${kind} df ${df}, ${resample.kind} resample ${r}, ${names[m]}`;
         if (Number.isNaN(b)) {
           assert.ok(Number.isNaN(g), `${where}: brute force is rank deficient but the engine gave ${g}`);
         } else {
@@ -215,19 +216,19 @@ const dataArb = fc
 
 describe('ResampleEngine (natural spline, power sums) against brute-force refits', () => {
   it('ResampleEngine(natural, boot) gives every resample and candidate the brute-force out-of-bag RMSE, MAE and max error (mcycle)', () => {
-    const r = compareWithBruteForce(MCYCLE, 'natural', [2, 3, 4, 5, 6, 7, 8, 9, 10, 12], { kind: 'boot', resamples: 25 }, 2024);
+    const r = compareWithBruteForce(MCYCLE, 'natural-spline', [2, 3, 4, 5, 6, 7, 8, 9, 10, 12], { kind: 'bootstrap', resamples: 25 }, 2024);
     assert.equal(r.compared, 250);
     assert.equal(r.deficient, 0, 'mcycle supports df up to 12 in every resample');
   });
 
   it('ResampleEngine(natural, boot) agrees with brute force under prior weights and tied x (cars, w = 1/speed)', () => {
-    compareWithBruteForce(CARS_W, 'natural', [2, 3, 4, 5, 6], { kind: 'boot', resamples: 30 }, 7);
+    compareWithBruteForce(CARS_W, 'natural-spline', [2, 3, 4, 5, 6], { kind: 'bootstrap', resamples: 30 }, 7);
   });
 
   it('ResampleEngine(natural, cv) gives every fold and candidate the brute-force held-out errors (mcycle 10-fold x 2, cars 5-fold)', () => {
-    // Training sums are total minus fold (DESIGN.md, Scale); the brute force refits each fold.
-    compareWithBruteForce(MCYCLE, 'natural', [2, 4, 6, 8, 10], { kind: 'cv', folds: 10, repeats: 2 }, 99);
-    compareWithBruteForce(CARS_W, 'natural', [2, 3, 5], { kind: 'cv', folds: 5, repeats: 1 }, 3);
+    // Training sums are total minus fold (docs/design.md, "Power sums"); the brute force refits each fold.
+    compareWithBruteForce(MCYCLE, 'natural-spline', [2, 4, 6, 8, 10], { kind: 'folds', folds: 10, repeats: 2 }, 99);
+    compareWithBruteForce(CARS_W, 'natural-spline', [2, 3, 5], { kind: 'folds', folds: 5, repeats: 1 }, 3);
   });
 
   it('ResampleEngine(natural) agrees with brute force on seeded random data (boot and cv, with and without weights)', () => {
@@ -235,12 +236,12 @@ describe('ResampleEngine (natural spline, power sums) against brute-force refits
       fc.property(
         dataArb,
         fc.uniqueArray(fc.integer({ min: 2, max: 9 }), { minLength: 1, maxLength: 4 }),
-        fc.constantFrom<ResampleSpec>({ kind: 'boot', resamples: 4 }, { kind: 'cv', folds: 5, repeats: 1 }, { kind: 'cv', folds: 3, repeats: 2 }),
+        fc.constantFrom<ResampleSpec>({ kind: 'bootstrap', resamples: 4 }, { kind: 'folds', folds: 5, repeats: 1 }, { kind: 'folds', folds: 3, repeats: 2 }),
         ({ d, seed }, dfs, resample) => {
           const distinct = new Set(d.x).size;
           const usable = dfs.filter((df) => df <= distinct);
           fc.pre(usable.length > 0);
-          compareWithBruteForce(d, 'natural', usable, resample, seed);
+          compareWithBruteForce(d, 'natural-spline', usable, resample, seed);
         },
       ),
       { numRuns: 40, seed: 5150 },
@@ -250,11 +251,11 @@ describe('ResampleEngine (natural spline, power sums) against brute-force refits
 
 describe('ResampleEngine (polynomial) against fitPolynomial refits', () => {
   it('ResampleEngine(poly, boot) gives the errors of polynomials refitted on the bootstrap rows (mcycle, df 1..7)', () => {
-    compareWithBruteForce(MCYCLE, 'poly', [1, 2, 3, 4, 5, 6, 7], { kind: 'boot', resamples: 15 }, 31);
+    compareWithBruteForce(MCYCLE, 'polynomial', [1, 2, 3, 4, 5, 6, 7], { kind: 'bootstrap', resamples: 15 }, 31);
   });
 
   it('ResampleEngine(poly, cv) gives the errors of polynomials refitted without each fold (cars, w = 1/speed)', () => {
-    compareWithBruteForce(CARS_W, 'poly', [1, 2, 3, 4], { kind: 'cv', folds: 5, repeats: 2 }, 8);
+    compareWithBruteForce(CARS_W, 'polynomial', [1, 2, 3, 4], { kind: 'folds', folds: 5, repeats: 2 }, 8);
   });
 });
 
@@ -332,7 +333,7 @@ describe('foldLabels and bootstrapCounts', () => {
 });
 
 /** Problem large enough for threads: 30,000 rows x 10 resamples (above the inline limit of the pool). */
-function bigProblem(family: Family, dfs: readonly number[], resamples: number, seed: number): ResampleProblem {
+function bigProblem(kind: CurveKindId, dfs: readonly number[], resamples: number, seed: number): ResampleProblem {
   const n = 30_000;
   const x = new Float64Array(n);
   const y = new Float64Array(n);
@@ -341,7 +342,7 @@ function bigProblem(family: Family, dfs: readonly number[], resamples: number, s
     x[i] = ((i * 0.6180339887498949) % 1) * 100;
     y[i] = Math.sin((x[i] as number) / 10) * 5 + 0.5 * Math.sin(i * 12.9898);
   }
-  return { x, y, family, dfs, resample: { kind: 'boot', resamples }, seed, order: orderByX(x) };
+  return { x, y, kind, dfs, resample: { kind: 'bootstrap', resamples }, seed, order: orderByX(x) };
 }
 
 function recorder(cancelAfter = Infinity): Progress & { reports: [number, number][] } {
@@ -358,20 +359,20 @@ function recorder(cancelAfter = Infinity): Progress & { reports: [number, number
 describe('runners', () => {
   it('inlineRunner gives identical results for the same seed and different ones for another seed', async () => {
     // Tolerance 0: the same operations on the same inputs must give the same doubles.
-    const p = problemOf(MCYCLE, 'natural', [3, 5, 7], { kind: 'cv', folds: 5, repeats: 2 }, 17);
+    const p = problemOf(MCYCLE, 'natural-spline', [3, 5, 7], { kind: 'folds', folds: 5, repeats: 2 }, 17);
     const a = await inlineRunner.run(p, 10);
     const b = await inlineRunner.run(p, 10);
     assert.deepEqual(a, b);
     const c = await inlineRunner.run({ ...p, seed: 18 }, 10);
     const differs = a.some((e, r) => e.some((v, j) => Math.abs(v - ((c[r] as Float64Array)[j] as number)) > 1e-6 * Math.abs(v)));
     assert.ok(differs, 'another seed gives other folds and other errors');
-    const boot = problemOf(MCYCLE, 'natural', [4], { kind: 'boot', resamples: 5 }, 17);
+    const boot = problemOf(MCYCLE, 'natural-spline', [4], { kind: 'bootstrap', resamples: 5 }, 17);
     assert.deepEqual(await inlineRunner.run(boot, 5), await inlineRunner.run(boot, 5));
   });
 
   it('workerRunner gives results identical to inlineRunner on 30,000 rows x 10 resamples, in resample order, with progress', async function () {
     this.timeout(120_000);
-    const p = bigProblem('natural', [2, 3, 4, 5, 6, 7, 8, 9, 10, 11], 10, 77);
+    const p = bigProblem('natural-spline', [2, 3, 4, 5, 6, 7, 8, 9, 10, 11], 10, 77);
     const created: workerThreads.Worker[] = [];
     const Original = workerThreads.Worker;
     // Count the threads the pool starts (it must not fall back to inline for this size).
@@ -405,7 +406,7 @@ describe('runners', () => {
     this.timeout(120_000);
     // Polynomial refits are O(n p^2) per resample, so 200 resamples keep two threads busy for
     // seconds; the run is cancelled as soon as the first resample is reported.
-    const p = bigProblem('poly', [1, 2, 3, 4, 5, 6, 7, 8], 200, 5);
+    const p = bigProblem('polynomial', [1, 2, 3, 4, 5, 6, 7, 8], 200, 5);
     const exits: Promise<number>[] = [];
     const Original = workerThreads.Worker;
     workerThreads.Worker = class extends Original {
@@ -428,7 +429,7 @@ describe('runners', () => {
   });
 
   it('inlineRunner rejects with CancelledError when cancelled', async () => {
-    const p = problemOf(MCYCLE, 'natural', [3, 5], { kind: 'boot', resamples: 20 }, 1);
+    const p = problemOf(MCYCLE, 'natural-spline', [3, 5], { kind: 'bootstrap', resamples: 20 }, 1);
     const progress = recorder(3);
     await assert.rejects(inlineRunner.run(p, 20, progress), CancelledError);
     assert.equal(progress.reports.length, 3);
@@ -437,11 +438,11 @@ describe('runners', () => {
 
 describe('ResampleEngine with the cubic smoothing spline', () => {
   it('ResampleEngine(smooth, boot) gives the errors of smoothing splines refitted at the all-row lambda on the bootstrap rows (mcycle, df 4 and 8)', () => {
-    const r = compareWithBruteForce(MCYCLE, 'smooth', [4, 8], { kind: 'boot', resamples: 4 }, 11);
+    const r = compareWithBruteForce(MCYCLE, 'smoothing-spline', [4, 8], { kind: 'bootstrap', resamples: 4 }, 11);
     assert.ok(r.compared >= 8);
   });
   it('ResampleEngine(smooth, cv) gives the errors of smoothing splines refitted on the training folds (cars with weights 1/speed, df 3 and 5)', () => {
-    const r = compareWithBruteForce(CARS_W, 'smooth', [3, 5], { kind: 'cv', folds: 5, repeats: 1 }, 2);
+    const r = compareWithBruteForce(CARS_W, 'smoothing-spline', [3, 5], { kind: 'folds', folds: 5, repeats: 1 }, 2);
     assert.ok(r.compared >= 10);
   });
 });

@@ -2,7 +2,7 @@
  * Properties of selectDf (core/tune/rules.ts) over random candidate tables, checked with
  * fast-check (fixed seeds, so every run sees the same cases), plus one worked example.
  *
- * The rules are those of issue #3 and DESIGN.md capability 5: lowest mean error; the
+ * The rules are those of issue #3 and docs/design.md, "Selection rules": lowest mean error; the
  * one-standard-error rule (Breiman, Friedman, Olshen & Stone 1984, Classification and
  * Regression Trees; Hastie, Tibshirani & Friedman 2009, The Elements of
  * Statistical Learning, 2nd ed., section 7.10); the tolerance rule (smallest df whose mean
@@ -15,8 +15,8 @@ import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import { InputError } from '../../../core/errors';
 import { selectDf } from '../../../core/tune/rules';
-import { parseRule } from '../../../core/spec';
 import type { CandidateResult, ErrorSummary, RuleSpec } from '../../../core/tune/types';
+import { parseRule } from '../../../core/registry/rules/index';
 
 const RUNS = 300;
 const SEED = 20250301;
@@ -73,13 +73,13 @@ function reference(rows: readonly Row[], rule: RuleSpec): number {
   const minMean = Math.min(...ok.map((r) => r.mean));
   const best = ok.find((r) => r.mean === minMean) as Row; // smallest df among the tied lowest
   switch (rule.kind) {
-    case 'lowest':
+    case 'least-error':
       return best.df;
-    case '1se':
+    case 'one-se':
       return (ok.find((r) => r.mean <= best.mean + best.se) as Row).df;
-    case 'tol':
+    case 'simplest-within':
       return (ok.find((r) => r.mean <= best.mean * (1 + rule.percent / 100)) as Row).df;
-    case 'manual':
+    case 'pick':
       return rule.df;
   }
 }
@@ -88,44 +88,44 @@ function reference(rows: readonly Row[], rule: RuleSpec): number {
 const three = (v: number): string => String(Number(v.toPrecision(3)));
 
 describe('selectDf', () => {
-  it('selectDf(1se) is never more complex than selectDf(lowest) and matches the definition', () => {
+  it('selectDf(one-se) is never more complex than selectDf(lowest) and matches the definition', () => {
     // Source: ESL 2nd ed. section 7.10 / Breiman et al. 1984: the simplest model whose error
     // is within one SE of the lowest; the lowest itself always qualifies, so df(1se) <= df(lowest).
     fc.assert(
       fc.property(tableArb, (rows) => {
         const cands = toCandidates(rows);
-        const low = selectDf(cands, { kind: 'lowest' }, 'rmse');
-        const one = selectDf(cands, { kind: '1se' }, 'rmse');
+        const low = selectDf(cands, { kind: 'least-error' }, 'rmse');
+        const one = selectDf(cands, { kind: 'one-se' }, 'rmse');
         assert.ok(one.df <= low.df, `1se chose df ${one.df}, lowest chose df ${low.df}`);
-        assert.equal(low.df, reference(rows, { kind: 'lowest' }));
-        assert.equal(one.df, reference(rows, { kind: '1se' }));
+        assert.equal(low.df, reference(rows, { kind: 'least-error' }));
+        assert.equal(one.df, reference(rows, { kind: 'one-se' }));
       }),
       { numRuns: RUNS, seed: SEED },
     );
   });
 
-  it('selectDf(tol:0) gives the lowest-error choice', () => {
+  it('selectDf(simplest-within:0) gives the lowest-error choice', () => {
     // Source: definition of the tolerance rule (issue #3): within 0 % of the lowest means equal to it.
     fc.assert(
       fc.property(tableArb, (rows) => {
         const cands = toCandidates(rows);
-        assert.equal(selectDf(cands, { kind: 'tol', percent: 0 }, 'rmse').df, selectDf(cands, { kind: 'lowest' }, 'rmse').df);
+        assert.equal(selectDf(cands, { kind: 'simplest-within', percent: 0 }, 'rmse').df, selectDf(cands, { kind: 'least-error' }, 'rmse').df);
       }),
       { numRuns: RUNS, seed: SEED + 1 },
     );
   });
 
-  it('selectDf(tol:p) never chooses a larger df as p grows, and matches the definition', () => {
+  it('selectDf(simplest-within:p) never chooses a larger df as p grows, and matches the definition', () => {
     // Source: definition of the tolerance rule (issue #3): a larger tolerance admits a superset
     // of candidates, so the smallest admitted df cannot grow.
     fc.assert(
-      fc.property(tableArb, fc.double({ min: 0, max: 200, noNaN: true }), fc.double({ min: 0, max: 200, noNaN: true }), (rows, p1, p2) => {
+      fc.property(tableArb, fc.double({ min: 0, max: 100, noNaN: true }), fc.double({ min: 0, max: 100, noNaN: true }), (rows, p1, p2) => {
         const [lo, hi] = p1 <= p2 ? [p1, p2] : [p2, p1];
         const cands = toCandidates(rows);
-        const a = selectDf(cands, { kind: 'tol', percent: lo }, 'rmse');
-        const b = selectDf(cands, { kind: 'tol', percent: hi }, 'rmse');
-        assert.ok(b.df <= a.df, `tol:${hi} chose df ${b.df}, tol:${lo} chose df ${a.df}`);
-        assert.equal(a.df, reference(rows, { kind: 'tol', percent: lo }));
+        const a = selectDf(cands, { kind: 'simplest-within', percent: lo }, 'rmse');
+        const b = selectDf(cands, { kind: 'simplest-within', percent: hi }, 'rmse');
+        assert.ok(b.df <= a.df, `simplest-within:${hi} chose df ${b.df}, simplest-within:${lo} chose df ${a.df}`);
+        assert.equal(a.df, reference(rows, { kind: 'simplest-within', percent: lo }));
       }),
       { numRuns: RUNS, seed: SEED + 2 },
     );
@@ -141,7 +141,7 @@ describe('selectDf', () => {
         (dfs, mean, se) => {
           const cands = toCandidates(dfs.map((df) => ({ df, kind: 'ok' as const, mean, se })));
           const smallest = Math.min(...dfs);
-          for (const rule of [{ kind: 'lowest' }, { kind: '1se' }, { kind: 'tol', percent: 0 }, { kind: 'tol', percent: 5 }] as RuleSpec[]) {
+          for (const rule of [{ kind: 'least-error' }, { kind: 'one-se' }, { kind: 'simplest-within', percent: 0 }, { kind: 'simplest-within', percent: 5 }] as RuleSpec[]) {
             assert.equal(selectDf(cands, rule, 'rmse').df, smallest, `rule ${rule.kind}`);
           }
         },
@@ -154,14 +154,14 @@ describe('selectDf', () => {
     // Source: issue #3, "Every selection returns a plain-language explanation with its numbers"
     // and "The explanation also says what the other rules would have chosen".
     fc.assert(
-      fc.property(tableArb, fc.constantFrom<RuleSpec>({ kind: 'lowest' }, { kind: '1se' }, { kind: 'tol', percent: 2 }, { kind: 'tol', percent: 10 }), (rows, rule) => {
+      fc.property(tableArb, fc.constantFrom<RuleSpec>({ kind: 'least-error' }, { kind: 'one-se' }, { kind: 'simplest-within', percent: 2 }, { kind: 'simplest-within', percent: 10 }), (rows, rule) => {
         const cands = toCandidates(rows);
         const s = selectDf(cands, rule, 'rmse');
         const ok = rows.filter((r) => r.kind === 'ok');
         const bestMean = Math.min(...ok.map((r) => r.mean));
         const chosen = ok.find((r) => r.df === s.df) as Row;
-        assert.ok(s.reason.includes(`Lowest mean RMSE ${three(bestMean)} at df `), s.reason);
-        if (rule.kind === 'lowest') {
+        assert.ok(s.reason.includes(`Least mean RMSE ${three(bestMean)} at df `), s.reason);
+        if (rule.kind === 'least-error') {
           assert.ok(s.reason.includes(`so df ${s.df} is chosen.`), s.reason);
         } else {
           assert.ok(s.threshold !== undefined, 'threshold recorded');
@@ -179,30 +179,30 @@ describe('selectDf', () => {
     );
   });
 
-  it('selectDf(manual) records a hand-chosen df as such, even when another rule would differ', () => {
+  it('selectDf(pick) records a hand-chosen df as such, even when another rule would differ', () => {
     // Source: issue #3, "a df chosen by the person, recorded as such".
     fc.assert(
       fc.property(tableArb, fc.nat(), (rows, pick) => {
         const ok = rows.filter((r) => r.kind === 'ok');
         const df = (ok[pick % ok.length] as Row).df;
-        const s = selectDf(toCandidates(rows), { kind: 'manual', df }, 'rmse');
+        const s = selectDf(toCandidates(rows), { kind: 'pick', df }, 'rmse');
         assert.equal(s.df, df);
-        assert.deepEqual(s.rule, { kind: 'manual', df });
-        assert.ok(s.reason.includes(`df ${df} was chosen by hand`), s.reason);
+        assert.deepEqual(s.rule, { kind: 'pick', df });
+        assert.ok(s.reason.includes(`df ${df} was picked by the person`), s.reason);
         assert.equal(s.threshold, undefined);
       }),
       { numRuns: RUNS, seed: SEED + 5 },
     );
   });
 
-  it('selectDf(manual) refuses a df that is not an evaluated candidate, naming the candidates', () => {
+  it('selectDf(pick) refuses a df that is not an evaluated candidate, naming the candidates', () => {
     const cands = toCandidates([
       { df: 3, kind: 'ok', mean: 1, se: 0.1 },
       { df: 5, kind: 'ok', mean: 0.9, se: 0.1 },
       { df: 7, kind: 'skipped', mean: 0, se: 0 },
     ]);
-    assert.throws(() => selectDf(cands, { kind: 'manual', df: 4 }, 'rmse'), (e: unknown) => e instanceof InputError && /df 4 .*candidates: 3, 5/.test(e.message));
-    assert.throws(() => selectDf(cands, { kind: 'manual', df: 7 }, 'rmse'), (e: unknown) => e instanceof InputError && /df 7/.test(e.message));
+    assert.throws(() => selectDf(cands, { kind: 'pick', df: 4 }, 'rmse'), (e: unknown) => e instanceof InputError && /df 4 .*candidates: 3, 5/.test(e.message));
+    assert.throws(() => selectDf(cands, { kind: 'pick', df: 7 }, 'rmse'), (e: unknown) => e instanceof InputError && /df 7/.test(e.message));
   });
 
   it('selectDf throws an InputError listing the skip reasons when no candidate is usable', () => {
@@ -210,7 +210,7 @@ describe('selectDf', () => {
       fc.property(fc.uniqueArray(fc.integer({ min: 1, max: 40 }), { minLength: 1, maxLength: 8 }), fc.array(fc.boolean(), { minLength: 8, maxLength: 8 }), (dfs, skip) => {
         const rows: Row[] = dfs.map((df, i) => ({ df, kind: skip[i] ? 'skipped' : 'nan', mean: 1, se: 0.1 }));
         const cands = toCandidates(rows);
-        for (const rule of [{ kind: 'lowest' }, { kind: '1se' }, { kind: 'tol', percent: 2 }] as RuleSpec[]) {
+        for (const rule of [{ kind: 'least-error' }, { kind: 'one-se' }, { kind: 'simplest-within', percent: 2 }] as RuleSpec[]) {
           assert.throws(
             () => selectDf(cands, rule, 'rmse'),
             (e: unknown) => e instanceof InputError && /no candidate df could be evaluated/.test(e.message) && rows.filter((r) => r.kind === 'skipped').every((r) => e.message.includes(`df ${r.df}:`)),
@@ -219,54 +219,58 @@ describe('selectDf', () => {
       }),
       { numRuns: 100, seed: SEED + 6 },
     );
-    assert.throws(() => selectDf([], { kind: '1se' }, 'rmse'), InputError);
+    assert.throws(() => selectDf([], { kind: 'one-se' }, 'rmse'), InputError);
   });
 
-  it('selectDf(tol) refuses a negative or non-finite percentage', () => {
+  it('selectDf(simplest-within) refuses a negative, non-finite or over-100 percentage', () => {
     const cands = toCandidates([{ df: 3, kind: 'ok', mean: 1, se: 0.1 }]);
-    for (const percent of [-1, NaN, Infinity]) {
-      assert.throws(() => selectDf(cands, { kind: 'tol', percent }, 'rmse'), (e: unknown) => e instanceof InputError && /tolerance/.test(e.message), `percent ${percent}`);
+    for (const percent of [-1, NaN, Infinity, 150]) {
+      assert.throws(() => selectDf(cands, { kind: 'simplest-within', percent }, 'rmse'), (e: unknown) => e instanceof InputError && /tolerance/.test(e.message), `percent ${percent}`);
     }
   });
 
-  it('selectDf(1se) falls back to the lowest mean, and says so, when the metric has no SE (GCV)', () => {
+  it('selectDf(one-se) falls back to the lowest mean, and says so, when the metric has no SE (GCV)', () => {
     // GCV is one number per candidate (no resamples), so there is no SE to add.
     const cands: CandidateResult[] = [2, 3, 4].map((df, i) => ({ df, errors: { gcv: summary([3, 1, 2][i] as number, NaN) } }));
-    const s = selectDf(cands, { kind: '1se' }, 'gcv');
+    const s = selectDf(cands, { kind: 'one-se' }, 'gcv');
     assert.equal(s.df, 3);
     assert.equal(s.metric, 'gcv');
     assert.ok(/does not have here/.test(s.reason) && s.reason.includes('GCV score'), s.reason);
   });
 
-  it('selectDf(1se) reproduces the sentence of issue #3 on an ESL 7.10-style table', () => {
+  it('selectDf(one-se) reproduces the sentence of issue #3 on an ESL 7.10-style table', () => {
     // Illustrative candidate table in the style of ESL 2nd ed. section 7.10 (error against
     // complexity with one-SE bars): the numbers are built so that the lowest mean RMSE is 0.301
     // at df 9 with SE 0.006, df 5 is the smallest df within one SE, and df 2..4 are above it.
-    // The expected sentence is quoted verbatim from issue #3.
+    // The expected sentence follows issue #3, in the words of the rules registry.
     const means = new Map([
       [2, 0.52], [3, 0.41], [4, 0.33], [5, 0.305], [6, 0.304], [7, 0.303], [8, 0.302], [9, 0.301], [10, 0.302], [11, 0.304], [12, 0.306],
     ]);
     const cands: CandidateResult[] = [...means].map(([df, mean]) => ({ df, errors: { rmse: summary(mean, df === 9 ? 0.006 : 0.007) } }));
-    const s = selectDf(cands, { kind: '1se' }, 'rmse');
+    const s = selectDf(cands, { kind: 'one-se' }, 'rmse');
     assert.equal(s.df, 5);
     assert.ok(s.threshold !== undefined && Math.abs(s.threshold - 0.307) < 1e-12, `threshold ${s.threshold} (tolerance 1e-12)`);
-    const issue3 = 'Lowest mean RMSE 0.301 at df 9 (SE 0.006). One-SE threshold 0.307. The smallest df at or under it is 5 (0.305), chosen.';
+    // The sentence of issue #3, in today's words ("least" where it said "lowest").
+    const issue3 = 'Least mean RMSE 0.301 at df 9 (SE 0.006). One-SE threshold 0.307. The smallest df at or under it is 5 (0.305), chosen.';
     assert.ok(s.reason.startsWith(issue3), s.reason);
     // The other rules on the same table: lowest -> 9; within 2 % (threshold 0.30702) -> 5.
     assert.deepEqual(
       s.alternatives.map((a) => [a.rule.kind, a.df]),
-      [['lowest', 9], ['tol', 5]],
+      [['least-error', 9], ['simplest-within', 5]],
     );
-    assert.ok(s.reason.includes('lowest mean error → df 9'), s.reason);
+    assert.ok(s.reason.includes('least mean error → df 9'), s.reason);
   });
 });
 
 describe('parseRule', () => {
-  it('parseRule reads lowest, 1se, tol:<p> and df:<k>, and names the forms on bad input', () => {
-    assert.deepEqual(parseRule('lowest'), { kind: 'lowest' });
-    assert.deepEqual(parseRule('1se'), { kind: '1se' });
-    assert.deepEqual(parseRule('tol:2.5'), { kind: 'tol', percent: 2.5 });
-    assert.deepEqual(parseRule('df:7'), { kind: 'manual', df: 7 });
-    assert.throws(() => parseRule('best'), /use lowest, 1se, tol:<percent> \(e\.g\. tol:2\) or df:<k>/);
+  it('parseRule reads one-se, least-error, simplest-within:<p> and pick:<df>, and names the forms on bad input', () => {
+    assert.deepEqual(parseRule('least-error'), { kind: 'least-error' });
+    assert.deepEqual(parseRule('one-se'), { kind: 'one-se' });
+    assert.deepEqual(parseRule('simplest-within:2.5'), { kind: 'simplest-within', percent: 2.5 });
+    assert.deepEqual(parseRule('pick:7'), { kind: 'pick', df: 7 });
+    assert.throws(() => parseRule('best'), /use one-se, simplest-within:<percent>, least-error, pick:<df>/);
+    // The old spellings are gone (nothing was released, so there are no aliases).
+    for (const old of ['lowest', '1se', 'tol:2', 'df:7']) assert.throws(() => parseRule(old), /is not understood/, old);
+    assert.throws(() => parseRule('simplest-within:101'), /from 0 to 100/);
   });
 });

@@ -23,7 +23,7 @@ const REL = 1e-8;
 
 interface FixtureCase {
   readonly dataset: string;
-  readonly family: string;
+  readonly kind: string;
   readonly df: number;
   readonly looRmse: number;
   readonly gcv: number;
@@ -41,7 +41,7 @@ function dataset(name: string): XYData {
 }
 
 function rCase(dataset: string, df: number): FixtureCase {
-  const c = fixture.cases.find((k) => k.dataset === dataset && k.family === 'natural' && k.df === df);
+  const c = fixture.cases.find((k) => k.dataset === dataset && k.kind === 'natural-spline' && k.df === df);
   if (!c) throw new Error(`no R case for ${dataset} natural df ${df}`);
   return c;
 }
@@ -87,9 +87,9 @@ function recorder(cancelAfter = Infinity): Progress & { reports: [number, number
 
 describe('tuneCurve', () => {
   it('tuneCurve keeps candidates above the distinct-x count as skipped, with the reason in words (cars, 19 distinct speeds)', async () => {
-    // datasets::cars has 19 distinct speeds (R: length(unique(cars$speed))); DESIGN.md: "A
-    // candidate whose df exceeds the number of distinct x values is skipped with that reason."
-    const { result, fits } = await tuneCurve(prepareData(CARS), { family: 'natural', candidates: [25, 2, 3, 20, 4], resample: { kind: 'boot', resamples: 20 }, rule: { kind: '1se' }, seed: 3 });
+    // datasets::cars has 19 distinct speeds (R: length(unique(cars$speed))); docs/design.md, "df": a
+    // candidate whose df exceeds the number of distinct x values is skipped with that reason.
+    const { result, fits } = await tuneCurve(prepareData(CARS), { kind: 'natural-spline', candidates: [25, 2, 3, 20, 4], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'one-se' }, seed: 3 });
     assert.deepEqual(
       result.candidates.map((c) => c.df),
       [2, 3, 4, 20, 25],
@@ -116,14 +116,14 @@ describe('tuneCurve', () => {
     // 7 distinct speeds and df 7: a bootstrap sample that misses one of them cannot fit 7
     // coefficients. Speeds 8 and 9 occur once each among the 15 rows, and a sample misses a
     // given row with probability (1 - 1/15)^15 = 0.355, so most samples miss at least one speed.
-    const { result } = await tuneCurve(prepareData(carsUpTo12()), { family: 'natural', candidates: [2, 3, 7], resample: { kind: 'boot', resamples: 20 }, rule: { kind: 'lowest' }, seed: 1 });
+    const { result } = await tuneCurve(prepareData(carsUpTo12()), { kind: 'natural-spline', candidates: [2, 3, 7], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'least-error' }, seed: 1 });
     const c7 = result.candidates.find((c) => c.df === 7);
     assert.match(c7?.skipped ?? '', /could not determine the curve in \d+ of 20 resamples/);
     assert.equal(result.candidates.find((c) => c.df === 2)?.skipped, undefined);
   });
 
   it('tuneCurve(loo) puts the exact leave-one-out RMSE of each candidate into errors.rmse.mean (mcycle, against R brute-force refits)', async () => {
-    const { result, fits } = await tuneCurve(prepareData(MCYCLE), { family: 'natural', candidates: [2, 3, 4, 5, 6, 7, 8], resample: { kind: 'loo' }, rule: { kind: 'lowest' }, seed: 1 });
+    const { result, fits } = await tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [2, 3, 4, 5, 6, 7, 8], resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1 });
     assert.equal(result.metric, 'rmse');
     for (const c of result.candidates) {
       const fit = fits.get(c.df);
@@ -141,7 +141,7 @@ describe('tuneCurve', () => {
   });
 
   it('tuneCurve(gcv) fills errors.gcv.mean with fit.gcv and compares GCV scores (mcycle, against R)', async () => {
-    const { result, fits } = await tuneCurve(prepareData(MCYCLE), { family: 'natural', candidates: [3, 5, 7], resample: { kind: 'gcv' }, rule: { kind: '1se' }, seed: 1 });
+    const { result, fits } = await tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [3, 5, 7], resample: { kind: 'gcv' }, rule: { kind: 'one-se' }, seed: 1 });
     assert.equal(result.metric, 'gcv');
     assert.equal(result.selected.metric, 'gcv');
     for (const c of result.candidates) {
@@ -153,26 +153,26 @@ describe('tuneCurve', () => {
       assert.equal(c.errors.rmse, undefined);
     }
     await assert.rejects(
-      tuneCurve(prepareData(MCYCLE), { family: 'natural', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'lowest' }, seed: 1, metric: 'rmse' }),
+      tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1, metric: 'rmse' }),
       (e: unknown) => e instanceof InputError && /GCV score/.test(e.message),
     );
     await assert.rejects(
-      tuneCurve(prepareData(MCYCLE), { family: 'natural', candidates: [3], resample: { kind: 'loo' }, rule: { kind: 'lowest' }, seed: 1, metric: 'gcv' }),
-      (e: unknown) => e instanceof InputError && /--resample gcv/.test(e.message),
+      tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [3], resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1, metric: 'gcv' }),
+      (e: unknown) => e instanceof InputError && /--resampling gcv/.test(e.message),
     );
   });
 
   it('tuneCurve uses the default natural candidates 2..min(12, distinct x)', async () => {
     // Issue #3 item 1: "for the natural spline, 2 up to the smaller of 12 and the number of distinct x".
-    assert.deepEqual(defaultCandidates('natural', 94), [2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12]);
-    assert.deepEqual(defaultCandidates('natural', 7), [2, 3, 4, 5, 6, 7]);
-    assert.deepEqual(defaultCandidates('natural', 2), [2]);
-    const many = await tuneCurve(prepareData(MCYCLE), { family: 'natural', resample: { kind: 'loo' }, rule: { kind: 'lowest' }, seed: 1 });
+    assert.deepEqual(defaultCandidates('natural-spline', 94), [2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12]);
+    assert.deepEqual(defaultCandidates('natural-spline', 7), [2, 3, 4, 5, 6, 7]);
+    assert.deepEqual(defaultCandidates('natural-spline', 2), [2]);
+    const many = await tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1 });
     assert.deepEqual(
       many.result.candidates.map((c) => c.df),
       [2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12],
     );
-    const few = await tuneCurve(prepareData(carsUpTo12()), { family: 'natural', resample: { kind: 'loo' }, rule: { kind: 'lowest' }, seed: 1 });
+    const few = await tuneCurve(prepareData(carsUpTo12()), { kind: 'natural-spline', resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1 });
     assert.deepEqual(
       few.result.candidates.map((c) => c.df),
       [2, 3, 4, 5, 6, 7],
@@ -180,7 +180,7 @@ describe('tuneCurve', () => {
   });
 
   it('tuneCurve records the seed and gives the same result for the same seed', async () => {
-    const opts = { family: 'natural', candidates: [3, 5, 7], resample: { kind: 'cv', folds: 5, repeats: 2 }, rule: { kind: '1se' }, seed: 12345 } as const;
+    const opts = { kind: 'natural-spline', candidates: [3, 5, 7], resample: { kind: 'folds', folds: 5, repeats: 2 }, rule: { kind: 'one-se' }, seed: 12345 } as const;
     const a = await tuneCurve(prepareData(MCYCLE), opts);
     const b = await tuneCurve(prepareData(MCYCLE), opts);
     assert.equal(a.result.seed, 12345);
@@ -191,7 +191,7 @@ describe('tuneCurve', () => {
 
   it('tuneCurve reports progress per resample and raises CancelledError when cancelled', async () => {
     const progress = recorder();
-    await tuneCurve(prepareData(MCYCLE), { family: 'natural', candidates: [3, 5], resample: { kind: 'boot', resamples: 12 }, rule: { kind: '1se' }, seed: 2 }, undefined, progress);
+    await tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [3, 5], resample: { kind: 'bootstrap', resamples: 12 }, rule: { kind: 'one-se' }, seed: 2 }, undefined, progress);
     const resamples = progress.reports.filter(([, total]) => total === 12).map(([done]) => done);
     assert.deepEqual(resamples, Array.from({ length: 12 }, (_, i) => i + 1));
     assert.ok(progress.reports.every(([, , m]) => m.length > 0), 'every report has a message');
@@ -199,7 +199,7 @@ describe('tuneCurve', () => {
     for (const after of [0, 1, 4]) {
       const cancelling = recorder(after);
       await assert.rejects(
-        tuneCurve(prepareData(MCYCLE), { family: 'natural', candidates: [3, 5], resample: { kind: 'boot', resamples: 12 }, rule: { kind: '1se' }, seed: 2 }, undefined, cancelling),
+        tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [3, 5], resample: { kind: 'bootstrap', resamples: 12 }, rule: { kind: 'one-se' }, seed: 2 }, undefined, cancelling),
         CancelledError,
         `cancelled after ${after} reports`,
       );
@@ -215,7 +215,7 @@ describe('analyse (held-out check set)', () => {
   const x = Float64Array.from({ length: n }, (_, i) => ((i * 0.6180339887498949) % 1) * 10);
   const noise = normals(4242, n);
   const clean = Float64Array.from(x, (v, i) => Math.sin(v) + 0.3 * (noise[i] as number));
-  const options = { family: 'natural', resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: '1se' }, seed, holdout: fraction } as const;
+  const options = { kind: 'natural-spline', resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'one-se' }, seed, holdout: fraction } as const;
 
   it('analyse(holdout) reports the held-out errors of the chosen fit next to the resampled estimate, without a warning when they agree', async () => {
     const a = await analyse({ x, y: clean }, options);

@@ -25,7 +25,7 @@ interface Dataset {
 interface FitsCase {
   readonly name: string;
   readonly dataset: string;
-  readonly family: 'natural' | 'poly';
+  readonly kind: 'natural-spline' | 'polynomial';
   readonly df: number;
   readonly residuals: number[];
   readonly hat: number[];
@@ -72,7 +72,7 @@ describe('fitDetail', () => {
     it(`fitDetail(${name}): the normal quantile plot shows R's rstandard and the residual figures reading minus fit`, () => {
       const c = fits.cases.find((k) => k.name === name) as FitsCase;
       const d = data(fits.datasets[c.dataset] as Dataset);
-      const detail = fitDetail(fitCurve(d, { family: c.family, df: c.df }), d);
+      const detail = fitDetail(fitCurve(d, { kind: c.kind, df: c.df }), d);
       const w = d.w;
       const rstandard = c.residuals.map((r, i) => (r * Math.sqrt(w ? (w[i] as number) : 1)) / (c.sigma * Math.sqrt(1 - (c.hat[i] as number))));
       closeAll(`${name} standardised residuals`, detail.qq.sample, sorted(rstandard));
@@ -86,7 +86,7 @@ describe('fitDetail', () => {
   it("fitDetail(discoveries Poisson df=5): deviance residuals, standardised as R's rstandard.glm, and the deviance in the model report", () => {
     const c = physics.glm.find((k) => k.name === 'discoveries poisson df=5') as GlmCase;
     const d = data(physics.datasets.discoveries as Dataset);
-    const spec: FitSpec = { family: 'natural', df: c.df, outcome: 'poisson' };
+    const spec: FitSpec = { kind: 'natural-spline', df: c.df, outcome: 'counts' };
     const detail = fitDetail(fitCurve(d, spec), d);
     assert.equal(detail.residualKind, 'deviance');
     closeAll('deviance residuals', pointsY(detail.residualsVsX), c.devianceResiduals, 1e-6);
@@ -101,7 +101,7 @@ describe('fitDetail', () => {
   it('modelReportView(mcycle robust df=8): down-weighted rows by CSV line, lowest weight first, as MASS::rlm weights them', () => {
     const c = physics.rlm.find((k) => k.name === 'mcycle huber df=8') as RlmCase;
     const d = data(physics.datasets.mcycle as Dataset);
-    const view = modelReportView(fitCurve(d, { family: 'natural', df: c.df, robust: true }), d);
+    const view = modelReportView(fitCurve(d, { kind: 'natural-spline', df: c.df, robust: true }), d);
     const r = view?.robust;
     assert.ok(r, 'robust fits list their down-weighted rows');
     // Rows with R weight below 1 (weights within 1e-6 of 1 count as 1), CSV line = index + 2.
@@ -119,10 +119,10 @@ describe('fitDetail', () => {
 
   it('modelReportView: a shape-constrained fit reports its active constraints; plain least squares has no report', () => {
     const d = data(fits.datasets.cars as Dataset);
-    const view = modelReportView(fitCurve(d, { family: 'natural', df: 5, shape: ['increasing'] }), d);
+    const view = modelReportView(fitCurve(d, { kind: 'natural-spline', df: 5, shape: ['increasing'] }), d);
     assert.ok(view?.constraints, 'constraints reported');
     assert.ok(view.constraints.total > 0 && view.constraints.active <= view.constraints.total);
     assert.ok(view.lines.some((l) => l.startsWith('Shape increasing: ')));
-    assert.equal(modelReportView(fitCurve(d, { family: 'natural', df: 5 }), d), undefined);
+    assert.equal(modelReportView(fitCurve(d, { kind: 'natural-spline', df: 5 }), d), undefined);
   });
 });

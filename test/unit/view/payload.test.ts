@@ -25,7 +25,7 @@ function data(name: string): XYData {
 const base = { runId: 7, source: { fileName: 'd.csv', xLabel: 'x', yLabel: 'y' }, rejected: 0, heldOut: 0, tolerancePercent: 2 };
 
 describe('buildPanelPayload', () => {
-  const poisson: AnalysisOptions = { family: 'natural', candidates: [3, 5, 7], resample: { kind: 'cv', folds: 5, repeats: 1 }, rule: { kind: '1se' }, seed: 1, outcome: 'poisson' };
+  const poisson: AnalysisOptions = { kind: 'natural-spline', candidates: [3, 5, 7], resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1, outcome: 'counts' };
 
   it('buildPanelPayload keeps the deviance of Poisson candidates, so the panel chooses as the analysis did', async () => {
     const a = await analyse(data('discoveries'), poisson);
@@ -37,46 +37,46 @@ describe('buildPanelPayload', () => {
       assert.equal(c.errors.deviance?.se, orig?.errors.deviance?.se);
       assert.deepEqual(c.errors.deviance?.values, [], 'per-resample values are left out');
     }
-    for (const rule of [{ kind: '1se' }, { kind: 'lowest' }, { kind: 'tol', percent: 5 }] as const) {
+    for (const rule of [{ kind: 'one-se' }, { kind: 'least-error' }, { kind: 'simplest-within', percent: 5 }] as const) {
       assert.equal(selectDf(p.candidates, rule, p.metric).df, selectDf(a.tune.candidates, rule, a.tune.metric).df, rule.kind);
     }
-    assert.equal(p.model.outcome, 'poisson');
+    assert.equal(p.model.outcome, 'counts');
     assert.equal(p.model.link, 'log');
     assert.match(p.model.words, /^Poisson counts \(log link\)/);
   });
 
   it("buildPanelPayload sends the residual details of the starting rule's df only; others come from detailFor", async () => {
-    const a = await analyse(data('mcycle'), { family: 'natural', candidates: [4, 6, 8, 10, 12], resample: { kind: 'cv', folds: 5, repeats: 2 }, rule: { kind: '1se' }, seed: 1 });
+    const a = await analyse(data('mcycle'), { kind: 'natural-spline', candidates: [4, 6, 8, 10, 12], resample: { kind: 'folds', folds: 5, repeats: 2 }, rule: { kind: 'one-se' }, seed: 1 });
     const p = buildPanelPayload({ ...base, analysis: a });
     assert.deepEqual(p.details.map((d) => d.df), [a.chosen.df]);
     assert.deepEqual(p.rule, a.tune.selected.rule);
     // Precondition: the lowest-error rule chooses another df on these data.
-    const lowest = selectDf(a.tune.candidates, { kind: 'lowest' }, a.tune.metric).df;
+    const lowest = selectDf(a.tune.candidates, { kind: 'least-error' }, a.tune.metric).df;
     assert.notEqual(lowest, a.chosen.df);
     const asked: number[] = [];
     const cache = (df: number): FitDetail | undefined => {
       asked.push(df);
       return detailFor(a, df);
     };
-    const q = buildPanelPayload({ ...base, analysis: a, rule: { kind: 'lowest' }, detail: cache });
+    const q = buildPanelPayload({ ...base, analysis: a, rule: { kind: 'least-error' }, detail: cache });
     assert.deepEqual(asked, [lowest], 'the host cache is asked for the one df shown');
     assert.deepEqual(q.details.map((d) => d.df), [lowest]);
-    assert.deepEqual(q.rule, { kind: 'lowest' });
+    assert.deepEqual(q.rule, { kind: 'least-error' });
     assert.ok((q.details[0]?.checks.length ?? 0) > 0, 'another df gets its own residual checks');
     // A df by hand that is no candidate falls back to the analysis's own rule.
-    assert.deepEqual(startSelection(a, { kind: 'manual', df: 5 }), a.tune.selected);
+    assert.deepEqual(startSelection(a, { kind: 'pick', df: 5 }), a.tune.selected);
     assert.equal(detailFor(a, 5), undefined);
   });
 
-  it('modelView says what each curve family supports (core/fit/model.ts resolveModel)', async () => {
+  it('modelView says what each curve kind supports (core/fit/model.ts resolveModel)', async () => {
     const d = data('mcycle');
-    const opts = { candidates: [4, 5], resample: { kind: 'gcv' as const }, rule: { kind: 'lowest' as const }, seed: 1 };
-    const natural = modelView(await analyse(d, { family: 'natural', ...opts, robust: true }), undefined, true);
-    assert.deepEqual(natural.supports, { outcomes: ['gaussian', 'poisson', 'binomial'], shapes: true, robust: true });
+    const opts = { candidates: [4, 5], resample: { kind: 'gcv' as const }, rule: { kind: 'least-error' as const }, seed: 1 };
+    const natural = modelView(await analyse(d, { kind: 'natural-spline', ...opts, robust: true }), undefined, true);
+    assert.deepEqual(natural.supports, { outcomes: ['continuous', 'counts', 'proportions'], shapes: true, robust: true });
     assert.equal(natural.robust, true);
     assert.equal(natural.robustK, 1.345);
     assert.equal(natural.fromPanel, true);
-    assert.deepEqual(modelView(await analyse(d, { family: 'poly', ...opts }), undefined, false).supports, { outcomes: ['gaussian', 'poisson', 'binomial'], shapes: false, robust: true });
-    assert.deepEqual(modelView(await analyse(d, { family: 'smooth', ...opts }), undefined, false).supports, { outcomes: ['gaussian'], shapes: true, robust: false });
+    assert.deepEqual(modelView(await analyse(d, { kind: 'polynomial', ...opts }), undefined, false).supports, { outcomes: ['continuous', 'counts', 'proportions'], shapes: false, robust: true });
+    assert.deepEqual(modelView(await analyse(d, { kind: 'smoothing-spline', ...opts }), undefined, false).supports, { outcomes: ['continuous'], shapes: true, robust: false });
   });
 });

@@ -1,7 +1,7 @@
 /**
  * Cells of the union of several knot sets. Within one cell every cubic B-spline of every
  * candidate is a single cubic polynomial in t = (x - cell start) / cell width, t in [0, 1],
- * which lets one pass of weighted power sums serve all candidates (DESIGN.md, Scale).
+ * which lets one pass of weighted power sums serve all candidates (docs/design.md, "Power sums").
  */
 export interface Cells {
   /** Cell start points, length C + 1 (the last entry is the upper boundary). */

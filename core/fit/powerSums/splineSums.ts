@@ -1,7 +1,7 @@
-import type { RowBasis } from '../basis/rowBasis';
-import { FitError } from '../errors';
-import { congruence, congruenceT, times, transposeTimes } from '../fit/linearFit';
-import { factorSpd } from '../linalg/spd';
+import type { RowBasis } from '../../basis/rowBasis';
+import { FitError } from '../../errors';
+import { congruence, congruenceT, times, transposeTimes } from '../linearFit';
+import { factorSpd } from '../../linalg/spd';
 import { type Cells, SUMS_PER_CELL } from './cells';
 
 /** Interior sample points of a cell, where the 4 active B-splines are sampled to recover their cubic. */

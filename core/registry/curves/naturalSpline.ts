@@ -1,0 +1,68 @@
+import { ExtrapolatingBSplineBasis, naturalKnots } from '../../basis/naturalSpline';
+import type { ModelBasis, ResolvedModel } from '../../fit/model';
+import { fitNaturalSpline } from '../../fit/naturalSpline';
+import { fitNaturalSplineBatch } from '../../fit/naturalSplineBatch';
+import type { PreparedData } from '../../fit/prepared';
+import { shapeRows } from '../../fit/shape';
+import { nullSpace } from '../../linalg/nullSpace';
+import { buildCells } from '../../fit/powerSums/cells';
+import { SplineFromSums } from '../../fit/powerSums/splineSums';
+import { dfRange, rowBasisModelTrainers } from './rowBasisTrainers';
+import type { CurveKind } from './types';
+
+/** Largest default df (a product default: 2 .. min(12, distinct x)). */
+const DEFAULT_MAX_DF = 12;
+
+/**
+ * Basis of a natural spline at df (knots as docs/design.md defines them, natural boundary
+ * conditions through the null space), with the shape rows of core/fit/shape.ts. Shapes
+ * other than non-negativity on counts or proportions apply to the linear predictor;
+ * non-negativity is dropped there (the mean is always positive). Cost O(p^2).
+ */
+function rowBasis(prepared: PreparedData, df: number, model: ResolvedModel): ModelBasis {
+  const { sortedX } = prepared;
+  const k = naturalKnots(sortedX, prepared.distinct, df);
+  const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
+  const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
+  const shapes = model.outcome === 'continuous' ? model.shape : model.shape.filter((s) => s !== 'nonnegative');
+  const rows = shapes.length > 0 ? shapeRows(basis.knotVector, shapes, true) : undefined;
+  return {
+    basis,
+    z,
+    shape: rows,
+    knots: Float64Array.of(k.lower, ...k.interior, k.upper),
+    lower: sortedX[0] as number,
+    upper: sortedX[sortedX.length - 1] as number,
+    notes: k.notes,
+    what: `natural spline with df ${df}`,
+  };
+}
+
+/** Natural cubic regression spline with knots at quantiles of x (the default curve). */
+export const naturalSpline: CurveKind = {
+  id: 'natural-spline',
+  name: 'natural cubic regression spline',
+  description: 'natural cubic regression spline: df - 2 interior knots at quantiles of x, straight beyond the data (the default)',
+  supports: { outcomes: ['continuous', 'counts', 'proportions'], shapes: true, robust: true },
+  defaultCandidates: (distinct) => dfRange(2, Math.max(2, Math.min(DEFAULT_MAX_DF, distinct))),
+  fit: fitNaturalSpline,
+  fitAll: fitNaturalSplineBatch,
+  rowBasis,
+  trainers(input) {
+    if (input.model) return rowBasisModelTrainers(naturalSpline, input);
+    // One pass of per-cell power sums per resample serves every candidate (docs/design.md, "Power sums").
+    const { prepared, x, dfs } = input;
+    const bases = dfs.map((df) => {
+      const k = naturalKnots(prepared.sortedX, prepared.distinct, df);
+      const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
+      return { df, basis, knots: Float64Array.of(k.lower, ...k.interior, k.upper) };
+    });
+    const cells = buildCells(x, bases.map((b) => b.knots));
+    const models = bases.map(({ df, basis }) => new SplineFromSums(cells, basis, nullSpace(basis.naturalConstraint(), 2, basis.size), `natural spline with df ${df}`));
+    const trainers = models.map((model) => ({
+      train: (_w: Float64Array, sums: Float64Array | undefined) => model.fit(sums as Float64Array),
+      predict: (i: number) => model.valueAt(cells.cell[i] as number, cells.t[i] as number),
+    }));
+    return { trainers, cells, models };
+  },
+};

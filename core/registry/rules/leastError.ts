@@ -1,0 +1,18 @@
+import type { RuleSpec } from '../../tune/types';
+import type { SelectionRule } from './types';
+
+type LeastError = Extract<RuleSpec, { kind: 'least-error' }>;
+
+/** The candidate with the least mean resampled error. */
+export const leastError: SelectionRule<LeastError> = {
+  id: 'least-error',
+  syntax: 'least-error',
+  pattern: 'least-error',
+  label: 'Least resampled error',
+  description: 'the df with the least mean resampled error',
+  setting: true,
+  parse: (text) => (text === 'least-error' ? { kind: 'least-error' } : undefined),
+  format: () => 'least-error',
+  words: () => 'least mean error',
+  pick: (_r, { best, head }) => ({ chosen: best, sentence: `${head} Rule: least mean error, so df ${best.df} is chosen.` }),
+};

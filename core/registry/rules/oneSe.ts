@@ -1,0 +1,32 @@
+import { sig } from '../../tune/format';
+import type { RuleSpec } from '../../tune/types';
+import { smallestUnder } from './common';
+import type { SelectionRule } from './types';
+
+type OneSe = Extract<RuleSpec, { kind: 'one-se' }>;
+
+/**
+ * The one-standard-error rule: the smallest df whose mean error is at most the least mean
+ * error plus its standard error (Breiman, Friedman, Olshen & Stone 1984, Classification and
+ * Regression Trees, section 3.4.3; Hastie, Tibshirani & Friedman 2009, The Elements of
+ * Statistical Learning, 2nd ed., section 7.10).
+ */
+export const oneSe: SelectionRule<OneSe> = {
+  id: 'one-se',
+  syntax: 'one-se',
+  pattern: 'one-se',
+  label: 'Simplest within one standard error of the least',
+  description: 'the one-standard-error rule: the smallest df within one standard error of the least mean error',
+  setting: true,
+  parse: (text) => (text === 'one-se' ? { kind: 'one-se' } : undefined),
+  format: () => 'one-se',
+  words: () => 'one-standard-error rule',
+  pick(_r, { list, best, head, metricName }) {
+    if (!Number.isFinite(best.e.se)) {
+      return { chosen: best, sentence: `${head} The one-standard-error rule needs a standard error, which ${metricName} does not have here, so the least mean error decides: df ${best.df}.` };
+    }
+    const threshold = best.e.mean + best.e.se;
+    const c = smallestUnder(list, threshold);
+    return { chosen: c, threshold, sentence: `${head} One-SE threshold ${sig(threshold)}. The smallest df at or under it is ${c.df} (${sig(c.e.mean)}), chosen.` };
+  },
+};

@@ -1,0 +1,8 @@
+/**
+ * The one caution every deliverable, the panel and the command line carry: an empirical
+ * fit is no certified calibration, and safety-related use defers to the applicable
+ * standards and qualified review.
+ */
+export const CAUTION =
+  'This curve is an empirical fit to the readings shown, not a certified calibration. ' +
+  'Where its table feeds safety-related equipment or decisions, use it only as the applicable standards allow and after review by qualified people.';
