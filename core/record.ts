@@ -120,7 +120,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       candidatesDefault: a !== undefined && plan.options.candidates === undefined,
       resampling: a ? formatResampling(a.tune.resample) : null,
       seed: a ? a.tune.seed : null,
-      rule: rule ? formatRule(rule) : `df:${askedDf}`,
+      rule: rule ? formatRule(rule) : `pick:${askedDf}`,
       tolerancePercent: rule?.kind === 'simplest-within' ? rule.percent : null,
       holdout: a?.options.holdout ?? null,
       grid: plan.output.grid ?? input.grid,

@@ -56,7 +56,7 @@ export function savePlan(input: SaveInput): FitPlan {
     columns: { x, y, weights: trials !== undefined ? undefined : weights },
     tune: true,
     options: { ...input.analysis.options, rule: input.rule },
-    output: { ...DEFAULT_OUTPUT, grid: settings.grid, extrapolate: settings.extrapolate, digits: settings.digits },
+    output: { ...DEFAULT_OUTPUT, grid: settings.grid, extrapolate: settings.extrapolate, flagNegative: settings.flagNegative, digits: settings.digits },
     ...(trials !== undefined ? { trials } : {}),
   };
 }

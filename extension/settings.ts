@@ -40,6 +40,8 @@ export interface Settings {
   /** Table grid; undefined means the default (101 points over the data range). */
   readonly grid: GridSpec | undefined;
   readonly extrapolate: boolean;
+  /** knotwise.table.flagNegative: flag table rows where the curve is below zero. */
+  readonly flagNegative: boolean;
   readonly digits: number;
   /** Output folder: '' means next to the data file; relative paths start at the data file's folder. */
   readonly outputFolder: string;
@@ -73,6 +75,7 @@ export const DEFAULTS = {
   holdoutFraction: 0,
   grid: '',
   extrapolate: false,
+  flagNegative: false,
   significantDigits: 8,
   outputFolder: '',
   tableName: '${name}.curve.csv',
@@ -144,6 +147,8 @@ export function readSettings(get: SettingReader): Settings {
   const grid = gridText === '' ? undefined : attempt<GridSpec | undefined>('table.grid', undefined, () => parseGrid(gridText));
   const extrapolateRaw = get('table.extrapolate');
   const extrapolate = typeof extrapolateRaw === 'boolean' ? extrapolateRaw : DEFAULTS.extrapolate;
+  const flagRaw = get('table.flagNegative');
+  const flagNegative = typeof flagRaw === 'boolean' ? flagRaw : DEFAULTS.flagNegative;
 
   const tableName = checkName('output.tableName', str('output.tableName', DEFAULTS.tableName), DEFAULTS.tableName, problems);
   const recordName = checkName('output.recordName', str('output.recordName', DEFAULTS.recordName), DEFAULTS.recordName, problems);
@@ -160,6 +165,7 @@ export function readSettings(get: SettingReader): Settings {
     holdout: numIn('holdoutFraction', DEFAULTS.holdoutFraction, LIMITS.holdoutFraction),
     grid,
     extrapolate,
+    flagNegative,
     digits: numIn('table.significantDigits', DEFAULTS.significantDigits, LIMITS.significantDigits, true),
     outputFolder: str('output.folder', DEFAULTS.outputFolder),
     tableName,

@@ -2,12 +2,14 @@
  * Fits with an outcome family (Poisson, binomial), shape constraints or Huber weights: the
  * routing, checks and result assembly shared by fitCurve and the resampling engine.
  */
-import type { RowBasis } from '../basis/rowBasis';
 import { InputError } from '../errors';
 import type { CurveKind } from '../registry/curves/types';
 import { OUTCOMES } from '../registry/outcomes/index';
 import type { FitResult, ModelOptions, ModelReport, Outcome, Shape } from '../types';
 import { CachedRows } from './cachedRows';
+import type { ModelBasis, ResolvedModel } from './modelTypes';
+
+export type { ModelBasis, ResolvedModel } from './modelTypes';
 import { checkOutcomeData, irls, type OutcomeFamily } from './glm';
 import { summariseGlm } from './glmSummary';
 import { RowBasisCurve } from './linearFit';
@@ -15,21 +17,13 @@ import { LinearSystem } from './linearSystem';
 import { LinkCurve } from './linkCurve';
 import type { PreparedData } from './prepared';
 import { HUBER_K, huberIrls } from './robust';
-import { checkShapes, shapeWords, type ShapeRows } from './shape';
+import { checkShapes, shapeWords } from './shape';
 import { summariseFit } from './summary';
 
 /** Most down-weighted rows listed by line in a robust fit's report (the count is always given). */
 export const ROBUST_LIST_LIMIT = 1000;
 /** Largest accepted Huber tuning constant; beyond it the fit is least squares in practice. */
 export const MAX_HUBER_K = 100;
-
-/** Model options after checking: every field present. */
-export interface ResolvedModel {
-  readonly outcome: Outcome;
-  readonly shape: readonly Shape[];
-  /** Huber tuning constant, or undefined for least squares. */
-  readonly robustK: number | undefined;
-}
 
 /** True when the options ask for plain (weighted) least squares: Gaussian, no shape, not robust. */
 export function isPlainModel(m: ModelOptions | undefined): boolean {
@@ -69,18 +63,6 @@ function supporting(all: readonly CurveKind[], test: (s: CurveKind['supports']) 
   return all.filter((k) => test(k.supports)).map((k) => k.id).join(', ') || 'none';
 }
 
-/** The row basis of one candidate, with its natural-spline restriction and shape rows. */
-export interface ModelBasis {
-  readonly basis: RowBasis;
-  readonly z: Float64Array | undefined;
-  readonly shape: ShapeRows | undefined;
-  readonly knots: Float64Array;
-  readonly lower: number;
-  readonly upper: number;
-  readonly notes: readonly string[];
-  readonly what: string;
-}
-
 /**
  * Fits a curve kind at `df` with an outcome family, shape constraints and/or Huber weights
  * (see core/fit/glm.ts, core/fit/shape.ts, core/fit/robust.ts). The result is a complete
@@ -98,7 +80,7 @@ export interface ModelBasis {
  *   leverage is the hat diagonal of the final weighted least-squares step.
  * - Poisson and binomial fits: fitted values are means, bands are built on the link scale
  *   (core/fit/linkCurve.ts), statistics as in core/fit/glmSummary.ts.
- * - The smoothing spline with shapes is fitted by core/fit/shapedSmoothing.ts (same
+ * - The smoothing spline with shapes is fitted by core/fit/shapedSmoothing/ (same
  *   conventions, with the hat-matrix trace at the active set as effectiveDf).
  *
  * Cost: O(n) to cache the basis rows, then O(n) per reweighting iteration.

@@ -132,9 +132,9 @@ export function editDistance(a: string, b: string): number {
 
 /**
  * The candidate nearest to `word` (case ignored), when it is near enough to be a likely
- * misspelling: within a third of the longer word's length (at least 2 edits), or when one
- * word starts with the other (at least 3 letters). Ties go to the earlier candidate.
- * Example: nearest('resample', ['rule', 'resampling']) === 'resampling'.
+ * misspelling: at most 1 edit for words of 3 or 4 letters, 2 for longer ones (none for
+ * shorter), or both starting alike (at least 4 letters, and all of the shorter word but at
+ * most its last letter: `resample`, `resampling`). Ties go to the earlier candidate. Example: nearest('resample', ['rule', 'resampling']) === 'resampling'.
  */
 export function nearest(word: string, candidates: readonly string[]): string | undefined {
   const w = word.toLowerCase();
@@ -143,8 +143,10 @@ export function nearest(word: string, candidates: readonly string[]): string | u
   for (const c of candidates) {
     const lc = c.toLowerCase();
     const d = editDistance(w, lc);
-    const prefix = Math.min(w.length, lc.length) >= 3 && (lc.startsWith(w) || w.startsWith(lc));
-    const near = d <= Math.max(2, Math.ceil(Math.max(w.length, lc.length) / 3)) || prefix;
+    let common = 0;
+    while (common < w.length && w[common] === lc[common]) common++;
+    const prefix = common >= 4 && common >= Math.min(w.length, lc.length) - 1;
+    const near = d <= (w.length <= 2 ? 0 : w.length <= 4 ? 1 : 2) || prefix;
     if (near && d < bestScore) {
       best = c;
       bestScore = d;

@@ -2,7 +2,8 @@
  * `knotwise check [record | folder ...]`: rebuilds every output of each fit record from its
  * data and compares them with the files on disk. Exit code 0 when all are current, 1 when
  * data or outputs changed (saying which and how), 2 when a record could not be checked.
- * Without arguments it checks every `*.fit.json` under the current folder.
+ * Without arguments it checks every `*.fit.json` under the current folder. `--json` prints
+ * one object with every record's state instead; `--quiet` prints nothing but errors.
  */
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { basename, dirname, join, relative, resolve } from 'node:path';
@@ -139,15 +140,15 @@ function isRecordFile(path: string): boolean {
 /** The table of `knotwise check`. */
 export const CHECK_COMMAND = defineCommand({
   name: 'check',
-  summary: 'rebuild each recorded curve table from its data and compare it with the files on disk',
+  summary: 'rebuild recorded curve tables from their data and compare them with the files on disk',
   usage: ['check [<record.fit.json> | <folder> ...]'],
   operands: { min: 0, max: Infinity, name: 'record or folder' },
   options: [
     { name: 'json', help: 'print one JSON object with the state of every record instead of the lines' },
-    { name: 'quiet', help: 'print nothing on standard output; the exit code tells (records that could not be checked are still named on standard error; --json still prints its object)' },
+    { name: 'quiet', help: 'print nothing on standard output, the exit code tells; records that could not be checked are still named on standard error, and --json still prints its object' },
   ],
   notes: [
-    `Without arguments every *${'.fit.json'} under the current folder is checked, skipping node_modules and folders whose name starts with a dot; a folder argument is searched the same way.`,
+    `Without arguments every *${RECORD_SUFFIX} under the current folder is checked, skipping node_modules and folders whose name starts with a dot; a folder argument is searched the same way.`,
     'Exit codes: 0 every record is current; 1 data or an output changed; 2 a record could not be checked.',
   ],
 });

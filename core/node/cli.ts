@@ -61,7 +61,7 @@ function fitCommand() {
   const allCurves = curveKinds().length;
   return defineCommand({
     name: 'fit',
-    summary: 'fit a curve to two columns of a CSV file, tuning its df by resampling, and write its curve table and fit record',
+    summary: 'fit a curve to CSV data, tune its df by resampling, and write its curve table and fit record',
     usage: ['fit <file.csv> --x <column> --y <column> [options]', 'fit - --x <column> --y <column> --print-only [options]   (the CSV from standard input)'],
     operands: { min: 1, max: 1, name: 'data file', missing: 'no data file given: knotwise fit <file.csv> --x <column> --y <column> (or - for standard input)' },
     options: [
@@ -136,17 +136,17 @@ function fitCommand() {
       },
       { group: 'Table', name: 'extrapolate', help: 'allow table points outside the data range; they are flagged' },
       { group: 'Table', name: 'columns', value: 'list', help: 'table columns, in the order given; x is required, and a flag column that flags a row is always kept', defaultText: TABLE_COLUMNS.join(','), limits: `any of ${[...TABLE_COLUMNS, ...OPTIONAL_COLUMNS].join(', ')}` },
-      { group: 'Table', name: 'flag-negative', help: 'the quantity cannot be negative: flag table rows where the curve is below zero (--shape nonnegative constrains the curve instead)' },
+      { group: 'Table', name: 'flag-negative', help: 'the quantity cannot be negative: flag table rows where the curve is below zero; --shape nonnegative constrains the curve instead' },
       { group: 'Table', name: 'digits', value: 'n', help: 'significant digits of the table values', default: String(DEFAULT_DIGITS), limits: `${DIGITS.min} to ${DIGITS.max}` },
       { group: 'Files', name: 'out', value: 'folder', help: 'write the curve table <name>.curve.csv and the fit record <name>.fit.json (and what --emit and --report ask for) into this folder', defaultText: 'the data file\'s folder' },
-      { group: 'Files', name: 'save', help: 'write them next to the data file (the default, for scripts that say so)' },
+      { group: 'Files', name: 'save', help: 'write them next to the data file, as without --out; for scripts that say so' },
       { group: 'Files', name: 'print-only', help: 'write no files, only print' },
       { group: 'Files', name: 'emit', value: 'list', help: 'also write the table as code (comma list)', defaultText: 'no code', choices: EMIT_KINDS.map((k) => ({ value: k, help: emitName(k, '<name>') })) },
       { group: 'Files', name: 'report', help: 'also write a review report <name>.report.md with SVG figures' },
       { group: 'Files', name: 'force', help: 'replace output files that Knotwise did not write' },
       { group: 'Printing', name: 'json', help: 'print one JSON object instead of the summary' },
-      { group: 'Printing', name: 'quiet', help: 'print no summary (errors still go to standard error; --json still prints its object)' },
-      { group: 'Printing', name: 'progress', help: 'show progress and the time left on standard error even when it is not a terminal (on a terminal it shows by itself once a run takes over a second, unless --quiet)' },
+      { group: 'Printing', name: 'quiet', help: 'print no summary; errors still go to standard error, and --json still prints its object' },
+      { group: 'Printing', name: 'progress', help: 'show progress and the time left on standard error even when it is not a terminal; on a terminal it shows by itself once a run takes over a second, unless --quiet' },
     ],
     notes: [
       'A single --df without --resampling, --rule or --holdout fits that df as is; anything else tunes.',
@@ -166,7 +166,7 @@ const DEMO_COMMAND = defineCommand({
 });
 
 /** Every command, in the order the general help lists them. */
-function commands(): CommandSpec[] {
+export function commands(): CommandSpec[] {
   return [fitCommand(), CHECK_COMMAND, DEMO_COMMAND];
 }
 
@@ -499,7 +499,7 @@ async function runDemo(argv: readonly string[], env: CliEnv): Promise<number> {
 /** The command named `name`, or an InputError naming the nearest one. */
 function unknownCommand(name: string): InputError {
   const guess = nearest(name, [...commands().map((c) => c.name), 'help']);
-  return new InputError(`unknown command "${name}"; ${guess !== undefined ? `did you mean ${guess}? ` : ''}run knotwise --help for the commands`);
+  return new InputError(`unknown command "${name}"; ${guess !== undefined ? `did you mean ${guess}? (knotwise --help lists the commands)` : 'knotwise --help lists the commands'}`);
 }
 
 /**

@@ -50,14 +50,16 @@ export function timeLeftWords(ms: number): string {
 /**
  * A Progress that writes to `stream`. The tuning core reports steps as (done, total,
  * message): the candidate fits, then one report per finished resample. The time left is
- * extrapolated from the rate of the current step (its total and start are tracked; a new
- * total or a count going back starts a new step). Call `finish()` when the run ends, also
+ * extrapolated from the rate of the current step: the units done since the step was first
+ * heard of, over the time since (a new total or a count going back starts a new step). Call `finish()` when the run ends, also
  * on failure: it clears the terminal line so an error message starts on a clean line.
  * Example: const p = new ProgressLine(process.stderr); await analyse(data, o, runner, p); p.finish().
  */
 export class ProgressLine implements Progress {
   private readonly started: number;
   private stepStart: number;
+  /** Units done when the current step was first heard of (the rate counts the units since). */
+  private stepFirstDone = 0;
   private stepTotal = -1;
   private lastDone = 0;
   private lastDraw = -Infinity;
@@ -79,6 +81,7 @@ export class ProgressLine implements Progress {
     if (total !== this.stepTotal || done < this.lastDone) {
       this.stepTotal = total;
       this.stepStart = now;
+      this.stepFirstDone = done;
     }
     this.lastDone = done;
     if (now - this.started < SHOW_AFTER_MS) return;
@@ -94,8 +97,9 @@ export class ProgressLine implements Progress {
     const parts = [`knotwise: ${message}`];
     if (total > 1) parts[0] += ` (${Math.floor((100 * done) / total)} %)`;
     const spent = now - this.stepStart;
-    if (total > 1 && done >= ESTIMATE_AFTER_UNITS && done < total && spent >= ESTIMATE_AFTER_MS) {
-      parts.push(`${timeLeftWords((spent / done) * (total - done))} left`);
+    const units = done - this.stepFirstDone;
+    if (total > 1 && units >= ESTIMATE_AFTER_UNITS && done < total && spent >= ESTIMATE_AFTER_MS) {
+      parts.push(`${timeLeftWords((spent / units) * (total - done))} left`);
     }
     return parts.join(', ');
   }

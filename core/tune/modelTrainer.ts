@@ -86,7 +86,7 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, mb: ModelB
  * Trainer of one shape-constrained smoothing-spline candidate: each resample refits the rows
  * with positive weight at `lambda`, the smoothing parameter of the candidate's df on all
  * tuning rows (as the unconstrained smoothing spline's resamples do), by
- * core/fit/shapedSmoothing.ts. It fits the raw `y` (non-negativity does not survive the
+ * core/fit/shapedSmoothing/. It fits the raw `y` (non-negativity does not survive the
  * engine's centring) and maps predictions to the engine's units by (f - ymean) / yscale.
  * Cost per resample: O(n log n) plus the constrained solve, O(m^3) for m distinct x.
  */

@@ -31,9 +31,9 @@ describe('shellWord', () => {
 describe('fitCommand', () => {
   it('fitCommand spells out a tuned plan and leaves out options at their defaults', () => {
     const plan: FitPlan = { columns: { x: 'speed [mph]', y: 'dist' }, tune: true, options: { kind: 'natural-spline', resample: { kind: 'folds', folds: 10, repeats: 5 }, rule: { kind: 'one-se' }, seed: 1 }, output: DEFAULT_OUTPUT };
-    assert.equal(fitCommand(plan, '../cars.csv'), "knotwise fit ../cars.csv --x 'speed [mph]' --y dist --curve natural --resampling folds:10x5 --rule 1se --seed 1 --out .");
+    assert.equal(fitCommand(plan, '../cars.csv'), "knotwise fit ../cars.csv --x 'speed [mph]' --y dist --curve natural-spline --resampling folds:10x5 --rule one-se --seed 1 --out .");
     const fixed: FitPlan = { columns: { x: 'speed', y: 'dist', weights: 'w' }, tune: false, options: { kind: 'smoothing-spline', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output: { grid: { kind: 'auto', tolerance: 0.01 }, extrapolate: true, digits: 6, columns: ['x', 'fit'], flagNegative: true, emit: ['c', 'ts'], report: true } };
-    assert.equal(fitCommand(fixed, 'cars.csv'), 'knotwise fit cars.csv --x speed --y dist --weights w --curve smooth --df 4.5 --grid auto:0.01 --extrapolate --digits 6 --columns x,fit --flag-negative --emit c,ts --report --out .');
+    assert.equal(fitCommand(fixed, 'cars.csv'), 'knotwise fit cars.csv --x speed --y dist --weights w --curve smoothing-spline --df 4.5 --grid auto:0.01 --extrapolate --digits 6 --columns x,fit --flag-negative --emit c,ts --report --out .');
   });
 
   it('the regenerate command, run by sh in the output folder, rewrites every output byte for byte', async function () {

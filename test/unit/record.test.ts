@@ -81,10 +81,10 @@ describe('fit record and its JSON Schema', () => {
     const r = records.tunedAuto as Record<string, any>;
     assert.match(r.data.sha256, /^[0-9a-f]{64}$/);
     assert.equal(r.data.path, '../mcycle.csv');
-    for (const key of ['kind', 'tuned', 'candidates', 'candidatesDefault', 'resample', 'seed', 'rule', 'tolerancePercent', 'holdout', 'grid', 'gridDefault', 'digits', 'extrapolate', 'columns', 'nonnegative', 'emit', 'report', 'level']) {
+    for (const key of ['curve', 'tuned', 'candidates', 'candidatesDefault', 'resampling', 'seed', 'rule', 'tolerancePercent', 'holdout', 'grid', 'gridDefault', 'digits', 'extrapolate', 'columns', 'flagNegative', 'emit', 'report', 'level']) {
       assert.ok(key in r.spec, `spec.${key}`);
     }
-    assert.equal(r.regenerate, 'knotwise fit ../mcycle.csv --x times --y accel --curve natural --resampling folds:5 --rule 1se --seed 1 --grid auto:1 --emit c,ts,json --report --out .');
+    assert.equal(r.regenerate, 'knotwise fit ../mcycle.csv --x times --y accel --curve natural-spline --resampling folds:5 --rule one-se --seed 1 --grid auto:1 --emit c,ts,json --report --out .');
     assert.ok(r.table.interpolation.maxError <= 1 && r.table.interpolation.tolerance === 1);
     const f = records.fixedList as Record<string, any>;
     assert.deepEqual(f.table.extrapolated, [0, 30]);
@@ -114,7 +114,14 @@ describe('fit record and its JSON Schema', () => {
       ['unknown grid kind', (r) => (r.spec.grid = { kind: 'bogus' })],
       ['rule not understood', (r) => (r.spec.rule = 'best')],
       ['other format', (r) => (r.format = 'something-else')],
-      ['newer version', (r) => (r.version = 2)],
+      ['newer version', (r) => (r.version = 3)],
+      ['older version', (r) => (r.version = 1)],
+      ['old key spec.family', (r) => ((r.spec.family = r.spec.curve), delete r.spec.curve)],
+      ['old curve value', (r) => (r.spec.curve = 'natural')],
+      ['old resampling value', (r) => (r.spec.resampling = 'cv:10')],
+      ['old rule value', (r) => (r.spec.rule = '1se')],
+      ['old outcome value', (r) => (r.spec.model.outcome = 'poisson')],
+      ['old key fit.sigma', (r) => ((r.fit.sigma = r.fit.residualSd), delete r.fit.residualSd)],
       ['emitter not known', (r) => (r.spec.emit = ['rust'])],
       ['table column not known', (r) => (r.table.columns = ['x', 'fitted'])],
       ['missing regenerate command', (r) => delete r.regenerate],

@@ -103,14 +103,16 @@ describe('readRecord', () => {
     refuse([], /not a fit record: the file is not a JSON object/);
     refuse({ format: 'x' }, /not a fit record: "format" is "x", expected "knotwise-fit-record"/);
     refuse({ format: 'knotwise-fit-record', version: 9 }, /version 9 was written by a newer Knotwise/);
-    refuse({ format: 'knotwise-fit-record', version: 1, tool: {}, data: { columns: {} } }, /"spec" must be an object/);
-    const spec = { kind: 'natural-spline', candidates: [3], resample: null, rule: 'df:3', grid: { kind: 'count', start: 0, stop: 1, count: 'x' }, extrapolate: false, digits: 8, emit: [] };
-    const rec = { format: 'knotwise-fit-record', version: 1, tool: { version: '0' }, data: { file: 'a.csv', sha256: 'a', rowsUsed: 1, columns: { x: 'a', y: 'b' } }, spec, fit: { df: 3 }, table: { file: 't', sha256: 's' } };
+    refuse({ format: 'knotwise-fit-record', version: 1 }, /version 1 was written by an earlier Knotwise whose words have changed/);
+    refuse({ format: 'knotwise-fit-record', version: 2, tool: {}, data: { columns: {} } }, /"spec" must be an object/);
+    const spec = { curve: 'natural-spline', candidates: [3], resampling: null, rule: 'pick:3', grid: { kind: 'count', start: 0, stop: 1, count: 'x' }, extrapolate: false, digits: 8, emit: [] };
+    const rec = { format: 'knotwise-fit-record', version: 2, tool: { version: '0' }, data: { file: 'a.csv', sha256: 'a', rowsUsed: 1, columns: { x: 'a', y: 'b' } }, spec, fit: { df: 3 }, table: { file: 't', sha256: 's' } };
     refuse(rec, /"spec.grid.count" must be a number/);
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, candidates: [0.5] } }, /"spec.candidates\[0\]" must be a number of at least 1/);
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, emit: ['rust'] } }, /"spec.emit\[0\]" must be one of c, ts, json/);
-    refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, kind: 'spline' } }, /"spec.kind" is not valid: unknown curve kind "spline"/);
-    refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, tuned: true } }, /"spec.resample" must be given for a tuned fit/);
+    refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, curve: 'spline' } }, /"spec.curve" is not valid: unknown curve "spline"; use natural-spline, polynomial, smoothing-spline/);
+    refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, curve: 'natural' } }, /unknown curve "natural"/);
+    refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, tuned: true } }, /"spec.resampling" must be given for a tuned fit/);
     // The same record with a valid grid reads.
     assert.equal(readRecord({ ...rec, spec: { ...spec, grid: { kind: 'data' } } }, 'a.fit.json').plan.tune, false);
   });

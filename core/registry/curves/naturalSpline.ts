@@ -1,5 +1,5 @@
 import { ExtrapolatingBSplineBasis, naturalKnots } from '../../basis/naturalSpline';
-import type { ModelBasis, ResolvedModel } from '../../fit/model';
+import type { ModelBasis, ResolvedModel } from '../../fit/modelTypes';
 import { fitNaturalSpline } from '../../fit/naturalSpline';
 import { fitNaturalSplineBatch } from '../../fit/naturalSplineBatch';
 import type { PreparedData } from '../../fit/prepared';

@@ -1,6 +1,6 @@
 import { OrthoPolyBasis } from '../../basis/orthoPoly';
 import { FitError } from '../../errors';
-import type { ModelBasis } from '../../fit/model';
+import type { ModelBasis } from '../../fit/modelTypes';
 import { fitPolynomial } from '../../fit/polynomial';
 import type { PreparedData } from '../../fit/prepared';
 import { basisTrainer, constantBasis } from '../../tune/basisTrainer';

@@ -5,7 +5,7 @@
  * one module plus one line (or one `registerCurveKind` call).
  */
 import type { FitError } from '../../errors';
-import type { ModelBasis, ResolvedModel } from '../../fit/model';
+import type { ModelBasis, ResolvedModel } from '../../fit/modelTypes';
 import type { Cells } from '../../fit/powerSums/cells';
 import type { SplineFromSums } from '../../fit/powerSums/splineSums';
 import type { PreparedData } from '../../fit/prepared';

@@ -3,7 +3,7 @@
  * `cars` (shipped with R; written by test/e2e/fixtures/make-fixtures.R). The expected
  * chosen df comes from that script: R's splines::ns + lm + hatvalues, exact leave-one-out
  * RMSE, lowest mean (test/e2e/fixtures/expected.json). The workspace settings of the
- * runner select the same method: knotwise.resampling = loo, knotwise.rule = lowest,
+ * runner select the same method: knotwise.resampling = leave-one-out, knotwise.rule = least-error,
  * candidates 3..15. Binomial and robust fits are checked against R's glm and MASS::rlm
  * (test/reference/fixtures/physics.json, from test/reference/r/physics.R). Saved files
  * are compared byte for byte with what the command line writes for the same inputs.

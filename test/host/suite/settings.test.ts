@@ -1,6 +1,6 @@
 /**
  * The settings snapshot: defaults equal the command line's documented defaults
- * (core/node/cli.ts usage text: natural, bootstrap:50, 1se, seed 1, 8 digits, least squares,
+ * (the command line's help: natural-spline, bootstrap:50, one-se, seed 1, 8 digits, least squares,
  * Huber k = 1.345), values outside their limits fall back with a message, and the
  * contributed schema in package.json has the same defaults.
  */
@@ -49,20 +49,20 @@ describe('settings snapshot (readSettings)', function () {
     // --robust is Huber with k = 1.345 (core/fit/robust.ts HUBER_K); another k is --robust-k.
     const read = (values: Record<string, unknown>) => readSettings((k) => values[k]);
     assert.deepEqual(modelOptions(read({ robust: true }).model), { robust: true });
-    assert.deepEqual(modelOptions(read({ robust: true, huberK: 2 }).model), { robust: { k: 2 } });
+    assert.deepEqual(modelOptions(read({ robust: true, robustK: 2 }).model), { robust: { k: 2 } });
     // The smoothing spline fits least squares only (shapes yes, up to 1000 distinct x); robust
-    // fitting needs a Gaussian outcome; opposite shapes are refused.
-    const smooth = read({ curveFamily: 'smoothing-spline', outcome: 'proportions', shape: ['convex'] });
+    // fitting needs continuous readings; opposite shapes are refused.
+    const smooth = read({ curve: 'smoothing-spline', outcome: 'proportions', shape: ['convex'] });
     assert.deepEqual(smooth.model, { outcome: 'continuous', shape: ['convex'], robustK: undefined });
     assert.equal(smooth.problems.length, 1, smooth.problems.join('\n'));
-    const mixed = read({ outcome: 'counts', robust: true, shape: ['increasing', 'decreasing'], huberK: -1 });
+    const mixed = read({ outcome: 'counts', robust: true, shape: ['increasing', 'decreasing'], robustK: -1 });
     assert.deepEqual(mixed.model, { outcome: 'counts', shape: [], robustK: undefined });
     assert.equal(mixed.problems.length, 3, mixed.problems.join('\n'));
     assert.ok(mixed.problems.some((p) => p.startsWith('knotwise.robust: ')));
   });
 
   it('readSettings() refuses values outside their limits and says which', function () {
-    const raw: Record<string, unknown> = { resampling: 'bootstrap:3', 'table.significantDigits': 40, rule: 'median', 'output.tableName': '../x.csv', candidates: '5..2' };
+    const raw: Record<string, unknown> = { resampling: 'bootstrap:1', 'table.significantDigits': 40, rule: 'median', 'output.tableName': '../x.csv', candidates: '5..2' };
     const s = readSettings((k) => raw[k]);
     assert.deepEqual(s.resample, { kind: 'bootstrap', resamples: 50 });
     assert.equal(s.digits, 8);
@@ -73,8 +73,8 @@ describe('settings snapshot (readSettings)', function () {
     assert.ok(s.problems.some((p) => p.includes('knotwise.resampling')));
   });
 
-  it('the tolerance rule takes its percentage from knotwise.tolerancePercent', function () {
-    const raw: Record<string, unknown> = { rule: 'tolerance', tolerancePercent: 5 };
+  it('the simplest-within rule takes its percentage from knotwise.tolerancePercent', function () {
+    const raw: Record<string, unknown> = { rule: 'simplest-within', tolerancePercent: 5 };
     assert.deepEqual(readSettings((k) => raw[k]).rule, { kind: 'simplest-within', percent: 5 });
   });
 
@@ -83,11 +83,11 @@ describe('settings snapshot (readSettings)', function () {
     assert.ok(ext, 'the Knotwise extension is loaded');
     const props = ext.packageJSON.contributes.configuration.properties as Record<string, { default: unknown }>;
     const expected: Record<string, unknown> = {
-      'knotwise.curveFamily': DEFAULTS.kind,
+      'knotwise.curve': DEFAULTS.kind,
       'knotwise.outcome': DEFAULTS.outcome,
       'knotwise.shape': DEFAULTS.shape,
       'knotwise.robust': DEFAULTS.robust,
-      'knotwise.huberK': DEFAULTS.huberK,
+      'knotwise.robustK': DEFAULTS.huberK,
       'knotwise.candidates': DEFAULTS.candidates,
       'knotwise.resampling': DEFAULTS.resampling,
       'knotwise.rule': DEFAULTS.rule,
@@ -96,6 +96,7 @@ describe('settings snapshot (readSettings)', function () {
       'knotwise.holdoutFraction': DEFAULTS.holdoutFraction,
       'knotwise.table.grid': DEFAULTS.grid,
       'knotwise.table.extrapolate': DEFAULTS.extrapolate,
+      'knotwise.table.flagNegative': DEFAULTS.flagNegative,
       'knotwise.table.significantDigits': DEFAULTS.significantDigits,
       'knotwise.output.folder': DEFAULTS.outputFolder,
       'knotwise.output.tableName': DEFAULTS.tableName,

@@ -26,7 +26,7 @@ function input(table: CurveTable, digits = 6): EmitInput {
     dataRange: [4, 25],
     step: 3,
     recordFile: 'cars.fit.json',
-    regenerate: 'knotwise fit cars.csv --x speed --y dist --curve poly --df 3 --out .',
+    regenerate: 'knotwise fit cars.csv --x speed --y dist --curve polynomial --df 3 --out .',
     caution: 'An empirical fit is not a certified calibration.',
   };
 }

@@ -1,5 +1,5 @@
 /**
- * Shape-constrained cubic smoothing spline (core/fit/shapedSmoothing.ts), through its own
+ * Shape-constrained cubic smoothing spline (core/fit/shapedSmoothing/), through its own
  * functions, fitCurve, the resampling engine and the command line.
  *
  * External checks:
@@ -10,7 +10,7 @@
  *   (regenerate with `Rscript test/reference/r/shapedSmoothing.R`). Both sides are exact
  *   finite algorithms on a problem of condition number below 1e5 (see the script), so
  *   coefficients, fitted values and leverages are compared at 1e-8 relative to their scale.
- * - The state-space smoother of core/fit/smoothingSpline.ts (itself checked against R's
+ * - The state-space smoother of core/fit/smoothingSpline/ (itself checked against R's
  *   smooth.spline in test/reference/smooth.test.ts): the unconstrained minimiser computed by
  *   the banded QR here must equal it (1e-8 relative), and a fit whose constraints are
  *   inactive must be the unconstrained fit (1e-8).
@@ -112,7 +112,7 @@ function assertClose(what: string, got: ArrayLike<number>, want: ArrayLike<numbe
 }
 
 describe('penalisedCoefficients (banded QR of the penalised least-squares problem)', () => {
-  it('penalisedCoefficients equals the state-space smoother of core/fit/smoothingSpline.ts (two routes to one minimiser)', () => {
+  it('penalisedCoefficients equals the state-space smoother of core/fit/smoothingSpline/ (two routes to one minimiser)', () => {
     for (const [seed, n] of [
       [1, 30],
       [2, 300],
@@ -308,14 +308,14 @@ describe('tuning shape-constrained smoothing splines', () => {
   });
 });
 
-describe('knotwise fit --curve smooth --shape', () => {
+describe('knotwise fit --curve smoothing-spline --shape', () => {
   let dir = '';
   before(() => {
     dir = mkdtempSync(join(tmpdir(), 'knotwise-shaped-smooth-'));
   });
   after(() => rmSync(dir, { recursive: true, force: true }));
 
-  it('knotwise fit --curve smooth --shape increasing tunes and reports the constraints (exit 0)', async () => {
+  it('knotwise fit --curve smoothing-spline --shape increasing tunes and reports the constraints (exit 0)', async () => {
     const c = fixture.cases[0] as RCase; // datasets::cars
     const file = join(dir, 'cars.csv');
     writeFileSync(file, `speed,dist\n${c.x.map((x, i) => `${x},${c.y[i]}`).join('\n')}\n`);

@@ -1,5 +1,5 @@
 /**
- * Cubic smoothing spline (core/fit/smoothingSpline.ts): definition, limits, exact
+ * Cubic smoothing spline (core/fit/smoothingSpline/): definition, limits, exact
  * leave-one-out, replicate weights, and a dense solve of the penalised problem with
  * ml-matrix on seeded random data.
  *
@@ -429,7 +429,7 @@ describe('fitSmoothingSpline', () => {
   });
 
   it('fitSmoothingSpline refuses a df so close to interpolation that double precision cannot deliver it', () => {
-    // Source: MAX_VARIANCE_RATIO in core/fit/smoothingSpline.ts. With 2000 knots spaced
+    // Source: MAX_VARIANCE_RATIO in core/fit/smoothingSpline/. With 2000 knots spaced
     // from 2.5e-7 to 1e-3 of the range, df = m - 1.5 needs a lambda where the filter's
     // variances span more than 1e10; a smaller df on the same data is fine.
     const m = 2000;

@@ -2,8 +2,10 @@
  * Tests of `knotwise check` (core/node/check.ts): a current set of outputs passes; a
  * one-byte change in the data or in the table (or the C header) is caught, saying which
  * file changed and how; errors exit with 2; with no argument every record under the folder
- * is found, skipping node_modules and dot folders. Data: MASS::mcycle (Silverman 1985) and
- * datasets::cars (Ezekiel 1930), written by test/e2e/fixtures/make-fixtures.R.
+ * is found, skipping node_modules and dot folders; `--json` gives one object with every
+ * record's state and `--quiet` nothing on stdout, with the same exit codes. Data:
+ * MASS::mcycle (Silverman 1985) and datasets::cars (Ezekiel 1930), written by
+ * test/e2e/fixtures/make-fixtures.R.
  */
 import { strict as assert } from 'node:assert';
 import { execFile } from 'node:child_process';
@@ -11,18 +13,37 @@ import { mkdirSync, mkdtempSync, readFileSync, renameSync, rmSync, writeFileSync
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { checkRecord, findRecords, runCheck } from '../../../core/node/check';
+import { VERSION } from '../../../core/version';
 import { copyFixture, REPO, runMain, type Run } from './runMain';
 
 /** Runs runCheck with `cwd` and output captured. */
 async function check(cwd: string, ...argv: string[]): Promise<Run> {
   let stdout = '';
+  let stderr = '';
   const out = process.stdout.write;
+  const err = process.stderr.write;
   process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
+  process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
   try {
-    return { code: await runCheck(argv, cwd), stdout, stderr: '' };
+    return { code: await runCheck(argv, cwd), stdout, stderr };
   } finally {
     process.stdout.write = out;
+    process.stderr.write = err;
   }
+}
+
+/** One record's state in `check --json`. */
+interface RecordState {
+  readonly file: string;
+  readonly status: string;
+  readonly reasons: string[];
+  readonly advice: string | null;
+}
+
+/** Parses `check --json` output: exactly one JSON object on one line. */
+function checkJson(r: Run): { knotwise: string; records: RecordState[]; counts: Record<string, number>; exitCode: number } {
+  assert.equal(r.stdout.split('\n').filter((l) => l !== '').length, 1, `one line: ${r.stdout}`);
+  return JSON.parse(r.stdout) as { knotwise: string; records: RecordState[]; counts: Record<string, number>; exitCode: number };
 }
 
 /** Replaces the byte at `offset` of a file by `to`; returns a function that restores the file. */
@@ -175,7 +196,89 @@ describe('knotwise check', () => {
     const res = await checkRecord(record);
     assert.equal(res.status, 'current');
     assert.match(res.regenerate ?? '', /--grid auto:2 --emit c,ts,json --report --out \.$/);
-    await assert.rejects(runCheck(['--all'], dir), /unknown option "--all" for check/);
+    await assert.rejects(runCheck(['--all'], dir), /unknown option --all for check; run knotwise check --help for its options/);
+    await assert.rejects(runCheck(['--jsn'], dir), /unknown option --jsn for check; did you mean --json\?/);
+  });
+
+  it('check --json prints one object with each record\'s file, status, reasons and advice, and keeps the exit codes (0 current, 1 changed, 2 error)', async function () {
+    this.timeout(60_000);
+    const current = await check(dir, '--json', join('tables', 'mcycle.fit.json'));
+    assert.equal(current.code, 0, current.stdout);
+    const j0 = checkJson(current);
+    assert.equal(j0.knotwise, VERSION);
+    assert.deepEqual(j0.records, [{ file: join('tables', 'mcycle.fit.json'), status: 'current', reasons: [], advice: null }]);
+    assert.deepEqual(j0.counts, { current: 1, changed: 0, error: 0 });
+    assert.equal(j0.exitCode, 0);
+    // A changed table: status changed, the reason names the file, the advice is the command that rebuilds it.
+    const table = join(out, 'mcycle.curve.csv');
+    const bytes = readFileSync(table);
+    const restore = changeByte(table, bytes.length - 2, bytes[bytes.length - 2] === 0x31 ? '2' : '1');
+    try {
+      const changed = await check(dir, '--json');
+      assert.equal(changed.code, 1, changed.stdout);
+      const j1 = checkJson(changed);
+      assert.equal(j1.exitCode, 1);
+      const rec = j1.records[0] as RecordState;
+      assert.equal(rec.status, 'changed');
+      assert.ok(rec.reasons.some((m) => /^mcycle\.curve\.csv differs from the rebuilt table at line \d+/.test(m)), rec.reasons.join('\n'));
+      assert.match(rec.advice ?? '', /^cd tables && knotwise fit \.\.\/data\/mcycle\.csv --x times --y accel .* --out \.$/);
+    } finally {
+      restore();
+    }
+    // A record that cannot be checked: status error, exit code 2, still one JSON object on stdout.
+    const bad = join(dir, 'broken.fit.json');
+    writeFileSync(bad, '{ "format": ');
+    try {
+      const error = await check(dir, '--json', 'broken.fit.json');
+      assert.equal(error.code, 2);
+      const j2 = checkJson(error);
+      assert.equal(j2.exitCode, 2);
+      assert.equal(j2.records[0]?.status, 'error');
+      assert.match(j2.records[0]?.reasons[0] ?? '', /not valid JSON/);
+      assert.equal(j2.records[0]?.advice, null);
+    } finally {
+      rmSync(bad);
+    }
+    // No records: an empty list and exit code 0.
+    const empty = mkdtempSync(join(tmpdir(), 'knotwise-empty-'));
+    try {
+      const none = await check(empty, '--json');
+      assert.equal(none.code, 0);
+      assert.deepEqual(checkJson(none).records, []);
+    } finally {
+      rmSync(empty, { recursive: true, force: true });
+    }
+  });
+
+  it('check --quiet prints nothing on stdout, keeps the exit code, and names records that could not be checked on stderr', async function () {
+    this.timeout(60_000);
+    const ok = await check(dir, '--quiet');
+    assert.equal(ok.code, 0);
+    assert.equal(ok.stdout, '');
+    assert.equal(ok.stderr, '');
+    const table = join(out, 'mcycle.curve.csv');
+    const bytes = readFileSync(table);
+    const restore = changeByte(table, bytes.length - 2, bytes[bytes.length - 2] === 0x31 ? '2' : '1');
+    try {
+      const changed = await check(dir, '--quiet');
+      assert.equal(changed.code, 1);
+      assert.equal(changed.stdout, '');
+    } finally {
+      restore();
+    }
+    const bad = join(dir, 'broken.fit.json');
+    writeFileSync(bad, '{ "format": ');
+    try {
+      const error = await check(dir, '--quiet', 'broken.fit.json');
+      assert.equal(error.code, 2);
+      assert.equal(error.stdout, '');
+      assert.match(error.stderr, /^knotwise check: broken\.fit\.json: .*not valid JSON/);
+      // --json wins over --quiet for stdout.
+      const both = await check(dir, '--quiet', '--json', 'broken.fit.json');
+      assert.equal(checkJson(both).records[0]?.status, 'error');
+    } finally {
+      rmSync(bad);
+    }
   });
 
   it('knotwise check as a process exits 1 when the table changed (the exit code CI and a pre-commit hook see)', async function () {

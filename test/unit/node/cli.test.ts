@@ -15,6 +15,7 @@ import { execFile } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
+import { CAUTION } from '../../../core/record';
 import { type Run, runMain } from './runMain';
 
 const REL = 1e-8;
@@ -24,7 +25,8 @@ const CLI = join(REPO, 'core', 'node', 'cli.ts');
 
 interface RCase {
   readonly dataset: string;
-  readonly kind: string;
+  /** The fixture's own name of the curve ('natural' is the natural cubic regression spline). */
+  readonly family: string;
   readonly df: number;
   readonly fitted: number[];
   readonly residuals: number[];
@@ -52,7 +54,7 @@ const fixture = JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixture
 const CARS = fixture.datasets.cars as { x: number[]; y: number[] };
 
 function rCase(df: number): RCase {
-  const c = fixture.cases.find((k) => k.dataset === 'cars' && k.kind === 'natural-spline' && k.df === df);
+  const c = fixture.cases.find((k) => k.dataset === 'cars' && k.family === 'natural' && k.df === df);
   if (!c) throw new Error(`no R case for cars natural df ${df}`);
   return c;
 }
@@ -128,7 +130,8 @@ describe('knotwise fit (command line)', () => {
       checkArray('fit.residuals', out.fit.residuals, r.residuals, sy);
       checkArray('fit.leverage', out.fit.leverage, r.hat, 1);
       checkArray('fit.cooksDistance', out.fit.cooksDistance, r.cooks, 1);
-      checkClose('fit.sigma', out.fit.sigma, r.sigma, sy);
+      assert.equal(out.fit.curve, 'natural-spline');
+      checkClose('fit.residualSd', out.fit.residualSd, r.sigma, sy);
       checkClose('fit.r2', out.fit.r2, r.rSquared, 1);
       checkClose('fit.aic', out.fit.aic, r.aic, 1);
       checkClose('fit.bic', out.fit.bic, r.bic, 1);
@@ -189,7 +192,8 @@ describe('knotwise fit (command line)', () => {
       assert.match(out.selected.reason, /One-SE threshold .* chosen\./);
       assert.equal(out.fit.df, out.selected.df);
       assert.equal(out.tuning.seed, 3);
-      assert.equal(out.tuning.resample, 'bootstrap:20');
+      assert.equal(out.tuning.resampling, 'bootstrap:20');
+      assert.equal(out.tuning.curve, 'natural-spline');
       assert.equal(typeof out.diagnostics, 'object');
       assert.ok(Array.isArray(out.diagnostics.warnings) && typeof out.diagnostics.influential === 'object');
       assert.ok(out.diagnostics.shapiroWilk && typeof out.diagnostics.shapiroWilk.pValue === 'number', 'Shapiro-Wilk result');
@@ -304,14 +308,14 @@ describe('knotwise fit (command line)', () => {
 
     it('bad --resampling syntax', async () => {
       for (const bad of ['bootstrap', 'cv:', 'boot:x', 'jackknife']) {
-        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', bad), new RegExp(`resampling "${bad}" is not understood`), /bootstrap:<B>, folds:<K>/);
+        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', bad), new RegExp(`resampling "${bad}" is not understood`), /bootstrap:<resamples>, folds:<k>\[x<repeats>\], leave-one-out, gcv/);
       }
-      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', 'bootstrap:1'), /bootstrap needs a whole number of resamples from 2/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', 'bootstrap:1'), /the bootstrap takes 2 to 5000 resamples; got 1/);
     });
 
     it('bad --rule syntax', async () => {
-      for (const bad of ['best', 'simplest-within', 'tol:-2', '2se']) {
-        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', bad), new RegExp(`rule "${bad}" is not understood`), /lowest, 1se, simplest-within:<percent> \(e\.g\. simplest-within:2\) or df:<k>/);
+      for (const bad of ['best', 'simplest-within', 'tol:2', '1se', 'df:3']) {
+        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--rule', bad), new RegExp(`rule "${bad}" is not understood`), /one-se, simplest-within:<percent>, least-error, pick:<df>/);
       }
     });
 
@@ -319,15 +323,18 @@ describe('knotwise fit (command line)', () => {
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '0:10'), /grid "0:10"/, /not a number/);
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '10:5:count=3'), /stop must be greater than start/);
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '5:25:count=1'), /count must be a whole number/);
+      // The bare third field is refused with the accepted forms (it reads as a count in some notations, a step in others).
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '5:25:5'), /grid "5:25:5"/, /count=<n>/, /step=<h>/);
       // A grid beyond the data (cars speeds 4..25) is refused unless --extrapolate is given.
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '3', '--grid', '0:30:count=7'), /2 grid point\(s\) lie outside the data range \[4, 25\]/);
     });
 
     it('bad --df, an unknown option, a missing file and missing --x/--y', async () => {
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', 'five'), /df "five"/);
-      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--colour'), /--colour/);
+      assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--colour'), /unknown option --colour for fit; run knotwise fit --help for its options/);
       assertRefused(await run('fit', join(dir, 'no-such.csv'), '--x', 'speed', '--y', 'dist'), /no-such\.csv: file not found/);
-      assertRefused(await run('fit', cars, '--x', 'speed'), /both --x and --y/);
+      assertRefused(await run('fit', cars, '--x', 'speed'), /fit needs --x <column> and --y <column>; missing: --y/);
+      assertRefused(await run('fit', '--x', 'speed', '--y', 'dist'), /no data file given/);
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--holdout', '0.9'), /--holdout/);
     });
   });
@@ -375,8 +382,8 @@ describe('knotwise fit: table options, emitters and report (issue #5)', () => {
     assert.deepEqual(out.table.columns, ['x', 'fit', 'negative']);
     assert.ok(out.table.negativePoints > 0);
     assert.ok(out.warnings.some((w: string) => /below zero/.test(w)));
-    assert.match(out.regenerate, /^knotwise fit mcycle\.csv --x times --y accel --curve natural --df 8 --grid auto:2 --columns x,fit --flag-negative --out \.$/);
-    assert.match(out.caution, /not a certified calibration/);
+    assert.match(out.regenerate, /^knotwise fit mcycle\.csv --x times --y accel --curve natural-spline --df 8 --grid auto:2 --columns x,fit --flag-negative --out \.$/);
+    assert.equal(out.caution, CAUTION);
     // Without --out the outputs go next to the data file (issue #5 item 5).
     assert.equal(out.written.table, join(dirname(mcycle), 'mcycle.curve.csv'));
   });
@@ -386,7 +393,7 @@ describe('knotwise fit: table options, emitters and report (issue #5)', () => {
     assert.equal(r0.code, 0, r0.stderr);
     assert.match(r0.stdout, /^Table: 13 rows; linear interpolation between rows stays within [0-9.e+-]+ of the curve$/m);
     assert.match(r0.stdout, /^Warning: 2 table row\(s\) lie outside the data range \[2\.4, 57\.6\] and are extrapolated \(x = 0, 60\)/m);
-    assert.match(r0.stdout, /^Caution: An empirical fit is not a certified calibration\./m);
+    assert.match(r0.stdout, /^Caution: This curve is an empirical fit to the readings shown, not a certified calibration\./m);
   });
 
   it('bad --columns, --emit and automatic grids exit 2 with a message', async () => {
@@ -399,7 +406,7 @@ describe('knotwise fit: table options, emitters and report (issue #5)', () => {
   it('check --help prints its usage; an unknown check option exits 2', async () => {
     const h = await run('check', '--help');
     assert.equal(h.code, 0);
-    assert.match(h.stdout, /usage: knotwise check/);
-    assertRefused(await run('check', '--everything'), /unknown option "--everything" for check/);
+    assert.match(h.stdout, /^Usage:\n {2}knotwise check \[<record\.fit\.json> \| <folder> \.\.\.\]$/m);
+    assertRefused(await run('check', '--everything'), /unknown option --everything for check; run knotwise check --help for its options/);
   });
 });

@@ -58,7 +58,7 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
   });
   after(() => rmSync(dir, { recursive: true, force: true }));
 
-  it('--outcome poisson --json reports the model used and R glm\'s deviance and fitted counts (datasets::discoveries)', async () => {
+  it('--outcome counts --json reports the model used and R glm\'s deviance and fitted counts (datasets::discoveries)', async () => {
     const r = await run('fit', discoveries, '--x', 'year', '--y', 'count', '--outcome', 'counts', '--df', '5', '--json');
     assert.equal(r.code, 0, r.stderr);
     const j = JSON.parse(r.stdout) as { model: unknown; fit: { model: Record<string, unknown>; fitted: number[] }; table: { columns: string[]; rows: number[][] } };
@@ -72,7 +72,7 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     for (const row of j.table.rows) assert.ok((row[lo] as number) > 0, 'the confidence band of a count stays above 0');
   });
 
-  it('--outcome binomial --trials gives R glm(cbind(successes, failures) ~ ns(x)) proportions and names the trials column (MASS::menarche)', async () => {
+  it('--outcome proportions --trials gives R glm(cbind(successes, failures) ~ ns(x)) proportions and names the trials column (MASS::menarche)', async () => {
     const r = await run('fit', menarche, '--x', 'Age', '--y', 'Menarche', '--outcome', 'proportions', '--trials', 'Total', '--df', '5', '--json');
     assert.equal(r.code, 0, r.stderr);
     const j = JSON.parse(r.stdout) as { model: { trials: string; link: string }; fit: { fitted: number[] } };
@@ -97,7 +97,7 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     assert.deepEqual(got.map((g) => g.line).sort((a, b) => a - b), want.map((e) => e.line), 'lines of the down-weighted rows (header is line 1)');
     for (const g of got) close(`weight of line ${g.line}`, g.weight, (want.find((e) => e.line === g.line) as { w: number }).w);
     const text = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--robust', '--df', '5');
-    assert.match(text.stdout, /Model: gaussian outcome \(identity link\); Huber k = 1\.345, scale [0-9.]+, \d+ rows down-weighted \(lines \d+: /);
+    assert.match(text.stdout, /^Model: continuous readings \(Gaussian, identity link\); Huber k = 1\.345, scale [0-9.]+, \d+ rows down-weighted \(lines \d+: /m);
   });
 
   it('--shape increasing reports the constraints and matches the brute-force constrained fit (datasets::cars)', async () => {
@@ -112,11 +112,13 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
   });
 
   it('refuses bad or contradictory model flags with exit code 2 and the reason', async () => {
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--trials', 'speed'), /--trials needs --outcome binomial/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--trials', 'speed'), /--trials needs --outcome proportions/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--shape', 'wiggly'), /unknown shape "wiggly"/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'gamma'), /unknown outcome family "gamma"/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'counts', '--robust'), /Gaussian outcome only/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--robust'), /smoothing spline supports only least squares/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'gamma'), /unknown outcome "gamma"; use continuous, counts, proportions/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'poisson'), /unknown outcome "poisson"/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'counts', '--robust'), /robust fitting applies to continuous readings only/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--robust'), /the cubic smoothing spline has no robust fit/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--curve', 'natural'), /unknown curve "natural"; use natural-spline, polynomial, smoothing-spline/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--robust-k', '0'), /--robust-k must be a positive number/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'proportions', '--df', '3'), /cars\.csv, line 2, column "dist": a binomial outcome without a trials column must be a proportion/);
   });

@@ -57,7 +57,7 @@ describe('reportMarkdown', () => {
   });
 
   it('starts with the title and the caution, then the warnings', () => {
-    assert.match(report, /^# Curve review: airquality\.csv\n\n> \*\*Caution\.\*\* An empirical fit is not a certified calibration\./);
+    assert.match(report, /^# Curve review: airquality\.csv\n\n> \*\*Caution\.\*\* This curve is an empirical fit to the readings shown, not a certified calibration\./);
     // The fitted rows (held-out rows excluded) span 57 to 97 degrees F; brackets are escaped for Markdown.
     assert.match(report, /\n## Warnings\n\n- ⚠ 2 table row\(s\) lie outside the data range \\\[57, 97\\\] and are extrapolated \(x = 50, 100\)/);
   });
@@ -69,7 +69,7 @@ describe('reportMarkdown', () => {
 
   it('explains the choice with the rule, the resampling and the held-out check, and lists the candidates', () => {
     assert.match(report, /One-SE threshold/);
-    assert.match(report, /5-fold cross-validation, repeated 2 times, folds stratified by x, seed 9; the rule is the one-standard-error rule \(`--rule 1se`\)/);
+    assert.match(report, /5-fold cross-validation, repeated 2 times, folds stratified by x, seed 9; the rule is the one-standard-error rule \(`--rule one-se`\)/);
     assert.match(report, /Held-out check \(\d+ rows, 20 % set aside before tuning and used once\)/);
     assert.match(report, /\| df \| mean RMSE \| SE \| AIC \| BIC \| \|\n\| ---: /);
     assert.match(report, /\*\*chosen\*\*/);
@@ -86,7 +86,7 @@ describe('reportMarkdown', () => {
   });
 
   it('ends with how to reproduce and check, in a shell block', () => {
-    assert.match(report, /```sh\nknotwise fit airquality\.csv --x Temp --y Ozone --curve natural --df 2,3,4,5,6 --resampling folds:5x2 --rule 1se --seed 9 --holdout 0\.2 --grid 50,60,70,80,90,100 --extrapolate --flag-negative --emit c --report --out \.\nknotwise check airquality\.fit\.json\n```\n$/);
+    assert.match(report, /```sh\nknotwise fit airquality\.csv --x Temp --y Ozone --curve natural-spline --df 2,3,4,5,6 --resampling folds:5x2 --rule one-se --seed 9 --holdout 0\.2 --grid 50,60,70,80,90,100 --extrapolate --flag-negative --emit c --report --out \.\nknotwise check airquality\.fit\.json\n```\n$/);
     assert.match(report, /generated code: \[airquality\.curve\.h\]\(airquality\.curve\.h\)/);
   });
 });

@@ -23,7 +23,8 @@ const REL = 1e-8;
 
 interface FixtureCase {
   readonly dataset: string;
-  readonly kind: string;
+  /** The R basis of the case (test/reference/r/fits.R): 'natural' is splines::ns. */
+  readonly family: string;
   readonly df: number;
   readonly looRmse: number;
   readonly gcv: number;
@@ -41,7 +42,7 @@ function dataset(name: string): XYData {
 }
 
 function rCase(dataset: string, df: number): FixtureCase {
-  const c = fixture.cases.find((k) => k.dataset === dataset && k.kind === 'natural-spline' && k.df === df);
+  const c = fixture.cases.find((k) => k.dataset === dataset && k.family === 'natural' && k.df === df);
   if (!c) throw new Error(`no R case for ${dataset} natural df ${df}`);
   return c;
 }

@@ -25,7 +25,7 @@ interface Dataset {
 interface FitsCase {
   readonly name: string;
   readonly dataset: string;
-  readonly kind: 'natural-spline' | 'polynomial';
+  readonly family: 'natural' | 'poly';
   readonly df: number;
   readonly residuals: number[];
   readonly hat: number[];
@@ -72,7 +72,7 @@ describe('fitDetail', () => {
     it(`fitDetail(${name}): the normal quantile plot shows R's rstandard and the residual figures reading minus fit`, () => {
       const c = fits.cases.find((k) => k.name === name) as FitsCase;
       const d = data(fits.datasets[c.dataset] as Dataset);
-      const detail = fitDetail(fitCurve(d, { kind: c.kind, df: c.df }), d);
+      const detail = fitDetail(fitCurve(d, { kind: c.family === 'natural' ? 'natural-spline' : 'polynomial', df: c.df }), d);
       const w = d.w;
       const rstandard = c.residuals.map((r, i) => (r * Math.sqrt(w ? (w[i] as number) : 1)) / (c.sigma * Math.sqrt(1 - (c.hat[i] as number))));
       closeAll(`${name} standardised residuals`, detail.qq.sample, sorted(rstandard));

@@ -42,7 +42,7 @@ describe('buildPanelPayload', () => {
     }
     assert.equal(p.model.outcome, 'counts');
     assert.equal(p.model.link, 'log');
-    assert.match(p.model.words, /^Poisson counts \(log link\)/);
+    assert.match(p.model.words, /^counts \(Poisson, log link\)/);
   });
 
   it("buildPanelPayload sends the residual details of the starting rule's df only; others come from detailFor", async () => {
