@@ -5,7 +5,7 @@
  */
 import { copyFileSync, mkdirSync } from 'node:fs';
 import { dirname, join } from 'node:path';
-import { main } from '../../../core/node/cli';
+import { type CliEnv, main } from '../../../core/node/cli';
 
 export const REPO = join(__dirname, '..', '..', '..');
 
@@ -16,8 +16,16 @@ export interface Run {
   readonly stderr: string;
 }
 
-/** Runs `main(argv)` with output captured. */
+/**
+ * Runs `main(argv)` with output captured. Standard input is empty and standard error is not
+ * a terminal, whatever the test runner's are, so no progress line shows by itself.
+ */
 export async function runMain(...argv: string[]): Promise<Run> {
+  return runMainWith({}, ...argv);
+}
+
+/** Runs `main(argv)` with output captured and `env` (standard input, progress stream, clock) injected. */
+export async function runMainWith(env: Partial<CliEnv>, ...argv: string[]): Promise<Run> {
   let stdout = '';
   let stderr = '';
   const out = process.stdout.write;
@@ -25,7 +33,12 @@ export async function runMain(...argv: string[]): Promise<Run> {
   process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
   process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
   try {
-    const code = await main(argv);
+    const code = await main(argv, {
+      readStdin: () => Promise.resolve(new Uint8Array(0)),
+      stdinIsTTY: false,
+      progressStream: { write: (t: string) => process.stderr.write(t), isTTY: false },
+      ...env,
+    });
     return { code, stdout, stderr };
   } finally {
     process.stdout.write = out;

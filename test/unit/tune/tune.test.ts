@@ -159,7 +159,7 @@ describe('tuneCurve', () => {
     );
     await assert.rejects(
       tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [3], resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1, metric: 'gcv' }),
-      (e: unknown) => e instanceof InputError && /--resampling gcv/.test(e.message),
+      (e: unknown) => e instanceof InputError && /only available with gcv resampling/.test(e.message),
     );
   });
 
