@@ -16,7 +16,7 @@ export interface AnalysisOptions extends ModelOptions {
 /** Residual checks of the chosen fit (each absent when it does not apply). */
 export interface Diagnostics {
   readonly shapiroWilk?: { readonly statistic: number; readonly pValue: number; readonly n: number; readonly note?: string };
-  readonly durbinWatson?: { readonly statistic: number; readonly pValue: number; readonly method: string };
+  readonly durbinWatson?: { readonly statistic: number; readonly pValue: number; readonly method: 'exact' | 'normal' | 'asymptotic' };
   readonly breuschPagan?: { readonly statistic: number; readonly df: number; readonly pValue: number };
   readonly lackOfFit?: { readonly F: number; readonly df1: number; readonly df2: number; readonly pValue: number };
   readonly influential: {

@@ -1,3 +1,4 @@
+import { testText } from './words/numbers';
 import type { Diagnostics } from './analysisTypes';
 import { RowBasisCurve } from './fit/linearFit';
 import { breuschPagan } from './stats/breuschPagan';
@@ -49,24 +50,24 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   if (n >= 3 && spread && checked.gaussianChecks) {
     const sw = shapiroWilk(scaled);
     out.shapiroWilk = sw;
-    if (sw.pValue < CHECK_LEVEL) warnings.push(`Residuals do not look normal (Shapiro-Wilk W = ${sig(sw.statistic, 4)}, p = ${sig(sw.pValue, 2)}); the bands assume normal errors.`);
+    if (sw.pValue < CHECK_LEVEL) warnings.push(`Residuals do not look normal (Shapiro-Wilk ${testText('W', [], sw.statistic, sw.pValue)}); the bands assume normal errors.`);
   }
   if (n >= 3 && spread) {
     // One pass over the design rows serves both tests when the model has a finite design.
     const both = design && checked.gaussianChecks ? durbinWatsonAndBreuschPagan(scaled, design) : undefined;
     const dw = both ? both.durbinWatson : durbinWatson(scaled, design);
     out.durbinWatson = dw;
-    if (dw.pValue < CHECK_LEVEL) warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${sig(dw.statistic)}, p = ${sig(dw.pValue, 2)}): the curve may be too stiff, or the readings drift.`);
+    if (dw.pValue < CHECK_LEVEL) warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${testText('DW', [], dw.statistic, dw.pValue)}): the curve may be too stiff, or the readings drift.`);
     if (checked.gaussianChecks) {
       const bp = both ? both.breuschPagan : breuschPagan(scaled, lineDesign(xSorted, rootW));
       out.breuschPagan = bp;
-      if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${sig(bp.statistic)}, df ${bp.df}, p = ${sig(bp.pValue, 2)}); the bands assume constant spread. Consider weights.`);
+      if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${testText('BP χ²', [bp.df], bp.statistic, bp.pValue)}); the bands assume constant spread. Consider weights.`);
     }
   }
   const lof = checked.gaussianChecks ? lackOfFit(data.x, data.y, w, fit.rss, fit.df, order) : undefined;
   if (lof) {
     out.lackOfFit = lof;
-    if (lof.pValue < CHECK_LEVEL) warnings.push(`The curve misses the means of replicated readings more than their scatter explains (lack-of-fit F = ${sig(lof.F)}, p = ${sig(lof.pValue, 2)}); a more flexible curve may be needed.`);
+    if (lof.pValue < CHECK_LEVEL) warnings.push(`The curve misses the means of replicated readings more than their scatter explains (lack-of-fit ${testText('F', [lof.df1, lof.df2], lof.F, lof.pValue)}); a more flexible curve may be needed.`);
   }
   if (out.influential.total > 0) {
     const strong = out.influential.rows.filter((r) => r.cooksDistance > 1);

@@ -1,193 +1,20 @@
 /**
- * The one message protocol between the VS Code host and the Knotwise panel (webview).
- * Every message is a tagged union member with readonly fields; both sides switch on
- * `type` with an exhaustiveness check. Requests that need an answer carry an id, results
- * carry the run id they belong to so that the panel drops anything from an outdated run.
- * Everything here is plain JSON (numbers, strings, arrays): no typed arrays, no Maps.
+ * The one message protocol between the VS Code host and the Knotwise panel (webview): the
+ * messages of each direction as a tagged union with readonly fields, and the runtime
+ * guards each side runs on what it receives. Both sides switch on `type` with an
+ * exhaustiveness check. Requests that need an answer carry an id; results carry the run id
+ * they belong to, so the panel drops anything from an outdated run. What the messages
+ * carry (the payload, the residual details) is the view model of core/view/model.ts.
+ *
+ * The guards accept a message only when it has exactly the fields of its type (no unknown
+ * or inherited keys, so no `__proto__`), every number is finite where one is required,
+ * ids and lines are integers, and texts stay under MAX_MESSAGE_TEXT characters.
  */
-import type { CurveKindId, Outcome, Shape } from './types';
-import type { CandidateResult, HoldoutReport, Metric, RuleSpec } from './tune/types';
-
-/** Readings drawn one by one (small n) or as a 2-D count grid (large n or heavy overplotting). */
-export type Cloud = CloudPoints | CloudBins;
-
-/** Every reading as a point, with its 1-based CSV line for hover text and navigation. */
-export interface CloudPoints {
-  readonly kind: 'points';
-  readonly x: readonly number[];
-  readonly y: readonly number[];
-  /** 1-based CSV line of each point (0 when unknown). */
-  readonly lines: readonly number[];
-}
-
-/** Readings counted on an nx-by-ny grid over [xMin, xMax] x [yMin, yMax]; counts are row-major from the lowest y row. */
-export interface CloudBins {
-  readonly kind: 'bins';
-  readonly xMin: number;
-  readonly xMax: number;
-  readonly yMin: number;
-  readonly yMax: number;
-  readonly nx: number;
-  readonly ny: number;
-  /** counts[j * nx + i] is the number of readings in x cell i, y cell j. */
-  readonly counts: readonly number[];
-  /** Number of readings binned (may be less than n when some are not finite). */
-  readonly total: number;
-}
-
-/** One candidate's curve and both 95 % bands on the payload's shared grid. */
-export interface CurveView {
-  readonly df: number;
-  readonly fit: readonly number[];
-  readonly ciLower: readonly number[];
-  readonly ciUpper: readonly number[];
-  readonly piLower: readonly number[];
-  readonly piUpper: readonly number[];
-}
-
-/** A row that stands out by leverage or Cook's distance, named by its CSV line. */
-export interface InfluentialRow {
-  readonly line: number;
-  readonly x: number;
-  readonly y: number;
-  readonly leverage: number;
-  readonly cooksDistance: number;
-  /** Which thresholds it exceeds, in words. */
-  readonly exceeds: readonly string[];
-}
-
-/** One residual check's outcome in words (statistic, p-value, verdict). */
-export interface CheckView {
-  readonly name: string;
-  readonly text: string;
-  /** True when the check flags a problem at the 5 % level. */
-  readonly flagged: boolean;
-}
-
-/** A row a robust (Huber) fit gave weight below 1, named by its CSV line. */
-export interface DownweightedRow {
-  readonly line: number;
-  readonly x: number;
-  readonly y: number;
-  /** Huber weight in (0, 1). */
-  readonly weight: number;
-}
-
-/** The model report of one fitted df (outcome family, shape constraints, robust weights); see core/types.ts ModelReport. */
-export interface ModelReportView {
-  readonly converged: boolean;
-  /** Reweighting iterations (1 for a single constrained least-squares solve). */
-  readonly iterations: number;
-  /** Poisson and binomial: deviance, null deviance, Pearson dispersion (about 1 when the variance follows the family). */
-  readonly glm?: { readonly deviance: number; readonly nullDeviance: number; readonly dispersion: number };
-  /** Shape constraints: inequalities in total, how many hold with equality, df minus the independent active ones. */
-  readonly constraints?: { readonly total: number; readonly active: number; readonly effectiveDf: number };
-  /** Huber fitting: tuning constant, robust scale, rows down-weighted (lowest weight first, at most a few dozen listed). */
-  readonly robust?: { readonly k: number; readonly scale: number; readonly total: number; readonly rows: readonly DownweightedRow[] };
-  /** The report in plain words, one fact per line. */
-  readonly lines: readonly string[];
-}
-
-/** Everything the residual figures and texts need for one df. */
-export interface FitDetail {
-  readonly df: number;
-  readonly sigma: number;
-  readonly r2: number;
-  readonly residualDf: number;
-  readonly aic: number;
-  readonly bic: number;
-  readonly lambda?: number;
-  /** Plain-language notes of the fit (tied knots moved, ...). */
-  readonly notes: readonly string[];
-  readonly knots: readonly number[];
-  /** What the residual figures show: reading minus fit ('response'), or deviance residuals of a Poisson or binomial fit. */
-  readonly residualKind: 'response' | 'deviance';
-  readonly residualsVsX: Cloud;
-  readonly residualsVsFitted: Cloud;
-  /** Normal quantile plot of standardised residuals, at most a few hundred quantiles. */
-  readonly qq: { readonly theoretical: readonly number[]; readonly sample: readonly number[] };
-  /** Cook's distance against x: every row for small n, else the largest value per x cell. */
-  readonly cooks: { readonly x: readonly number[]; readonly d: readonly number[]; readonly lines: readonly number[]; readonly binned: boolean };
-  /** Leverage against x, drawn like `cooks`. */
-  readonly leverage: { readonly x: readonly number[]; readonly h: readonly number[]; readonly lines: readonly number[]; readonly binned: boolean };
-  readonly cooksThreshold: number;
-  readonly leverageThreshold: number;
-  /** Influential rows, largest Cook's distance first, at most a few dozen. */
-  readonly influential: readonly InfluentialRow[];
-  /** How many rows exceed a threshold in total. */
-  readonly influentialTotal: number;
-  /** Residual checks (present for the df they were computed for). */
-  readonly checks: readonly CheckView[];
-  /** Warnings specific to this df (failed checks, negative predictions, ...). */
-  readonly warnings: readonly string[];
-  /** Present when an outcome family other than Gaussian, shape constraints or robust fitting was used. */
-  readonly model?: ModelReportView;
-}
-
-/** Where the data came from and what the columns are called (text from the CSV: insert as text only). */
-export interface SourceView {
-  readonly fileName: string;
-  readonly xLabel: string;
-  readonly yLabel: string;
-  readonly weightsLabel?: string;
-}
-
-/** The options the panel's controls switch: outcome family, shape constraints, robust fitting. */
-export interface ModelChoice {
-  readonly outcome: Outcome;
-  readonly shape: readonly Shape[];
-  readonly robust: boolean;
-}
-
-/** Which outcome family, shapes and robust fitting a run used. */
-export interface ModelView extends ModelChoice {
-  readonly link: 'identity' | 'log' | 'logit';
-  /** Huber tuning constant when robust. */
-  readonly robustK?: number;
-  /** Binomial outcome with a trials column: its label (text from the CSV). */
-  readonly trialsLabel?: string;
-  /** The options in plain words. */
-  readonly words: string;
-  /** True when the panel's controls set them (they override the settings for this file). */
-  readonly fromPanel: boolean;
-  /** What the curve family supports (core/fit/model.ts resolveModel). */
-  readonly supports: { readonly outcomes: readonly Outcome[]; readonly shapes: boolean; readonly robust: boolean };
-}
-
-/** The whole panel content of one run. */
-export interface PanelPayload {
-  readonly runId: number;
-  readonly source: SourceView;
-  /** Rows used for tuning and fitting, rows rejected while reading, rows held out. */
-  readonly rows: { readonly used: number; readonly rejected: number; readonly heldOut: number };
-  readonly kind: CurveKindId;
-  /** Outcome family, shapes and robust fitting used. */
-  readonly model: ModelView;
-  /** The curve family in words. */
-  readonly curveWords: string;
-  /** How candidate errors were estimated, in words (e.g. "bootstrap, 50 resamples, seed 1"). */
-  readonly resamplingWords: string;
-  readonly metric: Metric;
-  /** Candidates as tuned (per-resample values removed to keep the message small). */
-  readonly candidates: readonly CandidateResult[];
-  /** The rule the settings ask for; the panel starts with it. */
-  readonly rule: RuleSpec;
-  /** Tolerance the panel offers when the person switches to the tolerance rule. */
-  readonly tolerancePercent: number;
-  readonly holdout?: HoldoutReport;
-  /** Tuning and analysis notes. */
-  readonly notes: readonly string[];
-  /** Warnings that hold for the whole run (extrapolation, held-out set much worse, ...). */
-  readonly warnings: readonly string[];
-  /** The short caution shown on every panel. */
-  readonly caution: string;
-  readonly data: Cloud;
-  /** Shared x grid of every curve in `curves`. */
-  readonly grid: readonly number[];
-  readonly curves: readonly CurveView[];
-  /** Details of the df `rule` chooses; others are asked for with `needDetail`. */
-  readonly details: readonly FitDetail[];
-}
+import { SHAPES } from './fit/shape';
+import { OUTCOME_LIST } from './registry/outcomes/index';
+import { MAX_TOLERANCE_PERCENT } from './registry/rules/index';
+import type { RuleSpec } from './tune/types';
+import type { FitDetail, ModelChoice, PanelPayload } from './view/model';
 
 /** Messages from the host to the panel. */
 export type HostMessage =
@@ -226,52 +53,181 @@ export function unreachable(x: never): never {
   throw new Error(`unexpected message ${JSON.stringify(x)}`);
 }
 
-/** True when `m` looks like a PanelMessage (the host checks everything it receives). */
-export function isPanelMessage(m: unknown): m is PanelMessage {
-  if (typeof m !== 'object' || m === null) return false;
-  const o = m as Record<string, unknown>;
-  const num = (k: string): boolean => typeof o[k] === 'number' && Number.isFinite(o[k]);
-  switch (o.type) {
-    case 'ready':
-    case 'rerun':
-      return true;
-    case 'needDetail':
-      return num('runId') && num('df');
-    case 'choice':
-      return num('runId') && num('df') && isRuleSpec(o.rule);
-    case 'save':
-      return num('requestId') && num('runId') && isRuleSpec(o.rule);
-    case 'revealLine':
-      return num('line');
-    case 'model':
-      return num('runId') && isModelChoice(o.model);
+/** Longest text a message field may hold (status and error lines, file names, notes). */
+export const MAX_MESSAGE_TEXT = 65_536;
+/** Most files one `saved` answer lists (table, record, code files, report and its figures). */
+export const MAX_SAVED_FILES = 64;
+/** Deepest nesting of objects and arrays a payload or detail may have. */
+const MAX_DEPTH = 16;
+
+type Fields = Readonly<Record<string, unknown>>;
+
+/** `v` as a record of its own fields when it is a plain object (not an array, not a class instance), else undefined. */
+function plainObject(v: unknown): Fields | undefined {
+  if (typeof v !== 'object' || v === null || Array.isArray(v)) return undefined;
+  const proto: unknown = Object.getPrototypeOf(v);
+  return proto === Object.prototype || proto === null ? (v as Fields) : undefined;
+}
+
+/** True when the own keys of `o` are exactly the required ones plus any of the optional ones. */
+function hasExactKeys(o: Fields, required: readonly string[], optional: readonly string[] = []): boolean {
+  const keys = Object.keys(o);
+  if (Object.getOwnPropertySymbols(o).length > 0) return false;
+  for (const k of required) if (!Object.prototype.hasOwnProperty.call(o, k)) return false;
+  return keys.every((k) => required.includes(k) || optional.includes(k));
+}
+
+const isFiniteNumber = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
+const isId = (v: unknown): v is number => Number.isSafeInteger(v) && (v as number) >= 0;
+const isPositive = (v: unknown): v is number => isFiniteNumber(v) && v > 0;
+const isText = (v: unknown): v is string => typeof v === 'string' && v.length <= MAX_MESSAGE_TEXT;
+
+/** Keys that could reach an object's prototype when copied carelessly. */
+const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor', 'prototype']);
+
+/**
+ * True when `v` is plain data: plain objects, arrays, strings under MAX_MESSAGE_TEXT,
+ * numbers (NaN included: a GCV standard error is NaN), booleans, null and undefined, at most MAX_DEPTH deep, with no `__proto__`, `constructor`
+ * or `prototype` key anywhere. O(size of v).
+ */
+function isPlainData(v: unknown, depth = 0): boolean {
+  if (v === null || v === undefined || typeof v === 'number' || typeof v === 'boolean') return true;
+  if (typeof v === 'string') return v.length <= MAX_MESSAGE_TEXT;
+  if (depth >= MAX_DEPTH) return false;
+  if (Array.isArray(v)) {
+    for (const item of v) if (!isPlainData(item, depth + 1)) return false;
+    return true;
+  }
+  const o = plainObject(v);
+  if (!o || Object.getOwnPropertySymbols(o).length > 0) return false;
+  for (const k of Object.keys(o)) if (FORBIDDEN_KEYS.has(k) || !isPlainData(o[k], depth + 1)) return false;
+  return true;
+}
+
+const OUTCOME_IDS: readonly string[] = OUTCOME_LIST.map((o) => o.id);
+const SHAPE_NAMES: readonly string[] = SHAPES;
+
+/** True when `r` is a well-formed RuleSpec: a known kind with exactly its fields (tolerance 0-100 %, a positive df). */
+export function isRuleSpec(r: unknown): r is RuleSpec {
+  const o = plainObject(r);
+  if (!o) return false;
+  switch (o.kind) {
+    case 'least-error':
+    case 'one-se':
+      return hasExactKeys(o, ['kind']);
+    case 'simplest-within':
+      return hasExactKeys(o, ['kind', 'percent']) && isFiniteNumber(o.percent) && o.percent >= 0 && o.percent <= MAX_TOLERANCE_PERCENT;
+    case 'pick':
+      return hasExactKeys(o, ['kind', 'df']) && isPositive(o.df);
     default:
       return false;
   }
 }
 
-const OUTCOMES: readonly string[] = ['continuous', 'counts', 'proportions'];
-const SHAPE_NAMES: readonly string[] = ['increasing', 'decreasing', 'nonnegative', 'convex', 'concave'];
-
-/** True when `m` is a well-formed ModelChoice (names known; combinations are checked by the host). */
+/** True when `m` is a well-formed ModelChoice: a known outcome, distinct known shapes, a boolean (combinations are checked by the host). */
 export function isModelChoice(m: unknown): m is ModelChoice {
-  if (typeof m !== 'object' || m === null) return false;
-  const o = m as Record<string, unknown>;
-  return OUTCOMES.includes(o.outcome as string) && Array.isArray(o.shape) && o.shape.every((s) => SHAPE_NAMES.includes(s as string)) && typeof o.robust === 'boolean';
+  const o = plainObject(m);
+  if (!o || !hasExactKeys(o, ['outcome', 'shape', 'robust'])) return false;
+  const shape = o.shape;
+  return (
+    typeof o.outcome === 'string' &&
+    OUTCOME_IDS.includes(o.outcome) &&
+    Array.isArray(shape) &&
+    shape.length <= SHAPE_NAMES.length &&
+    shape.every((s, i) => typeof s === 'string' && SHAPE_NAMES.includes(s) && shape.indexOf(s) === i) &&
+    typeof o.robust === 'boolean'
+  );
 }
 
-/** True when `r` is a well-formed RuleSpec. */
-export function isRuleSpec(r: unknown): r is RuleSpec {
-  if (typeof r !== 'object' || r === null) return false;
-  const o = r as Record<string, unknown>;
-  switch (o.kind) {
-    case 'least-error':
-    case 'one-se':
-      return true;
-    case 'simplest-within':
-      return typeof o.percent === 'number' && Number.isFinite(o.percent) && o.percent >= 0;
-    case 'pick':
-      return typeof o.df === 'number' && Number.isFinite(o.df);
+/** True when `m` is a PanelMessage (the host checks everything it receives). */
+export function isPanelMessage(m: unknown): m is PanelMessage {
+  const o = plainObject(m);
+  if (!o) return false;
+  switch (o.type) {
+    case 'ready':
+    case 'rerun':
+      return hasExactKeys(o, ['type']);
+    case 'needDetail':
+      return hasExactKeys(o, ['type', 'runId', 'df']) && isId(o.runId) && isPositive(o.df);
+    case 'choice':
+      return hasExactKeys(o, ['type', 'runId', 'rule', 'df']) && isId(o.runId) && isPositive(o.df) && isRuleSpec(o.rule);
+    case 'save':
+      return hasExactKeys(o, ['type', 'requestId', 'runId', 'rule']) && isId(o.requestId) && isId(o.runId) && isRuleSpec(o.rule);
+    case 'revealLine':
+      return hasExactKeys(o, ['type', 'line']) && isId(o.line) && o.line >= 1;
+    case 'model':
+      return hasExactKeys(o, ['type', 'runId', 'model']) && isId(o.runId) && isModelChoice(o.model);
+    default:
+      return false;
+  }
+}
+
+/** True when every named field of `o` is an array. */
+const arrays = (o: Fields, keys: readonly string[]): boolean => keys.every((k) => Array.isArray(o[k]));
+
+/** The fields of a payload the panel reads before anything else; the rest is checked as plain data. */
+function isPanelPayload(p: unknown): p is PanelPayload {
+  const o = plainObject(p);
+  if (!o || !isId(o.runId) || !isPlainData(o)) return false;
+  const source = plainObject(o.source);
+  const rows = plainObject(o.rows);
+  const model = plainObject(o.model);
+  const data = plainObject(o.data);
+  return (
+    source !== undefined &&
+    typeof source.fileName === 'string' &&
+    typeof source.xLabel === 'string' &&
+    typeof source.yLabel === 'string' &&
+    rows !== undefined &&
+    [rows.used, rows.rejected, rows.heldOut].every(isId) &&
+    model !== undefined &&
+    typeof model.outcome === 'string' &&
+    typeof model.words === 'string' &&
+    data !== undefined &&
+    (data.kind === 'points' || data.kind === 'bins') &&
+    typeof o.metric === 'string' &&
+    isRuleSpec(o.rule) &&
+    isFiniteNumber(o.tolerancePercent) &&
+    typeof o.caution === 'string' &&
+    arrays(o, ['candidates', 'notes', 'warnings', 'grid', 'curves', 'details'])
+  );
+}
+
+/** The fields of a detail the panel reads first; the rest is checked as plain data. */
+function isFitDetail(d: unknown): d is FitDetail {
+  const o = plainObject(d);
+  return (
+    o !== undefined &&
+    isPositive(o.df) &&
+    (o.residualKind === 'response' || o.residualKind === 'deviance') &&
+    arrays(o, ['notes', 'knots', 'influential', 'checks', 'warnings']) &&
+    isPlainData(o)
+  );
+}
+
+/** True when `m` is a HostMessage (the panel checks everything it receives before showing it). */
+export function isHostMessage(m: unknown): m is HostMessage {
+  const o = plainObject(m);
+  if (!o) return false;
+  switch (o.type) {
+    case 'running':
+    case 'failed':
+      return hasExactKeys(o, ['type', 'runId', 'message']) && isId(o.runId) && isText(o.message);
+    case 'result':
+      return hasExactKeys(o, ['type', 'payload']) && isPanelPayload(o.payload);
+    case 'detail':
+      return hasExactKeys(o, ['type', 'runId', 'detail']) && isId(o.runId) && isFitDetail(o.detail);
+    case 'saved':
+      return (
+        hasExactKeys(o, ['type', 'requestId', 'files'], ['note']) &&
+        isId(o.requestId) &&
+        Array.isArray(o.files) &&
+        o.files.length <= MAX_SAVED_FILES &&
+        o.files.every(isText) &&
+        (o.note === undefined || isText(o.note))
+      );
+    case 'saveFailed':
+      return hasExactKeys(o, ['type', 'requestId', 'message']) && isId(o.requestId) && isText(o.message);
     default:
       return false;
   }

@@ -12,7 +12,8 @@ import { selectColumns, type Selection as ColumnSelection } from '../core/ingest
 import { selectTrials } from '../core/ingest/trials';
 import { placed } from '../core/node/pipeline';
 import { workerRunner } from '../core/node/pool';
-import type { FitDetail, ModelChoice, PanelMessage, PanelPayload } from '../core/protocol';
+import type { PanelMessage } from '../core/protocol';
+import type { FitDetail, ModelChoice, PanelPayload } from '../core/view/model';
 import { unreachable } from '../core/protocol';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec } from '../core/tune/types';

@@ -163,7 +163,12 @@ export function optionForm(o: OptionSpec): string {
 /** The message for an unknown option, naming the nearest known one. */
 function unknownOption(spec: CommandSpec, token: string): InputError {
   const bare = token.replace(/^-+/, '').split('=')[0] as string;
-  const guess = bare ? nearest(bare, spec.options.map((o) => o.name)) : undefined;
+  const guess = bare
+    ? nearest(
+        bare,
+        spec.options.map((o) => o.name),
+      )
+    : undefined;
   return new InputError(`unknown option ${token.split('=')[0]} for ${spec.name}; ${guess !== undefined ? `did you mean --${guess}?` : `run knotwise ${spec.name} --help for its options`}`);
 }
 
@@ -235,12 +240,19 @@ export function parseCommand<N extends string>(spec: CommandSpec<N>, argv: reado
   const { min, max, name } = spec.operands;
   if (operands.length > max) {
     const extra = operands[max] as string;
-    throw new InputError(max === 0 ? `${spec.name} takes no ${name}; got "${extra}"` : `unexpected argument "${extra}" for ${spec.name}, which takes ${max === 1 ? `one ${name}` : `at most ${max} ${name}s`}`);
+    throw new InputError(
+      max === 0 ? `${spec.name} takes no ${name}; got "${extra}"` : `unexpected argument "${extra}" for ${spec.name}, which takes ${max === 1 ? `one ${name}` : `at most ${max} ${name}s`}`,
+    );
   }
   if (operands.length < min) throw new InputError(spec.operands.missing ?? `no ${name} given: knotwise ${spec.usage[0] as string}`);
   const missing = spec.options.filter((o) => o.required && !values.has(o.name));
   if (missing.length) {
-    throw new InputError(`${spec.name} needs ${spec.options.filter((o) => o.required).map(optionForm).join(' and ')}; missing: ${missing.map((o) => `--${o.name}`).join(', ')}`);
+    throw new InputError(
+      `${spec.name} needs ${spec.options
+        .filter((o) => o.required)
+        .map(optionForm)
+        .join(' and ')}; missing: ${missing.map((o) => `--${o.name}`).join(', ')}`,
+    );
   }
   return new ParsedArgs(spec, values, operands, false);
 }

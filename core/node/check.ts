@@ -93,7 +93,12 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
     // The data may have changed so that it no longer fits: say both.
     const sha = sha256(readFileSync(dataFile));
     if (sha !== rec.dataSha256) {
-      return { record: recordPath, status: 'changed', messages: [`data ${rec.dataPath} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(sha)}`, `the outputs cannot be rebuilt from it: ${errorText(e)}`], regenerate };
+      return {
+        record: recordPath,
+        status: 'changed',
+        messages: [`data ${rec.dataPath} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(sha)}`, `the outputs cannot be rebuilt from it: ${errorText(e)}`],
+        regenerate,
+      };
     }
     return { record: recordPath, status: 'error', messages: [`the outputs cannot be rebuilt: ${errorText(e)}`], regenerate };
   }

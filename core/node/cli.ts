@@ -96,14 +96,19 @@ function fitCommand() {
         defaultText: 'no constraint',
         limits: `curves ${kindsWith((k) => k.supports.shapes)}; the smoothing spline up to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x`,
       },
-      { group: 'Curve', name: 'robust', help: `robust fitting (Huber M-estimation, k = ${HUBER_K}): rows far from the curve are down-weighted and listed by line`, limits: `curves ${kindsWith((k) => k.supports.robust)}; continuous readings only` },
-      { group: 'Curve', name: 'robust-k', value: 'k', help: 'the robust fit\'s tuning constant; implies --robust', defaultText: `${HUBER_K} with --robust`, limits: `above 0, at most ${MAX_HUBER_K}` },
+      {
+        group: 'Curve',
+        name: 'robust',
+        help: `robust fitting (Huber M-estimation, k = ${HUBER_K}): rows far from the curve are down-weighted and listed by line`,
+        limits: `curves ${kindsWith((k) => k.supports.robust)}; continuous readings only`,
+      },
+      { group: 'Curve', name: 'robust-k', value: 'k', help: "the robust fit's tuning constant; implies --robust", defaultText: `${HUBER_K} with --robust`, limits: `above 0, at most ${MAX_HUBER_K}` },
       {
         group: 'Tuning',
         name: 'df',
         value: 'df',
         help: 'one df, fitted as is (k), or the candidates to tune over (a,b,c or a..b)',
-        defaultText: 'the curve kind\'s candidates for the data',
+        defaultText: "the curve kind's candidates for the data",
         limits: `each at least 1; at most ${MAX_CANDIDATES} candidates`,
       },
       {
@@ -115,9 +120,24 @@ function fitCommand() {
         choices: RESAMPLING_LIST.map((s) => ({ value: s.syntax, help: s.description })),
         limits: resamplingLimits(),
       },
-      { group: 'Tuning', name: 'rule', value: 'rule', help: 'how the df is chosen from the candidates', default: DEFAULT_RULE, choices: RULE_LIST.map((r) => ({ value: r.syntax, help: r.description })), limits: `percent 0 to ${MAX_TOLERANCE_PERCENT}` },
+      {
+        group: 'Tuning',
+        name: 'rule',
+        value: 'rule',
+        help: 'how the df is chosen from the candidates',
+        default: DEFAULT_RULE,
+        choices: RULE_LIST.map((r) => ({ value: r.syntax, help: r.description })),
+        limits: `percent 0 to ${MAX_TOLERANCE_PERCENT}`,
+      },
       { group: 'Tuning', name: 'seed', value: 'n', help: 'seed of the resampling; part of the result', default: '1', limits: 'a whole number' },
-      { group: 'Tuning', name: 'holdout', value: 'fraction', help: 'rows held out first (stratified by x) and used once at the end', defaultText: 'no rows held out', limits: `above 0, at most ${MAX_HOLDOUT}` },
+      {
+        group: 'Tuning',
+        name: 'holdout',
+        value: 'fraction',
+        help: 'rows held out first (stratified by x) and used once at the end',
+        defaultText: 'no rows held out',
+        limits: `above 0, at most ${MAX_HOLDOUT}`,
+      },
       {
         group: 'Table',
         name: 'grid',
@@ -135,18 +155,42 @@ function fitCommand() {
         limits: `at most ${MAX_GRID_POINTS} points`,
       },
       { group: 'Table', name: 'extrapolate', help: 'allow table points outside the data range; they are flagged' },
-      { group: 'Table', name: 'columns', value: 'list', help: 'table columns, in the order given; x is required, and a flag column that flags a row is always kept', defaultText: TABLE_COLUMNS.join(','), limits: `any of ${[...TABLE_COLUMNS, ...OPTIONAL_COLUMNS].join(', ')}` },
+      {
+        group: 'Table',
+        name: 'columns',
+        value: 'list',
+        help: 'table columns, in the order given; x is required, and a flag column that flags a row is always kept',
+        defaultText: TABLE_COLUMNS.join(','),
+        limits: `any of ${[...TABLE_COLUMNS, ...OPTIONAL_COLUMNS].join(', ')}`,
+      },
       { group: 'Table', name: 'flag-negative', help: 'the quantity cannot be negative: flag table rows where the curve is below zero; --shape nonnegative constrains the curve instead' },
       { group: 'Table', name: 'digits', value: 'n', help: 'significant digits of the table values', default: String(DEFAULT_DIGITS), limits: `${DIGITS.min} to ${DIGITS.max}` },
-      { group: 'Files', name: 'out', value: 'folder', help: 'write the curve table <name>.curve.csv and the fit record <name>.fit.json (and what --emit and --report ask for) into this folder', defaultText: 'the data file\'s folder' },
+      {
+        group: 'Files',
+        name: 'out',
+        value: 'folder',
+        help: 'write the curve table <name>.curve.csv and the fit record <name>.fit.json (and what --emit and --report ask for) into this folder',
+        defaultText: "the data file's folder",
+      },
       { group: 'Files', name: 'save', help: 'write them next to the data file, as without --out; for scripts that say so' },
       { group: 'Files', name: 'print-only', help: 'write no files, only print' },
-      { group: 'Files', name: 'emit', value: 'list', help: 'also write the table as code (comma list)', defaultText: 'no code', choices: EMIT_KINDS.map((k) => ({ value: k, help: emitName(k, '<name>') })) },
+      {
+        group: 'Files',
+        name: 'emit',
+        value: 'list',
+        help: 'also write the table as code (comma list)',
+        defaultText: 'no code',
+        choices: EMIT_KINDS.map((k) => ({ value: k, help: emitName(k, '<name>') })),
+      },
       { group: 'Files', name: 'report', help: 'also write a review report <name>.report.md with SVG figures' },
       { group: 'Files', name: 'force', help: 'replace output files that Knotwise did not write' },
       { group: 'Printing', name: 'json', help: 'print one JSON object instead of the summary' },
       { group: 'Printing', name: 'quiet', help: 'print no summary; errors still go to standard error, and --json still prints its object' },
-      { group: 'Printing', name: 'progress', help: 'show progress and the time left on standard error even when it is not a terminal; on a terminal it shows by itself once a run takes over a second, unless --quiet' },
+      {
+        group: 'Printing',
+        name: 'progress',
+        help: 'show progress and the time left on standard error even when it is not a terminal; on a terminal it shows by itself once a run takes over a second, unless --quiet',
+      },
     ],
     notes: [
       'A single --df without --resampling, --rule or --holdout fits that df as is; anything else tunes.',
@@ -251,8 +295,12 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
   if (a.given('out') && a.flag('save')) throw new InputError('--save writes next to the data file and --out into another folder; give one of them');
   if (stdin) {
     const writes = (['out', 'save', 'emit', 'report', 'force'] as const).find((n) => a.given(n));
-    if (writes !== undefined) throw new InputError(`--${writes} writes files, but data read from standard input (-) exist on no disk, so a table written from them could never be checked against them; drop --${writes}`);
-    if (!printOnly && !json) throw new InputError('data read from standard input (-) exist on no disk, so a table written from them could never be checked against them: add --print-only (or --json) to print the result without writing files');
+    if (writes !== undefined)
+      throw new InputError(`--${writes} writes files, but data read from standard input (-) exist on no disk, so a table written from them could never be checked against them; drop --${writes}`);
+    if (!printOnly && !json)
+      throw new InputError(
+        'data read from standard input (-) exist on no disk, so a table written from them could never be checked against them: add --print-only (or --json) to print the result without writing files',
+      );
   }
   const dfText = a.text('df');
   const dfs = dfText !== undefined ? parseDfList(dfText) : undefined;
@@ -302,7 +350,15 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
 }
 
 /** --outcome, --trials, --shape, --robust, --robust-k as model options (checked against --curve). */
-function parseModelFlags(kind: string, outcomeText: string, outcomeGiven: boolean, trials: string | undefined, shape: string | undefined, robustFlag: boolean, robustK: string | undefined): ModelOptions {
+function parseModelFlags(
+  kind: string,
+  outcomeText: string,
+  outcomeGiven: boolean,
+  trials: string | undefined,
+  shape: string | undefined,
+  robustFlag: boolean,
+  robustK: string | undefined,
+): ModelOptions {
   const outcome = parseOutcome(outcomeText);
   if (trials !== undefined && outcome !== 'proportions') throw new InputError('--trials needs --outcome proportions');
   let robust: ModelOptions['robust'];
@@ -376,7 +432,13 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     if (env.stdinIsTTY) throw new InputError('- reads the CSV from standard input, but standard input is a terminal: pipe the data in, e.g. knotwise fit - --x a --y b --print-only < data.csv');
     bytes = await env.readStdin();
   }
-  const plan: FitPlan = { columns: { x: args.x, y: args.y, weights: args.weights }, tune: args.tune, options: args.options, output: args.output, ...(args.trials !== undefined ? { trials: args.trials } : {}) };
+  const plan: FitPlan = {
+    columns: { x: args.x, y: args.y, weights: args.weights },
+    tune: args.tune,
+    options: args.options,
+    output: args.output,
+    ...(args.trials !== undefined ? { trials: args.trials } : {}),
+  };
   const dataName = args.stdin ? STDIN_NAME : args.file;
   // Progress on a terminal by itself (unless --quiet), elsewhere only when asked for.
   const showProgress = args.progress || (env.progressStream.isTTY === true && !args.quiet);
@@ -427,7 +489,10 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     if (analysis) {
       const t = analysis.tune;
       out.tuning = { curve: t.kind, resampling: formatResampling(t.resample), seed: t.seed, metric: t.metric, rowsTuned: analysis.n, notes: t.notes };
-      out.candidates = t.candidates.map((c) => ({ ...c, errors: Object.fromEntries(Object.entries(c.errors).map(([k, e]) => [k, { mean: finite(e.mean), se: finite(e.se), values: e.values.map(finite) }])) }));
+      out.candidates = t.candidates.map((c) => ({
+        ...c,
+        errors: Object.fromEntries(Object.entries(c.errors).map(([k, e]) => [k, { mean: finite(e.mean), se: finite(e.se), values: e.values.map(finite) }])),
+      }));
       out.selected = { df: t.selected.df, rule: t.selected.rule, metric: t.selected.metric, reason: t.selected.reason, threshold: t.selected.threshold ?? null, alternatives: t.selected.alternatives };
       if (t.holdout) out.holdout = t.holdout;
     }
@@ -445,7 +510,8 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
         lines.push(c.skipped ? `  df ${c.df}: skipped - ${c.skipped}` : `  df ${c.df}: ${analysis.tune.metric} ${sig(e?.mean ?? NaN)} (SE ${sig(e?.se ?? NaN, 2)})`);
       }
       lines.push(analysis.tune.selected.reason);
-      if (analysis.tune.holdout) lines.push(`Held-out rows: ${analysis.tune.holdout.rows}, RMSE ${sig(analysis.tune.holdout.rmse)}${analysis.tune.holdout.warning ? ` - ${analysis.tune.holdout.warning}` : ''}`);
+      if (analysis.tune.holdout)
+        lines.push(`Held-out rows: ${analysis.tune.holdout.rows}, RMSE ${sig(analysis.tune.holdout.rmse)}${analysis.tune.holdout.warning ? ` - ${analysis.tune.holdout.warning}` : ''}`);
     }
     const explained = byDeviance(fit) ? `deviance explained ${sig(100 * fit.r2, 3)} %` : `R² ${sig(fit.r2, 4)}`;
     lines.push(`Fit: ${fit.kind} df ${sig(fit.df, 4)}, residual SD ${sig(fit.sigma)}, ${explained}, LOO RMSE ${sig(fit.looRmse)}, GCV ${sig(fit.gcv)}`);
@@ -454,7 +520,9 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     const ip = deliverables.summary.interpolation;
     lines.push(
       `Table: ${deliverables.summary.points} rows` +
-        (ip ? `; linear interpolation between rows stays within ${sig(ip.maxError)} of the curve${ip.tolerance !== null ? ` (automatic step ${sig(ip.step ?? NaN, 6)}, tolerance ${sig(ip.tolerance)})` : ''}` : ''),
+        (ip
+          ? `; linear interpolation between rows stays within ${sig(ip.maxError)} of the curve${ip.tolerance !== null ? ` (automatic step ${sig(ip.step ?? NaN, 6)}, tolerance ${sig(ip.tolerance)})` : ''}`
+          : ''),
     );
     for (const w of deliverables.warnings) lines.push(`Warning: ${w}`);
     if (written) for (const f of written.files) lines.push(`Wrote ${f}`);
@@ -474,7 +542,15 @@ function modelLine(fit: FitResult, trials: string | undefined): string {
   if (m.constraints) parts.push(`shape ${m.shape.join(' + ')}: ${m.constraints.active} of ${m.constraints.total} constraints active`);
   if (m.robust) {
     const rows = m.robust.downweighted.rows;
-    parts.push(`Huber k = ${m.robust.k}, scale ${sig(m.robust.scale)}, ${m.robust.downweighted.total} rows down-weighted` + (rows.length ? ` (lines ${rows.slice(0, 10).map((r) => `${r.line}: ${sig(r.weight, 2)}`).join(', ')}${m.robust.downweighted.total > 10 ? ', ...' : ''})` : ''));
+    parts.push(
+      `Huber k = ${m.robust.k}, scale ${sig(m.robust.scale)}, ${m.robust.downweighted.total} rows down-weighted` +
+        (rows.length
+          ? ` (lines ${rows
+              .slice(0, 10)
+              .map((r) => `${r.line}: ${sig(r.weight, 2)}`)
+              .join(', ')}${m.robust.downweighted.total > 10 ? ', ...' : ''})`
+          : ''),
+    );
   }
   if (!m.converged) parts.push('NOT CONVERGED');
   return `Model: ${parts.join('; ')}`;
@@ -491,7 +567,28 @@ async function runDemo(argv: readonly string[], env: CliEnv): Promise<number> {
   if (!example) throw new InputError('the bundled example examples/humidity-sensor.csv was not found');
   const out = resolve(a.text('out') as string);
   process.stdout.write(`Demo: invented humidity-sensor calibration data (${example})\n`);
-  const code = await runFit([example, '--x', 'reference_rh', '--y', 'sensor_output', '--resampling', 'folds:10x5', '--rule', 'one-se', '--grid', '10:94:step=2', '--flag-negative', '--emit', 'c,ts,json', '--report', '--out', out], env);
+  const code = await runFit(
+    [
+      example,
+      '--x',
+      'reference_rh',
+      '--y',
+      'sensor_output',
+      '--resampling',
+      'folds:10x5',
+      '--rule',
+      'one-se',
+      '--grid',
+      '10:94:step=2',
+      '--flag-negative',
+      '--emit',
+      'c,ts,json',
+      '--report',
+      '--out',
+      out,
+    ],
+    env,
+  );
   process.stdout.write(`Outputs are in ${out}: open ${join(out, 'humidity-sensor.report.md')} for the review report; check them with: knotwise check ${out}\n`);
   return code;
 }
@@ -540,7 +637,8 @@ export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): 
         process.stdout.write(VERSION + '\n');
         return 0;
       default:
-        if (command.startsWith('-')) throw new InputError(`${command} is not an option of knotwise itself; put options after the command, e.g. knotwise fit data.csv ${command} ...; run knotwise --help for the commands`);
+        if (command.startsWith('-'))
+          throw new InputError(`${command} is not an option of knotwise itself; put options after the command, e.g. knotwise fit data.csv ${command} ...; run knotwise --help for the commands`);
         throw unknownCommand(command);
     }
   } catch (err) {

@@ -3,7 +3,7 @@
  * density grid when points would overplot. Density levels are classes kw-bin-1..kw-bin-6
  * so the stylesheet decides their look.
  */
-import type { Cloud } from '../protocol';
+import type { Cloud } from '../view/model';
 import type { Frame } from './frame';
 import { coord, escapeXml, num } from './svg';
 

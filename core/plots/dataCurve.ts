@@ -2,7 +2,7 @@
  * Figure: the readings with the fitted curve, its 95 % confidence band for the mean and
  * the 95 % prediction band for a new reading.
  */
-import type { Cloud, CurveView } from '../protocol';
+import type { Cloud, CurveView } from '../view/model';
 import { cloudMarks, cloudRanges, cloudWords } from './cloud';
 import { plotFrame } from './frame';
 import { extent } from './scale';

@@ -1,7 +1,7 @@
 /**
  * Figure: residuals against x or against fitted values, with the zero line.
  */
-import type { Cloud } from '../protocol';
+import type { Cloud } from '../view/model';
 import { cloudMarks, cloudRanges, cloudWords } from './cloud';
 import { plotFrame } from './frame';
 import { extent } from './scale';

@@ -3,6 +3,7 @@
  * with its <title> and <desc>. Colours never appear here: elements carry `kw-*` classes
  * that the panel's stylesheet (or the report's) maps to theme colours.
  */
+import { sig } from '../words/numbers';
 
 /** Escapes text for use in SVG/XML element content and attribute values. */
 export function escapeXml(text: string): string {
@@ -16,13 +17,9 @@ export function coord(v: number): string {
   return Object.is(r, -0) ? '0' : String(r);
 }
 
-/** A number for people: `digits` significant digits, no trailing zeros, plain notation for ordinary magnitudes. */
+/** A number for people in the house style (core/words/numbers.ts), 4 significant digits unless asked. */
 export function num(v: number, digits = 4): string {
-  if (!Number.isFinite(v)) return Number.isNaN(v) ? 'n/a' : v > 0 ? '∞' : '−∞';
-  if (v === 0) return '0';
-  const a = Math.abs(v);
-  if (a >= 1e-4 && a < 1e7) return String(Number(v.toPrecision(digits)));
-  return v.toExponential(digits - 1).replace(/\.?0+e/, 'e');
+  return sig(v, digits);
 }
 
 /** Options shared by every figure. */

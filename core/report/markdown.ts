@@ -8,6 +8,7 @@ import type { Analysis, Diagnostics } from '../analysisTypes';
 import type { RejectedRow } from '../ingest/select';
 import { shellWord } from '../shellWord';
 import { num } from '../plots/svg';
+import { percent } from '../words/numbers';
 import type { TableSummary } from '../record';
 import { metricLabel } from '../tune/format';
 import type { FitResult } from '../types';
@@ -93,7 +94,7 @@ function candidateTable(a: Analysis): string[] {
 function checks(d: Diagnostics, fit: FitResult): string[] {
   const out = checkViews(d).map((c) => `- ${c.flagged ? '⚠ ' : ''}**${md(c.name)}**: ${md(c.text)}`);
   if (!out.length) out.push('- No residual check applies to this fit.');
-  out.push('', `Fit: residual standard error ${num(fit.sigma)}, R² ${num(fit.r2)}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`);
+  out.push('', `Fit: residual SD ${num(fit.sigma)}, ${fit.model?.glm ? 'deviance explained' : 'R²'} ${num(fit.r2)}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`);
   const inf = d.influential;
   if (inf.total === 0) out.push('', 'No row exceeds the influence thresholds.');
   else {
@@ -159,7 +160,7 @@ function modelSection(fit: FitResult): string[] {
   const out = ['## Model', ''];
   const outcome = m.outcome === 'continuous' ? 'Gaussian (least squares)' : `${m.outcome === 'counts' ? 'Poisson' : 'proportions'} (${m.link} link), fitted by iteratively reweighted least squares`;
   out.push(`- Outcome: ${outcome}; ${m.converged ? `converged in ${m.iterations} iteration${m.iterations === 1 ? '' : 's'}` : `**did not converge** in ${m.iterations} iterations`}.`);
-  if (m.glm) out.push(`- Deviance ${num(m.glm.deviance, 6)} (null deviance ${num(m.glm.nullDeviance, 6)}); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`);
+  if (m.glm) out.push(`- Deviance explained ${percent(1 - m.glm.deviance / m.glm.nullDeviance)} (deviance ${num(m.glm.deviance, 6)}; ${num(m.glm.nullDeviance, 6)} for a flat curve); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`);
   if (m.shape.length) {
     const c = m.constraints;
     out.push(`- Shape: ${m.shape.join(', ')}, imposed on the B-spline coefficients so that it holds everywhere in the data range${c ? `; ${c.active} of ${c.total} constraints are active (effective df ${num(c.effectiveDf, 4)})` : ''}. Bands treat the active constraints as known (an approximation).`);

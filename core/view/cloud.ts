@@ -2,7 +2,7 @@
  * Chooses how readings are drawn: every point when there are few and they do not pile
  * up, otherwise counts on a grid, so the panel message stays small at any n.
  */
-import type { Cloud } from '../protocol';
+import type { Cloud } from './model';
 import { roundAll } from './round';
 
 /** Limits of cloudOf. */

@@ -4,7 +4,7 @@
  */
 import type { Diagnostics } from '../analysisTypes';
 import { checkResiduals } from '../fit/modelResiduals';
-import type { FitDetail, InfluentialRow, ModelReportView } from '../protocol';
+import type { FitDetail, InfluentialRow, ModelReportView } from './model';
 import { num } from '../plots/svg';
 import type { FitResult, XYData } from '../types';
 import { cloudOf, DEFAULT_CLOUD_LIMITS, type CloudLimits } from './cloud';

@@ -8,7 +8,7 @@
 import type { Analysis } from '../analysisTypes';
 import { diagnose } from '../diagnose';
 import { bandsAt } from '../fit/bands';
-import type { FitDetail, PanelPayload, SourceView, CurveView, ModelView } from '../protocol';
+import type { CurveView, FitDetail, ModelView, PanelPayload, SourceView } from './model';
 import { selectDf } from '../tune/rules';
 import type { CandidateResult, ErrorSummary, RuleSpec, Selection } from '../tune/types';
 import type { CurveKindId, FitResult, Outcome } from '../types';

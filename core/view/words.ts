@@ -4,16 +4,20 @@
  */
 import type { Diagnostics } from '../analysisTypes';
 import { shapeWords } from '../fit/shape';
-import type { CheckView } from '../protocol';
+import type { CheckView } from './model';
 import { num } from '../plots/svg';
+import { percent, testText } from '../words/numbers';
 import { outcomeKind } from '../registry/outcomes/index';
 import type { ModelReport, Outcome, Shape } from '../types';
 
 export { CAUTION } from '../words/caution';
 
-/** p-value text: "p = 0.034" or "p < 0.0001". */
-export function pText(p: number): string {
-  return p < 1e-4 ? 'p < 0.0001' : `p = ${num(p, 2)}`;
+export { pText } from '../words/numbers';
+
+/** How the Durbin-Watson p-value was obtained, spelled out. */
+function methodWords(method: 'exact' | 'normal' | 'asymptotic'): string {
+  const words = { exact: 'exact p-value', normal: 'normal approximation with the exact mean and variance', asymptotic: 'normal approximation with mean 2 and variance 4/n' } as const;
+  return words[method];
 }
 
 /** The residual checks of a Diagnostics, each in one line, flagged at the 5 % level. */
@@ -24,7 +28,7 @@ export function checkViews(d: Diagnostics): CheckView[] {
     const flagged = s.pValue < 0.05;
     out.push({
       name: 'Shapiro-Wilk (are the residuals normal?)',
-      text: `W = ${num(s.statistic, 4)}, ${pText(s.pValue)}, n = ${s.n}: ${flagged ? 'the residuals depart from a normal distribution, so the prediction band may be off' : 'no evidence against normal residuals'}${s.note ? ` (${s.note})` : ''}.`,
+      text: `${testText('W', [], s.statistic, s.pValue)}, n = ${s.n}: ${flagged ? 'the residuals depart from a normal distribution, so the prediction band may be off' : 'no evidence against normal residuals'}${s.note ? ` (${s.note})` : ''}.`,
       flagged,
     });
   }
@@ -33,7 +37,7 @@ export function checkViews(d: Diagnostics): CheckView[] {
     const flagged = s.pValue < 0.05;
     out.push({
       name: 'Durbin-Watson (do neighbours in x order move together?)',
-      text: `DW = ${num(s.statistic, 4)}, ${pText(s.pValue)} (${s.method}): ${flagged ? 'neighbouring residuals are correlated, a sign of structure the curve misses or of drift' : 'no evidence of correlated neighbours'}.`,
+      text: `${testText('DW', [], s.statistic, s.pValue)} (${methodWords(s.method)}): ${flagged ? 'neighbouring residuals are correlated, a sign of structure the curve misses or of drift' : 'no evidence of correlated neighbours'}.`,
       flagged,
     });
   }
@@ -42,7 +46,7 @@ export function checkViews(d: Diagnostics): CheckView[] {
     const flagged = s.pValue < 0.05;
     out.push({
       name: 'Breusch-Pagan (does the spread change?)',
-      text: `BP = ${num(s.statistic, 4)} on ${s.df} df, ${pText(s.pValue)}: ${flagged ? 'the spread of the residuals changes along the curve, so one band width does not fit everywhere' : 'no evidence of changing spread'}.`,
+      text: `${testText('BP χ²', [s.df], s.statistic, s.pValue)}: ${flagged ? 'the spread of the residuals changes along the curve, so one band width does not fit everywhere' : 'no evidence of changing spread'}.`,
       flagged,
     });
   }
@@ -51,7 +55,7 @@ export function checkViews(d: Diagnostics): CheckView[] {
     const flagged = s.pValue < 0.05;
     out.push({
       name: 'Lack-of-fit F test (repeated x values)',
-      text: `F = ${num(s.F, 4)} on ${s.df1} and ${s.df2} df, ${pText(s.pValue)}: ${flagged ? 'the curve misses the means of repeated readings by more than their scatter' : 'the curve agrees with the means of repeated readings'}.`,
+      text: `${testText('F', [s.df1, s.df2], s.F, s.pValue)}: ${flagged ? 'the curve misses the means of repeated readings by more than their scatter' : 'the curve agrees with the means of repeated readings'}.`,
       flagged,
     });
   }
@@ -94,7 +98,7 @@ export function modelReportLines(r: ModelReport, residualDf: number): string[] {
   }
   if (r.glm) {
     const g = r.glm;
-    out.push(`Deviance ${num(g.deviance, 5)} on ${num(residualDf, 4)} residual df (null deviance ${num(g.nullDeviance, 5)}).`);
+    out.push(`Deviance explained ${percent(1 - g.deviance / g.nullDeviance)}: deviance ${num(g.deviance, 5)} on ${num(residualDf, 4)} residual df, ${num(g.nullDeviance, 5)} for a flat curve.`);
     out.push(`Pearson dispersion ${num(g.dispersion, 3)}: about 1 when the spread follows the ${r.outcome} kind; well above 1 means overdispersion, and the bands are then too narrow.`);
   }
   if (r.constraints) {

@@ -9,7 +9,7 @@ import type { Analysis, AnalysisOptions } from '../../core/analysisTypes';
 import { parseCsvText } from '../../core/ingest/reader';
 import { selectColumns } from '../../core/ingest/select';
 import { selectTrials } from '../../core/ingest/trials';
-import type { PanelPayload } from '../../core/protocol';
+import type { PanelPayload } from '../../core/view/model';
 import type { XYData } from '../../core/types';
 import { buildPanelPayload } from '../../core/view/payload';
 

@@ -321,9 +321,9 @@ describe('knotwise fit --curve smoothing-spline --shape', () => {
     writeFileSync(file, `speed,dist\n${c.x.map((x, i) => `${x},${c.y[i]}`).join('\n')}\n`);
     const r = await runMain('fit', file, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--shape', 'increasing', '--resampling', 'folds:5', '--print-only', '--json');
     assert.equal(r.code, 0, r.stderr);
-    const j = JSON.parse(r.stdout) as { model: { shape: string[] }; fit: { kind: string; model: { constraints: { total: number; active: number; effectiveDf: number } } } };
+    const j = JSON.parse(r.stdout) as { model: { shape: string[] }; fit: { curve: string; model: { constraints: { total: number; active: number; effectiveDf: number } } } };
     assert.deepEqual(j.model.shape, ['increasing']);
-    assert.equal(j.fit.kind, 'smoothing-spline');
+    assert.equal(j.fit.curve, 'smoothing-spline');
     assert.equal(j.fit.model.constraints.total, 20, '19 distinct speeds: 21 coefficients, 20 differences');
     // A single df with active constraints: datasets::cars at df 8 (R fixture: 3 active).
     const one = await runMain('fit', file, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--shape', 'increasing', '--df', '8', '--print-only', '--json');

@@ -109,7 +109,17 @@ describe('option parser (core/node/args.ts)', () => {
   describe('defineCommand and formatHelp', () => {
     it('refuses a table that declares an option twice or gives a switch a default', () => {
       const base = { name: 't', summary: 's', usage: ['t'], operands: { min: 0, max: 0, name: 'argument' } };
-      assert.throws(() => defineCommand({ ...base, options: [{ name: 'a', help: 'h' }, { name: 'a', help: 'h' }] }), /declared twice/);
+      assert.throws(
+        () =>
+          defineCommand({
+            ...base,
+            options: [
+              { name: 'a', help: 'h' },
+              { name: 'a', help: 'h' },
+            ],
+          }),
+        /declared twice/,
+      );
       assert.throws(() => defineCommand({ ...base, options: [{ name: 'a', help: 'h', default: 'x' }] }), /cannot have a default/);
     });
 
@@ -119,7 +129,18 @@ describe('option parser (core/node/args.ts)', () => {
         summary: 'a test command',
         usage: ['t [options]'],
         operands: { min: 0, max: 0, name: 'argument' },
-        options: [{ name: 'mode', value: 'm', help: 'how it runs '.repeat(20).trim(), default: 'fast', choices: [{ value: 'fast', help: 'quick' }, { value: 'careful', help: 'slow '.repeat(30).trim() }] }],
+        options: [
+          {
+            name: 'mode',
+            value: 'm',
+            help: 'how it runs '.repeat(20).trim(),
+            default: 'fast',
+            choices: [
+              { value: 'fast', help: 'quick' },
+              { value: 'careful', help: 'slow '.repeat(30).trim() },
+            ],
+          },
+        ],
       });
       const text = formatHelp(spec);
       for (const line of text.split('\n')) assert.ok(line.length <= 92, `"${line}" is ${line.length} characters`);

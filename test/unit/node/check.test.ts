@@ -67,7 +67,27 @@ describe('knotwise check', () => {
     dir = mkdtempSync(join(tmpdir(), 'knotwise-check-'));
     data = copyFixture('mcycle.csv', join(dir, 'data', 'mcycle.csv'));
     out = join(dir, 'tables');
-    const r = await runMain('fit', data, '--x', 'times', '--y', 'accel', '--df', '4..12', '--resampling', 'folds:5', '--seed', '7', '--grid', 'auto:2', '--emit', 'c,ts,json', '--report', '--out', out);
+    const r = await runMain(
+      'fit',
+      data,
+      '--x',
+      'times',
+      '--y',
+      'accel',
+      '--df',
+      '4..12',
+      '--resampling',
+      'folds:5',
+      '--seed',
+      '7',
+      '--grid',
+      'auto:2',
+      '--emit',
+      'c,ts,json',
+      '--report',
+      '--out',
+      out,
+    );
     assert.equal(r.code, 0, r.stderr);
     record = join(out, 'mcycle.fit.json');
   });
@@ -117,10 +137,7 @@ describe('knotwise check', () => {
       const r = await check(dir, 'tables');
       assert.equal(r.code, 1, r.stdout);
       const edited = fitText.slice(0, -1) + changed;
-      assert.ok(
-        r.stdout.includes(`mcycle.curve.csv differs from the rebuilt table at line 6 (x = ${row[0]}), column fit: ${edited} in the file, ${fitText} rebuilt; 1 line differs.`),
-        r.stdout,
-      );
+      assert.ok(r.stdout.includes(`mcycle.curve.csv differs from the rebuilt table at line 6 (x = ${row[0]}), column fit: ${edited} in the file, ${fitText} rebuilt; 1 line differs.`), r.stdout);
       assert.doesNotMatch(r.stdout, /data .* changed/);
     } finally {
       restore();
@@ -191,7 +208,7 @@ describe('knotwise check', () => {
     }
   });
 
-  it('checkRecord gives the status and the record\'s regenerate command; runCheck refuses an unknown option', async function () {
+  it("checkRecord gives the status and the record's regenerate command; runCheck refuses an unknown option", async function () {
     this.timeout(60_000);
     const res = await checkRecord(record);
     assert.equal(res.status, 'current');
@@ -200,7 +217,7 @@ describe('knotwise check', () => {
     await assert.rejects(runCheck(['--jsn'], dir), /unknown option --jsn for check; did you mean --json\?/);
   });
 
-  it('check --json prints one object with each record\'s file, status, reasons and advice, and keeps the exit codes (0 current, 1 changed, 2 error)', async function () {
+  it("check --json prints one object with each record's file, status, reasons and advice, and keeps the exit codes (0 current, 1 changed, 2 error)", async function () {
     this.timeout(60_000);
     const current = await check(dir, '--json', join('tables', 'mcycle.fit.json'));
     assert.equal(current.code, 0, current.stdout);
@@ -220,7 +237,10 @@ describe('knotwise check', () => {
       assert.equal(j1.exitCode, 1);
       const rec = j1.records[0] as RecordState;
       assert.equal(rec.status, 'changed');
-      assert.ok(rec.reasons.some((m) => /^mcycle\.curve\.csv differs from the rebuilt table at line \d+/.test(m)), rec.reasons.join('\n'));
+      assert.ok(
+        rec.reasons.some((m) => /^mcycle\.curve\.csv differs from the rebuilt table at line \d+/.test(m)),
+        rec.reasons.join('\n'),
+      );
       assert.match(rec.advice ?? '', /^cd tables && knotwise fit \.\.\/data\/mcycle\.csv --x times --y accel .* --out \.$/);
     } finally {
       restore();
@@ -288,7 +308,9 @@ describe('knotwise check', () => {
     const restore = changeByte(table, bytes.length - 2, bytes[bytes.length - 2] === 0x31 ? '2' : '1');
     try {
       const code = await new Promise<number>((resolve) => {
-        execFile(process.execPath, ['--import', 'tsx', join(REPO, 'core', 'node', 'cli.ts'), 'check'], { cwd: dir, timeout: 60_000 }, (error) => resolve(error ? (typeof error.code === 'number' ? error.code : -1) : 0));
+        execFile(process.execPath, ['--import', 'tsx', join(REPO, 'core', 'node', 'cli.ts'), 'check'], { cwd: dir, timeout: 60_000 }, (error) =>
+          resolve(error ? (typeof error.code === 'number' ? error.code : -1) : 0),
+        );
       });
       assert.equal(code, 1);
     } finally {

@@ -71,7 +71,6 @@ function checkArray(what: string, got: unknown, want: readonly number[], scale: 
   want.forEach((w, i) => checkClose(`${what}[${i}]`, got[i], w, scale));
 }
 
-
 const run = runMain;
 
 /** Runs the CLI script in a child process (tsx loads the TypeScript). */
@@ -282,7 +281,12 @@ describe('knotwise fit (command line)', () => {
       assert.equal(out.data.rowsUsed, 50);
       assert.deepEqual(
         out.data.rejected.map((j: { line: number; column: string }) => [j.line, j.column]),
-        [[2, 'speed'], [23, 'dist'], [24, 'speed'], [55, 'speed']],
+        [
+          [2, 'speed'],
+          [23, 'dist'],
+          [24, 'speed'],
+          [55, 'speed'],
+        ],
       );
       for (const j of out.data.rejected) assert.ok(typeof j.reason === 'string' && j.reason.length > 0);
       // The fit on the 50 good rows is R's (datasets::cars, ns with df = 2), 1e-8 relative.
@@ -308,7 +312,11 @@ describe('knotwise fit (command line)', () => {
 
     it('bad --resampling syntax', async () => {
       for (const bad of ['bootstrap', 'cv:', 'boot:x', 'jackknife']) {
-        assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', bad), new RegExp(`resampling "${bad}" is not understood`), /bootstrap:<resamples>, folds:<k>\[x<repeats>\], leave-one-out, gcv/);
+        assertRefused(
+          await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', bad),
+          new RegExp(`resampling "${bad}" is not understood`),
+          /bootstrap:<resamples>, folds:<k>\[x<repeats>\], leave-one-out, gcv/,
+        );
       }
       assertRefused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--resampling', 'bootstrap:1'), /the bootstrap takes 2 to 5000 resamples; got 1/);
     });

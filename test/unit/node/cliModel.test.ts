@@ -22,7 +22,6 @@ const fixture = JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixture
 };
 const REL = 1e-7;
 
-
 const run = runMain;
 
 function refused(r: Run, ...patterns: RegExp[]): void {
@@ -51,14 +50,30 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
   let cars = '';
   before(() => {
     dir = mkdtempSync(join(tmpdir(), 'knotwise-cli-model-'));
-    discoveries = csv('discoveries.csv', 'year,count', d('discoveries').x.map((x, i) => `${x},${d('discoveries').y[i]}`));
-    menarche = csv('menarche.csv', 'Age,Total,Menarche', d('menarche').x.map((x, i) => `${x},${(d('menarche').trials as number[])[i]},${d('menarche').y[i]}`));
-    mcycle = csv('mcycle.csv', 'times,accel', d('mcycle').x.map((x, i) => `${x},${d('mcycle').y[i]}`));
-    cars = csv('cars.csv', 'speed,dist', d('cars').x.map((x, i) => `${x},${d('cars').y[i]}`));
+    discoveries = csv(
+      'discoveries.csv',
+      'year,count',
+      d('discoveries').x.map((x, i) => `${x},${d('discoveries').y[i]}`),
+    );
+    menarche = csv(
+      'menarche.csv',
+      'Age,Total,Menarche',
+      d('menarche').x.map((x, i) => `${x},${(d('menarche').trials as number[])[i]},${d('menarche').y[i]}`),
+    );
+    mcycle = csv(
+      'mcycle.csv',
+      'times,accel',
+      d('mcycle').x.map((x, i) => `${x},${d('mcycle').y[i]}`),
+    );
+    cars = csv(
+      'cars.csv',
+      'speed,dist',
+      d('cars').x.map((x, i) => `${x},${d('cars').y[i]}`),
+    );
   });
   after(() => rmSync(dir, { recursive: true, force: true }));
 
-  it('--outcome counts --json reports the model used and R glm\'s deviance and fitted counts (datasets::discoveries)', async () => {
+  it("--outcome counts --json reports the model used and R glm's deviance and fitted counts (datasets::discoveries)", async () => {
     const r = await run('fit', discoveries, '--x', 'year', '--y', 'count', '--outcome', 'counts', '--df', '5', '--json');
     assert.equal(r.code, 0, r.stderr);
     const j = JSON.parse(r.stdout) as { model: unknown; fit: { model: Record<string, unknown>; fitted: number[] }; table: { columns: string[]; rows: number[][] } };
@@ -94,7 +109,11 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     const want = ref.weights.map((w, i) => ({ line: i + 2, w })).filter((e) => e.w < 1);
     const got = j.fit.model.robust.downweighted.rows;
     assert.equal(j.fit.model.robust.downweighted.total, want.length);
-    assert.deepEqual(got.map((g) => g.line).sort((a, b) => a - b), want.map((e) => e.line), 'lines of the down-weighted rows (header is line 1)');
+    assert.deepEqual(
+      got.map((g) => g.line).sort((a, b) => a - b),
+      want.map((e) => e.line),
+      'lines of the down-weighted rows (header is line 1)',
+    );
     for (const g of got) close(`weight of line ${g.line}`, g.weight, (want.find((e) => e.line === g.line) as { w: number }).w);
     const text = await run('fit', mcycle, '--x', 'times', '--y', 'accel', '--robust', '--df', '5');
     assert.match(text.stdout, /^Model: continuous readings \(Gaussian, identity link\); Huber k = 1\.345, scale [0-9.]+, \d+ rows down-weighted \(lines \d+: /m);
@@ -108,7 +127,11 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     assert.deepEqual(j.fit.model.constraints, { total: 6, active: 1, effectiveDf: 4 });
     const ref = fixture.shape.find((c) => c.dataset === 'cars' && c.df === 5);
     assert.ok(ref);
-    close('residual sum of squares', j.fit.residuals.reduce((s, v) => s + v * v, 0), ref.rss);
+    close(
+      'residual sum of squares',
+      j.fit.residuals.reduce((s, v) => s + v * v, 0),
+      ref.rss,
+    );
   });
 
   it('refuses bad or contradictory model flags with exit code 2 and the reason', async () => {
@@ -120,7 +143,10 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--curve', 'smoothing-spline', '--robust'), /the cubic smoothing spline has no robust fit/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--curve', 'natural'), /unknown curve "natural"; use natural-spline, polynomial, smoothing-spline/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--robust-k', '0'), /--robust-k must be a positive number/);
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'proportions', '--df', '3'), /cars\.csv, line 2, column "dist": a binomial outcome without a trials column must be a proportion/);
+    refused(
+      await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'proportions', '--df', '3'),
+      /cars\.csv, line 2, column "dist": a binomial outcome without a trials column must be a proportion/,
+    );
   });
 
   it('--trials rejects rows without trials by line and refuses successes above the trials, naming line and column', async () => {
@@ -137,6 +163,9 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     );
     assert.match(j.data.rejected[0]?.reason ?? '', /number of trials 0 is not positive/);
     const over = csv('over.csv', 'dose,n,dead', ['1,10,0', '2,10,12', '3,10,4']);
-    refused(await run('fit', over, '--x', 'dose', '--y', 'dead', '--outcome', 'proportions', '--trials', 'n', '--df', '2'), /over\.csv, line 3, column "dead": the number of successes must be from 0 to the number of trials \(10\); got 12/);
+    refused(
+      await run('fit', over, '--x', 'dose', '--y', 'dead', '--outcome', 'proportions', '--trials', 'n', '--df', '2'),
+      /over\.csv, line 3, column "dead": the number of successes must be from 0 to the number of trials \(10\); got 12/,
+    );
   });
 });

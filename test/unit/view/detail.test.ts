@@ -11,7 +11,7 @@ import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fitCurve } from '../../../core/fit/index';
-import type { Cloud } from '../../../core/protocol';
+import type { Cloud } from '../../../core/view/model';
 import type { FitSpec, XYData } from '../../../core/types';
 import { fitDetail, MAX_DOWNWEIGHTED_LISTED, modelReportView } from '../../../core/view/detail';
 

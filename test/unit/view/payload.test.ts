@@ -10,7 +10,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../../core/analysis';
 import type { AnalysisOptions } from '../../../core/analysisTypes';
-import type { FitDetail } from '../../../core/protocol';
+import type { FitDetail } from '../../../core/view/model';
 import { selectDf } from '../../../core/tune/rules';
 import type { XYData } from '../../../core/types';
 import { buildPanelPayload, detailFor, modelView, startSelection } from '../../../core/view/payload';

@@ -1,0 +1,190 @@
+/**
+ * The view model: what the panel shows of one run and what the report's figures are drawn
+ * from (the payload, its curves and readings, the residual details of one df). Built in
+ * core/view/ (payload.ts, detail.ts, cloud.ts); sent to the panel inside the messages of
+ * core/protocol.ts. Everything here is plain JSON (numbers, strings, arrays): no typed
+ * arrays, no Maps. Text that comes from the CSV is marked; the panel inserts it as text only.
+ */
+import type { CurveKindId, Outcome, Shape } from '../types';
+import type { CandidateResult, HoldoutReport, Metric, RuleSpec } from '../tune/types';
+
+/** Readings drawn one by one (small n) or as a 2-D count grid (large n or heavy overplotting). */
+export type Cloud = CloudPoints | CloudBins;
+
+/** Every reading as a point, with its 1-based CSV line for hover text and navigation. */
+export interface CloudPoints {
+  readonly kind: 'points';
+  readonly x: readonly number[];
+  readonly y: readonly number[];
+  /** 1-based CSV line of each point (0 when unknown). */
+  readonly lines: readonly number[];
+}
+
+/** Readings counted on an nx-by-ny grid over [xMin, xMax] x [yMin, yMax]; counts are row-major from the lowest y row. */
+export interface CloudBins {
+  readonly kind: 'bins';
+  readonly xMin: number;
+  readonly xMax: number;
+  readonly yMin: number;
+  readonly yMax: number;
+  readonly nx: number;
+  readonly ny: number;
+  /** counts[j * nx + i] is the number of readings in x cell i, y cell j. */
+  readonly counts: readonly number[];
+  /** Number of readings binned (may be less than n when some are not finite). */
+  readonly total: number;
+}
+
+/** One candidate's curve and both 95 % bands on the payload's shared grid. */
+export interface CurveView {
+  readonly df: number;
+  readonly fit: readonly number[];
+  readonly ciLower: readonly number[];
+  readonly ciUpper: readonly number[];
+  readonly piLower: readonly number[];
+  readonly piUpper: readonly number[];
+}
+
+/** A row that stands out by leverage or Cook's distance, named by its CSV line. */
+export interface InfluentialRow {
+  readonly line: number;
+  readonly x: number;
+  readonly y: number;
+  readonly leverage: number;
+  readonly cooksDistance: number;
+  /** Which thresholds it exceeds, in words. */
+  readonly exceeds: readonly string[];
+}
+
+/** One residual check's outcome in words (statistic, p-value, verdict). */
+export interface CheckView {
+  readonly name: string;
+  readonly text: string;
+  /** True when the check flags a problem at the 5 % level. */
+  readonly flagged: boolean;
+}
+
+/** A row a robust (Huber) fit gave weight below 1, named by its CSV line. */
+export interface DownweightedRow {
+  readonly line: number;
+  readonly x: number;
+  readonly y: number;
+  /** Huber weight in (0, 1). */
+  readonly weight: number;
+}
+
+/** The model report of one fitted df (outcome, shape constraints, robust weights); see core/types.ts ModelReport. */
+export interface ModelReportView {
+  readonly converged: boolean;
+  /** Reweighting iterations (1 for a single constrained least-squares solve). */
+  readonly iterations: number;
+  /** Counts and proportions: deviance, null deviance, Pearson dispersion (about 1 when the variance follows the distribution). */
+  readonly glm?: { readonly deviance: number; readonly nullDeviance: number; readonly dispersion: number };
+  /** Shape constraints: inequalities in total, how many hold with equality, df minus the independent active ones. */
+  readonly constraints?: { readonly total: number; readonly active: number; readonly effectiveDf: number };
+  /** Huber fitting: tuning constant, robust scale, rows down-weighted (lowest weight first, at most a few dozen listed). */
+  readonly robust?: { readonly k: number; readonly scale: number; readonly total: number; readonly rows: readonly DownweightedRow[] };
+  /** The report in plain words, one fact per line. */
+  readonly lines: readonly string[];
+}
+
+/** Everything the residual figures and texts need for one df. */
+export interface FitDetail {
+  readonly df: number;
+  readonly sigma: number;
+  readonly r2: number;
+  readonly residualDf: number;
+  readonly aic: number;
+  readonly bic: number;
+  readonly lambda?: number;
+  /** Plain-language notes of the fit (tied knots moved, ...). */
+  readonly notes: readonly string[];
+  readonly knots: readonly number[];
+  /** What the residual figures show: reading minus fit ('response'), or deviance residuals of a Poisson or binomial fit. */
+  readonly residualKind: 'response' | 'deviance';
+  readonly residualsVsX: Cloud;
+  readonly residualsVsFitted: Cloud;
+  /** Normal quantile plot of standardised residuals, at most a few hundred quantiles. */
+  readonly qq: { readonly theoretical: readonly number[]; readonly sample: readonly number[] };
+  /** Cook's distance against x: every row for small n, else the largest value per x cell. */
+  readonly cooks: { readonly x: readonly number[]; readonly d: readonly number[]; readonly lines: readonly number[]; readonly binned: boolean };
+  /** Leverage against x, drawn like `cooks`. */
+  readonly leverage: { readonly x: readonly number[]; readonly h: readonly number[]; readonly lines: readonly number[]; readonly binned: boolean };
+  readonly cooksThreshold: number;
+  readonly leverageThreshold: number;
+  /** Influential rows, largest Cook's distance first, at most a few dozen. */
+  readonly influential: readonly InfluentialRow[];
+  /** How many rows exceed a threshold in total. */
+  readonly influentialTotal: number;
+  /** Residual checks (present for the df they were computed for). */
+  readonly checks: readonly CheckView[];
+  /** Warnings specific to this df (failed checks, negative predictions, ...). */
+  readonly warnings: readonly string[];
+  /** Present when the readings are counts or proportions, or shape constraints or robust fitting were used. */
+  readonly model?: ModelReportView;
+}
+
+/** Where the data came from and what the columns are called (text from the CSV: insert as text only). */
+export interface SourceView {
+  readonly fileName: string;
+  readonly xLabel: string;
+  readonly yLabel: string;
+  readonly weightsLabel?: string;
+}
+
+/** The options the panel's controls switch: outcome, shape constraints, robust fitting. */
+export interface ModelChoice {
+  readonly outcome: Outcome;
+  readonly shape: readonly Shape[];
+  readonly robust: boolean;
+}
+
+/** Which outcome, shapes and robust fitting a run used. */
+export interface ModelView extends ModelChoice {
+  readonly link: 'identity' | 'log' | 'logit';
+  /** Huber tuning constant when robust. */
+  readonly robustK?: number;
+  /** Binomial outcome with a trials column: its label (text from the CSV). */
+  readonly trialsLabel?: string;
+  /** The options in plain words. */
+  readonly words: string;
+  /** True when the panel's controls set them (they override the settings for this file). */
+  readonly fromPanel: boolean;
+  /** What the curve kind supports (resolveModel of core/registry/curves). */
+  readonly supports: { readonly outcomes: readonly Outcome[]; readonly shapes: boolean; readonly robust: boolean };
+}
+
+/** The whole panel content of one run. */
+export interface PanelPayload {
+  readonly runId: number;
+  readonly source: SourceView;
+  /** Rows used for tuning and fitting, rows rejected while reading, rows held out. */
+  readonly rows: { readonly used: number; readonly rejected: number; readonly heldOut: number };
+  readonly kind: CurveKindId;
+  /** Outcome, shapes and robust fitting used. */
+  readonly model: ModelView;
+  /** The curve kind in words. */
+  readonly curveWords: string;
+  /** How candidate errors were estimated, in words (e.g. "bootstrap, 50 resamples, seed 1"). */
+  readonly resamplingWords: string;
+  readonly metric: Metric;
+  /** Candidates as tuned (per-resample values removed to keep the message small). */
+  readonly candidates: readonly CandidateResult[];
+  /** The rule the settings ask for; the panel starts with it. */
+  readonly rule: RuleSpec;
+  /** Tolerance the panel offers when the person switches to the simplest-within rule. */
+  readonly tolerancePercent: number;
+  readonly holdout?: HoldoutReport;
+  /** Tuning and analysis notes. */
+  readonly notes: readonly string[];
+  /** Warnings that hold for the whole run (extrapolation, held-out set much worse, ...). */
+  readonly warnings: readonly string[];
+  /** The short caution shown on every panel. */
+  readonly caution: string;
+  readonly data: Cloud;
+  /** Shared x grid of every curve in `curves`. */
+  readonly grid: readonly number[];
+  readonly curves: readonly CurveView[];
+  /** Details of the df `rule` chooses; others are asked for with `needDetail`. */
+  readonly details: readonly FitDetail[];
+}
