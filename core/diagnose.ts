@@ -10,7 +10,6 @@ import { influentialRows } from './stats/influence';
 import { lackOfFit } from './stats/lackOfFit';
 import { normalQuantiles } from './stats/normalQuantiles';
 import { shapiroWilk } from './stats/shapiroWilk';
-import { sig } from './tune/format';
 import { orderByX } from './tune/plan';
 import type { FitResult, XYData } from './types';
 

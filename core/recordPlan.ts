@@ -12,7 +12,6 @@ import { parseShapeList } from './fit/shape';
 import type { ModelOptions } from './types';
 import { parseColumns } from './table/columns';
 import { formatGrid, parseGrid, type GridSpec } from './table/grid';
-import type { RuleSpec } from './tune/types';
 import { parseOutcome } from './registry/outcomes/index';
 import { parseCurve } from './registry/curves/index';
 import { parseResampling } from './registry/resampling/index';

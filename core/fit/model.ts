@@ -5,7 +5,7 @@
 import { InputError } from '../errors';
 import type { CurveKind } from '../registry/curves/types';
 import { OUTCOMES } from '../registry/outcomes/index';
-import type { FitResult, ModelOptions, ModelReport, Outcome, Shape } from '../types';
+import type { FitResult, ModelOptions, ModelReport, Shape } from '../types';
 import { CachedRows } from './cachedRows';
 import type { ModelBasis, ResolvedModel } from './modelTypes';
 

@@ -621,7 +621,7 @@ export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): 
       case '--help':
       case '-h':
       case 'help': {
-        const topic = command === 'help' ? rest[0] : undefined;
+        const topic = command === 'help' && rest[0] !== '-h' && rest[0] !== '--help' ? rest[0] : undefined;
         if (command === 'help' && rest.length > 1) throw new InputError(`help takes at most one command; got "${rest.join(' ')}"`);
         if (topic === undefined) {
           process.stdout.write(usage() + '\n');

@@ -6,7 +6,7 @@ import type { Cloud, CurveView } from '../view/model';
 import { cloudMarks, cloudRanges, cloudWords } from './cloud';
 import { plotFrame } from './frame';
 import { extent } from './scale';
-import { bandPath, linePath, num, svgDocument } from './svg';
+import { bandPath, linePath, num, reading, svgDocument } from './svg';
 
 /** Inputs of dataCurveSvg. Labels may come from the CSV; they are escaped. */
 export interface DataCurveSpec {
@@ -16,6 +16,8 @@ export interface DataCurveSpec {
   readonly curve: CurveView;
   readonly xLabel: string;
   readonly yLabel: string;
+  /** How to read the figure, the closing sentences of its description (the figure catalogue's text, core/view/figureCatalogue.ts). */
+  readonly reading?: string | undefined;
 }
 
 /** SVG text of the data-and-curve figure. Example: dataCurveSvg({ id: 'fig-data', data, grid, curve, xLabel: 'x', yLabel: 'y' }). */
@@ -49,8 +51,8 @@ export function dataCurveSvg(spec: DataCurveSpec): string {
       title: `${spec.yLabel} against ${spec.xLabel} with the fitted curve (df ${num(curve.df)})`,
       desc:
         `${cloudWords(spec.data)}. The fitted curve with df ${num(curve.df)} runs from ${spec.xLabel} ${num(lo)} to ${num(hi)}, ` +
-        `from ${num(curve.fit[0] ?? NaN)} to ${num(curve.fit[curve.fit.length - 1] ?? NaN)}. ` +
-        `The narrow shaded band is the 95 % confidence band of the mean curve, the wide one the 95 % prediction band for a new reading.`,
+        `from ${num(curve.fit[0] ?? NaN)} to ${num(curve.fit[curve.fit.length - 1] ?? NaN)}.` +
+        reading(spec.reading),
     },
     body,
   );

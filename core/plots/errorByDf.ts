@@ -4,7 +4,7 @@
  */
 import { plotFrame } from './frame';
 import { extent } from './scale';
-import { coord, escapeXml, linePath, num, svgDocument } from './svg';
+import { coord, escapeXml, linePath, num, reading, svgDocument } from './svg';
 
 /** One evaluated candidate (skipped candidates are left out by the caller). */
 export interface ErrorPoint {
@@ -25,6 +25,8 @@ export interface ErrorByDfSpec {
   readonly metricName: string;
   /** The rule in words, for the description (e.g. "the one-standard-error rule"). */
   readonly ruleName: string;
+  /** How to read the figure, the closing sentences of its description (the figure catalogue's text, core/view/figureCatalogue.ts). */
+  readonly reading?: string | undefined;
 }
 
 /** SVG text of the error-against-df figure. Example: errorByDfSvg({ id: 'fig-err', points, chosenDf: 5, metricName: 'RMSE', ruleName: 'least-error' }). */
@@ -68,6 +70,6 @@ export function errorByDfSvg(spec: ErrorByDfSpec): string {
         (best ? `; lowest ${num(best.mean, 4)} at df ${num(best.df)}` : '') +
         (th.length ? `; threshold ${num(th[0] as number, 4)}` : '') +
         (chosen ? `; ${spec.ruleName} chooses df ${num(chosen.df)} (${num(chosen.mean, 4)}).` : '.') +
-        ' Bars show one standard error.';
+        reading(spec.reading);
   return svgDocument(spec.id, { title: `Resampled ${spec.metricName} against df`, desc }, frame.clipDef + frame.axes + `<g clip-path="${frame.clip}">${marks}</g>`);
 }

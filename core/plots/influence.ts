@@ -5,7 +5,7 @@
  */
 import { plotFrame } from './frame';
 import { extent } from './scale';
-import { coord, escapeXml, num, svgDocument } from './svg';
+import { coord, escapeXml, num, reading, svgDocument } from './svg';
 
 /** Inputs of influenceSvg. */
 export interface InfluenceSpec {
@@ -20,6 +20,8 @@ export interface InfluenceSpec {
   readonly threshold: number;
   readonly xLabel: string;
   readonly df: number;
+  /** How to read the figure, the closing sentences of its description (the figure catalogue's text, core/view/figureCatalogue.ts). */
+  readonly reading?: string | undefined;
 }
 
 /** SVG text of the influence figure. Example: influenceSvg({ id: 'fig-cook', measure: "Cook's distance", x, value, lines, binned: false, threshold: 0.08, xLabel: 'speed', df: 4 }). */
@@ -49,7 +51,8 @@ export function influenceSvg(spec: InfluenceSpec): string {
       title: `${spec.measure} against ${spec.xLabel} (df ${spec.df})`,
       desc:
         `${spec.binned ? `Largest ${spec.measure} in each of ${spec.x.length} x cells` : `${spec.measure} of ${spec.x.length} rows`}` +
-        (th.length ? `; ${over} point${over === 1 ? '' : 's'} above the threshold ${num(spec.threshold, 3)}.` : '.'),
+        (th.length ? `; ${over} point${over === 1 ? '' : 's'} above the threshold ${num(spec.threshold, 3)}.` : '.') +
+        reading(spec.reading),
     },
     frame.clipDef + frame.axes + `<g clip-path="${frame.clip}">${marks}</g>`,
   );

@@ -4,7 +4,7 @@
  */
 import { plotFrame } from './frame';
 import { extent } from './scale';
-import { coord, escapeXml, linePath, num, svgDocument } from './svg';
+import { coord, escapeXml, linePath, num, reading, svgDocument } from './svg';
 
 /** Inputs of normalQqSvg: matching theoretical and sample quantiles, both sorted. */
 export interface NormalQqSpec {
@@ -12,6 +12,8 @@ export interface NormalQqSpec {
   readonly theoretical: readonly number[];
   readonly sample: readonly number[];
   readonly df: number;
+  /** How to read the figure, the closing sentences of its description (the figure catalogue's text, core/view/figureCatalogue.ts). */
+  readonly reading?: string | undefined;
 }
 
 /** SVG text of the normal quantile plot. Example: normalQqSvg({ id: 'fig-qq', theoretical, sample, df: 4 }). */
@@ -32,7 +34,7 @@ export function normalQqSvg(spec: NormalQqSpec): string {
     spec.id,
     {
       title: `Normal quantile plot of residuals (df ${spec.df})`,
-      desc: `${spec.theoretical.length} quantiles of the standardised residuals against standard normal quantiles. Points near the diagonal line mean roughly normal residuals; bends at the ends mean heavy or light tails.`,
+      desc: `${spec.theoretical.length} quantiles of the standardised residuals against standard normal quantiles.` + reading(spec.reading),
     },
     frame.clipDef + frame.axes + `<g clip-path="${frame.clip}">${marks}</g>`,
   );

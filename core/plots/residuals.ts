@@ -5,7 +5,7 @@ import type { Cloud } from '../view/model';
 import { cloudMarks, cloudRanges, cloudWords } from './cloud';
 import { plotFrame } from './frame';
 import { extent } from './scale';
-import { coord, svgDocument } from './svg';
+import { coord, reading, svgDocument } from './svg';
 
 /** Inputs of residualSvg. `against` names the horizontal quantity (a column label or "fitted value"). */
 export interface ResidualSpec {
@@ -15,6 +15,8 @@ export interface ResidualSpec {
   readonly df: number;
   /** 'response' (default): reading minus fitted value; 'deviance': deviance residuals of a Poisson or binomial fit. */
   readonly kind?: 'response' | 'deviance' | undefined;
+  /** How to read the figure, the closing sentences of its description (the figure catalogue's text, core/view/figureCatalogue.ts). */
+  readonly reading?: string | undefined;
 }
 
 /** SVG text of a residual figure. Example: residualSvg({ id: 'fig-rx', cloud, against: 'speed', df: 4 }). */
@@ -34,7 +36,7 @@ export function residualSvg(spec: ResidualSpec): string {
     spec.id,
     {
       title: `${deviance ? 'Deviance residuals' : 'Residuals'} against ${spec.against} (df ${spec.df})`,
-      desc: `${cloudWords(spec.cloud)}; ${deviance ? "deviance residual = the signed square root of the row's contribution to the deviance" : 'residual = reading minus fitted value'}. Without structure they scatter evenly around the zero line.`,
+      desc: `${cloudWords(spec.cloud)}; ${deviance ? "deviance residual = the signed square root of the row's contribution to the deviance" : 'residual = reading minus fitted value'}.` + reading(spec.reading),
     },
     body,
   );

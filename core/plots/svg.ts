@@ -30,6 +30,11 @@ export interface FigureText {
   readonly desc: string;
 }
 
+/** The closing sentences of a description that say how to read the figure: a space and the text, or nothing. */
+export function reading(text: string | undefined): string {
+  return text ? ` ${text}` : '';
+}
+
 /** Outer size of every figure in SVG user units; the page scales it to its width. */
 export const FIGURE_WIDTH = 560;
 export const FIGURE_HEIGHT = 320;

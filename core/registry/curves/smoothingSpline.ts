@@ -19,7 +19,7 @@ function smoothTrainer(x: Float64Array, yc: Float64Array, lambda: number, df: nu
         return true;
       } catch (e) {
         if (e instanceof FitError) return false;
-        throw new Error(`smoothing spline with df ${df} failed in a resample: ${(e as Error).message}`);
+        throw new Error(`smoothing spline with df ${df} failed in a resample: ${(e as Error).message}`, { cause: e });
       }
     },
     predict(i: number): number {

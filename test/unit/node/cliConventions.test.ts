@@ -85,7 +85,7 @@ describe('command-line conventions', () => {
     });
 
     it('knotwise --help, -h and help exit 0 with every command; knotwise alone prints the usage on stderr and exits 2', async () => {
-      for (const argv of [['--help'], ['-h'], ['help']]) {
+      for (const argv of [['--help'], ['-h'], ['help'], ['help', '--help']]) {
         const r = await runMain(...argv);
         assert.equal(r.code, 0);
         for (const c of commands()) assert.match(r.stdout, new RegExp(`^ {2}${c.name} +${c.summary.replace(/[()]/g, '\\$&')}$`, 'm'));

@@ -13,7 +13,7 @@ import { DEFAULT_RULE, RULE_LIST, RULE_PATTERN } from '../../../core/registry/ru
 import { DEFAULTS, LIMITS, readSettings } from '../../../extension/settings';
 
 const REPO = join(__dirname, '..', '..', '..');
-type Json = Record<string, any>; // eslint-disable-line @typescript-eslint/no-explicit-any
+type Json = Record<string, any>;
 const pkg = JSON.parse(readFileSync(join(REPO, 'package.json'), 'utf8')) as Json;
 const schema = JSON.parse(readFileSync(join(REPO, 'schema', 'fit-record.schema.json'), 'utf8')) as Json;
 const settings = pkg.contributes.configuration.properties as Json;
