@@ -5,24 +5,20 @@
  * shape constraints and robust fitting (the host reruns the analysis), and sends save and
  * reveal-line requests. Every text from the CSV is set with textContent.
  */
-import type { FitDetail, HostMessage, ModelChoice, PanelPayload } from '../core/protocol';
-import { unreachable } from '../core/protocol';
+import type { HostMessage } from '../core/protocol';
+import { isRuleSpec, unreachable } from '../core/protocol';
+import { OUTCOME_LIST } from '../core/registry/outcomes/index';
+import { MAX_TOLERANCE_PERCENT, RULE_LIST, ruleWords } from '../core/registry/rules/index';
 import type { Outcome, Shape } from '../core/types';
 import { metricLabel, sig } from '../core/tune/format';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec, Selection } from '../core/tune/types';
+import type { FitDetail, ModelChoice, PanelPayload } from '../core/view/model';
 import { el, replaceChildren } from './dom';
 import { renderFigures } from './figures';
 import type { Host } from './vscodeApi';
-import { ruleWords } from '../core/registry/rules/index';
 
 type RuleKind = RuleSpec['kind'];
-
-const OUTCOME_CHOICES: readonly { readonly outcome: Outcome; readonly label: string }[] = [
-  { outcome: 'continuous', label: 'Least squares (Gaussian)' },
-  { outcome: 'counts', label: 'Counts (Poisson, log link)' },
-  { outcome: 'proportions', label: 'Proportions (binomial, logit link)' },
-];
 
 const SHAPE_CHOICES: readonly { readonly shape: Shape; readonly label: string; readonly opposite?: Shape }[] = [
   { shape: 'increasing', label: 'increasing', opposite: 'decreasing' },
@@ -30,13 +26,6 @@ const SHAPE_CHOICES: readonly { readonly shape: Shape; readonly label: string; r
   { shape: 'nonnegative', label: 'non-negative' },
   { shape: 'convex', label: 'convex', opposite: 'concave' },
   { shape: 'concave', label: 'concave', opposite: 'convex' },
-];
-
-const RULE_CHOICES: readonly { readonly kind: RuleKind; readonly label: string }[] = [
-  { kind: 'one-se', label: 'One-standard-error rule' },
-  { kind: 'simplest-within', label: 'Within a tolerance of the lowest error' },
-  { kind: 'least-error', label: 'Lowest mean error' },
-  { kind: 'pick', label: 'My own df' },
 ];
 
 /** The panel's state and DOM. */
@@ -111,7 +100,7 @@ export class Panel {
     this.details.clear();
     this.requested.clear();
     for (const d of payload.details) this.details.set(d.df, d);
-    this.rule = kept && kept.runId === payload.runId ? (kept.rule as RuleSpec) : payload.rule;
+    this.rule = kept && kept.runId === payload.runId && isRuleSpec(kept.rule) ? kept.rule : payload.rule;
     this.tolerance = this.rule.kind === 'simplest-within' ? this.rule.percent : payload.tolerancePercent;
     this.root.dataset.state = 'ready';
     this.root.dataset.runId = String(payload.runId);
@@ -131,12 +120,12 @@ export class Panel {
   private build(p: PanelPayload): void {
     const s = p.source;
     const evaluated = p.candidates.filter((c) => c.skipped === undefined);
-    const ruleGroup = el('fieldset', { class: 'kw-rules' }, el('legend', {}, 'How df is chosen'));
-    for (const r of RULE_CHOICES) {
-      const id = `kw-rule-${r.kind}`;
-      ruleGroup.append(el('div', { class: 'kw-radio' }, el('input', { type: 'radio', name: 'kw-rule', id, value: r.kind }), el('label', { for: id }, r.label)));
+    const ruleGroup = el('fieldset', { class: 'kw-rules' }, el('legend', {}, 'How the df is chosen'));
+    for (const r of RULE_LIST) {
+      const id = `kw-rule-${r.id}`;
+      ruleGroup.append(el('div', { class: 'kw-radio' }, el('input', { type: 'radio', name: 'kw-rule', id, value: r.id }), el('label', { for: id }, r.label)));
     }
-    const dfSelect = el('select', { id: 'kw-df', 'aria-label': 'df chosen by hand' });
+    const dfSelect = el('select', { id: 'kw-df' });
     for (const c of evaluated) dfSelect.append(el('option', { value: c.df }, `df ${c.df}`));
     const modelGroup = this.modelControls(p);
     const controls = el(
@@ -147,8 +136,8 @@ export class Panel {
         'div',
         { class: 'kw-inputs' },
         el('label', { for: 'kw-tolerance' }, 'Tolerance (%)'),
-        el('input', { type: 'number', id: 'kw-tolerance', min: 0, max: 100, step: 0.5, value: this.tolerance }),
-        el('label', { for: 'kw-df' }, 'df by hand'),
+        el('input', { type: 'number', id: 'kw-tolerance', min: 0, max: MAX_TOLERANCE_PERCENT, step: 0.5, value: this.tolerance }),
+        el('label', { for: 'kw-df' }, 'The df I pick'),
         dfSelect,
       ),
       modelGroup,
@@ -192,8 +181,8 @@ export class Panel {
     }
     this.byId<HTMLInputElement>('kw-tolerance').addEventListener('change', (e) => {
       const v = Number((e.target as HTMLInputElement).value);
-      if (!(v >= 0 && v <= 100)) {
-        this.status('The tolerance must be a percentage from 0 to 100.');
+      if (!(v >= 0 && v <= MAX_TOLERANCE_PERCENT)) {
+        this.status(`The tolerance must be a percentage from 0 to ${MAX_TOLERANCE_PERCENT}.`);
         return;
       }
       this.tolerance = v;
@@ -208,29 +197,30 @@ export class Panel {
     this.syncModelControls();
   }
 
-  /** Outcome family, shape constraints and robust fitting: changing one reruns the analysis in the host. */
+  /** What the readings are, shape constraints and robust fitting: changing one tunes again in the host. */
   private modelControls(p: PanelPayload): HTMLFieldSetElement {
     const sup = p.model.supports;
     const outcome = el('select', { id: 'kw-outcome' });
-    for (const o of OUTCOME_CHOICES) outcome.append(el('option', { value: o.outcome, disabled: !sup.outcomes.includes(o.outcome) }, o.label));
+    for (const o of OUTCOME_LIST) outcome.append(el('option', { value: o.id, disabled: !sup.outcomes.includes(o.id) }, o.label));
     const shapes = el('div', { class: 'kw-shapes', role: 'group', 'aria-label': 'Shape the curve must have' });
     for (const c of SHAPE_CHOICES) {
       const id = `kw-shape-${c.shape}`;
       shapes.append(el('span', { class: 'kw-check-item' }, el('input', { type: 'checkbox', id, value: c.shape }), el('label', { for: id }, c.label)));
     }
-    const unsupported = [!sup.shapes ? 'shape constraints' : '', !sup.robust ? 'robust fitting' : '', sup.outcomes.length < 3 ? 'count and proportion outcomes' : ''].filter((t) => t !== '');
+    const missing = OUTCOME_LIST.filter((o) => !sup.outcomes.includes(o.id)).map((o) => o.id);
+    const unsupported = [!sup.shapes ? 'shape constraints' : '', !sup.robust ? 'robust fitting' : '', missing.length ? `readings that are ${missing.join(' or ')}` : ''].filter((t) => t !== '');
     return el(
       'fieldset',
       { class: 'kw-model-controls', id: 'kw-model-controls' },
-      el('legend', {}, 'Outcome and shape (reruns)'),
-      el('div', { class: 'kw-inputs' }, el('label', { for: 'kw-outcome' }, 'Readings are'), outcome),
+      el('legend', {}, 'Readings and shape (changing these tunes again)'),
+      el('div', { class: 'kw-inputs' }, el('label', { for: 'kw-outcome' }, 'The readings are'), outcome),
       el('div', { class: 'kw-shape-row' }, el('span', { class: 'kw-muted' }, 'Shape: '), shapes),
       el('div', { class: 'kw-check-item' }, el('input', { type: 'checkbox', id: 'kw-robust' }), el('label', { for: 'kw-robust' }, `Robust (Huber${p.model.robustK !== undefined ? `, k = ${p.model.robustK}` : ''}): down-weight outliers`)),
       unsupported.length ? el('p', { class: 'kw-muted kw-small' }, `The ${p.curveWords} does not support ${unsupported.join(', ')}.`) : null,
     );
   }
 
-  /** Sets the model controls to the shown result's options and enables what the family and outcome allow. */
+  /** Sets the model controls to the shown result's options and enables what the curve kind and the readings allow. */
   private syncModelControls(): void {
     const p = this.payload;
     const outcome = this.root.querySelector<HTMLSelectElement>('#kw-outcome');
@@ -271,7 +261,7 @@ export class Panel {
     this.enableModelControls();
     const model = this.modelChoice();
     this.root.dataset.state = 'running';
-    this.status('Running the analysis again with the new outcome and shape…');
+    this.status('Tuning again with the new readings and shape…');
     this.host.post({ type: 'model', runId: p.runId, model });
   }
 
@@ -324,7 +314,7 @@ export class Panel {
     this.root.dataset.chosenDf = String(sel.df);
     this.byId('kw-chosen-df').textContent = `df ${sel.df}`;
     this.byId('kw-fit-stats').textContent = detail
-      ? ` residual SD ${sig(detail.sigma, 4)}, R² ${sig(detail.r2, 4)}, AIC ${sig(detail.aic, 5)}${detail.lambda !== undefined ? `, lambda ${sig(detail.lambda, 3)}` : ''}`
+      ? ` residual SD ${sig(detail.sigma, 4)}, ${detail.model?.glm ? `deviance explained ${sig(100 * detail.r2, 3)} %` : `R² ${sig(detail.r2, 4)}`}, AIC ${sig(detail.aic, 5)}${detail.lambda !== undefined ? `, lambda ${sig(detail.lambda, 3)}` : ''}`
       : '';
     this.byId('kw-reason').textContent = sel.reason;
     replaceChildren(

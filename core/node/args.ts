@@ -309,7 +309,7 @@ function optionHelp(o: OptionSpec): string[] {
 
 /** The `--help` text of a command, generated from its table. */
 export function formatHelp(spec: CommandSpec): string {
-  const lines = [`knotwise ${spec.name}: ${spec.summary}`, '', 'Usage:', ...spec.usage.map((u) => `  knotwise ${u}`)];
+  const lines = [...wrap(`knotwise ${spec.name}: ${spec.summary}`, 2, 0), '', 'Usage:', ...spec.usage.map((u) => `  knotwise ${u}`)];
   const groups = [...new Set(spec.options.map((o) => o.group ?? 'Options'))];
   for (const g of groups) {
     lines.push('', `${g}:`);

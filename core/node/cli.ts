@@ -62,7 +62,7 @@ function fitCommand() {
   return defineCommand({
     name: 'fit',
     summary: 'fit a curve to CSV data, tune its df by resampling, and write its curve table and fit record',
-    usage: ['fit <file.csv> --x <column> --y <column> [options]', 'fit - --x <column> --y <column> --print-only [options]   (the CSV from standard input)'],
+    usage: ['fit <file.csv> --x <column> --y <column> [options]', 'fit - --x <column> --y <column> --print-only [options]'],
     operands: { min: 1, max: 1, name: 'data file', missing: 'no data file given: knotwise fit <file.csv> --x <column> --y <column> (or - for standard input)' },
     options: [
       { group: 'Data', name: 'x', value: 'column', help: 'the column of the input quantity, by header text or label', required: true },
@@ -252,8 +252,16 @@ async function readAll(stream: NodeJS.ReadableStream): Promise<Uint8Array> {
   return Buffer.concat(chunks);
 }
 
-function processEnv(): CliEnv {
-  return { readStdin: () => readAll(process.stdin), stdinIsTTY: process.stdin.isTTY === true, progressStream: process.stderr, clock: Date.now };
+/** `env` with the process's own standard input, standard error and clock for what it leaves out (standard input is touched only when read). */
+function withProcess(env: Partial<CliEnv>): CliEnv {
+  return {
+    readStdin: env.readStdin ?? (() => readAll(process.stdin)),
+    get stdinIsTTY() {
+      return env.stdinIsTTY ?? process.stdin.isTTY === true;
+    },
+    progressStream: env.progressStream ?? process.stderr,
+    clock: env.clock ?? Date.now,
+  };
 }
 
 /** Options of `knotwise fit`, parsed. */
@@ -605,7 +613,7 @@ function unknownCommand(name: string): InputError {
  * and the clock (tests).
  */
 export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): Promise<number> {
-  const e: CliEnv = { ...processEnv(), ...env };
+  const e = withProcess(env);
   const [command, ...rest] = argv;
   try {
     switch (command) {
