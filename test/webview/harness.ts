@@ -16,6 +16,8 @@ import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { '
 import type { Fixture } from './fixture';
 
 const distDir = join(__dirname, '..', '..', 'dist', 'webview');
+/** Upper bound of every wait for the panel (a failure report, not a pause: waits end as soon as their condition holds). */
+const WAIT_LIMIT_MS = 10000;
 
 /** A page showing the panel, and what happened in it. */
 export interface PanelPage {
@@ -26,10 +28,15 @@ export interface PanelPage {
   readonly dialogs: string[];
   /** Content-security-policy violations reported by the page. */
   readonly cspViolations: () => Promise<string[]>;
-  /** Posts a host message into the panel. */
-  send(message: HostMessage): Promise<void>;
+  /**
+   * Posts a message into the panel as the host does, and resolves once the page has
+   * dispatched it to every listener (the panel has handled it or dropped it).
+   */
+  send(message: unknown): Promise<void>;
   /** Waits until the panel sent a message of type `type` (after `from` messages). */
   waitForSent(type: PanelMessage['type'], from?: number): Promise<PanelMessage>;
+  /** Waits until the text of `selector` equals `want` (a string) or matches it (a RegExp); returns the text. */
+  waitForText(selector: string, want: string | RegExp): Promise<string>;
 }
 
 /** A local server for the panel files. */
@@ -71,21 +78,42 @@ export type Theme = 'light' | 'dark';
 /** Opens the panel page, installs the stub host and waits for the panel's `ready`. */
 export async function openPanel(browser: LaunchedChromium, server: PanelServer, fixture: Fixture | undefined, theme: Theme = 'light'): Promise<PanelPage> {
   const page = await browser.context.newPage();
-  page.setDefaultTimeout(10000);
+  page.setDefaultTimeout(WAIT_LIMIT_MS);
   const sent: PanelMessage[] = [];
+  const waiters = new Set<() => void>();
   const dialogs: string[] = [];
   page.on('dialog', (d) => {
     dialogs.push(`${d.type()}: ${d.message()}`);
     void d.dismiss();
   });
-  const post = async (message: HostMessage): Promise<void> => {
-    await page.evaluate((m) => (globalThis as unknown as { postMessage(m: unknown, origin: string): void }).postMessage(m, '*'), message);
+  let marks = 0;
+  const post = async (message: unknown): Promise<void> => {
+    // Message events are dispatched in the order they were posted, each to every listener
+    // before the next: once a mark posted after `message` arrives here, the panel's listener
+    // (registered when its script started) has finished with `message`.
+    const mark = `knotwise-test-mark-${++marks}`;
+    await page.evaluate(
+      ([m, k]) =>
+        new Promise<void>((resolve) => {
+          const w = globalThis as unknown as Window;
+          const onMark = (e: MessageEvent<unknown>): void => {
+            if (e.data !== k) return;
+            w.removeEventListener('message', onMark);
+            resolve();
+          };
+          w.addEventListener('message', onMark);
+          w.postMessage(m, '*');
+          w.postMessage(k, '*');
+        }),
+      [message, mark] as const,
+    );
   };
   await page.exposeFunction('__knotwiseToHost', (m: PanelMessage) => {
     sent.push(m);
+    for (const wake of [...waiters]) wake();
     if (m.type === 'needDetail' && fixture && m.runId === fixture.payload.runId) {
       const detail = detailFor(fixture.analysis, m.df);
-      if (detail) void post({ type: 'detail', runId: m.runId, detail });
+      if (detail) void post({ type: 'detail', runId: m.runId, detail } satisfies HostMessage);
     }
   });
   await page.addInitScript({ path: join(__dirname, 'stub.js') });
@@ -97,14 +125,50 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
     dialogs,
     cspViolations: () => page.evaluate('window.__knotwiseCsp') as Promise<string[]>,
     send: post,
-    async waitForSent(type, from = 0) {
-      const deadline = Date.now() + 10000;
-      for (;;) {
-        const m = sent.slice(from).find((s) => s.type === type);
-        if (m) return m;
-        if (Date.now() > deadline) throw new Error(`the panel did not send "${type}" (sent: ${sent.map((s) => s.type).join(', ')})`);
-        await new Promise((r) => setTimeout(r, 25));
+    waitForSent(type, from = 0) {
+      const find = (): PanelMessage | undefined => sent.slice(from).find((s) => s.type === type);
+      const now = find();
+      if (now) return Promise.resolve(now);
+      // Woken by each message the panel sends; the page's default timeout bounds the wait.
+      return new Promise<PanelMessage>((resolve, reject) => {
+        const wake = (): void => {
+          const m = find();
+          if (!m) return;
+          settle();
+          resolve(m);
+        };
+        const onClose = (): void => {
+          settle();
+          reject(new Error(`the page closed before the panel sent "${type}" (sent: ${sent.map((s) => s.type).join(', ')})`));
+        };
+        const timer = setTimeout(() => {
+          settle();
+          reject(new Error(`the panel did not send "${type}" (sent: ${sent.map((s) => s.type).join(', ')})`));
+        }, WAIT_LIMIT_MS);
+        const settle = (): void => {
+          clearTimeout(timer);
+          waiters.delete(wake);
+          page.off('close', onClose);
+        };
+        waiters.add(wake);
+        page.on('close', onClose);
+      });
+    },
+    async waitForText(selector, want) {
+      const source = typeof want === 'string' ? { text: want } : { re: want.source, flags: want.flags };
+      try {
+        await page.waitForFunction(
+          ([sel, w]) => {
+            const t = document.querySelector(sel)?.textContent ?? '';
+            return 'text' in w ? t === w.text : new RegExp(w.re, w.flags).test(t);
+          },
+          [selector, source] as const,
+        );
+      } catch (err) {
+        const now = await page.textContent(selector).catch(() => null);
+        throw new Error(`${selector} never read ${String(want)} (it reads ${JSON.stringify(now)}): ${err instanceof Error ? err.message : String(err)}`);
       }
+      return (await page.textContent(selector)) ?? '';
     },
   };
   await pp.waitForSent('ready');
