@@ -19,6 +19,14 @@ const distDir = join(__dirname, '..', '..', 'dist', 'webview');
 /** Upper bound of every wait for the panel (a failure report, not a pause: waits end as soon as their condition holds). */
 const WAIT_LIMIT_MS = 10000;
 
+/** The few browser globals the page functions below use (this file compiles without the DOM library). */
+interface PageWindow {
+  addEventListener(type: 'message', listener: (e: { readonly data: unknown }) => void): void;
+  removeEventListener(type: 'message', listener: (e: { readonly data: unknown }) => void): void;
+  postMessage(message: unknown, targetOrigin: string): void;
+  readonly document: { querySelector(selector: string): { readonly textContent: string | null } | null };
+}
+
 /** A page showing the panel, and what happened in it. */
 export interface PanelPage {
   readonly page: Page;
@@ -33,6 +41,8 @@ export interface PanelPage {
    * dispatched it to every listener (the panel has handled it or dropped it).
    */
   send(message: unknown): Promise<void>;
+  /** As `send`, with the message parsed from JSON text inside the page (keys such as "__proto__" stay own keys). */
+  sendJson(text: string): Promise<void>;
   /** Waits until the panel sent a message of type `type` (after `from` messages). */
   waitForSent(type: PanelMessage['type'], from?: number): Promise<PanelMessage>;
   /** Waits until the text of `selector` equals `want` (a string) or matches it (a RegExp); returns the text. */
@@ -87,25 +97,25 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
     void d.dismiss();
   });
   let marks = 0;
-  const post = async (message: unknown): Promise<void> => {
+  const post = async (message: unknown, asJson = false): Promise<void> => {
     // Message events are dispatched in the order they were posted, each to every listener
     // before the next: once a mark posted after `message` arrives here, the panel's listener
     // (registered when its script started) has finished with `message`.
     const mark = `knotwise-test-mark-${++marks}`;
     await page.evaluate(
-      ([m, k]) =>
+      ([m, k, json]) =>
         new Promise<void>((resolve) => {
-          const w = globalThis as unknown as Window;
-          const onMark = (e: MessageEvent<unknown>): void => {
+          const w = globalThis as unknown as PageWindow;
+          const onMark = (e: { readonly data: unknown }): void => {
             if (e.data !== k) return;
             w.removeEventListener('message', onMark);
             resolve();
           };
           w.addEventListener('message', onMark);
-          w.postMessage(m, '*');
+          w.postMessage(json ? JSON.parse(m as string) : m, '*');
           w.postMessage(k, '*');
         }),
-      [message, mark] as const,
+      [message, mark, asJson] as const,
     );
   };
   await page.exposeFunction('__knotwiseToHost', (m: PanelMessage) => {
@@ -124,7 +134,8 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
     sent,
     dialogs,
     cspViolations: () => page.evaluate('window.__knotwiseCsp') as Promise<string[]>,
-    send: post,
+    send: (m) => post(m),
+    sendJson: (text) => post(text, true),
     waitForSent(type, from = 0) {
       const find = (): PanelMessage | undefined => sent.slice(from).find((s) => s.type === type);
       const now = find();
@@ -159,7 +170,7 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
       try {
         await page.waitForFunction(
           ([sel, w]) => {
-            const t = document.querySelector(sel)?.textContent ?? '';
+            const t = (globalThis as unknown as PageWindow).document.querySelector(sel)?.textContent ?? '';
             return 'text' in w ? t === w.text : new RegExp(w.re, w.flags).test(t);
           },
           [selector, source] as const,

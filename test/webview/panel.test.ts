@@ -10,7 +10,10 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../core/analysis';
 import { num } from '../../core/plots/svg';
-import type { HostMessage } from '../../core/protocol';
+import { MAX_MESSAGE_TEXT, type HostMessage } from '../../core/protocol';
+import { OUTCOME_LIST } from '../../core/registry/outcomes/index';
+import { RULE_LIST } from '../../core/registry/rules/index';
+import { FIGURE_CATALOGUE, type FigureView } from '../../core/view/figureCatalogue';
 import type { PanelPayload } from '../../core/view/model';
 import { selectDf } from '../../core/tune/rules';
 import type { RuleSpec } from '../../core/tune/types';
@@ -154,7 +157,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
       document.body.append(s);
     })()`);
     // The browser reports the blocked script; an allowed inline script would have run during append().
-    await page.waitForFunction(() => (window as unknown as { __knotwiseCsp: string[] }).__knotwiseCsp.some((v) => v.startsWith('script-src')));
+    await page.waitForFunction(() => (globalThis as unknown as { __knotwiseCsp: string[] }).__knotwiseCsp.some((v) => v.startsWith('script-src')));
     assert.equal(await page.evaluate('window.__injected'), undefined);
     await page.close();
   });
@@ -353,6 +356,91 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await pp.send({ type: 'saved', requestId: save.requestId, files: ['mcycle.curve.csv', 'mcycle.fit.json'], note: 'The table has 41 rows.' });
     await pp.waitForText('#kw-status', 'Saved mcycle.curve.csv and mcycle.fit.json. The table has 41 rows.');
     await pp.page.close();
+  });
+
+  it("the choosers carry the registries' labels, and the panel's words name no command-line flag", async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const options = await page.$$eval('#kw-outcome option', (os) => os.map((o) => ({ value: o.getAttribute('value'), text: o.textContent })));
+    assert.deepEqual(
+      options,
+      OUTCOME_LIST.map((o) => ({ value: o.id, text: o.label })),
+    );
+    const rules = await page.$$eval('.kw-rules .kw-radio', (rs) => rs.map((r) => ({ value: r.querySelector('input')?.getAttribute('value'), text: r.querySelector('label')?.textContent })));
+    assert.deepEqual(
+      rules,
+      RULE_LIST.map((r) => ({ value: r.id, text: r.label })),
+    );
+    assert.deepEqual(await page.$$eval('legend', (ls) => ls.map((l) => l.textContent)), ['How the df is chosen', 'Readings and shape (changing these tunes again)']);
+    assert.equal(await page.textContent('label[for="kw-outcome"]'), 'The readings are');
+    assert.equal(await page.textContent('label[for="kw-rule-pick"]'), 'A df I pick');
+    // Settings, not flags: the panel lives in the editor.
+    const text = (await page.textContent('#knotwise-root')) ?? '';
+    assert.doesNotMatch(text, /(^|[\s(`])--[a-z]/);
+    await page.close();
+  });
+
+  it('every figure is the catalogue\'s: its id, its title as caption, its reading closing the description', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const p = mcycle.payload;
+    const sel = expected(p, p.rule);
+    await page.waitForSelector('#fig-qq svg');
+    const view: FigureView = {
+      xLabel: p.source.xLabel,
+      yLabel: p.source.yLabel,
+      df: sel.df,
+      data: p.data,
+      grid: p.grid,
+      curve: p.curves.find((c) => c.df === sel.df),
+      tuning: { metric: p.metric, candidates: p.candidates, rule: sel.rule, threshold: sel.threshold },
+      detail: p.details.find((d) => d.df === sel.df),
+    };
+    const shownFigures = await page.$$eval('figure.kw-figure', (fs) => fs.map((f) => ({ id: f.id, caption: f.querySelector('figcaption')?.textContent ?? '', desc: f.querySelector('svg > desc')?.textContent ?? '' })));
+    assert.deepEqual(
+      shownFigures.map((f) => f.id),
+      FIGURE_CATALOGUE.map((f) => f.id),
+    );
+    for (const [i, f] of FIGURE_CATALOGUE.entries()) {
+      const got = shownFigures[i];
+      assert.equal(got?.caption, f.title(view), f.id);
+      assert.ok(got?.desc.endsWith(f.description), `${f.id}: ${got?.desc}`);
+    }
+    await page.close();
+  });
+
+  it('the panel drops what the protocol refuses: wrong fields, huge texts, __proto__ keys', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const mark = pp.sent.length;
+    await page.click('#kw-save');
+    const save = await pp.waitForSent('save', mark);
+    if (save.type !== 'save') throw new Error('expected a save request');
+    const id = save.requestId;
+    const refused: unknown[] = [
+      { type: 'saved', requestId: id, files: ['a.csv'], note: 'x'.repeat(MAX_MESSAGE_TEXT + 1) },
+      { type: 'saved', requestId: String(id), files: ['a.csv'] },
+      { type: 'saved', requestId: id, files: 'a.csv' },
+      { type: 'saved', requestId: id, files: ['a.csv'], extra: true },
+      { type: 'saveFailed', requestId: id, message: 7 },
+      { type: 'result', payload: { ...mcycle.payload, runId: 9 }, extra: 1 },
+      { type: 'result', payload: { ...mcycle.payload, runId: Infinity } },
+      { type: 'running', runId: NaN, message: 'ran' },
+      { type: 'explode' },
+      'saved',
+      null,
+    ];
+    for (const m of refused) await pp.send(m);
+    await pp.sendJson(`{"type":"saveFailed","requestId":${id},"message":"polluted","__proto__":{"admin":true}}`);
+    await pp.sendJson(`{"type":"result","payload":${JSON.stringify({ ...mcycle.payload, runId: 9, source: { ...mcycle.payload.source, fileName: 'polluted.csv', __proto__: null } }).replace('"__proto__":null', '"__proto__":{"admin":true}')}}`);
+    assert.equal(await page.textContent('#kw-status'), 'Saving…', 'no refused answer ended the save');
+    assert.equal(await page.getAttribute('#knotwise-root', 'data-run-id'), '1', 'no refused result replaced the view');
+    assert.equal(await page.getAttribute('#knotwise-root', 'data-error'), null);
+    assert.equal(await page.evaluate('({}).admin'), undefined);
+    // The well-formed answer still gets through.
+    await pp.send({ type: 'saved', requestId: id, files: ['mcycle.curve.csv'] } satisfies HostMessage);
+    await pp.waitForText('#kw-status', 'Saved mcycle.curve.csv.');
+    await page.close();
   });
 
   for (const theme of ['light', 'dark'] as const) {

@@ -132,7 +132,7 @@ describe('Knotwise commands in the extension host', function () {
     for (const c of contributed) assert.ok(all.includes(c), `${c} is registered`);
   });
 
-  it('tuning MASS::mcycle by exact leave-one-out with the lowest-error rule chooses the df R chooses', async function () {
+  it('tuning MASS::mcycle by exact leave-one-out with the least-error rule chooses the df R chooses', async function () {
     const run = (await vscode.commands.executeCommand('knotwise.tuneCurve', file('mcycle.csv'), MCYCLE)) as RunSummary;
     assert.equal(run.status, 'done', run.message);
     // Reference: expected.json, from make-fixtures.R (R splines::ns, lm, hatvalues).
@@ -298,7 +298,7 @@ describe('Knotwise commands in the extension host', function () {
       assert.equal(saved.chosenDf, 5);
       const rec = JSON.parse(await text(file('cars.record.json'))) as { table: { file: string }; selection: { df: number; rule: string } };
       assert.equal(rec.table.file, 'cars.table.csv');
-      assert.deepEqual([rec.selection.df, rec.selection.rule], [5, 'df:5']);
+      assert.deepEqual([rec.selection.df, rec.selection.rule], [5, 'pick:5']);
       // The command line rebuilds the table from the data and the record and finds it current.
       const out = execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'check', file('cars.record.json').fsPath], { encoding: 'utf8' });
       assert.match(out, /^current /m);
