@@ -87,8 +87,9 @@ const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor',
 
 /**
  * True when `v` is plain data: plain objects, arrays, strings under MAX_MESSAGE_TEXT,
- * numbers (NaN included: a GCV standard error is NaN), booleans, null and undefined, at most MAX_DEPTH deep, with no `__proto__`, `constructor`
- * or `prototype` key anywhere. O(size of v).
+ * numbers (NaN included: a GCV standard error is NaN), booleans, null and undefined, at
+ * most MAX_DEPTH deep, with no `__proto__`, `constructor` or `prototype` key anywhere.
+ * O(size of v).
  */
 function isPlainData(v: unknown, depth = 0): boolean {
   if (v === null || v === undefined || typeof v === 'number' || typeof v === 'boolean') return true;
@@ -197,11 +198,7 @@ function isPanelPayload(p: unknown): p is PanelPayload {
 function isFitDetail(d: unknown): d is FitDetail {
   const o = plainObject(d);
   return (
-    o !== undefined &&
-    isPositive(o.df) &&
-    (o.residualKind === 'response' || o.residualKind === 'deviance') &&
-    arrays(o, ['notes', 'knots', 'influential', 'checks', 'warnings']) &&
-    isPlainData(o)
+    o !== undefined && isPositive(o.df) && (o.residualKind === 'response' || o.residualKind === 'deviance') && arrays(o, ['notes', 'knots', 'influential', 'checks', 'warnings']) && isPlainData(o)
   );
 }
 

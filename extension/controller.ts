@@ -4,9 +4,9 @@
  * thread (core's worker pool), Problems entries for rejected rows, and saving.
  */
 import * as vscode from 'vscode';
-import { analyse } from '../core/analysis';
-import type { Analysis, AnalysisOptions, Diagnostics } from '../core/analysisTypes';
-import { diagnose } from '../core/diagnose';
+import { analyse } from '../core/analysis/analysis';
+import type { Analysis, AnalysisOptions, Diagnostics } from '../core/analysis/types';
+import { diagnose } from '../core/analysis/diagnose';
 import { CancelledError, InputError } from '../core/errors';
 import { selectColumns, type Selection as ColumnSelection } from '../core/ingest/select';
 import { selectTrials } from '../core/ingest/trials';

@@ -3,18 +3,18 @@
  * buildDeliverables from the same plan the command line would carry out (so the bytes are
  * those of `knotwise fit ... --out <folder>` for the same inputs), then written through
  * workspace.fs, each atomically (a temporary file in the same folder, then a rename). A
- * file Knotwise did not write is replaced only after the person agrees (core/ownership.ts).
+ * file Knotwise did not write is replaced only after the person agrees (core/outputs/ownership.ts).
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { posix } from 'node:path';
 import * as vscode from 'vscode';
-import { withRule } from '../core/analysis';
-import type { Analysis, Diagnostics } from '../core/analysisTypes';
-import { buildDeliverables, type Deliverables } from '../core/deliver';
+import { withRule } from '../core/analysis/analysis';
+import type { Analysis, Diagnostics } from '../core/analysis/types';
+import { buildDeliverables, type Deliverables } from '../core/outputs/deliver';
 import { InputError } from '../core/errors';
 import type { Selection } from '../core/ingest/select';
-import { writtenByKnotwise } from '../core/ownership';
-import { DEFAULT_OUTPUT, type FitPlan } from '../core/plan';
+import { writtenByKnotwise } from '../core/outputs/ownership';
+import { DEFAULT_OUTPUT, type FitPlan } from '../core/outputs/plan';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec } from '../core/tune/types';
 import { outputName, type Settings } from './settings';
@@ -130,7 +130,7 @@ async function readBytes(uri: vscode.Uri): Promise<Uint8Array | undefined> {
   }
 }
 
-/** True when `target` does not exist or Knotwise wrote it (core/ownership.ts, with the bytes read through workspace.fs). */
+/** True when `target` does not exist or Knotwise wrote it (core/outputs/ownership.ts, with the bytes read through workspace.fs). */
 export async function ownedByKnotwise(target: vscode.Uri, recordUri: vscode.Uri): Promise<boolean> {
   const bytes = await readBytes(target);
   const recordBytes = target.toString() === recordUri.toString() ? bytes : await readBytes(recordUri);

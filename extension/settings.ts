@@ -5,12 +5,12 @@
  * line's words from core/registry/, so a setting and a command-line option mean the same
  * thing and have the same limits.
  */
-import type { AnalysisOptions } from '../core/analysisTypes';
+import type { AnalysisOptions } from '../core/analysis/types';
 import { InputError } from '../core/errors';
 import { MAX_HUBER_K } from '../core/fit/model';
 import { HUBER_K } from '../core/fit/robust';
 import { checkShapes } from '../core/fit/shape';
-import { parseDfList } from '../core/spec';
+import { parseDfList } from '../core/tune/candidates';
 import { parseGrid, type GridSpec } from '../core/table/grid';
 import type { ResampleSpec, RuleSpec } from '../core/tune/types';
 import type { CurveKindId, ModelOptions, Outcome, Shape } from '../core/types';

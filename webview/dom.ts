@@ -25,8 +25,32 @@ export function replaceChildren(parent: Element, ...children: Child[]): void {
 const SVG_NS = 'http://www.w3.org/2000/svg';
 const ALLOWED_ELEMENTS = new Set(['svg', 'g', 'title', 'desc', 'defs', 'clipPath', 'rect', 'line', 'path', 'circle', 'text']);
 const ALLOWED_ATTRIBUTES = new Set([
-  'xmlns', 'class', 'viewBox', 'role', 'aria-labelledby', 'aria-hidden', 'data-figure', 'data-line', 'data-df', 'id', 'x', 'y', 'x1', 'x2', 'y1', 'y2',
-  'width', 'height', 'd', 'cx', 'cy', 'r', 'transform', 'text-anchor', 'clip-path', 'tabindex',
+  'xmlns',
+  'class',
+  'viewBox',
+  'role',
+  'aria-labelledby',
+  'aria-hidden',
+  'data-figure',
+  'data-line',
+  'data-df',
+  'id',
+  'x',
+  'y',
+  'x1',
+  'x2',
+  'y1',
+  'y2',
+  'width',
+  'height',
+  'd',
+  'cx',
+  'cy',
+  'r',
+  'transform',
+  'text-anchor',
+  'clip-path',
+  'tabindex',
 ]);
 
 /**

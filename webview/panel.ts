@@ -14,6 +14,7 @@ import { metricLabel, sig } from '../core/tune/format';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec, Selection } from '../core/tune/types';
 import type { FitDetail, ModelChoice, PanelPayload } from '../core/view/model';
+import { percent } from '../core/words/numbers';
 import { el, replaceChildren } from './dom';
 import { renderFigures } from './figures';
 import type { Host } from './vscodeApi';
@@ -168,7 +169,13 @@ export class Panel {
       ),
       controls,
       el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }),
-      el('section', { class: 'kw-warnings', 'aria-labelledby': 'kw-warn-title' }, el('h2', { id: 'kw-warn-title' }, 'Warnings and checks'), el('ul', { id: 'kw-warning-list', class: 'kw-list' }), el('ul', { id: 'kw-check-list', class: 'kw-list' })),
+      el(
+        'section',
+        { class: 'kw-warnings', 'aria-labelledby': 'kw-warn-title' },
+        el('h2', { id: 'kw-warn-title' }, 'Warnings and checks'),
+        el('ul', { id: 'kw-warning-list', class: 'kw-list' }),
+        el('ul', { id: 'kw-check-list', class: 'kw-list' }),
+      ),
       el('section', { class: 'kw-figures', id: 'kw-figures', 'aria-label': 'Figures' }),
       el('section', { class: 'kw-model', 'aria-labelledby': 'kw-model-title' }, el('h2', { id: 'kw-model-title' }, 'Model report'), el('div', { id: 'kw-model-body' })),
       el('section', { class: 'kw-influence', 'aria-labelledby': 'kw-infl-title' }, el('h2', { id: 'kw-infl-title' }, 'Influential rows'), el('div', { id: 'kw-influence-body' })),
@@ -215,7 +222,12 @@ export class Panel {
       el('legend', {}, 'Readings and shape (changing these tunes again)'),
       el('div', { class: 'kw-inputs' }, el('label', { for: 'kw-outcome' }, 'The readings are'), outcome),
       el('div', { class: 'kw-shape-row' }, el('span', { class: 'kw-muted' }, 'Shape: '), shapes),
-      el('div', { class: 'kw-check-item' }, el('input', { type: 'checkbox', id: 'kw-robust' }), el('label', { for: 'kw-robust' }, `Robust (Huber${p.model.robustK !== undefined ? `, k = ${p.model.robustK}` : ''}): down-weight outliers`)),
+      el(
+        'div',
+        { class: 'kw-check-item' },
+        el('input', { type: 'checkbox', id: 'kw-robust' }),
+        el('label', { for: 'kw-robust' }, `Robust (Huber${p.model.robustK !== undefined ? `, k = ${p.model.robustK}` : ''}): down-weight outliers`),
+      ),
       unsupported.length ? el('p', { class: 'kw-muted kw-small' }, `The ${p.curveWords} does not support ${unsupported.join(', ')}.`) : null,
     );
   }
@@ -314,23 +326,14 @@ export class Panel {
     this.root.dataset.chosenDf = String(sel.df);
     this.byId('kw-chosen-df').textContent = `df ${sel.df}`;
     this.byId('kw-fit-stats').textContent = detail
-      ? ` residual SD ${sig(detail.sigma, 4)}, ${detail.model?.glm ? `deviance explained ${sig(100 * detail.r2, 3)} %` : `R² ${sig(detail.r2, 4)}`}, AIC ${sig(detail.aic, 5)}${detail.lambda !== undefined ? `, lambda ${sig(detail.lambda, 3)}` : ''}`
+      ? ` residual SD ${sig(detail.sigma, 4)}, ${detail.model?.glm ? `deviance explained ${percent(detail.r2)}` : `R² ${sig(detail.r2, 4)}`}, AIC ${sig(detail.aic, 5)}${detail.lambda !== undefined ? `, lambda ${sig(detail.lambda, 3)}` : ''}`
       : '';
     this.byId('kw-reason').textContent = sel.reason;
-    replaceChildren(
-      this.byId('kw-alternatives'),
-      ...sel.alternatives.map((a) => el('li', {}, `${capitalise(ruleWords(a.rule))}: df ${a.df}${a.df === sel.df ? ' (the same)' : ''}`)),
-    );
+    replaceChildren(this.byId('kw-alternatives'), ...sel.alternatives.map((a) => el('li', {}, `${capitalise(ruleWords(a.rule))}: df ${a.df}${a.df === sel.df ? ' (the same)' : ''}`)));
     const warnings = [...p.warnings, ...(detail?.warnings ?? [])];
     if (p.holdout) warnings.push(`Held-out check on ${p.holdout.rows} rows: RMSE ${sig(p.holdout.rmse)} against ${sig(p.holdout.resampledRmse)} estimated by resampling.`);
-    replaceChildren(
-      this.byId('kw-warning-list'),
-      ...(warnings.length ? warnings.map((w) => el('li', { class: 'kw-warning' }, w)) : [el('li', { class: 'kw-muted' }, 'No warnings for this df.')]),
-    );
-    replaceChildren(
-      this.byId('kw-check-list'),
-      ...(detail?.checks ?? []).map((c) => el('li', { class: c.flagged ? 'kw-check kw-flagged' : 'kw-check' }, el('strong', {}, `${c.name}: `), c.text)),
-    );
+    replaceChildren(this.byId('kw-warning-list'), ...(warnings.length ? warnings.map((w) => el('li', { class: 'kw-warning' }, w)) : [el('li', { class: 'kw-muted' }, 'No warnings for this df.')]));
+    replaceChildren(this.byId('kw-check-list'), ...(detail?.checks ?? []).map((c) => el('li', { class: c.flagged ? 'kw-check kw-flagged' : 'kw-check' }, el('strong', {}, `${c.name}: `), c.text)));
     replaceChildren(this.byId('kw-figures'), ...renderFigures(p, sel, detail));
     this.renderModel(p, detail);
     this.renderInfluence(detail);
@@ -357,16 +360,7 @@ export class Panel {
       );
       const tbody = el('tbody');
       for (const r of rob.rows) {
-        tbody.append(
-          el(
-            'tr',
-            {},
-            lineCell(r.line),
-            el('td', {}, sig(r.x, 6)),
-            el('td', {}, sig(r.y, 6)),
-            el('td', {}, sig(r.weight, 3)),
-          ),
-        );
+        tbody.append(el('tr', {}, lineCell(r.line), el('td', {}, sig(r.x, 6)), el('td', {}, sig(r.y, 6)), el('td', {}, sig(r.weight, 3))));
       }
       table.append(tbody);
       parts.push(table);
@@ -381,8 +375,16 @@ export class Panel {
     const table = el(
       'table',
       { class: 'kw-table' },
-      el('caption', {}, `${detail.influentialTotal} row${detail.influentialTotal === 1 ? '' : 's'} over a threshold${detail.influentialTotal > detail.influential.length ? `; the ${detail.influential.length} largest by Cook's distance` : ''}`),
-      el('thead', {}, el('tr', {}, ...['CSV line', this.payload?.source.xLabel ?? 'x', this.payload?.source.yLabel ?? 'y', "Cook's distance", 'leverage', 'why'].map((h) => el('th', { scope: 'col' }, h)))),
+      el(
+        'caption',
+        {},
+        `${detail.influentialTotal} row${detail.influentialTotal === 1 ? '' : 's'} over a threshold${detail.influentialTotal > detail.influential.length ? `; the ${detail.influential.length} largest by Cook's distance` : ''}`,
+      ),
+      el(
+        'thead',
+        {},
+        el('tr', {}, ...['CSV line', this.payload?.source.xLabel ?? 'x', this.payload?.source.yLabel ?? 'y', "Cook's distance", 'leverage', 'why'].map((h) => el('th', { scope: 'col' }, h))),
+      ),
     );
     const tbody = el('tbody');
     for (const r of detail.influential) {

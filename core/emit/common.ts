@@ -3,7 +3,7 @@
  * each table value (the same digits as the CSV, so a program reads the table's numbers).
  */
 import { FLAG_COLUMNS, type CurveTable, type TableColumn } from '../table/curveTable';
-import { shellWord } from '../shellWord';
+import { shellWord } from '../outputs/shellWord';
 import { formatNumber } from '../table/formatCsv';
 
 /** The code emitters: C header, TypeScript module, JSON. */

@@ -7,12 +7,12 @@
  */
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { basename, dirname, join, relative, resolve } from 'node:path';
-import { describeDifference, textDifference } from '../compare';
+import { describeDifference, textDifference } from '../outputs/compare';
 import { InputError } from '../errors';
 import { defineCommand, formatHelp, parseCommand } from './args';
-import { shellWord } from '../shellWord';
-import { RECORD_FORMAT } from '../record';
-import { readRecord, type RecordedRun } from '../recordPlan';
+import { shellWord } from '../outputs/shellWord';
+import { RECORD_FORMAT } from '../outputs/record';
+import { readRecord, type RecordedRun } from '../outputs/recordPlan';
 import { VERSION } from '../version';
 import { sha256 } from './outputs';
 import { runPipeline, type PipelineRun } from './pipeline';

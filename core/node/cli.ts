@@ -7,12 +7,12 @@
  */
 import { existsSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
-import type { AnalysisOptions } from '../analysisTypes';
+import type { AnalysisOptions } from '../analysis/types';
 import { EMIT_KINDS, emitName, parseEmit } from '../emit/index';
 import { CancelledError, InputError } from '../errors';
-import type { FitPlan, OutputOptions } from '../plan';
-import { CAUTION } from '../record';
-import { MAX_CANDIDATES, parseDfList, parseSeed } from '../spec';
+import type { FitPlan, OutputOptions } from '../outputs/plan';
+import { CAUTION } from '../outputs/record';
+import { MAX_CANDIDATES, parseDfList, parseSeed } from '../tune/candidates';
 import { parseColumns } from '../table/columns';
 import { OPTIONAL_COLUMNS, TABLE_COLUMNS } from '../table/curveTable';
 import { DEFAULT_GRID_COUNT, MAX_GRID_POINTS, parseGrid } from '../table/grid';
@@ -280,7 +280,7 @@ interface FitArgs {
   readonly progress: boolean;
   readonly tune: boolean;
   readonly options: AnalysisOptions;
-  /** Table grid and format, emitters, report (see core/plan.ts). */
+  /** Table grid and format, emitters, report (see core/outputs/plan.ts). */
   readonly output: OutputOptions;
   /** Folder to write into; undefined: write nothing. */
   readonly out?: string | undefined;

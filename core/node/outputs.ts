@@ -5,13 +5,13 @@
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { basename, join, resolve } from 'node:path';
-import type { OutputFile } from '../deliver';
+import type { OutputFile } from '../outputs/deliver';
 import { InputError } from '../errors';
-import { writtenByKnotwise } from '../ownership';
+import { writtenByKnotwise } from '../outputs/ownership';
 import { readIfExists, writeFileAtomic } from './atomicWrite';
 
-/** Kept here for callers of the command line's module; the rule itself is pure (core/ownership.ts). */
-export { recordedFiles } from '../ownership';
+/** Kept here for callers of the command line's module; the rule itself is pure (core/outputs/ownership.ts). */
+export { recordedFiles } from '../outputs/ownership';
 
 /** SHA-256 (FIPS 180-4) of a text's UTF-8 bytes or of a buffer, as hex. */
 export function sha256(text: string | Buffer): string {
@@ -21,7 +21,7 @@ export function sha256(text: string | Buffer): string {
 /**
  * True when `path` does not exist or was written by Knotwise: the fit record itself (its
  * `format` field), or a file the neighbouring record lists by name with the SHA-256 of its
- * current bytes (core/ownership.ts writtenByKnotwise). A listed file edited by hand is no
+ * current bytes (core/outputs/ownership.ts writtenByKnotwise). A listed file edited by hand is no
  * longer Knotwise's.
  */
 export function isOurs(path: string, recordPath: string): boolean {

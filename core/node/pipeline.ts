@@ -4,15 +4,15 @@
  * (which compares them with what is on disk), so both take exactly the same steps.
  */
 import { relative, resolve, sep, basename, extname } from 'node:path';
-import { analyse } from '../analysis';
-import type { Analysis, Diagnostics } from '../analysisTypes';
-import { buildDeliverables, type Deliverables } from '../deliver';
-import { diagnose } from '../diagnose';
+import { analyse } from '../analysis/analysis';
+import type { Analysis, Diagnostics } from '../analysis/types';
+import { buildDeliverables, type Deliverables } from '../outputs/deliver';
+import { diagnose } from '../analysis/diagnose';
 import { InputError } from '../errors';
 import { fitCurve } from '../fit/index';
 import { selectColumns, type Selection } from '../ingest/select';
 import { selectTrials } from '../ingest/trials';
-import type { FitPlan } from '../plan';
+import type { FitPlan } from '../outputs/plan';
 import type { Progress } from '../tune/types';
 import type { FitResult, XYData } from '../types';
 import { sha256 } from './outputs';

@@ -73,7 +73,5 @@ export function cloudRanges(cloud: Cloud): { x: number[]; y: number[] } {
 
 /** Words for a figure description: how the readings are drawn. */
 export function cloudWords(cloud: Cloud): string {
-  return cloud.kind === 'points'
-    ? `${cloud.x.length} readings drawn as dots`
-    : `${cloud.total} readings drawn as a density grid of ${cloud.nx} by ${cloud.ny} cells (darker means more readings)`;
+  return cloud.kind === 'points' ? `${cloud.x.length} readings drawn as dots` : `${cloud.total} readings drawn as a density grid of ${cloud.nx} by ${cloud.ny} cells (darker means more readings)`;
 }

@@ -47,7 +47,10 @@ export function errorByDfSvg(spec: ErrorByDfSpec): string {
     ...(integerDf && dfs.length <= 24 ? { xTicks: dfs } : {}),
   });
   const { sx, sy } = frame;
-  let marks = `<path class="kw-err-line" d="${linePath(dfs.map(sx), pts.map((p) => sy(p.mean)))}"/>`;
+  let marks = `<path class="kw-err-line" d="${linePath(
+    dfs.map(sx),
+    pts.map((p) => sy(p.mean)),
+  )}"/>`;
   for (const p of pts) {
     const x = coord(sx(p.df));
     if (Number.isFinite(p.se) && p.se > 0) {

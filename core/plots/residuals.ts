@@ -27,16 +27,14 @@ export function residualSvg(spec: ResidualSpec): string {
   const yName = deviance ? 'deviance residual' : 'residual';
   const frame = plotFrame({ id: spec.id, xDomain: extent([r.x], 0.02), yDomain: ys, xLabel: spec.against, yLabel: yName });
   const y0 = coord(frame.sy(0));
-  const body =
-    frame.clipDef +
-    frame.axes +
-    `<path class="kw-zero" d="M${frame.left} ${y0}H${frame.right}"/>` +
-    cloudMarks(spec.cloud, frame, { x: spec.against, y: yName });
+  const body = frame.clipDef + frame.axes + `<path class="kw-zero" d="M${frame.left} ${y0}H${frame.right}"/>` + cloudMarks(spec.cloud, frame, { x: spec.against, y: yName });
   return svgDocument(
     spec.id,
     {
       title: `${deviance ? 'Deviance residuals' : 'Residuals'} against ${spec.against} (df ${spec.df})`,
-      desc: `${cloudWords(spec.cloud)}; ${deviance ? "deviance residual = the signed square root of the row's contribution to the deviance" : 'residual = reading minus fitted value'}.` + reading(spec.reading),
+      desc:
+        `${cloudWords(spec.cloud)}; ${deviance ? "deviance residual = the signed square root of the row's contribution to the deviance" : 'residual = reading minus fitted value'}.` +
+        reading(spec.reading),
     },
     body,
   );

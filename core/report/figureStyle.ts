@@ -40,12 +40,5 @@ export function standaloneSvg(svg: string): string {
   // After <title> and <desc> when present, so they stay the first children screen readers look for.
   const desc = svg.indexOf('</desc>');
   const at = desc >= 0 ? desc + '</desc>'.length : open + 1;
-  return (
-    '<?xml version="1.0" encoding="UTF-8"?>\n' +
-    svg.slice(0, at) +
-    `<style>${REPORT_FIGURE_CSS}</style>` +
-    '<rect width="100%" height="100%" fill="#ffffff"/>' +
-    svg.slice(at) +
-    '\n'
-  );
+  return '<?xml version="1.0" encoding="UTF-8"?>\n' + svg.slice(0, at) + `<style>${REPORT_FIGURE_CSS}</style>` + '<rect width="100%" height="100%" fill="#ffffff"/>' + svg.slice(at) + '\n';
 }

@@ -5,7 +5,7 @@
  * residuals against x and against fitted values, the normal quantile plot), each as a
  * standalone SVG file.
  */
-import type { Analysis, Diagnostics } from '../analysisTypes';
+import type { Analysis, Diagnostics } from '../analysis/types';
 import type { FitResult, XYData } from '../types';
 import { cloudOf } from '../view/cloud';
 import { fitDetail } from '../view/detail';

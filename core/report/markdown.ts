@@ -4,12 +4,12 @@
  * checks, influential rows, what the table holds (extrapolated and negative rows flagged),
  * the warnings, the data's provenance, how to reproduce it, and the caution.
  */
-import type { Analysis, Diagnostics } from '../analysisTypes';
+import type { Analysis, Diagnostics } from '../analysis/types';
 import type { RejectedRow } from '../ingest/select';
-import { shellWord } from '../shellWord';
+import { shellWord } from '../outputs/shellWord';
 import { num } from '../plots/svg';
 import { percent } from '../words/numbers';
-import type { TableSummary } from '../record';
+import type { TableSummary } from '../outputs/record';
 import { metricLabel } from '../tune/format';
 import type { FitResult } from '../types';
 import { checkViews } from '../view/words';

@@ -2,7 +2,7 @@
  * The residual figures' data and texts of one fitted df, thinned so the panel message
  * stays small at any n.
  */
-import type { Diagnostics } from '../analysisTypes';
+import type { Diagnostics } from '../analysis/types';
 import { checkResiduals } from '../fit/modelResiduals';
 import type { FitDetail, InfluentialRow, ModelReportView } from './model';
 import { num } from '../plots/svg';
@@ -11,6 +11,7 @@ import { cloudOf, DEFAULT_CLOUD_LIMITS, type CloudLimits } from './cloud';
 import { roundAll, roundSig } from './round';
 import { maxPerCell, normalQuantiles } from './series';
 import { checkViews, modelReportLines } from './words';
+import { renderOptions } from '../words/options';
 
 /** Largest number of influential rows listed by line. */
 export const MAX_INFLUENTIAL_LISTED = 30;
@@ -61,7 +62,9 @@ export function modelReportView(fit: FitResult, data: XYData): ModelReportView |
       k: r.k,
       scale: roundSig(r.scale),
       total: r.downweighted.total,
-      rows: r.downweighted.rows.slice(0, MAX_DOWNWEIGHTED_LISTED).map((d) => ({ line: d.line, x: roundSig(data.x[d.index] as number), y: roundSig(data.y[d.index] as number), weight: roundSig(d.weight, 4) })),
+      rows: r.downweighted.rows
+        .slice(0, MAX_DOWNWEIGHTED_LISTED)
+        .map((d) => ({ line: d.line, x: roundSig(data.x[d.index] as number), y: roundSig(data.y[d.index] as number), weight: roundSig(d.weight, 4) })),
     };
   }
   return out;
@@ -130,7 +133,7 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
     aic: roundSig(fit.aic),
     bic: roundSig(fit.bic),
     ...(fit.lambda !== undefined ? { lambda: roundSig(fit.lambda) } : {}),
-    notes: fit.notes,
+    notes: fit.notes.map((t) => renderOptions(t, 'editor')),
     knots: roundAll(fit.knots),
     residualKind: checked.kind === 'deviance' ? 'deviance' : 'response',
     residualsVsX: cloudOf(data.x, shown, lines, limits),
@@ -143,7 +146,7 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
     influential,
     influentialTotal: flagged.length,
     checks,
-    warnings,
+    warnings: warnings.map((t) => renderOptions(t, 'editor')),
     ...(model ? { model } : {}),
   };
 }

@@ -178,7 +178,18 @@ const cooks = define<InfluenceSpec>({
   input(v) {
     const d = v.detail;
     if (!d) return undefined;
-    return { id: 'fig-cooks', measure: "Cook's distance", x: d.cooks.x, value: d.cooks.d, lines: d.cooks.lines, binned: d.cooks.binned, threshold: d.cooksThreshold, xLabel: v.xLabel, df: v.df, reading: INFLUENCE_READING };
+    return {
+      id: 'fig-cooks',
+      measure: "Cook's distance",
+      x: d.cooks.x,
+      value: d.cooks.d,
+      lines: d.cooks.lines,
+      binned: d.cooks.binned,
+      threshold: d.cooksThreshold,
+      xLabel: v.xLabel,
+      df: v.df,
+      reading: INFLUENCE_READING,
+    };
   },
   draw: influenceSvg,
 });
@@ -193,7 +204,18 @@ const leverage = define<InfluenceSpec>({
   input(v) {
     const d = v.detail;
     if (!d) return undefined;
-    return { id: 'fig-leverage', measure: 'leverage', x: d.leverage.x, value: d.leverage.h, lines: d.leverage.lines, binned: d.leverage.binned, threshold: d.leverageThreshold, xLabel: v.xLabel, df: v.df, reading: INFLUENCE_READING };
+    return {
+      id: 'fig-leverage',
+      measure: 'leverage',
+      x: d.leverage.x,
+      value: d.leverage.h,
+      lines: d.leverage.lines,
+      binned: d.leverage.binned,
+      threshold: d.leverageThreshold,
+      xLabel: v.xLabel,
+      df: v.df,
+      reading: INFLUENCE_READING,
+    };
   },
   draw: influenceSvg,
 });

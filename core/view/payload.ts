@@ -5,8 +5,8 @@
  * on request with detailFor, since each costs a pass of residual checks over every row).
  * The message size depends on the number of candidates, not on n.
  */
-import type { Analysis } from '../analysisTypes';
-import { diagnose } from '../diagnose';
+import type { Analysis } from '../analysis/types';
+import { diagnose } from '../analysis/diagnose';
 import { bandsAt } from '../fit/bands';
 import type { CurveView, FitDetail, ModelView, PanelPayload, SourceView } from './model';
 import { selectDf } from '../tune/rules';
@@ -18,6 +18,12 @@ import { roundAll } from './round';
 import { CAUTION, modelWords } from './words';
 import { curveWords, resolveModel } from '../registry/curves/index';
 import { resamplingWords } from '../registry/resampling/index';
+import { renderOptions } from '../words/options';
+
+/** A core message for the panel: any option it names reads as the editor setting, never as a command-line flag. */
+export function forEditor(text: string): string {
+  return renderOptions(text, 'editor');
+}
 
 /** Number of grid points of each curve in the panel. */
 export const PANEL_GRID_POINTS = 240;
@@ -162,8 +168,8 @@ export function buildPanelPayload(input: PayloadInput): PanelPayload {
     rule: selection.rule,
     tolerancePercent: input.tolerancePercent,
     ...(tune.holdout ? { holdout: tune.holdout } : {}),
-    notes: [...tune.notes],
-    warnings,
+    notes: tune.notes.map(forEditor),
+    warnings: warnings.map(forEditor),
     caution: CAUTION,
     data: cloudOf(data.x, data.y, data.lines),
     grid: roundAll(grid),

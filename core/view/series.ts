@@ -59,7 +59,9 @@ export function maxPerCell(x: ArrayLike<number>, v: ArrayLike<number>, lines: Ar
  * Example: normalQuantiles(Float64Array.of(-1, 0, 1), 300).theoretical[1] === 0.
  */
 export function normalQuantiles(values: ArrayLike<number>, maxPoints: number): { theoretical: number[]; sample: number[] } {
-  const sorted = Float64Array.from(values).filter((v) => Number.isFinite(v)).sort();
+  const sorted = Float64Array.from(values)
+    .filter((v) => Number.isFinite(v))
+    .sort();
   const n = sorted.length;
   const a = n <= 10 ? 3 / 8 : 1 / 2;
   const take = Math.min(n, Math.max(2, maxPoints));

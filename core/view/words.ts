@@ -2,7 +2,7 @@
  * Plain words the panel and the report show for residual checks and model reports (the
  * words of curve kinds, outcomes, resampling schemes and rules live in core/registry/).
  */
-import type { Diagnostics } from '../analysisTypes';
+import type { Diagnostics } from '../analysis/types';
 import { shapeWords } from '../fit/shape';
 import type { CheckView } from './model';
 import { num } from '../plots/svg';
@@ -73,9 +73,9 @@ export interface ModelWordsInput {
 }
 
 /**
- * The outcome family, shapes and robust fitting of a run in one phrase.
+ * What the readings are, the shapes and robust fitting of a run in one phrase.
  * Example: modelWords({ outcome: 'counts', shape: ['increasing'], robustK: undefined }) ->
- * 'Poisson counts (log link); shape: increasing, guaranteed everywhere in the data range'.
+ * 'counts (Poisson, log link); shape: increasing, guaranteed everywhere in the data range'.
  */
 export function modelWords(m: ModelWordsInput): string {
   const parts = [outcomeKind(m.outcome).words(m.robustK, m.trialsLabel)];
@@ -92,22 +92,30 @@ export function modelWords(m: ModelWordsInput): string {
 export function modelReportLines(r: ModelReport, residualDf: number): string[] {
   const out: string[] = [];
   if (r.glm || r.robust) {
-    out.push(`Fitted by iteratively reweighted least squares in ${r.iterations} iteration${r.iterations === 1 ? '' : 's'}; ${r.converged ? 'converged' : 'did NOT converge, so treat this curve with caution'}.`);
+    out.push(
+      `Fitted by iteratively reweighted least squares in ${r.iterations} iteration${r.iterations === 1 ? '' : 's'}; ${r.converged ? 'converged' : 'did NOT converge, so treat this curve with caution'}.`,
+    );
   } else if (!r.converged) {
     out.push('The constrained least-squares solve did NOT converge; treat this curve with caution.');
   }
   if (r.glm) {
     const g = r.glm;
     out.push(`Deviance explained ${percent(1 - g.deviance / g.nullDeviance)}: deviance ${num(g.deviance, 5)} on ${num(residualDf, 4)} residual df, ${num(g.nullDeviance, 5)} for a flat curve.`);
-    out.push(`Pearson dispersion ${num(g.dispersion, 3)}: about 1 when the spread follows the ${r.outcome} kind; well above 1 means overdispersion, and the bands are then too narrow.`);
+    out.push(
+      `Pearson dispersion ${num(g.dispersion, 3)}: about 1 when the spread follows the ${outcomeKind(r.outcome).distribution} distribution; well above 1 means overdispersion, and the bands are then too narrow.`,
+    );
   }
   if (r.constraints) {
     const c = r.constraints;
-    out.push(`Shape ${shapeWords(r.shape)}: ${c.active} of ${c.total} linear inequalities active${c.active ? `, effective df ${num(c.effectiveDf, 4)}` : ', so the curve equals the unconstrained fit'}.`);
+    out.push(
+      `Shape ${shapeWords(r.shape)}: ${c.active} of ${c.total} linear inequalities active${c.active ? `, effective df ${num(c.effectiveDf, 4)}` : ', so the curve equals the unconstrained fit'}.`,
+    );
   }
   if (r.robust) {
     const b = r.robust;
-    out.push(`Huber M-estimation with k = ${b.k}; robust scale ${num(b.scale, 4)} (median absolute residual / 0.6745); ${b.downweighted.total} row${b.downweighted.total === 1 ? '' : 's'} down-weighted.`);
+    out.push(
+      `Huber M-estimation with k = ${b.k}; robust scale ${num(b.scale, 4)} (median absolute residual / 0.6745); ${b.downweighted.total} row${b.downweighted.total === 1 ? '' : 's'} down-weighted.`,
+    );
   }
   return out;
 }

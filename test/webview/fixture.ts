@@ -4,8 +4,8 @@
  */
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse } from '../../core/analysis';
-import type { Analysis, AnalysisOptions } from '../../core/analysisTypes';
+import { analyse } from '../../core/analysis/analysis';
+import type { Analysis, AnalysisOptions } from '../../core/analysis/types';
 import { parseCsvText } from '../../core/ingest/reader';
 import { selectColumns } from '../../core/ingest/select';
 import { selectTrials } from '../../core/ingest/trials';

@@ -21,8 +21,7 @@ const WAIT_LIMIT_MS = 10000;
 
 /** The few browser globals the page functions below use (this file compiles without the DOM library). */
 interface PageWindow {
-  addEventListener(type: 'message', listener: (e: { readonly data: unknown }) => void): void;
-  removeEventListener(type: 'message', listener: (e: { readonly data: unknown }) => void): void;
+  addEventListener(type: 'message', listener: (e: { readonly data: unknown }) => void, options: { readonly signal: AbortSignal }): void;
   postMessage(message: unknown, targetOrigin: string): void;
   readonly document: { querySelector(selector: string): { readonly textContent: string | null } | null };
 }
@@ -105,13 +104,18 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
     await page.evaluate(
       ([m, k, json]) =>
         new Promise<void>((resolve) => {
+          // No named functions in here: the test compiler would wrap them in a helper the page lacks.
           const w = globalThis as unknown as PageWindow;
-          const onMark = (e: { readonly data: unknown }): void => {
-            if (e.data !== k) return;
-            w.removeEventListener('message', onMark);
-            resolve();
-          };
-          w.addEventListener('message', onMark);
+          const done = new AbortController();
+          w.addEventListener(
+            'message',
+            (e) => {
+              if (e.data !== k) return;
+              done.abort();
+              resolve();
+            },
+            { signal: done.signal },
+          );
           w.postMessage(json ? JSON.parse(m as string) : m, '*');
           w.postMessage(k, '*');
         }),
@@ -177,7 +181,7 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
         );
       } catch (err) {
         const now = await page.textContent(selector).catch(() => null);
-        throw new Error(`${selector} never read ${String(want)} (it reads ${JSON.stringify(now)}): ${err instanceof Error ? err.message : String(err)}`);
+        throw new Error(`${selector} never read ${String(want)} (it reads ${JSON.stringify(now)})`, { cause: err });
       }
       return (await page.textContent(selector)) ?? '';
     },

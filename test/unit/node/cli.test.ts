@@ -15,7 +15,7 @@ import { execFile } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
-import { CAUTION } from '../../../core/record';
+import { CAUTION } from '../../../core/outputs/record';
 import { type Run, runMain } from './runMain';
 
 const REL = 1e-8;

@@ -11,7 +11,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { InputError } from '../../../core/errors';
 import { placed, portableRelative, runPipeline } from '../../../core/node/pipeline';
-import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/plan';
+import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/outputs/plan';
 import { copyFixture } from './runMain';
 
 describe('runPipeline', () => {

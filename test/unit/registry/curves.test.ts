@@ -5,7 +5,7 @@
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse } from '../../../core/analysis';
+import { analyse } from '../../../core/analysis/analysis';
 import { InputError } from '../../../core/errors';
 import { fitCurve } from '../../../core/fit/index';
 import { curveKind, curveKinds, parseCurve, registerCurveKind, unregisterCurveKind } from '../../../core/registry/curves/index';

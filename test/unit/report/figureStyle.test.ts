@@ -15,7 +15,25 @@ describe('standaloneSvg', () => {
   });
 
   it('the palette styles every kw-* class that core/plots emits for the report figures', () => {
-    for (const c of ['kw-grid', 'kw-box', 'kw-tick', 'kw-axis-title', 'kw-point', 'kw-bin', 'kw-curve', 'kw-band-ci', 'kw-band-pi', 'kw-zero', 'kw-ref-line', 'kw-err-line', 'kw-err-bar', 'kw-err-point', 'kw-chosen', 'kw-threshold', 'kw-influential']) {
+    for (const c of [
+      'kw-grid',
+      'kw-box',
+      'kw-tick',
+      'kw-axis-title',
+      'kw-point',
+      'kw-bin',
+      'kw-curve',
+      'kw-band-ci',
+      'kw-band-pi',
+      'kw-zero',
+      'kw-ref-line',
+      'kw-err-line',
+      'kw-err-bar',
+      'kw-err-point',
+      'kw-chosen',
+      'kw-threshold',
+      'kw-influential',
+    ]) {
       assert.ok(REPORT_FIGURE_CSS.includes(`.${c}`), c);
     }
     assert.doesNotMatch(REPORT_FIGURE_CSS, /var\(--vscode/);

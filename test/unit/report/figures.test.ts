@@ -5,10 +5,11 @@
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse } from '../../../core/analysis';
-import { diagnose } from '../../../core/diagnose';
+import { analyse } from '../../../core/analysis/analysis';
+import { diagnose } from '../../../core/analysis/diagnose';
 import { fitCurve } from '../../../core/fit/index';
 import { reportFigures } from '../../../core/report/figures';
+import { FIGURE_CATALOGUE } from '../../../core/view/figureCatalogue';
 
 const REPO = join(__dirname, '..', '..', '..');
 const CARS = (JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixtures', 'fits.json'), 'utf8')) as { datasets: { cars: { x: number[]; y: number[] } } }).datasets.cars;
@@ -30,6 +31,18 @@ describe('reportFigures', () => {
     const err = figs[1]?.svg ?? '';
     assert.match(err, /class="kw-threshold"/, 'the one-SE threshold is drawn');
     assert.match(err, new RegExp(`kw-chosen" cx="[0-9.]+" cy="[0-9.]+" r="5.5" data-df="${a.tune.selected.df}"`));
+    // Captions and descriptions are the catalogue's, which the panel shows too.
+    const inReport = FIGURE_CATALOGUE.filter((f) => f.inReport);
+    assert.deepEqual(
+      figs.map((f) => f.description),
+      inReport.map((f) => f.description),
+    );
+    assert.match(figs[0]?.caption ?? '', new RegExp(`^Readings, fitted curve \\(df ${a.chosen.df}\\), 95 % confidence band \\(darker\\) and 95 % prediction band \\(lighter\\)$`));
+    assert.match(figs[1]?.caption ?? '', /the dashed line is the rule's threshold; the larger dot is the chosen df \d+ \(one-standard-error rule\)$/);
+    assert.deepEqual(
+      figs.slice(2).map((f) => f.caption),
+      ['Residuals against speed', 'Residuals against fitted values', 'Normal quantile plot of standardised residuals'],
+    );
     // 50 readings drawn one by one in the curve figure.
     assert.equal(figs[0]?.svg.match(/<circle class="kw-point"/g)?.length, 50);
     assert.match(figs[0]?.svg ?? '', /class="kw-band-pi"/);

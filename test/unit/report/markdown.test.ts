@@ -8,11 +8,11 @@ import { strict as assert } from 'node:assert';
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse } from '../../../core/analysis';
-import { buildDeliverables } from '../../../core/deliver';
+import { analyse } from '../../../core/analysis/analysis';
+import { buildDeliverables } from '../../../core/outputs/deliver';
 import { parseCsvText } from '../../../core/ingest/reader';
 import { selectColumns } from '../../../core/ingest/select';
-import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/plan';
+import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/outputs/plan';
 import { md, REPORT_LIST_LIMIT } from '../../../core/report/markdown';
 import { holdoutMask, orderByX } from '../../../core/tune/plan';
 

@@ -1,6 +1,6 @@
 /**
  * Tests of tuneCurve and defaultCandidates (core/tune/tune.ts) and of the held-out check of
- * analyse (core/analysis.ts).
+ * analyse (core/analysis/analysis.ts).
  *
  * Fixed data: MASS::mcycle (Silverman 1985) and datasets::cars (Ezekiel 1930), with R's
  * reference values from test/reference/fixtures/fits.json (written by
@@ -11,7 +11,7 @@
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse, HOLDOUT_WARN_RATIO } from '../../../core/analysis';
+import { analyse, HOLDOUT_WARN_RATIO } from '../../../core/analysis/analysis';
 import { CancelledError, InputError } from '../../../core/errors';
 import { prepareData } from '../../../core/fit/prepared';
 import { holdoutMask, orderByX } from '../../../core/tune/plan';

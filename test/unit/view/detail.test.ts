@@ -108,8 +108,16 @@ describe('fitDetail', () => {
     const down = c.weights.flatMap((w, i) => (w < 1 - 1e-6 ? [{ line: i + 2, w }] : [])).sort((a, b) => a.w - b.w);
     assert.equal(r.total, down.length);
     assert.equal(r.rows.length, Math.min(down.length, MAX_DOWNWEIGHTED_LISTED));
-    assert.deepEqual(r.rows.map((row) => row.line), down.slice(0, r.rows.length).map((x) => x.line));
-    closeAll('weights', r.rows.map((row) => row.weight), down.slice(0, r.rows.length).map((x) => x.w), 1e-3);
+    assert.deepEqual(
+      r.rows.map((row) => row.line),
+      down.slice(0, r.rows.length).map((x) => x.line),
+    );
+    closeAll(
+      'weights',
+      r.rows.map((row) => row.weight),
+      down.slice(0, r.rows.length).map((x) => x.w),
+      1e-3,
+    );
     closeAll('scale', [r.scale], [c.scale]);
     for (const row of r.rows) {
       assert.equal(row.x, (physics.datasets.mcycle as Dataset).x[row.line - 2]);

@@ -8,12 +8,13 @@
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse } from '../../../core/analysis';
-import type { AnalysisOptions } from '../../../core/analysisTypes';
+import { analyse } from '../../../core/analysis/analysis';
+import type { AnalysisOptions } from '../../../core/analysis/types';
 import type { FitDetail } from '../../../core/view/model';
 import { selectDf } from '../../../core/tune/rules';
 import type { XYData } from '../../../core/types';
-import { buildPanelPayload, detailFor, modelView, startSelection } from '../../../core/view/payload';
+import { buildPanelPayload, detailFor, forEditor, modelView, startSelection } from '../../../core/view/payload';
+import { opt } from '../../../core/words/options';
 
 const physics = JSON.parse(readFileSync(join(__dirname, '..', '..', 'reference', 'fixtures', 'physics.json'), 'utf8')) as { datasets: Record<string, { x: number[]; y: number[] }> };
 
@@ -48,7 +49,10 @@ describe('buildPanelPayload', () => {
   it("buildPanelPayload sends the residual details of the starting rule's df only; others come from detailFor", async () => {
     const a = await analyse(data('mcycle'), { kind: 'natural-spline', candidates: [4, 6, 8, 10, 12], resample: { kind: 'folds', folds: 5, repeats: 2 }, rule: { kind: 'one-se' }, seed: 1 });
     const p = buildPanelPayload({ ...base, analysis: a });
-    assert.deepEqual(p.details.map((d) => d.df), [a.chosen.df]);
+    assert.deepEqual(
+      p.details.map((d) => d.df),
+      [a.chosen.df],
+    );
     assert.deepEqual(p.rule, a.tune.selected.rule);
     // Precondition: the lowest-error rule chooses another df on these data.
     const lowest = selectDf(a.tune.candidates, { kind: 'least-error' }, a.tune.metric).df;
@@ -60,7 +64,10 @@ describe('buildPanelPayload', () => {
     };
     const q = buildPanelPayload({ ...base, analysis: a, rule: { kind: 'least-error' }, detail: cache });
     assert.deepEqual(asked, [lowest], 'the host cache is asked for the one df shown');
-    assert.deepEqual(q.details.map((d) => d.df), [lowest]);
+    assert.deepEqual(
+      q.details.map((d) => d.df),
+      [lowest],
+    );
     assert.deepEqual(q.rule, { kind: 'least-error' });
     assert.ok((q.details[0]?.checks.length ?? 0) > 0, 'another df gets its own residual checks');
     // A df by hand that is no candidate falls back to the analysis's own rule.
@@ -78,5 +85,13 @@ describe('buildPanelPayload', () => {
     assert.equal(natural.fromPanel, true);
     assert.deepEqual(modelView(await analyse(d, { kind: 'polynomial', ...opts }), undefined, false).supports, { outcomes: ['continuous', 'counts', 'proportions'], shapes: false, robust: true });
     assert.deepEqual(modelView(await analyse(d, { kind: 'smoothing-spline', ...opts }), undefined, false).supports, { outcomes: ['continuous'], shapes: true, robust: false });
+  });
+
+  it('buildPanelPayload names options as editor settings, never as command-line flags', async () => {
+    const a = await analyse(data('mcycle'), { kind: 'natural-spline', candidates: [4, 6], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1 });
+    const p = buildPanelPayload({ ...base, analysis: a, warnings: [`2 grid points lie outside the data (${opt('extrapolate')})`] });
+    assert.equal(p.warnings[0], '2 grid points lie outside the data (the setting knotwise.table.extrapolate)');
+    assert.equal(forEditor(`raise ${opt('digits')}`), 'raise the setting knotwise.table.significantDigits');
+    assert.doesNotMatch(JSON.stringify(p), /\u27e6|--[a-z]/);
   });
 });

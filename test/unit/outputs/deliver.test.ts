@@ -1,5 +1,5 @@
 /**
- * Tests of building every output of a fit (core/deliver.ts): extrapolated rows and negative
+ * Tests of building every output of a fit (core/outputs/deliver.ts): extrapolated rows and negative
  * values of a quantity declared non-negative are flagged in the table, the record, the
  * report and the warnings; the automatic step and the interpolation error reach the record;
  * the same inputs give the same bytes. Data: MASS::mcycle (Silverman 1985; its acceleration
@@ -10,15 +10,15 @@ import { strict as assert } from 'node:assert';
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { buildDeliverables, type DeliverInput } from '../../core/deliver';
-import { diagnose } from '../../core/diagnose';
-import { InputError } from '../../core/errors';
-import { fitCurve } from '../../core/fit/index';
-import { DEFAULT_OUTPUT, type OutputOptions } from '../../core/plan';
-import { CAUTION } from '../../core/record';
-import type { XYData } from '../../core/types';
+import { buildDeliverables, type DeliverInput } from '../../../core/outputs/deliver';
+import { diagnose } from '../../../core/analysis/diagnose';
+import { InputError } from '../../../core/errors';
+import { fitCurve } from '../../../core/fit/index';
+import { DEFAULT_OUTPUT, type OutputOptions } from '../../../core/outputs/plan';
+import { CAUTION } from '../../../core/outputs/record';
+import type { XYData } from '../../../core/types';
 
-const REPO = join(__dirname, '..', '..');
+const REPO = join(__dirname, '..', '..', '..');
 
 function load(name: string): XYData {
   const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', name), 'utf8').trim().split('\n').slice(1);

@@ -1,17 +1,17 @@
-import { testText } from './words/numbers';
-import type { Diagnostics } from './analysisTypes';
-import { RowBasisCurve } from './fit/linearFit';
-import { breuschPagan } from './stats/breuschPagan';
-import type { DesignRows } from './stats/design';
-import { durbinWatson } from './stats/durbinWatson';
-import { durbinWatsonAndBreuschPagan } from './stats/designTests';
-import { checkResiduals } from './fit/modelResiduals';
-import { influentialRows } from './stats/influence';
-import { lackOfFit } from './stats/lackOfFit';
-import { normalQuantiles } from './stats/normalQuantiles';
-import { shapiroWilk } from './stats/shapiroWilk';
-import { orderByX } from './tune/plan';
-import type { FitResult, XYData } from './types';
+import { testText } from '../words/numbers';
+import type { Diagnostics } from './types';
+import { RowBasisCurve } from '../fit/linearFit';
+import { breuschPagan } from '../stats/breuschPagan';
+import type { DesignRows } from '../stats/design';
+import { durbinWatson } from '../stats/durbinWatson';
+import { durbinWatsonAndBreuschPagan } from '../stats/designTests';
+import { checkResiduals } from '../fit/modelResiduals';
+import { influentialRows } from '../stats/influence';
+import { lackOfFit } from '../stats/lackOfFit';
+import { normalQuantiles } from '../stats/normalQuantiles';
+import { shapiroWilk } from '../stats/shapiroWilk';
+import { orderByX } from '../tune/plan';
+import type { FitResult, XYData } from '../types';
 
 /** Significance level of the residual checks' warnings (common practice). */
 export const CHECK_LEVEL = 0.05;

@@ -3,19 +3,19 @@
  * the data (`knotwise check`). Every field is checked; a bad record is refused with the
  * key at fault.
  */
-import type { AnalysisOptions } from './analysisTypes';
-import { EMIT_KINDS, type EmitKind } from './emit/common';
-import { InputError } from './errors';
+import type { AnalysisOptions } from '../analysis/types';
+import { EMIT_KINDS, type EmitKind } from '../emit/common';
+import { InputError } from '../errors';
 import { DEFAULT_OUTPUT, type FitPlan } from './plan';
 import { RECORD_FORMAT, RECORD_VERSION } from './record';
-import { parseShapeList } from './fit/shape';
-import type { ModelOptions } from './types';
-import { parseColumns } from './table/columns';
-import { formatGrid, parseGrid, type GridSpec } from './table/grid';
-import { parseOutcome } from './registry/outcomes/index';
-import { parseCurve } from './registry/curves/index';
-import { parseResampling } from './registry/resampling/index';
-import { parseRule } from './registry/rules/index';
+import { parseShapeList } from '../fit/shape';
+import type { ModelOptions } from '../types';
+import { parseColumns } from '../table/columns';
+import { formatGrid, parseGrid, type GridSpec } from '../table/grid';
+import { parseOutcome } from '../registry/outcomes/index';
+import { parseCurve } from '../registry/curves/index';
+import { parseResampling } from '../registry/resampling/index';
+import { parseRule } from '../registry/rules/index';
 
 /** What a record says about its run. */
 export interface RecordedRun {

@@ -4,23 +4,23 @@
  * only); the command line writes them (core/node/outputs.ts) and `knotwise check` rebuilds
  * them to compare (core/node/check.ts), so both go through this one function.
  */
-import type { Analysis, Diagnostics } from './analysisTypes';
-import { emitName, emitText, type EmitInput } from './emit/index';
-import { printedValue } from './emit/common';
-import type { Selection } from './ingest/select';
+import type { Analysis, Diagnostics } from '../analysis/types';
+import { emitName, emitText, type EmitInput } from '../emit/index';
+import { printedValue } from '../emit/common';
+import type { Selection } from '../ingest/select';
 import { fitCommand, type FitPlan } from './plan';
 import { CAUTION, fitRecord, type OutputEntry, type OutputKind, type TableSummary } from './record';
-import { reportFigures } from './report/figures';
-import { reportMarkdown } from './report/markdown';
-import { resolveGrid, type ResolvedGrid } from './table/autoStep';
-import { shapeTable } from './table/columns';
-import { curveTable, type CurveTable } from './table/curveTable';
-import { curveTableCsv } from './table/formatCsv';
-import { checkInRange, formatGrid, type GridSpec } from './table/grid';
-import { interpolationError } from './table/interpolation';
-import { sig } from './tune/format';
-import type { FitResult, XYData } from './types';
-import { curveWords } from './registry/curves/index';
+import { reportFigures } from '../report/figures';
+import { reportMarkdown } from '../report/markdown';
+import { resolveGrid, type ResolvedGrid } from '../table/autoStep';
+import { shapeTable } from '../table/columns';
+import { curveTable, type CurveTable } from '../table/curveTable';
+import { curveTableCsv } from '../table/formatCsv';
+import { checkInRange, formatGrid, type GridSpec } from '../table/grid';
+import { interpolationError } from '../table/interpolation';
+import { sig } from '../tune/format';
+import type { FitResult, XYData } from '../types';
+import { curveWords } from '../registry/curves/index';
 
 /** Above this many rows the interpolation error of a given (not automatic) grid is not computed. */
 export const INTERPOLATION_CHECK_LIMIT = 200_000;

@@ -1,5 +1,5 @@
 /**
- * Tests of reading a fit record back into its plan (core/recordPlan.ts): every plan the
+ * Tests of reading a fit record back into its plan (core/outputs/recordPlan.ts): every plan the
  * command line can express comes back unchanged from the record it wrote, and a bad record
  * is refused naming the key at fault. Data: datasets::cars (Ezekiel 1930) from
  * test/e2e/fixtures/cars.csv (make-fixtures.R).
@@ -8,11 +8,11 @@ import { strict as assert } from 'node:assert';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { InputError } from '../../core/errors';
-import { runPipeline } from '../../core/node/pipeline';
-import { DEFAULT_OUTPUT, type FitPlan } from '../../core/plan';
-import { readRecord } from '../../core/recordPlan';
-import { copyFixture } from './node/runMain';
+import { InputError } from '../../../core/errors';
+import { runPipeline } from '../../../core/node/pipeline';
+import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/outputs/plan';
+import { readRecord } from '../../../core/outputs/recordPlan';
+import { copyFixture } from '../node/runMain';
 
 /** The plan as JSON sees it (keys holding undefined dropped). */
 function plain(p: FitPlan): unknown {

@@ -1,16 +1,16 @@
-import type { Analysis } from './analysisTypes';
-import type { Diagnostics } from './analysisTypes';
-import type { RejectedRow } from './ingest/select';
+import type { Analysis } from '../analysis/types';
+import type { Diagnostics } from '../analysis/types';
+import type { RejectedRow } from '../ingest/select';
 import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from './plan';
-import type { TableColumn } from './table/curveTable';
-import type { GridSpec } from './table/grid';
-import type { FitResult } from './types';
-import { VERSION } from './version';
-import { CAUTION } from './words/caution';
+import type { TableColumn } from '../table/curveTable';
+import type { GridSpec } from '../table/grid';
+import type { FitResult } from '../types';
+import { VERSION } from '../version';
+import { CAUTION } from '../words/caution';
 
 export { CAUTION };
-import { formatResampling } from './registry/resampling/index';
-import { formatRule } from './registry/rules/index';
+import { formatResampling } from '../registry/resampling/index';
+import { formatRule } from '../registry/rules/index';
 
 /** Format name and version of the fit record (schema: schema/fit-record.schema.json). */
 export const RECORD_FORMAT = 'knotwise-fit-record';
@@ -132,7 +132,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       emit: plan.output.emit,
       report: plan.output.report,
       level: BAND_LEVEL,
-      // Outcome family, shapes, robust fitting and trials column exactly as asked (read back by core/recordPlan.ts).
+      // Outcome family, shapes, robust fitting and trials column exactly as asked (read back by core/outputs/recordPlan.ts).
       model: {
         outcome: plan.options.outcome ?? null,
         shape: plan.options.shape ?? [],

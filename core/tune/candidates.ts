@@ -1,4 +1,4 @@
-import { InputError } from './errors';
+import { InputError } from '../errors';
 
 /** Largest number of candidate df accepted in one list or range. */
 export const MAX_CANDIDATES = 200;

@@ -1,8 +1,8 @@
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { diagnose } from '../../core/diagnose';
-import { fitCurve } from '../../core/fit/index';
+import { diagnose } from '../../../core/analysis/diagnose';
+import { fitCurve } from '../../../core/fit/index';
 
 // Reference: R 4.2 with lmtest, fixture test/reference/fixtures/diagnostics.json written by
 // test/reference/r/diagnostics.R: shapiro.test, lmtest::dwtest, lmtest::bptest and
@@ -14,7 +14,7 @@ interface Case {
   y: number[];
   fits: { model: string; record: { shapiroWilk: { statistic: number; pValue: number }; durbinWatson: { statistic: number; pValue: number; method: string }; breuschPagan: { statistic: number; df: number; pValue: number }; lackOfFit: { F: number; df1: number; df2: number; pValue: number } | null } }[];
 }
-const fixture = JSON.parse(readFileSync(join(__dirname, '..', 'reference', 'fixtures', 'diagnostics.json'), 'utf8')) as { cases: Case[] };
+const fixture = JSON.parse(readFileSync(join(__dirname, '..', '..', 'reference', 'fixtures', 'diagnostics.json'), 'utf8')) as { cases: Case[] };
 
 function near(a: number, b: number, tol: number, what: string): void {
   assert.ok(Math.abs(a - b) <= tol * Math.max(1, Math.abs(b)), `${what}: ${a} vs R ${b}`);

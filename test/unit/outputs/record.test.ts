@@ -1,5 +1,5 @@
 /**
- * Tests of the fit record (core/record.ts): records of several kinds of run validate against
+ * Tests of the fit record (core/outputs/record.ts): records of several kinds of run validate against
  * the JSON Schema in schema/fit-record.schema.json, checked with Ajv (a widely used JSON
  * Schema validator, draft 2020-12), and records broken in typical ways do not. Data sets from
  * R (test/e2e/fixtures/make-fixtures.R, test/fixtures/csv/make-fixtures.R,
@@ -11,14 +11,14 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Ajv2020 from 'ajv/dist/2020';
-import { runPipeline } from '../../core/node/pipeline';
-import { DEFAULT_OUTPUT, type FitPlan } from '../../core/plan';
-import { fitRecord, RECORD_FORMAT, RECORD_VERSION } from '../../core/record';
-import { fitCurve } from '../../core/fit/index';
-import { diagnose } from '../../core/diagnose';
-import { copyFixture } from './node/runMain';
+import { runPipeline } from '../../../core/node/pipeline';
+import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/outputs/plan';
+import { fitRecord, RECORD_FORMAT, RECORD_VERSION } from '../../../core/outputs/record';
+import { fitCurve } from '../../../core/fit/index';
+import { diagnose } from '../../../core/analysis/diagnose';
+import { copyFixture } from '../node/runMain';
 
-const REPO = join(__dirname, '..', '..');
+const REPO = join(__dirname, '..', '..', '..');
 const schema = JSON.parse(readFileSync(join(REPO, 'schema', 'fit-record.schema.json'), 'utf8')) as Record<string, unknown>;
 const validate = new Ajv2020({ allErrors: true, strict: true }).compile(schema);
 

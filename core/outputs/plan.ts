@@ -3,15 +3,15 @@
  * table grid and format, emitters, report), and the command that does it again. The fit
  * record stores the plan, so `knotwise check` can rebuild the outputs from the data.
  */
-import type { AnalysisOptions } from './analysisTypes';
-import type { EmitKind } from './emit/common';
-import type { ColumnChoice } from './ingest/select';
+import type { AnalysisOptions } from '../analysis/types';
+import type { EmitKind } from '../emit/common';
+import type { ColumnChoice } from '../ingest/select';
 import { shellWord } from './shellWord';
-import type { TableColumn } from './table/curveTable';
-import { DEFAULT_DIGITS } from './table/formatCsv';
-import { formatGrid, type GridSpec } from './table/grid';
-import { formatResampling } from './registry/resampling/index';
-import { formatRule } from './registry/rules/index';
+import type { TableColumn } from '../table/curveTable';
+import { DEFAULT_DIGITS } from '../table/formatCsv';
+import { formatGrid, type GridSpec } from '../table/grid';
+import { formatResampling } from '../registry/resampling/index';
+import { formatRule } from '../registry/rules/index';
 
 /** What to write besides the fit: table grid and format, safety flags, emitters, report. */
 export interface OutputOptions {

@@ -1,13 +1,13 @@
-import type { Analysis, AnalysisOptions, Diagnostics } from './analysisTypes';
+import type { Analysis, AnalysisOptions, Diagnostics } from './types';
 import { diagnose } from './diagnose';
-import { InputError } from './errors';
-import { prepareData } from './fit/prepared';
-import { holdoutMask, orderByX } from './tune/plan';
-import { sig } from './tune/format';
-import { selectDf } from './tune/rules';
-import { inlineRunner, type ResampleRunner, tuneCurve } from './tune/tune';
-import type { HoldoutReport, Progress, RuleSpec } from './tune/types';
-import type { FitResult, XYData } from './types';
+import { InputError } from '../errors';
+import { prepareData } from '../fit/prepared';
+import { holdoutMask, orderByX } from '../tune/plan';
+import { sig } from '../tune/format';
+import { selectDf } from '../tune/rules';
+import { inlineRunner, type ResampleRunner, tuneCurve } from '../tune/tune';
+import type { HoldoutReport, Progress, RuleSpec } from '../tune/types';
+import type { FitResult, XYData } from '../types';
 
 /** Held-out RMSE above this multiple of the resampled estimate gets a warning (a Knotwise default). */
 export const HOLDOUT_WARN_RATIO = 1.25;

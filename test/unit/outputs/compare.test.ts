@@ -1,8 +1,8 @@
 /**
- * Tests of describing differences (core/compare.ts) on small hand-made texts.
+ * Tests of describing differences (core/outputs/compare.ts) on small hand-made texts.
  */
 import { strict as assert } from 'node:assert';
-import { describeDifference, textDifference } from '../../core/compare';
+import { describeDifference, textDifference } from '../../../core/outputs/compare';
 
 describe('textDifference', () => {
   it('textDifference is undefined for equal texts and finds the first differing line', () => {

@@ -1,5 +1,5 @@
 /**
- * Tests of the plan's command line (core/plan.ts): shell quoting, and the property that
+ * Tests of the plan's command line (core/outputs/plan.ts): shell quoting, and the property that
  * matters: the regenerate command written into the record and the generated files, run by
  * a POSIX shell in the output folder, rewrites every output byte for byte. Data:
  * datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R), in a
@@ -11,9 +11,9 @@ import { chmodSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, w
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from '../../core/plan';
-import { shellWord } from '../../core/shellWord';
-import { copyFixture, REPO, runMain } from './node/runMain';
+import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from '../../../core/outputs/plan';
+import { shellWord } from '../../../core/outputs/shellWord';
+import { copyFixture, REPO, runMain } from '../node/runMain';
 
 describe('shellWord', () => {
   it('shellWord leaves plain words alone and single-quotes the rest, escaping quotes', () => {

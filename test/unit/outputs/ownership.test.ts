@@ -1,13 +1,13 @@
 /**
- * Tests of the ownership rule shared by the command line and the editor (core/ownership.ts):
+ * Tests of the ownership rule shared by the command line and the editor (core/outputs/ownership.ts):
  * a file is Knotwise's only when the fit record beside it lists its name with the SHA-256
  * of its current bytes; the record itself counts by its format field. Hash values: the
  * SHA-256 of "abc" is the example of FIPS 180-2, appendix B.1.
  */
 import { strict as assert } from 'node:assert';
 import { createHash } from 'node:crypto';
-import { recordedFiles, writtenByKnotwise } from '../../core/ownership';
-import { RECORD_FORMAT } from '../../core/record';
+import { recordedFiles, writtenByKnotwise } from '../../../core/outputs/ownership';
+import { RECORD_FORMAT } from '../../../core/outputs/record';
 
 /** SHA-256("abc"), FIPS 180-2 appendix B.1. */
 const ABC = 'ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad';

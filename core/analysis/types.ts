@@ -1,5 +1,5 @@
-import type { CurveKindId, FitResult, ModelOptions, XYData } from './types';
-import type { ResampleSpec, RuleSpec, TuneResult } from './tune/types';
+import type { CurveKindId, FitResult, ModelOptions, XYData } from '../types';
+import type { ResampleSpec, RuleSpec, TuneResult } from '../tune/types';
 
 /** Everything one analysis needs besides the data (ModelOptions: outcome family, shape, robust fitting). */
 export interface AnalysisOptions extends ModelOptions {

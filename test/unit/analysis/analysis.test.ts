@@ -1,5 +1,5 @@
 /**
- * Tests of core/analysis.ts beyond tuning itself: the rows an analysis tuned (`data`) and
+ * Tests of core/analysis/analysis.ts beyond tuning itself: the rows an analysis tuned (`data`) and
  * held out (`heldOut`), and withRule, which must give what a fresh analyse with that rule
  * gives (selection, chosen fit, residual checks, held-out check), without tuning again.
  * Data: datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R).
@@ -7,13 +7,13 @@
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analyse, withRule } from '../../core/analysis';
-import type { AnalysisOptions } from '../../core/analysisTypes';
-import type { RuleSpec } from '../../core/tune/types';
-import type { XYData } from '../../core/types';
+import { analyse, withRule } from '../../../core/analysis/analysis';
+import type { AnalysisOptions } from '../../../core/analysis/types';
+import type { RuleSpec } from '../../../core/tune/types';
+import type { XYData } from '../../../core/types';
 
 function cars(): XYData {
-  const rows = readFileSync(join(__dirname, '..', 'e2e', 'fixtures', 'cars.csv'), 'utf8').trim().split('\n').slice(1);
+  const rows = readFileSync(join(__dirname, '..', '..', 'e2e', 'fixtures', 'cars.csv'), 'utf8').trim().split('\n').slice(1);
   return {
     x: Float64Array.from(rows, (r) => Number(r.split(',')[0])),
     y: Float64Array.from(rows, (r) => Number(r.split(',')[1])),
