@@ -59,7 +59,8 @@ function someNumbers(values: readonly number[]): string {
 }
 
 function figure(f: ReportFigure | undefined): string[] {
-  return f ? [`![${md(f.caption)}](${link(f.name)})`, '', `*${md(f.caption)}.*`, ''] : [];
+  // The image's alternative text carries the figure's description: an SVG shown as an image does not expose its own.
+  return f ? [`![${md(f.description)}](${link(f.name)})`, '', `*${md(f.caption)}.*`, ''] : [];
 }
 
 function whyThisDf(a: Analysis | undefined, fit: FitResult): string[] {
@@ -94,7 +95,7 @@ function candidateTable(a: Analysis): string[] {
 function checks(d: Diagnostics, fit: FitResult): string[] {
   const out = checkViews(d).map((c) => `- ${c.flagged ? '⚠ ' : ''}**${md(c.name)}**: ${md(c.text)}`);
   if (!out.length) out.push('- No residual check applies to this fit.');
-  out.push('', `Fit: residual SD ${num(fit.sigma)}, ${fit.model?.glm ? 'deviance explained' : 'R²'} ${num(fit.r2)}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`);
+  out.push('', `Fit: residual SD ${num(fit.sigma)}, ${fit.model?.glm ? `deviance explained ${percent(fit.r2)}` : `R² ${num(fit.r2)}`}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`);
   const inf = d.influential;
   if (inf.total === 0) out.push('', 'No row exceeds the influence thresholds.');
   else {

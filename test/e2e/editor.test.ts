@@ -23,6 +23,9 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   let workspace: string;
   let panel: Frame;
   let chosenDf = 0;
+  // The badge background and explanation colour in the light theme, to compare with the dark one.
+  let lightBadge = '';
+  let lightText = '';
   let failed = false;
 
   before(async function () {
@@ -54,6 +57,17 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     if (!failed && runDir) rmSync(runDir, { recursive: true, force: true });
   });
 
+  /** Waits until the panel shows a finished run newer than `before`. */
+  async function newRun(before: number, after: string): Promise<void> {
+    // Run ids only grow: a ready panel with another run id shows a newer run.
+    await panel
+      .locator(`#knotwise-root[data-state="ready"]:not([data-run-id="${before}"])`)
+      .waitFor({ timeout: 60000 })
+      .catch(() => {
+        throw new Error(`no new run after ${after}`);
+      });
+  }
+
   async function findPanel(): Promise<Frame> {
     const deadline = Date.now() + 60000;
     while (Date.now() < deadline) {
@@ -81,10 +95,8 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     }
     await item.click();
     // A click that lands while the menu is still settling only highlights the entry; Enter runs it.
-    if (await item.isVisible().catch(() => false)) {
-      await page.waitForTimeout(300);
-      if (await item.isVisible().catch(() => false)) await page.keyboard.press('Enter');
-    }
+    const closed = await item.waitFor({ state: 'hidden', timeout: 1000 }).then(() => true, () => false);
+    if (!closed) await page.keyboard.press('Enter');
   });
 
   it('quick picks ask for x, y and weights, numeric columns first with previews', async function () {
@@ -111,8 +123,10 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     assert.match(reason, new RegExp(`One-SE threshold .* The smallest df at or under it is ${chosenDf} `));
     assert.equal(await panel.locator('figure.kw-figure svg[role="img"]').count(), 7);
     // The panel's own styles loaded (theme variables applied to the badge).
-    const bg = await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor');
+    const bg = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor')) as string;
     assert.notEqual(bg, 'rgba(0, 0, 0, 0)');
+    lightBadge = bg;
+    lightText = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-reason")).color')) as string;
     await page.screenshot({ path: join(artifacts, 'editor-light.png') });
   });
 
@@ -132,14 +146,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   it('Run again in the panel runs the analysis again and shows the new run', async function () {
     const before = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
     await panel.click('#kw-rerun');
-    const deadline = Date.now() + 60000;
-    for (;;) {
-      const state = await panel.getAttribute('#knotwise-root', 'data-state');
-      const run = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
-      if (state === 'ready' && run > before) break;
-      if (Date.now() > deadline) throw new Error(`no new run after Run again (run ${run}, state ${state})`);
-      await page.waitForTimeout(200);
-    }
+    await newRun(before, 'Run again');
     // The same data and settings: the same choice, explained again.
     assert.equal(await panel.textContent('#kw-chosen-df'), `df ${chosenDf}`);
     assert.match((await panel.textContent('#kw-reason')) ?? '', /One-SE threshold/);
@@ -154,26 +161,25 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await input.waitFor();
     await input.fill('>Preferences: Color Theme');
     await page.getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ }).first().click();
-    await page.waitForTimeout(500);
+    // The theme picker is open once it lists the installed themes.
+    await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Light Modern"]').first().waitFor();
     await input.fill('Dark Modern');
     await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Dark Modern"]').first().waitFor();
     await page.keyboard.press('Enter');
     await page.locator('.monaco-workbench.vs-dark').waitFor({ timeout: 30000 });
-    await page.waitForTimeout(800);
+    // Knotwise's own panel follows: its body takes the dark theme class and its badge a dark-theme colour.
+    await panel.locator('body.vscode-dark').waitFor({ timeout: 30000 });
+    const darkBadge = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor')) as string;
+    assert.notEqual(darkBadge, lightBadge, 'the df badge changed colour with the theme');
+    const darkText = await panel.evaluate('getComputedStyle(document.querySelector("#kw-reason")).color');
+    assert.notEqual(darkText, lightText, 'the explanation text changed colour with the theme');
     await page.screenshot({ path: join(artifacts, 'editor-dark.png') });
   });
 
   it('ticking a shape in the panel reruns the analysis in the host with that constraint', async function () {
     const before = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
     await panel.check('#kw-shape-nonnegative');
-    const deadline = Date.now() + 60000;
-    for (;;) {
-      const state = await panel.getAttribute('#knotwise-root', 'data-state');
-      const run = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
-      if (state === 'ready' && run > before) break;
-      if (Date.now() > deadline) throw new Error(`no new run after ticking the shape (run ${run}, state ${state})`);
-      await page.waitForTimeout(200);
-    }
+    await newRun(before, 'ticking the shape');
     assert.match((await panel.textContent('#kw-model-words')) ?? '', /shape: non-negative, guaranteed everywhere in the data range \(set in this panel/);
     assert.equal(await panel.isChecked('#kw-shape-nonnegative'), true);
     assert.match((await panel.textContent('#kw-model-lines')) ?? '', /Shape non-negative: \d+ of \d+ linear inequalities active/);
@@ -204,8 +210,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await input.fill('drift.csv');
     await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'drift.csv' }).first().waitFor();
     await page.keyboard.press('Enter');
-    await page.locator('.tab', { hasText: 'drift.csv' }).first().waitFor();
-    await page.waitForTimeout(1000);
+    await page.locator('.tab.active', { hasText: 'drift.csv' }).first().waitFor();
     await page.keyboard.press('F1');
     await input.fill('>Knotwise: Tune a Curve');
     await page.getByRole('option', { name: /Knotwise: Tune a Curve for This Data/ }).first().click();

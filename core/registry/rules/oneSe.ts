@@ -15,7 +15,7 @@ export const oneSe: SelectionRule<OneSe> = {
   id: 'one-se',
   syntax: 'one-se',
   pattern: 'one-se',
-  label: 'Simplest within one standard error of the least',
+  label: 'One-standard-error rule: simplest within one SE of the least error',
   description: 'the one-standard-error rule: the smallest df within one standard error of the least mean error',
   setting: true,
   parse: (text) => (text === 'one-se' ? { kind: 'one-se' } : undefined),

@@ -21,7 +21,7 @@ export const simplestWithin: SelectionRule<SimplestWithin> = {
   id: 'simplest-within',
   syntax: 'simplest-within:<percent>',
   pattern: 'simplest-within:\\d+(\\.\\d+)?',
-  label: 'Simplest within a tolerance of the least',
+  label: 'Simplest within a tolerance of the least error',
   description: 'the smallest df whose mean error is within the tolerance (percent) of the least mean error',
   setting: true,
   parse(text) {
