@@ -50,7 +50,9 @@ export interface FitPlan {
  */
 export function fitCommand(plan: FitPlan, dataPath: string): string {
   const o = plan.options;
-  const w: string[] = ['knotwise', 'fit', shellWord(dataPath), '--x', shellWord(plan.columns.x), '--y', shellWord(plan.columns.y)];
+  // A relative path that starts with '-' would read as an option: `./` keeps it a file.
+  const file = dataPath.startsWith('-') ? `./${dataPath}` : dataPath;
+  const w: string[] = ['knotwise', 'fit', shellWord(file), '--x', shellWord(plan.columns.x), '--y', shellWord(plan.columns.y)];
   if (plan.columns.weights !== undefined) w.push('--weights', shellWord(plan.columns.weights));
   w.push('--curve', o.kind);
   // Outcome, trials, shapes, robust fitting (core/fit/model.ts).

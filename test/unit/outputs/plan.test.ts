@@ -63,4 +63,45 @@ describe('fitCommand', () => {
       rmSync(dir, { recursive: true, force: true });
     }
   });
+
+  it('recorded commands run as printed for negative numbers, spaces, quotes, a leading dash and non-ASCII names', async function () {
+    this.timeout(300_000);
+    // Hostile but legal names and values: each case is fitted, its outputs deleted, and the
+    // record's regenerate command run by sh in the output folder must rewrite them byte for byte.
+    const cases: { name: string; folder: string; file: string; x: string; y: string; extra: string[] }[] = [
+      { name: 'negative grid range (temperatures below zero)', folder: 'neg', file: 'cars.csv', x: 'speed', y: 'dist', extra: ['--grid', '-40:85:count=126', '--extrapolate', '--df', '3'] },
+      { name: 'negative grid given as --grid=...', folder: 'negeq', file: 'cars.csv', x: 'speed', y: 'dist', extra: ['--grid=-5:30:step=0.5', '--extrapolate', '--df', '4'] },
+      { name: 'spaces and quotes in file and column names', folder: "run \"A\" it's", file: "cars 'data' \"v2\".csv", x: 'speed [mph]', y: "it's dist", extra: ['--df', '3'] },
+      { name: 'non-ASCII names', folder: 'données', file: 'mesures α-β.csv', x: 'vitesse µ', y: 'distance Ω', extra: ['--df', '3'] },
+      { name: 'a data file whose name starts with a dash', folder: 'dash', file: '-cars.csv', x: 'speed', y: 'dist', extra: ['--df', '3'] },
+    ];
+    const root = mkdtempSync(join(tmpdir(), 'knotwise-quote-'));
+    try {
+      const bin = join(root, 'bin');
+      mkdirSync(bin);
+      const tsx = pathToFileURL(join(REPO, 'node_modules', 'tsx', 'dist', 'loader.mjs')).href;
+      writeFileSync(join(bin, 'knotwise'), `#!/bin/sh\nexec "${process.execPath}" --import "${tsx}" "${join(REPO, 'core', 'node', 'cli.ts')}" "$@"\n`);
+      chmodSync(join(bin, 'knotwise'), 0o755);
+      const cars = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'cars.csv'), 'utf8').split('\n');
+      for (const c of cases) {
+        const dir = join(root, c.folder);
+        mkdirSync(dir, { recursive: true });
+        // datasets::cars with the case's column names.
+        writeFileSync(join(dir, c.file), [`"${c.x.replace(/"/g, '""')}","${c.y.replace(/"/g, '""')}"`, ...cars.slice(1)].join('\n'));
+        const out = join(dir, 'out');
+        const r = await runMain('fit', join(dir, c.file), '--x', c.x, '--y', c.y, ...c.extra, '--emit', 'c', '--out', out);
+        assert.equal(r.code, 0, `${c.name}: ${r.stderr}`);
+        const stem = c.file.replace(/\.csv$/, '');
+        const record = JSON.parse(readFileSync(join(out, `${stem}.fit.json`), 'utf8')) as { regenerate: string };
+        const header = readFileSync(join(out, `${stem}.curve.h`), 'utf8');
+        assert.ok(header.includes(`*   ${record.regenerate}\n`), `${c.name}: the C header carries the recorded command as is`);
+        const before = new Map(readdirSync(out).map((f) => [f, readFileSync(join(out, f))]));
+        for (const f of before.keys()) rmSync(join(out, f));
+        execFileSync('sh', ['-c', record.regenerate], { cwd: out, env: { ...process.env, PATH: `${bin}:${process.env.PATH ?? ''}` }, encoding: 'utf8' });
+        for (const [f, bytes] of before) assert.ok(readFileSync(join(out, f)).equals(bytes), `${c.name}: ${f} is byte-identical after running "${record.regenerate}"`);
+      }
+    } finally {
+      rmSync(root, { recursive: true, force: true });
+    }
+  });
 });
