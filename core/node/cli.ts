@@ -32,6 +32,7 @@ import { DEFAULT_RULE, MAX_TOLERANCE_PERCENT, parseRule, RULE_LIST } from '../re
 import { type CommandSpec, defineCommand, formatHelp, nearest, parseCommand } from './args';
 import { CHECK_COMMAND, runCheck } from './check';
 import { writeOutputs } from './outputs';
+import { checkOutputFolder, checkOutputNames, terminalText } from './outputTargets';
 import { runPipeline } from './pipeline';
 import { type Clock, ProgressLine, type ProgressStream } from './progress';
 
@@ -310,6 +311,12 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
         'data read from standard input (-) exist on no disk, so a table written from them could never be checked against them: add --print-only (or --json) to print the result without writing files',
       );
   }
+  checkDistinctColumns([
+    ['--x', a.text('x')],
+    ['--y', a.text('y')],
+    ['--weights', a.text('weights')],
+    ['--trials', a.text('trials')],
+  ]);
   const dfText = a.text('df');
   const dfs = dfText !== undefined ? parseDfList(dfText) : undefined;
   const tune = !(dfs && dfs.length === 1 && !a.given('resampling') && !a.given('rule') && !a.given('holdout'));
@@ -355,6 +362,18 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
       ...model,
     },
   };
+}
+
+/** Refuses one column named by two of --x, --y, --weights, --trials. */
+function checkDistinctColumns(named: readonly (readonly [string, string | undefined])[]): void {
+  const given = named.filter((n): n is readonly [string, string] => n[1] !== undefined);
+  for (let i = 0; i < given.length; i++) {
+    for (let j = i + 1; j < given.length; j++) {
+      const [a, col] = given[i] as readonly [string, string];
+      const [b, other] = given[j] as readonly [string, string];
+      if (col === other) throw new InputError(`${a} and ${b} name the same column "${col}"; each must be a column of its own`);
+    }
+  }
 }
 
 /** --outcome, --trials, --shape, --robust, --robust-k as model options (checked against --curve). */
@@ -451,9 +470,14 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
   // Progress on a terminal by itself (unless --quiet), elsewhere only when asked for.
   const showProgress = args.progress || (env.progressStream.isTTY === true && !args.quiet);
   const progress = showProgress ? new ProgressLine(env.progressStream, env.clock) : undefined;
+  if (args.out !== undefined) checkOutputFolder(args.out);
   let run;
   try {
     run = await runPipeline(dataName, plan, args.out ?? (args.stdin ? '.' : dirname(args.file)), undefined, { bytes, progress });
+  } catch (err) {
+    // A problem of the data names the data file.
+    if (err instanceof InputError && err.place.file === undefined) throw new InputError(err.raw, { ...err.place, file: dataName });
+    throw err;
   } finally {
     progress?.finish();
   }
@@ -462,6 +486,8 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
   const outside = deliverables.summary.extrapolated.length;
   let written: { table: string; record: string; files: string[] } | undefined;
   if (args.out !== undefined) {
+    const record = deliverables.files.find((f) => f.kind === 'record');
+    if (!args.force && record) checkOutputNames(args.out, deliverables.files.map((f) => f.name), record.name, args.file);
     const files = writeOutputs(args.out, deliverables.files, args.file, args.force);
     written = { table: files[0] as string, record: files[files.length - 1] as string, files };
   }
@@ -535,7 +561,7 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     for (const w of deliverables.warnings) lines.push(`Warning: ${w}`);
     if (written) for (const f of written.files) lines.push(`Wrote ${f}`);
     lines.push(`Caution: ${CAUTION}`);
-    process.stdout.write(lines.join('\n') + '\n');
+    process.stdout.write(terminalText(lines.join('\n')) + '\n');
   }
   return 0;
 }
@@ -651,7 +677,13 @@ export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): 
     }
   } catch (err) {
     if (err instanceof InputError) {
-      process.stderr.write(`knotwise: ${err.describe()}\n`);
+      process.stderr.write(terminalText(`knotwise: ${err.describe()}`) + '\n');
+      return 2;
+    }
+    if (err instanceof RangeError && /allocation failed|Invalid (typed )?array length|out of memory/i.test(err.message)) {
+      process.stderr.write(
+        'knotwise: the data do not fit in the memory this process may use. Free memory, fit a part of the rows, or raise the limit of the JavaScript heap (NODE_OPTIONS=--max-old-space-size=<megabytes>).\n',
+      );
       return 2;
     }
     if (err instanceof CancelledError) {

@@ -9,7 +9,9 @@ export function orderByX(x: Float64Array): Int32Array {
 
 /**
  * Held-out check set, stratified by x: rows in x order are cut into round(fraction n)
- * equal strata and one random row of each is held out. Returns a mask (1 = held out).
+ * equal strata and one random row of each is held out. The rows with the smallest and the
+ * largest x are never held out, so the curve is fitted over the whole data range and a
+ * table over that range needs no extrapolation. Returns a mask (1 = held out).
  * Throws InputError for a fraction outside (0, 0.5]. O(n).
  */
 export function holdoutMask(order: Int32Array, fraction: number, seed: number): Uint8Array {
@@ -20,9 +22,11 @@ export function holdoutMask(order: Int32Array, fraction: number, seed: number): 
   const mask = new Uint8Array(n);
   const rng = new RandomStream(seed, 2_000_000);
   for (let s = 0; s < m; s++) {
-    const lo = Math.floor((s * n) / m);
-    const hi = Math.floor(((s + 1) * n) / m);
-    mask[order[lo + rng.int(hi - lo)] as number] = 1;
+    // Strata hold at least two rows (fraction <= 0.5), so one remains without the end row.
+    const lo = Math.max(1, Math.floor((s * n) / m));
+    const hi = Math.min(n - 1, Math.floor(((s + 1) * n) / m));
+    if (hi > lo) mask[order[lo + rng.int(hi - lo)] as number] = 1;
   }
+  if (!mask.includes(1)) throw new InputError(`${n} rows are too few to hold any out besides the rows at the ends of the x range`);
   return mask;
 }

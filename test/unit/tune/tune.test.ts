@@ -246,6 +246,19 @@ describe('analyse (held-out check set)', () => {
     assert.equal(h.warning, undefined);
   });
 
+  it('holdoutMask never holds out the rows at the ends of the x range, for any seed, so the fitted range is the data range', () => {
+    const order = orderByX(x);
+    for (let s = 0; s < 200; s++) {
+      for (const f of [0.05, 0.2, 0.5]) {
+        const mask = holdoutMask(order, f, s);
+        assert.equal(mask[order[0] as number], 0, `seed ${s}, fraction ${f}: smallest x kept`);
+        assert.equal(mask[order[n - 1] as number], 0, `seed ${s}, fraction ${f}: largest x kept`);
+        assert.ok(mask.reduce((a, b) => a + b, 0) >= Math.round(f * n) - 2, 'about fraction n rows held out');
+      }
+    }
+    assert.throws(() => holdoutMask(orderByX(Float64Array.of(1, 2)), 0.5, 1), /too few to hold any out/);
+  });
+
   it('analyse(holdout) warns when the held-out rows are clearly worse than the resampled estimate', async () => {
     // Construct the case: shift exactly the rows the stratified split will hold out (the same
     // holdoutMask the analysis uses) by 5 noise SDs, so tuning sees clean data and the check set does not.
