@@ -176,6 +176,37 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.screenshot({ path: join(artifacts, 'editor-dark.png') });
   });
 
+  it('the panel reads in high-contrast themes and at half width', async function () {
+    const input = page.locator('.quick-input-widget input.input');
+    for (const [theme, workbench, body] of [
+      ['Dark High Contrast', 'hc-black', 'vscode-high-contrast'],
+      ['Light High Contrast', 'hc-light', 'vscode-high-contrast-light'],
+    ] as const) {
+      await page.locator('.part.sidebar .title-label').first().click();
+      await page.keyboard.press('F1');
+      await input.waitFor();
+      await input.fill('>Preferences: Color Theme');
+      await page.getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ }).first().click();
+      await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Light Modern"]').first().waitFor();
+      await input.fill(theme);
+      await page.locator(`.quick-input-widget .monaco-list-row[aria-label*="${theme}"]`).first().waitFor();
+      await page.keyboard.press('Enter');
+      await page.locator(`.monaco-workbench.${workbench}`).waitFor({ timeout: 30000 });
+      await panel.locator(`body.${body}`).waitFor({ timeout: 30000 });
+      // High-contrast themes draw borders around the panel's controls.
+      const border = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-save")).borderTopStyle')) as string;
+      assert.notEqual(border, 'none', `${theme}: the save button has a border`);
+      await page.screenshot({ path: join(artifacts, `editor-${workbench}.png`) });
+    }
+    // Half width: an editor group of about 700 CSS pixels.
+    const size = page.viewportSize();
+    await page.setViewportSize({ width: 1000, height: 900 });
+    await page.locator('.part.sidebar .title-label').first().waitFor();
+    await panel.locator('#kw-chosen-df').waitFor();
+    await page.screenshot({ path: join(artifacts, 'editor-half-width.png') });
+    if (size) await page.setViewportSize(size);
+  });
+
   it('ticking a shape in the panel reruns the analysis in the host with that constraint', async function () {
     const before = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
     await panel.check('#kw-shape-nonnegative');

@@ -32,7 +32,7 @@ export const simplestWithin: SelectionRule<SimplestWithin> = {
     return { kind: 'simplest-within', percent };
   },
   format: (r) => `simplest-within:${r.percent}`,
-  words: (r) => `simplest within ${r.percent} % of the least`,
+  words: (r) => `simplest within ${r.percent} % of the least error`,
   pick(r, { list, best, head }) {
     checkTolerance(r.percent);
     const threshold = best.e.mean * (1 + r.percent / 100);
