@@ -17,6 +17,7 @@
  * (`binomialFromTrials` converts successes and trials); 0/1 outcomes have w = 1.
  */
 import { InputError } from '../errors';
+import { qbinom, qpois } from '../stats/discreteQuantiles';
 import { lgamma } from '../stats/distributions';
 import type { Outcome, XYData } from '../types';
 import type { CachedRows } from './cachedRows';
@@ -36,7 +37,17 @@ const LOGIT_THRESH = 30;
 /** Link, variance and deviance of an outcome family (McCullagh & Nelder 1989, table 2.1). */
 export interface OutcomeFamily {
   readonly outcome: Exclude<Outcome, 'continuous'>;
+  /** The distribution's name in sentences. */
+  readonly distribution: 'Poisson' | 'binomial';
   readonly link: 'log' | 'logit';
+  /** True when y can be a reading of this outcome (a count from 0; a proportion from 0 to 1). */
+  validReading(y: number): boolean;
+  /** What a reading must be, for the message that refuses one. */
+  readonly readingRule: string;
+  /** The note for rows whose fitted mean sits on the edge of the outcome's range. */
+  boundNote(rows: number): string;
+  /** Lower and upper prediction limits for a new reading at confidence limits lo and hi of the mean. */
+  predictionLimits(lowP: number, highP: number, lo: number, hi: number, trials: number): [number, number];
   linkfun(mu: number): number;
   linkinv(eta: number): number;
   /** dmu/deta at eta. */
@@ -55,7 +66,12 @@ const yLogY = (y: number, mu: number): number => (y > 0 ? y * Math.log(y / mu) :
 /** Poisson outcome with log link: mu = exp(eta), V(mu) = mu. */
 export const poissonFamily: OutcomeFamily = {
   outcome: 'counts',
+  distribution: 'Poisson',
   link: 'log',
+  validReading: (y) => y >= 0,
+  readingRule: 'counts must be at least 0',
+  boundNote: (rows) => `${rows} row(s) have a fitted mean numerically 0; the curve's logarithm runs off to minus infinity there and its bands are unreliable.`,
+  predictionLimits: (lowP, highP, lo, hi) => [qpois(lowP, lo), qpois(highP, hi)],
   linkfun: (mu) => Math.log(mu),
   linkinv: (eta) => Math.max(Math.exp(eta), EPS),
   muEta: (eta) => Math.max(Math.exp(eta), EPS),
@@ -68,7 +84,12 @@ export const poissonFamily: OutcomeFamily = {
 /** Binomial outcome with logit link: mu = 1 / (1 + exp(-eta)), V(mu) = mu (1 - mu). */
 export const binomialFamily: OutcomeFamily = {
   outcome: 'proportions',
+  distribution: 'binomial',
   link: 'logit',
+  validReading: (y) => y >= 0 && y <= 1,
+  readingRule: 'proportions without a trials column must lie from 0 to 1 (or be 0/1 readings)',
+  boundNote: (rows) => `${rows} row(s) have fitted probabilities numerically 0 or 1 (the outcome separates along x); the curve is too steep to estimate there and its bands are unreliable.`,
+  predictionLimits: (lowP, highP, lo, hi, trials) => [qbinom(lowP, trials, lo) / trials, qbinom(highP, trials, hi) / trials],
   linkfun: (mu) => Math.log(mu / (1 - mu)),
   linkinv: (eta) => {
     const t = eta < -LOGIT_THRESH ? EPS : eta > LOGIT_THRESH ? 1 / EPS : Math.exp(eta);
@@ -98,18 +119,11 @@ export const binomialFamily: OutcomeFamily = {
  * Throws InputError naming the first bad row's CSV line. O(n).
  * Example: checkOutcomeData('counts', { x, y: Float64Array.of(0, 2, -1) }) throws for the third row.
  */
-export function checkOutcomeData(outcome: Exclude<Outcome, 'continuous'>, data: XYData): void {
+export function checkOutcomeData(fam: OutcomeFamily, data: XYData): void {
   const { y, lines } = data;
   for (let i = 0; i < y.length; i++) {
     const yi = y[i] as number;
-    const bad = outcome === 'counts' ? !(yi >= 0) : !(yi >= 0 && yi <= 1);
-    if (bad) {
-      const what =
-        outcome === 'counts'
-          ? `a Poisson outcome must be a count of at least 0; got ${yi}`
-          : `a binomial outcome without a trials column must be a proportion from 0 to 1 (or a 0/1 outcome); got ${yi}`;
-      throw new InputError(what, { line: lines ? lines[i] : undefined, column: 'y' });
-    }
+    if (!fam.validReading(yi)) throw new InputError(`${fam.readingRule}; got ${yi}`, { line: lines ? lines[i] : undefined, column: 'y' });
   }
 }
 

@@ -94,18 +94,13 @@ export function summariseGlm(data: XYData, fam: OutcomeFamily, s: SolvedGlm): Fi
   const residualDf = n - df;
   const dispersion = residualDf > 0 ? chi2 / residualDf : NaN;
   const notes = [...s.notes];
-  const name = fam.outcome === 'counts' ? 'Poisson' : 'proportions';
   if (dispersion > OVERDISPERSION_NOTE) {
     notes.push(
-      `The Pearson dispersion is ${dispersion.toPrecision(3)} (about 1 is expected): the readings scatter more than a ${name} outcome allows, so the bands are too narrow; check for missing structure or use a more flexible curve.`,
+      `The Pearson dispersion is ${dispersion.toPrecision(3)} (about 1 is expected): the readings scatter more than a ${fam.distribution} distribution allows, so the bands are too narrow; check for missing structure or use a more flexible curve.`,
     );
   }
   if (atBound > 0) {
-    notes.push(
-      fam.outcome === 'counts'
-        ? `${atBound} row(s) have a fitted mean numerically 0; the curve's logarithm runs off to minus infinity there and its bands are unreliable.`
-        : `${atBound} row(s) have fitted probabilities numerically 0 or 1 (the outcome separates along x); the curve is too steep to estimate there and its bands are unreliable.`,
-    );
+    notes.push(fam.boundNote(atBound));
   }
   if (looInfinite) notes.push('Some rows have leverage 1, so their leave-one-out error is undefined; the leave-one-out RMSE is reported as infinite.');
   const aic = -2 * logLik + 2 * df;

@@ -1,7 +1,7 @@
 /**
  * Curves of Poisson and binomial fits, and their bands computed on the link scale.
  */
-import { pbeta, pgamma, qnorm } from '../stats/distributions';
+import { qnorm } from '../stats/distributions';
 import type { Curve } from '../types';
 import type { Bands } from './emptyBands';
 import { emptyBands } from './emptyBands';
@@ -92,49 +92,17 @@ export function linkBandsAt(curve: LinkCurve, xs: ArrayLike<number>, level: numb
     out.se[i] = fam.muEta(eta) * seEta;
     out.ciLower[i] = lo;
     out.ciUpper[i] = hi;
-    if (fam.outcome === 'counts') {
-      out.piLower[i] = qpois(lowP, lo);
-      out.piUpper[i] = qpois(highP, hi);
-    } else {
-      out.piLower[i] = qbinom(lowP, trials, lo) / trials;
-      out.piUpper[i] = qbinom(highP, trials, hi) / trials;
+    {
+      const [pl, pu] = fam.predictionLimits(lowP, highP, lo, hi, trials);
+      out.piLower[i] = pl;
+      out.piUpper[i] = pu;
     }
     out.extrapolated[i] = x < curve.lower || x > curve.upper ? 1 : 0;
   }
   return out;
 }
 
-/**
- * Smallest k with P(X <= k) >= p for X ~ Poisson(lambda), via P(X <= k) = Q(k + 1, lambda)
- * (the regularised upper incomplete gamma function). Starts at the Cornish-Fisher
- * approximation and steps by one. O(steps). Example: qpois(0.975, 2.5) = 6 (R: qpois(0.975, 2.5)).
- */
-export function qpois(p: number, lambda: number): number {
-  if (!(lambda > 0)) return 0;
-  const cdf = (k: number): number => (k < 0 ? 0 : pgamma(lambda, k + 1, false));
-  const sd = Math.sqrt(lambda);
-  const zq = qnorm(p);
-  let k = Math.max(0, Math.floor(lambda + sd * (zq + (zq * zq - 1) / (6 * sd))));
-  while (k > 0 && cdf(k - 1) >= p) k--;
-  while (cdf(k) < p) k++;
-  return k;
-}
-
-/**
- * Smallest k with P(X <= k) >= p for X ~ Binomial(m, prob), via
- * P(X <= k) = I_{1-prob}(m - k, k + 1) (the regularised incomplete beta function).
- * O(steps). Example: qbinom(0.975, 10, 0.3) = 6 (R: qbinom(0.975, 10, 0.3)).
- */
-export function qbinom(p: number, m: number, prob: number): number {
-  if (!(prob > 0)) return 0;
-  if (!(prob < 1)) return m;
-  const cdf = (k: number): number => (k < 0 ? 0 : k >= m ? 1 : pbeta(1 - prob, m - k, k + 1));
-  const sd = Math.sqrt(m * prob * (1 - prob));
-  let k = Math.min(m, Math.max(0, Math.floor(m * prob + sd * qnorm(p))));
-  while (k > 0 && cdf(k - 1) >= p) k--;
-  while (k < m && cdf(k) < p) k++;
-  return k;
-}
+export { qbinom, qpois } from '../stats/discreteQuantiles';
 
 /** Lower band limits of a fit constrained non-negative are raised to 0 (the mean and the readings cannot be negative). */
 export function clipNonnegative(b: Bands): void {

@@ -12,7 +12,7 @@ import type { ModelBasis, ResolvedModel } from './modelTypes';
 export type { ModelBasis, ResolvedModel } from './modelTypes';
 import { checkOutcomeData, irls, type OutcomeFamily } from './glm';
 import { summariseGlm } from './glmSummary';
-import { RowBasisCurve } from './linearFit';
+import { RowBasisCurve, withOffset } from './linearFit';
 import { LinearSystem } from './linearSystem';
 import { LinkCurve } from './linkCurve';
 import type { PreparedData } from './prepared';
@@ -93,7 +93,8 @@ export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: numbe
   if (!curveKind.rowBasis) throw new InputError(`the ${curveKind.name} cannot be fitted with these options`);
   const kind = curveKind.id;
   const { data } = prepared;
-  if (model.outcome !== 'continuous') checkOutcomeData(model.outcome, data);
+  const glmFamily = OUTCOMES[model.outcome].glm;
+  if (glmFamily) checkOutcomeData(glmFamily, data);
   const mb = curveKind.rowBasis(prepared, df, model);
   const rows = new CachedRows(mb.basis, data.x);
   const system = new LinearSystem(mb.basis.size, mb.z, mb.shape, mb.what);
@@ -109,7 +110,7 @@ export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: numbe
     const etaCurve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
     const curve = new LinkCurve(etaCurve, fam, fam.outcome === 'proportions' ? medianTrials(w) : 1);
     const notes = [...mb.notes, ...shapeNotes(rank, res.solution.activeCount)];
-    const label = fam.outcome === 'counts' ? 'Poisson outcome (log link)' : 'binomial outcome (logit link)';
+    const label = `${fam.distribution} outcome (${fam.link} link)`;
     notes.push(
       res.converged
         ? `${label} fitted by iteratively reweighted least squares in ${res.iterations} iterations.`
@@ -128,9 +129,18 @@ export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: numbe
       report: { ...reportBase(model, res.iterations, res.converged, fam.link), ...constraintReport(mb, df, rank, model) },
     });
   }
+  // Least squares and Huber's estimate are equivariant under y -> y - c, and so are the shape
+  // rows other than non-negativity (they vanish on constants): fit y - mean and add the mean
+  // back, so a small signal on a large offset keeps its digits (see fitRowBasis).
+  const { offset, y, unit } = centredY(mb, model, data.y, w);
   if (model.robustK !== undefined) {
     const k = model.robustK;
-    const res = huberIrls(rows, system, data.y, w, k);
+    const res = huberIrls(rows, system, y, w, k);
+    const residuals = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      residuals[i] = (y[i] as number) - (res.fitted[i] as number);
+      res.fitted[i] = (res.fitted[i] as number) + offset;
+    }
     const total = new Float64Array(n);
     for (let i = 0; i < n; i++) total[i] = (w[i] as number) * (res.weights[i] as number);
     const weighted = system.covariance(res.solution);
@@ -143,7 +153,7 @@ export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: numbe
     const prior = system.covarianceFor(g, res.solution);
     const f2 = res.seFactor * res.seFactor;
     const cov = prior.cov.map((v) => v * f2);
-    const curve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z);
+    const curve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, res.theta, cov, mb.z, offset);
     const down = downweighted(res.weights, w, data.lines);
     const notes = [...mb.notes, ...shapeNotes(weighted.rank, res.solution.activeCount)];
     notes.push(
@@ -152,7 +162,7 @@ export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: numbe
         (res.converged ? `; converged in ${res.iterations} iterations.` : `; did not converge: ${res.problem ?? ''}.`),
     );
     if (res.converged && res.problem) notes.push(`Robust fit: ${res.problem}.`);
-    const base = summariseFit(data, { kind, df, curve, coefficients: res.theta, knots: mb.knots, fitted: res.fitted, leverage, notes });
+    const base = summariseFit(data, { kind, df, curve, coefficients: withOffset(res.theta, offset, unit), knots: mb.knots, fitted: res.fitted, residuals, leverage, notes });
     const report: ModelReport = {
       ...reportBase(model, res.iterations, res.converged, 'identity'),
       ...constraintReport(mb, df, weighted.rank, model),
@@ -162,17 +172,44 @@ export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: numbe
   }
   const g = new Float64Array(mb.basis.size * mb.basis.size);
   const rhs = new Float64Array(mb.basis.size);
-  rows.gram(w, data.y, g, rhs);
+  rows.gram(w, y, g, rhs);
   const sol = system.solve(g, rhs);
   const { cov, rank } = system.covariance(sol);
   const fitted = new Float64Array(n);
   rows.apply(sol.theta, fitted);
+  const residuals = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    residuals[i] = (y[i] as number) - (fitted[i] as number);
+    fitted[i] = (fitted[i] as number) + offset;
+  }
   const leverage = new Float64Array(n);
   rows.quadratic(cov, w, leverage);
-  const curve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, sol.theta, cov, mb.z);
+  const curve = new RowBasisCurve(kind, df, mb.lower, mb.upper, mb.basis, sol.theta, cov, mb.z, offset);
   const notes = [...mb.notes, ...shapeNotes(rank, sol.activeCount)];
-  const base = summariseFit(data, { kind, df, curve, coefficients: sol.theta, knots: mb.knots, fitted, leverage, notes });
+  const base = summariseFit(data, { kind, df, curve, coefficients: withOffset(sol.theta, offset, unit), knots: mb.knots, fitted, residuals, leverage, notes });
   return { ...base, model: { ...reportBase(model, 1, true, 'identity'), ...constraintReport(mb, df, rank, model) } };
+}
+
+/**
+ * y - c with c the weighted mean of y, for continuous fits whose basis spans the constants
+ * (`RowBasis.unitCoefficients`) and whose shape rows vanish on constants (every shape but
+ * non-negativity); otherwise y itself with c = 0. O(n).
+ */
+function centredY(mb: ModelBasis, model: ResolvedModel, y: Float64Array, w: Float64Array): { offset: number; y: Float64Array; unit: Float64Array | undefined } {
+  if (!mb.basis.unitCoefficients || imposedShapes(model).includes('nonnegative')) return { offset: 0, y, unit: undefined };
+  const unit = new Float64Array(mb.basis.size);
+  mb.basis.unitCoefficients(unit);
+  let sw = 0;
+  let swy = 0;
+  for (let i = 0; i < y.length; i++) {
+    sw += w[i] as number;
+    swy += (w[i] as number) * (y[i] as number);
+  }
+  const offset = sw > 0 && Number.isFinite(swy / sw) ? swy / sw : 0;
+  if (offset === 0) return { offset, y, unit };
+  const yc = new Float64Array(y.length);
+  for (let i = 0; i < y.length; i++) yc[i] = (y[i] as number) - offset;
+  return { offset, y: yc, unit };
 }
 
 function reportBase(model: ResolvedModel, iterations: number, converged: boolean, link: ModelReport['link']): ModelReport {
@@ -197,7 +234,7 @@ function constraintNotes(model: ResolvedModel, mb: ModelBasis, df: number): (ran
     if (model.outcome !== 'continuous' && model.shape.includes('nonnegative')) notes.push(`Shape "nonnegative" is implied by the ${model.outcome} outcome (its mean is always positive) and was not imposed separately.`);
     if (shapes.length === 0) return notes;
     const total = mb.shape?.rows ?? 0;
-    const scale = model.outcome === 'continuous' ? '' : ` on the ${model.outcome === 'counts' ? 'log' : 'logit'} scale`;
+    const scale = model.outcome === 'continuous' ? '' : ` on the ${OUTCOMES[model.outcome].link} scale`;
     notes.push(
       `Shape: ${shapeWords(shapes)}${scale}, guaranteed everywhere in the data range through ${total} linear inequalities on the B-spline coefficients; ` +
         (active === 0

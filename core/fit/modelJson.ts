@@ -3,6 +3,7 @@
  * --json output and the fit record (keys documented in README, "Outcome, shape and robust
  * fitting").
  */
+import { outcomeKind } from '../registry/outcomes/index';
 import type { ModelOptions, ModelReport } from '../types';
 import { resolveModel } from '../registry/curves/index';
 
@@ -28,7 +29,7 @@ export function modelSpecJson(options: ModelOptions, trials?: string): ModelSpec
   const m = resolveModel('natural-spline', options);
   return {
     outcome: m.outcome,
-    link: m.outcome === 'counts' ? 'log' : m.outcome === 'proportions' ? 'logit' : 'identity',
+    link: outcomeKind(m.outcome).link,
     shape: m.shape,
     robust: m.robustK !== undefined ? { k: m.robustK } : null,
     trials: trials ?? null,

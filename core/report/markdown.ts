@@ -4,6 +4,7 @@
  * checks, influential rows, what the table holds (extrapolated and negative rows flagged),
  * the warnings, the data's provenance, how to reproduce it, and the caution.
  */
+import { outcomeKind } from '../registry/outcomes/index';
 import type { Analysis, Diagnostics } from '../analysis/types';
 import type { RejectedRow } from '../ingest/select';
 import { shellWord } from '../outputs/shellWord';
@@ -159,8 +160,9 @@ function modelSection(fit: FitResult): string[] {
   const m = fit.model;
   if (!m) return [];
   const out = ['## Model', ''];
-  const outcome = m.outcome === 'continuous' ? 'Gaussian (least squares)' : `${m.outcome === 'counts' ? 'Poisson' : 'proportions'} (${m.link} link), fitted by iteratively reweighted least squares`;
-  out.push(`- Outcome: ${outcome}; ${m.converged ? `converged in ${m.iterations} iteration${m.iterations === 1 ? '' : 's'}` : `**did not converge** in ${m.iterations} iterations`}.`);
+  const kind = outcomeKind(m.outcome);
+  const outcome = kind.glm ? `${m.outcome} (${kind.distribution}, ${m.link} link), fitted by iteratively reweighted least squares` : `${m.outcome} (${kind.distribution} errors, least squares)`;
+  out.push(`- Readings: ${outcome}; ${m.converged ? `converged in ${m.iterations} iteration${m.iterations === 1 ? '' : 's'}` : `**did not converge** in ${m.iterations} iterations`}.`);
   if (m.glm) out.push(`- Deviance explained ${percent(1 - m.glm.deviance / m.glm.nullDeviance)} (deviance ${num(m.glm.deviance, 6)}; ${num(m.glm.nullDeviance, 6)} for a flat curve); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`);
   if (m.shape.length) {
     const c = m.constraints;

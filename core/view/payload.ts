@@ -5,6 +5,7 @@
  * on request with detailFor, since each costs a pass of residual checks over every row).
  * The message size depends on the number of candidates, not on n.
  */
+import { outcomeKind } from '../registry/outcomes/index';
 import type { Analysis } from '../analysis/types';
 import { diagnose } from '../analysis/diagnose';
 import { bandsAt } from '../fit/bands';
@@ -122,7 +123,7 @@ export function modelView(analysis: Analysis, trialsLabel: string | undefined, f
     outcome: m.outcome,
     shape: m.shape,
     robust: m.robustK !== undefined,
-    link: m.outcome === 'counts' ? 'log' : m.outcome === 'proportions' ? 'logit' : 'identity',
+    link: outcomeKind(m.outcome).link,
     ...(m.robustK !== undefined ? { robustK: m.robustK } : {}),
     ...(trials !== undefined ? { trialsLabel: trials } : {}),
     words: modelWords({ outcome: m.outcome, shape: m.shape, robustK: m.robustK, trialsLabel: trials }),

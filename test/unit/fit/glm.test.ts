@@ -109,11 +109,11 @@ describe('Poisson and binomial fits (IRLS)', () => {
     const lines = Int32Array.of(2, 3, 4, 5, 6);
     assert.throws(
       () => fitCurve({ x, y: Float64Array.of(1, 2, -1, 0, 3), lines }, { kind: 'natural-spline', df: 2, outcome: 'counts' }),
-      (e: unknown) => e instanceof InputError && e.place.line === 4 && /count of at least 0; got -1/.test(e.message),
+      (e: unknown) => e instanceof InputError && e.place.line === 4 && /counts must be at least 0; got -1/.test(e.message),
     );
     assert.throws(
       () => fitCurve({ x, y: Float64Array.of(0, 1, 0.5, 1.5, 0), lines }, { kind: 'natural-spline', df: 2, outcome: 'proportions' }),
-      (e: unknown) => e instanceof InputError && e.place.line === 5 && /proportion from 0 to 1/.test(e.message),
+      (e: unknown) => e instanceof InputError && e.place.line === 5 && /proportions without a trials column must lie from 0 to 1/.test(e.message),
     );
     assert.throws(
       () => fitCurve({ x, y: Float64Array.of(0, 1, 5, 1, 0), lines }, { kind: 'natural-spline', df: 2, outcome: 'proportions', trials: Float64Array.of(3, 3, 3, 3, 3) }),

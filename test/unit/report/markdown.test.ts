@@ -125,7 +125,7 @@ describe('reportMarkdown model section', () => {
 
   it('a robust fit of MASS::mcycle names Huber, k and the down-weighted rows by CSV line', async () => {
     const r = await reportFor('mcycle.csv', 'times', 'accel', { kind: 'natural-spline', candidates: [8], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1, robust: true });
-    assert.match(r, /## Model\n\n- Outcome: Gaussian \(least squares\)/);
+    assert.match(r, /## Model\n\n- Readings: continuous \(Gaussian errors, least squares\)/);
     assert.match(r, /- Robust fit: Huber M-estimation, k = 1\.345, robust scale [0-9.]+; \d+ rows down-weighted: line \d+ \(weight 0\.\d+\)/);
   });
 
