@@ -1,21 +1,23 @@
 /**
- * `knotwise check [record | folder ...]`: rebuilds every output of each fit record from its
- * data and compares them with the files on disk. Exit code 0 when all are current, 1 when
- * data or outputs changed (saying which and how), 2 when a record could not be checked.
- * Without arguments it checks every `*.fit.json` under the current folder. `--json` prints
- * one object with every record's state instead; `--quiet` prints nothing but errors.
+ * `knotwise check [record | folder ...]`: rebuilds every output of each fit record, the
+ * record itself included, from its data and its recorded spec, and compares them byte for
+ * byte with the files on disk. Exit code 0 when all are current, 1 when data, outputs or
+ * the record changed (saying which and how), 2 when a record could not be checked (not a
+ * whole, valid record; data missing; no records found). Without arguments it checks every
+ * `*.fit.json` under the current folder. `--json` prints one object with every record's
+ * state instead; `--quiet` prints nothing but errors.
  */
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
-import { basename, dirname, join, relative, resolve } from 'node:path';
-import { describeDifference, textDifference } from '../outputs/compare';
+import { basename, dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
+import { compareFile, jsonDifferences, printable } from '../outputs/compare';
 import { InputError } from '../errors';
 import { defineCommand, formatHelp, parseCommand } from './args';
+import { fitCommand } from '../outputs/plan';
 import { shellWord } from '../outputs/shellWord';
-import { RECORD_FORMAT } from '../outputs/record';
-import { readRecord, type RecordedRun } from '../outputs/recordPlan';
+import { readRecordFile, type RecordFile } from '../outputs/recordPlan';
 import { VERSION } from '../version';
 import { sha256 } from './outputs';
-import { runPipeline, type PipelineRun } from './pipeline';
+import { portableRelative, runPipeline, type PipelineRun } from './pipeline';
 
 /** The outcome for one record. */
 export interface CheckResult {
@@ -23,12 +25,22 @@ export interface CheckResult {
   readonly status: 'current' | 'changed' | 'error';
   /** What changed, or the error. */
   readonly messages: readonly string[];
-  /** The command that brings the outputs up to date, when known. */
+  /** Remarks that leave the status as it is: a record written by another version whose outputs this one rebuilds the same. */
+  readonly notes: readonly string[];
+  /**
+   * The command that brings the outputs up to date, when the record could be read: built
+   * from the record's spec with Knotwise's own quoting (never the record's `regenerate` text).
+   */
   readonly regenerate?: string | undefined;
+  /** The Knotwise version named in the record (tool.version), when the record could be read. */
+  readonly writtenBy?: string | undefined;
 }
 
 /** Suffix of fit records. */
 export const RECORD_SUFFIX = '.fit.json';
+
+/** A version as Knotwise's releases spell it: 1.2.3, optionally with a pre-release tag (1.2.3-rc.1). */
+const RELEASE_VERSION = /^\d+\.\d+\.\d+(?:-[0-9A-Za-z.-]+)?$/;
 
 /**
  * Every `*.fit.json` under `root`, skipping `node_modules` and folders whose name starts
@@ -58,94 +70,173 @@ function errorText(e: unknown): string {
   return e instanceof InputError ? e.describe() : e instanceof Error ? e.message : String(e);
 }
 
+/** A name or path from a record for a message: as is, JSON-quoted when empty, edged with white space or holding control or format characters. */
+function named(text: string): string {
+  return text === '' || /[\p{Cc}\p{Cf}]|^\s|\s$/u.test(text) ? JSON.stringify(text) : text;
+}
+
+/** Differences of the record listed in its message before "and N more". */
+const RECORD_DIFFERENCES_SHOWN = 3;
+
 /**
- * Checks one record: the data's SHA-256 against the recorded one, then every output rebuilt
- * from the data (table, emitted code, report and figures) against its file, byte for byte.
- * Never throws: problems come back as status 'error'.
+ * The record's text against the rebuilt one, in one sentence: the values that differ (up to
+ * three, then how many more), or where the text differs when every value is the same (a
+ * change of white space or number spelling). The record's own regenerate command is never
+ * quoted: only that it is not the one the spec gives. `tool.version` is left to the caller.
+ */
+function recordDifference(name: string, bytes: Uint8Array, found: unknown, rebuiltText: string): string {
+  // The regenerate command first, so a tampered one is always named.
+  const diffs = jsonDifferences(found, JSON.parse(rebuiltText))
+    .filter((d) => d.path !== 'tool.version')
+    .sort((a, b) => Number(b.path === 'regenerate') - Number(a.path === 'regenerate'));
+  if (diffs.length === 0) {
+    const text = compareFile(name, bytes, rebuiltText) ?? `${name} differs from the rebuilt record.`;
+    return `${text.replace(/\.$/, '')} (every value is as rebuilt; only the text differs, and records are compared byte for byte).`;
+  }
+  const listed = diffs
+    .slice(0, RECORD_DIFFERENCES_SHOWN)
+    .map((d) =>
+      d.path === 'regenerate'
+        ? "regenerate is not the command the record's spec gives (the file's command is not shown; the command to update is built from the spec)"
+        : `${d.path || '(the record)'}: ${d.found} in the file, ${d.rebuilt} rebuilt`,
+    );
+  const more = diffs.length > RECORD_DIFFERENCES_SHOWN ? `; and ${diffs.length - RECORD_DIFFERENCES_SHOWN} more` : '';
+  return `${name} differs from the rebuilt record in ${diffs.length} value${diffs.length === 1 ? '' : 's'}: ${listed.join('; ')}${more}.`;
+}
+
+/** The rebuilt record's text with `tool.version` set to `version` (same layout as deliver.ts writes). */
+function withToolVersion(rebuiltText: string, version: string): string {
+  const rec = JSON.parse(rebuiltText) as { tool: { version: string } };
+  rec.tool.version = version;
+  return JSON.stringify(rec, null, 2) + '\n';
+}
+
+/** True when the bytes are the UTF-8 of `text`. */
+function sameBytes(bytes: Uint8Array, text: string): boolean {
+  return Buffer.compare(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength), Buffer.from(text, 'utf8')) === 0;
+}
+
+/** A result with its messages made safe to print (no control or format characters from a file reach the terminal). */
+function result(r: CheckResult): CheckResult {
+  return { ...r, messages: r.messages.map(printable), notes: r.notes.map(printable) };
+}
+
+/**
+ * Checks one record by rebuilding everything from the data and the recorded spec, the
+ * record included, and comparing byte for byte: the record must be a whole fit record of
+ * this version that follows its schema (else 'error'); the data's SHA-256 is compared with
+ * the recorded one; every output (table, emitted code, report and figures, and the record
+ * itself) is rebuilt and compared with its file. The only difference allowed is the
+ * version of Knotwise in the record (tool.version): when the rebuilt bytes equal the file
+ * but for it, the record is current and a note says which version wrote it. Never throws:
+ * problems come back as status 'error'.
  * Example: (await checkRecord('out/cal.fit.json')).status === 'current'.
  */
 export async function checkRecord(recordPath: string): Promise<CheckResult> {
-  let rec: RecordedRun;
-  let regenerate: string | undefined;
+  const failed = (messages: string[], more: Partial<CheckResult> = {}): CheckResult => result({ record: recordPath, status: 'error', messages, notes: [], ...more });
+  let bytes: Buffer;
   try {
-    const text = readFileSync(recordPath, 'utf8');
-    let json: unknown;
-    try {
-      json = JSON.parse(text);
-    } catch (e) {
-      throw new InputError(`not valid JSON (${(e as Error).message})`, { file: recordPath });
-    }
-    rec = readRecord(json, recordPath);
-    const r = (json as { regenerate?: unknown }).regenerate;
-    regenerate = typeof r === 'string' ? r : undefined;
+    bytes = readFileSync(recordPath);
   } catch (e) {
-    return { record: recordPath, status: 'error', messages: [errorText(e)] };
+    const code = (e as NodeJS.ErrnoException).code;
+    return failed([`${recordPath}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : errorText(e)}`]);
   }
+  let read: RecordFile;
+  try {
+    read = readRecordFile(bytes, recordPath);
+  } catch (e) {
+    return failed([errorText(e)]);
+  }
+  const rec = read.run;
+  const writtenBy = rec.toolVersion;
   const folder = dirname(recordPath);
   const dataFile = resolve(folder, rec.dataPath);
-  if (!existsSync(dataFile)) return { record: recordPath, status: 'error', messages: [`the data file ${rec.dataPath} (data.path in the record) was not found`], regenerate };
+  // Built from the spec with our own quoting; the record's regenerate text is only compared.
+  const regenerate = fitCommand(rec.plan, portableRelative(folder, dataFile));
+  const tableName = (rec.files[0] as { file: string }).file;
+  const outside = rec.files.find((f) => relative(resolve(folder), resolve(folder, f.file)).split(sep)[0] === '..' || isAbsolute(f.file));
+  if (outside) return failed([`the record names an output outside its folder: ${named(outside.file)}`], { writtenBy, regenerate });
+  if (!existsSync(dataFile)) return failed([`the data file ${named(rec.dataPath)} (data.path in the record) was not found`], { writtenBy, regenerate });
   const messages: string[] = [];
+  const notes: string[] = [];
   let run: PipelineRun;
   try {
     // The table and record under the names they were written with (the editor lets them be renamed).
-    run = await runPipeline(dataFile, rec.plan, folder, { table: (rec.files[0] as { file: string }).file, record: basename(recordPath) });
+    run = await runPipeline(dataFile, rec.plan, folder, { table: tableName, record: basename(recordPath) });
   } catch (e) {
     // The data may have changed so that it no longer fits: say both.
     const sha = sha256(readFileSync(dataFile));
     if (sha !== rec.dataSha256) {
-      return {
+      return result({
         record: recordPath,
         status: 'changed',
-        messages: [`data ${rec.dataPath} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(sha)}`, `the outputs cannot be rebuilt from it: ${errorText(e)}`],
+        messages: [`data ${named(rec.dataPath)} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(sha)}`, `the outputs cannot be rebuilt from it: ${errorText(e)}`],
+        notes,
         regenerate,
-      };
+        writtenBy,
+      });
     }
-    return { record: recordPath, status: 'error', messages: [`the outputs cannot be rebuilt: ${errorText(e)}`], regenerate };
+    return failed([`the outputs cannot be rebuilt: ${errorText(e)}`], { writtenBy, regenerate });
   }
   if (run.table.sha256 !== rec.dataSha256) {
     const rows = run.selection.data.x.length;
-    messages.push(`data ${rec.dataPath} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(run.table.sha256)}${rows !== rec.rowsUsed ? `; rows used ${rec.rowsUsed}, now ${rows}` : ''}`);
+    messages.push(
+      `data ${named(rec.dataPath)} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(run.table.sha256)}${rows !== rec.rowsUsed ? `; rows used ${rec.rowsUsed}, now ${rows}` : ''}`,
+    );
     if (run.fit.df !== rec.df) messages.push(`the chosen df would change from ${rec.df} to ${run.fit.df}`);
   }
+  let versionOnly = false;
   for (const f of run.deliverables.files) {
-    if (f.kind === 'record') continue;
-    const path = join(folder, f.name);
-    if (!existsSync(path)) {
-      messages.push(`${f.name} is missing`);
+    const name = named(f.name);
+    if (f.kind === 'record') {
+      if (sameBytes(bytes, f.text)) continue;
+      if (writtenBy !== VERSION && sameBytes(bytes, withToolVersion(f.text, writtenBy))) {
+        if (RELEASE_VERSION.test(writtenBy)) versionOnly = true;
+        else messages.push(`${name}: tool.version ${JSON.stringify(writtenBy)} is not a version of Knotwise (every other byte is as rebuilt)`);
+      } else messages.push(recordDifference(name, bytes, read.json, f.text));
       continue;
     }
-    const d = textDifference(readFileSync(path, 'utf8'), f.text);
-    if (d) messages.push(describeDifference(f.name, d, f.kind === 'table' ? (f.text.split('\n')[0] as string).split(',') : undefined));
+    const path = join(folder, f.name);
+    if (!existsSync(path)) {
+      messages.push(`${name} is missing`);
+      continue;
+    }
+    const d = compareFile(name, readFileSync(path), f.text, f.kind === 'table' ? (f.text.split('\n')[0] as string).split(',') : undefined);
+    if (d) messages.push(d);
   }
-  if (messages.length && rec.toolVersion !== VERSION) messages.push(`(the record was written by Knotwise ${rec.toolVersion}; this is ${VERSION})`);
-  return { record: recordPath, status: messages.length ? 'changed' : 'current', messages, regenerate };
+  if (writtenBy !== VERSION) {
+    if (messages.length) messages.push(`(the record was written by Knotwise ${JSON.stringify(writtenBy)}; this is ${VERSION})`);
+    else if (versionOnly)
+      notes.push(
+        `the record was written by Knotwise ${writtenBy}; this is ${VERSION}, and rebuilt with it every output is the same byte for byte but for tool.version in the record, so the outputs are current`,
+      );
+  }
+  const status = messages.length ? 'changed' : 'current';
+  return result({ record: recordPath, status, messages, notes, regenerate, writtenBy });
 }
 
-/** The records named by the arguments: files as given, folders searched; none: the current folder searched. */
-function recordsFor(args: readonly string[], cwd: string): { path: string; explicit: boolean }[] {
-  if (args.length === 0) return findRecords(cwd).map((path) => ({ path, explicit: false }));
-  const out: { path: string; explicit: boolean }[] = [];
+/** What the arguments name: record files (as given, or found in folders) and the folders in which none was found. */
+function recordsFor(args: readonly string[], cwd: string): { files: string[]; empty: string[] } {
+  const files: string[] = [];
+  const empty: string[] = [];
+  const search = (folder: string): void => {
+    const found = findRecords(folder);
+    if (found.length === 0) empty.push(folder);
+    files.push(...found);
+  };
+  if (args.length === 0) search(cwd);
   for (const a of args) {
     const p = resolve(cwd, a);
-    if (existsSync(p) && statSync(p).isDirectory()) out.push(...findRecords(p).map((path) => ({ path, explicit: false })));
-    else out.push({ path: p, explicit: true });
+    if (existsSync(p) && statSync(p).isDirectory()) search(p);
+    else files.push(p);
   }
-  return out;
-}
-
-/** True when a found file is a Knotwise record (others named *.fit.json are left alone). */
-function isRecordFile(path: string): boolean {
-  try {
-    return (JSON.parse(readFileSync(path, 'utf8')) as { format?: unknown }).format === RECORD_FORMAT;
-  } catch {
-    return false;
-  }
+  return { files, empty };
 }
 
 /** The table of `knotwise check`. */
 export const CHECK_COMMAND = defineCommand({
   name: 'check',
-  summary: 'rebuild recorded curve tables from their data and compare them with the files on disk',
+  summary: 'rebuild recorded curve tables and their fit records from the data and compare them with the files on disk',
   usage: ['check [<record.fit.json> | <folder> ...]'],
   operands: { min: 0, max: Infinity, name: 'record or folder' },
   options: [
@@ -153,19 +244,25 @@ export const CHECK_COMMAND = defineCommand({
     { name: 'quiet', help: 'print nothing on standard output, the exit code tells; records that could not be checked are still named on standard error, and --json still prints its object' },
   ],
   notes: [
-    `Without arguments every *${RECORD_SUFFIX} under the current folder is checked, skipping node_modules and folders whose name starts with a dot; a folder argument is searched the same way.`,
-    'Exit codes: 0 every record is current; 1 data or an output changed; 2 a record could not be checked.',
+    `Without arguments every *${RECORD_SUFFIX} under the current folder is checked, skipping node_modules and folders whose name starts with a dot; a folder argument is searched the same way. Every file found is checked: one that is not a whole fit record (empty, cut short, not JSON, another format, or breaking the record's schema) could not be checked, and a folder with no *${RECORD_SUFFIX} at all is an error too (exit code 2), so a CI step run in the wrong folder fails instead of passing.`,
+    'Everything is rebuilt from the data and the spec in the record, the record itself included, and compared byte for byte. Only the Knotwise version in the record (tool.version) may differ: when the rebuilt files equal those on disk but for it, the record is current, and a note names the version that wrote it.',
+    'The command shown after "to update:" is built from the spec in the record, never copied from the record.',
+    'Exit codes: 0 every record is current; 1 data, an output or the record changed; 2 a record could not be checked, or no records were found.',
   ],
 });
 
 /** One record's state as `check --json` prints it. */
 export interface CheckRecordJson {
-  /** The record's path, relative to the folder check ran in. */
+  /** The record's path, relative to the folder check ran in (a folder searched in vain: that folder). */
   readonly file: string;
   readonly status: CheckResult['status'];
   /** What changed, or why the record could not be checked; empty when current. */
   readonly reasons: readonly string[];
-  /** The command that brings the outputs up to date (run in the folder check ran in); null when current or unknown. */
+  /** Remarks that leave the status as it is (a record written by another Knotwise version whose outputs this one rebuilds the same). */
+  readonly notes: readonly string[];
+  /** The Knotwise version named in the record; null when it could not be read. */
+  readonly writtenBy: string | null;
+  /** The command that brings the outputs up to date (run in the folder check ran in), built from the record's spec; null unless changed. */
   readonly advice: string | null;
 }
 
@@ -177,7 +274,8 @@ function exitCode(counts: { readonly current: number; readonly changed: number; 
 /**
  * Runs `knotwise check`, printing one line per record (and what changed) to stdout and a
  * closing count, or with --json one object `{knotwise, records[], counts, exitCode}`;
- * returns the exit code: 0 current, 1 changed, 2 error. Throws InputError for bad options.
+ * returns the exit code: 0 current, 1 changed, 2 error (a folder searched without finding
+ * any record counts as an error). Throws InputError for bad options.
  */
 export async function runCheck(argv: readonly string[], cwd = process.cwd()): Promise<number> {
   const a = parseCommand(CHECK_COMMAND, argv);
@@ -190,23 +288,30 @@ export async function runCheck(argv: readonly string[], cwd = process.cwd()): Pr
   const say = (text: string): void => {
     if (!json && !quiet) process.stdout.write(text + '\n');
   };
-  const found = recordsFor(a.operands, cwd);
-  const records = found.filter((r) => r.explicit || isRecordFile(r.path));
-  if (records.length === 0) say(`knotwise check: no fit records (*${RECORD_SUFFIX}) under ${a.operands.length ? a.operands.join(', ') : relative(process.cwd(), cwd) || '.'}`);
   const counts = { current: 0, changed: 0, error: 0 };
   const states: CheckRecordJson[] = [];
-  for (const r of records) {
-    const res = await checkRecord(r.path);
+  const report = (shown: string, res: Pick<CheckResult, 'status' | 'messages' | 'notes' | 'writtenBy'>, advice: string | null): void => {
     counts[res.status]++;
-    const shown = relative(cwd, r.path) || r.path;
-    const folder = relative(cwd, dirname(r.path));
-    const advice = res.status !== 'current' && res.regenerate ? `${folder ? `cd ${shellWord(folder)} && ` : ''}${res.regenerate}` : null;
-    states.push({ file: shown, status: res.status, reasons: res.messages, advice });
+    states.push({ file: shown, status: res.status, reasons: res.messages, notes: res.notes, writtenBy: res.writtenBy ?? null, advice });
     const label = res.status === 'current' ? 'current' : res.status === 'changed' ? 'CHANGED' : 'ERROR';
-    say([`${label.padEnd(7)} ${shown}`, ...res.messages.map((m) => `  ${m}`), ...(advice !== null ? [`  to update: ${advice}`] : [])].join('\n'));
+    say([`${label.padEnd(7)} ${shown}`, ...res.messages.map((m) => `  ${m}`), ...res.notes.map((m) => `  ${m}`), ...(advice !== null ? [`  to update: ${advice}`] : [])].join('\n'));
     if (quiet && !json && res.status === 'error') process.stderr.write(`knotwise check: ${shown}: ${res.messages.join('; ')}\n`);
+  };
+  const { files, empty } = recordsFor(a.operands, cwd);
+  for (const folder of empty) {
+    const shown = printable(relative(cwd, folder) || '.');
+    report(shown, { status: 'error', messages: [`no fit records (*${RECORD_SUFFIX}) under ${shown}`], notes: [] }, null);
   }
-  if (records.length > 0) say(`knotwise check: ${records.length} record(s): ${counts.current} current, ${counts.changed} changed, ${counts.error} could not be checked`);
+  for (const path of files) {
+    const res = await checkRecord(path);
+    const folder = relative(cwd, dirname(path));
+    const advice = res.status === 'changed' && res.regenerate !== undefined ? `${folder ? `cd ${shellWord(folder)} && ` : ''}${res.regenerate}` : null;
+    report(printable(relative(cwd, path) || path), res, advice);
+  }
+  if (files.length > 0)
+    say(
+      `knotwise check: ${files.length} record(s): ${counts.current} current, ${counts.changed} changed, ${counts.error - empty.length} could not be checked${empty.length ? `; ${empty.length} folder(s) without records` : ''}`,
+    );
   const code = exitCode(counts);
   if (json) process.stdout.write(JSON.stringify({ knotwise: VERSION, records: states, counts, exitCode: code }) + '\n');
   return code;

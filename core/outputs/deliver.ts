@@ -123,7 +123,10 @@ function tableWarnings(input: DeliverInput, summary: TableSummary, added: readon
  * Example: buildDeliverables(input).files.map((f) => f.name) -> ['cal.curve.csv', 'cal.curve.h', 'cal.fit.json'].
  */
 export function buildDeliverables(input: DeliverInput): Deliverables {
-  const { plan, fit } = input;
+  const { fit } = input;
+  // Columns by their labels, as the record stores them (data.columns), so the plan read back
+  // from the record, and every command in the outputs, is the same whichever name chose them.
+  const plan: FitPlan = { ...input.plan, columns: input.selection.labels };
   const out = plan.output;
   const round = (v: number): number => printedValue(v, out.digits);
   const sorted = Float64Array.from(input.selection.data.x).sort();

@@ -1,6 +1,7 @@
 /**
- * Which files Knotwise wrote, read from the neighbouring fit record: pure, so the command
- * line (core/node/outputs.ts, Node's file system) and the editor (extension/save.ts,
+ * Which files Knotwise wrote, read from the neighbouring fit record (and from a commit
+ * marker that an interrupted write left, core/outputs/commit.ts): pure, so the command line
+ * (core/node/outputs.ts, Node's file system) and the editor (extension/save.ts,
  * workspace.fs) apply the same rule to the bytes they read.
  */
 import { RECORD_FORMAT } from './record';
@@ -31,11 +32,14 @@ export interface TargetFile {
  * Knotwise's when it parses with the record `format`; any other file when that record
  * (`recordText`, the current text of the record beside it, undefined when there is none)
  * lists its name with the SHA-256 of its current bytes. A listed file edited by hand is
- * therefore no longer Knotwise's. O(record size).
+ * therefore no longer Knotwise's. `vouched` maps file names to the SHA-256 of bytes a commit
+ * marker says Knotwise wrote (an interrupted write that could not be completed): such a file
+ * is Knotwise's too. O(record size).
  * Example: writtenByKnotwise({ name: 'a.curve.csv', sha256: 'ab12...', isRecord: false }, recordText).
  */
-export function writtenByKnotwise(target: TargetFile, recordText: string | undefined): boolean {
+export function writtenByKnotwise(target: TargetFile, recordText: string | undefined, vouched?: ReadonlyMap<string, string>): boolean {
   if (target.sha256 === undefined) return true;
+  if (vouched?.get(target.name) === target.sha256) return true;
   if (recordText === undefined) return false;
   let rec: unknown;
   try {

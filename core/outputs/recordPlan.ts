@@ -8,6 +8,7 @@ import { EMIT_KINDS, type EmitKind } from '../emit/common';
 import { InputError } from '../errors';
 import { DEFAULT_OUTPUT, type FitPlan } from './plan';
 import { RECORD_FORMAT, RECORD_VERSION } from './record';
+import { RECORD_SCHEMA } from './recordSchema';
 import { parseShapeList } from '../fit/shape';
 import type { ModelOptions } from '../types';
 import { parseColumns } from '../table/columns';
@@ -122,6 +123,24 @@ function modelOf(v: unknown, f: Fields): { options: ModelOptions; trials?: strin
 }
 
 /**
+ * The record's object once its format and version are this Knotwise's: refuses a value that
+ * is not a JSON object, another format, and a newer or older version (with what to do).
+ */
+function recordObject(json: unknown, where: string): Json {
+  if (json === null || typeof json !== 'object' || Array.isArray(json)) throw new InputError('not a fit record: the file is not a JSON object', { file: where });
+  const rec = json as Json;
+  if (rec.format !== RECORD_FORMAT) throw new InputError(`not a fit record: "format" is ${JSON.stringify(rec.format)}, expected "${RECORD_FORMAT}"`, { file: where });
+  const version = new Fields(where).num(rec, 'version');
+  if (version > RECORD_VERSION) throw new InputError(`fit record version ${version} was written by a newer Knotwise; this one reads version ${RECORD_VERSION}`, { file: where });
+  if (version < RECORD_VERSION)
+    throw new InputError(
+      `fit record version ${version} was written by an earlier Knotwise whose words have changed (see CHANGELOG.md); this one reads version ${RECORD_VERSION}: fit the data again to write a new record`,
+      { file: where },
+    );
+  return rec;
+}
+
+/**
  * Reads a parsed fit record (format RECORD_FORMAT, version up to RECORD_VERSION) into its
  * plan and provenance. `where` names the record in messages. Throws InputError for another
  * format, a newer version, or a missing or mistyped field. O(size of the record).
@@ -129,12 +148,7 @@ function modelOf(v: unknown, f: Fields): { options: ModelOptions; trials?: strin
  */
 export function readRecord(json: unknown, where: string): RecordedRun {
   const f = new Fields(where);
-  if (json === null || typeof json !== 'object' || Array.isArray(json)) throw new InputError('not a fit record: the file is not a JSON object', { file: where });
-  const rec = json as Json;
-  if (rec.format !== RECORD_FORMAT) throw new InputError(`not a fit record: "format" is ${JSON.stringify(rec.format)}, expected "${RECORD_FORMAT}"`, { file: where });
-  const version = f.num(rec, 'version');
-  if (version > RECORD_VERSION) throw new InputError(`fit record version ${version} was written by a newer Knotwise; this one reads version ${RECORD_VERSION}`, { file: where });
-  if (version < RECORD_VERSION) throw new InputError(`fit record version ${version} was written by an earlier Knotwise whose words have changed (see CHANGELOG.md); this one reads version ${RECORD_VERSION}: fit the data again to write a new record`, { file: where });
+  const rec = recordObject(json, where);
   const tool = f.obj(rec, 'tool');
   const data = f.obj(rec, 'data');
   const columns = f.obj(data, 'columns', 'data.columns');
@@ -208,4 +222,47 @@ export function readRecord(json: unknown, where: string): RecordedRun {
     df: f.num(fit, 'df', 'fit.df'),
     files,
   };
+}
+
+/** A record file read whole: its parsed JSON and the run it describes. */
+export interface RecordFile {
+  readonly json: Readonly<Record<string, unknown>>;
+  readonly run: RecordedRun;
+}
+
+/** Schema problems named in one message before "and N more". */
+const SCHEMA_PROBLEMS_SHOWN = 3;
+
+/**
+ * Reads a fit record file's bytes and refuses, naming the record, everything that is not a
+ * whole record of this version: an empty file, bytes that are not UTF-8, a byte order mark,
+ * text that is not JSON (a truncated file), another format or version, and a record that
+ * breaks schema/fit-record.schema.json (a key missing, unknown or of the wrong type,
+ * naming up to three); then reads its plan (readRecord). Throws InputError. O(size).
+ * Example: readRecordFile(readFileSync('cal.fit.json'), 'cal.fit.json').run.plan.
+ */
+export function readRecordFile(bytes: Uint8Array, where: string): RecordFile {
+  let text: string;
+  try {
+    text = new TextDecoder('utf-8', { fatal: true, ignoreBOM: true }).decode(bytes);
+  } catch {
+    throw new InputError('not a fit record: the file is not UTF-8 text', { file: where });
+  }
+  if (text.trim() === '') throw new InputError(`not a fit record: the file is empty${text.length ? ' (white space only)' : ''}`, { file: where });
+  if (text.startsWith('\uFEFF')) throw new InputError('the fit record starts with a byte order mark, which Knotwise never writes', { file: where });
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (e) {
+    const truncated = !/[}\]]\s*$/.test(text) ? '; the file looks truncated' : '';
+    throw new InputError(`not valid JSON (${(e as Error).message})${truncated}`, { file: where });
+  }
+  const rec = recordObject(json, where);
+  const problems = RECORD_SCHEMA.problems(rec);
+  if (problems.length) {
+    const listed = problems.slice(0, SCHEMA_PROBLEMS_SHOWN).map((p) => `"${p.path}" ${p.message}`);
+    const more = problems.length > SCHEMA_PROBLEMS_SHOWN ? `; and ${problems.length - SCHEMA_PROBLEMS_SHOWN} more` : '';
+    throw new InputError(`the fit record does not follow its schema (schema/fit-record.schema.json, version ${RECORD_VERSION}): ${listed.join('; ')}${more}`, { file: where });
+  }
+  return { json: rec, run: readRecord(rec, where) };
 }

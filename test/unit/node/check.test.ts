@@ -1,11 +1,13 @@
 /**
  * Tests of `knotwise check` (core/node/check.ts): a current set of outputs passes; a
  * one-byte change in the data or in the table (or the C header) is caught, saying which
- * file changed and how; errors exit with 2; with no argument every record under the folder
- * is found, skipping node_modules and dot folders; `--json` gives one object with every
- * record's state and `--quiet` nothing on stdout, with the same exit codes. Data:
- * MASS::mcycle (Silverman 1985) and datasets::cars (Ezekiel 1930), written by
- * test/e2e/fixtures/make-fixtures.R.
+ * file changed and how; errors exit with 2; with no argument every *.fit.json under the
+ * folder is checked, skipping node_modules and dot folders, and one that is not a record is
+ * an error, as is a folder without records; `--json` gives one object with every record's
+ * state and `--quiet` nothing on stdout, with the same exit codes. Data: MASS::mcycle
+ * (Silverman 1985) and datasets::cars (Ezekiel 1930), written by
+ * test/e2e/fixtures/make-fixtures.R. Record tampering and random byte changes:
+ * checkMutation.test.ts.
  */
 import { strict as assert } from 'node:assert';
 import { execFile } from 'node:child_process';
@@ -37,6 +39,8 @@ interface RecordState {
   readonly file: string;
   readonly status: string;
   readonly reasons: string[];
+  readonly notes: string[];
+  readonly writtenBy: string | null;
   readonly advice: string | null;
 }
 
@@ -184,27 +188,80 @@ describe('knotwise check', () => {
     }
   });
 
-  it('check with no argument finds records below the folder, skipping node_modules, dot folders and other formats', async () => {
+  it('check with no argument finds records below the folder, skipping node_modules and dot folders; a *.fit.json that is not a record is an error, not skipped', async () => {
     for (const hidden of ['node_modules', '.git', join('sub', '.cache')]) {
       mkdirSync(join(dir, hidden), { recursive: true });
       writeFileSync(join(dir, hidden, 'x.fit.json'), 'not even JSON');
     }
-    writeFileSync(join(dir, 'sub', 'foreign.fit.json'), '{"format": "someone-else"}\n');
     try {
       assert.deepEqual(
         findRecords(dir).map((p) => p.slice(dir.length + 1)),
-        [join('sub', 'foreign.fit.json'), join('tables', 'mcycle.fit.json')],
+        [join('tables', 'mcycle.fit.json')],
       );
       const r = await check(dir);
       assert.equal(r.code, 0, r.stdout);
       assert.match(r.stdout, /1 record\(s\): 1 current/);
-      const empty = mkdtempSync(join(tmpdir(), 'knotwise-empty-'));
-      const e = await check(empty);
-      rmSync(empty, { recursive: true, force: true });
-      assert.equal(e.code, 0);
-      assert.match(e.stdout, /no fit records \(\*\.fit\.json\)/);
+      // Another format, an empty file, a truncated record and a wrongly typed one: each named, exit 2, in every mode.
+      const good = readFileSync(record, 'utf8');
+      const bad: Record<string, [string, RegExp]> = {
+        'foreign.fit.json': ['{"format": "someone-else"}\n', /not a fit record: "format" is "someone-else"/],
+        'empty.fit.json': ['', /not a fit record: the file is empty/],
+        'cut.fit.json': [good.slice(0, Math.floor(good.length / 2)), /not valid JSON .*the file looks truncated/],
+        'typed.fit.json': [good.replace(/"rowsUsed": (\d+)/, '"rowsUsed": "$1"'), /does not follow its schema .*"data\.rowsUsed" must be a whole number; it is "\d+"/],
+      };
+      mkdirSync(join(dir, 'sub'), { recursive: true });
+      for (const [name, [text]] of Object.entries(bad)) writeFileSync(join(dir, 'sub', name), text);
+      for (const argv of [[], ['sub'], ['.'], ...Object.keys(bad).map((n) => [join('sub', n)])]) {
+        const e = await check(dir, ...argv);
+        assert.equal(e.code, 2, `check ${argv.join(' ')}: ${e.stdout}`);
+        assert.doesNotMatch(e.stdout, /no fit records/);
+        for (const [name, [, why]] of Object.entries(bad)) {
+          if (argv.length === 1 && argv[0]?.endsWith('.fit.json') && !argv[0].endsWith(name)) continue;
+          assert.match(e.stdout, new RegExp(`^ERROR {3}sub/${name.replace(/\./g, '\\.')}\n {2}.*${why.source}`, 'm'), `check ${argv.join(' ')}: ${name}`);
+        }
+      }
+      const j = checkJson(await check(dir, '--json'));
+      assert.deepEqual(j.counts, { current: 1, changed: 0, error: 4 });
+      assert.deepEqual(
+        j.records.map((s) => [s.file, s.status]),
+        [
+          ...Object.keys(bad)
+            .sort()
+            .map((n) => [join('sub', n), 'error']),
+          [join('tables', 'mcycle.fit.json'), 'current'],
+        ],
+      );
     } finally {
       for (const p of ['node_modules', '.git', 'sub']) rmSync(join(dir, p), { recursive: true, force: true });
+    }
+  });
+
+  it('check of a folder without records exits 2 with "no fit records under <folder>", with no argument and with a folder argument', async () => {
+    const empty = mkdtempSync(join(tmpdir(), 'knotwise-empty-'));
+    try {
+      mkdirSync(join(empty, 'node_modules', 'pkg'), { recursive: true });
+      writeFileSync(join(empty, 'node_modules', 'pkg', 'a.fit.json'), readFileSync(record));
+      const e = await check(empty);
+      assert.equal(e.code, 2, e.stdout);
+      assert.equal(e.stdout, 'ERROR   .\n  no fit records (*.fit.json) under .\n');
+      mkdirSync(join(empty, 'none'));
+      const f = await check(empty, 'none');
+      assert.equal(f.code, 2);
+      assert.match(f.stdout, /^ {2}no fit records \(\*\.fit\.json\) under none$/m);
+      // A folder with records beside one without: still exit 2, and the records are checked.
+      mkdirSync(join(dir, 'no-records'));
+      const both = await check(dir, 'tables', 'no-records', 'gone.fit.json');
+      rmSync(join(dir, 'no-records'), { recursive: true });
+      assert.equal(both.code, 2);
+      assert.match(both.stdout, /^current tables\/mcycle\.fit\.json$/m);
+      assert.match(both.stdout, /^ERROR {3}no-records\n {2}no fit records \(\*\.fit\.json\) under no-records$/m);
+      assert.match(both.stdout, /^ERROR {3}gone\.fit\.json\n {2}.*gone\.fit\.json: no such file$/m);
+      assert.match(both.stdout, /knotwise check: 2 record\(s\): 1 current, 0 changed, 1 could not be checked; 1 folder\(s\) without records$/m);
+      const quiet = await check(empty, '--quiet');
+      assert.equal(quiet.stdout, '');
+      assert.equal(quiet.stderr, 'knotwise check: .: no fit records (*.fit.json) under .\n');
+    } finally {
+      rmSync(empty, { recursive: true, force: true });
     }
   });
 
@@ -223,7 +280,7 @@ describe('knotwise check', () => {
     assert.equal(current.code, 0, current.stdout);
     const j0 = checkJson(current);
     assert.equal(j0.knotwise, VERSION);
-    assert.deepEqual(j0.records, [{ file: join('tables', 'mcycle.fit.json'), status: 'current', reasons: [], advice: null }]);
+    assert.deepEqual(j0.records, [{ file: join('tables', 'mcycle.fit.json'), status: 'current', reasons: [], notes: [], writtenBy: VERSION, advice: null }]);
     assert.deepEqual(j0.counts, { current: 1, changed: 0, error: 0 });
     assert.equal(j0.exitCode, 0);
     // A changed table: status changed, the reason names the file, the advice is the command that rebuilds it.
@@ -259,12 +316,15 @@ describe('knotwise check', () => {
     } finally {
       rmSync(bad);
     }
-    // No records: an empty list and exit code 0.
+    // No records: the folder as one entry with status error, and exit code 2.
     const empty = mkdtempSync(join(tmpdir(), 'knotwise-empty-'));
     try {
       const none = await check(empty, '--json');
-      assert.equal(none.code, 0);
-      assert.deepEqual(checkJson(none).records, []);
+      assert.equal(none.code, 2);
+      const j3 = checkJson(none);
+      assert.deepEqual(j3.records, [{ file: '.', status: 'error', reasons: ['no fit records (*.fit.json) under .'], notes: [], writtenBy: null, advice: null }]);
+      assert.deepEqual(j3.counts, { current: 0, changed: 0, error: 1 });
+      assert.equal(j3.exitCode, 2);
     } finally {
       rmSync(empty, { recursive: true, force: true });
     }

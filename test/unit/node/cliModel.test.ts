@@ -135,7 +135,8 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
   });
 
   it('refuses bad or contradictory model flags with exit code 2 and the reason', async () => {
-    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--trials', 'speed'), /--trials needs --outcome proportions/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--trials', 'n'), /--trials needs --outcome proportions/);
+    refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'proportions', '--trials', 'speed'), /--x and --trials name the same column "speed"/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--shape', 'wiggly'), /unknown shape "wiggly"/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'gamma'), /unknown outcome "gamma"; use continuous, counts, proportions/);
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'poisson'), /unknown outcome "poisson"/);
@@ -145,7 +146,7 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     refused(await run('fit', cars, '--x', 'speed', '--y', 'dist', '--robust-k', '0'), /--robust-k must be a positive number/);
     refused(
       await run('fit', cars, '--x', 'speed', '--y', 'dist', '--outcome', 'proportions', '--df', '3'),
-      /cars\.csv, line 2, column "dist": a binomial outcome without a trials column must be a proportion/,
+      /cars\.csv, line 2, column "dist": proportions without a trials column must lie from 0 to 1/,
     );
   });
 

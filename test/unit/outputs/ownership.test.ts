@@ -1,8 +1,9 @@
 /**
  * Tests of the ownership rule shared by the command line and the editor (core/outputs/ownership.ts):
  * a file is Knotwise's only when the fit record beside it lists its name with the SHA-256
- * of its current bytes; the record itself counts by its format field. Hash values: the
- * SHA-256 of "abc" is the example of FIPS 180-2, appendix B.1.
+ * of its current bytes (or a commit marker vouches for those bytes); the record itself counts
+ * by its format field. Hash values: the SHA-256 of "abc" is the example of FIPS 180-2,
+ * appendix B.1.
  */
 import { strict as assert } from 'node:assert';
 import { createHash } from 'node:crypto';
@@ -45,6 +46,13 @@ describe('writtenByKnotwise', () => {
   it('writtenByKnotwise: the record itself counts by its format field', () => {
     assert.equal(writtenByKnotwise({ name: 'a.fit.json', sha256: ABC, isRecord: true }, record({})), true);
     assert.equal(writtenByKnotwise({ name: 'a.fit.json', sha256: ABC, isRecord: true }, '{"format": "mine"}'), false);
+  });
+
+  it('writtenByKnotwise: bytes a commit marker vouches for (an interrupted write) are Knotwise\'s, by name and SHA-256', () => {
+    const vouched = new Map([['a.curve.csv', ABC]]);
+    assert.equal(writtenByKnotwise({ name: 'a.curve.csv', sha256: ABC, isRecord: false }, undefined, vouched), true, 'even without a record');
+    assert.equal(writtenByKnotwise({ name: 'a.curve.csv', sha256: '1'.repeat(64), isRecord: false }, undefined, vouched), false, 'other bytes');
+    assert.equal(writtenByKnotwise({ name: 'b.curve.csv', sha256: ABC, isRecord: false }, undefined, vouched), false, 'another name');
   });
 
   it('recordedFiles lists the table and every output by name, skipping malformed entries', () => {

@@ -1,7 +1,8 @@
 /**
  * Tests of reading a fit record back into its plan (core/outputs/recordPlan.ts): every plan the
  * command line can express comes back unchanged from the record it wrote, and a bad record
- * is refused naming the key at fault. Data: datasets::cars (Ezekiel 1930) from
+ * is refused naming the key at fault; a record file's bytes are refused when empty, not
+ * UTF-8, cut short or breaking the schema. Data: datasets::cars (Ezekiel 1930) from
  * test/e2e/fixtures/cars.csv (make-fixtures.R).
  */
 import { strict as assert } from 'node:assert';
@@ -11,7 +12,7 @@ import { join } from 'node:path';
 import { InputError } from '../../../core/errors';
 import { runPipeline } from '../../../core/node/pipeline';
 import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/outputs/plan';
-import { readRecord } from '../../../core/outputs/recordPlan';
+import { readRecord, readRecordFile } from '../../../core/outputs/recordPlan';
 import { copyFixture } from '../node/runMain';
 
 /** The plan as JSON sees it (keys holding undefined dropped). */
@@ -88,7 +89,14 @@ describe('readRecord', () => {
 
   it('readRecord reads a hand-chosen df (rule df:<k>) as the manual rule', async function () {
     this.timeout(60_000);
-    const run = await runPipeline(data, { ...(PLANS['tuned with default candidates and the default grid'] as FitPlan), options: { kind: 'natural-spline', candidates: [2, 3, 4, 5], resample: { kind: 'leave-one-out' }, rule: { kind: 'pick', df: 4 }, seed: 1 } }, dir);
+    const run = await runPipeline(
+      data,
+      {
+        ...(PLANS['tuned with default candidates and the default grid'] as FitPlan),
+        options: { kind: 'natural-spline', candidates: [2, 3, 4, 5], resample: { kind: 'leave-one-out' }, rule: { kind: 'pick', df: 4 }, seed: 1 },
+      },
+      dir,
+    );
     const back = readRecord(JSON.parse(JSON.stringify(run.deliverables.record)), 'x');
     assert.deepEqual(back.plan.options.rule, { kind: 'pick', df: 4 });
   });
@@ -106,7 +114,15 @@ describe('readRecord', () => {
     refuse({ format: 'knotwise-fit-record', version: 1 }, /version 1 was written by an earlier Knotwise whose words have changed/);
     refuse({ format: 'knotwise-fit-record', version: 2, tool: {}, data: { columns: {} } }, /"spec" must be an object/);
     const spec = { curve: 'natural-spline', candidates: [3], resampling: null, rule: 'pick:3', grid: { kind: 'count', start: 0, stop: 1, count: 'x' }, extrapolate: false, digits: 8, emit: [] };
-    const rec = { format: 'knotwise-fit-record', version: 2, tool: { version: '0' }, data: { file: 'a.csv', sha256: 'a', rowsUsed: 1, columns: { x: 'a', y: 'b' } }, spec, fit: { df: 3 }, table: { file: 't', sha256: 's' } };
+    const rec = {
+      format: 'knotwise-fit-record',
+      version: 2,
+      tool: { version: '0' },
+      data: { file: 'a.csv', sha256: 'a', rowsUsed: 1, columns: { x: 'a', y: 'b' } },
+      spec,
+      fit: { df: 3 },
+      table: { file: 't', sha256: 's' },
+    };
     refuse(rec, /"spec.grid.count" must be a number/);
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, candidates: [0.5] } }, /"spec.candidates\[0\]" must be a number of at least 1/);
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, emit: ['rust'] } }, /"spec.emit\[0\]" must be one of c, ts, json/);
@@ -115,5 +131,34 @@ describe('readRecord', () => {
     refuse({ ...rec, spec: { ...spec, grid: { kind: 'data' }, tuned: true } }, /"spec.resampling" must be given for a tuned fit/);
     // The same record with a valid grid reads.
     assert.equal(readRecord({ ...rec, spec: { ...spec, grid: { kind: 'data' } } }, 'a.fit.json').plan.tune, false);
+  });
+
+  it('readRecordFile reads the bytes Knotwise wrote, and refuses empty, non-UTF-8, byte-order-marked, truncated and schema-breaking files', async function () {
+    this.timeout(60_000);
+    const run = await runPipeline(data, PLANS['fixed df with a Poisson outcome'] as FitPlan, join(dir, 'out'));
+    const text = (run.deliverables.files.find((f) => f.kind === 'record') as { text: string }).text;
+    const bytes = (t: string): Uint8Array => new TextEncoder().encode(t);
+    const read = readRecordFile(bytes(text), 'cars.fit.json');
+    assert.deepEqual(plain(read.run.plan), plain(readRecord(JSON.parse(text), 'x').plan));
+    assert.deepEqual(read.json, JSON.parse(text));
+    const refuse = (b: Uint8Array, pattern: RegExp): void => {
+      assert.throws(
+        () => readRecordFile(b, 'a.fit.json'),
+        (e: unknown) => e instanceof InputError && e.place.file === 'a.fit.json' && pattern.test(e.message),
+      );
+    };
+    refuse(new Uint8Array(0), /^not a fit record: the file is empty$/);
+    refuse(bytes(' \n'), /^not a fit record: the file is empty \(white space only\)$/);
+    refuse(Uint8Array.from([0x7b, 0xc3, 0x28, 0x7d]), /^not a fit record: the file is not UTF-8 text$/);
+    refuse(bytes('\uFEFF' + text), /starts with a byte order mark/);
+    refuse(bytes(text.slice(0, 400)), /^not valid JSON \(.*\); the file looks truncated$/);
+    refuse(bytes(text.replace('"version": 2', '"version": 1')), /version 1 was written by an earlier Knotwise/);
+    refuse(
+      bytes(text.replace('"rowsRead": 50', '"rowsRead": -50').replace('"level": 0.95', '"level": 0.9')),
+      /^the fit record does not follow its schema \(schema\/fit-record\.schema\.json, version 2\): "data\.rowsRead" must be at least 0; it is -50; "spec\.level" must be 0\.95; it is 0\.9$/,
+    );
+    const many = JSON.parse(text) as Record<string, unknown>;
+    for (const k of ['fit', 'table', 'outputs', 'warnings', 'caution']) delete many[k];
+    refuse(bytes(JSON.stringify(many)), /: "fit" is missing; "table" is missing; "outputs" is missing; and 2 more$/);
   });
 });
