@@ -1,21 +1,36 @@
 /**
  * Reads a CSV for Knotwise: the open document's text (unsaved edits included) when the
- * file is open in an editor, otherwise the file's bytes through workspace.fs.
+ * file is open in an editor with unsaved edits, otherwise the file's bytes through
+ * workspace.fs. Every read keeps the SHA-256 of the bytes it read, so a session knows
+ * exactly which bytes it analysed.
  */
+import { decodeCsvBytes } from '../core/ingest/encoding';
 import { createHash } from 'node:crypto';
 import * as vscode from 'vscode';
 import { parseCsvText } from '../core/ingest/reader';
 import type { ParsedTable } from '../core/ingest/types';
 
-/** A parsed CSV and where it came from. */
-export interface CsvSource {
-  readonly uri: vscode.Uri;
-  readonly fileName: string;
+/**
+ * Files this large or larger are not handed to extensions by the editor (VS Code keeps
+ * their text to itself): Knotwise reads and follows them on disk only.
+ */
+export const LARGE_FILE_BYTES = 50 * 1024 * 1024;
+
+/** The current bytes of a data file as text, and where they came from. */
+export interface DataText {
   readonly text: string;
   /** SHA-256 of the bytes read (the file's bytes, or the UTF-8 of unsaved text). */
   readonly sha256: string;
   /** True when the text has edits not saved to disk. */
   readonly unsaved: boolean;
+  /** Number of bytes read. */
+  readonly size: number;
+}
+
+/** A parsed CSV and where it came from. */
+export interface CsvSource extends DataText {
+  readonly uri: vscode.Uri;
+  readonly fileName: string;
   readonly table: ParsedTable;
 }
 
@@ -30,22 +45,51 @@ export function isTableFile(uri: vscode.Uri): boolean {
   return /\.(csv|tsv)$/i.test(uri.path);
 }
 
+/** SHA-256 (FIPS 180-4) of bytes, as hex. */
+export function sha256(bytes: Uint8Array): string {
+  return createHash('sha256').update(bytes).digest('hex');
+}
+
+/** The open document of `uri`, if the editor has handed it to extensions. */
+export function openDocument(uri: vscode.Uri): vscode.TextDocument | undefined {
+  const key = uri.toString();
+  return vscode.workspace.textDocuments.find((d) => d.uri.toString() === key);
+}
+
+/** True for workspace.fs's error of a missing file or folder. */
+export function isNotFound(err: unknown): boolean {
+  return err instanceof vscode.FileSystemError && err.code === 'FileNotFound';
+}
+
+/** The data as it is now: an open document's unsaved text, else the bytes on disk (throws FileSystemError when missing). */
+export async function readData(uri: vscode.Uri): Promise<DataText> {
+  const doc = openDocument(uri);
+  if (doc?.isDirty) {
+    const text = doc.getText();
+    const bytes = new TextEncoder().encode(text);
+    return { text, sha256: sha256(bytes), unsaved: true, size: bytes.length };
+  }
+  const bytes = await vscode.workspace.fs.readFile(uri);
+  // Decoded as the command line decodes files (UTF-8, or UTF-16 by its byte order mark); a
+  // UTF-8 mark stays in the text, the reader removes it itself.
+  const text = decodeCsvBytes(bytes, uri.path.split('/').pop());
+  return { text, sha256: sha256(bytes), unsaved: false, size: bytes.length };
+}
+
+/** SHA-256 of the file's bytes on disk, or undefined when there is no file. */
+export async function diskSha256(uri: vscode.Uri): Promise<string | undefined> {
+  try {
+    return sha256(await vscode.workspace.fs.readFile(uri));
+  } catch (err) {
+    if (isNotFound(err)) return undefined;
+    throw err;
+  }
+}
+
 /** Reads and parses a CSV (throws InputError for unusable input). */
 export async function readCsv(uri: vscode.Uri): Promise<CsvSource> {
-  const doc = vscode.workspace.textDocuments.find((d) => d.uri.toString() === uri.toString());
+  const data = await readData(uri);
   const fileName = baseName(uri);
-  let text: string;
-  let bytes: Uint8Array;
-  const unsaved = doc?.isDirty === true;
-  if (doc && unsaved) {
-    text = doc.getText();
-    bytes = new TextEncoder().encode(text);
-  } else {
-    bytes = await vscode.workspace.fs.readFile(uri);
-    // Keep a byte order mark in the text: the reader detects and removes it itself.
-    text = new TextDecoder('utf-8', { ignoreBOM: true }).decode(bytes);
-  }
-  const sha256 = createHash('sha256').update(bytes).digest('hex');
-  const table = parseCsvText(text, { file: fileName });
-  return { uri, fileName, text, sha256, unsaved, table };
+  const table = parseCsvText(data.text, { file: fileName });
+  return { ...data, uri, fileName, table };
 }

@@ -1,6 +1,44 @@
 /**
- * Column names and units from the header row, and unique labels for every column.
+ * Column names and units from the header row, unique labels for every column, and the
+ * limits on the header: how many columns and how long a name.
  */
+import { isControl } from './text';
+
+/**
+ * Most columns a table may have. A header row (or, without one, a first record) with more
+ * fields is refused as soon as its field number MAX_COLUMNS + 1 is read, before any
+ * per-column storage exists. A measurement log has tens of columns; 10,000 leaves room for
+ * wide exports while keeping the per-column arrays of a table within tens of megabytes.
+ */
+export const MAX_COLUMNS = 10_000;
+
+/** Characters of a header cell kept as its header text and label; longer cells are cut and end in "…". */
+export const MAX_NAME_CHARS = 200;
+
+/**
+ * A header cell as kept: every run of tabs, CRs and LFs (a quoted name may span lines)
+ * becomes one space, and the text is cut after MAX_NAME_CHARS characters with "…". Other
+ * control characters are left for `headerControl` to refuse. Cost O(min(length, 201)).
+ * Example: headerText('flow\r\n[L/min]') -> 'flow [L/min]'.
+ */
+export function headerText(raw: string): string {
+  const head = raw.length > MAX_NAME_CHARS + 1 ? raw.slice(0, MAX_NAME_CHARS + 1) : raw;
+  const text = head.replace(/[\t\r\n]+/g, ' ');
+  if (text.length <= MAX_NAME_CHARS && head.length === raw.length) return text;
+  const cut = text.charCodeAt(MAX_NAME_CHARS - 1) >= 0xd800 && text.charCodeAt(MAX_NAME_CHARS - 1) <= 0xdbff ? MAX_NAME_CHARS - 1 : MAX_NAME_CHARS;
+  return `${text.slice(0, cut)}\u2026`;
+}
+
+/**
+ * Position of the first control character in a kept header text (tabs and line breaks
+ * are already spaces), or -1. A name with one is refused: it could change what a
+ * terminal shows, or break a line of a generated file that names the column.
+ * Example: headerControl('temp\u0007') -> 4.
+ */
+export function headerControl(text: string): number {
+  for (let i = 0; i < text.length; i++) if (isControl(text.charCodeAt(i))) return i;
+  return -1;
+}
 
 /** A header cell split into its name and the unit at its end. */
 export interface HeaderName {

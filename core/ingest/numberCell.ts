@@ -2,6 +2,7 @@
  * Reading one CSV cell as a number, a missing value or an invalid entry, straight from a
  * range of a string so that the hot path allocates nothing.
  */
+import { codePoint, escapeHidden, findControl, shorten } from './text';
 
 /** Cell kinds set by `CellParser.parse`. Missing kinds are below CELL_NOT_NUMBER. */
 export const CELL_NUMBER = 0;
@@ -10,12 +11,18 @@ export const CELL_EMPTY = 1;
 /** A missing-value token: NA, NaN, null, n/a or - (case-insensitive). */
 export const CELL_MISSING = 2;
 export const CELL_NOT_NUMBER = 3;
-/** Inf, -Inf, Infinity or a number too large for a double (1e999). */
+/** The words Inf, -Inf, Infinity (any letter case). */
 export const CELL_NOT_FINITE = 4;
-/** A number written with the other decimal separator than the file uses. */
+/** A number written with the other decimal separator than its column uses. */
 export const CELL_WRONG_DECIMAL = 5;
+/** A decimal number beyond the largest double, which would read as infinity (1e309). */
+export const CELL_OVERFLOW = 6;
+/** A decimal number with a non-zero digit that would read as 0 (1e-400). */
+export const CELL_UNDERFLOW = 7;
+/** Text holding a control character (C0 other than tab at its ends, DEL, C1). */
+export const CELL_CONTROL = 8;
 
-export type CellKind = 0 | 1 | 2 | 3 | 4 | 5;
+export type CellKind = 0 | 1 | 2 | 3 | 4 | 5 | 6 | 7 | 8;
 
 const PLUS = 43;
 const MINUS = 45;
@@ -23,6 +30,8 @@ const DOT = 46;
 const COMMA = 44;
 const SLASH = 47;
 const ZERO = 48;
+const SPACE = 32;
+const TAB = 9;
 const E_LOWER = 101;
 /** Largest integer up to which every integer is exactly representable (2^53). */
 const EXACT_INTEGER_LIMIT = 9007199254740992;
@@ -138,10 +147,26 @@ export function scanNumber(s: string, a: number, b: number, sep: number): number
   return Number(sep === DOT ? text : text.replace(String.fromCharCode(sep), '.'));
 }
 
+/** Space or tab: the only characters ignored around a cell. */
+function isBlankCode(c: number): boolean {
+  return c === SPACE || c === TAB;
+}
+
+/** True when every digit before the exponent of the trimmed text s[a, b) is 0. */
+function zeroSignificand(s: string, a: number, b: number): boolean {
+  for (let i = a; i < b; i++) {
+    const c = s.charCodeAt(i);
+    if (lower(c) === E_LOWER) return true;
+    if (c > ZERO && c <= ZERO + 9) return false;
+  }
+  return true;
+}
+
 /**
  * Classifies cells. After `parse`, `kind` says what the cell was; the returned value is
  * the finite number for CELL_NUMBER and NaN otherwise. Spaces and tabs around the text are
- * ignored. One parser per file (its decimal separator is fixed).
+ * ignored; any other control character makes the cell CELL_CONTROL (never stripped). One
+ * parser per decimal convention (its separator is fixed).
  */
 export class CellParser {
   kind: CellKind = CELL_EMPTY;
@@ -155,11 +180,14 @@ export class CellParser {
 
   /**
    * Reads s[start, end). Cost O(end - start), no allocation for plain numbers.
+   * A decimal number beyond the double range is CELL_OVERFLOW; one whose significand has
+   * a non-zero digit but which rounds to 0 is CELL_UNDERFLOW (IEEE 754-2019, section 7.4
+   * and 7.5: overflow to infinity, underflow to zero); subnormal results are numbers.
    * Example: new CellParser(true).parse('1,5', 0, 3) -> 1.5 with kind CELL_NUMBER.
    */
   parse(s: string, start: number, end: number): number {
-    while (start < end && s.charCodeAt(start) <= 32) start++;
-    while (end > start && s.charCodeAt(end - 1) <= 32) end--;
+    while (start < end && isBlankCode(s.charCodeAt(start))) start++;
+    while (end > start && isBlankCode(s.charCodeAt(end - 1))) end--;
     if (start === end) {
       this.kind = CELL_EMPTY;
       return NaN;
@@ -170,14 +198,19 @@ export class CellParser {
     }
     const v = scanNumber(s, start, end, this.sep);
     if (v === v) {
-      if (v - v === 0) {
-        this.kind = CELL_NUMBER;
-        return v;
+      if (v - v !== 0) {
+        this.kind = CELL_OVERFLOW;
+        return NaN;
       }
-      this.kind = CELL_NOT_FINITE;
-      return NaN;
+      if (v === 0 && !zeroSignificand(s, start, end)) {
+        this.kind = CELL_UNDERFLOW;
+        return NaN;
+      }
+      this.kind = CELL_NUMBER;
+      return v;
     }
-    if (isInfinityWord(s, start, end)) this.kind = CELL_NOT_FINITE;
+    if (findControl(s, start, end) >= 0) this.kind = CELL_CONTROL;
+    else if (isInfinityWord(s, start, end)) this.kind = CELL_NOT_FINITE;
     else if (scanNumber(s, start, end, this.otherSep) === scanNumber(s, start, end, this.otherSep)) this.kind = CELL_WRONG_DECIMAL;
     else this.kind = CELL_NOT_NUMBER;
     return NaN;
@@ -187,27 +220,76 @@ export class CellParser {
 /** Longest cell text quoted in a message. */
 const QUOTE_LIMIT = 40;
 
-/** The cell text as a JSON string literal, shortened to about 40 characters. */
+/** The text without the spaces and tabs at its ends (the parser's notion of blank). */
+function trimBlanks(text: string): string {
+  return text.replace(/^[ \t]+|[ \t]+$/g, '');
+}
+
+/**
+ * The cell text as a JSON string literal, shortened to about 40 characters, with control
+ * and invisible characters escaped (core/ingest/text.ts), so a message never carries them raw.
+ * Example: quoteCell(' 1\u0007 ') -> '"1\\u0007"'.
+ */
 export function quoteCell(text: string): string {
-  const t = text.trim();
-  return JSON.stringify(t.length > QUOTE_LIMIT ? `${t.slice(0, QUOTE_LIMIT - 1)}\u2026` : t);
+  const t = trimBlanks(text);
+  return escapeHidden(JSON.stringify(t.length > QUOTE_LIMIT ? shorten(t, QUOTE_LIMIT - 1) : t));
+}
+
+/** Non-ASCII decimal digits (Unicode Nd), such as Arabic-Indic or full-width digits. */
+const OTHER_DIGITS = /(?![0-9])\p{Nd}/u;
+/** Dashes that look like a minus sign but are not U+002D. */
+const DASHES = /^[\u2010-\u2015\u2212\ufe58\ufe63\uff0d]/;
+/** A separator between digits: grouping by space, apostrophe, underscore or thin spaces. */
+const GROUPING = /\d[ '_\u00a0\u2009\u202f]\d/;
+
+/** Why a text that is close to a number is not read as one, or '' (the hint of a reason). */
+function notNumberHint(t: string): string {
+  if (OTHER_DIGITS.test(t)) return 'only the digits 0-9 are read';
+  if (DASHES.test(t)) return 'a minus sign must be the ASCII hyphen-minus "-"';
+  if (/^[+-]?0[xXbBoO][0-9a-fA-F]/.test(t)) return 'only decimal numbers are read';
+  if (/\d[.,]\d*[.,]\d/.test(t) && t.includes('.') && t.includes(',')) return 'thousands separators are not supported';
+  if (GROUPING.test(t)) return 'digit group separators are not supported';
+  return '';
+}
+
+/** True when the text may be a number with one thousands separator ("1,234", "12.500"). */
+function mayBeGrouped(t: string): boolean {
+  return /^[+-]?\d{1,3}[.,]\d{3}$/.test(t);
 }
 
 /**
  * Reason for an invalid cell, quoting its text, e.g. `"abc" is not a number`.
- * `decimalComma` is the file's convention (used in the hint for CELL_WRONG_DECIMAL).
+ * `decimalComma` is the convention of the cell's column (used in the hint for
+ * CELL_WRONG_DECIMAL). Thousands separators are never read: `1,234` in a decimal-point
+ * column is refused, not read as 1234.
  */
 export function cellReason(kind: CellKind, text: string, decimalComma: boolean): string {
   const q = quoteCell(text);
+  const t = trimBlanks(text);
   if (kind === CELL_NOT_FINITE) return `${q} is not finite`;
-  if (kind === CELL_WRONG_DECIMAL) return `${q} is not a number (this file uses a decimal ${decimalComma ? 'comma' : 'point'})`;
+  if (kind === CELL_OVERFLOW) return `${q} is beyond the largest double, about 1.8e308 (it would overflow to infinity, IEEE 754)`;
+  if (kind === CELL_UNDERFLOW) return `${q} is below the smallest double, about 4.9e-324 (it would underflow to 0, IEEE 754)`;
+  if (kind === CELL_CONTROL) {
+    const at = findControl(t, 0, t.length);
+    const c = t.charCodeAt(at);
+    const what = c === 10 || c === 13 ? 'a line break' : c === 9 ? 'a tab' : 'the control character';
+    return `${q} holds ${what} ${codePoint(c)} at character ${at + 1}, which no number holds`;
+  }
+  if (kind === CELL_WRONG_DECIMAL) {
+    const grouped = mayBeGrouped(t) ? '; thousands separators are not supported' : '';
+    return `${q} is not a number (this column uses a decimal ${decimalComma ? 'comma' : 'point'}${grouped})`;
+  }
   if (kind === CELL_EMPTY || kind === CELL_MISSING) return 'missing value';
-  return `${q} is not a number`;
+  const hint = notNumberHint(t);
+  return hint === '' ? `${q} is not a number` : `${q} is not a number (${hint})`;
 }
 
 /** Reason without the cell text (for cells beyond the per-column limit of quoted reasons). */
 export function shortCellReason(kind: CellKind): string {
   if (kind === CELL_NOT_FINITE) return 'not finite';
+  if (kind === CELL_OVERFLOW) return 'beyond the largest double (overflow)';
+  if (kind === CELL_UNDERFLOW) return 'below the smallest double (underflow to 0)';
+  if (kind === CELL_CONTROL) return 'holds a control character';
   if (kind === CELL_WRONG_DECIMAL) return 'not a number (wrong decimal separator)';
   if (kind === CELL_EMPTY || kind === CELL_MISSING) return 'missing value';
   return 'not a number';

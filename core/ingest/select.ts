@@ -4,7 +4,12 @@
  */
 import { InputError } from '../errors';
 import type { XYData } from '../types';
+import { splitUnit } from './header';
+import { MESSAGE_NAME_CHARS, quoteName, shorten } from './text';
 import type { ColumnInfo, ParsedTable } from './types';
+
+/** Columns listed by name when a column is not found; the rest are counted. */
+const LISTED_COLUMNS = 20;
 
 /** Which columns to use, by label or header text. */
 export interface ColumnChoice {
@@ -29,9 +34,15 @@ export interface Selection {
   readonly units: { readonly x: string | undefined; readonly y: string | undefined; readonly weights?: string | undefined };
 }
 
+/** A column for a message: its label, and its header text when that differs; names shortened. */
+function describeColumn(c: ColumnInfo): string {
+  return c.header !== '' && c.header.trim() !== c.label ? `${quoteName(c.label)} (header ${quoteName(c.header)})` : quoteName(c.label);
+}
+
 /**
  * Finds a column by label or header text: exact match first, then ignoring case. Throws
- * InputError listing the available columns when none matches.
+ * InputError listing the available columns (the first 20, names shortened to 60
+ * characters) when none matches.
  */
 export function findColumn(table: ParsedTable, name: string, file?: string): ColumnInfo {
   const cols = table.columns;
@@ -40,8 +51,17 @@ export function findColumn(table: ParsedTable, name: string, file?: string): Col
   const lower = name.toLowerCase();
   const loose = cols.find((c) => c.label.toLowerCase() === lower) ?? cols.find((c) => c.header !== '' && c.header.toLowerCase() === lower);
   if (loose !== undefined) return loose;
-  const available = cols.map((c) => (c.header !== '' && c.header.trim() !== c.label ? `"${c.label}" (header "${c.header}")` : `"${c.label}"`)).join(', ');
-  throw new InputError(`no column named ${JSON.stringify(name)}; the columns are ${available}`, { file, column: name });
+  const listed = cols.slice(0, LISTED_COLUMNS).map(describeColumn).join(', ');
+  const more = cols.length > LISTED_COLUMNS ? ` and ${cols.length - LISTED_COLUMNS} more` : '';
+  const shown = JSON.stringify(shorten(name, MESSAGE_NAME_CHARS));
+  throw new InputError(`no column named ${shown}; the columns are ${listed}${more}`, { file, column: shorten(name, MESSAGE_NAME_CHARS) });
+}
+
+/** Other columns whose header gives the same name as this one's (they got " (2)", " (3)", ... as labels). */
+function sameNamed(table: ParsedTable, col: ColumnInfo): ColumnInfo[] {
+  if (col.header === '') return [];
+  const name = splitUnit(col.header).name;
+  return table.columns.filter((c) => c !== col && c.header !== '' && splitUnit(c.header).name === name);
 }
 
 /** Throws InputError when the column holds text rather than numbers. */
@@ -50,9 +70,14 @@ function requireNumeric(table: ParsedTable, col: ColumnInfo, file: string | unde
   const row = col.problems.rows[0] as number;
   const line = table.lines[row] as number;
   const filled = col.numericCount + col.invalidCount;
+  const twins = sameNamed(table, col);
+  const twin =
+    twins.length > 0
+      ? `; the header names ${twins.length + 1} columns ${quoteName(splitUnit(col.header).name)}, and this is the first (the others are ${twins.map((c) => quoteName(c.label)).join(', ')})`
+      : '';
   throw new InputError(
-    `column "${col.label}" is not numeric: ${col.invalidCount} of its ${filled} filled cells are not numbers, e.g. line ${line}: ${col.problems.reasons[0] as string}`,
-    { file, line, column: col.label },
+    `column ${quoteName(col.label)} is not numeric: ${col.invalidCount} of its ${filled} filled cells are not numbers, e.g. line ${line}: ${col.problems.reasons[0] as string}${twin}`,
+    { file, line, column: shorten(col.label, MESSAGE_NAME_CHARS) },
   );
 }
 
@@ -116,7 +141,7 @@ export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: s
   rejected.sort((a, b) => a.line - b.line);
   if (kept === 0) {
     const first = rejected[0];
-    const names = chosen.map((c) => `"${c.label}"`).join(', ');
+    const names = chosen.map((c) => quoteName(c.label)).join(', ');
     const detail = first !== undefined ? ` (the first: line ${first.line}${first.column !== '' ? `, column "${first.column}"` : ''}: ${first.reason})` : '';
     throw new InputError(`no usable rows: every row has a missing or invalid value in ${names}${detail}`, { file });
   }

@@ -1,23 +1,33 @@
 /**
  * Collects tokenized records into typed columns: one growable Float64Array per column
  * and an Int32Array of line numbers, doubled when full, plus compact per-column lists of
- * invalid cells. Records with the wrong number of fields are reported and left out.
+ * invalid cells. Records with the wrong number of fields are reported and left out; a
+ * header wider than MAX_COLUMNS, a control character in a column name and a quoted field
+ * left open at the end of the file stop the whole file.
  */
 import { InputError } from '../errors';
-import { columnNames } from './header';
+import { columnNames, headerControl, headerText, MAX_COLUMNS, MAX_NAME_CHARS } from './header';
 import { CELL_EMPTY, CELL_MISSING, CELL_NOT_NUMBER, CELL_NUMBER, CellParser, cellReason, shortCellReason } from './numberCell';
 import type { CellKind } from './numberCell';
+import { codePoint, escapeHidden, shorten } from './text';
 import type { RecordSink } from './tokenizer';
 import type { CellProblems, ColumnInfo, CsvFormat, ParsedTable, TableProblem } from './types';
 
 /** Invalid cells per column whose reason quotes the cell text; later ones get a short reason. */
 export const QUOTED_REASONS_PER_COLUMN = 1000;
+/** Rows of the first allocation of every column, when the table is narrow. */
 const INITIAL_CAPACITY = 1024;
+/** Cells of the first allocation of all columns together: wide tables start with fewer rows. */
+const INITIAL_CELLS = 1 << 20;
+/** Fewest rows of a first allocation. */
+const MIN_CAPACITY = 16;
 // Local copies of the cell kinds: a module loader may turn imported bindings into getters.
 const NUMBER = CELL_NUMBER;
 const EMPTY = CELL_EMPTY;
 const MISSING = CELL_MISSING;
 const NOT_NUMBER = CELL_NOT_NUMBER;
+const TAB = 9;
+const SPACE = 32;
 
 /** Growable sparse list of one column's invalid cells. */
 class ProblemList {
@@ -38,23 +48,56 @@ class ProblemList {
   }
 }
 
+/** True when s[start, end) holds only spaces and tabs. */
+function blankRange(s: string, start: number, end: number): boolean {
+  for (let i = start; i < end; i++) {
+    const c = s.charCodeAt(i);
+    if (c !== SPACE && c !== TAB) return false;
+  }
+  return true;
+}
+
+/**
+ * The InputError of a quoted field still open at the end of the file, which opened on
+ * `quoteLine` (in `column` when known) and ran to `lastLine`.
+ */
+export function unterminatedQuote(quoteLine: number, lastLine: number, file: string | undefined, column?: string): InputError {
+  const span = lastLine > quoteLine ? `lines ${quoteLine} to ${lastLine} would be one field` : 'the rest of the line would be one field';
+  return new InputError(
+    `unterminated quote: the quoted field that opens on line ${quoteLine} is not closed before the end of the file (${span}); add the closing double quote, or remove the opening one`,
+    { file, line: quoteLine, column },
+  );
+}
+
 /** Format facts the builder needs (from detection or the options). */
 export interface BuilderFormat extends CsvFormat {
   /** Expected fields per record when there is no header row. */
   readonly fieldCount: number;
+  /** Decimal convention per column (index k); columns beyond the list use `decimalComma`. */
+  readonly columnDecimalComma?: readonly boolean[] | undefined;
 }
 
 /**
- * RecordSink that builds a ParsedTable. With `format.header` the first record names the
- * columns and fixes the field count; otherwise `format.fieldCount` does.
+ * RecordSink that builds a ParsedTable. With `format.header` the first record that is not
+ * blank names the columns and fixes the field count; otherwise `format.fieldCount` does.
+ * A record is blank when its line holds only spaces and tabs (any number of fields in a
+ * tab-separated file, one field otherwise): it is counted in `blankLines`, before the
+ * header as after it. `blankLines` starts at `skippedBlankLines`, the blank lines the
+ * reader consumed before the tokenizer started.
+ * Throws InputError from `field` as soon as a header (or first record) has more than
+ * MAX_COLUMNS fields, from `endRecord` for a control character in a column name, and
+ * from `unclosedQuote`.
  */
 export class TableBuilder implements RecordSink {
-  private readonly parser: CellParser;
+  private readonly pointParser = new CellParser(false);
+  private readonly commaParser = new CellParser(true);
+  private parsers: CellParser[] = [];
   private headerPending: boolean;
   private headerTexts: string[] = [];
   private expected = 0;
   private fieldIndex = 0;
-  private firstFieldBlank = false;
+  /** Every field of the current record so far holds only spaces and tabs. */
+  private recBlank = true;
   /** Values, kinds and texts of invalid cells of the current record. */
   private recValues = new Float64Array(0);
   private recKinds = new Uint8Array(0);
@@ -68,27 +111,45 @@ export class TableBuilder implements RecordSink {
   private missingCounts = new Float64Array(0);
   private invalid: ProblemList[] = [];
   private readonly rowProblems: TableProblem[] = [];
-  private blankLines = 0;
-  private readonly decimalComma: boolean;
+  private blankLines: number;
+  private readonly tabs: boolean;
+  /** Line where the next record starts (known once the previous one ended). */
+  private nextLine: number;
 
   constructor(
     private readonly format: BuilderFormat,
     private readonly file?: string,
+    skippedBlankLines = 0,
   ) {
-    this.decimalComma = format.decimalComma;
-    this.parser = new CellParser(format.decimalComma);
     this.headerPending = format.header;
-    if (!format.header) this.allocate(format.fieldCount);
+    this.blankLines = skippedBlankLines;
+    this.nextLine = skippedBlankLines + 1;
+    this.tabs = format.delimiter === '\t';
+    if (!format.header) {
+      if (format.fieldCount > MAX_COLUMNS) throw this.tooWide(`more than ${MAX_COLUMNS.toLocaleString('en-US')}`, skippedBlankLines + 1, 'its first row has');
+      this.allocate(format.fieldCount);
+    }
+  }
+
+  /** The InputError of a table wider than MAX_COLUMNS. */
+  private tooWide(count: string, line: number, what: string): InputError {
+    return new InputError(`the table is too wide: ${what} ${count} fields, and Knotwise reads at most ${MAX_COLUMNS.toLocaleString('en-US')} columns`, { file: this.file, line });
+  }
+
+  /** Decimal convention of column k. */
+  private commaAt(k: number): boolean {
+    return this.format.columnDecimalComma?.[k] ?? this.format.decimalComma;
   }
 
   private allocate(count: number): void {
     this.expected = count;
+    this.parsers = Array.from({ length: count }, (_, k) => (this.commaAt(k) ? this.commaParser : this.pointParser));
     this.recValues = new Float64Array(count);
     this.recKinds = new Uint8Array(count);
     this.recTexts = new Array<string>(count).fill('');
-    this.capacity = INITIAL_CAPACITY;
-    this.columns = Array.from({ length: count }, () => new Float64Array(INITIAL_CAPACITY));
-    this.lines = new Int32Array(INITIAL_CAPACITY);
+    this.capacity = Math.max(MIN_CAPACITY, Math.min(INITIAL_CAPACITY, Math.floor(INITIAL_CELLS / Math.max(count, 1))));
+    this.columns = Array.from({ length: count }, () => new Float64Array(this.capacity));
+    this.lines = new Int32Array(this.capacity);
     this.numericCounts = new Float64Array(count);
     this.missingCounts = new Float64Array(count);
     this.invalid = Array.from({ length: count }, () => new ProblemList());
@@ -97,35 +158,51 @@ export class TableBuilder implements RecordSink {
   field(s: string, start: number, end: number): void {
     const k = this.fieldIndex++;
     if (this.headerPending) {
-      this.headerTexts.push(s.slice(start, end));
+      if (k >= MAX_COLUMNS) throw this.tooWide(`more than ${MAX_COLUMNS.toLocaleString('en-US')}`, this.nextLine, 'the header row has');
+      if (this.recBlank && !blankRange(s, start, end)) this.recBlank = false;
+      // headerText keeps at most MAX_NAME_CHARS characters: copy no more than it needs to see the cut.
+      this.headerTexts.push(s.slice(start, Math.min(end, start + MAX_NAME_CHARS + 2)));
       return;
     }
-    if (k >= this.expected) return;
-    const parser = this.parser;
+    if (k >= this.expected) {
+      if (this.recBlank && !blankRange(s, start, end)) this.recBlank = false;
+      return;
+    }
+    const parser = this.parsers[k] as CellParser;
     this.recValues[k] = parser.parse(s, start, end);
     const kind = parser.kind;
     this.recKinds[k] = kind;
-    if (k === 0) this.firstFieldBlank = kind === EMPTY;
+    if (kind !== EMPTY) this.recBlank = false;
     if (kind >= NOT_NUMBER) {
       this.recHasInvalid = true;
       this.recTexts[k] = s.slice(start, end);
     }
   }
 
-  endRecord(line: number): void {
+  endRecord(line: number, lastLine: number = line): void {
     const count = this.fieldIndex;
     this.fieldIndex = 0;
     const hadInvalid = this.recHasInvalid;
     this.recHasInvalid = false;
+    const blank = this.recBlank && (count === 1 || this.tabs);
+    this.recBlank = true;
+    this.nextLine = lastLine + 1;
     if (this.headerPending) {
+      if (blank) {
+        this.blankLines++;
+        this.headerTexts = [];
+        return;
+      }
       this.headerPending = false;
+      this.headerTexts = this.headerTexts.map(headerText);
+      this.checkHeader(line);
       this.allocate(count);
       return;
     }
-    if (count !== this.expected) {
+    if (count !== this.expected || blank) {
       if (hadInvalid) this.recTexts.fill('');
-      if (count === 1 && this.firstFieldBlank) this.blankLines++;
-      else this.rowProblems.push({ line, reason: this.fieldCountReason(count) });
+      if (blank) this.blankLines++;
+      else this.rowProblems.push({ line, reason: this.fieldCountReason(count, line, lastLine) });
       return;
     }
     if (this.rowCount === this.capacity) this.grow();
@@ -142,21 +219,37 @@ export class TableBuilder implements RecordSink {
     if (hadInvalid) this.recordInvalid(row);
   }
 
-  blankLine(): void {
+  blankLine(line: number): void {
     this.blankLines++;
+    this.nextLine = line + 1;
   }
 
-  abortRecord(line: number, reason: string): void {
-    this.fieldIndex = 0;
-    this.recHasInvalid = false;
-    if (this.headerPending) throw new InputError(reason, { file: this.file, line });
-    this.rowProblems.push({ line, reason });
+  /** A quoted field open at the end of the file: the whole file is refused (no rows are guessed). */
+  unclosedQuote(quoteLine: number, lastLine: number): void {
+    const k = this.fieldIndex;
+    let column: string | undefined;
+    if (!this.headerPending) column = columnNames(this.format.header ? this.headerTexts : undefined, Math.max(this.expected, k + 1))[k]?.label;
+    throw unterminatedQuote(quoteLine, lastLine, this.file, column);
   }
 
-  private fieldCountReason(count: number): string {
+  /** Refuses a column name holding a control character (tabs and line breaks are already spaces). */
+  private checkHeader(line: number): void {
+    this.headerTexts.forEach((text, k) => {
+      const at = headerControl(text);
+      if (at < 0) return;
+      const shown = escapeHidden(shorten(text, 60));
+      throw new InputError(
+        `the name of column ${k + 1} in the header holds the control character ${codePoint(text.charCodeAt(at))} at character ${at + 1} ("${shown}"); column names must be printable text: remove it from the file`,
+        { file: this.file, line },
+      );
+    });
+  }
+
+  private fieldCountReason(count: number, line: number, lastLine: number): string {
     const expected = this.expected;
     const source = this.format.header ? 'the header has' : 'most rows have';
-    return `row has ${count} field${count === 1 ? '' : 's'}, but ${source} ${expected}`;
+    const span = lastLine > line ? ` (a quoted field holds line breaks: the row runs from line ${line} to line ${lastLine})` : '';
+    return `row has ${count} field${count === 1 ? '' : 's'}, but ${source} ${expected}${span}`;
   }
 
   private recordInvalid(row: number): void {
@@ -165,7 +258,7 @@ export class TableBuilder implements RecordSink {
       if (kind < NOT_NUMBER) continue;
       const list = this.invalid[k] as ProblemList;
       const text = this.recTexts[k] as string;
-      list.add(row, list.count < QUOTED_REASONS_PER_COLUMN ? cellReason(kind, text, this.decimalComma) : shortCellReason(kind));
+      list.add(row, list.count < QUOTED_REASONS_PER_COLUMN ? cellReason(kind, text, this.commaAt(k)) : shortCellReason(kind));
       this.recTexts[k] = '';
     }
   }
@@ -205,6 +298,7 @@ export class TableBuilder implements RecordSink {
         label: name.label,
         header: name.header,
         unit: name.unit,
+        decimalComma: this.commaAt(k),
         numericCount,
         missingCount: this.missingCounts[k] as number,
         invalidCount,

@@ -8,19 +8,27 @@
  * line breaks and doubled quotes (""). A quote inside an unquoted field is an ordinary
  * character; text after a closing quote is kept with that quote, so `"1"2` reads as the
  * text 1"2 and never silently as a number. Line breaks are LF, CRLF or CR, inside quoted
- * fields too, so physical line numbers stay right after multi-line fields.
+ * fields too, so physical line numbers stay right after multi-line fields. A quoted field
+ * still open at the end of the input is reported with the line where its quote opened:
+ * from that quote on, every line would have been one field.
  */
 
 /** Receives the tokens of the records in order. */
 export interface RecordSink {
   /** Next field of the current record: the text s[start, end). */
   field(s: string, start: number, end: number): void;
-  /** The current record ends; `line` is the 1-based line where it started. */
-  endRecord(line: number): void;
+  /**
+   * The current record ends; `line` is the 1-based line where it started and `lastLine`
+   * the line where it ended (later than `line` when a quoted field holds line breaks).
+   */
+  endRecord(line: number, lastLine: number): void;
   /** An empty line at `line` (no record). */
   blankLine(line: number): void;
-  /** The current record cannot be completed (its fields so far are dropped). */
-  abortRecord(line: number, reason: string): void;
+  /**
+   * The input ended inside a quoted field that opened on `quoteLine` and ran to
+   * `lastLine`; the current record has the fields given so far, the open one is not given.
+   */
+  unclosedQuote(quoteLine: number, lastLine: number): void;
 }
 
 const QUOTE = 34;
@@ -46,7 +54,7 @@ function append(partial: string, piece: string): string {
  * field, in a quoted field, between CR and LF. Cost O(total characters); fields that
  * are unquoted and inside one chunk are passed as ranges without copying.
  * Example: new CsvTokenizer(',', sink).push('a,"b\nc"\n') gives fields a and b\nc, and
- * endRecord(1); a record after it would start on line 3.
+ * endRecord(1, 2); a record after it would start on line 3.
  */
 export class CsvTokenizer {
   private state = FIELD_START;
@@ -55,20 +63,28 @@ export class CsvTokenizer {
   /** Fields already given to the sink for the current record. */
   private fields = 0;
   /** Physical line of the next character. */
-  private line = 1;
-  private recordLine = 1;
+  private line: number;
+  private recordLine: number;
+  /** Line where the current quoted field opened. */
+  private quoteLine = 1;
   /** The previous chunk ended with CR: an LF at the start of the next one is its pair. */
   private afterCR = false;
+  /** The last chunk ended with a line break (CR or LF). */
+  private afterBreak = false;
   private readonly delimiter: number;
 
+  /** `firstLine` is the physical line of the first character pushed (1 unless lines were skipped before). */
   constructor(
     delimiter: string,
     private readonly sink: RecordSink,
+    firstLine = 1,
   ) {
     if (delimiter.length !== 1 || delimiter === '"' || delimiter === '\n' || delimiter === '\r') {
       throw new Error(`invalid delimiter ${JSON.stringify(delimiter)}`);
     }
     this.delimiter = delimiter.charCodeAt(0);
+    this.line = firstLine;
+    this.recordLine = firstLine;
   }
 
   /** Tokenizes the next chunk. */
@@ -123,6 +139,7 @@ export class CsvTokenizer {
         if (state === FIELD_START) {
           if (c === QUOTE) {
             state = QUOTED;
+            this.quoteLine = line;
             i++;
             continue;
           }
@@ -158,7 +175,7 @@ export class CsvTokenizer {
         i = j + 1;
         continue;
       }
-      sink.endRecord(recordLine);
+      sink.endRecord(recordLine, line);
       fields = 0;
       line++;
       i = c === CR && j + 1 < n && s.charCodeAt(j + 1) === LF ? j + 2 : j + 1;
@@ -169,17 +186,22 @@ export class CsvTokenizer {
     this.fields = fields;
     this.line = line;
     this.recordLine = recordLine;
-    this.afterCR = s.charCodeAt(n - 1) === CR;
+    const last = s.charCodeAt(n - 1);
+    this.afterCR = last === CR;
+    this.afterBreak = last === CR || last === LF;
   }
 
-  /** Ends the input: completes the last record (a missing final line break is fine). */
+  /**
+   * Ends the input: completes the last record (a missing final line break is fine), or
+   * reports a quoted field that is still open.
+   */
   finish(): void {
     const sink = this.sink;
     if (this.state === QUOTED) {
-      sink.abortRecord(this.recordLine, `a quoted field starting on this line is not closed before the end of the file (lines ${this.recordLine} to ${this.line} are inside it)`);
+      sink.unclosedQuote(this.quoteLine, this.afterBreak ? this.line - 1 : this.line);
     } else if (this.state !== FIELD_START || this.fields > 0) {
       sink.field(this.partial, 0, this.partial.length);
-      sink.endRecord(this.recordLine);
+      sink.endRecord(this.recordLine, this.line);
     }
     this.state = FIELD_START;
     this.partial = '';

@@ -12,11 +12,16 @@ export type LineEnding = 'lf' | 'crlf' | 'cr' | 'none';
 /** What was detected (or forced through the options) about the file's format. */
 export interface CsvFormat {
   readonly delimiter: Delimiter;
-  /** True when numbers use a decimal comma (`1,5`); then a decimal point is invalid. */
+  /**
+   * The decimal convention of columns the detection sample gave no evidence for: true when
+   * more sampled cells are numbers with a decimal comma (`1,5`) than with a decimal point.
+   * Each column has its own convention (`ColumnInfo.decimalComma`); a comma delimiter
+   * excludes the decimal comma.
+   */
   readonly decimalComma: boolean;
   /** True when the first record holds column names. */
   readonly header: boolean;
-  /** True when the text started with a UTF-8 byte order mark (removed before parsing). */
+  /** True when the text started with a byte order mark (U+FEFF, removed before parsing). */
   readonly bom: boolean;
   readonly lineEnding: LineEnding;
 }
@@ -34,12 +39,20 @@ export interface CellProblems {
 export interface ColumnInfo {
   /** 0-based position in the record. */
   readonly index: number;
-  /** Unique label: the header name without its unit, or "column k" (1-based) when absent. */
+  /**
+   * Unique label: the header name without its unit, or "column k" (1-based) when absent;
+   * names longer than MAX_NAME_CHARS (core/ingest/header.ts) are cut and end in "…".
+   */
   readonly label: string;
-  /** The header cell exactly as written ('' without a header row). */
+  /**
+   * The header cell as written ('' without a header row), with each run of tabs and line
+   * breaks inside it turned into one space and cut after MAX_NAME_CHARS characters.
+   */
   readonly header: string;
   /** Unit taken from brackets or parentheses at the end of the header, if any. */
   readonly unit: string | undefined;
+  /** True when the column's numbers use a decimal comma; then a decimal point is invalid in it. */
+  readonly decimalComma: boolean;
   readonly numericCount: number;
   readonly missingCount: number;
   readonly invalidCount: number;
@@ -71,7 +84,7 @@ export interface ParsedTable {
    * entry per non-numeric column that holds text.
    */
   readonly problems: readonly TableProblem[];
-  /** Lines with no content (or only spaces), which hold no data and are skipped. */
+  /** Lines with no content or only spaces and tabs, which hold no data and are skipped. */
   readonly blankLines: number;
 }
 
@@ -81,6 +94,7 @@ export interface CsvReaderOptions {
   readonly file?: string | undefined;
   readonly delimiter?: Delimiter | undefined;
   readonly header?: boolean | undefined;
+  /** Forces the decimal convention of every column. */
   readonly decimalComma?: boolean | undefined;
 }
 

@@ -3,9 +3,9 @@
  * bytes for the fit record. The only file-system code of the ingest.
  */
 import { createHash } from 'node:crypto';
-import { createReadStream } from 'node:fs';
-import { StringDecoder } from 'node:string_decoder';
+import { createReadStream, statSync, type Stats } from 'node:fs';
 import { InputError } from '../errors';
+import { ByteDecoder } from '../ingest/encoding';
 import { createCsvReader } from '../ingest/reader';
 import type { CsvReaderOptions, ParsedTable } from '../ingest/types';
 
@@ -19,24 +19,53 @@ export type FileTable = ParsedTable & { readonly sha256: string; readonly bytes:
 function readError(err: unknown, file: string): InputError {
   const code = (err as { code?: unknown } | null)?.code;
   const what =
-    code === 'ENOENT' ? 'file not found'
-    : code === 'EACCES' || code === 'EPERM' ? 'no permission to read the file'
-    : code === 'EISDIR' ? 'this is a folder, not a file'
-    : `cannot read the file: ${err instanceof Error ? err.message : String(err)}`;
+    code === 'ENOENT'
+      ? 'file not found'
+      : code === 'EACCES' || code === 'EPERM'
+        ? 'no permission to read the file'
+        : code === 'EISDIR'
+          ? 'this is a folder, not a file'
+          : `cannot read the file: ${err instanceof Error ? err.message : String(err)}`;
   return new InputError(what, { file });
 }
 
+/** What a path that is not a regular file is, in words, with what to do instead. */
+function notRegular(stats: Stats): string {
+  if (stats.isDirectory()) return 'this is a folder, not a file';
+  if (stats.isFIFO()) return 'this is a named pipe (FIFO), not a regular file; Knotwise reads only regular files, or standard input: give - as the data file and redirect the pipe to it';
+  if (stats.isCharacterDevice() || stats.isBlockDevice()) return 'this is a device, not a regular file; Knotwise reads only regular files, or standard input (-)';
+  if (stats.isSocket()) return 'this is a socket, not a regular file; Knotwise reads only regular files, or standard input (-)';
+  return 'this is not a regular file; Knotwise reads only regular files, or standard input (-)';
+}
+
 /**
- * Streams the file through `createCsvReader`: UTF-8 decoding with a StringDecoder (so a
- * character split between two chunks is decoded whole) and SHA-256 (FIPS 180-4) of the
- * raw bytes on the fly; the text is never held whole. Cost O(file size).
+ * Refuses a path that is not a regular file (after following symbolic links) before it is
+ * opened: opening a named pipe for reading waits for a writer, and a device may never
+ * end. Throws InputError naming the path.
+ */
+function requireRegularFile(path: string): void {
+  let stats: Stats;
+  try {
+    stats = statSync(path);
+  } catch (err) {
+    throw readError(err, path);
+  }
+  if (!stats.isFile()) throw new InputError(notRegular(stats), { file: path });
+}
+
+/**
+ * Streams the file through `createCsvReader`: decoding by ByteDecoder (UTF-8, or UTF-16
+ * after its byte order mark; a character split between two chunks is decoded whole) and
+ * SHA-256 (FIPS 180-4) of the raw bytes on the fly; the text is never held whole. Only a
+ * regular file is opened (checked with stat first). Cost O(file size).
  * Throws InputError with the file for read failures and unusable content.
  * Example: const t = await readCsvFile('data.csv'); t.values[0], t.sha256, t.bytes.
  */
 export async function readCsvFile(path: string, options: Omit<CsvReaderOptions, 'file'> = {}): Promise<FileTable> {
+  requireRegularFile(path);
   const reader = createCsvReader({ ...options, file: path });
   const hash = createHash('sha256');
-  const decoder = new StringDecoder('utf8');
+  const decoder = new ByteDecoder(path);
   let bytes = 0;
   try {
     for await (const chunk of createReadStream(path, { highWaterMark: CHUNK_BYTES })) {
@@ -61,7 +90,7 @@ export async function readCsvFile(path: string, options: Omit<CsvReaderOptions, 
  */
 export function readCsvBytes(data: Uint8Array, file: string, options: Omit<CsvReaderOptions, 'file'> = {}): FileTable {
   const reader = createCsvReader({ ...options, file });
-  const decoder = new StringDecoder('utf8');
+  const decoder = new ByteDecoder(file);
   const buf = Buffer.from(data.buffer, data.byteOffset, data.byteLength);
   for (let at = 0; at < buf.length; at += CHUNK_BYTES) reader.push(decoder.write(buf.subarray(at, at + CHUNK_BYTES)));
   reader.push(decoder.end());

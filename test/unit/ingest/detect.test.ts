@@ -1,7 +1,7 @@
 import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { checkNotBinary, detectFormat, detectLineEnding } from '../../../core/ingest/detect';
+import { checkNotBinary, DETECT_CHARS, detectFormat, detectLineEnding, MAX_DETECT_CHARS, sampleLength } from '../../../core/ingest/detect';
 import { InputError } from '../../../core/errors';
 
 const FIXTURES = join(__dirname, '..', '..', 'fixtures', 'csv');
@@ -10,7 +10,10 @@ const fixture = (name: string): string => readFileSync(join(FIXTURES, name), 'ut
 describe('checkNotBinary', () => {
   it('refuses binary.bin (PNG signature and bytes 0..255, written by make-fixtures.R)', () => {
     const text = readFileSync(join(FIXTURES, 'binary.bin')).toString('utf8');
-    assert.throws(() => checkNotBinary(text, 'binary.bin'), (e: unknown) => e instanceof InputError && /looks like a binary file, not CSV text/.test(e.message) && e.place.file === 'binary.bin');
+    assert.throws(
+      () => checkNotBinary(text, 'binary.bin'),
+      (e: unknown) => e instanceof InputError && /looks like a binary file, not CSV text/.test(e.message) && e.place.file === 'binary.bin',
+    );
   });
   it('refuses a NUL anywhere in the first 1024 characters', () => {
     assert.throws(() => checkNotBinary('x,y\n1,2\u0000\n'), /looks like a binary file/);
@@ -26,6 +29,27 @@ describe('checkNotBinary', () => {
   });
   it('looks only at the first 1024 characters', () => {
     checkNotBinary(`${'1,2\n'.repeat(300)}\u0000`);
+  });
+  it('names UTF-16 without a byte order mark, little- and big-endian, instead of calling it binary (The Unicode Standard, section 3.10)', () => {
+    const le = Buffer.from('x,y\n1,2\n3,4\n', 'utf16le');
+    const be = Buffer.from(le).swap16();
+    for (const [bytes, order] of [
+      [le, 'little-endian'],
+      [be, 'big-endian'],
+    ] as const) {
+      assert.throws(
+        () => checkNotBinary(bytes.toString('utf8'), 'u.csv'),
+        (e: unknown) =>
+          e instanceof InputError && e.message.startsWith(`looks like UTF-16 (${order}) text without a byte order mark`) && /save it as UTF-8/.test(e.message) && e.place.file === 'u.csv',
+      );
+    }
+  });
+  it('UTF-16 with its byte order mark read as UTF-8 says the mark was not honoured', () => {
+    const bytes = Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from('x,y\n1,2\n3,4\n', 'utf16le')]);
+    assert.throws(() => checkNotBinary(bytes.toString('utf8')), /: looks like UTF-16 \(little-endian\) text whose byte order mark was not honoured/);
+  });
+  it('NULs in no pattern are binary, not UTF-16', () => {
+    assert.throws(() => checkNotBinary('\u0000\u0000ab\u0000c\u0000\u0000d'), /looks like a binary file/);
   });
 });
 
@@ -43,20 +67,27 @@ describe('detectLineEnding', () => {
 
 describe('detectFormat', () => {
   it('trees.csv (R write.csv): comma, header, decimal point, 3 fields', () => {
-    assert.deepEqual(detectFormat(fixture('trees.csv'), true), { delimiter: ',', decimalComma: false, header: true, lineEnding: 'lf', fieldCount: 3 });
+    assert.deepEqual(detectFormat(fixture('trees.csv'), true), { delimiter: ',', decimalComma: false, columnDecimalComma: [false, false, false], header: true, lineEnding: 'lf', fieldCount: 3 });
   });
   it('trees-semicolon.csv (R write.csv2: ";" separator, "," decimal mark, per ?write.table): semicolon and decimal comma', () => {
-    assert.deepEqual(detectFormat(fixture('trees-semicolon.csv'), true), { delimiter: ';', decimalComma: true, header: true, lineEnding: 'lf', fieldCount: 3 });
+    assert.deepEqual(detectFormat(fixture('trees-semicolon.csv'), true), { delimiter: ';', decimalComma: true, columnDecimalComma: [true, true, true], header: true, lineEnding: 'lf', fieldCount: 3 });
   });
   it('trees-noheader.tsv (R write.table, sep = "\\t", no column names): tab, no header', () => {
-    assert.deepEqual(detectFormat(fixture('trees-noheader.tsv'), true), { delimiter: '\t', decimalComma: false, header: false, lineEnding: 'lf', fieldCount: 3 });
+    assert.deepEqual(detectFormat(fixture('trees-noheader.tsv'), true), {
+      delimiter: '\t',
+      decimalComma: false,
+      columnDecimalComma: [false, false, false],
+      header: false,
+      lineEnding: 'lf',
+      fieldCount: 3,
+    });
   });
   it('cars-bom-crlf.csv (BOM removed by the reader): CRLF', () => {
     const text = fixture('cars-bom-crlf.csv').replace(/^\uFEFF/, '');
-    assert.deepEqual(detectFormat(text, true), { delimiter: ',', decimalComma: false, header: true, lineEnding: 'crlf', fieldCount: 2 });
+    assert.deepEqual(detectFormat(text, true), { delimiter: ',', decimalComma: false, columnDecimalComma: [false, false], header: true, lineEnding: 'crlf', fieldCount: 2 });
   });
   it('1,5;2,25 without a header: semicolon with decimal comma beats comma (which would give "5;2")', () => {
-    assert.deepEqual(detectFormat('1,5;2,25\n3,5;4,75\n', true), { delimiter: ';', decimalComma: true, header: false, lineEnding: 'lf', fieldCount: 2 });
+    assert.deepEqual(detectFormat('1,5;2,25\n3,5;4,75\n', true), { delimiter: ';', decimalComma: true, columnDecimalComma: [true, true], header: false, lineEnding: 'lf', fieldCount: 2 });
   });
   it('semicolon with integers only keeps the decimal point; tab with decimal comma is found', () => {
     assert.equal(detectFormat('a;b\n1;2\n3;4\n', true).decimalComma, false);
@@ -87,9 +118,39 @@ describe('detectFormat', () => {
     assert.equal(d.fieldCount, 2);
     assert.equal(d.delimiter, ';');
   });
+  it('the decimal convention is found per column: points in x, commas in y (examples/fan-temperature-rise.csv)', () => {
+    const d = detectFormat(readFileSync(join(__dirname, '..', '..', '..', 'examples', 'fan-temperature-rise.csv'), 'utf8'), true);
+    assert.equal(d.delimiter, ';');
+    assert.deepEqual(d.columnDecimalComma, [false, true]);
+    assert.equal(d.header, true);
+  });
+  it('a column of integers (or a tie) takes the sample majority; a column with more points keeps the point', () => {
+    const d = detectFormat('a;b;c\n1;2,5;3.5\n4;5,5;6.5\n7;8,5;9\n', true);
+    assert.deepEqual(d.columnDecimalComma, [true, true, false]);
+    assert.equal(d.decimalComma, true);
+    assert.deepEqual(detectFormat('a;b\n1;2.5\n3;4.5\n', true).columnDecimalComma, [false, false]);
+  });
+  it('a comma delimiter excludes the decimal comma in every column', () => {
+    assert.deepEqual(detectFormat('a,b\n"1,5","2,5"\n"3,5","4,5"\n', true).columnDecimalComma, [false, false]);
+  });
+  it('the sample reaches past 64 K to the third line break when the first lines are long, up to 2 M', () => {
+    const header = `${'h'.repeat(DETECT_CHARS)},y\n`;
+    const text = `${header}1,2\n3,4\n${'5,6\n'.repeat(10)}`;
+    assert.equal(sampleLength(text), header.length + 8);
+    assert.equal(sampleLength('x'.repeat(MAX_DETECT_CHARS + 10)), MAX_DETECT_CHARS);
+    assert.equal(sampleLength('x,y\r\n1,2\r\n'), 10);
+    const d = detectFormat(text.slice(0, sampleLength(text)), false);
+    assert.deepEqual([d.delimiter, d.fieldCount, d.header], [',', 2, true]);
+  });
+  it('a first line longer than the largest sample is refused with what is wrong', () => {
+    assert.throws(
+      () => detectFormat('x'.repeat(MAX_DETECT_CHARS), false, { file: 'long.csv' }),
+      (e: unknown) => e instanceof InputError && /^the first line has more than 2,097,152 characters without a line break/.test(e.message) && e.place.line === 1,
+    );
+  });
   it('options win over detection', () => {
     const d = detectFormat('1,5;2,25\n3,5;4,75\n', true, { delimiter: ',', header: true, decimalComma: false });
-    assert.deepEqual(d, { delimiter: ',', decimalComma: false, header: true, lineEnding: 'lf', fieldCount: 3 });
+    assert.deepEqual(d, { delimiter: ',', decimalComma: false, columnDecimalComma: [false, false, false], header: true, lineEnding: 'lf', fieldCount: 3 });
   });
   it('a single column is an InputError at line 1 naming the file', () => {
     assert.throws(

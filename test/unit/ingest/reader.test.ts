@@ -1,6 +1,13 @@
+/**
+ * createCsvReader and parseCsvText (core/ingest/reader.ts). Sources: R's datasets and
+ * write.csv / write.csv2 for the fixtures (test/fixtures/csv/make-fixtures.R); RFC 4180,
+ * section 2, for quoting and line breaks; the blank-line, column-limit, header-name and
+ * quote rules are the house rules of docs/design.md, "Input".
+ */
 import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { MAX_DETECT_CHARS } from '../../../core/ingest/detect';
 import { createCsvReader, parseCsvText } from '../../../core/ingest/reader';
 import type { ParsedTable } from '../../../core/ingest/types';
 import { InputError } from '../../../core/errors';
@@ -54,18 +61,44 @@ describe('parseCsvText with R datasets', () => {
     assertMatchesR(t, R.trees, ['Girth', 'Height', 'Volume']);
     assert.deepEqual(t.format, { delimiter: ',', decimalComma: false, header: true, bom: false, lineEnding: 'lf' });
     assert.deepEqual([t.lines[0], t.lines[30]], [2, 32]);
+    assert.deepEqual(
+      t.columns.map((c) => c.decimalComma),
+      [false, false, false],
+    );
   });
   it('trees-semicolon.csv (write.csv2): decimal comma values equal R', () => {
     const t = parseCsvText(fixture('trees-semicolon.csv'));
     assertMatchesR(t, R.trees, ['Girth', 'Height', 'Volume']);
     assert.equal(t.format.delimiter, ';');
     assert.equal(t.format.decimalComma, true);
+    assert.deepEqual(
+      t.columns.map((c) => c.decimalComma),
+      [true, true, true],
+    );
+  });
+  it('examples/fan-temperature-rise.csv: decimal points in x and decimal commas in y are both read', () => {
+    const text = readFileSync(join(__dirname, '..', '..', '..', 'examples', 'fan-temperature-rise.csv'), 'utf8');
+    const t = parseCsvText(text);
+    assert.deepEqual(
+      t.columns.map((c) => [c.label, c.unit, c.decimalComma]),
+      [
+        ['airflow', 'm3/h', false],
+        ['temperature_rise', 'K', true],
+      ],
+    );
+    assert.equal(t.problems.length, 0);
+    // The second line of the file, read by hand: 4.992;38,711.
+    assert.deepEqual([t.values[0]?.[0], t.values[1]?.[0]], [4.992, 38.711]);
+    assert.equal(t.rowCount, text.trimEnd().split('\n').length - 1);
   });
   it('trees-noheader.tsv: tab, no header, labels "column k", lines from 1', () => {
     const t = parseCsvText(fixture('trees-noheader.tsv'));
     assertMatchesR(t, R.trees, ['column 1', 'column 2', 'column 3']);
     assert.deepEqual(t.format, { delimiter: '\t', decimalComma: false, header: false, bom: false, lineEnding: 'lf' });
-    assert.deepEqual(t.columns.map((c) => c.header), ['', '', '']);
+    assert.deepEqual(
+      t.columns.map((c) => c.header),
+      ['', '', ''],
+    );
     assert.equal(t.lines[0], 1);
   });
   it('cars-bom-crlf.csv: BOM removed and reported, CRLF, 50 rows', () => {
@@ -87,16 +120,25 @@ describe('parseCsvText awkward files', () => {
     const t = parseCsvText(fixture('quoted-multiline.csv'));
     // Lines counted by hand in the fixture file.
     assert.deepEqual([...t.lines], [2, 3, 4, 6, 7, 10]);
-    assert.deepEqual(t.columns.map((c) => c.label), ['time', 'note', 'flow', 'flow (2)', 'column 5']);
-    assert.deepEqual(t.columns.map((c) => c.unit), ['s', undefined, 'L/min', undefined, undefined]);
+    assert.deepEqual(
+      t.columns.map((c) => c.label),
+      ['time', 'note', 'flow', 'flow (2)', 'column 5'],
+    );
+    assert.deepEqual(
+      t.columns.map((c) => c.unit),
+      ['s', undefined, 'L/min', undefined, undefined],
+    );
     assert.deepEqual([...(t.values[2] as Float64Array)], [1.5, 2.5, 3.5, 4.5, 5.5, 6.5]);
-    assert.deepEqual(t.columns.map((c) => c.numeric), [true, false, true, true, false]);
+    assert.deepEqual(
+      t.columns.map((c) => c.numeric),
+      [true, false, true, true, false],
+    );
     assert.deepEqual(t.problems, [
       { line: 2, column: 'note', reason: 'column is not numeric: 5 of 5 filled cells are not numbers, the first: "plain" is not a number' },
       { line: 6, column: 'column 5', reason: 'column is not numeric: 1 of 1 filled cells are not numbers, the first: "x" is not a number' },
     ]);
   });
-  it('problems.csv: wrong field counts, invalid and non-finite cells are all reported by line', () => {
+  it('problems.csv: wrong field counts, invalid, non-finite and overflowing cells are all reported by line', () => {
     const t = parseCsvText(fixture('problems.csv'));
     assert.deepEqual([...t.lines], [2, 3, 4, 6, 7, 9, 10, 11, 12, 13]);
     assert.deepEqual(t.problems, [
@@ -104,7 +146,7 @@ describe('parseCsvText awkward files', () => {
       { line: 5, reason: 'row has 2 fields, but the header has 3' },
       { line: 8, reason: 'row has 4 fields, but the header has 3' },
       { line: 9, column: 'y', reason: '"Inf" is not finite' },
-      { line: 10, column: 'y', reason: '"1e999" is not finite' },
+      { line: 10, column: 'y', reason: '"1e999" is beyond the largest double, about 1.8e308 (it would overflow to infinity, IEEE 754)' },
     ]);
     const y = t.values[1] as Float64Array;
     assert.equal(y[7], 1e308);
@@ -122,11 +164,51 @@ describe('parseCsvText awkward files', () => {
     assert.deepEqual([...t.lines], [3, 4]);
     assert.equal(t.blankLines, 2);
   });
-  it('an unclosed quote is reported for its record', () => {
-    const t = parseCsvText('x,y\n1,2\n3,"4\n5,6\n');
-    assert.equal(t.rowCount, 1);
-    assert.equal(t.problems[0]?.line, 3);
-    assert.match(t.problems[0]?.reason ?? '', /not closed/);
+  it('an unterminated quote refuses the whole file, naming the line where it opened (not one dropped row)', () => {
+    // 50 rows with a quote opened on line 11 and never closed: lines 11 to 51 would be one field.
+    const rows = Array.from({ length: 50 }, (_, i) => (i === 9 ? `${i},"${i}` : `${i},${i * 2}`));
+    assert.throws(
+      () => parseCsvText(`x,y\n${rows.join('\n')}\n`, { file: 'q.csv' }),
+      (e: unknown) =>
+        e instanceof InputError &&
+        e.message.startsWith('unterminated quote: the quoted field that opens on line 11 is not closed before the end of the file (lines 11 to 51 would be one field)') &&
+        e.place.line === 11 &&
+        e.place.column === 'y' &&
+        e.place.file === 'q.csv',
+    );
+  });
+  it('a quote in the header that is never closed is refused too', () => {
+    assert.throws(
+      () => parseCsvText('x,"y\n1,2\n3,4\n'),
+      (e: unknown) => e instanceof InputError && e.place.line === 1 && /unterminated quote/.test(e.message),
+    );
+  });
+  it('a line of spaces before the header is blank, as an empty one is (before: the spaces became the header)', () => {
+    for (const first of ['', '   ', ' \t ', '\t']) {
+      const t = parseCsvText(`${first}\nx,y\n1,2\n3,4\n`);
+      assert.deepEqual(
+        t.columns.map((c) => c.label),
+        ['x', 'y'],
+        JSON.stringify(first),
+      );
+      assert.deepEqual([...t.lines], [3, 4]);
+      assert.equal(t.blankLines, 1);
+    }
+  });
+  it('blank lines of spaces and tabs anywhere are skipped and counted, with lines kept right (CR, CRLF, LF)', () => {
+    const t = parseCsvText('  \r\n\t\rx\ty\n \n1\t2\r\n\t\t\n3\t4\n');
+    assert.deepEqual([...t.lines], [5, 7]);
+    assert.equal(t.blankLines, 4);
+    assert.equal(t.format.delimiter, '\t');
+  });
+  it('more than 64 K of blank lines before the header are counted, not held, and detection sees the content', () => {
+    const blank = ' \n'.repeat(40000);
+    const text = `${blank}x;y\n1,5;2\n3,5;4\n`;
+    const whole = parseCsvText(text);
+    assert.deepEqual([...whole.lines], [40002, 40003]);
+    assert.deepEqual([whole.format.delimiter, whole.format.header, whole.blankLines], [';', true, 40000]);
+    assert.deepEqual(pushAll(text, 4096), whole);
+    assert.deepEqual(pushAll(text, 3), whole);
   });
   it('every missing-value token is missing, not invalid', () => {
     const t = parseCsvText('x,y\n1,\n2,NA\n3,NaN\n4,null\n5,n/a\n6,-\n7, na \n8,N/A\n9,1\n');
@@ -139,7 +221,7 @@ describe('parseCsvText awkward files', () => {
 describe('parseCsvText errors', () => {
   const cases: [string, string, RegExp][] = [
     ['empty.csv', fixture('empty.csv'), /^the file is empty$/],
-    ['blank lines only', '\n \r\n\t\n', /^the file is empty$/],
+    ['blank lines only', '\n \r\n\t\n', /^the file is empty: it holds only blank lines$/],
     ['BOM only', '\uFEFF', /^the file is empty$/],
     ['header-only.csv', fixture('header-only.csv'), /^the file has a header row but no data rows$/],
     ['binary.bin', readFileSync(join(FIXTURES, 'binary.bin')).toString('utf8'), /looks like a binary file, not CSV text/],
@@ -147,9 +229,48 @@ describe('parseCsvText errors', () => {
   ];
   for (const [what, text, message] of cases) {
     it(`${what} is an InputError naming the file`, () => {
-      assert.throws(() => parseCsvText(text, { file: 'in.csv' }), (e: unknown) => e instanceof InputError && message.test(e.message) && e.place.file === 'in.csv');
+      assert.throws(
+        () => parseCsvText(text, { file: 'in.csv' }),
+        (e: unknown) => e instanceof InputError && message.test(e.message) && e.place.file === 'in.csv',
+      );
     });
   }
+});
+
+describe('parseCsvText column limit and names', () => {
+  it('a header of a million columns is refused within the first 2 M characters (the largest detection sample): later chunks are never pushed (counted, not timed)', () => {
+    const r = createCsvReader({ file: 'wide.csv' });
+    const chunk = Array.from({ length: 1000 }, (_, k) => `c${k}`).join(',') + ',';
+    let pushed = 0;
+    assert.throws(
+      () => {
+        // 1000 columns per chunk, 1000 chunks: the header alone would be about 4.9 M characters.
+        for (let i = 0; i < 1000; i++) {
+          r.push(chunk);
+          pushed++;
+        }
+        r.push('\n1,2\n');
+      },
+      (e: unknown) => e instanceof InputError && /^the table is too wide: the header row has more than 10,000 fields/.test(e.message) && e.place.line === 1 && e.place.file === 'wide.csv',
+    );
+    // The reader buffers the detection sample, then the tokenizer stops at field 10,001.
+    assert.ok(pushed * chunk.length < MAX_DETECT_CHARS + chunk.length, `${pushed} chunks pushed`);
+    assert.ok(pushed < 1000);
+  });
+  it('10,000 columns are read', () => {
+    const n = 10000;
+    const t = parseCsvText(`${Array.from({ length: n }, (_, k) => `c${k}`).join(',')}\n${Array.from({ length: n }, (_, k) => k).join(',')}\n${'1,'.repeat(n - 1)}1\n`);
+    assert.equal(t.columns.length, n);
+  });
+  it('a control character in a column name is refused; one in a number cell is rejected with the cell line and column', () => {
+    const rows = Array.from({ length: 30 }, (_, i) => `${i},${i}`).join('\n');
+    assert.throws(
+      () => parseCsvText(`x,y\u0007\n${rows}\n`, { file: 'c.csv' }),
+      (e: unknown) => e instanceof InputError && /^the name of column 2 in the header holds the control character U\+0007/.test(e.message) && e.place.line === 1,
+    );
+    const t = parseCsvText(`x,y\n${rows}\n5,\u00016\n`);
+    assert.deepEqual(t.problems, [{ line: 32, column: 'y', reason: '"\\u00016" holds the control character U+0001 at character 1, which no number holds' }]);
+  });
 });
 
 describe('createCsvReader chunking', () => {
@@ -182,6 +303,27 @@ describe('createCsvReader chunking', () => {
     assert.deepEqual(pushAll(text, 1000), whole);
     assert.deepEqual(pushAll(text, 7), whole);
     assert.equal(whole.lines[whole.rowCount - 1], whole.rowCount + 1);
+  });
+  it('a header line longer than 64 K is read: the detection sample reaches the third line break', () => {
+    const names = Array.from({ length: 9000 }, (_, k) => `column_${k}`);
+    const text = `${names.join(',')}\n${names.map((_, k) => k).join(',')}\n${names.map((_, k) => 2 * k).join(',')}\n`;
+    assert.ok(text.indexOf('\n') > 65536);
+    const t = parseCsvText(text);
+    assert.equal(t.columns.length, 9000);
+    assert.deepEqual([t.rowCount, t.values[8999]?.[1]], [2, 2 * 8999]);
+    assert.deepEqual(pushAll(text, 5000), t);
+  });
+  it('blank lines before the header (CR, CRLF, spaces, tabs) and a BOM: a split at every position gives the same table', () => {
+    const text = `\uFEFF \r\n\t\r\r\n  \n${fixture('problems.csv').replace(/\n/g, '\r\n')}`;
+    const whole = parseCsvText(text);
+    assert.equal(whole.format.bom, true);
+    assert.equal(whole.blankLines, 4);
+    for (let cut = 0; cut <= 40; cut++) {
+      const r = createCsvReader();
+      r.push(text.slice(0, cut));
+      r.push(text.slice(cut));
+      assert.deepEqual(r.finish(), whole, `cut at ${cut}`);
+    }
   });
   it('push after finish is a programming error', () => {
     const r = createCsvReader();

@@ -10,33 +10,36 @@ const FIXTURES = join(__dirname, '..', '..', 'fixtures', 'csv');
 
 interface Tokens {
   records: { line: number; fields: string[] }[];
+  /** Last line of each record (differs from `line` when a quoted field holds line breaks). */
+  lastLines: number[];
   blank: number[];
-  aborted: { line: number; reason: string }[];
+  unclosed: { quoteLine: number; lastLine: number; fieldsBefore: string[] }[];
 }
 
 /** Sink that copies every field, for comparison. */
 class Collector implements RecordSink {
-  readonly out: Tokens = { records: [], blank: [], aborted: [] };
+  readonly out: Tokens = { records: [], lastLines: [], blank: [], unclosed: [] };
   private fields: string[] = [];
   field(s: string, start: number, end: number): void {
     this.fields.push(s.slice(start, end));
   }
-  endRecord(line: number): void {
+  endRecord(line: number, lastLine: number): void {
     this.out.records.push({ line, fields: this.fields });
+    this.out.lastLines.push(lastLine);
     this.fields = [];
   }
   blankLine(line: number): void {
     this.out.blank.push(line);
   }
-  abortRecord(line: number, reason: string): void {
-    this.out.aborted.push({ line, reason });
+  unclosedQuote(quoteLine: number, lastLine: number): void {
+    this.out.unclosed.push({ quoteLine, lastLine, fieldsBefore: this.fields });
     this.fields = [];
   }
 }
 
-function tokenize(chunks: readonly string[], delimiter = ','): Tokens {
+function tokenize(chunks: readonly string[], delimiter = ',', firstLine = 1): Tokens {
   const sink = new Collector();
-  const t = new CsvTokenizer(delimiter, sink);
+  const t = new CsvTokenizer(delimiter, sink, firstLine);
   for (const c of chunks) t.push(c);
   t.finish();
   return sink.out;
@@ -63,14 +66,22 @@ describe('CsvTokenizer', () => {
       'field_name,field_name,field_name\r\naaa,bbb,ccc\r\nzzz,yyy,xxx\r\n',
     ];
     for (const text of examples) {
-      assert.deepEqual(tokenize([text]).records.map((r) => r.fields), papa(text), JSON.stringify(text));
+      assert.deepEqual(
+        tokenize([text]).records.map((r) => r.fields),
+        papa(text),
+        JSON.stringify(text),
+      );
     }
   });
   it('records start on the right physical line after multi-line quoted fields (LF, CRLF, CR)', () => {
     for (const eol of ['\n', '\r\n', '\r']) {
       const text = ['h1,h2', '1,"a', 'b"', '2,"c', '', 'd"', '3,x', ''].join(eol);
       const out = tokenize([text]);
-      assert.deepEqual(out.records.map((r) => r.line), [1, 2, 4, 7], JSON.stringify(eol));
+      assert.deepEqual(
+        out.records.map((r) => r.line),
+        [1, 2, 4, 7],
+        JSON.stringify(eol),
+      );
       assert.deepEqual(out.records[1]?.fields, ['1', `a${eol}b`]);
       assert.deepEqual(out.records[2]?.fields, ['2', `c${eol}${eol}d`]);
     }
@@ -78,34 +89,91 @@ describe('CsvTokenizer', () => {
   it('quoted-multiline.csv: fields equal papaparse and lines count the breaks inside quotes', () => {
     const text = readFileSync(join(FIXTURES, 'quoted-multiline.csv'), 'utf8');
     const out = tokenize([text]);
-    assert.deepEqual(out.records.map((r) => r.fields), papa(text));
+    assert.deepEqual(
+      out.records.map((r) => r.fields),
+      papa(text),
+    );
     // Lines counted by hand in the fixture: records start on 1, 2, 3, 4 (to 5), 6, 7 (to 9), 10.
-    assert.deepEqual(out.records.map((r) => r.line), [1, 2, 3, 4, 6, 7, 10]);
+    assert.deepEqual(
+      out.records.map((r) => r.line),
+      [1, 2, 3, 4, 6, 7, 10],
+    );
   });
   it('empty lines are reported as blank lines, not records', () => {
     const out = tokenize(['a,b\n\n1,2\r\n\r\n\r3,4\n']);
-    assert.deepEqual(out.records.map((r) => r.line), [1, 3, 6]);
+    assert.deepEqual(
+      out.records.map((r) => r.line),
+      [1, 3, 6],
+    );
     assert.deepEqual(out.blank, [2, 4, 5]);
   });
   it('a trailing delimiter gives an empty last field; a missing final line break is fine', () => {
-    assert.deepEqual(tokenize(['1,2,\n3,4,']).records.map((r) => r.fields), [['1', '2', ''], ['3', '4', '']]);
-    assert.deepEqual(tokenize(['1,2']).records.map((r) => r.fields), [['1', '2']]);
-    assert.deepEqual(tokenize(['"1","2"']).records.map((r) => r.fields), [['1', '2']]);
+    assert.deepEqual(
+      tokenize(['1,2,\n3,4,']).records.map((r) => r.fields),
+      [
+        ['1', '2', ''],
+        ['3', '4', ''],
+      ],
+    );
+    assert.deepEqual(
+      tokenize(['1,2']).records.map((r) => r.fields),
+      [['1', '2']],
+    );
+    assert.deepEqual(
+      tokenize(['"1","2"']).records.map((r) => r.fields),
+      [['1', '2']],
+    );
   });
   it('text after a closing quote keeps the quote, so "1"2 is the text 1"2, not the number 12', () => {
-    assert.deepEqual(tokenize(['"1"2,3\n']).records.map((r) => r.fields), [['1"2', '3']]);
-    assert.deepEqual(tokenize(['a"b,3\n']).records.map((r) => r.fields), [['a"b', '3']]);
+    assert.deepEqual(
+      tokenize(['"1"2,3\n']).records.map((r) => r.fields),
+      [['1"2', '3']],
+    );
+    assert.deepEqual(
+      tokenize(['a"b,3\n']).records.map((r) => r.fields),
+      [['a"b', '3']],
+    );
   });
-  it('an unclosed quote aborts the last record with its line', () => {
+  it('an unclosed quote is reported with the line where it opened and the last line (RFC 4180, section 2, rule 5: a quoted field ends at a closing quote)', () => {
     const out = tokenize(['x,y\n1,2\n3,"4\n5,6\n']);
-    assert.deepEqual(out.records.map((r) => r.line), [1, 2]);
-    assert.equal(out.aborted.length, 1);
-    assert.equal(out.aborted[0]?.line, 3);
-    assert.match(out.aborted[0]?.reason ?? '', /not closed before the end of the file/);
+    assert.deepEqual(
+      out.records.map((r) => r.line),
+      [1, 2],
+    );
+    assert.deepEqual(out.unclosed, [{ quoteLine: 3, lastLine: 4, fieldsBefore: ['3'] }]);
+    // Without a final line break the last line is the same; a quote opened on a later line
+    // of a multi-line record is named by its own line.
+    assert.deepEqual(tokenize(['x,y\n3,"4\n5,6']).unclosed, [{ quoteLine: 2, lastLine: 3, fieldsBefore: ['3'] }]);
+    assert.deepEqual(tokenize(['a,"b\nc","d\ne\n']).unclosed, [{ quoteLine: 2, lastLine: 3, fieldsBefore: ['a', 'b\nc'] }]);
+  });
+  it('a record that spans lines reports its first and last line', () => {
+    const out = tokenize(['h\n"a\r\nb",1\r\n2,3']);
+    assert.deepEqual(
+      out.records.map((r) => r.line),
+      [1, 2, 4],
+    );
+    assert.deepEqual(out.lastLines, [1, 3, 4]);
+  });
+  it('starts counting at the first line it is given', () => {
+    const out = tokenize(['x,y\n\n1,2\n'], ',', 5);
+    assert.deepEqual(
+      out.records.map((r) => r.line),
+      [5, 7],
+    );
+    assert.deepEqual(out.blank, [6]);
   });
   it('works with semicolon and tab delimiters', () => {
-    assert.deepEqual(tokenize(['a;"b;c"\n1,5;2\n'], ';').records.map((r) => r.fields), [['a', 'b;c'], ['1,5', '2']]);
-    assert.deepEqual(tokenize(['a\t"b\tc"\n'], '\t').records.map((r) => r.fields), [['a', 'b\tc']]);
+    assert.deepEqual(
+      tokenize(['a;"b;c"\n1,5;2\n'], ';').records.map((r) => r.fields),
+      [
+        ['a', 'b;c'],
+        ['1,5', '2'],
+      ],
+    );
+    assert.deepEqual(
+      tokenize(['a\t"b\tc"\n'], '\t').records.map((r) => r.fields),
+      [['a', 'b\tc']],
+    );
   });
   it('refuses a quote or line break as delimiter', () => {
     assert.throws(() => new CsvTokenizer('"', new Collector()));
@@ -150,16 +218,29 @@ describe('CsvTokenizer', () => {
             at += size;
           }
           const out = tokenize(chunks, delimiter);
-          assert.deepEqual(out.records.map((r) => r.fields), table);
+          assert.deepEqual(
+            out.records.map((r) => r.fields),
+            table,
+          );
           // Expected line of each record: 1 + line breaks written before it (any of CRLF, CR, LF).
           let line = 1;
+          const expectedLast: number[] = [];
           const expected = lines.map((l) => {
             const at = line;
-            line += (l.match(/\r\n|\r|\n/g) ?? []).length + 1;
+            const inside = (l.match(/\r\n|\r|\n/g) ?? []).length;
+            expectedLast.push(at + inside);
+            line += inside + 1;
             return at;
           });
-          assert.deepEqual(out.records.map((r) => r.line), expected);
-          assert.deepEqual(out.records.map((r) => r.fields), papa(text, delimiter));
+          assert.deepEqual(
+            out.records.map((r) => r.line),
+            expected,
+          );
+          assert.deepEqual(out.lastLines, expectedLast);
+          assert.deepEqual(
+            out.records.map((r) => r.fields),
+            papa(text, delimiter),
+          );
         },
       ),
       { numRuns: 1000 },

@@ -57,6 +57,29 @@ describe('readCsvBytes', () => {
     assert.deepEqual(readCsvBytes(inner, path), await readCsvFile(path));
   });
 
+  it('UTF-16 with a byte order mark (LE and BE) reads as from a file, also with a surrogate pair split by the 64 KB chunk boundary', async () => {
+    // After the 2-byte mark, code unit k sits at bytes 2 + 2k: U+1F600 (a surrogate pair,
+    // The Unicode Standard, section 3.9) as code units 32766 and 32767 spans bytes 65534 to 65537.
+    let head = 'x,y,z\n';
+    for (let i = 0; head.length < 32766 - 40; i++) head += `${i},${i % 7},${i}\n`;
+    head += `0,0,${'7'.repeat(32766 - head.length - 5)}\n`;
+    const text = `${head}\u{1F600}x,1,2\n1,2,3\n3,4,5\n`;
+    assert.equal(text.indexOf('\u{1F600}'), 32766);
+    for (const [mark, body] of [
+      [[0xff, 0xfe], Buffer.from(text, 'utf16le')],
+      [[0xfe, 0xff], Buffer.from(text, 'utf16le').swap16()],
+    ] as const) {
+      const bytes = Buffer.concat([Buffer.from(mark), body]);
+      const path = join(dir, 'utf16.csv');
+      writeFileSync(path, bytes);
+      const fromBytes = readCsvBytes(bytes, path);
+      assert.deepEqual(fromBytes, await readCsvFile(path));
+      assert.equal(fromBytes.format.bom, true);
+      assert.deepEqual(fromBytes.columns[0]?.problems.reasons, ['"\u{1F600}x" is not a number'], 'the pair is decoded whole');
+      assert.equal(fromBytes.values[1]?.[fromBytes.rowCount - 1], 4);
+    }
+  });
+
   it('refuses empty and binary input with the name it is given', () => {
     assert.throws(
       () => readCsvBytes(new Uint8Array(0), 'standard input'),
