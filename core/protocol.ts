@@ -14,12 +14,14 @@ import { SHAPES } from './fit/shape';
 import { OUTCOME_LIST } from './registry/outcomes/index';
 import { MAX_TOLERANCE_PERCENT } from './registry/rules/index';
 import type { RuleSpec } from './tune/types';
-import type { FitDetail, ModelChoice, PanelPayload } from './view/model';
+import type { DataStateView, FitDetail, ModelChoice, PanelPayload } from './view/model';
 
 /** Messages from the host to the panel. */
 export type HostMessage =
-  /** A run started or advanced; the panel shows the text and keeps the previous result greyed. */
-  | { readonly type: 'running'; readonly runId: number; readonly message: string }
+  /** The data file this panel belongs to (its URI as text and its name); the panel keeps it in its state so a reloaded window restores it. */
+  | { readonly type: 'file'; readonly uri: string; readonly fileName: string }
+  /** A run started or advanced; the panel shows the text (and how far it is, 0 to 1, when known) and keeps the previous result greyed. */
+  | { readonly type: 'running'; readonly runId: number; readonly message: string; readonly fraction?: number }
   /** A run finished: replace everything shown. */
   | { readonly type: 'result'; readonly payload: PanelPayload }
   /** A run failed or was cancelled; the text says why. */
@@ -29,7 +31,9 @@ export type HostMessage =
   /** Answer to `save`: the files written, as workspace-relative paths, and a line about the table. */
   | { readonly type: 'saved'; readonly requestId: number; readonly files: readonly string[]; readonly note?: string }
   /** Answer to `save` when nothing was written; the text says why. */
-  | { readonly type: 'saveFailed'; readonly requestId: number; readonly message: string };
+  | { readonly type: 'saveFailed'; readonly requestId: number; readonly message: string }
+  /** Whether the data changed since run `runId` (sent after every result and on every change). */
+  | { readonly type: 'dataState'; readonly runId: number; readonly state: DataStateView };
 
 /** Messages from the panel to the host. */
 export type PanelMessage =
@@ -41,12 +45,30 @@ export type PanelMessage =
   | { readonly type: 'choice'; readonly runId: number; readonly rule: RuleSpec; readonly df: number }
   /** Save the curve table and fit record for the current choice. */
   | { readonly type: 'save'; readonly requestId: number; readonly runId: number; readonly rule: RuleSpec }
+  /** The data changed or has unsaved edits: save the data file when needed, run again keeping the rule, then save (one answer: `saved` or `saveFailed`). */
+  | { readonly type: 'refitAndSave'; readonly requestId: number; readonly runId: number; readonly rule: RuleSpec }
+  /** Stop the run in progress. */
+  | { readonly type: 'stop' }
   /** Reveal a 1-based line of the CSV in its editor. */
   | { readonly type: 'revealLine'; readonly line: number }
   /** Run the analysis again with the current settings. */
   | { readonly type: 'rerun' }
   /** Run the analysis again with these model options (they override the settings for this file). */
   | { readonly type: 'model'; readonly runId: number; readonly model: ModelChoice };
+
+/**
+ * What the panel keeps across reloads (the webview's saved state): its data file, the run
+ * it showed, the rule the person chose and the model options set in the panel. After a
+ * window reload the host reads it back to restore the panel, so it is checked like a message.
+ */
+export interface PanelState {
+  /** The data file's URI as text. */
+  readonly file: string;
+  readonly runId?: number;
+  readonly rule?: RuleSpec;
+  /** Present when the panel's controls set the model options (they override the settings for this file). */
+  readonly model?: ModelChoice;
+}
 
 /** Compile-time exhaustiveness check for switches over message tags. */
 export function unreachable(x: never): never {
@@ -147,12 +169,14 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
   switch (o.type) {
     case 'ready':
     case 'rerun':
+    case 'stop':
       return hasExactKeys(o, ['type']);
     case 'needDetail':
       return hasExactKeys(o, ['type', 'runId', 'df']) && isId(o.runId) && isPositive(o.df);
     case 'choice':
       return hasExactKeys(o, ['type', 'runId', 'rule', 'df']) && isId(o.runId) && isPositive(o.df) && isRuleSpec(o.rule);
     case 'save':
+    case 'refitAndSave':
       return hasExactKeys(o, ['type', 'requestId', 'runId', 'rule']) && isId(o.requestId) && isId(o.runId) && isRuleSpec(o.rule);
     case 'revealLine':
       return hasExactKeys(o, ['type', 'line']) && isId(o.line) && o.line >= 1;
@@ -161,6 +185,24 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
     default:
       return false;
   }
+}
+
+/** Longest data file URI a panel state may name. */
+const MAX_URI_TEXT = 8192;
+
+/** True when `s` is a panel's saved state (see PanelState); anything else is ignored when a window restores its panels. */
+export function isPanelState(s: unknown): s is PanelState {
+  const o = plainObject(s);
+  return (
+    o !== undefined &&
+    hasExactKeys(o, ['file'], ['runId', 'rule', 'model']) &&
+    typeof o.file === 'string' &&
+    o.file.length > 0 &&
+    o.file.length <= MAX_URI_TEXT &&
+    (o.runId === undefined || isId(o.runId)) &&
+    (o.rule === undefined || isRuleSpec(o.rule)) &&
+    (o.model === undefined || isModelChoice(o.model))
+  );
 }
 
 /** True when every named field of `o` is an array. */
@@ -190,7 +232,48 @@ function isPanelPayload(p: unknown): p is PanelPayload {
     isRuleSpec(o.rule) &&
     isFiniteNumber(o.tolerancePercent) &&
     typeof o.caution === 'string' &&
-    arrays(o, ['candidates', 'notes', 'warnings', 'grid', 'curves', 'details'])
+    arrays(o, ['candidates', 'notes', 'warnings', 'grid', 'curves', 'details']) &&
+    (o.refit === undefined || isRefitView(o.refit))
+  );
+}
+
+/** True when `r` is a RefitView: its reason and nothing but finite numbers (counts and df positive or zero) and a boolean. */
+function isRefitView(r: unknown): boolean {
+  const o = plainObject(r);
+  return (
+    o !== undefined &&
+    hasExactKeys(o, ['reason', 'rowsBefore', 'rowsNow', 'dfBefore', 'dfNow', 'ruleDropped', 'largestChange', 'atX', 'ySpread']) &&
+    (o.reason === 'saved' || o.reason === 'asked') &&
+    isId(o.rowsBefore) &&
+    isId(o.rowsNow) &&
+    isPositive(o.dfBefore) &&
+    isPositive(o.dfNow) &&
+    typeof o.ruleDropped === 'boolean' &&
+    isFiniteNumber(o.largestChange) &&
+    o.largestChange >= 0 &&
+    isFiniteNumber(o.atX) &&
+    isFiniteNumber(o.ySpread) &&
+    o.ySpread >= 0
+  );
+}
+
+/** True when `s` is a DataStateView with exactly its fields. */
+function isDataState(s: unknown): s is DataStateView {
+  const o = plainObject(s);
+  if (!o || !hasExactKeys(o, ['analysed', 'refit', 'followedOnDisk'], ['change'])) return false;
+  if (o.analysed !== 'disk' && o.analysed !== 'unsaved') return false;
+  if (o.refit !== 'automatic' && o.refit !== 'asked' && o.refit !== 'manual') return false;
+  if (typeof o.followedOnDisk !== 'boolean') return false;
+  if (o.change === undefined) return true;
+  const c = plainObject(o.change);
+  return (
+    c !== undefined &&
+    hasExactKeys(c, ['where', 'added', 'removed', 'changed', 'header']) &&
+    (c.where === 'editor' || c.where === 'disk' || c.where === 'missing') &&
+    isId(c.added) &&
+    isId(c.removed) &&
+    isId(c.changed) &&
+    typeof c.header === 'boolean'
   );
 }
 
@@ -207,9 +290,16 @@ export function isHostMessage(m: unknown): m is HostMessage {
   const o = plainObject(m);
   if (!o) return false;
   switch (o.type) {
+    case 'file':
+      return hasExactKeys(o, ['type', 'uri', 'fileName']) && typeof o.uri === 'string' && o.uri.length <= MAX_URI_TEXT && isText(o.fileName);
     case 'running':
+      return (
+        hasExactKeys(o, ['type', 'runId', 'message'], ['fraction']) && isId(o.runId) && isText(o.message) && (o.fraction === undefined || (isFiniteNumber(o.fraction) && o.fraction >= 0 && o.fraction <= 1))
+      );
     case 'failed':
       return hasExactKeys(o, ['type', 'runId', 'message']) && isId(o.runId) && isText(o.message);
+    case 'dataState':
+      return hasExactKeys(o, ['type', 'runId', 'state']) && isId(o.runId) && isDataState(o.state);
     case 'result':
       return hasExactKeys(o, ['type', 'payload']) && isPanelPayload(o.payload);
     case 'detail':

@@ -67,8 +67,18 @@ export interface FitResult {
   readonly looRmse: number;
   /** Generalised cross-validation score (rss/n) / (1 - df/n)^2. */
   readonly gcv: number;
-  /** Smoothing parameter (smoothing spline only). */
+  /**
+   * Smoothing parameter in the units of x (smoothing spline only); Infinity for the straight
+   * line (df 2), NaN when it is beyond double precision (it grows as the cube of the x
+   * range: x of about 1e100 or 1e-100 and beyond), in which case `lambdaScaled` holds it.
+   */
   readonly lambda?: number;
+  /**
+   * The same smoothing parameter for x mapped to [0, 1] over the data range
+   * (lambda = lambdaScaled * (curve.upper - curve.lower)^3): finite at any scale of x, and
+   * what resampling refits with (smoothing spline only; Infinity for the straight line).
+   */
+  readonly lambdaScaled?: number;
   /** Plain-language notes (tied knots moved, ...). */
   readonly notes: readonly string[];
   /** Present when an outcome family other than Gaussian, shape constraints or robust fitting was used. */

@@ -3,7 +3,8 @@
  * one store when the extension deactivates.
  */
 import * as vscode from 'vscode';
-import { Controller, type KnotwiseApi, type SaveCommandOptions, type TuneCommandOptions, type RunSummary } from './controller';
+import type { KnotwiseApi, RunSummary, SaveCommandOptions, TuneCommandOptions } from './api';
+import { Controller } from './controller';
 import { isTableFile } from './csvSource';
 import { DisposableStore } from './disposables';
 
@@ -29,7 +30,7 @@ export function activate(context: vscode.ExtensionContext): KnotwiseApi {
     vscode.commands.registerCommand(COMMANDS.tune, async (arg?: unknown, options?: TuneCommandOptions) => {
       const uri = controller.targetUri(arg);
       if (!uri || !isTableFile(uri)) return noTarget();
-      return controller.tune(uri, options ?? {}, true);
+      return controller.tune(uri, options ?? {});
     }),
   );
   store.add(

@@ -1,21 +1,34 @@
 /**
  * One webview panel per CSV file: strict CSP with a fresh nonce per render, resources only
  * from dist/webview, messages checked against the protocol. Messages sent before the
- * panel's script is listening are kept (the latest state only) and sent on `ready`.
+ * panel's script is listening are kept (the latest of each kind) and sent on `ready`:
+ * the file, the result, the data state and the status after it. A panel restored after a
+ * window reload is adopted rather than created.
  */
 import { randomBytes } from 'node:crypto';
 import * as vscode from 'vscode';
 import { isPanelMessage, type HostMessage, type PanelMessage } from '../core/protocol';
+import { DisposableStore } from './disposables';
 import { panelHtml } from './html';
+
+/** The view type of Knotwise's panels (also in package.json's activation events). */
+export const PANEL_VIEW_TYPE = 'knotwise.curveReview';
+
+/** How many of the latest messages a panel keeps for the API (tests read them). */
+const LOG_LENGTH = 64;
 
 /** A Knotwise panel showing one file's runs. */
 export class PanelView implements vscode.Disposable {
   private readonly panel: vscode.WebviewPanel;
   private ready = false;
-  /** Latest result and the latest status after it, re-sent when the webview (re)loads. */
+  /** The file, the latest result, its data state and the latest status after it, re-sent when the webview (re)loads. */
+  private lastFile: HostMessage | undefined;
   private lastResult: HostMessage | undefined;
+  private lastDataState: HostMessage | undefined;
   private lastStatus: HostMessage | undefined;
-  private readonly subscriptions: vscode.Disposable[] = [];
+  /** The latest messages posted, oldest first. */
+  readonly log: HostMessage[] = [];
+  private readonly subscriptions = new DisposableStore();
   private closed = false;
 
   constructor(
@@ -23,13 +36,18 @@ export class PanelView implements vscode.Disposable {
     title: string,
     private readonly onMessage: (m: PanelMessage) => void,
     private readonly onClose: () => void,
+    /** A panel the window restored after a reload (see the serializer in controller.ts). */
+    restored?: vscode.WebviewPanel,
   ) {
     const root = vscode.Uri.joinPath(extensionUri, 'dist', 'webview');
-    this.panel = vscode.window.createWebviewPanel('knotwise.curveReview', title, { viewColumn: vscode.ViewColumn.Beside, preserveFocus: false }, {
-      enableScripts: true,
-      localResourceRoots: [root],
-      retainContextWhenHidden: false,
-    });
+    const options = { enableScripts: true, localResourceRoots: [root] };
+    if (restored) {
+      this.panel = restored;
+      restored.title = title;
+      restored.webview.options = options;
+    } else {
+      this.panel = vscode.window.createWebviewPanel(PANEL_VIEW_TYPE, title, { viewColumn: vscode.ViewColumn.Beside, preserveFocus: false }, { ...options, retainContextWhenHidden: false });
+    }
     const webview = this.panel.webview;
     webview.html = panelHtml({
       cspSource: webview.cspSource,
@@ -38,20 +56,23 @@ export class PanelView implements vscode.Disposable {
       styleUri: webview.asWebviewUri(vscode.Uri.joinPath(root, 'main.css')).toString(),
       title,
     });
-    this.subscriptions.push(
+    this.subscriptions.add(
       webview.onDidReceiveMessage((m: unknown) => {
         if (!isPanelMessage(m)) return;
         if (m.type === 'ready') {
           this.ready = true;
-          if (this.lastResult) void webview.postMessage(this.lastResult);
-          if (this.lastStatus) void webview.postMessage(this.lastStatus);
+          for (const kept of [this.lastFile, this.lastResult, this.lastDataState, this.lastStatus]) if (kept) void webview.postMessage(kept);
         }
         this.onMessage(m);
       }),
+    );
+    this.subscriptions.add(
       this.panel.onDidChangeViewState(() => {
         // A hidden webview is unloaded; it says `ready` again when shown.
         if (!this.panel.visible) this.ready = false;
       }),
+    );
+    this.subscriptions.add(
       this.panel.onDidDispose(() => {
         this.closed = true;
         this.onClose();
@@ -64,15 +85,35 @@ export class PanelView implements vscode.Disposable {
     return this.closed;
   }
 
+  /** The editor column the panel is in (undefined when closed or not shown). */
+  get viewColumn(): vscode.ViewColumn | undefined {
+    return this.closed ? undefined : this.panel.viewColumn;
+  }
+
   /** Sends a message now, or when the panel's script is ready. */
   post(message: HostMessage): void {
     if (this.closed) return;
-    if (message.type === 'result') {
-      this.lastResult = message;
-      this.lastStatus = undefined;
-    } else if (message.type === 'running' || message.type === 'failed') {
-      this.lastStatus = message;
+    switch (message.type) {
+      case 'file':
+        this.lastFile = message;
+        break;
+      case 'result':
+        this.lastResult = message;
+        this.lastDataState = undefined;
+        this.lastStatus = undefined;
+        break;
+      case 'dataState':
+        this.lastDataState = message;
+        break;
+      case 'running':
+      case 'failed':
+        this.lastStatus = message;
+        break;
+      default:
+        break;
     }
+    this.log.push(message);
+    if (this.log.length > LOG_LENGTH) this.log.splice(0, this.log.length - LOG_LENGTH);
     if (this.ready) void this.panel.webview.postMessage(message);
   }
 
@@ -85,7 +126,8 @@ export class PanelView implements vscode.Disposable {
   }
 
   dispose(): void {
-    for (const s of this.subscriptions) s.dispose();
+    this.subscriptions.dispose();
     if (!this.closed) this.panel.dispose();
+    this.closed = true;
   }
 }

@@ -2,10 +2,14 @@
  * Saving from the editor: the curve table and the fit record are built by core's
  * buildDeliverables from the same plan the command line would carry out (so the bytes are
  * those of `knotwise fit ... --out <folder>` for the same inputs), then written through
- * workspace.fs, each atomically (a temporary file in the same folder, then a rename). A
- * file Knotwise did not write is replaced only after the person agrees (core/outputs/ownership.ts).
+ * workspace.fs as one set by the same crash-safe protocol as the command line
+ * (core/outputs/commit.ts: temporary files, a commit marker, renames with the record last),
+ * so a host that dies in the middle leaves the old files, the new ones, or a state the next
+ * save or command-line run completes. A file Knotwise did not write is replaced only after
+ * the person agrees (core/outputs/ownership.ts).
  */
 import { createHash, randomBytes } from 'node:crypto';
+import { hostname } from 'node:os';
 import { posix } from 'node:path';
 import * as vscode from 'vscode';
 import { withRule } from '../core/analysis/analysis';
@@ -13,7 +17,7 @@ import type { Analysis, Diagnostics } from '../core/analysis/types';
 import { buildDeliverables, type Deliverables } from '../core/outputs/deliver';
 import { InputError } from '../core/errors';
 import type { Selection } from '../core/ingest/select';
-import { writtenByKnotwise } from '../core/outputs/ownership';
+import { hostTag, runStepsAsync, writeSet, type Step, type Writer } from '../core/outputs/commit';
 import { DEFAULT_OUTPUT, type FitPlan } from '../core/outputs/plan';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec } from '../core/tune/types';
@@ -122,35 +126,67 @@ function cachedDiagnostics(input: SaveInput): Diagnostics | undefined {
   }
 }
 
-async function readBytes(uri: vscode.Uri): Promise<Uint8Array | undefined> {
+/** True when process `pid` is alive on this machine (a process of another user counts as alive). */
+function processAlive(pid: number): boolean {
   try {
-    return await vscode.workspace.fs.readFile(uri);
-  } catch {
-    return undefined;
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
   }
 }
 
-/** True when `target` does not exist or Knotwise wrote it (core/outputs/ownership.ts, with the bytes read through workspace.fs). */
-export async function ownedByKnotwise(target: vscode.Uri, recordUri: vscode.Uri): Promise<boolean> {
-  const bytes = await readBytes(target);
-  const recordBytes = target.toString() === recordUri.toString() ? bytes : await readBytes(recordUri);
-  return writtenByKnotwise(
-    { name: posix.basename(target.path), sha256: bytes ? sha256(bytes) : undefined, isRecord: target.toString() === recordUri.toString() },
-    recordBytes ? new TextDecoder().decode(recordBytes) : undefined,
-  );
+/** Names being written now by this extension host, per output folder (URI). */
+const writing = new Map<string, Set<string>>();
+
+/** The extension host as the protocol's writer in `folder` (the same machine tag as the command line's). */
+function hostWriter(folder: vscode.Uri): Writer {
+  const key = folder.toString();
+  let names = writing.get(key);
+  if (!names) {
+    names = new Set();
+    writing.set(key, names);
+  }
+  return { pid: process.pid, host: hostTag(hostname(), sha256), writing: names, alive: processAlive, now: () => Date.now(), random: () => randomBytes(6).toString('hex'), sha256 };
 }
 
-/** Writes `text` to `target` through a temporary file in the same folder and a rename. */
-export async function writeAtomically(target: vscode.Uri, text: string): Promise<void> {
-  const name = posix.basename(target.path);
-  const tmp = vscode.Uri.joinPath(target, '..', `.${name}.${randomBytes(6).toString('hex')}.knotwise-tmp`);
-  await vscode.workspace.fs.writeFile(tmp, new TextEncoder().encode(text));
-  try {
-    await vscode.workspace.fs.rename(tmp, target, { overwrite: true });
-  } catch (err) {
-    await vscode.workspace.fs.delete(tmp).then(undefined, () => undefined);
-    throw err;
-  }
+/** True for workspace.fs's error of a missing file or folder. */
+function notFound(err: unknown): boolean {
+  return err instanceof vscode.FileSystemError && err.code === 'FileNotFound';
+}
+
+/** Carries out one protocol step in `folder` through workspace.fs; `accept` answers the question about files Knotwise did not write. */
+function folderStep(folder: vscode.Uri, accept: (foreign: readonly string[]) => Promise<boolean>): (step: Step) => Promise<unknown> {
+  const fs = vscode.workspace.fs;
+  const at = (name: string): vscode.Uri => vscode.Uri.joinPath(folder, name);
+  const orMissing = async <T>(run: () => Thenable<T>): Promise<T | undefined> => {
+    try {
+      return await run();
+    } catch (err) {
+      if (notFound(err)) return undefined;
+      throw err;
+    }
+  };
+  return async (step) => {
+    switch (step.op) {
+      case 'list':
+        return ((await orMissing(() => fs.readDirectory(folder))) ?? []).map(([name]) => name);
+      case 'read':
+        return orMissing(() => fs.readFile(at(step.name)));
+      case 'modified':
+        return (await orMissing(() => fs.stat(at(step.name))))?.mtime;
+      case 'makeFolder':
+        return fs.createDirectory(folder);
+      case 'create':
+        return fs.writeFile(at(step.name), new TextEncoder().encode(step.text));
+      case 'rename':
+        return fs.rename(at(step.from), at(step.to), { overwrite: true });
+      case 'remove':
+        return orMissing(() => fs.delete(at(step.name), { useTrash: false }));
+      case 'accept':
+        return accept(step.foreign);
+    }
+  };
 }
 
 /** What a save wrote. */
@@ -180,29 +216,24 @@ export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer
   const out = deliverables(input, folder);
   const record = out.files.find((f) => f.kind === 'record');
   if (!record) throw new Error('buildDeliverables returned no fit record');
-  const recordUri = vscode.Uri.joinPath(folder, record.name);
   const targets = out.files.map((f) => ({ file: f, uri: vscode.Uri.joinPath(folder, f.name) }));
   for (const t of targets) {
     if (t.uri.toString() === input.dataUri.toString()) throw new InputError(`the output name ${t.file.name} would replace the data file; change knotwise.output.tableName or recordName`);
   }
-  const foreign: string[] = [];
-  for (const t of targets) if (!(await ownedByKnotwise(t.uri, recordUri))) foreign.push(vscode.workspace.asRelativePath(t.uri));
-  if (foreign.length) {
-    let yes = answer === 'yes';
-    if (answer === 'ask') {
-      const replace = 'Replace';
-      const picked = await vscode.window.showWarningMessage(
-        `${foreign.join(' and ')} ${foreign.length > 1 ? 'exist and were' : 'exists and was'} not written by Knotwise. Replace with the new curve table and fit record?`,
-        { modal: true },
-        replace,
-      );
-      yes = picked === replace;
-    }
-    if (!yes) return undefined;
-  }
-  await vscode.workspace.fs.createDirectory(folder);
-  // The record last: it vouches for the files written before it.
+  const ask = async (foreign: readonly string[]): Promise<boolean> => {
+    if (answer !== 'ask') return answer === 'yes';
+    const shown = foreign.map((name) => vscode.workspace.asRelativePath(vscode.Uri.joinPath(folder, name)));
+    const replace = 'Replace';
+    const picked = await vscode.window.showWarningMessage(
+      `${shown.join(' and ')} ${shown.length > 1 ? 'exist and were' : 'exists and was'} not written by Knotwise. Replace with the new curve table and fit record?`,
+      { modal: true },
+      replace,
+    );
+    return picked === replace;
+  };
+  const result = await runStepsAsync(writeSet(hostWriter(folder), out.files, record.name), folderStep(folder, ask));
+  if (!result.written) return undefined;
+  // The record last, as written: it vouches for the files before it.
   const order = [...targets.filter((t) => t.file !== record), ...targets.filter((t) => t.file === record)];
-  for (const t of order) await writeAtomically(t.uri, t.file.text);
   return { uris: order.map((t) => t.uri), note: tableNote(out) };
 }

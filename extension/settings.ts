@@ -48,6 +48,10 @@ export interface Settings {
   /** File name patterns; ${name} is the data file's name without its extension. */
   readonly tableName: string;
   readonly recordName: string;
+  /** knotwise.refit.onSave: run an open panel's analysis again when its data file is saved or changes on disk. */
+  readonly refitOnSave: boolean;
+  /** knotwise.refit.askAboveRows: above this many data rows, ask before refitting on save. */
+  readonly refitAskAboveRows: number;
   /** Settings that were ignored, with why. */
   readonly problems: readonly string[];
 }
@@ -80,6 +84,8 @@ export const DEFAULTS = {
   outputFolder: '',
   tableName: '${name}.curve.csv',
   recordName: '${name}.fit.json',
+  refitOnSave: true,
+  refitAskAboveRows: 200_000,
 } as const;
 
 /** Limits of the numeric settings (the resampling limits live in core/registry/resampling/). */
@@ -88,6 +94,7 @@ export const LIMITS = {
   holdoutFraction: [0, 0.5],
   significantDigits: [3, 17],
   seed: [0, 2 ** 32 - 1],
+  refitAskAboveRows: [0, 1e9],
 } as const;
 
 /** Rules a setting may name (the person's own pick is a per-file choice in the panel). */
@@ -150,6 +157,9 @@ export function readSettings(get: SettingReader): Settings {
   const flagRaw = get('table.flagNegative');
   const flagNegative = typeof flagRaw === 'boolean' ? flagRaw : DEFAULTS.flagNegative;
 
+  const refitRaw = get('refit.onSave');
+  const refitOnSave = typeof refitRaw === 'boolean' ? refitRaw : DEFAULTS.refitOnSave;
+
   const tableName = checkName('output.tableName', str('output.tableName', DEFAULTS.tableName), DEFAULTS.tableName, problems);
   const recordName = checkName('output.recordName', str('output.recordName', DEFAULTS.recordName), DEFAULTS.recordName, problems);
 
@@ -170,6 +180,8 @@ export function readSettings(get: SettingReader): Settings {
     outputFolder: str('output.folder', DEFAULTS.outputFolder),
     tableName,
     recordName,
+    refitOnSave,
+    refitAskAboveRows: numIn('refit.askAboveRows', DEFAULTS.refitAskAboveRows, LIMITS.refitAskAboveRows, true),
     problems,
   };
 }

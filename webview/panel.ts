@@ -3,17 +3,20 @@
  * tolerance or pick a df by hand (applied at once with core's selectDf, no round trip),
  * asks the host for residual details it does not have yet, switches the outcome family,
  * shape constraints and robust fitting (the host reruns the analysis), and sends save and
- * reveal-line requests. Every text from the CSV is set with textContent.
+ * reveal-line requests. It shows a run's progress with a Stop button, a failed or
+ * cancelled run with a Run again button, and a banner when the data changed since the
+ * analysis (then saving becomes "Refit and save"). Every text from the CSV is set with
+ * textContent.
  */
 import type { HostMessage } from '../core/protocol';
-import { isRuleSpec, unreachable } from '../core/protocol';
+import { unreachable } from '../core/protocol';
 import { OUTCOME_LIST } from '../core/registry/outcomes/index';
 import { MAX_TOLERANCE_PERCENT, RULE_LIST, ruleWords } from '../core/registry/rules/index';
 import type { Outcome, Shape } from '../core/types';
 import { metricLabel, sig } from '../core/tune/format';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec, Selection } from '../core/tune/types';
-import type { FitDetail, ModelChoice, PanelPayload } from '../core/view/model';
+import type { DataChangeView, DataStateView, FitDetail, ModelChoice, PanelPayload, RefitView } from '../core/view/model';
 import { percent } from '../core/words/numbers';
 import { el, replaceChildren } from './dom';
 import { renderFigures } from './figures';
@@ -38,6 +41,12 @@ export class Panel {
   private readonly requested = new Set<number>();
   private nextRequest = 1;
   private pendingSave: number | undefined;
+  /** The data file this panel belongs to (from the host's `file` message). */
+  private file: { readonly uri: string; readonly fileName: string } | undefined;
+  /** Whether the shown run's data changed since (the host's latest `dataState` for it). */
+  private dataState: DataStateView | undefined;
+  /** True from a `running` message (or a request that starts a run) until the run's result or failure. */
+  private running = false;
 
   constructor(
     private readonly root: HTMLElement,
@@ -57,20 +66,32 @@ export class Panel {
   /** Handles one message from the host. */
   handle(message: HostMessage): void {
     switch (message.type) {
+      case 'file':
+        this.file = { uri: message.uri, fileName: message.fileName };
+        this.keepState();
+        return;
       case 'running':
-        this.root.dataset.state = 'running';
-        this.status(message.message);
+        this.setRunning(true, message.message, message.fraction);
         return;
       case 'result':
         this.show(message.payload);
         return;
       case 'failed':
         if (this.payload && message.runId < this.payload.runId) return;
+        this.running = false;
         this.root.dataset.state = this.payload ? 'ready' : 'failed';
-        this.status(message.message);
-        if (!this.payload) replaceChildren(this.root, el('p', { class: 'kw-error', role: 'alert' }, message.message));
-        // The shown result still stands: its model options go back into the controls.
-        else this.syncModelControls();
+        if (!this.payload) this.renderFailed(message.message);
+        else {
+          this.setRunning(false);
+          this.status(message.message);
+          // The shown result still stands: its model options go back into the controls.
+          this.syncModelControls();
+        }
+        return;
+      case 'dataState':
+        if (!this.payload || message.runId !== this.payload.runId) return;
+        this.dataState = message.state;
+        this.renderDataState();
         return;
       case 'detail':
         if (!this.payload || message.runId !== this.payload.runId) return;
@@ -101,12 +122,108 @@ export class Panel {
     this.details.clear();
     this.requested.clear();
     for (const d of payload.details) this.details.set(d.df, d);
-    this.rule = kept && kept.runId === payload.runId && isRuleSpec(kept.rule) ? kept.rule : payload.rule;
+    this.rule = kept && kept.runId === payload.runId && kept.rule ? kept.rule : payload.rule;
     this.tolerance = this.rule.kind === 'simplest-within' ? this.rule.percent : payload.tolerancePercent;
+    this.dataState = undefined;
+    this.running = false;
     this.root.dataset.state = 'ready';
     this.root.dataset.runId = String(payload.runId);
     this.build(payload);
     this.update();
+    // A save asked for before this run (Refit and save) is still waiting for its answer.
+    this.setSaveBusy(this.pendingSave !== undefined);
+    if (this.pendingSave !== undefined) this.status('Saving…');
+  }
+
+  /** The view before the first result: what the run is doing, how far it is, and a Stop button. */
+  private renderWaiting(message: string, fraction: number | undefined): void {
+    if (!this.root.querySelector('#kw-waiting')) {
+      const stop = el('button', { type: 'button', id: 'kw-stop', class: 'kw-secondary' }, 'Stop');
+      stop.addEventListener('click', () => this.stop());
+      replaceChildren(
+        this.root,
+        el(
+          'section',
+          { id: 'kw-waiting', class: 'kw-waiting', 'aria-label': 'Analysis in progress' },
+          el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }),
+          el('progress', { id: 'kw-progress', max: 1, 'aria-label': 'Progress of the analysis' }),
+          el('div', { class: 'kw-actions' }, stop),
+        ),
+      );
+    }
+    this.status(message);
+    this.setProgress(fraction);
+  }
+
+  /** The view when the first run failed or was cancelled: why, and a Run again button. */
+  private renderFailed(message: string): void {
+    const again = el('button', { type: 'button', id: 'kw-rerun', class: 'kw-primary' }, 'Run again');
+    again.addEventListener('click', () => this.rerun());
+    replaceChildren(this.root, el('p', { class: 'kw-error', role: 'alert', id: 'kw-failure' }, message), el('div', { class: 'kw-actions' }, again), el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }));
+  }
+
+  /** Shows or hides the running state: the status text, the progress bar and the Stop button. */
+  private setRunning(running: boolean, message?: string, fraction?: number): void {
+    this.running = running;
+    if (running) this.root.dataset.state = 'running';
+    this.root.setAttribute('aria-busy', running ? 'true' : 'false');
+    if (!this.payload) {
+      if (running) this.renderWaiting(message ?? 'Running…', fraction);
+      return;
+    }
+    if (message !== undefined) this.status(message);
+    const stop = this.root.querySelector<HTMLButtonElement>('#kw-stop');
+    if (stop) stop.hidden = !running;
+    const progress = this.root.querySelector<HTMLProgressElement>('#kw-progress');
+    if (progress) progress.hidden = !running;
+    if (running) this.setProgress(fraction);
+  }
+
+  /** Sets the progress bar: a fraction from 0 to 1, or indeterminate when unknown. */
+  private setProgress(fraction: number | undefined): void {
+    const progress = this.root.querySelector<HTMLProgressElement>('#kw-progress');
+    if (!progress) return;
+    if (fraction === undefined) progress.removeAttribute('value');
+    else progress.value = fraction;
+  }
+
+  /** The banner about changed data, the note about a file followed on disk, and the save button's label. */
+  private renderDataState(): void {
+    const p = this.payload;
+    const banner = this.root.querySelector<HTMLElement>('#kw-banner');
+    if (!p || !banner) return;
+    const state = this.dataState;
+    const fileName = this.file?.fileName ?? p.source.fileName;
+    const text = state ? bannerText(state, fileName) : '';
+    banner.hidden = text === '';
+    this.byId('kw-banner-text').textContent = text;
+    this.byId('kw-refit').hidden = !(state?.change && state.change.where !== 'missing');
+    const note = this.byId('kw-follow-note');
+    note.hidden = !state?.followedOnDisk;
+    note.textContent = state?.followedOnDisk
+      ? `${fileName} is too large (about 50 MB or more) for the editor to hand its text to extensions, so Knotwise follows the file on disk: edits show here once saved.`
+      : '';
+    this.root.dataset.data = !state ? 'current' : state.change ? `changed-${state.change.where}` : state.analysed === 'unsaved' ? 'unsaved' : 'current';
+    const save = this.byId<HTMLButtonElement>('kw-save');
+    save.textContent = this.needsRefit() ? 'Refit and save' : 'Save table and record';
+    this.setSaveBusy(this.pendingSave !== undefined);
+  }
+
+  /** True when a save must run the analysis again first (the data changed, or the analysis read unsaved edits). */
+  private needsRefit(): boolean {
+    const s = this.dataState;
+    return s !== undefined && (s.change !== undefined || s.analysed === 'unsaved');
+  }
+
+  /** Keeps the file, run, rule and panel-set model options in the webview's state (restored after a window reload). */
+  private keepState(): void {
+    if (!this.file) return;
+    const p = this.payload;
+    this.host.saveState({
+      file: this.file.uri,
+      ...(p ? { runId: p.runId, rule: this.rule } : {}),
+      ...(p?.model.fromPanel ? { model: { outcome: p.model.outcome, shape: [...p.model.shape], robust: p.model.robust } } : {}),
+    });
   }
 
   private currentSelection(): Selection | undefined {
@@ -147,6 +264,7 @@ export class Panel {
         { class: 'kw-actions' },
         el('button', { type: 'button', id: 'kw-save', class: 'kw-primary' }, 'Save table and record'),
         el('button', { type: 'button', id: 'kw-rerun', class: 'kw-secondary' }, 'Run again'),
+        el('button', { type: 'button', id: 'kw-stop', class: 'kw-secondary', hidden: true }, 'Stop'),
       ),
     );
     const rows = `${p.rows.used} rows used` + (p.rows.rejected ? `, ${p.rows.rejected} rejected (see Problems)` : '') + (p.rows.heldOut ? `, ${p.rows.heldOut} held out` : '');
@@ -158,6 +276,13 @@ export class Panel {
         el('h1', {}, `${s.yLabel} against ${s.xLabel}`),
         el('p', { class: 'kw-meta' }, `${s.fileName} · ${rows}${s.weightsLabel ? ` · weights: ${s.weightsLabel}` : ''} · ${p.curveWords} · ${p.resamplingWords}`),
         el('p', { class: 'kw-meta', id: 'kw-model-words' }, `Model: ${p.model.words}${p.model.fromPanel ? ' (set in this panel; the settings say otherwise)' : ''}`),
+        el('p', { class: 'kw-meta', id: 'kw-follow-note', hidden: true }),
+      ),
+      el(
+        'div',
+        { class: 'kw-banner', id: 'kw-banner', role: 'status', hidden: true },
+        el('p', { id: 'kw-banner-text' }),
+        el('button', { type: 'button', id: 'kw-refit', class: 'kw-secondary' }, 'Refit now'),
       ),
       el(
         'section',
@@ -165,10 +290,11 @@ export class Panel {
         el('h2', { id: 'kw-verdict-title' }, 'Chosen flexibility'),
         el('p', { class: 'kw-df-line' }, el('span', { class: 'kw-df-badge', id: 'kw-chosen-df' }), el('span', { id: 'kw-fit-stats', class: 'kw-muted' })),
         el('p', { id: 'kw-reason', 'aria-live': 'polite' }),
+        p.refit ? el('p', { id: 'kw-moved', class: 'kw-moved' }, movedText(p.refit, p)) : null,
         el('ul', { id: 'kw-alternatives', class: 'kw-list' }),
       ),
       controls,
-      el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }),
+      el('div', { class: 'kw-progress-row' }, el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }), el('progress', { id: 'kw-progress', max: 1, hidden: true, 'aria-label': 'Progress of the analysis' })),
       el(
         'section',
         { class: 'kw-warnings', 'aria-labelledby': 'kw-warn-title' },
@@ -198,6 +324,8 @@ export class Panel {
     dfSelect.addEventListener('change', () => this.setRule({ kind: 'pick', df: Number(dfSelect.value) }));
     this.byId('kw-save').addEventListener('click', () => this.save());
     this.byId('kw-rerun').addEventListener('click', () => this.rerun());
+    this.byId('kw-stop').addEventListener('click', () => this.stop());
+    this.byId('kw-refit').addEventListener('click', () => this.rerun());
     for (const input of Array.from(this.root.querySelectorAll<HTMLInputElement | HTMLSelectElement>('#kw-model-controls select, #kw-model-controls input'))) {
       input.addEventListener('change', () => this.modelChanged());
     }
@@ -272,14 +400,18 @@ export class Panel {
     if (!p) return;
     this.enableModelControls();
     const model = this.modelChoice();
-    this.root.dataset.state = 'running';
-    this.status('Tuning again with the new readings and shape…');
+    this.setRunning(true, 'Tuning again with the new readings and shape…');
     this.host.post({ type: 'model', runId: p.runId, model });
   }
 
   private rerun(): void {
-    this.status('Running the analysis again…');
+    this.setRunning(true, 'Running the analysis again…');
     this.host.post({ type: 'rerun' });
+  }
+
+  private stop(): void {
+    this.status('Stopping…');
+    this.host.post({ type: 'stop' });
   }
 
   private setRuleKind(kind: RuleKind): void {
@@ -316,7 +448,7 @@ export class Panel {
       return;
     }
     this.byId<HTMLSelectElement>('kw-df').value = String(sel.df);
-    this.host.saveState({ runId: p.runId, rule: this.rule });
+    this.keepState();
     this.host.post({ type: 'choice', runId: p.runId, rule: this.rule, df: sel.df });
     const detail = this.details.get(sel.df);
     if (!detail && !this.requested.has(sel.df)) {
@@ -438,13 +570,15 @@ export class Panel {
     if (!this.payload || this.pendingSave !== undefined) return;
     this.pendingSave = this.nextRequest++;
     this.setSaveBusy(true);
-    this.status('Saving…');
-    this.host.post({ type: 'save', requestId: this.pendingSave, runId: this.payload.runId, rule: this.rule });
+    const refit = this.needsRefit();
+    this.status(refit ? 'Refitting, then saving…' : 'Saving…');
+    this.host.post({ type: refit ? 'refitAndSave' : 'save', requestId: this.pendingSave, runId: this.payload.runId, rule: this.rule });
   }
 
   private setSaveBusy(busy: boolean): void {
     const b = this.root.querySelector<HTMLButtonElement>('#kw-save');
-    if (b) b.disabled = busy;
+    // Nothing can be saved from data that is no longer on disk.
+    if (b) b.disabled = busy || this.dataState?.change?.where === 'missing';
   }
 
   private onActivate(e: Event): void {
@@ -475,6 +609,47 @@ export class Panel {
     if (!e) throw new Error(`panel element #${id} is missing`);
     return e;
   }
+}
+
+/** "2 rows added, 1 row changed" (or that no data row changed). */
+function changeCounts(c: DataChangeView): string {
+  const rows = (n: number, what: string): string => `${n} row${n === 1 ? '' : 's'} ${what}`;
+  const parts = [c.header ? 'the header line changed' : '', c.added ? rows(c.added, 'added') : '', c.removed ? rows(c.removed, 'removed') : '', c.changed ? rows(c.changed, 'changed') : ''].filter((t) => t !== '');
+  return parts.length ? parts.join(', ') : 'no data row changed (only blank lines, spacing or line endings)';
+}
+
+/** The banner's sentence about the data, or '' when the analysis is of the data as it is now. */
+export function bannerText(state: DataStateView, fileName: string): string {
+  const c = state.change;
+  if (!c) {
+    return state.analysed === 'unsaved'
+      ? `This analysis read unsaved edits of ${fileName}. Review it here; a curve table is saved only from data on disk, so saving first saves ${fileName} and refits.`
+      : '';
+  }
+  if (c.where === 'missing') return `${fileName} is no longer on disk. This analysis stays for review; nothing can be saved from it.`;
+  const next =
+    state.refit === 'asked'
+      ? ' The file is large, so Knotwise asks before refitting (knotwise.refit.askAboveRows).'
+      : state.refit === 'automatic'
+        ? c.where === 'editor'
+          ? ` Saving ${fileName} refits the curve.`
+          : ' Refitting follows.'
+        : '';
+  const where = c.where === 'editor' ? `Unsaved edits in ${fileName} since this analysis` : `${fileName} changed on disk since this analysis`;
+  return `${where}: ${changeCounts(c)}.${next}`;
+}
+
+/** What moved when the analysis ran again on changed data. */
+export function movedText(r: RefitView, p: PanelPayload): string {
+  const why = r.reason === 'saved' ? `Refitted after ${p.source.fileName} changed` : 'Refitted';
+  const rows = r.rowsBefore === r.rowsNow ? `${r.rowsNow} rows as before` : `${r.rowsBefore} → ${r.rowsNow} rows`;
+  const df = r.ruleDropped
+    ? `the earlier choice no longer applies, so the ${ruleWords(p.rule)} chose df ${r.dfNow} (df ${r.dfBefore} before)`
+    : r.dfNow === r.dfBefore
+      ? `the chosen df stayed at ${r.dfNow}`
+      : `the chosen df moved from ${r.dfBefore} to ${r.dfNow}`;
+  const share = r.ySpread > 0 ? ` (${percent(r.largestChange / r.ySpread)} of the spread of ${p.source.yLabel})` : '';
+  return `${why}: ${rows}; ${df}; the curve moved by at most ${sig(r.largestChange, 3)} at ${p.source.xLabel} = ${sig(r.atX, 4)}${share}.`;
 }
 
 function capitalise(s: string): string {

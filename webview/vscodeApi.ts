@@ -1,14 +1,9 @@
 /**
  * The webview side of the host connection: VS Code injects acquireVsCodeApi (the tests
- * stub it). Messages are typed by core/protocol.ts.
+ * stub it). Messages are typed by core/protocol.ts; the saved state is a PanelState,
+ * checked when read back.
  */
-import type { PanelMessage } from '../core/protocol';
-
-/** What the panel keeps across reloads of the webview. */
-export interface SavedState {
-  readonly runId: number;
-  readonly rule: unknown;
-}
+import { isPanelState, type PanelMessage, type PanelState } from '../core/protocol';
 
 interface VsCodeApi {
   postMessage(message: unknown): void;
@@ -21,8 +16,8 @@ declare function acquireVsCodeApi(): VsCodeApi;
 /** Typed wrapper around the host API (acquireVsCodeApi may be called only once). */
 export interface Host {
   post(message: PanelMessage): void;
-  loadState(): SavedState | undefined;
-  saveState(state: SavedState): void;
+  loadState(): PanelState | undefined;
+  saveState(state: PanelState): void;
 }
 
 /** Connects to the host. */
@@ -31,8 +26,8 @@ export function connectHost(): Host {
   return {
     post: (m) => api.postMessage(m),
     loadState: () => {
-      const s = api.getState() as SavedState | undefined;
-      return s && typeof s.runId === 'number' ? s : undefined;
+      const s = api.getState();
+      return isPanelState(s) ? s : undefined;
     },
     saveState: (s) => api.setState(s),
   };

@@ -45,7 +45,12 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   const warnings: string[] = [];
   const design = designInXOrder(fit, xSorted, rootW);
   const out: { -readonly [K in keyof Diagnostics]: Diagnostics[K] } = { influential: influentialRows(fit.leverage, fit.cooksDistance, fit.df, data.lines), warnings };
-  const spread = scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
+  // With no residual df (as many coefficients as rows) the residuals are rounding noise: nothing to check.
+  const interpolates = !(fit.residualDf > 0) || (design !== undefined && design.p >= n);
+  if (n >= 3 && interpolates) {
+    warnings.push(`The residual checks were not run: too few rows for the df (n = ${n}, df = ${fit.df}); a curve with as many coefficients as rows passes through every reading and leaves no residual variation to check.`);
+  }
+  const spread = !interpolates && scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
   if (n >= 3 && spread && checked.gaussianChecks) {
     const sw = shapiroWilk(scaled);
     out.shapiroWilk = sw;
@@ -63,7 +68,7 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
       if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${testText('BP χ²', [bp.df], bp.statistic, bp.pValue)}); the bands assume constant spread. Consider weights.`);
     }
   }
-  const lof = checked.gaussianChecks ? lackOfFit(data.x, data.y, w, fit.rss, fit.df, order) : undefined;
+  const lof = checked.gaussianChecks && !interpolates ? lackOfFit(data.x, data.y, w, fit.rss, fit.df, order) : undefined;
   if (lof) {
     out.lackOfFit = lof;
     if (lof.pValue < CHECK_LEVEL) warnings.push(`The curve misses the means of replicated readings more than their scatter explains (lack-of-fit ${testText('F', [lof.df1, lof.df2], lof.F, lof.pValue)}); a more flexible curve may be needed.`);
@@ -100,14 +105,23 @@ function designInXOrder(fit: FitResult, xSorted: Float64Array, rootW: Float64Arr
   };
 }
 
-/** [1, x] rows at x sorted ascending (scaled by sqrt(w)): the Breusch-Pagan regressors when the model has no finite design. */
+/**
+ * [1, u] rows at x sorted ascending (scaled by sqrt(w)), u = (x - mid) / half mapping the x
+ * range to [-1, 1]: the Breusch-Pagan regressors when the model has no finite design. They
+ * span the same columns as [1, x], so the test is the same, and their squares stay finite
+ * and normal at any scale of x.
+ */
 function lineDesign(xSorted: Float64Array, rootW: Float64Array | undefined): DesignRows {
+  const lo = xSorted[0] as number;
+  const hi = xSorted[xSorted.length - 1] as number;
+  const mid = lo / 2 + hi / 2;
+  const half = hi > lo ? hi / 2 - lo / 2 : 1;
   return {
     p: 2,
     row(j: number, out: Float64Array): void {
       const s = rootW ? (rootW[j] as number) : 1;
       out[0] = s;
-      out[1] = s * (xSorted[j] as number);
+      out[1] = s * (((xSorted[j] as number) - mid) / half);
     },
   };
 }

@@ -62,6 +62,12 @@ export class OrthoPolyBasis implements RowBasis {
     }
   }
 
+  /** The constant 1 is the first column exactly (P_0 = 1 with root-mean-square 1): coefficients (1, 0, ..., 0). */
+  unitCoefficients(out: Float64Array): void {
+    out.fill(0, 0, this.size);
+    out[0] = 1;
+  }
+
   row(x: number, out: Float64Array): number {
     const u = (x - this.mid) / this.half;
     let pPrev = 0;

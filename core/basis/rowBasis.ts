@@ -11,4 +11,13 @@ export interface RowBasis {
   readonly width: number;
   /** Writes the nonzero basis values at x into out[0..width) and returns the index of the first. */
   row(x: number, out: Float64Array): number;
+  /**
+   * Writes the coefficients (length size) of the constant function 1, exactly, when the
+   * basis spans the constants. Fits use it to centre y: they solve for y - mean(y) and add
+   * the mean back through these coefficients, which keeps the digits of a small signal on a
+   * large offset (y = 1e14 + signal). Absent: y is fitted as it is.
+   */
+  unitCoefficients?(out: Float64Array): void;
+  /** The x range where basis function k is nonzero, for messages (bases with local support). */
+  supportOf?(k: number): readonly [number, number];
 }

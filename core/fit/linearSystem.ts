@@ -1,5 +1,5 @@
 import { activeSetCovariance, solveLsi } from '../linalg/lsi';
-import { factorSpd } from '../linalg/spd';
+import { factorSpd, MAX_CONDITION, type SpdFailure } from '../linalg/spd';
 import { congruence, congruenceT, times, transposeTimes } from './linearFit';
 import type { ShapeRows } from './shape';
 
@@ -62,7 +62,7 @@ export class LinearSystem {
     const { p, q, z, aq } = this;
     const gq = z ? congruence(g, z, p, q) : g;
     const rq = z ? transposeTimes(z, rhs, p, q) : rhs;
-    const factor = factorSpd(gq, q, this.what);
+    const factor = factorSpd(gq, q, this.what, (failure) => explainGram(g, p, failure));
     let beta: Float64Array;
     let active: Uint8Array;
     let activeCount = 0;
@@ -96,7 +96,7 @@ export class LinearSystem {
   covarianceFor(g: Float64Array, sol: StepSolution): { cov: Float64Array; rank: number } {
     const { p, q, z } = this;
     const gq = z ? congruence(g, z, p, q) : g;
-    return this.covarianceAt(factorSpd(gq, q, this.what).inverse, sol);
+    return this.covarianceAt(factorSpd(gq, q, this.what, (failure) => explainGram(g, p, failure)).inverse, sol);
   }
 
   private covarianceAt(ginv: Float64Array, sol: StepSolution): { cov: Float64Array; rank: number } {
@@ -104,4 +104,25 @@ export class LinearSystem {
     const { cov, rank } = this.aq && sol.activeCount > 0 ? activeSetCovariance(ginv, q, this.aq, this.rows, sol.active) : { cov: ginv, rank: 0 };
     return { cov: z ? congruenceT(cov, z, p, q) : cov, rank };
   }
+}
+
+/**
+ * What a rank-deficient Gram matrix G = B'WB (p x p, the basis functions' weighted sums of
+ * squares on its diagonal) says about the data, for factorSpd's message: a basis function
+ * no row with positive weight reaches, or one whose rows carry weights too small next to the
+ * others' (in a reweighted fit, the working or Huber weights), else the x values. Cost O(p).
+ * Example: explainGram(Float64Array.of(1, 0, 0, 0), 2, failure) -> 'no row with positive weight ... basis function 2 of 2 ...'.
+ */
+export function explainGram(g: Float64Array, p: number, failure: SpdFailure): string {
+  let big = 0;
+  for (let k = 0; k < p; k++) big = Math.max(big, g[k * p + k] as number);
+  for (let k = 0; k < p; k++) {
+    const d = g[k * p + k] as number;
+    if (!(d > 0)) return `no row with positive weight where basis function ${k + 1} of ${p} is nonzero: the x values leave a gap the curve cannot bridge with this many coefficients`;
+    if (!(d > big / MAX_CONDITION)) {
+      return `weights too small: the rows where basis function ${k + 1} of ${p} is nonzero carry ${(d / big).toExponential(2)} of the weight of the best supported one, too little to determine its coefficient`;
+    }
+  }
+  const how = failure.kind === 'condition' ? `condition number ${failure.condition.toExponential(2)}` : `pivot ${failure.index + 1} of ${failure.size} vanishes`;
+  return `the x values cannot determine this many coefficients (rank deficient: ${how}): too few distinct x values overall, or between some knots, for this df`;
 }

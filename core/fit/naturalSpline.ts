@@ -20,7 +20,7 @@ export function fitNaturalSpline(prepared: PreparedData, df: number): FitResult 
   const basis = new ExtrapolatingBSplineBasis(knots.lower, knots.upper, knots.interior);
   const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
   const lin = fitRowBasis(prepared.data, basis, z, `natural spline with df ${df}`);
-  const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, lin.theta, lin.cov, z);
+  const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, lin.centred, lin.cov, z, lin.offset);
   const allKnots = Float64Array.of(knots.lower, ...knots.interior, knots.upper);
   return summariseFit(prepared.data, {
     kind: 'natural-spline',
@@ -29,6 +29,7 @@ export function fitNaturalSpline(prepared: PreparedData, df: number): FitResult 
     coefficients: lin.theta,
     knots: allKnots,
     fitted: lin.fitted,
+    residuals: lin.residuals,
     leverage: lin.leverage,
     notes: knots.notes,
   });

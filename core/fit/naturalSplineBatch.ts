@@ -5,6 +5,7 @@ import { accumulateRow, buildCells, SUMS_PER_CELL } from './powerSums/cells';
 import { SplineFromSums } from './powerSums/splineSums';
 import type { FitResult } from '../types';
 import { RowBasisCurve } from './linearFit';
+import { fitNaturalSpline } from './naturalSpline';
 import type { PreparedData } from './prepared';
 import { summariseFit } from './summary';
 
@@ -12,8 +13,10 @@ import { summariseFit } from './summary';
  * Natural cubic regression splines at several df at once, for tuning. One pass of per-cell
  * weighted power sums over the union of all candidates' knots gives every candidate's Gram
  * matrix (docs/design.md, "Power sums"); fitted values and leverage then come from the cell cubics in
- * O(n) per candidate without evaluating B-splines row by row. The results equal
- * fitNaturalSpline up to rounding. Returns each df's fit, or the FitError that skipped it.
+ * O(n) per candidate without evaluating B-splines row by row. y is centred at its weighted
+ * mean before the sums are taken (and the mean added back), as fitNaturalSpline does. The
+ * results equal fitNaturalSpline up to rounding. Returns each df's fit, or the FitError that
+ * skipped it (with fitNaturalSpline's account of what the data lacks).
  * Cost O(n) + candidates x O(n).
  */
 export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly number[]): Map<number, FitResult | FitError> {
@@ -36,24 +39,38 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
     x,
     specs.map((s) => Float64Array.of(s.knots.lower, ...s.knots.interior, s.knots.upper)),
   );
+  // y centred at its weighted mean: the sums and the solve see y - mean, which the B-splines
+  // (summing to 1) add back exactly; a small signal on a large offset keeps its digits.
+  let sw = 0;
+  let swy = 0;
+  for (let i = 0; i < n; i++) {
+    const wi = w ? (w[i] as number) : 1;
+    sw += wi;
+    swy += wi * (y[i] as number);
+  }
+  const offset = Number.isFinite(swy / sw) ? swy / sw : 0;
   const sums = new Float64Array((cells.breaks.length - 1) * SUMS_PER_CELL);
-  for (let i = 0; i < n; i++) accumulateRow(sums, cells.cell[i] as number, cells.t[i] as number, y[i] as number, w ? (w[i] as number) : 1);
+  for (let i = 0; i < n; i++) accumulateRow(sums, cells.cell[i] as number, cells.t[i] as number, (y[i] as number) - offset, w ? (w[i] as number) : 1);
   const buf = new Float64Array(4);
   for (const { df, knots, basis } of specs) {
     const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
     const model = new SplineFromSums(cells, basis, z, `natural spline with df ${df}`);
     if (!model.fit(sums)) {
-      out.set(df, new FitError(model.lastError));
+      // The row-by-row fit says what the data lacks (too few rows, weights too small, ...).
+      out.set(df, rowByRowError(prepared, df) ?? new FitError(model.lastError));
       continue;
     }
     const cov = model.covariance();
     const p = basis.size;
     const fitted = new Float64Array(n);
+    const residuals = new Float64Array(n);
     const leverage = new Float64Array(n);
     for (let i = 0; i < n; i++) {
       const c = cells.cell[i] as number;
       const t = cells.t[i] as number;
-      fitted[i] = model.valueAt(c, t);
+      const f = model.valueAt(c, t);
+      fitted[i] = offset + f;
+      residuals[i] = (y[i] as number) - offset - f;
       const first = model.basisAt(c, t, buf);
       let h = 0;
       for (let a = 0; a < 4; a++) {
@@ -63,11 +80,20 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
       }
       leverage[i] = (w ? (w[i] as number) : 1) * h;
     }
-    const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, model.theta, cov, z);
-    out.set(
-      df,
-      summariseFit(data, { kind: 'natural-spline', df, curve, coefficients: model.theta, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, leverage, notes: knots.notes }),
-    );
+    const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, model.theta, cov, z, offset);
+    const coefficients = model.theta.map((c) => c + offset);
+    out.set(df, summariseFit(data, { kind: 'natural-spline', df, curve, coefficients, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, residuals, leverage, notes: knots.notes }));
   }
   return out;
+}
+
+/** The FitError of the row-by-row fit at df (its message names what the data lacks), or undefined when that fit succeeds. */
+function rowByRowError(prepared: PreparedData, df: number): FitError | undefined {
+  try {
+    fitNaturalSpline(prepared, df);
+    return undefined;
+  } catch (e) {
+    if (e instanceof FitError) return e;
+    throw e;
+  }
 }

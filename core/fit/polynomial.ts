@@ -24,15 +24,15 @@ export function fitPolynomial(prepared: PreparedData, df: number): FitResult {
   }
   const basis = new OrthoPolyBasis(sortedX, data.x, df - 1);
   const lin = fitRowBasis(data, basis, undefined, `polynomial with df ${df}`);
-  const curve = new RowBasisCurve('polynomial', df, lower, upper, basis, lin.theta, lin.cov);
-  return summariseFit(data, { kind: 'polynomial', df, curve, coefficients: lin.theta, knots: new Float64Array(0), fitted: lin.fitted, leverage: lin.leverage, notes: [] });
+  const curve = new RowBasisCurve('polynomial', df, lower, upper, basis, lin.centred, lin.cov, undefined, lin.offset);
+  return summariseFit(data, { kind: 'polynomial', df, curve, coefficients: lin.theta, knots: new Float64Array(0), fitted: lin.fitted, residuals: lin.residuals, leverage: lin.leverage, notes: [] });
 }
 
 /** The weighted mean as a df = 1 fit (also valid when all x are equal). */
 function constantFit(prepared: PreparedData): FitResult {
   const { data, sortedX } = prepared;
-  const constant = { size: 1, width: 1, row: (_x: number, out: Float64Array) => ((out[0] = 1), 0) };
+  const constant = { size: 1, width: 1, row: (_x: number, out: Float64Array) => ((out[0] = 1), 0), unitCoefficients: (out: Float64Array) => void (out[0] = 1) };
   const lin = fitRowBasis(data, constant, undefined, 'constant');
-  const curve = new RowBasisCurve('polynomial', 1, sortedX[0] as number, sortedX[sortedX.length - 1] as number, constant, lin.theta, lin.cov);
-  return summariseFit(data, { kind: 'polynomial', df: 1, curve, coefficients: lin.theta, knots: new Float64Array(0), fitted: lin.fitted, leverage: lin.leverage, notes: [] });
+  const curve = new RowBasisCurve('polynomial', 1, sortedX[0] as number, sortedX[sortedX.length - 1] as number, constant, lin.centred, lin.cov, undefined, lin.offset);
+  return summariseFit(data, { kind: 'polynomial', df: 1, curve, coefficients: lin.theta, knots: new Float64Array(0), fitted: lin.fitted, residuals: lin.residuals, leverage: lin.leverage, notes: [] });
 }

@@ -120,10 +120,13 @@ export function shapeRows(knotVector: Float64Array, shapes: readonly Shape[], na
         const sign = shape === 'convex' ? 1 : -1;
         const first = natural ? 3 : 2;
         const last = natural ? p - 2 : p - 1;
+        // Knot differences in units of the knot range: the row's direction is unchanged, and
+        // its entries (of order 1 / spacing^2) neither overflow nor vanish at any scale of x.
+        const range = (t[t.length - 1] as number) - (t[0] as number);
         for (let j = first; j <= last; j++) {
-          const hj = 1 / ((t[j + 3] as number) - (t[j] as number));
-          const hj1 = 1 / ((t[j + 2] as number) - (t[j - 1] as number));
-          const den = (t[j + 2] as number) - (t[j] as number);
+          const hj = range / ((t[j + 3] as number) - (t[j] as number));
+          const hj1 = range / ((t[j + 2] as number) - (t[j - 1] as number));
+          const den = ((t[j + 2] as number) - (t[j] as number)) / range;
           const row = new Float64Array(p);
           row[j] = (sign * hj) / den;
           row[j - 1] = (sign * (-hj - hj1)) / den;

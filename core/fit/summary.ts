@@ -8,8 +8,15 @@ export interface SolvedFit {
   readonly coefficients: Float64Array;
   readonly knots: Float64Array;
   readonly fitted: Float64Array;
+  /**
+   * y - fitted, when the solver has them more accurately than the subtraction here: a fit of
+   * y - c (c the mean of y) gives (y - c) - fitted_c, where fitted = c + fitted_c is rounded
+   * to the precision of c (y = 1e14 + signal). Absent: computed as y - fitted.
+   */
+  readonly residuals?: Float64Array;
   readonly leverage: Float64Array;
   readonly lambda?: number;
+  readonly lambdaScaled?: number;
   readonly notes: readonly string[];
 }
 
@@ -31,7 +38,8 @@ export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
   const { x, y, w } = data;
   const n = x.length;
   const df = solved.df;
-  const residuals = new Float64Array(n);
+  const residuals = solved.residuals ?? new Float64Array(n);
+  const given = solved.residuals !== undefined;
   const cooks = new Float64Array(n);
   let rss = 0;
   let sw = 0;
@@ -39,7 +47,7 @@ export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
   let sumLogW = 0;
   for (let i = 0; i < n; i++) {
     const wi = w ? (w[i] as number) : 1;
-    const r = (y[i] as number) - (solved.fitted[i] as number);
+    const r = given ? (residuals[i] as number) : (y[i] as number) - (solved.fitted[i] as number);
     residuals[i] = r;
     rss += wi * r * r;
     sw += wi;
@@ -98,6 +106,7 @@ export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
     looRmse: looInfinite ? Infinity : Math.sqrt(loo / sw),
     gcv: rss / n / ((1 - df / n) * (1 - df / n)),
     ...(solved.lambda !== undefined ? { lambda: solved.lambda } : {}),
+    ...(solved.lambdaScaled !== undefined ? { lambdaScaled: solved.lambdaScaled } : {}),
     notes,
   };
 }

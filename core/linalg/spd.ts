@@ -3,6 +3,17 @@ import { FitError } from '../errors';
 /** Largest condition number (after unit-diagonal scaling) accepted before a system is called rank deficient. */
 export const MAX_CONDITION = 1e12;
 
+/** Why a matrix was refused, for a caller that can say what the data lacks (see factorSpd's `explain`). */
+export interface SpdFailure {
+  /** 'empty': a zero (or non-finite) diagonal entry; 'pivot': a vanishing Cholesky pivot; 'condition': the condition number above MAX_CONDITION. */
+  readonly kind: 'empty' | 'pivot' | 'condition';
+  /** 0-based row of the diagonal entry or pivot (-1 for 'condition'). */
+  readonly index: number;
+  readonly size: number;
+  /** The condition estimate ('condition' only; NaN otherwise). */
+  readonly condition: number;
+}
+
 /** Result of factorising a small symmetric positive definite matrix. */
 export interface SpdFactor {
   readonly size: number;
@@ -22,14 +33,24 @@ export interface SpdFactor {
  * scaled matrix is estimated from its extreme eigenvalues by power iteration on A and A^-1
  * (Golub & Van Loan, Matrix Computations, 4th ed., section 7.3).
  * Throws FitError naming `what` when the matrix is singular or its condition exceeds
- * MAX_CONDITION (rank deficiency: the data cannot determine every coefficient).
+ * MAX_CONDITION (rank deficiency: the data cannot determine every coefficient); the reason
+ * in the message comes from `explain` when given (a caller that knows the data says what
+ * it lacks: too few rows for the df, weights too small, ...), else it describes the matrix.
  * Cost O(p^3). Example: factorSpd(Float64Array.of(4, 2, 2, 3), 2, 'x').solve(Float64Array.of(2, 1)).
  */
-export function factorSpd(a: Float64Array, p: number, what: string): SpdFactor {
+export function factorSpd(a: Float64Array, p: number, what: string, explain?: (failure: SpdFailure) => string): SpdFactor {
+  const fail = (failure: SpdFailure, plain: string): FitError => new FitError(`${what}: ${explain ? explain(failure) : plain}`);
   const scale = new Float64Array(p);
   for (let i = 0; i < p; i++) {
     const d = a[i * p + i] as number;
-    if (!(d > 0) || !Number.isFinite(d)) throw new FitError(`${what}: basis function ${i + 1} has no support in the data (rank deficient)`);
+    if (!(d > 0) || !Number.isFinite(d)) {
+      throw fail(
+        { kind: 'empty', index: i, size: p, condition: NaN },
+        Number.isFinite(d)
+          ? `coefficient ${i + 1} of ${p} is not determined: no row with positive weight reaches its basis function (rank deficient)`
+          : `coefficient ${i + 1} of ${p}: its sums of squares are not finite (values or weights too large)`,
+      );
+    }
     scale[i] = 1 / Math.sqrt(d);
   }
   const l = new Float64Array(p * p);
@@ -37,7 +58,7 @@ export function factorSpd(a: Float64Array, p: number, what: string): SpdFactor {
     let s = (a[j * p + j] as number) * (scale[j] as number) * (scale[j] as number);
     for (let k = 0; k < j; k++) s -= (l[j * p + k] as number) ** 2;
     if (!(s > 1 / MAX_CONDITION)) {
-      throw new FitError(`${what}: the design is rank deficient (pivot ${j + 1} of ${p} vanishes); the data cannot determine this many coefficients`);
+      throw fail({ kind: 'pivot', index: j, size: p, condition: NaN }, `the design is rank deficient (pivot ${j + 1} of ${p} vanishes); the data cannot determine this many coefficients`);
     }
     const ljj = Math.sqrt(s);
     l[j * p + j] = ljj;
@@ -69,7 +90,10 @@ export function factorSpd(a: Float64Array, p: number, what: string): SpdFactor {
   }
   const condition = estimateCondition(l, linv, p);
   if (!(condition < MAX_CONDITION)) {
-    throw new FitError(`${what}: the design is rank deficient (condition number ${condition.toExponential(2)}); the data cannot determine this many coefficients`);
+    throw fail(
+      { kind: 'condition', index: -1, size: p, condition },
+      `the design is rank deficient (condition number ${condition.toExponential(2)}); the data cannot determine this many coefficients`,
+    );
   }
   return {
     size: p,

@@ -1,14 +1,17 @@
 /**
- * Writing a fit's files: atomically, never over the data file, and never over a file
- * Knotwise did not write unless forced (ownership is read from the neighbouring fit record).
+ * Writing a fit's files: as one set that a kill of the process cannot leave half written
+ * (the protocol of core/outputs/commit.ts, carried out with Node's file system), never over
+ * the data file, and never over a file Knotwise did not write unless forced (ownership is
+ * read from the neighbouring fit record).
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { basename, join, resolve } from 'node:path';
 import type { OutputFile } from '../outputs/deliver';
 import { InputError } from '../errors';
 import { writtenByKnotwise } from '../outputs/ownership';
-import { readIfExists, writeFileAtomic } from './atomicWrite';
+import { runSteps, writeSet } from '../outputs/commit';
+import { folderStep, nodeWriter, readIfExists } from './atomicWrite';
 
 /** Kept here for callers of the command line's module; the rule itself is pure (core/outputs/ownership.ts). */
 export { recordedFiles } from '../outputs/ownership';
@@ -30,27 +33,26 @@ export function isOurs(path: string, recordPath: string): boolean {
 }
 
 /**
- * Writes a fit's files (the record last) into `folder`, each atomically. Refuses
- * (InputError) before writing anything when a file would replace the data file, or would
- * replace a file Knotwise did not write unless `force`. Returns the written paths in order.
+ * Writes a fit's files into `folder` as one set (core/outputs/commit.ts): first an
+ * interrupted earlier write of the folder is completed and left-over temporary files are
+ * removed; then every file is written under a temporary name, a commit marker lists them,
+ * they are renamed into place with the record last, and the marker is removed. Refuses
+ * (InputError) before writing anything of this set when a file would replace the data file,
+ * would replace a file Knotwise did not write unless `force`, or another Knotwise process is
+ * writing the same record. Returns the written paths, the record last.
  */
 export function writeOutputs(folder: string, files: readonly OutputFile[], dataFile: string, force: boolean): string[] {
   const record = files.find((f) => f.kind === 'record');
   if (!record) throw new Error('writeOutputs: no fit record among the files');
-  const recordPath = join(folder, record.name);
   const data = resolve(dataFile);
   for (const f of files) {
     const p = join(folder, f.name);
     if (resolve(p) === data) throw new InputError(`${p} is the data file; refusing to overwrite it`);
-    if (!force && !isOurs(p, recordPath)) {
-      throw new InputError(`${p} exists and was not written by Knotwise; refusing to overwrite it (use --force to replace it)`);
-    }
   }
-  mkdirSync(folder, { recursive: true });
-  const order = [...files.filter((f) => f !== record), record];
-  return order.map((f) => {
-    const p = join(folder, f.name);
-    writeFileAtomic(p, f.text);
-    return p;
-  });
+  const refuse = (foreign: readonly string[]): boolean => {
+    if (force) return true;
+    throw new InputError(`${join(folder, foreign[0] as string)} exists and was not written by Knotwise; refusing to overwrite it (use --force to replace it)`);
+  };
+  runSteps(writeSet(nodeWriter(folder), files, record.name), folderStep(folder, refuse));
+  return [...files.filter((f) => f !== record), record].map((f) => join(folder, f.name));
 }

@@ -49,7 +49,8 @@ export interface DurbinWatsonResult {
  * above). For weighted fits pass sqrt(w)-scaled residuals and design rows.
  *
  * Throws InputError for fewer than 3 residuals, non-finite values, all-zero residuals or
- * a design with p >= n; FitError for a rank-deficient design.
+ * a design with p >= n (too few rows for the df, said in those words); FitError for a
+ * rank-deficient design.
  * Example: durbinWatson(Float64Array.of(1, 1, -1, -1, 1, 1, -1, -1)).statistic = 12 / 8 = 1.5.
  */
 export function durbinWatson(residualsInXOrder: Float64Array, design?: DesignRows): DurbinWatsonResult {
@@ -82,7 +83,11 @@ export function durbinWatsonWith(residualsInXOrder: Float64Array, design: Design
     return { statistic, pValue: pnorm((statistic - 2) / Math.sqrt(4 / n)), method: 'asymptotic' };
   }
   const p = design.p;
-  if (p >= n) throw new InputError(`Durbin-Watson needs more rows (${n}) than design columns (${p})`);
+  if (p >= n) {
+    throw new InputError(
+      `Durbin-Watson: too few rows for the df (n = ${n}, df = ${p}): the test needs more rows (${n}) than design columns (${p}); with as many coefficients as rows the curve passes through every reading and leaves no residual variation to test`,
+    );
+  }
   if (sums && (sums.p !== p || sums.n !== n)) throw new Error(`Durbin-Watson: cross products of ${sums.n} x ${sums.p} given for ${n} rows and ${p} columns`);
   if (n >= DW_EXACT_LIMIT) {
     const moments = momentsFromCrossProducts(sums?.differences ? sums : designCrossProducts(design, n, { differences: true }));
@@ -166,7 +171,7 @@ function exactPValue(d: number, design: DesignRows, qr: GivensQR, n: number): nu
     const nu = eigenvalues[j] as number;
     if (nu > EIGEN_TOLERANCE) lambda[count++] = nu - d;
   }
-  if (count === 0) throw new InputError('Durbin-Watson: the design leaves no residual variation to test');
+  if (count === 0) throw new InputError(`Durbin-Watson: too few rows for the df (n = ${n}, df = ${p}): the design leaves no residual variation to test`);
   return quadraticFormLowerTail(lambda.subarray(0, count));
 }
 

@@ -16,7 +16,7 @@ export interface ResampleProblem {
   readonly kind: CurveKindId;
   /** Candidate df that can be fitted to all tuning rows. */
   readonly dfs: readonly number[];
-  /** Per-candidate numbers from the full fits that the kind's trainers need (the smoothing spline's lambda). */
+  /** Per-candidate numbers from the full fits that the kind's trainers need (the smoothing spline's lambdaScaled: lambda for x mapped to [0, 1] over the range of x). */
   readonly params?: readonly number[] | undefined;
   /** A scheme that draws resamples (bootstrap, folds). */
   readonly resample: ResampleSpec;

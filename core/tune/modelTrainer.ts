@@ -31,8 +31,9 @@ export interface ModelTrainer {
  * all tuning rows, as for every engine candidate), and each resample refits by one
  * constrained least-squares solve (Gaussian with shape), Huber IRLS, or Poisson/binomial
  * IRLS started from the fit to all rows (which saves iterations). Cost per resample:
- * O(n) per reweighting iteration. `y` are the raw outcomes; predictions are mapped to the
- * engine's units by (mu - ymean) / yscale.
+ * O(n) per reweighting iteration. `y` are the raw outcomes; Gaussian fits without
+ * non-negativity refit (y - ymean) / yscale and predict in those units, the others refit y
+ * and map predictions to the engine's units by (mu - ymean) / yscale.
  */
 export function modelTrainer(prepared: PreparedData, y: Float64Array, mb: ModelBasis, model: ResolvedModel, ymean: number, yscale: number): ModelTrainer {
   const { data } = prepared;
@@ -44,6 +45,15 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, mb: ModelB
   const rhs = new Float64Array(p);
   const fitted = new Float64Array(n);
   const fam = outcomeKind(model.outcome).glm;
+  // Gaussian fits without non-negativity are equivariant under y -> (y - ymean) / yscale:
+  // they fit the engine's centred, scaled y, which keeps the digits of a small signal on a
+  // large offset (docs/design.md, "Power sums", step 8); the others fit y as read.
+  const centred = !fam && !model.shape.includes('nonnegative');
+  let yFit = y;
+  if (centred) {
+    yFit = new Float64Array(n);
+    for (let i = 0; i < n; i++) yFit[i] = ((y[i] as number) - ymean) / yscale;
+  }
   const prior = data.w ?? new Float64Array(n).fill(1);
   const freq = new Float64Array(n);
   let start: Float64Array | undefined;
@@ -55,9 +65,9 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, mb: ModelB
     if (model.robustK !== undefined) {
       // Bootstrap multiplicities are copies of rows, not prior weights, for the robust scale and weights.
       for (let i = 0; i < n; i++) freq[i] = Math.round((weights[i] as number) / (prior[i] as number));
-      return huberIrls(rows, system, y, prior, model.robustK, freq).theta;
+      return huberIrls(rows, system, yFit, prior, model.robustK, freq).theta;
     }
-    rows.gram(weights, y, g, rhs);
+    rows.gram(weights, yFit, g, rhs);
     return system.solve(g, rhs).theta;
   };
   return {
@@ -74,10 +84,10 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, mb: ModelB
       }
     },
     predict(i: number): number {
-      return ((fitted[i] as number) - ymean) / yscale;
+      return centred ? (fitted[i] as number) : ((fitted[i] as number) - ymean) / yscale;
     },
     mean(i: number): number {
-      return fitted[i] as number;
+      return centred ? ymean + yscale * (fitted[i] as number) : (fitted[i] as number);
     },
   };
 }
@@ -85,18 +95,19 @@ export function modelTrainer(prepared: PreparedData, y: Float64Array, mb: ModelB
 /**
  * Trainer of one shape-constrained smoothing-spline candidate: each resample refits the rows
  * with positive weight at `lambda`, the smoothing parameter of the candidate's df on all
- * tuning rows (as the unconstrained smoothing spline's resamples do), by
+ * tuning rows for x in units of `unit` (the engine passes the fit's lambdaScaled with unit =
+ * the tuning rows' x range; as the unconstrained smoothing spline's resamples do), by
  * core/fit/shapedSmoothing/. It fits the raw `y` (non-negativity does not survive the
  * engine's centring) and maps predictions to the engine's units by (f - ymean) / yscale.
  * Cost per resample: O(n log n) plus the constrained solve, O(m^3) for m distinct x.
  */
-export function shapedSmoothTrainer(x: Float64Array, y: Float64Array, lambda: number, shapes: readonly Shape[], ymean: number, yscale: number): ModelTrainer {
+export function shapedSmoothTrainer(x: Float64Array, y: Float64Array, lambda: number, shapes: readonly Shape[], ymean: number, yscale: number, unit = 1): ModelTrainer {
   let curve: Curve | undefined;
   return {
     scoring: undefined,
     train(weights: Float64Array): boolean {
       try {
-        curve = shapedSmoothingSplineAtLambda(trainingRows(x, y, weights), lambda, shapes).curve;
+        curve = shapedSmoothingSplineAtLambda(trainingRows(x, y, weights), lambda, shapes, unit).curve;
         return true;
       } catch (e) {
         if (e instanceof FitError) return false;

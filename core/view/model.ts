@@ -187,4 +187,56 @@ export interface PanelPayload {
   readonly curves: readonly CurveView[];
   /** Details of the df `rule` chooses; others are asked for with `needDetail`. */
   readonly details: readonly FitDetail[];
+  /** Present when this run replaced an earlier one of the same file and columns: what moved. */
+  readonly refit?: RefitView;
+}
+
+/**
+ * What changed in the data since the analysis the panel shows: the analysed data rows
+ * (the lines after the header) compared with the current ones as lines, so an edited
+ * value counts as a changed row, a new line as an added row and a deleted line as a
+ * removed row.
+ */
+export interface DataChangeView {
+  /** Where the current data is: unsaved edits in an editor, the file on disk (saved here or written by another program), or no file any more. */
+  readonly where: 'editor' | 'disk' | 'missing';
+  readonly added: number;
+  readonly removed: number;
+  readonly changed: number;
+  /** True when the header line changed. */
+  readonly header: boolean;
+}
+
+/** Whether the analysis the panel shows is of the data as it is now, and what the host does about a change. */
+export interface DataStateView {
+  /** Where the analysed bytes came from: the file on disk, or unsaved edits in an editor (reviewable, but no curve table is saved from them). */
+  readonly analysed: 'disk' | 'unsaved';
+  /** Present when the data changed since the analysis. */
+  readonly change?: DataChangeView;
+  /**
+   * What happens after a change: the host refits when the file is saved (`automatic`), it
+   * asked the person first because the file is large (`asked`), or refit on save is off (`manual`).
+   */
+  readonly refit: 'automatic' | 'asked' | 'manual';
+  /** The file is too large for the editor to hand to extensions: Knotwise follows it on disk only. */
+  readonly followedOnDisk: boolean;
+}
+
+/** What moved when the analysis ran again on changed data, compared with the analysis shown before. */
+export interface RefitView {
+  /** Why it ran again: the data file was saved (or changed on disk), or the person asked. */
+  readonly reason: 'saved' | 'asked';
+  /** Data rows used before and now. */
+  readonly rowsBefore: number;
+  readonly rowsNow: number;
+  /** The df shown before and the df chosen now (by the kept rule, or by the settings' rule when the kept one no longer applies). */
+  readonly dfBefore: number;
+  readonly dfNow: number;
+  /** True when the person's rule (a df picked by hand included) could not be kept and the settings' rule chose. */
+  readonly ruleDropped: boolean;
+  /** Largest |curve now - curve before| over the x range both cover, and the x where it is. */
+  readonly largestChange: number;
+  readonly atX: number;
+  /** Spread of the readings now (largest minus smallest y), to judge the change against. */
+  readonly ySpread: number;
 }

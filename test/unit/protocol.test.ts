@@ -11,10 +11,10 @@ import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../core/analysis/analysis';
-import { isHostMessage, isModelChoice, isPanelMessage, isRuleSpec, MAX_MESSAGE_TEXT, MAX_SAVED_FILES, type HostMessage, type PanelMessage } from '../../core/protocol';
+import { isHostMessage, isModelChoice, isPanelMessage, isPanelState, isRuleSpec, MAX_MESSAGE_TEXT, MAX_SAVED_FILES, type HostMessage, type PanelMessage } from '../../core/protocol';
 import { OUTCOME_LIST } from '../../core/registry/outcomes/index';
 import { RULE_LIST } from '../../core/registry/rules/index';
-import type { FitDetail, PanelPayload } from '../../core/view/model';
+import type { DataStateView, FitDetail, PanelPayload, RefitView } from '../../core/view/model';
 import { buildPanelPayload } from '../../core/view/payload';
 
 const CARS = (JSON.parse(readFileSync(join(__dirname, '..', 'reference', 'fixtures', 'fits.json'), 'utf8')) as { datasets: { cars: { x: number[]; y: number[] } } }).datasets.cars;
@@ -53,6 +53,8 @@ const PANEL_MESSAGES: readonly PanelMessage[] = [
   { type: 'revealLine', line: 134 },
   { type: 'model', runId: 3, model: { outcome: 'counts', shape: ['increasing', 'concave'], robust: false } },
   { type: 'model', runId: 3, model: { outcome: 'continuous', shape: [], robust: true } },
+  { type: 'refitAndSave', requestId: 4, runId: 3, rule: { kind: 'pick', df: 5 } },
+  { type: 'stop' },
 ];
 
 /** The fields of each panel message that must be whole numbers >= 0 (ids) or finite numbers > 0 (df). */
@@ -202,6 +204,9 @@ describe('isModelChoice', () => {
   });
 });
 
+/** What moved in a refit, as the host sends it inside a payload. */
+const REFIT: RefitView = { reason: 'saved', rowsBefore: 50, rowsNow: 52, dfBefore: 4, dfNow: 5, ruleDropped: false, largestChange: 1.5, atX: 12, ySpread: 118 };
+
 describe('isHostMessage', () => {
   let payload: PanelPayload;
   let detail: FitDetail;
@@ -220,6 +225,11 @@ describe('isHostMessage', () => {
       { type: 'saved', requestId: 1, files: ['cars.curve.csv', 'cars.fit.json'] },
       { type: 'saved', requestId: 1, files: ['cars.curve.csv'], note: 'The table has 41 rows.' },
       { type: 'saveFailed', requestId: 2, message: 'Nothing was saved.' },
+      { type: 'file', uri: 'file:///data/cars.csv', fileName: 'cars.csv' },
+      { type: 'running', runId: 4, message: 'Resampling…', fraction: 0.25 },
+      { type: 'dataState', runId: 4, state: { analysed: 'disk', refit: 'automatic', followedOnDisk: false } },
+      { type: 'dataState', runId: 4, state: { analysed: 'unsaved', change: { where: 'editor', added: 2, removed: 0, changed: 1, header: false }, refit: 'asked', followedOnDisk: true } },
+      { type: 'result', payload: { ...payload, refit: REFIT } },
     ];
   });
 
@@ -240,7 +250,7 @@ describe('isHostMessage', () => {
     for (const m of [{ type: 'payload', payload: {} }, { type: 'ready' }, { type: 'Result', payload: {} }, 'result', null, []]) assert.equal(isHostMessage(m), false, JSON.stringify(m));
     for (const m of messages) {
       for (const key of Object.keys(m)) {
-        if (key === 'note') continue;
+        if (key === 'note' || key === 'fraction') continue;
         assert.equal(isHostMessage(withField(m, key, 'missing')), false, `${m.type} without ${key}`);
       }
       assert.equal(isHostMessage(withField(m, 'extra', HUGE)), false, `${m.type} with a huge extra string`);
@@ -288,6 +298,84 @@ describe('isHostMessage', () => {
       ['a huge warning in a detail', { type: 'detail', runId: 4, detail: { ...detail, warnings: [HUGE] } }],
     ];
     for (const [what, m] of broken) assert.equal(isHostMessage(m), false, what);
+    assert.equal(({} as Record<string, unknown>).polluted, undefined, 'checking polluted nothing');
+  });
+
+  it('refuses progress outside 0 to 1, broken data states, broken refit views and URIs too long', () => {
+    const fresh: DataStateView = { analysed: 'disk', refit: 'automatic', followedOnDisk: false };
+    const change = { where: 'disk', added: 1, removed: 0, changed: 2, header: false };
+    const state = (s: unknown): unknown => ({ type: 'dataState', runId: 4, state: s });
+    const broken: [string, unknown][] = [
+      ['fraction above 1', { type: 'running', runId: 4, message: 'x', fraction: 1.5 }],
+      ['fraction below 0', { type: 'running', runId: 4, message: 'x', fraction: -0.1 }],
+      ['fraction NaN', { type: 'running', runId: 4, message: 'x', fraction: NaN }],
+      ['fraction a string', { type: 'running', runId: 4, message: 'x', fraction: '0.5' }],
+      ['an unknown source of the analysed bytes', state({ ...fresh, analysed: 'cloud' })],
+      ['an unknown refit mode', state({ ...fresh, refit: 'always' })],
+      ['followedOnDisk not a boolean', state({ ...fresh, followedOnDisk: 'yes' })],
+      ['a state without refit', state(withField(fresh, 'refit', 'missing'))],
+      ['an extra key in the state', state({ ...fresh, html: '<b>' })],
+      ['a change of unknown place', state({ ...fresh, change: { ...change, where: 'cloud' } })],
+      ['a negative count', state({ ...fresh, change: { ...change, added: -1 } })],
+      ['a fractional count', state({ ...fresh, change: { ...change, changed: 0.5 } })],
+      ['a count NaN', state({ ...fresh, change: { ...change, removed: NaN } })],
+      ['header not a boolean', state({ ...fresh, change: { ...change, header: 1 } })],
+      ['a change without counts', state({ ...fresh, change: withField(change, 'added', 'missing') })],
+      ['a __proto__ key in the change', state(JSON.parse(`{"analysed":"disk","refit":"manual","followedOnDisk":false,"change":{"__proto__":{"polluted":true},${JSON.stringify(change).slice(1)}}`))],
+      ['a change that is text', state({ ...fresh, change: 'rows added' })],
+      ['a file URI too long', { type: 'file', uri: `file:///${'a'.repeat(10000)}.csv`, fileName: 'a.csv' }],
+      ['a file URI that is a number', { type: 'file', uri: 7, fileName: 'a.csv' }],
+    ];
+    for (const [what, m] of broken) assert.equal(isHostMessage(m), false, what);
+    for (const [key, bad] of [
+      ['reason', 'guess'],
+      ['largestChange', NaN],
+      ['largestChange', -1],
+      ['atX', Infinity],
+      ['ySpread', -2],
+      ['dfNow', 0],
+      ['rowsNow', 1.5],
+      ['ruleDropped', 'no'],
+      ['extra', 1],
+    ] as const) {
+      assert.equal(isHostMessage({ type: 'result', payload: { ...payload, refit: { ...REFIT, [key]: bad } } }), false, `refit.${key} = ${String(bad)}`);
+    }
+    assert.equal(isHostMessage({ type: 'result', payload: { ...payload, refit: 'moved' } }), false, 'a refit that is text');
+    assert.equal(({} as Record<string, unknown>).polluted, undefined, 'checking polluted nothing');
+  });
+});
+
+describe('isPanelState', () => {
+  it('accepts the state a panel keeps, also after a JSON round trip', () => {
+    for (const st of [
+      { file: 'file:///data/cars.csv' },
+      { file: 'vscode-remote://host/data/cars.csv', runId: 3, rule: { kind: 'pick', df: 5 } },
+      { file: 'file:///data/cars.csv', runId: 0, rule: { kind: 'one-se' }, model: { outcome: 'counts', shape: ['increasing'], robust: false } },
+    ]) {
+      assert.equal(isPanelState(st), true, JSON.stringify(st));
+      assert.equal(isPanelState(JSON.parse(JSON.stringify(st))), true, `JSON ${JSON.stringify(st)}`);
+    }
+  });
+
+  it('refuses a state without a file, with wrong fields or extra keys, or with prototype keys', () => {
+    for (const st of [
+      undefined,
+      null,
+      'file:///data/cars.csv',
+      {},
+      { file: '' },
+      { file: 7 },
+      { file: `file:///${'a'.repeat(10000)}` },
+      { file: 'file:///a.csv', runId: -1 },
+      { file: 'file:///a.csv', runId: NaN },
+      { file: 'file:///a.csv', rule: { kind: 'lowest' } },
+      { file: 'file:///a.csv', model: { outcome: 'gaussian', shape: [], robust: false } },
+      { file: 'file:///a.csv', html: '<img>' },
+      JSON.parse('{"file":"file:///a.csv","__proto__":{"polluted":true}}'),
+      Object.create({ file: 'file:///a.csv' }) as object,
+    ]) {
+      assert.equal(isPanelState(st), false, JSON.stringify(st)?.slice(0, 80));
+    }
     assert.equal(({} as Record<string, unknown>).polluted, undefined, 'checking polluted nothing');
   });
 });

@@ -485,6 +485,162 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     });
   }
 
+  it('before the first result the panel shows the run with its progress and a Stop button; a failure offers Run again', async function () {
+    const pp = await openPanel(browser, server, mcycle);
+    const page = pp.page;
+    await pp.send({ type: 'file', uri: 'file:///data/mcycle.csv', fileName: 'mcycle.csv' } satisfies HostMessage);
+    await pp.send({ type: 'running', runId: 1, message: 'Tuning 133 rows…' } satisfies HostMessage);
+    assert.equal(await page.textContent('#kw-status'), 'Tuning 133 rows…');
+    assert.equal(await page.getAttribute('#kw-progress', 'value'), null, 'no fraction yet: the bar has no value');
+    await pp.send({ type: 'running', runId: 1, message: 'Resampling…', fraction: 0.4 } satisfies HostMessage);
+    assert.equal(await page.textContent('#kw-status'), 'Resampling…');
+    assert.equal(await page.evaluate('document.querySelector("#kw-progress").value'), 0.4);
+    assert.equal(await page.getAttribute('#knotwise-root', 'aria-busy'), 'true');
+    let mark = pp.sent.length;
+    await page.click('#kw-stop');
+    assert.deepEqual(await pp.waitForSent('stop', mark), { type: 'stop' });
+    await pp.send({ type: 'failed', runId: 1, message: 'Tuning was cancelled.' } satisfies HostMessage);
+    assert.equal(await page.textContent('#kw-failure'), 'Tuning was cancelled.');
+    assert.equal(await page.locator('#kw-progress').count(), 0);
+    mark = pp.sent.length;
+    await page.click('#kw-rerun');
+    assert.deepEqual(await pp.waitForSent('rerun', mark), { type: 'rerun' });
+    // The panel shows the new run at once, before the host's first message about it.
+    assert.equal(await page.textContent('#kw-status'), 'Running the analysis again…');
+    assert.equal(await page.locator('#kw-stop').isVisible(), true);
+    await pp.send({ type: 'result', payload: mcycle.payload });
+    await page.waitForSelector('#knotwise-root[data-state="ready"]');
+    assert.equal(await page.locator('#kw-stop').isVisible(), false);
+    await page.close();
+  });
+
+  it('during a rerun the result stays with the progress and a Stop button; a cancel keeps it and offers Run again', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    assert.equal(await page.locator('#kw-stop').isVisible(), false);
+    assert.equal(await page.locator('#kw-progress').isVisible(), false);
+    await pp.send({ type: 'running', runId: 2, message: 'Resampling…', fraction: 0.5 } satisfies HostMessage);
+    assert.equal(await page.getAttribute('#knotwise-root', 'data-state'), 'running');
+    assert.equal(await page.locator('#kw-progress').isVisible(), true);
+    assert.equal(await page.evaluate('document.querySelector("#kw-progress").value'), 0.5);
+    const mark = pp.sent.length;
+    await page.click('#kw-stop');
+    assert.deepEqual(await pp.waitForSent('stop', mark), { type: 'stop' });
+    await pp.send({ type: 'failed', runId: 2, message: 'Tuning was cancelled. The result shown is from the run before.' } satisfies HostMessage);
+    assert.equal(await page.getAttribute('#knotwise-root', 'data-state'), 'ready');
+    assert.equal(await page.textContent('#kw-status'), 'Tuning was cancelled. The result shown is from the run before.');
+    assert.equal(await page.locator('#kw-stop').isVisible(), false);
+    assert.equal(await page.locator('#kw-progress').isVisible(), false);
+    assert.equal(await page.isEnabled('#kw-rerun'), true);
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${expected(mcycle.payload, mcycle.payload.rule).df}`);
+    await page.close();
+  });
+
+  it('a change to the data shows a banner saying what changed; saving becomes Refit and save; the banner refits', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    assert.equal(await page.locator('#kw-banner').isVisible(), false);
+    assert.equal(await page.textContent('#kw-save'), 'Save table and record');
+    const edited: HostMessage = { type: 'dataState', runId: 1, state: { analysed: 'disk', change: { where: 'editor', added: 2, removed: 0, changed: 1, header: false }, refit: 'automatic', followedOnDisk: false } };
+    // A state about another run is dropped.
+    await pp.send({ ...edited, runId: 7 });
+    assert.equal(await page.locator('#kw-banner').isVisible(), false);
+    await pp.send(edited);
+    assert.equal(await page.locator('#kw-banner').isVisible(), true);
+    assert.equal(await page.textContent('#kw-banner-text'), 'Unsaved edits in mcycle.csv since this analysis: 2 rows added, 1 row changed. Saving mcycle.csv refits the curve.');
+    assert.equal(await page.textContent('#kw-save'), 'Refit and save');
+    assert.equal(await page.getAttribute('#knotwise-root', 'data-data'), 'changed-editor');
+    let mark = pp.sent.length;
+    await page.click('#kw-save');
+    const save = await pp.waitForSent('refitAndSave', mark);
+    assert.deepEqual(save, { type: 'refitAndSave', requestId: (save as { requestId: number }).requestId, runId: 1, rule: mcycle.payload.rule });
+    assert.equal(pp.sent.slice(mark).some((m) => m.type === 'save'), false, 'no plain save was asked for');
+    assert.equal(await page.textContent('#kw-status'), 'Refitting, then saving…');
+    if (save.type === 'refitAndSave') await pp.send({ type: 'saveFailed', requestId: save.requestId, message: 'Nothing was saved: the refit was cancelled.' });
+    mark = pp.sent.length;
+    await page.click('#kw-refit');
+    assert.deepEqual(await pp.waitForSent('rerun', mark), { type: 'rerun' });
+
+    const words: [HostMessage, string][] = [
+      [
+        { type: 'dataState', runId: 1, state: { analysed: 'disk', change: { where: 'disk', added: 0, removed: 3, changed: 0, header: true }, refit: 'asked', followedOnDisk: false } },
+        'mcycle.csv changed on disk since this analysis: the header line changed, 3 rows removed. The file is large, so Knotwise asks before refitting (knotwise.refit.askAboveRows).',
+      ],
+      [
+        { type: 'dataState', runId: 1, state: { analysed: 'disk', change: { where: 'disk', added: 1, removed: 0, changed: 0, header: false }, refit: 'manual', followedOnDisk: false } },
+        'mcycle.csv changed on disk since this analysis: 1 row added.',
+      ],
+      [
+        { type: 'dataState', runId: 1, state: { analysed: 'disk', change: { where: 'disk', added: 0, removed: 0, changed: 0, header: false }, refit: 'automatic', followedOnDisk: false } },
+        'mcycle.csv changed on disk since this analysis: no data row changed (only blank lines, spacing or line endings). Refitting follows.',
+      ],
+      [
+        { type: 'dataState', runId: 1, state: { analysed: 'unsaved', refit: 'automatic', followedOnDisk: false } },
+        'This analysis read unsaved edits of mcycle.csv. Review it here; a curve table is saved only from data on disk, so saving first saves mcycle.csv and refits.',
+      ],
+    ];
+    for (const [m, text] of words) {
+      await pp.send(m);
+      assert.equal(await page.textContent('#kw-banner-text'), text);
+      assert.equal(await page.textContent('#kw-save'), 'Refit and save');
+    }
+    assert.equal(await page.locator('#kw-refit').isVisible(), false, 'nothing to refit: the analysed edits are the data');
+    // The file is gone: nothing can be saved, nothing refitted.
+    await pp.send({ type: 'dataState', runId: 1, state: { analysed: 'disk', change: { where: 'missing', added: 0, removed: 0, changed: 0, header: false }, refit: 'automatic', followedOnDisk: false } });
+    assert.equal(await page.textContent('#kw-banner-text'), 'mcycle.csv is no longer on disk. This analysis stays for review; nothing can be saved from it.');
+    assert.equal(await page.isDisabled('#kw-save'), true);
+    assert.equal(await page.locator('#kw-refit').isVisible(), false);
+    // Back to the data as analysed (an undo): no banner, a plain save.
+    await pp.send({ type: 'dataState', runId: 1, state: { analysed: 'disk', refit: 'automatic', followedOnDisk: true } });
+    assert.equal(await page.locator('#kw-banner').isVisible(), false);
+    assert.equal(await page.textContent('#kw-save'), 'Save table and record');
+    assert.equal(await page.isEnabled('#kw-save'), true);
+    assert.match((await page.textContent('#kw-follow-note')) ?? '', /^mcycle\.csv is too large .* Knotwise follows the file on disk/);
+    assert.equal(await page.locator('#kw-follow-note').isVisible(), true);
+    // A new result starts without a banner.
+    await pp.send(edited);
+    await pp.send({ type: 'result', payload: { ...mcycle.payload, runId: 2 } });
+    assert.equal(await page.locator('#kw-banner').isVisible(), false);
+    assert.equal(await page.textContent('#kw-save'), 'Save table and record');
+    assert.deepEqual(await pp.cspViolations(), []);
+    await page.screenshot({ path: join(artifacts, 'webview-banner.png') });
+    await page.close();
+  });
+
+  it('a refit says what moved: rows, the chosen df and the largest change of the curve', async function () {
+    const payload: PanelPayload = { ...mcycle.payload, refit: { reason: 'saved', rowsBefore: 133, rowsNow: 135, dfBefore: 8, dfNow: 9, ruleDropped: false, largestChange: 4.25, atX: 31.2, ySpread: 270.1 } };
+    const pp = await shown({ ...mcycle, payload });
+    assert.equal(
+      await pp.page.textContent('#kw-moved'),
+      'Refitted after mcycle.csv changed: 133 → 135 rows; the chosen df moved from 8 to 9; the curve moved by at most 4.25 at times = 31.2 (1.57 % of the spread of accel).',
+    );
+    await pp.send({ type: 'result', payload: { ...payload, runId: 2, refit: { ...payload.refit, rowsNow: 133, dfNow: 8, reason: 'asked', largestChange: 0, ySpread: 0 } as PanelPayload['refit'] } });
+    assert.equal(await pp.page.textContent('#kw-moved'), 'Refitted: 133 rows as before; the chosen df stayed at 8; the curve moved by at most 0 at times = 31.2.');
+    await pp.send({ type: 'result', payload: { ...mcycle.payload, runId: 3 } });
+    assert.equal(await pp.page.locator('#kw-moved').count(), 0, 'a first run says nothing about moving');
+    await pp.page.close();
+  });
+
+  it('the panel keeps its file, run, rule and the model options set in it, for a reloaded window', async function () {
+    const pp = await openPanel(browser, server, mcycle);
+    const page = pp.page;
+    await pp.send({ type: 'file', uri: 'file:///data/mcycle.csv', fileName: 'mcycle.csv' } satisfies HostMessage);
+    assert.deepEqual(await page.evaluate('window.__knotwiseState()'), { file: 'file:///data/mcycle.csv' });
+    await pp.send({ type: 'result', payload: mcycle.payload });
+    assert.deepEqual(await page.evaluate('window.__knotwiseState()'), { file: 'file:///data/mcycle.csv', runId: 1, rule: mcycle.payload.rule });
+    await page.selectOption('#kw-df', '6');
+    assert.deepEqual(await page.evaluate('window.__knotwiseState()'), { file: 'file:///data/mcycle.csv', runId: 1, rule: { kind: 'pick', df: 6 } });
+    const fromPanel: PanelPayload = { ...mcycle.payload, runId: 2, rule: { kind: 'pick', df: 6 }, model: { ...mcycle.payload.model, shape: ['nonnegative'], fromPanel: true } };
+    await pp.send({ type: 'result', payload: fromPanel });
+    assert.deepEqual(await page.evaluate('window.__knotwiseState()'), {
+      file: 'file:///data/mcycle.csv',
+      runId: 2,
+      rule: { kind: 'pick', df: 6 },
+      model: { outcome: 'continuous', shape: ['nonnegative'], robust: false },
+    });
+    await page.close();
+  });
+
   it('no request left 127.0.0.1', function () {
     assert.deepEqual(browser.blocked, []);
   });

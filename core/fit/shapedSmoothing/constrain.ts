@@ -32,7 +32,7 @@ export function constrain(pooled: Pooled, base: FitResult, shapes: readonly Shap
     model: { ...model, constraints: { total: rows.rows, active: 0, effectiveDf: base.df } },
   });
   if (satisfies(rows, base.coefficients, FEASIBILITY_TOLERANCE * maxAbs(base.coefficients))) return unchanged();
-  const system = base.lambda === Infinity ? lineSystem(pooled) : penalisedSystem(pooled, base.lambda as number);
+  const system = base.lambdaScaled === Infinity ? lineSystem(pooled) : penalisedSystem(pooled, base.lambdaScaled as number);
   const sol = solveConstrained(system, rows);
   if (sol.activeCount === 0) return unchanged();
   const { theta, band } = system.toSpline(sol.beta, sol.band);
@@ -73,6 +73,7 @@ export function constrain(pooled: Pooled, base: FitResult, shapes: readonly Shap
     fitted,
     leverage,
     lambda: base.lambda as number,
+    lambdaScaled: base.lambdaScaled as number,
     notes,
   });
   return { ...fit, model: { ...model, converged: sol.converged, constraints: { total: rows.rows, active: sol.rank, effectiveDf: trace } } };

@@ -56,17 +56,18 @@ export function fitShapedSmoothingSpline(data: XYData, df: number, shapes: reado
 }
 
 /**
- * As `fitShapedSmoothingSpline` at a fixed smoothing parameter `lambda` (x units, as reported
- * by `lambdaForDf`; Infinity = the straight line): the resampling engine refits each resample
- * at the lambda of all tuning rows this way. Same checks, cost and output; df is the
- * unconstrained trace at this lambda.
+ * As `fitShapedSmoothingSpline` at a fixed smoothing parameter `lambda` for x in units of
+ * `unit` (default 1: x units, as reported by `lambdaForDf`; Infinity = the straight line;
+ * see `smoothingSplineAtLambda`): the resampling engine refits each resample at the
+ * `lambdaScaled` of all tuning rows, with unit = their x range, this way. Same checks, cost
+ * and output; df is the unconstrained trace at this lambda.
  * @example shapedSmoothingSplineAtLambda({ x, y }, lambdaForDf({ x, y }, 5), ['convex']).curve.value(2)
  */
-export function shapedSmoothingSplineAtLambda(data: XYData, lambda: number, shapes: readonly Shape[]): FitResult {
+export function shapedSmoothingSplineAtLambda(data: XYData, lambda: number, shapes: readonly Shape[], unit = 1): FitResult {
   const list = checkShapes(shapes);
   const pooled = poolTies(data);
   if (list.length > 0) checkShapedSmoothingSize(pooled.m);
-  return constrain(pooled, smoothingSplineAtLambda(data, lambda), list);
+  return constrain(pooled, smoothingSplineAtLambda(data, lambda, unit), list);
 }
 
 /**
@@ -79,7 +80,9 @@ export function shapedSmoothingSplineAtLambda(data: XYData, lambda: number, shap
  */
 export function penalisedCoefficients(data: XYData, lambda: number): Float64Array {
   if (!(lambda > 0) || !Number.isFinite(lambda)) throw new FitError(`smoothing spline lambda must be a positive finite number; got ${lambda}`);
-  const sys = penalisedSystem(poolTies(data), lambda);
+  const pooled = poolTies(data);
+  const range = (pooled.u[pooled.m - 1] as number) - (pooled.u[0] as number);
+  const sys = penalisedSystem(pooled, lambda / range / range / range);
   const theta = Float64Array.from(sys.d);
   backSolve(sys.r, sys.q, sys.w, theta);
   return theta;

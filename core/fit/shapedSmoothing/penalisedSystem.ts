@@ -9,16 +9,16 @@ import { BAND, scaledKnots, type BandSystem } from './bandSystem';
 import { maxAbs } from './vectors';
 
 /**
- * Data and penalty rows of the smoothing spline at finite lambda (x units), q = m + 2
- * coefficients, bandwidth 4, accumulated into the band factor (Lawson & Hanson 1974,
- * chapter 27; the penalty rows as in core/fit/shapedSmoothing/index.ts, step 2). Throws
- * FitError when the penalised problem is singular to working precision. Cost O(m).
- * @example penalisedSystem(poolTies(data), lambdaForDf(data, 5)).r // the band of R
+ * Data and penalty rows of the smoothing spline at finite lambdaT, the smoothing parameter
+ * for x mapped to [0, 1] over its range (a fit's `lambdaScaled`; lambda in x units is
+ * lambdaT range^3 and may be beyond double precision), q = m + 2 coefficients, bandwidth 4,
+ * accumulated into the band factor (Lawson & Hanson 1974, chapter 27; the penalty rows as
+ * in core/fit/shapedSmoothing/index.ts, step 2). Throws FitError when the penalised
+ * problem is singular to working precision. Cost O(m).
+ * @example penalisedSystem(poolTies(data), fitSmoothingSpline(data, 5).lambdaScaled as number).r // the band of R
  */
-export function penalisedSystem(pooled: Pooled, lambda: number): BandSystem {
-  const { m, w: W, y, u } = pooled;
-  const range = (u[m - 1] as number) - (u[0] as number);
-  const lambdaT = lambda / range / range / range;
+export function penalisedSystem(pooled: Pooled, lambdaT: number): BandSystem {
+  const { m, w: W, y } = pooled;
   const { t, knots } = scaledKnots(pooled);
   const ev = new BSplineEvaluator(knots);
   const q = m + 2;

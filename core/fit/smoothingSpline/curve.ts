@@ -11,7 +11,9 @@ export interface SplineCurve extends Curve {
 }
 
 /**
- * Curve from B-spline coefficients and the band of A^-1: value b(x)'c and variance factor
+ * Curve from B-spline coefficients and the band of A^-1: value offset + b(x)'c (c the
+ * coefficients of y - offset; `coefficients` of the curve are c + offset, as the B-splines
+ * sum to 1) and variance factor
  * b(x)' A^-1 b(x) inside [lower, upper]; beyond, b(x) = b(edge) + (x - edge) b'(edge), so
  * the value continues linearly with the boundary slope and the variance factor is that of
  * the linear continuation. Evaluation by de Boor's recursion (de Boor 2001, "A Practical
@@ -19,23 +21,28 @@ export interface SplineCurve extends Curve {
  * span lookup) after an O(1) set-up.
  * @example makeCurve(knots, coefficients, band, 5).value(2.5)
  */
-export function makeCurve(knots: Float64Array, coefficients: Float64Array, band: Float64Array, df: number): SplineCurve {
+export function makeCurve(knots: Float64Array, centred: Float64Array, band: Float64Array, df: number, offset = 0): SplineCurve {
+  const coefficients = offset === 0 ? centred : centred.map((c) => c + offset);
   const ev = new BSplineEvaluator(knots);
   const lower = knots[0] as number;
   const upper = knots[knots.length - 1] as number;
-  const edge = (x: number): { first: number; b: Float64Array; d: Float64Array } => {
-    const first = ev.eval(x, 1);
-    return { first, b: Float64Array.from(ev.value), d: Float64Array.from(ev.d1) };
+  // Boundary values and slopes on the knots mapped to [0, 1]: slopes in x units scale as
+  // 1 / spacing and overflow for x spacings near 1e-300; in units of u they stay moderate.
+  const range = upper - lower;
+  const unit = new BSplineEvaluator(knots.map((t) => (t - lower) / range));
+  const edge = (u: number): { first: number; b: Float64Array; d: Float64Array } => {
+    const first = unit.eval(u, 1);
+    return { first, b: Float64Array.from(unit.value), d: Float64Array.from(unit.d1) };
   };
-  const lo = edge(lower);
-  const hi = edge(upper);
+  const lo = edge(0);
+  const hi = edge(1);
   const basis = new Float64Array(4);
   /** Fills `basis` with b(x) (linearly continued outside) and returns the first index. */
   const load = (x: number): number => {
     if (x < lower || x > upper) {
       const e = x < lower ? lo : hi;
-      const dx = x - (x < lower ? lower : upper);
-      for (let a = 0; a < 4; a++) basis[a] = (e.b[a] as number) + dx * (e.d[a] as number);
+      const du = (x - (x < lower ? lower : upper)) / range;
+      for (let a = 0; a < 4; a++) basis[a] = (e.b[a] as number) + du * (e.d[a] as number);
       return e.first;
     }
     const first = ev.eval(x, 0);
@@ -51,8 +58,8 @@ export function makeCurve(knots: Float64Array, coefficients: Float64Array, band:
     value(x: number): number {
       const first = load(x);
       let s = 0;
-      for (let a = 0; a < 4; a++) s += (basis[a] as number) * (coefficients[first + a] as number);
-      return s;
+      for (let a = 0; a < 4; a++) s += (basis[a] as number) * (centred[first + a] as number);
+      return offset + s;
     },
     varianceFactor(x: number): number {
       const first = load(x);

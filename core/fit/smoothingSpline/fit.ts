@@ -49,48 +49,76 @@ export function fitSmoothingSpline(data: XYData, df: number): FitResult {
   const scaled = new ScaledKnots(pooled.u);
   const smoother = new SplineSmoother(scaled.t, pooled.w);
   const lambdaT = searchLambda(smoother, df);
-  const lambda = lambdaT * scaled.cube;
+  const lambda = lambdaInXUnits(lambdaT, scaled);
   return splineFit(
     pooled,
     smoother,
     lambdaT,
     lambda,
-    (trace) =>
-      `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values; lambda = ${formatLambda(lambda)} (in units of x) gives hat-matrix trace ${trace.toFixed(9)} for the asked df ${df}.`,
+    (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values; ${lambdaWords(lambda, lambdaT, scaled.range)} gives hat-matrix trace ${trace.toFixed(9)} for the asked df ${df}.`,
   );
 }
 
 /**
- * Fits the cubic smoothing spline at a fixed smoothing parameter `lambda` (in the units of
- * x, as reported by `fitSmoothingSpline` and `lambdaForDf`); df of the result is the
- * achieved trace. Used by resampling, where the lambda found on all rows is reused on each
- * resample. lambda = Infinity gives the weighted least-squares line. Same method, checks
- * and output as `fitSmoothingSpline`; cost O(n log n) + one O(m) pass.
+ * Fits the cubic smoothing spline at a fixed smoothing parameter `lambda`, given for x
+ * measured in units of `unit`: the penalty is lambda * integral f''(v)^2 dv with v = x / unit,
+ * so with the default unit 1 lambda is in the units of x, as reported by
+ * `fitSmoothingSpline` and `lambdaForDf`. The resampling engine passes the `lambdaScaled`
+ * of the fit to all tuning rows with unit = their x range, which stays finite at any scale
+ * of x where lambda in x units (proportional to range^3) may overflow or vanish. df of the
+ * result is the achieved trace. lambda = Infinity gives the weighted least-squares line.
+ * Same method, checks and output as `fitSmoothingSpline`; cost O(n log n) + one O(m) pass.
  * @example
  *   const lam = lambdaForDf({ x, y }, 6);
  *   const refit = smoothingSplineAtLambda({ x: x2, y: y2 }, lam);
+ *   const same = smoothingSplineAtLambda({ x: x2, y: y2 }, fitSmoothingSpline({ x, y }, 6).lambdaScaled as number, xRange);
  */
-export function smoothingSplineAtLambda(data: XYData, lambda: number): FitResult {
+export function smoothingSplineAtLambda(data: XYData, lambda: number, unit = 1): FitResult {
   if (!(lambda > 0)) throw new FitError(`smoothing spline lambda must be a positive number; got ${lambda}`);
+  if (!(unit > 0) || !Number.isFinite(unit)) throw new FitError(`smoothing spline lambda unit must be a positive finite number; got ${unit}`);
   const pooled = poolTies(data);
   if (lambda === Infinity) return straightLineFit(pooled, [LINE_NOTE_LAMBDA]);
   const scaled = new ScaledKnots(pooled.u);
-  const lambdaT = lambda / scaled.range / scaled.range / scaled.range;
+  let lambdaT: number;
+  if (unit === 1) {
+    lambdaT = lambda / scaled.range / scaled.range / scaled.range;
+  } else {
+    const ratio = unit / scaled.range;
+    lambdaT = lambda * ratio * ratio * ratio;
+  }
   checkLambdaT(lambdaT, lambda);
   const smoother = new SplineSmoother(scaled.t, pooled.w);
-  return splineFit(
-    pooled,
-    smoother,
-    lambdaT,
-    lambda,
-    (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values at the fixed lambda = ${formatLambda(lambda)} (in units of x): hat-matrix trace ${trace.toFixed(9)}.`,
-  );
+  const lambdaX = unit === 1 ? lambda : lambdaInXUnits(lambdaT, scaled);
+  return splineFit(pooled, smoother, lambdaT, lambdaX, (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values at the fixed ${lambdaWords(lambdaX, lambdaT, scaled.range)}: hat-matrix trace ${trace.toFixed(9)}.`);
+}
+
+/**
+ * lambda in the units of x from lambdaT, the lambda for x mapped to [0, 1] over the range R
+ * of the distinct x: lambdaT R^3 (the penalty integral of f''^2 scales as 1 / R^3). NaN when
+ * that is not a finite normal double (R above about 1e100 or below about 1e-100 at usual
+ * lambdaT); the fit then reports lambdaScaled and says so in its note. Cost O(1).
+ * Example: lambdaInXUnits(1e-4, new ScaledKnots(Float64Array.of(0, 5, 10))) === 0.1.
+ */
+export function lambdaInXUnits(lambdaT: number, scaled: ScaledKnots): number {
+  // range^3 first, as before, when it is itself a normal double; else lambdaT first, which keeps a representable product representable.
+  const v = scaled.cube >= MIN_NORMAL && Number.isFinite(scaled.cube) ? lambdaT * scaled.cube : lambdaT * scaled.range * scaled.range * scaled.range;
+  return v >= MIN_NORMAL && Number.isFinite(v) ? v : NaN;
+}
+
+/** Smallest positive normal double. */
+const MIN_NORMAL = 2.2250738585072014e-308;
+
+/** The note's words for lambda: in x units where representable, else for x scaled to [0, 1] over the range. */
+function lambdaWords(lambda: number, lambdaT: number, range: number): string {
+  if (Number.isFinite(lambda)) return `lambda = ${formatLambda(lambda)} (in units of x)`;
+  return `lambda = ${formatLambda(lambdaT)} for x scaled to [0, 1] over its range ${range.toPrecision(6)} (in units of x it would be ${formatLambda(lambdaT)} x ${range.toPrecision(6)}^3, beyond the range of double precision, so the record leaves it empty)`;
 }
 
 /**
  * The smoothing parameter (in the units of x) at which the cubic smoothing spline on `data`
  * has hat-matrix trace `df`: Infinity for df = 2, else the root found as in
- * `fitSmoothingSpline` (same checks, same cost without building the result).
+ * `fitSmoothingSpline` (same checks, same cost without building the result); NaN when it is
+ * beyond double precision in x units (see `lambdaInXUnits`; the fit's lambdaScaled is not).
  * @example lambdaForDf({ x, y }, 4) // -> e.g. 12.7; fitSmoothingSpline({ x, y }, 4).lambda is the same
  */
 export function lambdaForDf(data: XYData, df: number): number {
@@ -98,7 +126,7 @@ export function lambdaForDf(data: XYData, df: number): number {
   checkDf(df, pooled.m);
   if (df === 2) return Infinity;
   const scaled = new ScaledKnots(pooled.u);
-  return searchLambda(new SplineSmoother(scaled.t, pooled.w), df) * scaled.cube;
+  return lambdaInXUnits(searchLambda(new SplineSmoother(scaled.t, pooled.w), df), scaled);
 }
 
 const LINE_NOTE = 'df = 2 is the limit lambda -> infinity of the smoothing spline: the weighted least-squares straight line is returned.';
@@ -116,17 +144,29 @@ function checkLambdaT(lambdaT: number, lambda: number): void {
   }
 }
 
-/** The fit at lambdaT (x in [0, 1]) from a full smoother run, with its note; throws FitError when lambda is too small to compute. O(m + n). */
+/**
+ * The fit at lambdaT (x in [0, 1]) from a full smoother run, with its note; throws FitError
+ * when lambda is too small to compute. The run sees the pooled means of y - offset (offset
+ * the weighted mean of y; core/fit/smoothingSpline/ties.ts) and the offset is added back (the
+ * B-splines sum to 1), so a small signal on a large offset keeps its digits. O(m + n).
+ */
 function splineFit(pooled: Pooled, smoother: SplineSmoother, lambdaT: number, lambda: number, note: (trace: number) => string): FitResult {
-  smoother.run(lambdaT, pooled.y);
+  const { m, offset } = pooled;
+  smoother.run(lambdaT, pooled.yc);
   if (!smoother.reliable) {
-    throw new FitError(`smoothing spline lambda ${lambda} is too small to be computed accurately for these ${pooled.m} distinct x values (the fit would all but interpolate them)`);
+    throw new FitError(`smoothing spline lambda ${Number.isFinite(lambda) ? lambda : `${lambdaT} (x scaled to [0, 1])`} is too small to be computed accurately for these ${m} distinct x values (the fit would all but interpolate them)`);
   }
-  const knots = clampedKnots(pooled.u[0] as number, pooled.u[pooled.m - 1] as number, pooled.u.subarray(1, pooled.m - 1));
-  const curve = makeCurve(knots, smoother.coefficients, smoother.covarianceBand, smoother.trace);
+  const knots = clampedKnots(pooled.u[0] as number, pooled.u[m - 1] as number, pooled.u.subarray(1, m - 1));
+  const curve = makeCurve(knots, smoother.coefficients, smoother.covarianceBand, smoother.trace, offset);
+  const value = new Float64Array(m);
+  for (let j = 0; j < m; j++) value[j] = offset + (smoother.value[j] as number);
   const fitted = new Float64Array(pooled.n);
   const leverage = new Float64Array(pooled.n);
-  perRow(pooled, smoother.value, smoother.leverage, fitted, leverage);
+  perRow(pooled, value, smoother.leverage, fitted, leverage);
+  // (y - offset) - value_c: residuals without the rounding of fitted to the offset's precision.
+  const residuals = new Float64Array(pooled.n);
+  const y = pooled.data.y;
+  for (let i = 0; i < pooled.n; i++) residuals[i] = (y[i] as number) - offset - (smoother.value[pooled.group[i] as number] as number);
   return summariseFit(pooled.data, {
     kind: 'smoothing-spline',
     df: smoother.trace,
@@ -134,8 +174,10 @@ function splineFit(pooled: Pooled, smoother: SplineSmoother, lambdaT: number, la
     coefficients: curve.coefficients,
     knots,
     fitted,
+    residuals,
     leverage,
     lambda,
+    lambdaScaled: lambdaT,
     notes: [note(smoother.trace), ...tieNote(pooled)],
   });
 }

@@ -19,6 +19,9 @@ export interface Pooled {
   readonly u: Float64Array;
   readonly w: Float64Array;
   readonly y: Float64Array;
+  /** The weighted mean of y, and the pooled means of y - offset (computed without forming y, so a small signal on a large offset keeps its digits). */
+  readonly offset: number;
+  readonly yc: Float64Array;
   /** Index into u of each row. */
   readonly group: Int32Array;
 }
@@ -26,7 +29,8 @@ export interface Pooled {
 /**
  * Checks the data (via prepareData: finite values, positive weights, each problem named by
  * its line) and pools tied x: u the sorted distinct x, w the summed weights, y the weighted
- * mean y, and the group (index into u) of every row. Throws FitError for fewer than
+ * mean y (also as offset + yc, offset the weighted mean of all y, pooled from y - offset),
+ * and the group (index into u) of every row. Throws FitError for fewer than
  * MIN_DISTINCT_X distinct x. Cost O(n log n): the sort in prepareData, then the rows are
  * assigned to groups by a scan when x is ascending, else by binary search.
  * @example poolTies({ x: [1, 1, 2, 3, 4], y: [0, 2, 5, 6, 8] }) // u = [1, 2, 3, 4], w = [2, 1, 1, 1], y = [1, 5, 6, 8]
@@ -63,16 +67,28 @@ export function poolTies(data: XYData): Pooled {
       group[i] = lo;
     }
   }
+  let sw = 0;
+  let swy = 0;
+  for (let i = 0; i < n; i++) {
+    const wi = w ? (w[i] as number) : 1;
+    sw += wi;
+    swy += wi * (y[i] as number);
+  }
+  const offset = Number.isFinite(swy / sw) ? swy / sw : 0;
   const ws = new Float64Array(m);
-  const ys = new Float64Array(m);
+  const yc = new Float64Array(m);
   for (let i = 0; i < n; i++) {
     const g = group[i] as number;
     const wi = w ? (w[i] as number) : 1;
     ws[g] = (ws[g] as number) + wi;
-    ys[g] = (ys[g] as number) + wi * (y[i] as number);
+    yc[g] = (yc[g] as number) + wi * ((y[i] as number) - offset);
   }
-  for (let j = 0; j < m; j++) ys[j] = (ys[j] as number) / (ws[j] as number);
-  return { data, n, m, u, w: ws, y: ys, group };
+  const ys = new Float64Array(m);
+  for (let j = 0; j < m; j++) {
+    yc[j] = (yc[j] as number) / (ws[j] as number);
+    ys[j] = offset + (yc[j] as number);
+  }
+  return { data, n, m, u, w: ws, y: ys, offset, yc, group };
 }
 
 /**

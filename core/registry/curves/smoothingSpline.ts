@@ -9,13 +9,17 @@ import type { CurveKind, Trainer } from './types';
 /** Largest default df (a product default: 2 .. min(12, distinct x - 1)). */
 const DEFAULT_MAX_DF = 12;
 
-/** Refits a smoothing spline at the full-data lambda from the rows with positive weight. */
-function smoothTrainer(x: Float64Array, yc: Float64Array, lambda: number, df: number): Trainer {
+/**
+ * Refits a smoothing spline at the full-data lambda from the rows with positive weight.
+ * `lambdaScaled` is the lambda for x mapped to [0, 1] over `xRange`, the range of all tuning
+ * rows (finite at any scale of x, unlike lambda in x units).
+ */
+function smoothTrainer(x: Float64Array, yc: Float64Array, lambdaScaled: number, xRange: number, df: number): Trainer {
   let curve: { value(x: number): number } | undefined;
   return {
     train(weights: Float64Array): boolean {
       try {
-        curve = smoothingSplineAtLambda(trainingRows(x, yc, weights), lambda).curve;
+        curve = smoothingSplineAtLambda(trainingRows(x, yc, weights), lambdaScaled, xRange).curve;
         return true;
       } catch (e) {
         if (e instanceof FitError) return false;
@@ -45,11 +49,14 @@ export const smoothingSpline: CurveKind = {
   checkModel(model, distinct) {
     if (model.shape.length > 0) checkShapedSmoothingSize(distinct);
   },
-  resampleParams: (fits) => fits.map((f) => f.lambda as number),
+  // lambda for x mapped to [0, 1] over the tuning rows' range: lambda in x units grows as the cube of that range and leaves double precision for x beyond about 1e100.
+  resampleParams: (fits) => fits.map((f) => f.lambdaScaled as number),
   trainers(input) {
     const lambdas = input.params ?? [];
     const { x, model } = input;
-    if (model) return { trainers: input.dfs.map((_, k) => shapedSmoothTrainer(x, input.y, lambdas[k] as number, model.shape, input.ymean, input.yscale)) };
-    return { trainers: input.dfs.map((df, k) => smoothTrainer(x, input.yc, lambdas[k] as number, df)) };
+    const sorted = input.prepared.sortedX;
+    const xRange = (sorted[sorted.length - 1] as number) - (sorted[0] as number);
+    if (model) return { trainers: input.dfs.map((_, k) => shapedSmoothTrainer(x, input.y, lambdas[k] as number, model.shape, input.ymean, input.yscale, xRange)) };
+    return { trainers: input.dfs.map((df, k) => smoothTrainer(x, input.yc, lambdas[k] as number, xRange, df)) };
   },
 };

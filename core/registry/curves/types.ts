@@ -36,7 +36,7 @@ export interface TrainerInput {
   readonly w: Float64Array | undefined;
   /** Candidate df, each fitted to all tuning rows already. */
   readonly dfs: readonly number[];
-  /** Per-candidate numbers from the full fits (resampleParams), or undefined. */
+  /** Per-candidate numbers from the full fits (resampleParams: the smoothing spline's lambdaScaled), or undefined. */
   readonly params: readonly number[] | undefined;
   /** Outcome, shapes, robust fitting; undefined for plain least squares. */
   readonly model: ResolvedModel | undefined;
@@ -79,7 +79,7 @@ export interface CurveKind {
   fitModel?(prepared: PreparedData, df: number, model: ResolvedModel): FitResult;
   /** Checks model options the kind can take only within limits (e.g. size); throws InputError. */
   checkModel?(model: ResolvedModel, distinct: number): void;
-  /** Per-candidate numbers the resample trainers need from the full fits (the smoothing spline's lambda). */
+  /** Per-candidate numbers the resample trainers need from the full fits (the smoothing spline's lambda for x scaled to [0, 1] over the tuning rows' range). */
   resampleParams?(fits: readonly FitResult[]): number[];
   /** Trainers that refit every candidate on a resample's weighted rows. */
   trainers(input: TrainerInput): TrainerSet;

@@ -15,7 +15,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as vscode from 'vscode';
 import { selectDf } from '../../../core/tune/rules';
-import type { KnotwiseApi, RunSummary } from '../../../extension/controller';
+import type { KnotwiseApi, RunSummary } from '../../../extension/api';
 
 const EXTENSION_ID = 'knotwise.knotwise';
 

@@ -31,6 +31,8 @@ export async function run(): Promise<void> {
   // Loaded after the globals exist (esbuild keeps these requires lazy).
   require('./settings.test');
   require('./commands.test');
+  require('./follow.test');
+  require('./saveRecovery.test');
   await new Promise<void>((resolve, reject) => {
     const runner = mocha.run((failures) => {
       const stats = runner.stats ?? { passes: 0, failures };

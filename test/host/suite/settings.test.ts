@@ -19,6 +19,8 @@ describe('settings snapshot (readSettings)', function () {
     assert.equal(s.candidates, undefined);
     assert.equal(s.grid, undefined);
     assert.deepEqual(s.model, { outcome: 'continuous', shape: [], robustK: undefined });
+    assert.equal(s.refitOnSave, true);
+    assert.equal(s.refitAskAboveRows, 200000);
     assert.deepEqual(s.problems, []);
   });
 
@@ -71,6 +73,10 @@ describe('settings snapshot (readSettings)', function () {
     assert.equal(s.candidates, undefined);
     assert.equal(s.problems.length, 5, s.problems.join('\n'));
     assert.ok(s.problems.some((p) => p.includes('knotwise.resampling')));
+    const refit = readSettings((k) => ({ 'refit.askAboveRows': -5, 'refit.onSave': 'yes' })[k]);
+    assert.equal(refit.refitAskAboveRows, DEFAULTS.refitAskAboveRows);
+    assert.equal(refit.refitOnSave, true, 'a value that is not true or false keeps the default');
+    assert.match(refit.problems.join(), /knotwise\.refit\.askAboveRows must be a whole number from 0/);
   });
 
   it('the simplest-within rule takes its percentage from knotwise.tolerancePercent', function () {
@@ -101,6 +107,8 @@ describe('settings snapshot (readSettings)', function () {
       'knotwise.output.folder': DEFAULTS.outputFolder,
       'knotwise.output.tableName': DEFAULTS.tableName,
       'knotwise.output.recordName': DEFAULTS.recordName,
+      'knotwise.refit.onSave': DEFAULTS.refitOnSave,
+      'knotwise.refit.askAboveRows': DEFAULTS.refitAskAboveRows,
     };
     assert.deepEqual(Object.keys(props).sort(), Object.keys(expected).sort());
     for (const [k, v] of Object.entries(expected)) assert.deepEqual(props[k]?.default, v, k);

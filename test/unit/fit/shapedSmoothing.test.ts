@@ -272,9 +272,11 @@ describe('tuning shape-constrained smoothing splines', () => {
   it('ResampleEngine refits each fold at the candidate\'s full-data lambda: errors equal direct refits (1e-10)', () => {
     const dfs = [3, 6, 9];
     const lambdas = dfs.map((df) => lambdaForDf(cars, df));
+    // The engine takes each candidate's lambda for x scaled to [0, 1] over the range of all rows (FitResult.lambdaScaled).
+    const scaled = dfs.map((df) => fitSmoothingSpline(cars, df).lambdaScaled as number);
     const shape: Shape[] = ['increasing', 'convex'];
     const folds = 5;
-    const engine = new ResampleEngine({ x: cars.x, y: cars.y, kind: 'smoothing-spline', dfs, params: lambdas, resample: { kind: 'folds', folds, repeats: 1 }, seed: 3, order: orderByX(cars.x), model: { shape } });
+    const engine = new ResampleEngine({ x: cars.x, y: cars.y, kind: 'smoothing-spline', dfs, params: scaled, resample: { kind: 'folds', folds, repeats: 1 }, seed: 3, order: orderByX(cars.x), model: { shape } });
     const labels = new Uint16Array(cars.x.length);
     foldLabels(orderByX(cars.x), folds, 3, 0, labels);
     let anyActive = false;

@@ -2,16 +2,28 @@
  * Tests of writing the outputs safely (core/node/outputs.ts, through `knotwise fit`): a file
  * Knotwise did not write is refused without --force, rerunning over Knotwise's own outputs
  * works and gives the same bytes, a hand-edited output counts as not Knotwise's, the data
- * file is byte-identical after a run, and no temporary file is left behind. Data:
- * datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R).
+ * file is byte-identical after a run, no temporary file is left behind, and what a killed
+ * run left (a commit marker, temporary files) is completed or removed by the next run
+ * without --force (core/outputs/commit.ts; the real kill test is killRecovery.test.ts).
+ * Data: datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R).
  */
 import { strict as assert } from 'node:assert';
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, utimesSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { InputError } from '../../../core/errors';
+import { folderStep, nodeWriter } from '../../../core/node/atomicWrite';
 import { isOurs, recordedFiles, sha256, writeOutputs } from '../../../core/node/outputs';
+import { markerName, parseMarkerName, parseTempName, tempName, writeSet, type SetFile } from '../../../core/outputs/commit';
 import { copyFixture, runMain } from './runMain';
+
+/** The id of a process that has ended (a child started and waited for). */
+function deadPid(): number {
+  const r = spawnSync(process.execPath, ['-e', '']);
+  assert.equal(r.status, 0);
+  return r.pid as number;
+}
 
 /** Every file of a folder with its bytes. */
 function snapshot(dir: string): Map<string, Buffer> {
@@ -21,7 +33,24 @@ function snapshot(dir: string): Map<string, Buffer> {
 describe('writing the outputs', () => {
   let dir = '';
   let data = '';
-  const fitArgs = (...extra: string[]): string[] => ['fit', data, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resampling', 'bootstrap:20', '--seed', '3', '--emit', 'c,ts,json', '--report', ...extra];
+  const fitArgs = (...extra: string[]): string[] => [
+    'fit',
+    data,
+    '--x',
+    'speed',
+    '--y',
+    'dist',
+    '--df',
+    '2..6',
+    '--resampling',
+    'bootstrap:20',
+    '--seed',
+    '3',
+    '--emit',
+    'c,ts,json',
+    '--report',
+    ...extra,
+  ];
 
   beforeEach(() => {
     dir = mkdtempSync(join(tmpdir(), 'knotwise-out-'));
@@ -85,7 +114,7 @@ describe('writing the outputs', () => {
     for (const [name, bytes] of before) assert.ok(bytes.equals(after.get(name) as Buffer), `${name} is byte-identical`);
   });
 
-  it('an output edited by hand is no longer Knotwise\'s: refused without --force', async () => {
+  it("an output edited by hand is no longer Knotwise's: refused without --force", async () => {
     const out = join(dir, 'out');
     assert.equal((await runMain(...fitArgs('--out', out))).code, 0);
     const table = join(out, 'cars.curve.csv');
@@ -145,14 +174,124 @@ describe('isOurs and writeOutputs', () => {
     const dataFile = join(dir, 'z.csv');
     writeFileSync(dataFile, 'x,y\n1,2\n');
     assert.throws(
-      () => writeOutputs(dir, [{ kind: 'table', name: 'z.csv', text: 'bad' }, { kind: 'record', name: 'z.fit.json', text: '{}' }], dataFile, true),
+      () =>
+        writeOutputs(
+          dir,
+          [
+            { kind: 'table', name: 'z.csv', text: 'bad' },
+            { kind: 'record', name: 'z.fit.json', text: '{}' },
+          ],
+          dataFile,
+          true,
+        ),
       (e: unknown) => e instanceof InputError && /is the data file; refusing to overwrite it/.test(e.message),
     );
     assert.equal(readFileSync(dataFile, 'utf8'), 'x,y\n1,2\n');
-    const paths = writeOutputs(dir, [{ kind: 'record', name: 'z.fit.json', text: '{}\n' }, { kind: 'table', name: 'z.curve.csv', text: 'x\n' }], dataFile, false);
+    const paths = writeOutputs(
+      dir,
+      [
+        { kind: 'record', name: 'z.fit.json', text: '{}\n' },
+        { kind: 'table', name: 'z.curve.csv', text: 'x\n' },
+      ],
+      dataFile,
+      false,
+    );
     assert.deepEqual(
       paths.map((p) => p.slice(dir.length + 1)),
       ['z.curve.csv', 'z.fit.json'],
     );
+  });
+});
+
+describe('what a killed run left', () => {
+  let dir = '';
+  let data = '';
+  let out = '';
+  const fitArgs = (...extra: string[]): string[] => ['fit', data, '--x', 'speed', '--y', 'dist', '--df', '4', '--emit', 'c', '--out', out, ...extra];
+
+  beforeEach(() => {
+    dir = mkdtempSync(join(tmpdir(), 'knotwise-left-'));
+    data = copyFixture('cars.csv', join(dir, 'cars.csv'));
+    out = join(dir, 'out');
+  });
+  afterEach(() => {
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  /** The outputs a run of `fitArgs` writes, by name (from a run in a folder of its own). */
+  async function outputsOf(csv: string): Promise<SetFile[]> {
+    const other = join(dir, 'reference');
+    writeFileSync(data, csv);
+    assert.equal((await runMain(...fitArgs().map((a) => (a === out ? other : a)))).code, 0);
+    // The same names and bytes as in `out`: the record names the data by a path relative to its folder, the same from both.
+    const names = ['cars.curve.csv', 'cars.curve.h', 'cars.fit.json'];
+    const files = names.map((name) => ({ name, text: readFileSync(join(other, name), 'utf8') }));
+    rmSync(other, { recursive: true });
+    return files;
+  }
+
+  it('a run killed after its commit marker (half renamed) is completed by the next run, without --force', async () => {
+    const cars = readFileSync(data, 'utf8');
+    const fewer = cars
+      .split('\n')
+      .filter((_, i) => i % 5 !== 3)
+      .join('\n');
+    assert.equal((await runMain(...fitArgs())).code, 0);
+    const newSet = await outputsOf(fewer);
+    // A process that is gone now wrote the new set until the table was renamed into place, and was killed there.
+    const killed = { ...nodeWriter(out), pid: deadPid(), writing: new Set<string>() };
+    const steps = writeSet(killed, newSet, 'cars.fit.json');
+    const exec = folderStep(out, () => assert.fail('no question'));
+    for (let next = steps.next(); !next.done; next = steps.next(exec(next.value))) {
+      if (next.value.op === 'rename' && next.value.to === 'cars.curve.h') break;
+    }
+    const names = readdirSync(out);
+    assert.ok(names.includes(markerName('cars.fit.json')));
+    assert.equal(readFileSync(join(out, 'cars.curve.csv'), 'utf8'), newSet[0]?.text, 'the new table is in place');
+    assert.notEqual(readFileSync(join(out, 'cars.fit.json'), 'utf8'), newSet[2]?.text, 'the old record is still in place');
+    // The next run: no --force needed, and afterwards exactly the new set.
+    const r = await runMain(...fitArgs());
+    assert.equal(r.code, 0, r.stderr);
+    assert.deepEqual(readdirSync(out).sort(), ['cars.curve.csv', 'cars.curve.h', 'cars.fit.json']);
+    for (const f of newSet) assert.equal(readFileSync(join(out, f.name), 'utf8'), f.text, f.name);
+    assert.equal((await runMain('check', join(out, 'cars.fit.json'))).code, 0);
+  });
+
+  it('temporary files of a process that is gone are removed; those of a live process and other dot-files stay', async () => {
+    mkdirSync(out);
+    const gone = tempName('cars.curve.csv', deadPid(), 'abcdef012345');
+    const live = tempName('cars.curve.csv', process.ppid, 'abcdef012345');
+    const legacyOld = '.cars.curve.csv.0123456789ab.tmp';
+    const legacyNew = '.cars.curve.h.0123456789ab.tmp';
+    writeFileSync(join(out, gone), 'x'.repeat(1 << 20));
+    writeFileSync(join(out, live), 'being written');
+    writeFileSync(join(out, legacyOld), 'left by an earlier version');
+    writeFileSync(join(out, legacyNew), 'maybe still being written by an earlier version');
+    const twoHoursAgo = new Date(Date.now() - 2 * 3600_000);
+    utimesSync(join(out, legacyOld), twoHoursAgo, twoHoursAgo);
+    writeFileSync(join(out, '.keep'), '');
+    const r = await runMain(...fitArgs());
+    assert.equal(r.code, 0, r.stderr);
+    assert.deepEqual(readdirSync(out).sort(), ['.keep', legacyNew, live, 'cars.curve.csv', 'cars.curve.h', 'cars.fit.json'].sort());
+    assert.ok(!readdirSync(out).some((n) => parseMarkerName(n) !== undefined || (parseTempName(n) !== undefined && n !== live)));
+  });
+
+  it('another Knotwise process writing the same record right now: refused (exit 2), its files untouched', async () => {
+    assert.equal((await runMain(...fitArgs())).code, 0);
+    // The parent of this process stands for a live writer whose marker is in place.
+    const marker = {
+      format: 'knotwise-commit',
+      version: 1,
+      writer: { pid: process.ppid, host: nodeWriter(out).host },
+      record: 'cars.fit.json',
+      files: [{ file: 'cars.fit.json', temp: tempName('cars.fit.json', process.ppid, 'abcdef012345'), sha256: sha256('{}'), replaces: null }],
+    };
+    writeFileSync(join(out, markerName('cars.fit.json')), JSON.stringify(marker));
+    writeFileSync(join(out, marker.files[0]!.temp), '{}');
+    const before = new Map(readdirSync(out).map((n) => [n, readFileSync(join(out, n))]));
+    const r = await runMain(...fitArgs());
+    assert.equal(r.code, 2);
+    assert.match(r.stderr, /another Knotwise process \(id \d+\) is writing cars\.fit\.json in this folder right now/);
+    for (const [n, b] of before) assert.ok(readFileSync(join(out, n)).equals(b), n);
   });
 });

@@ -106,7 +106,10 @@ function writer(pid: number, folder: MemoryFolder, alive: ReadonlySet<number> = 
 /** A fit record listing `files` (name -> text) by SHA-256, like the ones Knotwise writes. */
 function record(files: Record<string, string>, tag: string): string {
   const [table, ...rest] = Object.entries(files);
-  return JSON.stringify({ format: RECORD_FORMAT, tag, table: table && { file: table[0], sha256: sha256(table[1]) }, outputs: rest.map(([file, text]) => ({ kind: 'c', file, sha256: sha256(text) })) }) + '\n';
+  return (
+    JSON.stringify({ format: RECORD_FORMAT, tag, table: table && { file: table[0], sha256: sha256(table[1]) }, outputs: rest.map(([file, text]) => ({ kind: 'c', file, sha256: sha256(text) })) }) +
+    '\n'
+  );
 }
 
 /** An output set: table, header and record (last), with texts marked by `tag`. */
@@ -181,14 +184,62 @@ describe('commit protocol: names and marker', () => {
       change(m);
       return JSON.stringify(m);
     };
-    assert.equal(parseMarker(markerText(good), markerName('b.fit.json')), undefined, 'the file name must be the record\'s marker');
-    assert.equal(parseMarker(bad((m) => (m.files[0].file = '../a.curve.csv')), name), undefined, 'a path');
-    assert.equal(parseMarker(bad((m) => (m.files[0].temp = 'a.curve.csv')), name), undefined, 'not a temporary name');
-    assert.equal(parseMarker(bad((m) => (m.files[0].temp = tempName('other.csv', 7, 'aaaaaaaaaaaa'))), name), undefined, 'the temporary name of another file');
-    assert.equal(parseMarker(bad((m) => m.files.reverse()), name), undefined, 'the record must come last');
-    assert.equal(parseMarker(bad((m) => (m.files[0].sha256 = 'abc')), name), undefined, 'not a SHA-256');
-    assert.equal(parseMarker(bad((m) => (m.files[1] = m.files[0])), name), undefined, 'a file twice');
-    assert.equal(parseMarker(bad((m) => (m.format = 'other')), name), undefined);
+    assert.equal(parseMarker(markerText(good), markerName('b.fit.json')), undefined, "the file name must be the record's marker");
+    assert.equal(
+      parseMarker(
+        bad((m) => (m.files[0].file = '../a.curve.csv')),
+        name,
+      ),
+      undefined,
+      'a path',
+    );
+    assert.equal(
+      parseMarker(
+        bad((m) => (m.files[0].temp = 'a.curve.csv')),
+        name,
+      ),
+      undefined,
+      'not a temporary name',
+    );
+    assert.equal(
+      parseMarker(
+        bad((m) => (m.files[0].temp = tempName('other.csv', 7, 'aaaaaaaaaaaa'))),
+        name,
+      ),
+      undefined,
+      'the temporary name of another file',
+    );
+    assert.equal(
+      parseMarker(
+        bad((m) => m.files.reverse()),
+        name,
+      ),
+      undefined,
+      'the record must come last',
+    );
+    assert.equal(
+      parseMarker(
+        bad((m) => (m.files[0].sha256 = 'abc')),
+        name,
+      ),
+      undefined,
+      'not a SHA-256',
+    );
+    assert.equal(
+      parseMarker(
+        bad((m) => (m.files[1] = m.files[0])),
+        name,
+      ),
+      undefined,
+      'a file twice',
+    );
+    assert.equal(
+      parseMarker(
+        bad((m) => (m.format = 'other')),
+        name,
+      ),
+      undefined,
+    );
     assert.equal(parseMarker('{ half', name), undefined);
   });
 
@@ -264,10 +315,24 @@ describe('commit protocol: a kill at every step', () => {
         assert.doesNotMatch(state, /^broken/, `kill after ${k} steps: ${state}`);
         seen.set(state, (seen.get(state) ?? 0) + 1);
         // Process 2 is gone; process 3 writes the same set, and is itself killed while recovering at every step.
-        const totalRecovery = runFor(recoverFolder(writer(3, f.clone()), newFiles.map((x) => x.name)), f.clone().exec(), Number.MAX_SAFE_INTEGER).ran;
+        const totalRecovery = runFor(
+          recoverFolder(
+            writer(3, f.clone()),
+            newFiles.map((x) => x.name),
+          ),
+          f.clone().exec(),
+          Number.MAX_SAFE_INTEGER,
+        ).ran;
         for (let j = 0; j <= totalRecovery; j++) {
           const g = f.clone();
-          runFor(recoverFolder(writer(3, g), newFiles.map((x) => x.name)), g.exec(), j);
+          runFor(
+            recoverFolder(
+              writer(3, g),
+              newFiles.map((x) => x.name),
+            ),
+            g.exec(),
+            j,
+          );
           assert.doesNotMatch(classify(g, oldSet, newSet), /^broken/, `kill after ${k} steps, recovery killed after ${j}`);
           const out = runSteps(writeSet(writer(4, g), newFiles, 'a.fit.json'), g.exec());
           assert.equal(out.written, true);
@@ -368,11 +433,14 @@ describe('commit protocol: recovery rules', () => {
     f.put('.z.csv.0123456789ab.tmp', 'earlier version, not an output of this set', f.clock - STALE_AGE_MS - 10);
     f.put('.gitignore', 'mine\n');
     const rec = runSteps(recoverFolder(writer(4, f, new Set([3, 4])), ['a.curve.csv', 'a.curve.h', 'a.fit.json']), f.exec());
-    assert.deepEqual([...rec.removed].sort(), [tempName('a.curve.csv', 2, 'aaaaaaaaaaaa'), tempName('a.curve.ts', 3, 'dddddddddddd'), tempName('z.csv', 5, 'bbbbbbbbbbbb'), '.a.curve.h.0123456789ab.tmp'].sort());
+    assert.deepEqual(
+      [...rec.removed].sort(),
+      [tempName('a.curve.csv', 2, 'aaaaaaaaaaaa'), tempName('a.curve.ts', 3, 'dddddddddddd'), tempName('z.csv', 5, 'bbbbbbbbbbbb'), '.a.curve.h.0123456789ab.tmp'].sort(),
+    );
     assert.deepEqual([...f.files.keys()].sort(), [tempName('a.curve.h', 3, 'cccccccccccc'), '.a.curve.csv.0123456789ab.tmp', '.gitignore', '.z.csv.0123456789ab.tmp'].sort());
   });
 
-  it('a marker that cannot be completed (its new bytes deleted) is kept as a note: the files it wrote stay Knotwise\'s, and the next write needs no permission', () => {
+  it("a marker that cannot be completed (its new bytes deleted) is kept as a note: the files it wrote stay Knotwise's, and the next write needs no permission", () => {
     const f = firstKill('mixed+marker+temp');
     for (const n of [...f.files.keys()]) if (parseTempName(n)) f.files.delete(n);
     const rec = runSteps(recoverFolder(writer(3, f), []), f.exec());
@@ -384,7 +452,7 @@ describe('commit protocol: recovery rules', () => {
     assert.deepEqual(f.snapshot(), asMap(newFiles), 'the next commit replaces and removes the marker');
   });
 
-  it('a file edited by hand after the kill is not replaced by recovery and counts as not Knotwise\'s', () => {
+  it("a file edited by hand after the kill is not replaced by recovery and counts as not Knotwise's", () => {
     const f = firstKill('old+marker+temp');
     f.put('a.curve.h', '/* my own edit */\n');
     const asked: string[][] = [];
@@ -400,7 +468,10 @@ describe('commit protocol: recovery rules', () => {
       [],
       'the temporary files of the stuck set are gone',
     );
-    const forced = runSteps(writeSet(writer(3, f), newFiles, 'a.fit.json'), f.exec(() => true));
+    const forced = runSteps(
+      writeSet(writer(3, f), newFiles, 'a.fit.json'),
+      f.exec(() => true),
+    );
     assert.equal(forced.written, true);
     assert.deepEqual(f.snapshot(), asMap(newFiles));
   });
@@ -410,10 +481,16 @@ describe('commit protocol: recovery rules', () => {
     f.put('a.curve.csv', 'hand-made\n');
     f.put(markerName('a.fit.json'), '{ not a marker');
     const before = f.snapshot();
-    const out = runSteps(writeSet(writer(3, f), newFiles, 'a.fit.json'), f.exec(() => false));
+    const out = runSteps(
+      writeSet(writer(3, f), newFiles, 'a.fit.json'),
+      f.exec(() => false),
+    );
     assert.equal(out.written, false);
     assert.deepEqual(f.snapshot(), before);
-    runSteps(writeSet(writer(3, f), newFiles, 'a.fit.json'), f.exec(() => true));
+    runSteps(
+      writeSet(writer(3, f), newFiles, 'a.fit.json'),
+      f.exec(() => true),
+    );
     assert.deepEqual(f.snapshot(), asMap(newFiles));
   });
 });

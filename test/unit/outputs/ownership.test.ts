@@ -27,7 +27,7 @@ describe('writtenByKnotwise', () => {
     assert.equal(writtenByKnotwise({ name: 'a.curve.csv', sha256: undefined, isRecord: false }, undefined), true);
   });
 
-  it('writtenByKnotwise: a listed file is Knotwise\'s only while its bytes hash to the listed SHA-256', () => {
+  it("writtenByKnotwise: a listed file is Knotwise's only while its bytes hash to the listed SHA-256", () => {
     const rec = record({ 'a.curve.csv': ABC, 'a.curve.h': '0'.repeat(64) });
     assert.equal(writtenByKnotwise({ name: 'a.curve.csv', sha256: ABC, isRecord: false }, rec), true);
     assert.equal(writtenByKnotwise({ name: 'a.curve.csv', sha256: '1'.repeat(64), isRecord: false }, rec), false, 'edited by hand');
@@ -35,7 +35,7 @@ describe('writtenByKnotwise', () => {
     assert.equal(writtenByKnotwise({ name: 'a.curve.h', sha256: '0'.repeat(64), isRecord: false }, rec), true, 'other outputs count too');
   });
 
-  it('writtenByKnotwise: without a record, or with a record of another format or not JSON, an existing file is not Knotwise\'s', () => {
+  it("writtenByKnotwise: without a record, or with a record of another format or not JSON, an existing file is not Knotwise's", () => {
     const t = { name: 'a.curve.csv', sha256: ABC, isRecord: false };
     assert.equal(writtenByKnotwise(t, undefined), false);
     assert.equal(writtenByKnotwise(t, record({ 'a.curve.csv': ABC }, 'something-else')), false);
@@ -48,7 +48,7 @@ describe('writtenByKnotwise', () => {
     assert.equal(writtenByKnotwise({ name: 'a.fit.json', sha256: ABC, isRecord: true }, '{"format": "mine"}'), false);
   });
 
-  it('writtenByKnotwise: bytes a commit marker vouches for (an interrupted write) are Knotwise\'s, by name and SHA-256', () => {
+  it("writtenByKnotwise: bytes a commit marker vouches for (an interrupted write) are Knotwise's, by name and SHA-256", () => {
     const vouched = new Map([['a.curve.csv', ABC]]);
     assert.equal(writtenByKnotwise({ name: 'a.curve.csv', sha256: ABC, isRecord: false }, undefined, vouched), true, 'even without a record');
     assert.equal(writtenByKnotwise({ name: 'a.curve.csv', sha256: '1'.repeat(64), isRecord: false }, undefined, vouched), false, 'other bytes');
@@ -57,7 +57,13 @@ describe('writtenByKnotwise', () => {
 
   it('recordedFiles lists the table and every output by name, skipping malformed entries', () => {
     const rec = { table: { file: 't.csv', sha256: ABC }, outputs: [{ file: 'h.h', sha256: 'x' }, { file: 3 }, null] };
-    assert.deepEqual([...recordedFiles(rec).entries()], [['t.csv', ABC], ['h.h', 'x']]);
+    assert.deepEqual(
+      [...recordedFiles(rec).entries()],
+      [
+        ['t.csv', ABC],
+        ['h.h', 'x'],
+      ],
+    );
     assert.deepEqual([...recordedFiles(null).entries()], []);
   });
 });

@@ -24,7 +24,7 @@ import { ExtrapolatingBSplineBasis, naturalKnots } from '../../../core/basis/nat
 import { CancelledError, FitError } from '../../../core/errors';
 import { fitRowBasis } from '../../../core/fit/linearFit';
 import { fitPolynomial } from '../../../core/fit/polynomial';
-import { lambdaForDf, smoothingSplineAtLambda } from '../../../core/fit/smoothingSpline';
+import { fitSmoothingSpline, lambdaForDf, smoothingSplineAtLambda } from '../../../core/fit/smoothingSpline';
 import { prepareData } from '../../../core/fit/prepared';
 import { nullSpace } from '../../../core/linalg/nullSpace';
 import { workerRunner } from '../../../core/node/pool';
@@ -146,7 +146,8 @@ function resampleRows(d: Data, spec: ResampleSpec, seed: number, r: number): { t
 }
 
 function problemOf(d: Data, kind: CurveKindId, dfs: readonly number[], resample: ResampleSpec, seed: number): ResampleProblem {
-  const lambdas = kind === 'smoothing-spline' ? dfs.map((df) => lambdaForDf({ x: d.x, y: d.y, w: d.w }, df)) : undefined;
+  // The engine refits at each candidate's lambda for x scaled to [0, 1] over the range of all rows (FitResult.lambdaScaled).
+  const lambdas = kind === 'smoothing-spline' ? dfs.map((df) => fitSmoothingSpline({ x: d.x, y: d.y, w: d.w }, df).lambdaScaled as number) : undefined;
   return { x: d.x, y: d.y, w: d.w, kind, dfs, params: lambdas, resample, seed, order: orderByX(d.x) };
 }
 
