@@ -231,7 +231,9 @@ export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer
     );
     return picked === replace;
   };
-  const result = await runStepsAsync(writeSet(hostWriter(folder), out.files, record.name), folderStep(folder, ask));
+  // Recovery never replaces the data file, even when a commit marker names it.
+  const protect = vscode.Uri.joinPath(input.dataUri, '..').toString() === folder.toString() ? [posix.basename(input.dataUri.path)] : [];
+  const result = await runStepsAsync(writeSet(hostWriter(folder), out.files, record.name, protect), folderStep(folder, ask));
   if (!result.written) return undefined;
   // The record last, as written: it vouches for the files before it.
   const order = [...targets.filter((t) => t.file !== record), ...targets.filter((t) => t.file === record)];

@@ -6,7 +6,7 @@
  */
 import { createHash } from 'node:crypto';
 import { existsSync, readFileSync } from 'node:fs';
-import { basename, join, resolve } from 'node:path';
+import { basename, dirname, join, resolve } from 'node:path';
 import type { OutputFile } from '../outputs/deliver';
 import { InputError } from '../errors';
 import { writtenByKnotwise } from '../outputs/ownership';
@@ -53,6 +53,8 @@ export function writeOutputs(folder: string, files: readonly OutputFile[], dataF
     if (force) return true;
     throw new InputError(`${join(folder, foreign[0] as string)} exists and was not written by Knotwise; refusing to overwrite it (use --force to replace it)`);
   };
-  runSteps(writeSet(nodeWriter(folder), files, record.name), folderStep(folder, refuse));
+  // Recovery never replaces the data file, even when a commit marker names it.
+  const protect = resolve(folder) === dirname(data) ? [basename(data)] : [];
+  runSteps(writeSet(nodeWriter(folder), files, record.name, protect), folderStep(folder, refuse));
   return [...files.filter((f) => f !== record), record].map((f) => join(folder, f.name));
 }

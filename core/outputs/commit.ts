@@ -209,15 +209,18 @@ export interface RecoveryPlan {
  * missing or still holds the bytes it replaces. When every entry is done or can be
  * completed, the set is completed; otherwise nothing is renamed (the set cannot become whole,
  * and a target changed since is not Knotwise's to replace) and the marker stays as a note of
- * the bytes Knotwise wrote. Temporary files are removed in both cases.
+ * the bytes Knotwise wrote. A marker that names a file of `protect` (the data file) is never
+ * carried out. Temporary files are removed in both cases.
  */
-export function planRecovery(marker: CommitMarker, states: ReadonlyMap<string, EntryState>): RecoveryPlan {
+export function planRecovery(marker: CommitMarker, states: ReadonlyMap<string, EntryState>, protect: readonly string[] = []): RecoveryPlan {
   const renames: CommitEntry[] = [];
   const removals: string[] = [];
   const blocked: string[] = [];
   for (const e of marker.files) {
     const s = states.get(e.file) ?? { target: undefined, temp: undefined };
-    if (s.target === e.sha256) {
+    if (protect.includes(e.file)) {
+      blocked.push(`${e.file}: it is the data file`);
+    } else if (s.target === e.sha256) {
       if (s.temp !== undefined) removals.push(e.temp);
     } else if (s.temp === e.sha256 && (s.target === undefined || s.target === e.replaces)) {
       renames.push(e);
@@ -332,9 +335,9 @@ export interface Recovery {
  * Step 1 of the protocol: completes (or keeps, see planRecovery) every marker of the folder
  * whose writer is gone, then removes Knotwise's temporary files whose writer is gone, and
  * temporary files of earlier versions for `names` older than STALE_AGE_MS. Files of writers
- * at work are left alone.
+ * at work are left alone, and files of `protect` (the data file) are never replaced.
  */
-export function* recoverFolder(w: Writer, names: readonly string[] = []): Steps<Recovery> {
+export function* recoverFolder(w: Writer, names: readonly string[] = [], protect: readonly string[] = []): Steps<Recovery> {
   const completed: string[] = [];
   const kept: { marker: CommitMarker; reasons: string[] }[] = [];
   const busy: { record: string; pid: number }[] = [];
@@ -356,7 +359,7 @@ export function* recoverFolder(w: Writer, names: readonly string[] = []): Steps<
     }
     const states = new Map<string, EntryState>();
     for (const e of marker.files) states.set(e.file, { target: yield* hash(e.file), temp: yield* hash(e.temp) });
-    const plan = planRecovery(marker, states);
+    const plan = planRecovery(marker, states, protect);
     for (const name of plan.removals) {
       yield* removeQuietly(name);
       removed.push(name);
@@ -468,13 +471,15 @@ export interface SetWritten {
 /**
  * The whole protocol for one set: recover the folder, refuse when another process is writing
  * the same record, ask (step 'accept') about files in the way that Knotwise did not write,
- * then commit. `files` in any order; `record` names the fit record among them.
+ * then commit. `files` in any order; `record` names the fit record among them. `protect`
+ * names files of the folder that recovery must never replace (the data file, when it is
+ * there); the caller refuses outputs named like it before.
  */
-export function* writeSet(w: Writer, files: readonly SetFile[], record: string): Steps<SetWritten> {
+export function* writeSet(w: Writer, files: readonly SetFile[], record: string, protect: readonly string[] = []): Steps<SetWritten> {
   const recordFile = files.find((f) => f.name === record);
   if (!recordFile) throw new Error(`writeSet: the record ${record} is not among the files`);
   const names = files.map((f) => f.name);
-  const recovery = yield* recoverFolder(w, names);
+  const recovery = yield* recoverFolder(w, names, protect);
   const busy = recovery.busy.find((b) => b.record === record);
   if (busy) throw new InputError(`another Knotwise process (id ${busy.pid}) is writing ${record} in this folder right now; try again when it has finished`);
   const kept = recovery.kept.find((k) => k.marker.record === record)?.marker;

@@ -276,6 +276,30 @@ describe('what a killed run left', () => {
     assert.ok(!readdirSync(out).some((n) => parseMarkerName(n) !== undefined || (parseTempName(n) !== undefined && n !== live)));
   });
 
+  it('a commit marker that names the data file never replaces it (the data stay byte for byte)', async () => {
+    const gone = deadPid();
+    const before = readFileSync(data);
+    const evil = 'speed,dist\n1,1\n';
+    const temp = tempName('cars.csv', gone, 'abcdef012345');
+    writeFileSync(join(dir, temp), evil);
+    const marker = {
+      format: 'knotwise-commit',
+      version: 1,
+      writer: { pid: gone, host: nodeWriter(dir).host },
+      record: 'cars.fit.json',
+      files: [
+        { file: 'cars.csv', temp, sha256: sha256(evil), replaces: sha256(before) },
+        { file: 'cars.fit.json', temp: tempName('cars.fit.json', gone, 'abcdef012345'), sha256: sha256('{}'), replaces: null },
+      ],
+    };
+    writeFileSync(join(dir, markerName('cars.fit.json')), JSON.stringify(marker));
+    const r = await runMain('fit', data, '--x', 'speed', '--y', 'dist', '--df', '4', '--save');
+    assert.equal(r.code, 0, r.stderr);
+    assert.ok(readFileSync(data).equals(before));
+    assert.ok(!existsSync(join(dir, temp)), 'its temporary file is removed');
+    assert.ok(!existsSync(join(dir, markerName('cars.fit.json'))), 'the marker goes with the next commit of that record');
+  });
+
   it('another Knotwise process writing the same record right now: refused (exit 2), its files untouched', async () => {
     assert.equal((await runMain(...fitArgs())).code, 0);
     // The parent of this process stands for a live writer whose marker is in place.

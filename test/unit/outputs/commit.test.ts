@@ -283,6 +283,9 @@ describe('commit protocol: names and marker', () => {
     assert.deepEqual(edited.renames, []);
     assert.equal(edited.removals.length, 3);
     assert.match(edited.blocked[0] as string, /^t: it changed after the interrupted write/);
+    const data = planRecovery(marker, new Map([['u', { target: undefined, temp: sha256('U2') }]]), ['u']);
+    assert.equal(data.outcome, 'blocked', 'a marker that names the data file is never carried out');
+    assert.match(data.blocked.join('\n'), /u: it is the data file/);
     const lost = planRecovery(marker, new Map([['t', { target: sha256('T1'), temp: undefined }]]));
     assert.equal(lost.outcome, 'blocked');
     assert.match(lost.blocked.join('\n'), /t: its new bytes are gone/);
