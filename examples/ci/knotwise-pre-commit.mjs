@@ -11,7 +11,7 @@
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { dirname, join, posix } from 'node:path';
+import { join, posix } from 'node:path';
 
 const git = (...args) => {
   const r = spawnSync('git', args, { encoding: 'utf8' });
