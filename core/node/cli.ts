@@ -16,7 +16,7 @@ import { MAX_CANDIDATES, parseDfList, parseSeed } from '../tune/candidates';
 import { parseColumns } from '../table/columns';
 import { OPTIONAL_COLUMNS, TABLE_COLUMNS } from '../table/curveTable';
 import { DEFAULT_GRID_COUNT, MAX_GRID_POINTS, parseGrid } from '../table/grid';
-import { sig } from '../tune/format';
+import { metricLabel, sig } from '../tune/format';
 import { isPlainModel, MAX_HUBER_K } from '../fit/model';
 import { modelReportJson, modelSpecJson } from '../fit/modelJson';
 import { HUBER_K } from '../fit/robust';
@@ -541,7 +541,7 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
       lines.push(`Tuning (${formatResampling(analysis.tune.resample)}, seed ${analysis.tune.seed}):`);
       for (const c of analysis.tune.candidates) {
         const e = c.errors[analysis.tune.metric];
-        lines.push(c.skipped ? `  df ${c.df}: skipped - ${c.skipped}` : `  df ${c.df}: ${analysis.tune.metric} ${sig(e?.mean ?? NaN)} (SE ${sig(e?.se ?? NaN, 2)})`);
+        lines.push(c.skipped ? `  df ${c.df}: skipped - ${c.skipped}` : `  df ${c.df}: ${metricLabel(analysis.tune.metric)} ${sig(e?.mean ?? NaN)} (SE ${sig(e?.se ?? NaN, 2)})`);
       }
       lines.push(analysis.tune.selected.reason);
       if (analysis.tune.holdout)
