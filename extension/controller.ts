@@ -14,8 +14,21 @@ import type { Touch } from './follow';
 import { PANEL_VIEW_TYPE } from './panel';
 import { routePanelMessage } from './panelMessages';
 import { RejectedRowsView } from './problems';
+import { RecordWatch } from './records';
 import { DataSession, type SessionContext } from './session';
 import { analysisOptions, readSettings, sameAnalysis, type Settings } from './settings';
+
+/** How long after activation the workspace's fit records are first looked at (ms): off the activation path. */
+const RECORD_SCAN_DELAY_MS = 1000;
+
+/** The glob of fit records: the command line's `*.fit.json` and the name the settings give records. */
+function recordGlob(recordName: string): string {
+  const pattern = recordName
+    .split('${name}')
+    .join('*')
+    .replace(/[[\]{}?!,]/g, (c) => `[${c}]`);
+  return pattern === '*.fit.json' ? '**/*.fit.json' : `**/{*.fit.json,${pattern}}`;
+}
 
 /** How long an edited file with Problems entries rests before its rows are checked again (ms). */
 const REVALIDATE_DELAY_MS = 400;
@@ -29,6 +42,9 @@ export class Controller implements vscode.Disposable {
   private settings: Settings;
   private readonly subscriptions = new DisposableStore();
   private readonly revalidateTimers = new Map<string, ReturnType<typeof setTimeout>>();
+  /** Every fit record of the workspace, watched (started after activation). */
+  readonly records: RecordWatch;
+  private readonly recordScan: ReturnType<typeof setTimeout>;
 
   constructor(context: vscode.ExtensionContext) {
     this.settings = this.readSettings();
@@ -42,6 +58,8 @@ export class Controller implements vscode.Disposable {
     };
     const s = this.subscriptions;
     s.add(this.problems);
+    this.records = s.add(new RecordWatch(() => recordGlob(this.settings.recordName)));
+    this.recordScan = setTimeout(() => this.records.start(), RECORD_SCAN_DELAY_MS);
     s.add(
       vscode.workspace.onDidChangeConfiguration((e) => {
         if (e.affectsConfiguration('knotwise')) this.settingsChanged();
@@ -95,6 +113,11 @@ export class Controller implements vscode.Disposable {
         if (!s?.hasPanel || !isPanelMessage(message)) return false;
         routePanelMessage(s, message);
         return true;
+      },
+      staleRecords: async () => {
+        this.records.start();
+        await this.records.settled();
+        return { statusText: this.records.statusText, records: this.records.stale() };
       },
     };
   }
@@ -214,6 +237,7 @@ export class Controller implements vscode.Disposable {
   }
 
   dispose(): void {
+    clearTimeout(this.recordScan);
     this.stopAll();
     for (const t of this.revalidateTimers.values()) clearTimeout(t);
     for (const s of this.sessions.values()) s.dispose();

@@ -7,6 +7,7 @@ import type { KnotwiseApi, RunSummary, SaveCommandOptions, TuneCommandOptions } 
 import { Controller } from './controller';
 import { isTableFile } from './csvSource';
 import { DisposableStore } from './disposables';
+import { STALE_COMMAND } from './records';
 
 /** Command identifiers (also in package.json). */
 export const COMMANDS = {
@@ -14,6 +15,7 @@ export const COMMANDS = {
   save: 'knotwise.saveCurveTable',
   stop: 'knotwise.stopTuning',
   forget: 'knotwise.forgetColumns',
+  stale: STALE_COMMAND,
 } as const;
 
 const store = new DisposableStore();
@@ -47,6 +49,7 @@ export function activate(context: vscode.ExtensionContext): KnotwiseApi {
       if (uri) await controller.forgetColumns(uri);
     }),
   );
+  store.add(vscode.commands.registerCommand(COMMANDS.stale, () => controller.records.offer()));
   context.subscriptions.push(store);
   return controller.api();
 }

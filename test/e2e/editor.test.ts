@@ -2,11 +2,15 @@
  * One scenario in the real workbench, as a person would do it: right-click MASS::mcycle
  * (Silverman 1985, from R's MASS package; see fixtures/make-fixtures.R) in the explorer,
  * pick the columns, wait for the panel, read the explanation, press save, find the files
- * on disk, run it again from the panel, look at it in a light and a dark theme; then start
- * a long run from the command palette and stop it with the notification's Cancel button,
- * which leaves no file behind. No request may leave 127.0.0.1.
+ * on disk, run it again from the panel, look at it in a light and a dark theme; click a
+ * reading to open its line beside the panel, pick a df by hand, edit the CSV (a banner
+ * within a second, no stale save), save it (the refit keeps the df), reload the window
+ * (the panel comes back); then start a long run from the command palette, stop it with
+ * the notification's Cancel button, which leaves no file behind, and run it again from
+ * the panel. No request may leave 127.0.0.1.
  */
 import assert from 'node:assert/strict';
+import { createHash } from 'node:crypto';
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Frame, Page } from 'playwright-core';
@@ -38,6 +42,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     browser = await wb.launchChromium({ viewport: { width: 1500, height: 950 } });
     page = browser.page;
     page.setDefaultTimeout(30000);
+
     await page.goto(server.workbenchUrl(workspace, [['extensionDevelopmentPath', server.remotePath(wb.repoRoot)]]));
   });
 
@@ -132,7 +137,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
 
   it('pressing save writes the curve table and fit record next to the CSV', async function () {
     await panel.click('#kw-save');
-    await panel.locator('#kw-status', { hasText: 'Saved' }).waitFor();
+    await panel.locator('#kw-status', { hasText: /^Saved / }).waitFor();
     const table = join(workspace, 'mcycle.curve.csv');
     const record = join(workspace, 'mcycle.fit.json');
     assert.ok(existsSync(table) && existsSync(record));
@@ -216,6 +221,114 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     assert.match((await panel.textContent('#kw-model-lines')) ?? '', /Shape non-negative: \d+ of \d+ linear inequalities active/);
   });
 
+  it('clicking a reading opens its line in an editor beside the panel, never over it', async function () {
+    // The last reading of mcycle.csv (line 134: times 57.6, accel 10.7).
+    const point = panel.locator('#fig-data circle.kw-point[data-line="134"]');
+    await point.click();
+    // Both stay in view: the panel is the active tab of its group, the CSV of another.
+    const csvTab = page.locator('.editor-group-container .tab.active .label-name', { hasText: /^mcycle\.csv$/ });
+    await csvTab.waitFor();
+    await page.locator('.editor-group-container .tab.active .label-name', { hasText: 'Curve review · mcycle.csv' }).waitFor();
+    assert.equal(await page.locator('.editor-group-container').count(), 2, 'two editor groups');
+    await page.locator('[id="status.editor.selection"]', { hasText: /Ln 134,/ }).waitFor();
+    assert.equal(await panel.locator('#kw-chosen-df').isVisible(), true, 'the panel still shows its result');
+  });
+
+  let picked = 0;
+  let savedTable = '';
+  it('after a df is picked by hand, an edit of the CSV shows a banner within a second and no stale table can be saved', async function () {
+    // A df other than the one the rule chose, picked in the panel.
+    const options = await panel.$$eval('#kw-df option', (os) => os.map((o) => Number(o.getAttribute('value'))));
+    picked = options.find((df) => df !== chosenDf && df >= 5) ?? 0;
+    assert.ok(picked > 0, `a df to pick among ${options.join(', ')}`);
+    await panel.selectOption('#kw-df', String(picked));
+    assert.equal(await panel.textContent('#kw-chosen-df'), `df ${picked}`);
+    savedTable = readFileSync(join(workspace, 'mcycle.curve.csv'), 'utf8');
+    const savedRecord = readFileSync(join(workspace, 'mcycle.fit.json'), 'utf8');
+    // Type into the CSV beside the panel: line 134 becomes 57.6,10.71.
+    await page.locator('.editor-group-container .tab .label-name', { hasText: /^mcycle\.csv$/ }).click();
+    await page.locator('.monaco-editor.focused').waitFor();
+    await page.keyboard.press('End');
+    const typed = Date.now();
+    await page.keyboard.type('1');
+    await panel.locator('#kw-banner').waitFor({ state: 'visible', timeout: 1000 });
+    assert.ok(Date.now() - typed <= 1000, `the banner took ${Date.now() - typed} ms`);
+    assert.equal(await panel.textContent('#kw-banner-text'), 'Unsaved edits in mcycle.csv since this analysis: 1 row changed. Saving mcycle.csv refits the curve.');
+    assert.equal(await panel.textContent('#kw-save'), 'Refit and save');
+    // Refit and save asks to save the CSV first; declining saves nothing.
+    await panel.click('#kw-save');
+    const dialog = page.locator('.monaco-dialog-box', { hasText: 'mcycle.csv has unsaved edits' });
+    await dialog.waitFor();
+    await dialog.getByRole('button', { name: 'Cancel' }).click();
+    await panel.locator('#kw-status', { hasText: 'Nothing was saved: mcycle.csv has unsaved edits' }).waitFor();
+    assert.equal(readFileSync(join(workspace, 'mcycle.curve.csv'), 'utf8'), savedTable);
+    assert.equal(readFileSync(join(workspace, 'mcycle.fit.json'), 'utf8'), savedRecord);
+    await page.screenshot({ path: join(artifacts, 'editor-banner.png') });
+  });
+
+  it('saving the CSV refits at once, keeps the df picked by hand and says what moved; the status bar counts the stale table until it saves', async function () {
+    const before = Number(await panel.getAttribute('#knotwise-root', 'data-run-id'));
+    await page.locator('.editor-group-container .tab .label-name', { hasText: /^mcycle\.csv$/ }).click();
+    await page.locator('.monaco-editor.focused').waitFor();
+    await page.keyboard.press('Control+S');
+    await newRun(before, 'saving the CSV');
+    assert.equal(await panel.locator('#kw-banner').isVisible(), false);
+    assert.equal(await panel.textContent('#kw-chosen-df'), `df ${picked}`);
+    assert.equal(await panel.isChecked('#kw-rule-pick'), true);
+    assert.match((await panel.textContent('#kw-moved')) ?? '', new RegExp(`^Refitted after mcycle\\.csv changed: 133 rows as before; the chosen df stayed at ${picked}; the curve moved by at most `));
+    assert.equal(await panel.textContent('#kw-save'), 'Save table and record');
+    // The saved table and record no longer match the data: the status bar says so until the save.
+    const staleItem = page.locator('.statusbar-item', { hasText: '1 curve table out of date' });
+    await staleItem.waitFor();
+    await panel.click('#kw-save');
+    await panel.locator('#kw-status', { hasText: /^Saved / }).waitFor();
+    await staleItem.waitFor({ state: 'hidden' });
+    const rec = JSON.parse(readFileSync(join(workspace, 'mcycle.fit.json'), 'utf8')) as { selection: { df: number }; data: { sha256: string } };
+    assert.equal(rec.selection.df, picked);
+    assert.equal(rec.data.sha256, createHash('sha256').update(readFileSync(join(workspace, 'mcycle.csv'))).digest('hex'), 'the record names the bytes on disk');
+    assert.notEqual(readFileSync(join(workspace, 'mcycle.curve.csv'), 'utf8'), savedTable);
+  });
+
+  it('Refit and save with unsaved edits saves the CSV when asked, refits and saves the table from the bytes on disk', async function () {
+    await page.locator('.editor-group-container .tab .label-name', { hasText: /^mcycle\.csv$/ }).click();
+    await page.locator('.monaco-editor.focused').waitFor();
+    await page.keyboard.press('End');
+    await page.keyboard.type('2');
+    await panel.locator('#kw-banner').waitFor({ state: 'visible', timeout: 1000 });
+    await panel.click('#kw-save');
+    const dialog = page.locator('.monaco-dialog-box', { hasText: 'mcycle.csv has unsaved edits' });
+    await dialog.waitFor();
+    await dialog.getByRole('button', { name: 'Save and Refit' }).click();
+    await panel.locator('#kw-status', { hasText: /^Saved / }).waitFor({ timeout: 60000 });
+    const csv = readFileSync(join(workspace, 'mcycle.csv'), 'utf8');
+    assert.match(csv, /\n57\.6,10\.712\n?$/, 'the CSV was saved with the edit');
+    const rec = JSON.parse(readFileSync(join(workspace, 'mcycle.fit.json'), 'utf8')) as { selection: { df: number }; data: { sha256: string } };
+    assert.equal(rec.data.sha256, createHash('sha256').update(csv).digest('hex'));
+    assert.equal(rec.selection.df, picked);
+    assert.equal(await panel.locator('#kw-banner').isVisible(), false);
+    assert.equal(await panel.textContent('#kw-chosen-df'), `df ${picked}`);
+  });
+
+  it('a reload of the window restores the panel with the df picked by hand and the shape ticked in it', async function () {
+    // Through the command palette, as a person would: the workbench keeps its editors' state and reloads.
+    await page.locator('.part.sidebar .title-label').first().click();
+    await page.keyboard.press('F1');
+    const input = page.locator('.quick-input-widget input.input');
+    await input.waitFor();
+    await input.fill('>Developer: Reload Window');
+    const oldPanel = panel;
+    await page.getByRole('option', { name: /Developer: Reload Window/ }).first().click();
+    // The old panel's frame goes with the old page.
+    await oldPanel.locator('#knotwise-root').waitFor({ state: 'detached', timeout: 30000 }).catch(() => undefined);
+    panel = await findPanel();
+    assert.equal(await panel.textContent('#kw-chosen-df'), `df ${picked}`);
+    assert.equal(await panel.isChecked('#kw-rule-pick'), true);
+    assert.equal(await panel.isChecked('#kw-shape-nonnegative'), true);
+    assert.match((await panel.textContent('#kw-model-words')) ?? '', /set in this panel/);
+    await page.locator('.editor-group-container .tab .label-name', { hasText: 'Curve review · mcycle.csv' }).waitFor();
+  });
+
+  let cancelled: Frame | undefined;
   it("a long run started from the command palette stops with the notification's Cancel button and leaves no file behind", async function () {
     // Close the panel first, so the settings change below reruns nothing.
     await page.keyboard.press('F1');
@@ -256,22 +369,34 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.keyboard.press('Enter');
     const toast = page.locator('.notification-toast', { hasText: 'Knotwise: tuning the curve for drift.csv' });
     await toast.waitFor({ timeout: 30000 });
+    // The run has read its settings; Run again below takes a quick method.
+    writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'gcv' }));
     await toast.getByRole('button', { name: 'Cancel' }).click();
     // The panel says so, and nothing was written next to the data.
     const deadline = Date.now() + 30000;
-    let said = false;
+    let said: Frame | undefined;
     while (!said && Date.now() < deadline) {
       for (const f of page.frames()) {
         // $ does not wait, so frames without the panel are passed over at once.
         const root = await f.$('#knotwise-root').catch(() => null);
         const text = root ? await root.textContent() : null;
-        if (text && /Tuning was cancelled/.test(text)) said = true;
+        if (text && /Tuning was cancelled/.test(text)) said = f;
       }
       if (!said) await page.waitForTimeout(200);
     }
     assert.ok(said, 'the panel says the run was cancelled');
     await page.screenshot({ path: join(artifacts, 'editor-cancelled.png') });
     assert.deepEqual(readdirSync(workspace).sort(), before);
+    cancelled = said;
+  });
+
+  it('after the cancel, Run again in the panel runs the analysis and shows its result', async function () {
+    const frame = cancelled;
+    assert.ok(frame);
+    await frame.click('#kw-rerun');
+    await frame.locator('#knotwise-root[data-state="ready"]').waitFor({ timeout: 60000 });
+    assert.match((await frame.textContent('.kw-meta')) ?? '', /^drift\.csv · 40000 rows used/);
+    assert.match((await frame.textContent('#kw-chosen-df')) ?? '', /^df \d+$/);
   });
 
   it('no request left 127.0.0.1', function () {

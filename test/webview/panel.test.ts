@@ -550,6 +550,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.equal(await page.textContent('#kw-banner-text'), 'Unsaved edits in mcycle.csv since this analysis: 2 rows added, 1 row changed. Saving mcycle.csv refits the curve.');
     assert.equal(await page.textContent('#kw-save'), 'Refit and save');
     assert.equal(await page.getAttribute('#knotwise-root', 'data-data'), 'changed-editor');
+    await page.screenshot({ path: join(artifacts, 'webview-banner.png') });
     let mark = pp.sent.length;
     await page.click('#kw-save');
     const save = await pp.waitForSent('refitAndSave', mark);
@@ -603,7 +604,6 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.equal(await page.locator('#kw-banner').isVisible(), false);
     assert.equal(await page.textContent('#kw-save'), 'Save table and record');
     assert.deepEqual(await pp.cspViolations(), []);
-    await page.screenshot({ path: join(artifacts, 'webview-banner.png') });
     await page.close();
   });
 

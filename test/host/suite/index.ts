@@ -32,6 +32,7 @@ export async function run(): Promise<void> {
   require('./settings.test');
   require('./commands.test');
   require('./follow.test');
+  require('./records.test');
   require('./saveRecovery.test');
   await new Promise<void>((resolve, reject) => {
     const runner = mocha.run((failures) => {

@@ -1,0 +1,610 @@
+/**
+ * One data file's session: the single owner of which bytes were analysed (their SHA-256
+ * and text), which analysis the panel shows, which rule and model options the person
+ * chose, and what is saved from it. A session runs its analyses (one at a time: a new run
+ * cancels the previous one), follows the data while its panel is open (an edit, a save,
+ * a change on disk mark the analysis out of date at once, and a save refits when the
+ * settings say so), and saves the curve table and fit record only of an analysis of the
+ * bytes on disk.
+ */
+import * as vscode from 'vscode';
+import type { Analysis } from '../core/analysis/types';
+import { CancelledError, InputError } from '../core/errors';
+import { selectColumns } from '../core/ingest/select';
+import { selectTrials } from '../core/ingest/trials';
+import { placed } from '../core/node/pipeline';
+import type { HostMessage, PanelState } from '../core/protocol';
+import { resolveModel } from '../core/registry/curves/index';
+import type { ResampleRunner } from '../core/tune/tune';
+import { selectDf } from '../core/tune/rules';
+import type { RuleSpec } from '../core/tune/types';
+import type { DataChangeView, DataStateView, ModelChoice, PanelPayload, RefitView } from '../core/view/model';
+import { buildPanelPayload } from '../core/view/payload';
+import type { RunSummary, SaveCommandOptions, SaveSummary, TuneCommandOptions } from './api';
+import { choiceFits, pickColumns, pickTrials, type ColumnChoice, type ColumnMemory } from './columns';
+import { baseName, diskSha256, isNotFound, LARGE_FILE_BYTES, openDocument, readCsv, readData, type CsvSource, type DataText } from './csvSource';
+import { compareRows, dataRowCount } from './dataChange';
+import { DataFollower, type Touch } from './follow';
+import { stillValid, whatMoved } from './moved';
+import { PanelView } from './panel';
+import { routePanelMessage } from './panelMessages';
+import type { RejectedRowsView } from './problems';
+import { detailFor, errorText, modelSummary, type RunResult } from './result';
+import { analyseWithProgress, RunTicket } from './run';
+import { saveDeliverables, type OverwriteAnswer } from './save';
+import { analysisOptions, modelOptions, type ModelSettings, type Settings } from './settings';
+
+/** What every session shares: the extension's folder, remembered columns, Problems, the worker pool, settings and run ids. */
+export interface SessionContext {
+  readonly extensionUri: vscode.Uri;
+  readonly memory: ColumnMemory;
+  readonly problems: RejectedRowsView;
+  readonly runner: ResampleRunner;
+  /** The current settings snapshot. */
+  settings(): Settings;
+  /** A run id, larger than every one before it. */
+  newRunId(): number;
+}
+
+/** How a run starts. */
+export interface RunRequest {
+  readonly options?: TuneCommandOptions;
+  /** Ask for the columns even when some are remembered. */
+  readonly ask?: boolean;
+  /** A run nobody asked for (settings changed): only for a panel that is still open. */
+  readonly background?: boolean;
+  /** Keep the person's rule where it still applies (default: when not asking for the columns). */
+  readonly keep?: boolean;
+  /** Never ask for the columns: without remembered ones the panel says how to choose them (a restored panel). */
+  readonly noPicks?: boolean;
+  /** Why the run replaces the shown one, for the panel's line about what moved. */
+  readonly reason?: RefitView['reason'];
+}
+
+/** What a save that writes nothing says in the panel and the command's answer. */
+class NotSaved extends Error {}
+
+/** The two column choices name the same columns. */
+function sameColumns(a: ColumnChoice, b: ColumnChoice): boolean {
+  return a.x === b.x && a.y === b.y && (a.weights ?? null) === (b.weights ?? null) && (a.trials ?? null) === (b.trials ?? null);
+}
+
+/** Everything Knotwise keeps for one data file. */
+export class DataSession implements vscode.Disposable {
+  readonly file: string;
+  panel: PanelView | undefined;
+  /** The running run. */
+  private running: RunTicket | undefined;
+  /** The latest finished run (the one the panel shows). */
+  result: RunResult | undefined;
+  /** The person's current rule in the panel. */
+  rule: RuleSpec | undefined;
+  /** Model options set with the panel's controls; they replace the settings' for this file until those change. */
+  model: ModelSettings | undefined;
+  /** The latest payload posted to the panel, and counts for the API. */
+  payload: PanelPayload | undefined;
+  posted = 0;
+  analysed = 0;
+  /** How the data differs from the bytes the shown run analysed (undefined: not at all, as far as known). */
+  private change: DataChangeView | undefined;
+  /** The person was asked whether to refit a large file after a save. */
+  private refitAsked = false;
+  /** The latest run could not keep the person's rule (a picked df was not fitted to the new data). */
+  private ruleDropped = false;
+  private readonly follower: DataFollower;
+
+  constructor(
+    readonly uri: vscode.Uri,
+    private readonly ctx: SessionContext,
+  ) {
+    this.file = baseName(uri);
+    this.follower = new DataFollower(uri, (touches) => void this.compareNow(touches));
+  }
+
+  /** True while the panel is open. */
+  get hasPanel(): boolean {
+    return this.panel !== undefined && !this.panel.isClosed;
+  }
+
+  /** True while a run is going. */
+  get isRunning(): boolean {
+    return this.running !== undefined;
+  }
+
+  /** The model options of this file: the panel's when set and still possible with the curve kind, else the settings'. */
+  modelFor(): ModelSettings {
+    const settings = this.ctx.settings();
+    if (this.model) {
+      try {
+        resolveModel(settings.kind, modelOptions(this.model));
+        return this.model;
+      } catch {
+        this.model = undefined;
+      }
+    }
+    return settings.model;
+  }
+
+  /** The columns for a run: given, remembered (when not asking), or picked; undefined when the person dismissed a pick or none may be asked. */
+  private async columnsFor(source: CsvSource, request: RunRequest, binomial: boolean, token: vscode.CancellationToken): Promise<ColumnChoice | undefined> {
+    const { options = {}, ask = false, noPicks = false } = request;
+    if (options.columns) return options.columns;
+    const stored = this.ctx.memory.get(this.uri);
+    const remembered = stored && choiceFits(source.table, stored) ? stored : undefined;
+    if (noPicks) return remembered && (!binomial || remembered.trials !== undefined) ? remembered : undefined;
+    let choice = !ask && remembered ? remembered : await pickColumns(source.table, this.file, remembered, token, binomial);
+    // A binomial outcome asks once for the trials column (null: none) before using a remembered choice.
+    if (choice && binomial && choice.trials === undefined) choice = await pickTrials(source.table, this.file, choice, token);
+    return choice;
+  }
+
+  /**
+   * Reads the file, asks for columns, tunes with progress and shows the panel. A
+   * `background` run (after a settings change) only updates a panel that is still open.
+   * The person's rule is kept where it still applies (`keep`), and a run on changed data
+   * says what moved.
+   */
+  async tune(request: RunRequest = {}): Promise<RunSummary> {
+    const { ask = false, background = false } = request;
+    const keep = request.keep ?? !ask;
+    const file = this.file;
+    if (background && !this.hasPanel) return { status: 'dismissed', file };
+    // A second run on the same file replaces the first.
+    this.running?.cancel();
+    const ticket = new RunTicket(this.ctx.newRunId());
+    const runId = ticket.runId;
+    this.running = ticket;
+    const current = (): boolean => this.running === ticket;
+    try {
+      const source = await readCsv(this.uri);
+      ticket.sha256 = source.sha256;
+      const settings = this.ctx.settings();
+      const model = this.modelFor();
+      const binomial = model.outcome === 'proportions';
+      const choice = await this.columnsFor(source, request, binomial, ticket.token);
+      if (!choice) {
+        if (request.noPicks) this.post({ type: 'failed', runId, message: `Knotwise does not know which columns of ${file} to use yet. Run again to choose them.` });
+        return { status: 'dismissed', file, runId };
+      }
+      if (!current()) return { status: 'superseded', file, runId };
+      await this.ctx.memory.set(this.uri, choice);
+      // A binomial outcome with a trials column: proportions weighted by the trials (as --trials on the command line).
+      const trials = binomial && typeof choice.trials === 'string' ? choice.trials : undefined;
+      const columns =
+        trials !== undefined ? selectTrials(source.table, { x: choice.x, y: choice.y }, trials, file) : selectColumns(source.table, { x: choice.x, y: choice.y, weights: choice.weights }, file);
+      const opts = analysisOptions(settings, model);
+      if (background && !this.hasPanel) return { status: 'dismissed', file, runId };
+      this.ctx.problems.show(this.uri, source.text, source.table, columns.rejected);
+      const panel = this.openPanel();
+      panel.post({ type: 'running', runId, message: `Tuning ${columns.data.x.length} rows…` });
+      let analysis: Analysis;
+      try {
+        analysis = await analyseWithProgress(this.ctx.runner, file, columns.data, opts, ticket.token, (message, fraction) => panel.post({ type: 'running', runId, message: `${message}…`, fraction }));
+      } catch (err) {
+        throw placed(err, file, columns.labels);
+      }
+      this.analysed++;
+      if (!current()) return { status: 'superseded', file, runId };
+      const result: RunResult = { runId, source, choice, columns, trials, options: opts, analysis, checks: new Map([[analysis.chosen.df, analysis.diagnostics]]), details: new Map() };
+      // The person's rule (read now: it may have changed in the panel during the run) where it still applies.
+      const before = this.result;
+      const ruleBefore = this.rule;
+      const kept = keep ? stillValid(analysis, ruleBefore) : undefined;
+      const rule = kept ?? analysis.tune.selected.rule;
+      const dropped = keep && ruleBefore !== undefined && kept === undefined;
+      const moved =
+        before && ruleBefore && before.source.sha256 !== source.sha256 && sameColumns(before.choice, choice)
+          ? whatMoved(before.analysis, ruleBefore, analysis, rule, dropped, request.reason ?? 'asked')
+          : undefined;
+      this.result = result;
+      this.rule = rule;
+      this.ruleDropped = dropped;
+      this.refitAsked = false;
+      // The data may have changed again while the run went on.
+      const seen = await this.changeSince(result);
+      if (this.result !== result) return { status: 'superseded', file, runId };
+      this.change = seen.change;
+      this.showResult(undefined, moved);
+      if (seen.change?.where === 'disk' && seen.now) this.refitOnSave(seen.now);
+      return {
+        status: 'done',
+        file,
+        runId,
+        chosenDf: selectDf(analysis.tune.candidates, rule, analysis.tune.metric).df,
+        candidates: analysis.tune.candidates.map((c) => c.df),
+        rowsUsed: columns.data.x.length,
+        rejected: columns.rejected.length,
+        model: modelSummary(analysis.chosen, opts, trials),
+      };
+    } catch (err) {
+      if (err instanceof CancelledError || ticket.cancelled) {
+        const superseded = !current();
+        if (!superseded) this.post({ type: 'failed', runId, message: `Tuning was cancelled.${this.result ? ' The result shown is from the run before.' : ''}` });
+        return { status: superseded ? 'superseded' : 'cancelled', file, runId };
+      }
+      const message = errorText(err);
+      this.post({ type: 'failed', runId, message: `Knotwise could not tune ${file}: ${message}` });
+      void vscode.window.showErrorMessage(`Knotwise: ${message}`);
+      return { status: 'failed', file, runId, message };
+    } finally {
+      if (current()) this.running = undefined;
+      ticket.dispose();
+    }
+  }
+
+  /** Stops the running run; true when one was running. */
+  stop(): boolean {
+    if (!this.running) return false;
+    this.running.cancel();
+    return true;
+  }
+
+  /** Sends a message to the panel when it is open. */
+  post(message: HostMessage): void {
+    this.panel?.post(message);
+  }
+
+  /** The panel, opened (or brought forward) when needed; `restored` is a panel the window brought back after a reload. */
+  private openPanel(restored?: vscode.WebviewPanel): PanelView {
+    if (this.panel && !this.panel.isClosed) {
+      if (!restored) this.panel.reveal();
+      return this.panel;
+    }
+    const panel = new PanelView(
+      this.ctx.extensionUri,
+      `Curve review · ${this.file}`,
+      (m) => routePanelMessage(this, m),
+      () => this.panelClosed(panel),
+      restored,
+    );
+    this.panel = panel;
+    panel.post({ type: 'file', uri: this.uri.toString(), fileName: this.file });
+    this.follower.start();
+    return panel;
+  }
+
+  /** The panel was closed: its Problems entries, its following of the data and its banner go with it. */
+  private panelClosed(panel: PanelView): void {
+    if (this.panel !== panel) return;
+    this.panel = undefined;
+    this.follower.stop();
+    this.ctx.problems.clear(this.uri);
+    this.change = undefined;
+    this.refitAsked = false;
+  }
+
+  /** The editor column of the panel (for showing the data beside it). */
+  get panelColumn(): vscode.ViewColumn | undefined {
+    return this.panel?.viewColumn;
+  }
+
+  /**
+   * Takes over a panel the window restored after a reload: its model options and rule come
+   * back from its saved state, and the analysis runs again (without asking for columns).
+   */
+  restore(restored: vscode.WebviewPanel, state: PanelState): void {
+    this.openPanel(restored);
+    if (state.model) {
+      const next = this.modelFromChoice(state.model);
+      if (typeof next !== 'string') this.model = this.differsFromSettings(next) ? next : undefined;
+    }
+    if (state.rule) this.rule = state.rule;
+    void this.tune({ noPicks: true, keep: true });
+  }
+
+  /** Posts the result to the panel; `rule` starts a new view of the same run with that rule; `moved` says what a rerun changed. */
+  showResult(rule?: RuleSpec, moved?: RefitView): void {
+    const r0 = this.result;
+    if (!r0 || !this.panel) return;
+    const settings = this.ctx.settings();
+    // A new view of the same analysis gets a new run id, so the panel forgets the rule it kept for the old one.
+    const r = rule ? { ...r0, runId: this.ctx.newRunId() } : r0;
+    this.result = r;
+    const payload = buildPanelPayload({
+      runId: r.runId,
+      analysis: r.analysis,
+      source: {
+        fileName: r.source.fileName,
+        xLabel: r.columns.labels.x,
+        yLabel: r.columns.labels.y,
+        ...(r.columns.labels.weights && r.trials === undefined ? { weightsLabel: r.columns.labels.weights } : {}),
+      },
+      rejected: r.columns.rejected.length,
+      heldOut: r.analysis.heldOut?.x.length ?? 0,
+      tolerancePercent: settings.tolerancePercent,
+      rule: rule ?? this.rule,
+      trialsLabel: r.trials !== undefined ? r.columns.labels.weights : undefined,
+      modelFromPanel: this.model !== undefined,
+      detail: (df) => detailFor(r, df),
+      warnings: settings.problems,
+    });
+    const shown: PanelPayload = moved ? { ...payload, refit: moved } : payload;
+    this.rule = shown.rule;
+    this.payload = shown;
+    this.posted++;
+    this.panel.post({ type: 'result', payload: shown });
+    this.postDataState();
+  }
+
+  /** Answers the panel's request for the residual details of one df of the shown run. */
+  sendDetail(runId: number, df: number): void {
+    const r = this.result;
+    if (!r || runId !== r.runId) return;
+    const detail = detailFor(r, df);
+    if (detail) this.post({ type: 'detail', runId, detail });
+  }
+
+  // ---- Following the data ----
+
+  /** The data file was edited, saved, closed or changed on disk: the shown analysis is compared with it shortly. */
+  touch(t: Touch): void {
+    if (this.result && this.hasPanel) this.follower.touch(t);
+  }
+
+  /** Whether the shown run's bytes are the data as it is now, as the panel shows it. */
+  dataState(): DataStateView | undefined {
+    const r = this.result;
+    if (!r) return undefined;
+    const s = this.ctx.settings();
+    return {
+      analysed: r.source.unsaved ? 'unsaved' : 'disk',
+      ...(this.change ? { change: this.change } : {}),
+      refit: !s.refitOnSave ? 'manual' : this.refitAsked ? 'asked' : 'automatic',
+      followedOnDisk: !r.source.unsaved && r.source.size >= LARGE_FILE_BYTES,
+    };
+  }
+
+  /** Sends the data state of the shown run to the panel. */
+  postDataState(): void {
+    const r = this.result;
+    const state = this.dataState();
+    if (r && state) this.post({ type: 'dataState', runId: r.runId, state });
+  }
+
+  /** How the data now differs from the bytes `r` analysed, and the data now (undefined when the file is gone). */
+  private async changeSince(r: RunResult): Promise<{ change: DataChangeView | undefined; now: DataText | undefined }> {
+    let now: DataText;
+    try {
+      now = await readData(this.uri);
+    } catch (err) {
+      if (isNotFound(err)) return { change: { where: 'missing', added: 0, removed: 0, changed: 0, header: false }, now: undefined };
+      // Unreadable for a moment (a program is writing it): what was known stands.
+      return { change: this.change, now: undefined };
+    }
+    if (now.sha256 === r.source.sha256) return { change: undefined, now };
+    return { change: { where: now.unsaved ? 'editor' : 'disk', ...compareRows(r.source.text, now.text) }, now };
+  }
+
+  /**
+   * Compares the data with the shown run's bytes and tells the panel. When the analysed
+   * unsaved text has since been saved byte for byte, the run is of bytes on disk. A save
+   * or a change on disk refits when the settings say so (`autoRefit`).
+   */
+  private async compareNow(touches: ReadonlySet<Touch>, autoRefit = true): Promise<void> {
+    const r = this.result;
+    if (!r) return;
+    const seen = await this.changeSince(r);
+    // A newer run compared for itself.
+    if (this.result !== r) return;
+    if (!seen.change && seen.now && r.source.unsaved && !seen.now.unsaved) this.result = { ...r, source: { ...r.source, unsaved: false } };
+    this.change = seen.change;
+    this.postDataState();
+    if (autoRefit && seen.change?.where === 'disk' && seen.now && (touches.has('save') || touches.has('disk'))) this.refitOnSave(seen.now);
+  }
+
+  /** Refits after a save or a change on disk (settings permitting); a large file asks first. */
+  private refitOnSave(now: DataText): void {
+    const settings = this.ctx.settings();
+    if (!settings.refitOnSave || !this.hasPanel) return;
+    // A run that read (or is about to read) these bytes brings them in already.
+    if (this.running && (this.running.sha256 === undefined || this.running.sha256 === now.sha256)) return;
+    const rows = dataRowCount(now.text);
+    if (rows > settings.refitAskAboveRows) {
+      if (this.refitAsked) return;
+      this.refitAsked = true;
+      this.postDataState();
+      const refit = 'Refit';
+      void vscode.window
+        .showInformationMessage(`Knotwise: ${this.file} changed; it has ${rows} data rows, more than knotwise.refit.askAboveRows (${settings.refitAskAboveRows}). Refit the curve now?`, refit)
+        .then((pick) => (pick === refit ? this.tune({ reason: 'saved' }) : undefined));
+      return;
+    }
+    void this.tune({ reason: 'saved' });
+  }
+
+  // ---- Saving ----
+
+  /** Saves the data file's unsaved edits (asking first unless `answer` says); false when it stays unsaved. */
+  private async dataOnDisk(answer: OverwriteAnswer): Promise<boolean> {
+    const doc = openDocument(this.uri);
+    if (!doc?.isDirty) return true;
+    if (answer === 'no') return false;
+    if (answer === 'ask') {
+      const save = 'Save and Refit';
+      const pick = await vscode.window.showWarningMessage(
+        `${this.file} has unsaved edits. A curve table is saved only from data on disk, so that its fit record names bytes anyone can check. Save ${this.file} first and refit?`,
+        { modal: true },
+        save,
+      );
+      if (pick !== save) return false;
+    }
+    const saved = await doc.save();
+    // Compare now, so the refit comes from the caller rather than from the save's events.
+    if (saved) await this.compareNow(this.follower.take(), false);
+    return saved;
+  }
+
+  /** Why the shown run cannot be saved as it is (its bytes are not the file's bytes on disk), or undefined when it can. */
+  private async saveBlocker(): Promise<string | undefined> {
+    const r = this.result;
+    if (!r) return 'there is no finished run to save';
+    if (r.source.unsaved) return `this analysis read unsaved edits of ${this.file}, and a curve table is saved only from data on disk`;
+    // Events still waiting for their comparison (a watcher's late report of the save that started this run): compare now.
+    if (this.follower.pending) await this.compareNow(this.follower.take());
+    if (this.result !== r) return 'a newer analysis replaced this one';
+    if (this.change) return `${this.file} changed since this analysis`;
+    const disk = await diskSha256(this.uri);
+    if (disk === undefined) return `${this.file} is no longer on disk`;
+    if (disk !== r.source.sha256) {
+      this.follower.touch('disk');
+      return `the bytes of ${this.file} on disk are not the ones this analysis read`;
+    }
+    return undefined;
+  }
+
+  /** Runs again on the data now (keeping the person's rule) when the shown run is not of the bytes on disk. */
+  private async refitForSave(options: TuneCommandOptions = {}): Promise<void> {
+    if (!(await this.saveBlocker())) return;
+    const run = await this.tune({ options, reason: 'asked' });
+    if (run.status === 'failed') throw new NotSaved(`the refit failed: ${run.message ?? 'unknown error'}`);
+    if (run.status === 'superseded') throw new NotSaved('a newer run replaced the refit; save again once it is done');
+    if (run.status !== 'done') throw new NotSaved(`the refit was ${run.status}`);
+    if (this.ruleDropped) throw new NotSaved('the df picked before was not fitted to the new data; pick a df again and save');
+  }
+
+  /** The panel's save button (`refit`: "Refit and save": save the data file when needed and run again first). */
+  async saveFromPanel(requestId: number, runId: number, rule: RuleSpec, refit: boolean): Promise<void> {
+    if (!this.result || this.result.runId !== runId) {
+      this.post({ type: 'saveFailed', requestId, message: 'This result is out of date; nothing was saved.' });
+      return;
+    }
+    this.rule = rule;
+    try {
+      if (refit) {
+        if (!(await this.dataOnDisk('ask'))) throw new NotSaved(`${this.file} has unsaved edits, and a curve table is saved only from data on disk`);
+        await this.refitForSave();
+      }
+      const blocker = await this.saveBlocker();
+      if (blocker) {
+        this.postDataState();
+        throw new NotSaved(`${blocker}. Use “Refit and save”`);
+      }
+      const saved = await this.save(this.rule ?? rule, 'ask');
+      if (!saved) this.post({ type: 'saveFailed', requestId, message: 'Nothing was saved: an existing file was not written by Knotwise.' });
+      else this.post({ type: 'saved', requestId, files: saved.uris.map((u) => vscode.workspace.asRelativePath(u)), note: saved.note });
+    } catch (err) {
+      this.post({ type: 'saveFailed', requestId, message: `Nothing was saved: ${errorText(err)}.`.replace(/\.\.$/, '.') });
+    }
+  }
+
+  /** Saves the table and record of the shown run with `rule`; undefined when the person declined to replace a file. */
+  private async save(rule: RuleSpec, answer: OverwriteAnswer): Promise<{ uris: readonly vscode.Uri[]; note: string } | undefined> {
+    const r = this.result;
+    if (!r) throw new InputError('there is no finished run to save');
+    const saved = await saveDeliverables(
+      {
+        dataUri: this.uri,
+        fileName: r.source.fileName,
+        dataSha256: r.source.sha256,
+        rowsRead: r.source.table.rowCount,
+        columns: { x: r.choice.x, y: r.choice.y, weights: r.trials === undefined ? r.choice.weights : undefined, trials: r.trials },
+        selection: r.columns,
+        analysis: r.analysis,
+        rule,
+        settings: this.ctx.settings(),
+        diagnostics: (df) => r.checks.get(df),
+      },
+      answer,
+    );
+    if (saved) {
+      const table = saved.uris[0];
+      void vscode.commands.executeCommand('revealInExplorer', table).then(undefined, () => undefined);
+      const open = 'Open Table';
+      void vscode.window
+        .showInformationMessage(`Knotwise saved ${saved.uris.map((u) => vscode.workspace.asRelativePath(u)).join(' and ')}. ${saved.note}`, open)
+        .then((pick) => (pick === open && table ? vscode.window.showTextDocument(table, { preview: true }) : undefined));
+    }
+    return saved;
+  }
+
+  /**
+   * The save command: saves the data file's unsaved edits first (asking), runs the
+   * analysis when there is none or the shown one is not of the bytes on disk, then saves.
+   */
+  async saveCommand(options: SaveCommandOptions = {}): Promise<SaveSummary> {
+    const file = this.file;
+    if (!(await this.dataOnDisk(options.saveEditedData ?? 'ask'))) return { status: 'dismissed', file, message: `${file} has unsaved edits; a curve table is saved only from data on disk` };
+    try {
+      if (!this.result) {
+        const run = await this.tune({ options, ask: !options.columns });
+        if (run.status !== 'done') return run;
+      } else {
+        await this.compareNow(this.follower.take(), false);
+        await this.refitForSave(options);
+      }
+    } catch (err) {
+      if (err instanceof NotSaved) return { status: 'failed', file, message: err.message };
+      throw err;
+    }
+    const r = this.result as RunResult;
+    const rule = options.rule ?? this.rule ?? r.analysis.tune.selected.rule;
+    try {
+      const blocker = await this.saveBlocker();
+      if (blocker) throw new NotSaved(blocker);
+      const saved = await this.save(rule, options.replaceForeignFiles ?? 'ask');
+      if (!saved) return { status: 'dismissed', file: r.source.fileName, runId: r.runId, message: 'an existing file was not written by Knotwise' };
+      return { status: 'done', file: r.source.fileName, runId: r.runId, chosenDf: selectDf(r.analysis.tune.candidates, rule, r.analysis.tune.metric).df, files: saved.uris.map((u) => u.toString()) };
+    } catch (err) {
+      const message = errorText(err);
+      void vscode.window.showErrorMessage(`Knotwise: nothing was saved: ${message}`);
+      return { status: 'failed', file: r.source.fileName, runId: r.runId, message };
+    }
+  }
+
+  // ---- Model options ----
+
+  /** Model settings for the panel's controls (checked against the curve kind), or why they cannot be used. */
+  private modelFromChoice(choice: ModelChoice): ModelSettings | string {
+    const settings = this.ctx.settings();
+    const current = this.modelFor();
+    const next: ModelSettings = { outcome: choice.outcome, shape: choice.shape, robustK: choice.robust ? (current.robustK ?? settings.huberK) : undefined };
+    try {
+      resolveModel(settings.kind, modelOptions(next));
+      return next;
+    } catch (err) {
+      return errorText(err);
+    }
+  }
+
+  private differsFromSettings(m: ModelSettings): boolean {
+    const s = this.ctx.settings().model;
+    return !(m.outcome === s.outcome && m.robustK === s.robustK && JSON.stringify(m.shape) === JSON.stringify(s.shape));
+  }
+
+  /** The panel's outcome, shape and robust controls: checks the combination, keeps it for this file and reruns. */
+  switchModel(choice: ModelChoice): void {
+    const r = this.result;
+    if (!r) return;
+    const next = this.modelFromChoice(choice);
+    if (typeof next === 'string') {
+      this.post({ type: 'failed', runId: r.runId, message: `Not changed: ${next}` });
+      return;
+    }
+    this.model = this.differsFromSettings(next) ? next : undefined;
+    void this.tune();
+  }
+
+  /** Re-checks the rows of the edited file for the Problems panel (the columns as last chosen). */
+  async revalidate(): Promise<void> {
+    const choice = this.ctx.memory.get(this.uri);
+    if (!choice || !this.hasPanel) return;
+    try {
+      const source = await readCsv(this.uri);
+      if (!choiceFits(source.table, choice)) return;
+      const trials = this.result?.trials;
+      const columns =
+        trials !== undefined
+          ? selectTrials(source.table, { x: choice.x, y: choice.y }, trials, source.fileName)
+          : selectColumns(source.table, { x: choice.x, y: choice.y, weights: choice.weights }, source.fileName);
+      this.ctx.problems.show(this.uri, source.text, source.table, columns.rejected);
+    } catch {
+      // The file is mid-edit and unreadable: keep the entries until it reads again.
+    }
+  }
+
+  dispose(): void {
+    this.stop();
+    this.follower.dispose();
+    this.panel?.dispose();
+  }
+}

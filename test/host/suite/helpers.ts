@@ -1,0 +1,59 @@
+/** Small helpers the extension-host suites share: the workspace's files, settings, the extension's API, waiting on conditions. */
+import assert from 'node:assert/strict';
+import * as vscode from 'vscode';
+import type { KnotwiseApi } from '../../../extension/api';
+
+export const EXTENSION_ID = 'knotwise.knotwise';
+
+export function folder(): vscode.Uri {
+  const f = vscode.workspace.workspaceFolders?.[0];
+  assert.ok(f, 'a workspace folder is open');
+  return f.uri;
+}
+
+export function file(name: string): vscode.Uri {
+  return vscode.Uri.joinPath(folder(), name);
+}
+
+export async function text(uri: vscode.Uri): Promise<string> {
+  return new TextDecoder().decode(await vscode.workspace.fs.readFile(uri));
+}
+
+export async function writeText(uri: vscode.Uri, content: string): Promise<void> {
+  await vscode.workspace.fs.writeFile(uri, new TextEncoder().encode(content));
+}
+
+export async function exists(uri: vscode.Uri): Promise<boolean> {
+  try {
+    await vscode.workspace.fs.stat(uri);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+export async function closeEverything(): Promise<void> {
+  await vscode.commands.executeCommand('workbench.action.closeAllEditors');
+}
+
+export async function setSetting(key: string, value: unknown): Promise<void> {
+  await vscode.workspace.getConfiguration('knotwise').update(key, value, vscode.ConfigurationTarget.Workspace);
+}
+
+/** The value the extension's activate returned. */
+export function api(): KnotwiseApi {
+  const ext = vscode.extensions.getExtension(EXTENSION_ID);
+  assert.ok(ext?.isActive, 'Knotwise is active');
+  return ext.exports as KnotwiseApi;
+}
+
+/** Polls `probe` every 50 ms until it returns a value (at most `ms`): a wait on a condition, not on time. */
+export async function waitFor<T>(what: string, probe: () => T | undefined | Promise<T | undefined>, ms = 60000): Promise<T> {
+  const deadline = Date.now() + ms;
+  for (;;) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
