@@ -11,8 +11,8 @@ const only = process.argv.slice(2);
 let passed = 0;
 let failed = 0;
 
-function run(name, cmd, args, parse) {
-  if (only.length && !only.includes(name)) return;
+function run(name, cmd, args, parse, always = false) {
+  if (!always && only.length && !only.includes(name)) return;
   console.log(`\n=== ${name}: ${cmd} ${args.join(' ')}`);
   const started = Date.now();
   const res = spawnSync(cmd, args, { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'], maxBuffer: 256 * 1024 * 1024 });
@@ -53,13 +53,17 @@ function missing(name, file) {
   console.log(`=== ${name}: 0 passed, 1 failed`);
 }
 
+// The browser layers install what they need first (chromium, the VS Code workbench).
+const BROWSER_LAYERS = ['webview', 'host', 'editor', 'packaged'];
+const setupNeeded = only.length === 0 || only.some((l) => BROWSER_LAYERS.includes(l)) || only.includes('setup');
+
 const npx = 'npx';
 const runners = [
   ['webview', 'test/webview/run.mjs'],
   ['host', 'test/host/run.mjs'],
   ['editor', 'test/e2e/run.mjs'],
 ];
-const layers = ['typecheck', 'typecheck-webview', 'lint', 'format', 'build', 'core', ...runners.map(([name]) => name)];
+const layers = ['typecheck', 'typecheck-webview', 'lint', 'format', 'build', 'core', 'setup', ...runners.map(([name]) => name)];
 for (const name of only.filter((n) => !layers.includes(n))) {
   console.log(`\n=== ${name}: no such layer (layers: ${layers.join(', ')})`);
   failed += 1;
@@ -70,6 +74,7 @@ run('lint', npx, ['eslint', '.'], step);
 run('format', npx, ['prettier', '--check', '.'], step);
 run('build', process.execPath, ['scripts/build.mjs'], step);
 run('core', npx, ['mocha', 'test/unit/**/*.test.ts', 'test/reference/**/*.test.ts'], mochaCounts);
+if (setupNeeded) run('setup', process.execPath, ['scripts/test-setup.mjs'], step, true);
 for (const [name, file] of runners) {
   if (existsSync(file)) run(name, process.execPath, [file], layerCounts);
   else missing(name, file);
