@@ -107,7 +107,12 @@ export function fitRowBasis(data: XYData, basis: RowBasis, z: Float64Array | und
   return { theta, centred, offset, cov, fitted, residuals, leverage, condition: factor.condition, rank: q };
 }
 
-/** theta + offset * unit (a copy), or theta itself when there is no offset. */
+/**
+ * Coefficients of a fit of y - offset turned into those of y: theta + offset * unit, unit
+ * the exact coefficients of the constant 1 (`RowBasis.unitCoefficients`); a copy, or theta
+ * itself when there is no offset. Cost O(p).
+ * Example: withOffset(Float64Array.of(1, -1), 10, Float64Array.of(1, 1)) -> [11, 9].
+ */
 export function withOffset(theta: Float64Array, offset: number, unit: Float64Array | undefined): Float64Array {
   if (!unit || offset === 0) return theta;
   const out = new Float64Array(theta.length);

@@ -18,6 +18,7 @@ import { summariseFit } from './summary';
  * results equal fitNaturalSpline up to rounding. Returns each df's fit, or the FitError that
  * skipped it (with fitNaturalSpline's account of what the data lacks).
  * Cost O(n) + candidates x O(n).
+ * Example: fitNaturalSplineBatch(prepareData({ x, y }), [2, 4, 8]).get(4) // a FitResult, or the FitError that skipped df 4
  */
 export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly number[]): Map<number, FitResult | FitError> {
   const out = new Map<number, FitResult | FitError>();

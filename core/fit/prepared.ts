@@ -52,7 +52,8 @@ export function prepareData(data: XYData): PreparedData {
     if (w) {
       const wi = w[i] as number;
       if (!(wi > 0) || !Number.isFinite(wi)) throw new InputError(`weight ${wi} is not a positive finite number`, { line, column: 'weights' });
-      if (wi < MIN_WEIGHT) throw new InputError(`weight ${wi} is too small to fit (weights from ${MIN_WEIGHT} up are supported; only their ratios matter, so rescale the column)`, { line, column: 'weights' });
+      if (wi < MIN_WEIGHT)
+        throw new InputError(`weight ${wi} is too small to fit (weights from ${MIN_WEIGHT} up are supported; only their ratios matter, so rescale the column)`, { line, column: 'weights' });
     }
   }
   const sortedX = Float64Array.from(x).sort();

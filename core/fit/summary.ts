@@ -38,8 +38,11 @@ export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
   const { x, y, w } = data;
   const n = x.length;
   const df = solved.df;
-  const residuals = solved.residuals ?? new Float64Array(n);
-  const given = solved.residuals !== undefined;
+  let residuals = solved.residuals;
+  if (!residuals) {
+    residuals = new Float64Array(n);
+    for (let i = 0; i < n; i++) residuals[i] = (y[i] as number) - (solved.fitted[i] as number);
+  }
   const cooks = new Float64Array(n);
   let rss = 0;
   let sw = 0;
@@ -47,8 +50,7 @@ export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
   let sumLogW = 0;
   for (let i = 0; i < n; i++) {
     const wi = w ? (w[i] as number) : 1;
-    const r = given ? (residuals[i] as number) : (y[i] as number) - (solved.fitted[i] as number);
-    residuals[i] = r;
+    const r = residuals[i] as number;
     rss += wi * r * r;
     sw += wi;
     swy += wi * (y[i] as number);

@@ -90,10 +90,7 @@ export function factorSpd(a: Float64Array, p: number, what: string, explain?: (f
   }
   const condition = estimateCondition(l, linv, p);
   if (!(condition < MAX_CONDITION)) {
-    throw fail(
-      { kind: 'condition', index: -1, size: p, condition },
-      `the design is rank deficient (condition number ${condition.toExponential(2)}); the data cannot determine this many coefficients`,
-    );
+    throw fail({ kind: 'condition', index: -1, size: p, condition }, `the design is rank deficient (condition number ${condition.toExponential(2)}); the data cannot determine this many coefficients`);
   }
   return {
     size: p,

@@ -55,7 +55,8 @@ export function fitSmoothingSpline(data: XYData, df: number): FitResult {
     smoother,
     lambdaT,
     lambda,
-    (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values; ${lambdaWords(lambda, lambdaT, scaled.range)} gives hat-matrix trace ${trace.toFixed(9)} for the asked df ${df}.`,
+    (trace) =>
+      `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values; ${lambdaWords(lambda, lambdaT, scaled.range)} gives hat-matrix trace ${trace.toFixed(9)} for the asked df ${df}.`,
   );
 }
 
@@ -89,7 +90,13 @@ export function smoothingSplineAtLambda(data: XYData, lambda: number, unit = 1):
   checkLambdaT(lambdaT, lambda);
   const smoother = new SplineSmoother(scaled.t, pooled.w);
   const lambdaX = unit === 1 ? lambda : lambdaInXUnits(lambdaT, scaled);
-  return splineFit(pooled, smoother, lambdaT, lambdaX, (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values at the fixed ${lambdaWords(lambdaX, lambdaT, scaled.range)}: hat-matrix trace ${trace.toFixed(9)}.`);
+  return splineFit(
+    pooled,
+    smoother,
+    lambdaT,
+    lambdaX,
+    (trace) => `Cubic smoothing spline with a knot at each of the ${pooled.m} distinct x values at the fixed ${lambdaWords(lambdaX, lambdaT, scaled.range)}: hat-matrix trace ${trace.toFixed(9)}.`,
+  );
 }
 
 /**
@@ -154,7 +161,9 @@ function splineFit(pooled: Pooled, smoother: SplineSmoother, lambdaT: number, la
   const { m, offset } = pooled;
   smoother.run(lambdaT, pooled.yc);
   if (!smoother.reliable) {
-    throw new FitError(`smoothing spline lambda ${Number.isFinite(lambda) ? lambda : `${lambdaT} (x scaled to [0, 1])`} is too small to be computed accurately for these ${m} distinct x values (the fit would all but interpolate them)`);
+    throw new FitError(
+      `smoothing spline lambda ${Number.isFinite(lambda) ? lambda : `${lambdaT} (x scaled to [0, 1])`} is too small to be computed accurately for these ${m} distinct x values (the fit would all but interpolate them)`,
+    );
   }
   const knots = clampedKnots(pooled.u[0] as number, pooled.u[m - 1] as number, pooled.u.subarray(1, m - 1));
   const curve = makeCurve(knots, smoother.coefficients, smoother.covarianceBand, smoother.trace, offset);
