@@ -14,7 +14,11 @@ import { DEFAULTS, LIMITS, readSettings } from '../../../extension/settings';
 
 const REPO = join(__dirname, '..', '..', '..');
 type Json = Record<string, any>;
-const pkg = JSON.parse(readFileSync(join(REPO, 'package.json'), 'utf8')) as Json;
+const nls = JSON.parse(readFileSync(join(REPO, 'package.nls.json'), 'utf8')) as Record<string, string>;
+/** package.json with its %key% placeholders replaced by package.nls.json's texts (what the editor shows). */
+const pkg = JSON.parse(readFileSync(join(REPO, 'package.json'), 'utf8'), (_k, v: unknown) =>
+  typeof v === 'string' && /^%[^%]+%$/.test(v) ? (nls[v.slice(1, -1)] ?? assert.fail(`package.nls.json has no ${v}`)) : v,
+) as Json;
 const schema = JSON.parse(readFileSync(join(REPO, 'schema', 'fit-record.schema.json'), 'utf8')) as Json;
 const settings = pkg.contributes.configuration.properties as Json;
 

@@ -78,8 +78,10 @@ describe('vocabulary (DEVELOPERS.md, "Words")', () => {
     }
   });
 
-  it("package.json's commands, menus and settings use only the new words", () => {
+  it("package.json's commands, menus and settings (with their package.nls.json texts) use only the new words", () => {
     const pkg = JSON.parse(readFileSync(join(REPO, 'package.json'), 'utf8')) as { contributes: unknown };
     assertClean('package.json contributes', JSON.stringify(pkg.contributes, null, 1));
+    // The texts the editor shows for package.json's %key% placeholders.
+    assertClean('package.nls.json', readFileSync(join(REPO, 'package.nls.json'), 'utf8'));
   });
 });
