@@ -39,7 +39,14 @@ export class Controller implements vscode.Disposable {
   private readonly problems = new RejectedRowsView();
   private readonly ctx: SessionContext;
   private nextRunId = 1;
+  /** The window's settings (no resource): the fit records' name pattern. */
   private settings: Settings;
+  /** Settings per data file, read with the file as resource so folder settings apply; cleared when settings change. */
+  private readonly fileSettings = new Map<string, Settings>();
+  /** The last settings warning shown, so one problem is not reported again for every file. */
+  private lastSettingsWarning = '';
+  /** The value last given to the `knotwise.tuning` context key. */
+  private tuningContext = false;
   private readonly subscriptions = new DisposableStore();
   private readonly revalidateTimers = new Map<string, ReturnType<typeof setTimeout>>();
   /** Every fit record of the workspace, watched (started after activation). */
@@ -53,7 +60,8 @@ export class Controller implements vscode.Disposable {
       memory: new ColumnMemory(context.workspaceState),
       problems: this.problems,
       runner: workerRunner(),
-      settings: () => this.settings,
+      settings: (uri) => this.settingsFor(uri),
+      runningChanged: () => this.updateTuningContext(),
       newRunId: () => this.nextRunId++,
     };
     const s = this.subscriptions;
@@ -74,6 +82,11 @@ export class Controller implements vscode.Disposable {
       }),
     );
     s.add(vscode.workspace.onDidSaveTextDocument((doc) => this.touch(doc.uri, 'save')));
+    // Context keys of the command palette (package.json): the palette's own context has no
+    // resource keys, so the host says whether the active editor holds a CSV or TSV.
+    void vscode.commands.executeCommand('setContext', 'knotwise.active', true);
+    this.updateTableContext();
+    s.add(vscode.window.onDidChangeActiveTextEditor(() => this.updateTableContext()));
     s.add(
       vscode.workspace.onDidCloseTextDocument((doc) => {
         // Unsaved edits may have been dropped: the data is the file on disk again. The
@@ -122,11 +135,40 @@ export class Controller implements vscode.Disposable {
     };
   }
 
-  private readSettings(): Settings {
-    const cfg = vscode.workspace.getConfiguration('knotwise');
+  /** Reads the settings for a resource (its workspace folder's and the file's language settings apply), or the window's. */
+  private readSettings(uri?: vscode.Uri): Settings {
+    const cfg = vscode.workspace.getConfiguration('knotwise', uri);
     const s = readSettings((k) => cfg.get(k));
-    if (s.problems.length) void vscode.window.showWarningMessage(`Knotwise ignored some settings: ${s.problems.join('; ')}`);
+    const warning = s.problems.join('; ');
+    if (warning && warning !== this.lastSettingsWarning) void vscode.window.showWarningMessage(`Knotwise ignored some settings: ${warning}`);
+    this.lastSettingsWarning = warning;
     return s;
+  }
+
+  /** The settings snapshot of one data file. */
+  private settingsFor(uri: vscode.Uri): Settings {
+    const key = uri.toString();
+    let s = this.fileSettings.get(key);
+    if (!s) {
+      s = this.readSettings(uri);
+      this.fileSettings.set(key, s);
+    }
+    return s;
+  }
+
+  /** Sets the `knotwise.tableActive` context key: the active text editor shows a CSV or TSV file. */
+  private updateTableContext(): void {
+    const uri = vscode.window.activeTextEditor?.document.uri;
+    void vscode.commands.executeCommand('setContext', 'knotwise.tableActive', uri !== undefined && isTableFile(uri));
+  }
+
+  /** Sets the `knotwise.tuning` context key (package.json shows Stop Tuning only while it is true). */
+  private updateTuningContext(): void {
+    let tuning = false;
+    for (const s of this.sessions.values()) if (s.isRunning) tuning = true;
+    if (tuning === this.tuningContext) return;
+    this.tuningContext = tuning;
+    void vscode.commands.executeCommand('setContext', 'knotwise.tuning', tuning);
   }
 
   /** The session of a file, made when needed. */
@@ -208,16 +250,21 @@ export class Controller implements vscode.Disposable {
    * Changed model settings replace the panel's own.
    */
   private settingsChanged(): void {
-    const before = this.settings;
+    const windowBefore = this.settings;
+    const before = new Map(this.fileSettings);
+    this.fileSettings.clear();
+    this.lastSettingsWarning = '';
     this.settings = this.readSettings();
-    const modelChanged = JSON.stringify(before.model) !== JSON.stringify(this.settings.model) || before.huberK !== this.settings.huberK;
-    const ruleChanged = JSON.stringify(before.rule) !== JSON.stringify(this.settings.rule) || before.tolerancePercent !== this.settings.tolerancePercent;
-    const refitChanged = before.refitOnSave !== this.settings.refitOnSave;
     for (const s of this.sessions.values()) {
+      const old = before.get(s.uri.toString()) ?? windowBefore;
+      const now = this.settingsFor(s.uri);
+      const modelChanged = JSON.stringify(old.model) !== JSON.stringify(now.model) || old.huberK !== now.huberK;
+      const ruleChanged = JSON.stringify(old.rule) !== JSON.stringify(now.rule) || old.tolerancePercent !== now.tolerancePercent;
+      const refitChanged = old.refitOnSave !== now.refitOnSave;
       if (modelChanged) s.model = undefined;
       if (!s.result || !s.hasPanel) continue;
-      if (!sameAnalysis(s.result.options, analysisOptions(this.settings, s.modelFor()))) void s.tune({ background: true });
-      else if (ruleChanged) s.showResult(this.settings.rule);
+      if (!sameAnalysis(s.result.options, analysisOptions(now, s.modelFor()))) void s.tune({ background: true });
+      else if (ruleChanged) s.showResult(now.rule);
       else if (refitChanged) s.postDataState();
     }
   }

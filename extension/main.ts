@@ -6,6 +6,7 @@ import * as vscode from 'vscode';
 import type { KnotwiseApi, RunSummary, SaveCommandOptions, TuneCommandOptions } from './api';
 import { Controller } from './controller';
 import { isTableFile } from './csvSource';
+import { openDemoData } from './demo';
 import { DisposableStore } from './disposables';
 import { STALE_COMMAND } from './records';
 
@@ -16,6 +17,7 @@ export const COMMANDS = {
   stop: 'knotwise.stopTuning',
   forget: 'knotwise.forgetColumns',
   stale: STALE_COMMAND,
+  demo: 'knotwise.openDemoData',
 } as const;
 
 const store = new DisposableStore();
@@ -50,6 +52,7 @@ export function activate(context: vscode.ExtensionContext): KnotwiseApi {
     }),
   );
   store.add(vscode.commands.registerCommand(COMMANDS.stale, () => controller.records.offer()));
+  store.add(vscode.commands.registerCommand(COMMANDS.demo, () => openDemoData(context.extensionUri)));
   context.subscriptions.push(store);
   return controller.api();
 }

@@ -40,8 +40,10 @@ export interface SessionContext {
   readonly memory: ColumnMemory;
   readonly problems: RejectedRowsView;
   readonly runner: ResampleRunner;
-  /** The current settings snapshot. */
-  settings(): Settings;
+  /** The current settings snapshot for a file (settings can differ per workspace folder). */
+  settings(uri: vscode.Uri): Settings;
+  /** Called when a run starts or ends, so the host can tell whether any run is going. */
+  runningChanged(): void;
   /** A run id, larger than every one before it. */
   newRunId(): number;
 }
@@ -113,7 +115,7 @@ export class DataSession implements vscode.Disposable {
 
   /** The model options of this file: the panel's when set and still possible with the curve kind, else the settings'. */
   modelFor(): ModelSettings {
-    const settings = this.ctx.settings();
+    const settings = this.ctx.settings(this.uri);
     if (this.model) {
       try {
         resolveModel(settings.kind, modelOptions(this.model));
@@ -154,11 +156,12 @@ export class DataSession implements vscode.Disposable {
     const ticket = new RunTicket(this.ctx.newRunId());
     const runId = ticket.runId;
     this.running = ticket;
+    this.ctx.runningChanged();
     const current = (): boolean => this.running === ticket;
     try {
       const source = await readCsv(this.uri);
       ticket.sha256 = source.sha256;
-      const settings = this.ctx.settings();
+      const settings = this.ctx.settings(this.uri);
       const model = this.modelFor();
       const binomial = model.outcome === 'proportions';
       const choice = await this.columnsFor(source, request, binomial, ticket.token);
@@ -227,7 +230,10 @@ export class DataSession implements vscode.Disposable {
       void vscode.window.showErrorMessage(`Knotwise: ${message}`);
       return { status: 'failed', file, runId, message };
     } finally {
-      if (current()) this.running = undefined;
+      if (current()) {
+        this.running = undefined;
+        this.ctx.runningChanged();
+      }
       ticket.dispose();
     }
   }
@@ -296,7 +302,7 @@ export class DataSession implements vscode.Disposable {
   showResult(rule?: RuleSpec, moved?: RefitView): void {
     const r0 = this.result;
     if (!r0 || !this.panel) return;
-    const settings = this.ctx.settings();
+    const settings = this.ctx.settings(this.uri);
     // A new view of the same analysis gets a new run id, so the panel forgets the rule it kept for the old one.
     const r = rule ? { ...r0, runId: this.ctx.newRunId() } : r0;
     this.result = r;
@@ -345,7 +351,7 @@ export class DataSession implements vscode.Disposable {
   dataState(): DataStateView | undefined {
     const r = this.result;
     if (!r) return undefined;
-    const s = this.ctx.settings();
+    const s = this.ctx.settings(this.uri);
     return {
       analysed: r.source.unsaved ? 'unsaved' : 'disk',
       ...(this.change ? { change: this.change } : {}),
@@ -394,7 +400,7 @@ export class DataSession implements vscode.Disposable {
 
   /** Refits after a save or a change on disk (settings permitting); a large file asks first. */
   private refitOnSave(now: DataText): void {
-    const settings = this.ctx.settings();
+    const settings = this.ctx.settings(this.uri);
     if (!settings.refitOnSave || !this.hasPanel) return;
     // A run that read (or is about to read) these bytes brings them in already.
     if (this.running && (this.running.sha256 === undefined || this.running.sha256 === now.sha256)) return;
@@ -501,7 +507,7 @@ export class DataSession implements vscode.Disposable {
         selection: r.columns,
         analysis: r.analysis,
         rule,
-        settings: this.ctx.settings(),
+        settings: this.ctx.settings(this.uri),
         diagnostics: (df) => r.checks.get(df),
       },
       answer,
@@ -555,7 +561,7 @@ export class DataSession implements vscode.Disposable {
 
   /** Model settings for the panel's controls (checked against the curve kind), or why they cannot be used. */
   private modelFromChoice(choice: ModelChoice): ModelSettings | string {
-    const settings = this.ctx.settings();
+    const settings = this.ctx.settings(this.uri);
     const current = this.modelFor();
     const next: ModelSettings = { outcome: choice.outcome, shape: choice.shape, robustK: choice.robust ? (current.robustK ?? settings.huberK) : undefined };
     try {
@@ -567,7 +573,7 @@ export class DataSession implements vscode.Disposable {
   }
 
   private differsFromSettings(m: ModelSettings): boolean {
-    const s = this.ctx.settings().model;
+    const s = this.ctx.settings(this.uri).model;
     return !(m.outcome === s.outcome && m.robustK === s.robustK && JSON.stringify(m.shape) === JSON.stringify(s.shape));
   }
 

@@ -22,5 +22,6 @@ export interface CodeServer {
   remotePath(absPath: string): string;
   stop(): Promise<void>;
 }
+export declare function installVsix(runDir: string, vsix: string): string;
 export declare function startCodeServer(options: { runDir: string; settings?: Record<string, unknown>; timeoutMs?: number }): Promise<CodeServer>;
 export declare function seconds(t0: number): string;

@@ -1,7 +1,7 @@
 // Shared parts of the browser-driven test layers: headless Chromium through playwright-core
 // with every request outside 127.0.0.1 blocked and recorded, and a code-server workbench
 // (VS Code 1.100.3 for the web) started in a fresh run folder. See docs/testing.md, "Offline workbench".
-import { spawn } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, writeFileSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { dirname, join, resolve } from 'node:path';
@@ -102,6 +102,27 @@ export function freePort() {
 /** True when code-server has been installed by scripts/e2e-install.sh. */
 export function codeServerInstalled() {
   return existsSync(codeServerEntry);
+}
+
+/**
+ * Installs the packaged extension `vsix` into `<runDir>/extensions` the way a person does,
+ * with code-server's `--install-extension` (no gallery, no network). Returns the installer's output.
+ */
+export function installVsix(runDir, vsix) {
+  if (!codeServerInstalled()) {
+    throw new Error('code-server is not installed: run `bash scripts/e2e-install.sh` first');
+  }
+  const extensions = join(runDir, 'extensions');
+  mkdirSync(extensions, { recursive: true });
+  const args = [codeServerEntry, '--install-extension', vsix, '--extensions-dir', extensions, '--user-data-dir', join(runDir, 'user-data')];
+  const r = spawnSync(process.execPath, args, {
+    encoding: 'utf8',
+    timeout: 120000,
+    env: { ...process.env, EXTENSIONS_GALLERY: '{}', HOME: runDir, TMPDIR: runDir },
+  });
+  const out = `${r.stdout ?? ''}${r.stderr ?? ''}`;
+  if (r.status !== 0) throw new Error(`installing ${vsix} failed (exit ${r.status}):\n${out}`);
+  return out;
 }
 
 /**

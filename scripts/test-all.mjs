@@ -2,7 +2,7 @@
 // Layers: type check, lint (ESLint, including the import rules of the layers), format check
 // (Prettier), build, core unit + external-reference tests (mocha on Node), the webview in
 // headless Chromium, the extension inside the real VS Code extension host, and the whole
-// editor driven in the browser. A layer that cannot start, or whose runner file is missing,
+// editor driven in the browser, and the packaged .vsix installed into that editor. A layer that cannot start, or whose runner file is missing,
 // counts as one failure. Usage: node scripts/test-all.mjs [layer ...] runs only those layers.
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
@@ -62,6 +62,8 @@ const runners = [
   ['webview', 'test/webview/run.mjs'],
   ['host', 'test/host/run.mjs'],
   ['editor', 'test/e2e/run.mjs'],
+  // The .vsix built by `npm run package`, installed into the workbench (test/e2e/run.mjs --packaged).
+  ['packaged', 'test/e2e/run.mjs', '--packaged'],
 ];
 const layers = ['typecheck', 'typecheck-webview', 'lint', 'format', 'build', 'core', 'setup', ...runners.map(([name]) => name)];
 for (const name of only.filter((n) => !layers.includes(n))) {
@@ -75,8 +77,8 @@ run('format', npx, ['prettier', '--check', '.'], step);
 run('build', process.execPath, ['scripts/build.mjs'], step);
 run('core', npx, ['mocha', 'test/unit/**/*.test.ts', 'test/reference/**/*.test.ts'], mochaCounts);
 if (setupNeeded) run('setup', process.execPath, ['scripts/test-setup.mjs'], step, true);
-for (const [name, file] of runners) {
-  if (existsSync(file)) run(name, process.execPath, [file], layerCounts);
+for (const [name, file, ...flags] of runners) {
+  if (existsSync(file)) run(name, process.execPath, [file, ...flags], layerCounts);
   else missing(name, file);
 }
 console.log(`\n${passed} passed, ${failed} failed`);

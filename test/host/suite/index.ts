@@ -31,6 +31,7 @@ export async function run(): Promise<void> {
   // Loaded after the globals exist (esbuild keeps these requires lazy).
   require('./settings.test');
   require('./commands.test');
+  require('./manifest.test');
   require('./follow.test');
   require('./records.test');
   require('./saveRecovery.test');
