@@ -25,9 +25,7 @@ export class InputError extends Error {
   describe(audience: Audience = 'cli'): string {
     const p = this.place;
     const text = renderOptions(this.raw, audience);
-    const at = [p.file, p.line !== undefined ? `line ${p.line}` : undefined, p.column !== undefined ? `column "${p.column}"` : undefined]
-      .filter((s) => s !== undefined)
-      .join(', ');
+    const at = [p.file, p.line !== undefined ? `line ${p.line}` : undefined, p.column !== undefined ? `column "${p.column}"` : undefined].filter((s) => s !== undefined).join(', ');
     return at ? `${at}: ${text}` : text;
   }
 }

@@ -294,7 +294,10 @@ export function isHostMessage(m: unknown): m is HostMessage {
       return hasExactKeys(o, ['type', 'uri', 'fileName']) && typeof o.uri === 'string' && o.uri.length <= MAX_URI_TEXT && isText(o.fileName);
     case 'running':
       return (
-        hasExactKeys(o, ['type', 'runId', 'message'], ['fraction']) && isId(o.runId) && isText(o.message) && (o.fraction === undefined || (isFiniteNumber(o.fraction) && o.fraction >= 0 && o.fraction <= 1))
+        hasExactKeys(o, ['type', 'runId', 'message'], ['fraction']) &&
+        isId(o.runId) &&
+        isText(o.message) &&
+        (o.fraction === undefined || (isFiniteNumber(o.fraction) && o.fraction >= 0 && o.fraction <= 1))
       );
     case 'failed':
       return hasExactKeys(o, ['type', 'runId', 'message']) && isId(o.runId) && isText(o.message);

@@ -133,10 +133,22 @@ export async function pickColumns(table: ParsedTable, fileName: string, remember
   const numeric = table.columns.filter((c) => c.numeric);
   const x = await pickOne(`Knotwise: the x column of ${fileName} (what was set or measured as input)`, 1, items(table, [], undefined), remembered?.x ?? numeric[0]?.label, token);
   if (!x?.column) return undefined;
-  const y = await pickOne(`Knotwise: the y column of ${fileName} (the reading the curve describes)`, 2, items(table, [x.label], undefined), remembered?.y ?? numeric.find((c) => c.label !== x.label)?.label, token);
+  const y = await pickOne(
+    `Knotwise: the y column of ${fileName} (the reading the curve describes)`,
+    2,
+    items(table, [x.label], undefined),
+    remembered?.y ?? numeric.find((c) => c.label !== x.label)?.label,
+    token,
+  );
   if (!y?.column) return undefined;
   if (trials) {
-    const t = await pickOne(`Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`, 3, items(table, [x.label, y.label], NO_TRIALS), remembered?.trials ?? NO_TRIALS.label, token);
+    const t = await pickOne(
+      `Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`,
+      3,
+      items(table, [x.label, y.label], NO_TRIALS),
+      remembered?.trials ?? NO_TRIALS.label,
+      token,
+    );
     if (!t) return undefined;
     return { x: x.label, y: y.label, weights: remembered?.weights, trials: t.column ? t.label : null };
   }
@@ -147,7 +159,13 @@ export async function pickColumns(table: ParsedTable, fileName: string, remember
 
 /** Asks only for the trials column of a binomial outcome (x and y already chosen); undefined when dismissed. */
 export async function pickTrials(table: ParsedTable, fileName: string, choice: ColumnChoice, token: vscode.CancellationToken): Promise<ColumnChoice | undefined> {
-  const t = await pickOne(`Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`, 3, items(table, [choice.x, choice.y], NO_TRIALS), choice.trials ?? NO_TRIALS.label, token);
+  const t = await pickOne(
+    `Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`,
+    3,
+    items(table, [choice.x, choice.y], NO_TRIALS),
+    choice.trials ?? NO_TRIALS.label,
+    token,
+  );
   if (!t) return undefined;
   return { ...choice, trials: t.column ? t.label : null };
 }

@@ -23,13 +23,7 @@ export function escapeHtml(text: string): string {
 
 /** The panel's HTML document. */
 export function panelHtml(spec: ShellSpec): string {
-  const csp = [
-    "default-src 'none'",
-    `img-src ${spec.cspSource} data:`,
-    `style-src ${spec.cspSource}`,
-    `font-src ${spec.cspSource}`,
-    `script-src 'nonce-${spec.nonce}'`,
-  ].join('; ');
+  const csp = ["default-src 'none'", `img-src ${spec.cspSource} data:`, `style-src ${spec.cspSource}`, `font-src ${spec.cspSource}`, `script-src 'nonce-${spec.nonce}'`].join('; ');
   return `<!DOCTYPE html>
 <html lang="en">
 <head>

@@ -17,7 +17,10 @@ if (missing.length > 0) {
   }
   console.log(`Installing ${missing.join(', ')} with apt-get ...`);
   const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
-  for (const args of [['update', '-qq'], ['install', '-y', '-qq', ...missing]]) {
+  for (const args of [
+    ['update', '-qq'],
+    ['install', '-y', '-qq', ...missing],
+  ]) {
     const r = spawnSync('apt-get', args, { stdio: 'inherit', env });
     if (r.status !== 0) {
       console.error(`apt-get ${args.join(' ')} failed`);

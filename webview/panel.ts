@@ -159,7 +159,12 @@ export class Panel {
   private renderFailed(message: string): void {
     const again = el('button', { type: 'button', id: 'kw-rerun', class: 'kw-primary' }, 'Run again');
     again.addEventListener('click', () => this.rerun());
-    replaceChildren(this.root, el('p', { class: 'kw-error', role: 'alert', id: 'kw-failure' }, message), el('div', { class: 'kw-actions' }, again), el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }));
+    replaceChildren(
+      this.root,
+      el('p', { class: 'kw-error', role: 'alert', id: 'kw-failure' }, message),
+      el('div', { class: 'kw-actions' }, again),
+      el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }),
+    );
   }
 
   /** Shows or hides the running state: the status text, the progress bar and the Stop button. */
@@ -294,7 +299,12 @@ export class Panel {
         el('ul', { id: 'kw-alternatives', class: 'kw-list' }),
       ),
       controls,
-      el('div', { class: 'kw-progress-row' }, el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }), el('progress', { id: 'kw-progress', max: 1, hidden: true, 'aria-label': 'Progress of the analysis' })),
+      el(
+        'div',
+        { class: 'kw-progress-row' },
+        el('p', { id: 'kw-status', role: 'status', class: 'kw-status' }),
+        el('progress', { id: 'kw-progress', max: 1, hidden: true, 'aria-label': 'Progress of the analysis' }),
+      ),
       el(
         'section',
         { class: 'kw-warnings', 'aria-labelledby': 'kw-warn-title' },
@@ -614,7 +624,9 @@ export class Panel {
 /** "2 rows added, 1 row changed" (or that no data row changed). */
 function changeCounts(c: DataChangeView): string {
   const rows = (n: number, what: string): string => `${n} row${n === 1 ? '' : 's'} ${what}`;
-  const parts = [c.header ? 'the header line changed' : '', c.added ? rows(c.added, 'added') : '', c.removed ? rows(c.removed, 'removed') : '', c.changed ? rows(c.changed, 'changed') : ''].filter((t) => t !== '');
+  const parts = [c.header ? 'the header line changed' : '', c.added ? rows(c.added, 'added') : '', c.removed ? rows(c.removed, 'removed') : '', c.changed ? rows(c.changed, 'changed') : ''].filter(
+    (t) => t !== '',
+  );
   return parts.length ? parts.join(', ') : 'no data row changed (only blank lines, spacing or line endings)';
 }
 

@@ -97,6 +97,9 @@ function holdoutReport(fit: FitResult, test: XYData, fraction: number, resampled
   const rmse = Math.sqrt(sse / sw);
   const report = { fraction, rows: test.x.length, rmse, mae: sae / sw, maxAbs: max, resampledRmse };
   return rmse > HOLDOUT_WARN_RATIO * resampledRmse
-    ? { ...report, warning: `The held-out RMSE ${sig(rmse)} is more than ${HOLDOUT_WARN_RATIO}x the resampled estimate ${sig(resampledRmse)}: the tuning may be optimistic, or the held-out rows differ from the rest.` }
+    ? {
+        ...report,
+        warning: `The held-out RMSE ${sig(rmse)} is more than ${HOLDOUT_WARN_RATIO}x the resampled estimate ${sig(resampledRmse)}: the tuning may be optimistic, or the held-out rows differ from the rest.`,
+      }
     : report;
 }

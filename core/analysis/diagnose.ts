@@ -48,7 +48,9 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   // With no residual df (as many coefficients as rows) the residuals are rounding noise: nothing to check.
   const interpolates = !(fit.residualDf > 0) || (design !== undefined && design.p >= n);
   if (n >= 3 && interpolates) {
-    warnings.push(`The residual checks were not run: too few rows for the df (n = ${n}, df = ${fit.df}); a curve with as many coefficients as rows passes through every reading and leaves no residual variation to check.`);
+    warnings.push(
+      `The residual checks were not run: too few rows for the df (n = ${n}, df = ${fit.df}); a curve with as many coefficients as rows passes through every reading and leaves no residual variation to check.`,
+    );
   }
   const spread = !interpolates && scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
   if (n >= 3 && spread && checked.gaussianChecks) {
@@ -61,21 +63,32 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
     const both = design && checked.gaussianChecks ? durbinWatsonAndBreuschPagan(scaled, design) : undefined;
     const dw = both ? both.durbinWatson : durbinWatson(scaled, design);
     out.durbinWatson = dw;
-    if (dw.pValue < CHECK_LEVEL) warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${testText('DW', [], dw.statistic, dw.pValue)}): the curve may be too stiff, or the readings drift.`);
+    if (dw.pValue < CHECK_LEVEL)
+      warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${testText('DW', [], dw.statistic, dw.pValue)}): the curve may be too stiff, or the readings drift.`);
     if (checked.gaussianChecks) {
       const bp = both ? both.breuschPagan : breuschPagan(scaled, lineDesign(xSorted, rootW));
       out.breuschPagan = bp;
-      if (bp.pValue < CHECK_LEVEL) warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${testText('BP χ²', [bp.df], bp.statistic, bp.pValue)}); the bands assume constant spread. Consider weights.`);
+      if (bp.pValue < CHECK_LEVEL)
+        warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${testText('BP χ²', [bp.df], bp.statistic, bp.pValue)}); the bands assume constant spread. Consider weights.`);
     }
   }
   const lof = checked.gaussianChecks && !interpolates ? lackOfFit(data.x, data.y, w, fit.rss, fit.df, order) : undefined;
   if (lof) {
     out.lackOfFit = lof;
-    if (lof.pValue < CHECK_LEVEL) warnings.push(`The curve misses the means of replicated readings more than their scatter explains (lack-of-fit ${testText('F', [lof.df1, lof.df2], lof.F, lof.pValue)}); a more flexible curve may be needed.`);
+    if (lof.pValue < CHECK_LEVEL)
+      warnings.push(
+        `The curve misses the means of replicated readings more than their scatter explains (lack-of-fit ${testText('F', [lof.df1, lof.df2], lof.F, lof.pValue)}); a more flexible curve may be needed.`,
+      );
   }
   if (out.influential.total > 0) {
     const strong = out.influential.rows.filter((r) => r.cooksDistance > 1);
-    if (strong.length) warnings.push(`${strong.length} row(s) have Cook's distance above 1 (lines ${strong.slice(0, 5).map((r) => r.line).join(', ')}): check them before trusting the curve.`);
+    if (strong.length)
+      warnings.push(
+        `${strong.length} row(s) have Cook's distance above 1 (lines ${strong
+          .slice(0, 5)
+          .map((r) => r.line)
+          .join(', ')}): check them before trusting the curve.`,
+      );
   }
   if (n >= 3 && checked.scale > 0) {
     const std = new Float64Array(n);

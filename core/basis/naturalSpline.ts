@@ -83,7 +83,11 @@ export class ExtrapolatingBSplineBasis implements RowBasis {
   private readonly edgeSlope = new Float64Array(8);
   private readonly edgeFirst = new Int32Array(2);
 
-  constructor(readonly lower: number, readonly upper: number, interior: Float64Array) {
+  constructor(
+    readonly lower: number,
+    readonly upper: number,
+    interior: Float64Array,
+  ) {
     this.knotVector = clampedKnots(lower, upper, interior);
     this.ev = new BSplineEvaluator(this.knotVector);
     this.size = this.ev.size;

@@ -20,7 +20,11 @@ export class OrthoPolyBasis implements RowBasis {
   readonly mid: number;
   readonly half: number;
 
-  constructor(sortedX: Float64Array, x: Float64Array, readonly degree: number) {
+  constructor(
+    sortedX: Float64Array,
+    x: Float64Array,
+    readonly degree: number,
+  ) {
     const n = x.length;
     const lo = sortedX[0] as number;
     const hi = sortedX[n - 1] as number;

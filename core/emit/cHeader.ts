@@ -62,7 +62,11 @@ export function cHeader(input: EmitInput): string {
   if (needsMath) out.push('#include <math.h>', '');
   out.push('/* Number of rows of every array below. */', `#define ${NAME}_LENGTH ${t.rows.length}`);
   if (xs.length > 0) {
-    out.push('/* First and last x of the table. */', `#define ${NAME}_X_FIRST ${macroValue(xs[0] as number, input.digits)}`, `#define ${NAME}_X_LAST ${macroValue(xs[xs.length - 1] as number, input.digits)}`);
+    out.push(
+      '/* First and last x of the table. */',
+      `#define ${NAME}_X_FIRST ${macroValue(xs[0] as number, input.digits)}`,
+      `#define ${NAME}_X_LAST ${macroValue(xs[xs.length - 1] as number, input.digits)}`,
+    );
   }
   out.push(
     '/* Range of x in the data; table rows outside it are extrapolated. */',

@@ -113,7 +113,6 @@ export const binomialFamily: OutcomeFamily = {
   start: (y, w) => (w * y + 0.5) / (w + 1),
 };
 
-
 /**
  * Checks that y fits the outcome: Poisson counts y >= 0; binomial proportions 0 <= y <= 1.
  * Throws InputError naming the first bad row's CSV line. O(n).

@@ -60,7 +60,12 @@ export function resolveModelFor(kind: CurveKind, m: ModelOptions | undefined, al
 
 /** Ids of the kinds whose support passes the test, for messages. */
 function supporting(all: readonly CurveKind[], test: (s: CurveKind['supports']) => boolean): string {
-  return all.filter((k) => test(k.supports)).map((k) => k.id).join(', ') || 'none';
+  return (
+    all
+      .filter((k) => test(k.supports))
+      .map((k) => k.id)
+      .join(', ') || 'none'
+  );
 }
 
 /**
@@ -158,7 +163,12 @@ export function fitModel(prepared: PreparedData, curveKind: CurveKind, df: numbe
     const notes = [...mb.notes, ...shapeNotes(weighted.rank, res.solution.activeCount)];
     notes.push(
       `Robust fit (Huber M-estimation, k = ${k}, scale = median |residual| / 0.6745 = ${res.scale.toPrecision(4)}): ${down.total} of ${n} rows down-weighted` +
-        (down.rows.length > 0 ? ` (lowest weights at lines ${down.rows.slice(0, 5).map((r) => r.line).join(', ')})` : '') +
+        (down.rows.length > 0
+          ? ` (lowest weights at lines ${down.rows
+              .slice(0, 5)
+              .map((r) => r.line)
+              .join(', ')})`
+          : '') +
         (res.converged ? `; converged in ${res.iterations} iterations.` : `; did not converge: ${res.problem ?? ''}.`),
     );
     if (res.converged && res.problem) notes.push(`Robust fit: ${res.problem}.`);
@@ -231,7 +241,8 @@ function constraintNotes(model: ResolvedModel, mb: ModelBasis, df: number): (ran
   return (rank, active) => {
     const notes: string[] = [];
     const shapes = imposedShapes(model);
-    if (model.outcome !== 'continuous' && model.shape.includes('nonnegative')) notes.push(`Shape "nonnegative" is implied by the ${model.outcome} outcome (its mean is always positive) and was not imposed separately.`);
+    if (model.outcome !== 'continuous' && model.shape.includes('nonnegative'))
+      notes.push(`Shape "nonnegative" is implied by the ${model.outcome} outcome (its mean is always positive) and was not imposed separately.`);
     if (shapes.length === 0) return notes;
     const total = mb.shape?.rows ?? 0;
     const scale = model.outcome === 'continuous' ? '' : ` on the ${OUTCOMES[model.outcome].link} scale`;

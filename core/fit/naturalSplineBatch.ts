@@ -76,14 +76,18 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
       let h = 0;
       for (let a = 0; a < 4; a++) {
         const off = (first + a) * p + first;
-        const s = (cov[off] as number) * (buf[0] as number) + (cov[off + 1] as number) * (buf[1] as number) + (cov[off + 2] as number) * (buf[2] as number) + (cov[off + 3] as number) * (buf[3] as number);
+        const s =
+          (cov[off] as number) * (buf[0] as number) + (cov[off + 1] as number) * (buf[1] as number) + (cov[off + 2] as number) * (buf[2] as number) + (cov[off + 3] as number) * (buf[3] as number);
         h += (buf[a] as number) * s;
       }
       leverage[i] = (w ? (w[i] as number) : 1) * h;
     }
     const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, model.theta, cov, z, offset);
     const coefficients = model.theta.map((c) => c + offset);
-    out.set(df, summariseFit(data, { kind: 'natural-spline', df, curve, coefficients, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, residuals, leverage, notes: knots.notes }));
+    out.set(
+      df,
+      summariseFit(data, { kind: 'natural-spline', df, curve, coefficients, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, residuals, leverage, notes: knots.notes }),
+    );
   }
   return out;
 }

@@ -56,9 +56,7 @@ export function bandLdl(band: Float64Array, n: number, p: number, out: Float64Ar
       djj -= ljk * ljk * (out[k * w] as number);
     }
     if (!(ajj > 0) || !(djj > PIVOT_TOLERANCE * ajj)) {
-      throw new FitError(
-        `band matrix is not positive definite to working precision: pivot ${j + 1} of ${n} is ${djj.toPrecision(3)} against a diagonal entry of ${ajj.toPrecision(3)}`,
-      );
+      throw new FitError(`band matrix is not positive definite to working precision: pivot ${j + 1} of ${n} is ${djj.toPrecision(3)} against a diagonal entry of ${ajj.toPrecision(3)}`);
     }
     out[j * w] = djj;
     const iEnd = j + p < n - 1 ? j + p : n - 1;

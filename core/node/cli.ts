@@ -487,7 +487,13 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
   let written: { table: string; record: string; files: string[] } | undefined;
   if (args.out !== undefined) {
     const record = deliverables.files.find((f) => f.kind === 'record');
-    if (!args.force && record) checkOutputNames(args.out, deliverables.files.map((f) => f.name), record.name, args.file);
+    if (!args.force && record)
+      checkOutputNames(
+        args.out,
+        deliverables.files.map((f) => f.name),
+        record.name,
+        args.file,
+      );
     const files = writeOutputs(args.out, deliverables.files, args.file, args.force);
     written = { table: files[0] as string, record: files[files.length - 1] as string, files };
   }

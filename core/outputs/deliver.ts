@@ -84,7 +84,10 @@ function uniformStep(spec: GridSpec, points: Float64Array): number | undefined {
 
 /** "x = 1, 2, 3, ..." for warnings. */
 function xList(xs: readonly number[]): string {
-  return `x = ${xs.slice(0, WARN_LIST).map((v) => sig(v, 6)).join(', ')}${xs.length > WARN_LIST ? ', ...' : ''}`;
+  return `x = ${xs
+    .slice(0, WARN_LIST)
+    .map((v) => sig(v, 6))
+    .join(', ')}${xs.length > WARN_LIST ? ', ...' : ''}`;
 }
 
 /** Warnings about the table and the declared sign of the quantity. */
@@ -92,10 +95,14 @@ function tableWarnings(input: DeliverInput, summary: TableSummary, added: readon
   const out: string[] = [];
   const { lower, upper } = input.fit.curve;
   if (summary.extrapolated.length) {
-    out.push(`${summary.extrapolated.length} table row(s) lie outside the data range [${sig(lower, 6)}, ${sig(upper, 6)}] and are extrapolated (${xList(summary.extrapolated)}); they are flagged in the extrapolated column.`);
+    out.push(
+      `${summary.extrapolated.length} table row(s) lie outside the data range [${sig(lower, 6)}, ${sig(upper, 6)}] and are extrapolated (${xList(summary.extrapolated)}); they are flagged in the extrapolated column.`,
+    );
   }
   if (summary.negative?.length) {
-    out.push(`The curve is below zero at ${summary.negative.length} table row(s) (${xList(summary.negative)}) although the quantity was declared non-negative; they are flagged in the negative column.`);
+    out.push(
+      `The curve is below zero at ${summary.negative.length} table row(s) (${xList(summary.negative)}) although the quantity was declared non-negative; they are flagged in the negative column.`,
+    );
   }
   if (input.plan.output.flagNegative) {
     const { y, lines } = input.selection.data;
@@ -176,7 +183,16 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
   };
   for (const kind of out.emit) files.push({ kind, name: emitName(kind, input.stem), text: emitText(kind, emitInput) });
   if (out.report) {
-    const figures = reportFigures({ stem: input.stem, fitted: input.fitted, fit, analysis: input.analysis, diagnostics: input.diagnostics, xLabel: input.selection.labels.x, yLabel: input.selection.labels.y, tableRange: summary.range });
+    const figures = reportFigures({
+      stem: input.stem,
+      fitted: input.fitted,
+      fit,
+      analysis: input.analysis,
+      diagnostics: input.diagnostics,
+      xLabel: input.selection.labels.x,
+      yLabel: input.selection.labels.y,
+      tableRange: summary.range,
+    });
     const markdown = reportMarkdown({
       dataFile: input.dataFile,
       dataSha256: input.dataSha256,
@@ -197,7 +213,9 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
     });
     files.push({ kind: 'report', name: names.report, text: markdown }, ...figures.map((f) => ({ kind: 'figure' as const, name: f.name, text: f.svg })));
   }
-  const outputs: OutputEntry[] = files.filter((f): f is OutputFile & { kind: OutputKind } => f.kind !== 'table' && f.kind !== 'record').map((f) => ({ kind: f.kind, file: f.name, sha256: input.sha256(f.text) }));
+  const outputs: OutputEntry[] = files
+    .filter((f): f is OutputFile & { kind: OutputKind } => f.kind !== 'table' && f.kind !== 'record')
+    .map((f) => ({ kind: f.kind, file: f.name, sha256: input.sha256(f.text) }));
   const record = fitRecord({
     dataFile: input.dataFile,
     dataPath: input.dataPath,

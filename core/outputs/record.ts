@@ -163,9 +163,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
           metric: a.tune.selected.metric,
           reason: a.tune.selected.reason,
           candidates: a.tune.candidates.map((c) =>
-            c.skipped !== undefined
-              ? { df: c.df, skipped: c.skipped }
-              : { df: c.df, ...Object.fromEntries(Object.entries(c.errors).map(([k, e]) => [k, { mean: num(e.mean), se: num(e.se) }])) },
+            c.skipped !== undefined ? { df: c.df, skipped: c.skipped } : { df: c.df, ...Object.fromEntries(Object.entries(c.errors).map(([k, e]) => [k, { mean: num(e.mean), se: num(e.se) }])) },
           ),
           holdout: a.tune.holdout ?? null,
         }
@@ -195,5 +193,3 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
     caution: CAUTION,
   };
 }
-
-

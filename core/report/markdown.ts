@@ -55,7 +55,10 @@ function link(file: string): string {
 
 /** Up to REPORT_LIST_LIMIT numbers, then "... and N more". */
 function someNumbers(values: readonly number[]): string {
-  const head = values.slice(0, REPORT_LIST_LIMIT).map((v) => num(v, 6)).join(', ');
+  const head = values
+    .slice(0, REPORT_LIST_LIMIT)
+    .map((v) => num(v, 6))
+    .join(', ');
   return values.length > REPORT_LIST_LIMIT ? `${head}, … and ${values.length - REPORT_LIST_LIMIT} more` : head;
 }
 
@@ -71,7 +74,10 @@ function whyThisDf(a: Analysis | undefined, fit: FitResult): string[] {
   const out = [`${md(s.reason)}`, '', `Errors were estimated by ${md(resamplingWords(t.resample, t.seed))}; the rule is the ${md(ruleWords(s.rule))} (\`--rule ${formatRule(s.rule)}\`).`];
   if (t.holdout) {
     const h = t.holdout;
-    out.push('', `Held-out check (${h.rows} rows, ${num(100 * h.fraction, 3)} % set aside before tuning and used once): RMSE ${num(h.rmse)} against the resampled ${num(h.resampledRmse)}.${h.warning ? ` **${md(h.warning)}**` : ''}`);
+    out.push(
+      '',
+      `Held-out check (${h.rows} rows, ${num(100 * h.fraction, 3)} % set aside before tuning and used once): RMSE ${num(h.rmse)} against the resampled ${num(h.resampledRmse)}.${h.warning ? ` **${md(h.warning)}**` : ''}`,
+    );
   }
   return [...out, ''];
 }
@@ -87,7 +93,9 @@ function candidateTable(a: Analysis): string[] {
     }
     const e = c.errors[metric];
     const chosen = c.df === a.tune.selected.df ? '**chosen**' : '';
-    out.push(`| ${num(c.df)} | ${e ? num(e.mean, 5) : ''} | ${e && Number.isFinite(e.se) ? num(e.se, 3) : ''} | ${c.aic !== undefined ? num(c.aic, 6) : ''} | ${c.bic !== undefined ? num(c.bic, 6) : ''} | ${chosen} |`);
+    out.push(
+      `| ${num(c.df)} | ${e ? num(e.mean, 5) : ''} | ${e && Number.isFinite(e.se) ? num(e.se, 3) : ''} | ${c.aic !== undefined ? num(c.aic, 6) : ''} | ${c.bic !== undefined ? num(c.bic, 6) : ''} | ${chosen} |`,
+    );
   }
   if (a.tune.selected.threshold !== undefined) out.push('', `Threshold of the rule: ${num(a.tune.selected.threshold, 5)}.`);
   return [...out, ''];
@@ -96,11 +104,18 @@ function candidateTable(a: Analysis): string[] {
 function checks(d: Diagnostics, fit: FitResult): string[] {
   const out = checkViews(d).map((c) => `- ${c.flagged ? '⚠ ' : ''}**${md(c.name)}**: ${md(c.text)}`);
   if (!out.length) out.push('- No residual check applies to this fit.');
-  out.push('', `Fit: residual SD ${num(fit.sigma)}, ${fit.model?.glm ? `deviance explained ${percent(fit.r2)}` : `R² ${num(fit.r2)}`}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`);
+  out.push(
+    '',
+    `Fit: residual SD ${num(fit.sigma)}, ${fit.model?.glm ? `deviance explained ${percent(fit.r2)}` : `R² ${num(fit.r2)}`}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`,
+  );
   const inf = d.influential;
   if (inf.total === 0) out.push('', 'No row exceeds the influence thresholds.');
   else {
-    out.push('', `Influential rows (${inf.total}; thresholds: ${inf.thresholds.map((t) => `${t.measure === 'cooks' ? "Cook's distance" : 'leverage'} > ${num(t.value, 3)} (${md(t.source)})`).join(', ')}):`, '');
+    out.push(
+      '',
+      `Influential rows (${inf.total}; thresholds: ${inf.thresholds.map((t) => `${t.measure === 'cooks' ? "Cook's distance" : 'leverage'} > ${num(t.value, 3)} (${md(t.source)})`).join(', ')}):`,
+      '',
+    );
     for (const r of inf.rows.slice(0, REPORT_LIST_LIMIT)) out.push(`- line ${r.line}: leverage ${num(r.leverage, 3)}, Cook's distance ${num(r.cooksDistance, 3)}`);
     if (inf.rows.length > REPORT_LIST_LIMIT) out.push(`- … and ${inf.rows.length - REPORT_LIST_LIMIT} more`);
   }
@@ -163,15 +178,22 @@ function modelSection(fit: FitResult): string[] {
   const kind = outcomeKind(m.outcome);
   const outcome = kind.glm ? `${m.outcome} (${kind.distribution}, ${m.link} link), fitted by iteratively reweighted least squares` : `${m.outcome} (${kind.distribution} errors, least squares)`;
   out.push(`- Readings: ${outcome}; ${m.converged ? `converged in ${m.iterations} iteration${m.iterations === 1 ? '' : 's'}` : `**did not converge** in ${m.iterations} iterations`}.`);
-  if (m.glm) out.push(`- Deviance explained ${percent(1 - m.glm.deviance / m.glm.nullDeviance)} (deviance ${num(m.glm.deviance, 6)}; ${num(m.glm.nullDeviance, 6)} for a flat curve); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`);
+  if (m.glm)
+    out.push(
+      `- Deviance explained ${percent(1 - m.glm.deviance / m.glm.nullDeviance)} (deviance ${num(m.glm.deviance, 6)}; ${num(m.glm.nullDeviance, 6)} for a flat curve); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`,
+    );
   if (m.shape.length) {
     const c = m.constraints;
-    out.push(`- Shape: ${m.shape.join(', ')}, imposed on the B-spline coefficients so that it holds everywhere in the data range${c ? `; ${c.active} of ${c.total} constraints are active (effective df ${num(c.effectiveDf, 4)})` : ''}. Bands treat the active constraints as known (an approximation).`);
+    out.push(
+      `- Shape: ${m.shape.join(', ')}, imposed on the B-spline coefficients so that it holds everywhere in the data range${c ? `; ${c.active} of ${c.total} constraints are active (effective df ${num(c.effectiveDf, 4)})` : ''}. Bands treat the active constraints as known (an approximation).`,
+    );
   }
   if (m.robust) {
     const r = m.robust;
     const listed = r.downweighted.rows.map((row) => `line ${row.line} (weight ${num(row.weight, 3)})`).join(', ');
-    out.push(`- Robust fit: Huber M-estimation, k = ${num(r.k, 4)}, robust scale ${num(r.scale, 4)}; ${r.downweighted.total} row${r.downweighted.total === 1 ? '' : 's'} down-weighted${listed ? `: ${listed}` : ''}${r.downweighted.total > r.downweighted.rows.length ? ', ...' : ''}.`);
+    out.push(
+      `- Robust fit: Huber M-estimation, k = ${num(r.k, 4)}, robust scale ${num(r.scale, 4)}; ${r.downweighted.total} row${r.downweighted.total === 1 ? '' : 's'} down-weighted${listed ? `: ${listed}` : ''}${r.downweighted.total > r.downweighted.rows.length ? ', ...' : ''}.`,
+    );
   }
   out.push('');
   return out;

@@ -26,22 +26,21 @@ export interface DensityGrid {
  * Example: binnedDensity(Float64Array.of(0, 1), Float64Array.of(0, 1), 2, 2).counts =
  * [1, 0, 0, 1].
  */
-export function binnedDensity(
-  x: Float64Array,
-  y: Float64Array,
-  nx: number,
-  ny: number,
-  xRange?: readonly [number, number],
-  yRange?: readonly [number, number],
-): DensityGrid {
+export function binnedDensity(x: Float64Array, y: Float64Array, nx: number, ny: number, xRange?: readonly [number, number], yRange?: readonly [number, number]): DensityGrid {
   const n = x.length;
   if (y.length !== n) throw new InputError(`density grid: x has ${n} values but y has ${y.length}`);
-  for (const [name, v] of [['nx', nx], ['ny', ny]] as const) {
+  for (const [name, v] of [
+    ['nx', nx],
+    ['ny', ny],
+  ] as const) {
     if (!(Number.isInteger(v) && v >= 1)) throw new InputError(`density grid: ${name} must be a whole number >= 1, got ${v}`);
   }
   const xr = xRange ?? finiteRange(x);
   const yr = yRange ?? finiteRange(y);
-  for (const [name, r] of [['x', xr], ['y', yr]] as const) {
+  for (const [name, r] of [
+    ['x', xr],
+    ['y', yr],
+  ] as const) {
     if (!(Number.isFinite(r[0]) && Number.isFinite(r[1]) && r[1] > r[0])) {
       throw new InputError(`density grid: the ${name} range must be finite with upper > lower, got [${r[0]}, ${r[1]}]`);
     }

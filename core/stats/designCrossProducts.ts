@@ -92,7 +92,10 @@ class DifferenceSums {
   private readonly xax: Float64Array;
   private readonly xa2x: Float64Array;
 
-  constructor(private readonly p: number, blockRows: number) {
+  constructor(
+    private readonly p: number,
+    blockRows: number,
+  ) {
     this.dBlock = new Float64Array(blockRows * p);
     this.aBlock = new Float64Array(blockRows * p);
     this.prevRow = new Float64Array(p);

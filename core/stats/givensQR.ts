@@ -67,9 +67,7 @@ export class GivensQR {
     for (let j = 0; j < p; j++) {
       const norm = Math.sqrt(this.columnSS[j] as number);
       if (!(Math.abs(r[j * p + j] as number) > RANK_TOLERANCE * norm) || norm === 0) {
-        throw new FitError(
-          `the design is rank deficient: column ${j + 1} of ${p} is (nearly) a combination of the columns before it`,
-        );
+        throw new FitError(`the design is rank deficient: column ${j + 1} of ${p} is (nearly) a combination of the columns before it`);
       }
     }
   }

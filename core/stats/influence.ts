@@ -49,13 +49,7 @@ export interface InfluenceReport {
  * Throws InputError for arrays of different lengths, n = 0 or df <= 0.
  * Example: with n = 50 and df = 2 the leverage threshold is 0.08 and Cook's 0.08 and 1.
  */
-export function influentialRows(
-  leverage: Float64Array,
-  cooksDistance: Float64Array,
-  df: number,
-  lines?: Int32Array,
-  limit: number = INFLUENCE_LIST_LIMIT,
-): InfluenceReport {
+export function influentialRows(leverage: Float64Array, cooksDistance: Float64Array, df: number, lines?: Int32Array, limit: number = INFLUENCE_LIST_LIMIT): InfluenceReport {
   const n = leverage.length;
   if (n === 0) throw new InputError('influence: there are no rows');
   if (cooksDistance.length !== n) {

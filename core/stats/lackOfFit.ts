@@ -39,14 +39,7 @@ export interface LackOfFitResult {
  * an `order` that is not a permutation of the rows by ascending x.
  * Example: x = [1, 1, 2, 2, 3, 3] under a straight line (modelDf 2) gives df1 = 1, df2 = 3.
  */
-export function lackOfFit(
-  x: Float64Array,
-  y: Float64Array,
-  w: Float64Array | undefined,
-  modelRss: number,
-  modelDf: number,
-  order: Int32Array = argsortStable(x),
-): LackOfFitResult | undefined {
+export function lackOfFit(x: Float64Array, y: Float64Array, w: Float64Array | undefined, modelRss: number, modelDf: number, order: Int32Array = argsortStable(x)): LackOfFitResult | undefined {
   const n = x.length;
   if (y.length !== n) throw new InputError(`lack of fit: x has ${n} values but y has ${y.length}`);
   if (w && w.length !== n) throw new InputError(`lack of fit: x has ${n} values but the weights have ${w.length}`);

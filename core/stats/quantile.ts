@@ -18,9 +18,7 @@ export function quantileType7(sortedValues: Float64Array, probs: ArrayLike<numbe
     const v = sortedValues[i] as number;
     if (Number.isNaN(v)) throw new InputError(`quantiles: value at index ${i} is NaN`);
     if (i > 0 && v < (sortedValues[i - 1] as number)) {
-      throw new InputError(
-        `quantiles need ascending values; value at index ${i} (${v}) is below the one before (${sortedValues[i - 1]})`,
-      );
+      throw new InputError(`quantiles need ascending values; value at index ${i} (${v}) is below the one before (${sortedValues[i - 1]})`);
     }
   }
   const out = new Float64Array(probs.length);

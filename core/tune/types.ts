@@ -8,11 +8,7 @@ export type ResampleSpec =
   | { readonly kind: 'gcv' };
 
 /** How the df is chosen from the candidates. */
-export type RuleSpec =
-  | { readonly kind: 'least-error' }
-  | { readonly kind: 'one-se' }
-  | { readonly kind: 'simplest-within'; readonly percent: number }
-  | { readonly kind: 'pick'; readonly df: number };
+export type RuleSpec = { readonly kind: 'least-error' } | { readonly kind: 'one-se' } | { readonly kind: 'simplest-within'; readonly percent: number } | { readonly kind: 'pick'; readonly df: number };
 
 /**
  * Error measure the rules compare. 'deviance' is the mean deviance per unit prior weight of

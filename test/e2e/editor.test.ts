@@ -93,14 +93,20 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     const deadline = Date.now() + 60000;
     for (;;) {
       await row.click({ button: 'right' });
-      const shown = await item.waitFor({ timeout: 3000 }).then(() => true, () => false);
+      const shown = await item.waitFor({ timeout: 3000 }).then(
+        () => true,
+        () => false,
+      );
       if (shown) break;
       await page.keyboard.press('Escape');
       if (Date.now() > deadline) throw new Error('the explorer menu never offered Knotwise');
     }
     await item.click();
     // A click that lands while the menu is still settling only highlights the entry; Enter runs it.
-    const closed = await item.waitFor({ state: 'hidden', timeout: 1000 }).then(() => true, () => false);
+    const closed = await item.waitFor({ state: 'hidden', timeout: 1000 }).then(
+      () => true,
+      () => false,
+    );
     if (!closed) await page.keyboard.press('Enter');
   });
 
@@ -165,7 +171,10 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.keyboard.press('F1');
     await input.waitFor();
     await input.fill('>Preferences: Color Theme');
-    await page.getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ }).first().click();
+    await page
+      .getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ })
+      .first()
+      .click();
     // The theme picker is open once it lists the installed themes.
     await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Light Modern"]').first().waitFor();
     await input.fill('Dark Modern');
@@ -191,7 +200,10 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
       await page.keyboard.press('F1');
       await input.waitFor();
       await input.fill('>Preferences: Color Theme');
-      await page.getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ }).first().click();
+      await page
+        .getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ })
+        .first()
+        .click();
       await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Light Modern"]').first().waitFor();
       await input.fill(theme);
       await page.locator(`.quick-input-widget .monaco-list-row[aria-label*="${theme}"]`).first().waitFor();
@@ -285,7 +297,13 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await staleItem.waitFor({ state: 'hidden' });
     const rec = JSON.parse(readFileSync(join(workspace, 'mcycle.fit.json'), 'utf8')) as { selection: { df: number }; data: { sha256: string } };
     assert.equal(rec.selection.df, picked);
-    assert.equal(rec.data.sha256, createHash('sha256').update(readFileSync(join(workspace, 'mcycle.csv'))).digest('hex'), 'the record names the bytes on disk');
+    assert.equal(
+      rec.data.sha256,
+      createHash('sha256')
+        .update(readFileSync(join(workspace, 'mcycle.csv')))
+        .digest('hex'),
+      'the record names the bytes on disk',
+    );
     assert.notEqual(readFileSync(join(workspace, 'mcycle.curve.csv'), 'utf8'), savedTable);
   });
 
@@ -317,9 +335,15 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await input.waitFor();
     await input.fill('>Developer: Reload Window');
     const oldPanel = panel;
-    await page.getByRole('option', { name: /Developer: Reload Window/ }).first().click();
+    await page
+      .getByRole('option', { name: /Developer: Reload Window/ })
+      .first()
+      .click();
     // The old panel's frame goes with the old page.
-    await oldPanel.locator('#knotwise-root').waitFor({ state: 'detached', timeout: 30000 }).catch(() => undefined);
+    await oldPanel
+      .locator('#knotwise-root')
+      .waitFor({ state: 'detached', timeout: 30000 })
+      .catch(() => undefined);
     panel = await findPanel();
     assert.equal(await panel.textContent('#kw-chosen-df'), `df ${picked}`);
     assert.equal(await panel.isChecked('#kw-rule-pick'), true);
@@ -335,7 +359,10 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     const input = page.locator('.quick-input-widget input.input');
     await input.waitFor();
     await input.fill('>View: Close All Editors');
-    await page.getByRole('option', { name: /View: Close All Editors/ }).first().click();
+    await page
+      .getByRole('option', { name: /View: Close All Editors/ })
+      .first()
+      .click();
     await page.locator('.tab', { hasText: 'Curve review' }).first().waitFor({ state: 'detached' });
     // Invented seeded readings, only to make a run long enough to stop (no reference value).
     let seed = 987654321;
@@ -357,7 +384,10 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.locator('.tab.active', { hasText: 'drift.csv' }).first().waitFor();
     await page.keyboard.press('F1');
     await input.fill('>Knotwise: Tune a Curve');
-    await page.getByRole('option', { name: /Knotwise: Tune a Curve for This Data/ }).first().click();
+    await page
+      .getByRole('option', { name: /Knotwise: Tune a Curve for This Data/ })
+      .first()
+      .click();
     const title = page.locator('.quick-input-widget .quick-input-title');
     await title.filter({ hasText: 'the x column of drift.csv' }).waitFor();
     await input.fill('load');

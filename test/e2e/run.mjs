@@ -34,7 +34,16 @@ try {
     await Promise.all([
       build({ ...node, entryPoints: [join(repoRoot, 'extension', 'main.ts')], outfile: join(repoRoot, 'dist', 'extension.js'), external: ['vscode'] }),
       build({ ...node, entryPoints: [join(repoRoot, 'core', 'node', 'resampleWorker.ts')], outfile: join(repoRoot, 'dist', 'resampleWorker.js') }),
-      build({ bundle: true, sourcemap: true, platform: 'browser', format: 'iife', target: 'es2022', logLevel: 'warning', entryPoints: [join(repoRoot, 'webview', 'main.ts')], outfile: join(repoRoot, 'dist', 'webview', 'main.js') }),
+      build({
+        bundle: true,
+        sourcemap: true,
+        platform: 'browser',
+        format: 'iife',
+        target: 'es2022',
+        logLevel: 'warning',
+        entryPoints: [join(repoRoot, 'webview', 'main.ts')],
+        outfile: join(repoRoot, 'dist', 'webview', 'main.js'),
+      }),
     ]);
     console.log(`whole-editor layer: bundles built in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
     failures = await runMocha([join(here, 'editor.test.ts')], { timeout: 90000, title: 'whole-editor layer' });

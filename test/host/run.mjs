@@ -21,7 +21,16 @@ async function buildAll() {
     build({ ...node, entryPoints: [join(repoRoot, 'extension', 'main.ts')], outfile: join(repoRoot, 'dist', 'extension.js'), external: ['vscode'] }),
     build({ ...node, entryPoints: [join(repoRoot, 'core', 'node', 'resampleWorker.ts')], outfile: join(repoRoot, 'dist', 'resampleWorker.js') }),
     build({ ...node, entryPoints: [join(repoRoot, 'core', 'node', 'cli.ts')], outfile: join(repoRoot, 'dist', 'cli.js'), banner: { js: '#!/usr/bin/env node' } }),
-    build({ bundle: true, sourcemap: true, platform: 'browser', format: 'iife', target: 'es2022', logLevel: 'warning', entryPoints: [join(repoRoot, 'webview', 'main.ts')], outfile: join(repoRoot, 'dist', 'webview', 'main.js') }),
+    build({
+      bundle: true,
+      sourcemap: true,
+      platform: 'browser',
+      format: 'iife',
+      target: 'es2022',
+      logLevel: 'warning',
+      entryPoints: [join(repoRoot, 'webview', 'main.ts')],
+      outfile: join(repoRoot, 'dist', 'webview', 'main.js'),
+    }),
     build({ ...node, entryPoints: [join(here, 'suite', 'index.ts')], outfile: join(repoRoot, 'dist', 'test', 'host', 'index.js'), external: ['vscode', 'mocha'] }),
   ]);
 }
@@ -38,10 +47,7 @@ try {
   const workspace = join(runDir, 'workspace');
   mkdirSync(join(workspace, '.vscode'), { recursive: true });
   for (const f of ['mcycle.csv', 'mcycle-bad.csv', 'cars.csv', 'menarche.csv']) copyFileSync(join(fixtures, f), join(workspace, f));
-  writeFileSync(
-    join(workspace, '.vscode', 'settings.json'),
-    JSON.stringify({ 'knotwise.resampling': 'leave-one-out', 'knotwise.rule': 'least-error', 'knotwise.candidates': '3..15' }, null, 2),
-  );
+  writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'leave-one-out', 'knotwise.rule': 'least-error', 'knotwise.candidates': '3..15' }, null, 2));
   server = await startCodeServer({ runDir });
   console.log(`host layer: code-server up on port ${server.port} after ${seconds(t0)}`);
   browser = await launchChromium();

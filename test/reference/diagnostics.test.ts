@@ -209,7 +209,10 @@ for (const c of fixture.cases) {
       it("influentialRows flags the rows R's hatvalues and cooks.distance put above 2p/n, 4/n and 1", () => {
         const report = influentialRows(Float64Array.from(r.leverage), Float64Array.from(r.cooksDistance), r.p, undefined, r.n);
         const byRule = (rule: string): number[] =>
-          report.rows.filter((row) => row.exceeds.some((e) => e === rule)).map((row) => row.index).sort((a, b) => a - b);
+          report.rows
+            .filter((row) => row.exceeds.some((e) => e === rule))
+            .map((row) => row.index)
+            .sort((a, b) => a - b);
         assert.deepEqual(byRule('leverage > 2 df / n'), r.influentialLeverage);
         assert.deepEqual(byRule("Cook's D > 4 / n"), r.influentialCooks);
         assert.deepEqual(byRule("Cook's D > 1"), r.influentialCooks1);
@@ -247,7 +250,7 @@ describe(`quantiles, plotting positions and binned counts against ${R}`, () => {
     }
   });
 
-  it("binnedDensity matches table(cut(..., right = FALSE, include.lowest = TRUE)) on faithful", () => {
+  it('binnedDensity matches table(cut(..., right = FALSE, include.lowest = TRUE)) on faithful', () => {
     const faithful = fixture.cases.find((c) => c.name === 'faithful');
     assert.ok(faithful);
     const { nx, ny, counts } = fixture.density;

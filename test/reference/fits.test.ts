@@ -128,7 +128,10 @@ describe(`fitCurve and bandsAt against ${SOURCE}`, () => {
     assert.ok(fixture.cases.length >= 50, `only ${fixture.cases.length} cases`);
     for (const name of Object.keys(fixture.datasets)) {
       for (const kind of ['natural-spline', 'polynomial'] as const) {
-        assert.ok(fixture.cases.some((c) => c.dataset === name && kindOf(c) === kind), `${name} ${kind}`);
+        assert.ok(
+          fixture.cases.some((c) => c.dataset === name && kindOf(c) === kind),
+          `${name} ${kind}`,
+        );
       }
     }
     for (const c of fixture.cases) assert.ok(c.knotsDistinct, `${c.name}: quantile knots coincide`);
@@ -193,7 +196,12 @@ describe(`fitCurve and bandsAt against ${SOURCE}`, () => {
         // reading has weight 1 [R 4.2 stats::lm with splines::ns, fixture from test/reference/r/fits.R]
         const b = bandsAt(fit, c.grid);
         checkArray('x', b.x, c.grid, sx);
-        checkArray('curve.value', Float64Array.from(c.grid, (x) => fit.curve.value(x)), c.predFit, sy);
+        checkArray(
+          'curve.value',
+          Float64Array.from(c.grid, (x) => fit.curve.value(x)),
+          c.predFit,
+          sy,
+        );
         checkArray('fit', b.fit, c.predFit, sy);
         checkArray('se', b.se, c.predSe, sy);
         checkArray('ciLower', b.ciLower, c.ciLower, sy);

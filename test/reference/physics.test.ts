@@ -221,8 +221,17 @@ describe(`Shape-constrained natural splines against brute-force active-set enume
       closeAll(`${c.name} fitted`, fit.fitted, c.fitted, EXACT_REL);
       close(`${c.name} RSS`, fit.rss, c.rss, EXACT_REL, c.rss);
       closeAll(`${c.name} B-spline coefficients`, fit.coefficients, c.coefficients, EXACT_REL);
-      closeAll(`${c.name} curve on a dense grid`, Float64Array.from(c.denseX, (x) => fit.curve.value(x)), c.denseFit, EXACT_REL);
-      assert.equal(fit.model?.constraints?.total, c.constraints - (c.shape.some((s) => s === 'convex' || s === 'concave') ? 2 : 0), 'number of inequalities (R also lists the two boundary-knot rows that the natural conditions fix)');
+      closeAll(
+        `${c.name} curve on a dense grid`,
+        Float64Array.from(c.denseX, (x) => fit.curve.value(x)),
+        c.denseFit,
+        EXACT_REL,
+      );
+      assert.equal(
+        fit.model?.constraints?.total,
+        c.constraints - (c.shape.some((s) => s === 'convex' || s === 'concave') ? 2 : 0),
+        'number of inequalities (R also lists the two boundary-knot rows that the natural conditions fix)',
+      );
       const inactive = Math.abs(c.rss - c.unconstrainedRss) <= 1e-12 * c.rss;
       assert.equal(fit.model?.constraints?.active === 0, inactive, `${c.name}: active constraints reported iff the constrained RSS exceeds the unconstrained one`);
       if (inactive) {

@@ -28,7 +28,7 @@ import { join } from 'node:path';
 import { fitSmoothingSpline } from '../../core/fit/smoothingSpline';
 import type { FitResult, XYData } from '../../core/types';
 
-const SOURCE_R = "R 4.2 stats::smooth.spline(all.knots = TRUE), fixture from test/reference/r/smooth.R";
+const SOURCE_R = 'R 4.2 stats::smooth.spline(all.knots = TRUE), fixture from test/reference/r/smooth.R';
 const SOURCE_EXACT = 'R 4.2 splines::splineDesign dense evaluation of the definition, fixture from test/reference/r/smooth.R';
 
 interface FixtureDataset {
@@ -134,7 +134,14 @@ describe(`fitSmoothingSpline against ${SOURCE_R}`, () => {
         // Source: R's smooth.spline, predict(fit, x)$y, predict(fit, grid)$y and fit$lev;
         // tolerances and their reason in the file comment (R's approximate penalty).
         checkArray('fitted', SOURCE_R, fit.fitted, c.fitted, 0, 1e-4 * sy);
-        checkArray('predicted', SOURCE_R, c.grid.map((x) => fit.curve.value(x)), c.predicted, 0, 1e-4 * sy);
+        checkArray(
+          'predicted',
+          SOURCE_R,
+          c.grid.map((x) => fit.curve.value(x)),
+          c.predicted,
+          0,
+          1e-4 * sy,
+        );
         checkArray('leverage', SOURCE_R, pooledLeverage(ds.x, fit.leverage, c.xDistinct), c.lev, 0, 2e-4);
       });
 
@@ -144,10 +151,31 @@ describe(`fitSmoothingSpline against ${SOURCE_R}`, () => {
         const e = c.exact;
         assert.ok(Math.abs((fit.lambda as number) / e.lambda - 1) <= 1e-8, `lambda ${fit.lambda} vs ${e.lambda} [${SOURCE_EXACT}]`);
         checkArray('coefficients', SOURCE_EXACT, fit.coefficients, e.coefficients, 1e-8, 1e-10 * sy);
-        checkArray('fitted (distinct x)', SOURCE_EXACT, c.xDistinct.map((x) => fit.curve.value(x)), e.fittedDistinct, 1e-8, 1e-10 * sy);
-        checkArray('predicted', SOURCE_EXACT, e.grid.map((x) => fit.curve.value(x)), e.predicted, 1e-8, 1e-10 * sy);
+        checkArray(
+          'fitted (distinct x)',
+          SOURCE_EXACT,
+          c.xDistinct.map((x) => fit.curve.value(x)),
+          e.fittedDistinct,
+          1e-8,
+          1e-10 * sy,
+        );
+        checkArray(
+          'predicted',
+          SOURCE_EXACT,
+          e.grid.map((x) => fit.curve.value(x)),
+          e.predicted,
+          1e-8,
+          1e-10 * sy,
+        );
         checkArray('leverage', SOURCE_EXACT, pooledLeverage(ds.x, fit.leverage, c.xDistinct), e.lev, 0, 1e-9);
-        checkArray('varianceFactor', SOURCE_EXACT, e.grid.map((x) => fit.curve.varianceFactor(x)), e.varianceFactor, 1e-8, 0);
+        checkArray(
+          'varianceFactor',
+          SOURCE_EXACT,
+          e.grid.map((x) => fit.curve.varianceFactor(x)),
+          e.varianceFactor,
+          1e-8,
+          0,
+        );
       });
     });
   }

@@ -541,7 +541,11 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     const page = pp.page;
     assert.equal(await page.locator('#kw-banner').isVisible(), false);
     assert.equal(await page.textContent('#kw-save'), 'Save table and record');
-    const edited: HostMessage = { type: 'dataState', runId: 1, state: { analysed: 'disk', change: { where: 'editor', added: 2, removed: 0, changed: 1, header: false }, refit: 'automatic', followedOnDisk: false } };
+    const edited: HostMessage = {
+      type: 'dataState',
+      runId: 1,
+      state: { analysed: 'disk', change: { where: 'editor', added: 2, removed: 0, changed: 1, header: false }, refit: 'automatic', followedOnDisk: false },
+    };
     // A state about another run is dropped.
     await pp.send({ ...edited, runId: 7 });
     assert.equal(await page.locator('#kw-banner').isVisible(), false);
@@ -555,7 +559,11 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await page.click('#kw-save');
     const save = await pp.waitForSent('refitAndSave', mark);
     assert.deepEqual(save, { type: 'refitAndSave', requestId: (save as { requestId: number }).requestId, runId: 1, rule: mcycle.payload.rule });
-    assert.equal(pp.sent.slice(mark).some((m) => m.type === 'save'), false, 'no plain save was asked for');
+    assert.equal(
+      pp.sent.slice(mark).some((m) => m.type === 'save'),
+      false,
+      'no plain save was asked for',
+    );
     assert.equal(await page.textContent('#kw-status'), 'Refitting, then saving…');
     if (save.type === 'refitAndSave') await pp.send({ type: 'saveFailed', requestId: save.requestId, message: 'Nothing was saved: the refit was cancelled.' });
     mark = pp.sent.length;
@@ -587,7 +595,11 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     }
     assert.equal(await page.locator('#kw-refit').isVisible(), false, 'nothing to refit: the analysed edits are the data');
     // The file is gone: nothing can be saved, nothing refitted.
-    await pp.send({ type: 'dataState', runId: 1, state: { analysed: 'disk', change: { where: 'missing', added: 0, removed: 0, changed: 0, header: false }, refit: 'automatic', followedOnDisk: false } });
+    await pp.send({
+      type: 'dataState',
+      runId: 1,
+      state: { analysed: 'disk', change: { where: 'missing', added: 0, removed: 0, changed: 0, header: false }, refit: 'automatic', followedOnDisk: false },
+    });
     assert.equal(await page.textContent('#kw-banner-text'), 'mcycle.csv is no longer on disk. This analysis stays for review; nothing can be saved from it.');
     assert.equal(await page.isDisabled('#kw-save'), true);
     assert.equal(await page.locator('#kw-refit').isVisible(), false);
@@ -608,7 +620,10 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
   });
 
   it('a refit says what moved: rows, the chosen df and the largest change of the curve', async function () {
-    const payload: PanelPayload = { ...mcycle.payload, refit: { reason: 'saved', rowsBefore: 133, rowsNow: 135, dfBefore: 8, dfNow: 9, ruleDropped: false, largestChange: 4.25, atX: 31.2, ySpread: 270.1 } };
+    const payload: PanelPayload = {
+      ...mcycle.payload,
+      refit: { reason: 'saved', rowsBefore: 133, rowsNow: 135, dfBefore: 8, dfNow: 9, ruleDropped: false, largestChange: 4.25, atX: 31.2, ySpread: 270.1 },
+    };
     const pp = await shown({ ...mcycle, payload });
     assert.equal(
       await pp.page.textContent('#kw-moved'),

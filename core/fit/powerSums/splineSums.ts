@@ -158,8 +158,7 @@ export class SplineFromSums {
       const f3 = fp[c * 4 + 3] as number;
       const cross = f0 * (sums[o + 7] as number) + f1 * (sums[o + 8] as number) + f2 * (sums[o + 9] as number) + f3 * (sums[o + 10] as number);
       const s = (k: number): number => sums[o + k] as number;
-      const square =
-        f0 * f0 * s(0) + 2 * f0 * f1 * s(1) + (f1 * f1 + 2 * f0 * f2) * s(2) + (2 * f0 * f3 + 2 * f1 * f2) * s(3) + (f2 * f2 + 2 * f1 * f3) * s(4) + 2 * f2 * f3 * s(5) + f3 * f3 * s(6);
+      const square = f0 * f0 * s(0) + 2 * f0 * f1 * s(1) + (f1 * f1 + 2 * f0 * f2) * s(2) + (2 * f0 * f3 + 2 * f1 * f2) * s(3) + (f2 * f2 + 2 * f1 * f3) * s(4) + 2 * f2 * f3 * s(5) + f3 * f3 * s(6);
       total += (sums[o + 11] as number) - 2 * cross + square;
     }
     return total > 0 ? total : 0;

@@ -42,7 +42,12 @@ export function curveKinds(): readonly CurveKind[] {
 /** The kind with this id; throws InputError naming the kinds there are. */
 export function curveKind(id: string): CurveKind {
   const k = registry.get(id);
-  if (!k) throw new InputError(`unknown curve "${id}"; use ${curveKinds().map((c) => c.id).join(', ')}`);
+  if (!k)
+    throw new InputError(
+      `unknown curve "${id}"; use ${curveKinds()
+        .map((c) => c.id)
+        .join(', ')}`,
+    );
   return k;
 }
 

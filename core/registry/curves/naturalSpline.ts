@@ -57,7 +57,10 @@ export const naturalSpline: CurveKind = {
       const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
       return { df, basis, knots: Float64Array.of(k.lower, ...k.interior, k.upper) };
     });
-    const cells = buildCells(x, bases.map((b) => b.knots));
+    const cells = buildCells(
+      x,
+      bases.map((b) => b.knots),
+    );
     const models = bases.map(({ df, basis }) => new SplineFromSums(cells, basis, nullSpace(basis.naturalConstraint(), 2, basis.size), `natural spline with df ${df}`));
     const trainers = models.map((model) => ({
       train: (_w: Float64Array, sums: Float64Array | undefined) => model.fit(sums as Float64Array),

@@ -12,5 +12,7 @@ export const proportions: OutcomeKind<'proportions'> = {
   metric: 'deviance',
   explainedName: 'deviance explained',
   words: (_k, trialsLabel) =>
-    trialsLabel !== undefined ? `proportions (binomial, logit link), successes out of the trials in column \u201c${trialsLabel}\u201d` : 'proportions (binomial, logit link), readings as 0/1 or proportions',
+    trialsLabel !== undefined
+      ? `proportions (binomial, logit link), successes out of the trials in column \u201c${trialsLabel}\u201d`
+      : 'proportions (binomial, logit link), readings as 0/1 or proportions',
 };

@@ -107,5 +107,6 @@ export const folds: ResamplingScheme<Folds> = {
 
 function checkNumbers(s: Folds): void {
   if (!Number.isInteger(s.folds) || s.folds < FOLDS.min || s.folds > FOLDS.max) throw new InputError(`cross-validation takes ${FOLDS.min} to ${FOLDS.max} folds; got ${s.folds}`);
-  if (!Number.isInteger(s.repeats) || s.repeats < REPEATS.min || s.repeats > REPEATS.max) throw new InputError(`cross-validation repeats must be from ${REPEATS.min} to ${REPEATS.max}; got ${s.repeats}`);
+  if (!Number.isInteger(s.repeats) || s.repeats < REPEATS.min || s.repeats > REPEATS.max)
+    throw new InputError(`cross-validation repeats must be from ${REPEATS.min} to ${REPEATS.max}; got ${s.repeats}`);
 }

@@ -149,7 +149,10 @@ describe('Knotwise commands in the extension host', function () {
     assert.equal(run.rejected, 3);
     const diags = vscode.languages.getDiagnostics(uri).filter((d) => d.source === 'Knotwise');
     // make-fixtures.R breaks lines 6 (accel "n/a"), 11 (times "abc") and 21 (a third field).
-    assert.deepEqual(diags.map((d) => d.range.start.line + 1), [6, 11, 21]);
+    assert.deepEqual(
+      diags.map((d) => d.range.start.line + 1),
+      [6, 11, 21],
+    );
     const byLine = new Map(diags.map((d) => [d.range.start.line + 1, d]));
     const missing = byLine.get(6) as vscode.Diagnostic;
     assert.deepEqual([missing.range.start.character, missing.range.end.character], [4, 7]);
@@ -164,7 +167,10 @@ describe('Knotwise commands in the extension host', function () {
     const again = (await vscode.commands.executeCommand('knotwise.tuneCurve', uri, MCYCLE)) as RunSummary;
     assert.equal(again.status, 'done');
     assert.equal(again.rejected, 0);
-    assert.deepEqual(vscode.languages.getDiagnostics(uri).filter((d) => d.source === 'Knotwise'), []);
+    assert.deepEqual(
+      vscode.languages.getDiagnostics(uri).filter((d) => d.source === 'Knotwise'),
+      [],
+    );
   });
 
   it('saving writes the same curve table and fit record as the command line for the same inputs', async function () {
@@ -181,7 +187,10 @@ describe('Knotwise commands in the extension host', function () {
     const rec = JSON.parse(record) as { selection: { df: number } };
     assert.equal(rec.selection.df, expected().mcycle.chosenDf);
     // No temporary file is left next to the outputs.
-    assert.deepEqual(readdirSync(folder().fsPath).filter((f) => f.includes('knotwise-tmp')), []);
+    assert.deepEqual(
+      readdirSync(folder().fsPath).filter((f) => f.includes('knotwise-tmp')),
+      [],
+    );
   });
 
   it('every grid form of the command line works from the settings: an automatic step and a stepped grid save what the command line writes', async function () {
@@ -274,7 +283,10 @@ describe('Knotwise commands in the extension host', function () {
       // Reference: MASS::rlm(y ~ ns(x, df = k - 1), psi = psi.huber), physics.json; rows are CSV lines 2...
       close(`robust scale (${rlm.rCall})`, rob.model?.scale, rlm.scale, 1e-7);
       const rDown = new Set(rlm.weights.flatMap((w, i) => (w < 1 - 1e-6 ? [i + 2] : [])));
-      assert.ok((rob.model?.downweightedLines ?? []).length === rDown.size && (rob.model?.downweightedLines ?? []).every((l) => rDown.has(l)), `down-weighted lines ${rob.model?.downweightedLines?.join(', ')}`);
+      assert.ok(
+        (rob.model?.downweightedLines ?? []).length === rDown.size && (rob.model?.downweightedLines ?? []).every((l) => rDown.has(l)),
+        `down-weighted lines ${rob.model?.downweightedLines?.join(', ')}`,
+      );
       const savedRob = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('mcycle.csv'), { replaceForeignFiles: 'no' })) as RunSummary;
       assert.equal(savedRob.status, 'done', savedRob.message);
       const cliRob = cliOutputs('mcycle.csv', ['--x', 'times', '--y', 'accel', '--robust', '--df', '5,8', '--resampling', 'folds:5', '--rule', 'least-error']);
@@ -293,7 +305,11 @@ describe('Knotwise commands in the extension host', function () {
     try {
       await setSetting('output.tableName', '${name}.table.csv');
       await setSetting('output.recordName', '${name}.record.json');
-      const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('cars.csv'), { columns: { x: 'speed', y: 'dist' }, replaceForeignFiles: 'no', rule: { kind: 'pick', df: 5 } })) as RunSummary;
+      const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file('cars.csv'), {
+        columns: { x: 'speed', y: 'dist' },
+        replaceForeignFiles: 'no',
+        rule: { kind: 'pick', df: 5 },
+      })) as RunSummary;
       assert.equal(saved.status, 'done', saved.message);
       assert.equal(saved.chosenDf, 5);
       const rec = JSON.parse(await text(file('cars.record.json'))) as { table: { file: string }; selection: { df: number; rule: string } };
@@ -330,7 +346,7 @@ describe('Knotwise commands in the extension host', function () {
     before(async function () {
       // Invented seeded data, only to make a run long enough to stop (no reference value).
       let s = 987654321;
-      const rand = () => ((s = (s * 1103515245 + 12345) >>> 0) / 2 ** 32);
+      const rand = () => (s = (s * 1103515245 + 12345) >>> 0) / 2 ** 32;
       const rows = ['load [kN],strain [um]'];
       for (let i = 0; i < 40000; i++) {
         const x = 100 * rand();

@@ -20,7 +20,10 @@ class ConsoleReporter {
     runner.on('pass', (t: Mocha.Test) => console.log(`${PREFIX}${'  '.repeat(depth)}✔ ${t.title} (${t.duration ?? 0} ms)`));
     runner.on('fail', (t: Mocha.Test, err: Error) => {
       console.log(`${PREFIX}${'  '.repeat(depth)}✘ ${t.title}`);
-      for (const line of String(err.stack ?? err.message).split('\n').slice(0, 12)) console.log(`${PREFIX}${'  '.repeat(depth + 2)}${line}`);
+      for (const line of String(err.stack ?? err.message)
+        .split('\n')
+        .slice(0, 12))
+        console.log(`${PREFIX}${'  '.repeat(depth + 2)}${line}`);
     });
   }
 }

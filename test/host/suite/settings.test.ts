@@ -43,11 +43,20 @@ describe('settings snapshot (readSettings)', function () {
     assert.match(bad.problems.join(), /knotwise\.table\.grid: .*tolerance/);
   });
 
-  it('model settings become the command line\'s model options; combinations the curve kind cannot fit are dropped with a message', function () {
+  it("model settings become the command line's model options; combinations the curve kind cannot fit are dropped with a message", function () {
     const raw: Record<string, unknown> = { outcome: 'counts', shape: ['convex', 'increasing'] };
     const s = readSettings((k) => raw[k]);
     assert.deepEqual(s.model, { outcome: 'counts', shape: ['increasing', 'convex'], robustK: undefined });
-    assert.deepEqual(analysisOptions(s), { kind: 'natural-spline', candidates: undefined, resample: { kind: 'bootstrap', resamples: 50 }, rule: { kind: 'one-se' }, seed: 1, holdout: undefined, outcome: 'counts', shape: ['increasing', 'convex'] });
+    assert.deepEqual(analysisOptions(s), {
+      kind: 'natural-spline',
+      candidates: undefined,
+      resample: { kind: 'bootstrap', resamples: 50 },
+      rule: { kind: 'one-se' },
+      seed: 1,
+      holdout: undefined,
+      outcome: 'counts',
+      shape: ['increasing', 'convex'],
+    });
     // --robust is Huber with k = 1.345 (core/fit/robust.ts HUBER_K); another k is --robust-k.
     const read = (values: Record<string, unknown>) => readSettings((k) => values[k]);
     assert.deepEqual(modelOptions(read({ robust: true }).model), { robust: true });

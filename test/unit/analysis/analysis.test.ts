@@ -13,7 +13,10 @@ import type { RuleSpec } from '../../../core/tune/types';
 import type { XYData } from '../../../core/types';
 
 function cars(): XYData {
-  const rows = readFileSync(join(__dirname, '..', '..', 'e2e', 'fixtures', 'cars.csv'), 'utf8').trim().split('\n').slice(1);
+  const rows = readFileSync(join(__dirname, '..', '..', 'e2e', 'fixtures', 'cars.csv'), 'utf8')
+    .trim()
+    .split('\n')
+    .slice(1);
   return {
     x: Float64Array.from(rows, (r) => Number(r.split(',')[0])),
     y: Float64Array.from(rows, (r) => Number(r.split(',')[1])),
@@ -35,7 +38,11 @@ describe('analyse and withRule', () => {
     const lines = [...(a.data.lines as Int32Array), ...(held.lines as Int32Array)].sort((p, q) => p - q);
     assert.deepEqual(lines, Array.from(data.lines as Int32Array));
     const tuned = Array.from(a.data.lines as Int32Array);
-    assert.deepEqual(tuned, [...tuned].sort((p, q) => p - q), 'input order kept');
+    assert.deepEqual(
+      tuned,
+      [...tuned].sort((p, q) => p - q),
+      'input order kept',
+    );
     // Every fit's per-row arrays follow these rows.
     assert.equal(a.chosen.fitted.length, a.data.x.length);
     const none = await analyse(data, { ...OPTIONS, holdout: undefined });

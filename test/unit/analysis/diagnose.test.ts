@@ -12,7 +12,15 @@ interface Case {
   name: string;
   x: number[];
   y: number[];
-  fits: { model: string; record: { shapiroWilk: { statistic: number; pValue: number }; durbinWatson: { statistic: number; pValue: number; method: string }; breuschPagan: { statistic: number; df: number; pValue: number }; lackOfFit: { F: number; df1: number; df2: number; pValue: number } | null } }[];
+  fits: {
+    model: string;
+    record: {
+      shapiroWilk: { statistic: number; pValue: number };
+      durbinWatson: { statistic: number; pValue: number; method: string };
+      breuschPagan: { statistic: number; df: number; pValue: number };
+      lackOfFit: { F: number; df1: number; df2: number; pValue: number } | null;
+    };
+  }[];
 }
 const fixture = JSON.parse(readFileSync(join(__dirname, '..', '..', 'reference', 'fixtures', 'diagnostics.json'), 'utf8')) as { cases: Case[] };
 
@@ -42,8 +50,14 @@ describe('diagnose', () => {
         assert.equal(d.lackOfFit, undefined);
       }
       // A warning is given exactly for the checks that fail at the 5 % level.
-      assert.equal(d.warnings.some((w) => w.includes('Shapiro-Wilk')), r.shapiroWilk.pValue < 0.05);
-      assert.equal(d.warnings.some((w) => w.includes('Durbin-Watson')), r.durbinWatson.pValue < 0.05);
+      assert.equal(
+        d.warnings.some((w) => w.includes('Shapiro-Wilk')),
+        r.shapiroWilk.pValue < 0.05,
+      );
+      assert.equal(
+        d.warnings.some((w) => w.includes('Durbin-Watson')),
+        r.durbinWatson.pValue < 0.05,
+      );
     });
   }
 
@@ -53,7 +67,10 @@ describe('diagnose', () => {
     const data = { x: Float64Array.from(c.x), y: Float64Array.from(c.y), lines };
     const d = diagnose(data, fitCurve(data, { kind: 'natural-spline', df: 4 }));
     // R: cooks.distance > 1 at rows 1 and 15 of women (fixture influentialCooks1 = [0, 14]).
-    const strong = d.influential.rows.filter((r) => r.cooksDistance > 1).map((r) => r.line).sort((a, b) => a - b);
+    const strong = d.influential.rows
+      .filter((r) => r.cooksDistance > 1)
+      .map((r) => r.line)
+      .sort((a, b) => a - b);
     assert.deepEqual(strong, [2, 16]);
     assert.ok(d.warnings.some((w) => w.includes("Cook's distance above 1") && w.includes('2') && w.includes('16')));
     assert.equal(d.normalQuantiles?.sample.length, 15);

@@ -31,7 +31,15 @@ describe('CI recipe (examples/ci)', function () {
     const tsx = pathToFileURL(join(REPO, 'node_modules', 'tsx', 'dist', 'loader.mjs')).href;
     writeFileSync(join(bin, 'knotwise'), `#!/bin/sh\nexec "${process.execPath}" --import "${tsx}" "${join(REPO, 'core', 'node', 'cli.ts')}" "$@"\n`);
     chmodSync(join(bin, 'knotwise'), 0o755);
-    env = { ...process.env, KNOTWISE: join(bin, 'knotwise'), PATH: `${bin}:${process.env.PATH ?? ''}`, GIT_AUTHOR_NAME: 't', GIT_AUTHOR_EMAIL: 't@example.invalid', GIT_COMMITTER_NAME: 't', GIT_COMMITTER_EMAIL: 't@example.invalid' };
+    env = {
+      ...process.env,
+      KNOTWISE: join(bin, 'knotwise'),
+      PATH: `${bin}:${process.env.PATH ?? ''}`,
+      GIT_AUTHOR_NAME: 't',
+      GIT_AUTHOR_EMAIL: 't@example.invalid',
+      GIT_COMMITTER_NAME: 't',
+      GIT_COMMITTER_EMAIL: 't@example.invalid',
+    };
     assert.equal(git('init', '-q', '-b', 'main').status, 0);
     mkdirSync(join(repo, 'cal'));
     copyFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'cars.csv'), join(repo, 'cal', 'cars.csv'));

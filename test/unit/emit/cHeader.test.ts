@@ -107,7 +107,7 @@ describe('cHeader', () => {
       const j = header.indexOf(words[0] as string);
       if (j < 0) continue;
       const row = Number(words[1]);
-      const want = Number(((csv[row + 1] as string).split(',')[j]) as string);
+      const want = Number((csv[row + 1] as string).split(',')[j] as string);
       assert.equal(Number(words[2]), want, `${words[0]}[${row}]`);
       compared++;
     }
@@ -115,18 +115,33 @@ describe('cHeader', () => {
   });
 
   it('cHeader writes NaN and infinities through <math.h> and still compiles', () => {
-    const table: CurveTable = { columns: ['x', 'fit', 'se', 'extrapolated'], rows: [[1, 2, NaN, 0], [2, Infinity, -Infinity, 1]] };
+    const table: CurveTable = {
+      columns: ['x', 'fit', 'se', 'extrapolated'],
+      rows: [
+        [1, 2, NaN, 0],
+        [2, Infinity, -Infinity, 1],
+      ],
+    };
     const text = cHeader(input(table, { step: undefined }));
     assert.match(text, /#include <math\.h>/);
     const out = compileAndRun(dir, text, 'odd.curve.h', program('odd.curve.h', 'cars', table, false));
     const values = out.filter((w) => w[0] === 'fit' || w[0] === 'se').map((w) => w[2]);
     // glibc prints NaN as "nan" or "-nan" and infinities as "inf" / "-inf".
-    assert.deepEqual(values.map((v) => (v as string).replace(/^-nan$/, 'nan')), ['2', 'inf', 'nan', '-inf']);
+    assert.deepEqual(
+      values.map((v) => (v as string).replace(/^-nan$/, 'nan')),
+      ['2', 'inf', 'nan', '-inf'],
+    );
     assert.doesNotMatch(text, /X_STEP/);
   });
 
   it('cHeader keeps a hostile file name and command inside the comment ("*/" cannot close it)', () => {
-    const table: CurveTable = { columns: ['x', 'fit'], rows: [[1, 2], [2, 3]] };
+    const table: CurveTable = {
+      columns: ['x', 'fit'],
+      rows: [
+        [1, 2],
+        [2, 3],
+      ],
+    };
     const text = cHeader(input(table, { source: { file: 'evil */ int x = 1; /*.csv', sha256: 'b'.repeat(64) }, regenerate: "knotwise fit 'a */ b.csv' --out ." }));
     const out = compileAndRun(dir, text, 'evil.curve.h', program('evil.curve.h', 'cars', table, true));
     assert.equal(out.filter((w) => w[0] === 'fit').length, 2);

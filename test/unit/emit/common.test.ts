@@ -7,7 +7,13 @@ import { columnTexts, noticeLines, printedValue, wrap, type EmitInput } from '..
 
 const input: EmitInput = {
   stem: 's',
-  table: { columns: ['x', 'fit', 'extrapolated'], rows: [[0.1, 1 / 3, 0], [0.3, 2 / 3, 1]] },
+  table: {
+    columns: ['x', 'fit', 'extrapolated'],
+    rows: [
+      [0.1, 1 / 3, 0],
+      [0.3, 2 / 3, 1],
+    ],
+  },
   digits: 4,
   source: { file: 'line\nbreak.csv', sha256: '1'.repeat(64) },
   curve: 'natural cubic regression spline, df 3',

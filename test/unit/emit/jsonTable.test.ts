@@ -34,14 +34,17 @@ function input(table: CurveTable, digits = 6): EmitInput {
 describe('jsonTable', () => {
   it('jsonTable holds every column of the table with the CSV values (6 digits), and the provenance', () => {
     const fit = fitCurve({ x: Float64Array.from(CARS.x), y: Float64Array.from(CARS.y) }, { kind: 'polynomial', df: 3 });
-    const table = curveTable(fit, Float64Array.from({ length: 8 }, (_, i) => 4 + 3 * i));
+    const table = curveTable(
+      fit,
+      Float64Array.from({ length: 8 }, (_, i) => 4 + 3 * i),
+    );
     const doc = JSON.parse(jsonTable(input(table))) as Record<string, any>;
     const csv = curveTableCsv(table, 6).trim().split('\n');
     const header = (csv[0] as string).split(',');
     assert.deepEqual(Object.keys(doc.columns), header);
     header.forEach((c, j) => {
       // Tolerance 0: both sides are the nearest double to the same decimal text.
-      (doc.columns[c] as number[]).forEach((v, i) => assert.equal(v, Number(((csv[i + 1] as string).split(',')[j]) as string), `${c}[${i}]`));
+      (doc.columns[c] as number[]).forEach((v, i) => assert.equal(v, Number((csv[i + 1] as string).split(',')[j] as string), `${c}[${i}]`));
     });
     assert.equal(doc.length, 8);
     assert.equal(doc.xFirst, 4);
@@ -56,7 +59,15 @@ describe('jsonTable', () => {
   });
 
   it('jsonTable writes non-finite values as null, LF line ends and a final newline', () => {
-    const text = jsonTable(input({ columns: ['x', 'fit'], rows: [[1, NaN], [2, Infinity]] }));
+    const text = jsonTable(
+      input({
+        columns: ['x', 'fit'],
+        rows: [
+          [1, NaN],
+          [2, Infinity],
+        ],
+      }),
+    );
     const doc = JSON.parse(text) as { columns: { fit: unknown[] } };
     assert.deepEqual(doc.columns.fit, [null, null]);
     assert.ok(text.endsWith('}\n') && !text.includes('\r'));

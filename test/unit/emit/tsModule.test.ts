@@ -18,7 +18,10 @@ import { curveTableCsv } from '../../../core/table/formatCsv';
 
 const REPO = join(__dirname, '..', '..', '..');
 const TSC = join(REPO, 'node_modules', 'typescript', 'bin', 'tsc');
-const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv'), 'utf8').trim().split('\n').slice(1);
+const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv'), 'utf8')
+  .trim()
+  .split('\n')
+  .slice(1);
 const x = Float64Array.from(rows, (r) => Number(r.split(',')[0]));
 const y = Float64Array.from(rows, (r) => Number(r.split(',')[1]));
 
@@ -41,7 +44,11 @@ function input(table: CurveTable, over: Partial<EmitInput> = {}): EmitInput {
 
 /** Runs tsc in strict mode on the files; returns its output (empty when they type-check). */
 function typeCheck(files: string[]): { status: number | null; output: string } {
-  const r = spawnSync(process.execPath, [TSC, '--noEmit', '--strict', '--noUncheckedIndexedAccess', '--exactOptionalPropertyTypes', '--target', 'es2022', '--module', 'node16', '--moduleResolution', 'node16', ...files], { encoding: 'utf8' });
+  const r = spawnSync(
+    process.execPath,
+    [TSC, '--noEmit', '--strict', '--noUncheckedIndexedAccess', '--exactOptionalPropertyTypes', '--target', 'es2022', '--module', 'node16', '--moduleResolution', 'node16', ...files],
+    { encoding: 'utf8' },
+  );
   return { status: r.status, output: r.stdout + r.stderr };
 }
 
@@ -70,7 +77,7 @@ describe('tsModule', () => {
         'const f: number | undefined = t.fit[0];',
         'const flag: 0 | 1 | undefined = t.negative[3];',
         'const step: number | null = t.xStep;',
-        "const sha: string = t.source.sha256;",
+        'const sha: string = t.source.sha256;',
         'export const used = [n, f, flag, step, sha, t.xFirst, t.xLast, t.dataXMin, t.dataXMax, t.se, t.ciLower, t.ciUpper, t.piLower, t.piUpper, t.extrapolated];',
         '',
       ].join('\n'),
@@ -93,12 +100,19 @@ describe('tsModule', () => {
     header.forEach((c, j) => {
       const values = mod[c] as number[];
       assert.equal(values.length, table.rows.length, c);
-      values.forEach((v, i) => assert.equal(v, Number(((csv[i + 1] as string).split(',')[j]) as string), `${c}[${i}]`));
+      values.forEach((v, i) => assert.equal(v, Number((csv[i + 1] as string).split(',')[j] as string), `${c}[${i}]`));
     });
   });
 
   it('tsModule writes Infinity and NaN literals and a numeric xStep for even grids', () => {
-    const table: CurveTable = { columns: ['x', 'fit'], rows: [[0, Infinity], [0.5, NaN], [1, -Infinity]] };
+    const table: CurveTable = {
+      columns: ['x', 'fit'],
+      rows: [
+        [0, Infinity],
+        [0.5, NaN],
+        [1, -Infinity],
+      ],
+    };
     const text = tsModule(input(table, { step: 0.5 }));
     assert.match(text, /export const fit: readonly number\[\] = \[\n {2}Infinity, NaN, -Infinity,\n\];/);
     assert.match(text, /export const xStep: number \| null = 0\.5;/);

@@ -88,13 +88,11 @@ describe('fitCurve exactness properties', () => {
     // Tolerance: 1e-9 times the size of the largest term, sum |c_j| max|x|^j.
     fc.assert(
       fc.property(
-        fc.integer({ min: 1, max: 5 }).chain((d) =>
-          fc.tuple(
-            fc.array(finite(-5, 5), { minLength: d + 1, maxLength: d + 1 }),
-            fc.uniqueArray(fc.integer({ min: -300, max: 300 }), { minLength: d + 2, maxLength: 40 }),
-            finite(-10, 10),
+        fc
+          .integer({ min: 1, max: 5 })
+          .chain((d) =>
+            fc.tuple(fc.array(finite(-5, 5), { minLength: d + 1, maxLength: d + 1 }), fc.uniqueArray(fc.integer({ min: -300, max: 300 }), { minLength: d + 2, maxLength: 40 }), finite(-10, 10)),
           ),
-        ),
         ([coef, ints, shift]) => {
           const d = coef.length - 1;
           const x = Float64Array.from(ints, (v) => v / 100 + shift);
@@ -131,14 +129,16 @@ describe('fitCurve exactness properties', () => {
     // Tolerance: 1e-8 relative.
     fc.assert(
       fc.property(
-        fc.integer({ min: 1, max: 5 }).chain((df) =>
-          fc.tuple(
-            fc.constant(df),
-            fc.uniqueArray(fc.integer({ min: -300, max: 300 }), { minLength: df + 2, maxLength: 25 }),
-            fc.array(finite(-100, 100), { minLength: 25, maxLength: 25 }),
-            fc.option(fc.array(finite(0.1, 10), { minLength: 25, maxLength: 25 }), { nil: undefined }),
+        fc
+          .integer({ min: 1, max: 5 })
+          .chain((df) =>
+            fc.tuple(
+              fc.constant(df),
+              fc.uniqueArray(fc.integer({ min: -300, max: 300 }), { minLength: df + 2, maxLength: 25 }),
+              fc.array(finite(-100, 100), { minLength: 25, maxLength: 25 }),
+              fc.option(fc.array(finite(0.1, 10), { minLength: 25, maxLength: 25 }), { nil: undefined }),
+            ),
           ),
-        ),
         ([df, ints, yPool, wPool]) => {
           const n = ints.length;
           const x = Float64Array.from(ints, (v) => v / 100);
@@ -210,8 +210,7 @@ describe('fitCurve exactness properties', () => {
             const y = x.map((v, i) => v * 0.5 + (i % 3));
             assert.throws(
               () => fitCurve({ x, y }, { kind, df }),
-              (err: unknown) =>
-                err instanceof InputError && new RegExp(`(^|\\D)${m}(\\D|$)`).test(err.message) && /distinct/i.test(err.message),
+              (err: unknown) => err instanceof InputError && new RegExp(`(^|\\D)${m}(\\D|$)`).test(err.message) && /distinct/i.test(err.message),
               `df ${df} on ${m} distinct x`,
             );
           },
@@ -237,7 +236,13 @@ describe('fitCurve exactness properties', () => {
       const w = new Float64Array(n).fill(1);
       const lines = Int32Array.from({ length: n }, (_, i) => i + 2);
       const bad: Array<[string, XYData]> = [];
-      for (const [col, value] of [['x', NaN], ['y', NaN], ['w', NaN], ['x', Infinity], ['y', -Infinity]] as const) {
+      for (const [col, value] of [
+        ['x', NaN],
+        ['y', NaN],
+        ['w', NaN],
+        ['x', Infinity],
+        ['y', -Infinity],
+      ] as const) {
         const data = { x: x.slice(), y: y.slice(), w: w.slice(), lines };
         data[col][7] = value;
         bad.push([`${col} = ${value} at row 7`, data]);

@@ -88,7 +88,10 @@ describe('Poisson and binomial fits (IRLS)', () => {
   it('bands of Poisson and binomial fits are built on the link scale and stay inside the valid range', () => {
     const pois = fitCurve({ x: Float64Array.from(discoveries.x), y: Float64Array.from(discoveries.y) }, { kind: 'natural-spline', df: 5, outcome: 'counts' });
     const bin = fitCurve({ x: Float64Array.from(menarche.x), y: Float64Array.from(menarche.y) }, { kind: 'natural-spline', df: 4, outcome: 'proportions', trials: Float64Array.from(menarche.trials) });
-    for (const [fit, upper] of [[pois, Infinity], [bin, 1]] as const) {
+    for (const [fit, upper] of [
+      [pois, Infinity],
+      [bin, 1],
+    ] as const) {
       const xs = Float64Array.from({ length: 41 }, (_, k) => fit.curve.lower - 5 + ((fit.curve.upper - fit.curve.lower + 10) * k) / 40);
       const b = bandsAt(fit, xs);
       for (let k = 0; k < xs.length; k++) {
@@ -119,7 +122,10 @@ describe('Poisson and binomial fits (IRLS)', () => {
       () => fitCurve({ x, y: Float64Array.of(0, 1, 5, 1, 0), lines }, { kind: 'natural-spline', df: 2, outcome: 'proportions', trials: Float64Array.of(3, 3, 3, 3, 3) }),
       (e: unknown) => e instanceof InputError && e.place.line === 4 && /from 0 to the number of trials \(3\); got 5/.test(e.message),
     );
-    assert.throws(() => binomialFromTrials({ x, y: Float64Array.of(0, 0, 0, 0, 0), lines }, Float64Array.of(1, 0, 1, 1, 1)), (e: unknown) => e instanceof InputError && e.place.line === 3);
+    assert.throws(
+      () => binomialFromTrials({ x, y: Float64Array.of(0, 0, 0, 0, 0), lines }, Float64Array.of(1, 0, 1, 1, 1)),
+      (e: unknown) => e instanceof InputError && e.place.line === 3,
+    );
     assert.throws(() => fitCurve({ x, y: x }, { kind: 'natural-spline', df: 2, trials: x }), /a trials column needs the proportions outcome/);
   });
 

@@ -35,7 +35,10 @@ describe('model options (outcome, shape, robust)', () => {
 
   it('resolveModel refuses combinations it cannot fit, saying why', () => {
     const refuse = (f: () => unknown, re: RegExp): void => assert.throws(f, (e: unknown) => e instanceof InputError && re.test(e.message));
-    refuse(() => resolveModel('smoothing-spline', { outcome: 'counts' }), /cubic smoothing spline takes continuous readings only; counts need a curve that supports them \(natural-spline, polynomial\)/);
+    refuse(
+      () => resolveModel('smoothing-spline', { outcome: 'counts' }),
+      /cubic smoothing spline takes continuous readings only; counts need a curve that supports them \(natural-spline, polynomial\)/,
+    );
     refuse(() => resolveModel('smoothing-spline', { robust: true }), /cubic smoothing spline has no robust fit/);
     refuse(() => resolveModel('polynomial', { shape: ['increasing'] }), /polynomial \(orthogonal basis\) takes no shape constraints/);
     refuse(() => resolveModel('natural-spline', { outcome: 'proportions', robust: true }), /robust fitting applies to continuous readings only/);

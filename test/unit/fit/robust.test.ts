@@ -60,7 +60,10 @@ describe('fitCurve with robust: true (Huber M-estimation)', () => {
     assert.ok(r && rob.model?.converged);
     assert.equal(r.k, 1.345, 'default tuning constant');
     assert.deepEqual(
-      r.downweighted.rows.slice(0, planted.length).map((d) => d.line).sort((a, b) => a - b),
+      r.downweighted.rows
+        .slice(0, planted.length)
+        .map((d) => d.line)
+        .sort((a, b) => a - b),
       planted.map((i) => i + 2),
       'the planted rows have the lowest weights, named by line',
     );
@@ -88,9 +91,13 @@ describe('fitCurve with robust: true (Huber M-estimation)', () => {
     const y = Float64Array.from(x, (t) => 2 * t + 1);
     y[3] = 100;
     const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 2, robust: true });
-    assert.match(fit.notes.join(" "), /robust scale is 0/);
+    assert.match(fit.notes.join(' '), /robust scale is 0/);
     assert.equal(fit.model?.robust?.scale, 0);
-    assert.deepEqual(fit.model?.robust?.downweighted.rows.map((r) => r.line), [4], 'only the outlier (row 4, no CSV lines given) is down-weighted');
+    assert.deepEqual(
+      fit.model?.robust?.downweighted.rows.map((r) => r.line),
+      [4],
+      'only the outlier (row 4, no CSV lines given) is down-weighted',
+    );
     // The other rows lie on the line y = 2 x + 1 (tolerance 1e-7: the iteration stops once the scale falls below 1e-9 of the least-squares residuals' RMS).
     for (let i = 0; i < n; i++) if (i !== 3) assert.ok(Math.abs((fit.fitted[i] as number) - (2 * (x[i] as number) + 1)) <= 1e-7, `row ${i}`);
   });

@@ -63,7 +63,10 @@ describe('checkShapes and parseShapeList', () => {
   });
 
   it('checkShapes refuses unknown names and contradictory pairs with a message that names them', () => {
-    assert.throws(() => checkShapes(['monotone']), (e: unknown) => e instanceof InputError && /unknown shape "monotone"/.test(e.message));
+    assert.throws(
+      () => checkShapes(['monotone']),
+      (e: unknown) => e instanceof InputError && /unknown shape "monotone"/.test(e.message),
+    );
     assert.throws(() => checkShapes(['increasing', 'decreasing']), /only allow a constant/);
     assert.throws(() => checkShapes(['convex', 'concave']), /only allow a straight line/);
   });
@@ -115,11 +118,24 @@ describe('fitCurve with shape constraints (natural spline)', () => {
     const d = noisy(3, 120, (x) => 1 / (1 + Math.exp(-(x - 5))), 0.15);
     const plain = fitCurve(d, { kind: 'natural-spline', df: 9 });
     const plainGrid = dense(plain);
-    assert.ok(plainGrid.some((v, k) => k > 0 && v < (plainGrid[k - 1] as number) - 1e-6), 'the unconstrained fit of seed 3 does decrease somewhere (so the test is not vacuous)');
+    assert.ok(
+      plainGrid.some((v, k) => k > 0 && v < (plainGrid[k - 1] as number) - 1e-6),
+      'the unconstrained fit of seed 3 does decrease somewhere (so the test is not vacuous)',
+    );
   });
 
   it('shape-constrained fits keep every asked shape on a dense grid for seeded data that breaks it (property)', () => {
-    const combos: Shape[][] = [['increasing'], ['decreasing'], ['nonnegative'], ['convex'], ['concave'], ['increasing', 'concave'], ['decreasing', 'convex'], ['increasing', 'nonnegative'], ['nonnegative', 'convex']];
+    const combos: Shape[][] = [
+      ['increasing'],
+      ['decreasing'],
+      ['nonnegative'],
+      ['convex'],
+      ['concave'],
+      ['increasing', 'concave'],
+      ['decreasing', 'convex'],
+      ['increasing', 'nonnegative'],
+      ['nonnegative', 'convex'],
+    ];
     fc.assert(
       fc.property(fc.integer({ min: 1, max: 1e6 }), fc.integer({ min: 2, max: 10 }), fc.constantFrom(...combos), (seed, df, shapes) => {
         // A wavy truth around zero breaks every shape; noise SD 0.3.
@@ -170,11 +186,17 @@ describe('fitCurve with shape constraints (natural spline)', () => {
       assert.ok((b.ciLower[k] as number) >= 0 && (b.piLower[k] as number) >= 0, `lower limits at ${xs[k]}`);
       assert.ok((b.ciUpper[k] as number) >= (b.fit[k] as number) && (b.se[k] as number) >= 0);
     }
-    assert.ok(b.piLower.some((v) => v === 0), 'some prediction limit was raised to 0 (so the test is not vacuous)');
+    assert.ok(
+      b.piLower.some((v) => v === 0),
+      'some prediction limit was raised to 0 (so the test is not vacuous)',
+    );
   });
 
   it('shape constraints are refused for the polynomial with the reason (the smoothing spline: test/unit/fit/shapedSmoothing.test.ts)', () => {
     const d = noisy(1, 30, (x) => x, 0.1);
-    assert.throws(() => fitCurve(d, { kind: 'polynomial', df: 3, shape: ['increasing'] }), /polynomial \(orthogonal basis\) takes no shape constraints; shapes need another curve \(natural-spline, smoothing-spline\)/);
+    assert.throws(
+      () => fitCurve(d, { kind: 'polynomial', df: 3, shape: ['increasing'] }),
+      /polynomial \(orthogonal basis\) takes no shape constraints; shapes need another curve \(natural-spline, smoothing-spline\)/,
+    );
   });
 });

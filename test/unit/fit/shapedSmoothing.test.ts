@@ -26,13 +26,7 @@ import fc from 'fast-check';
 import { FitError } from '../../../core/errors';
 import { bandsAt } from '../../../core/fit/bands';
 import { fitCurve, prepareData } from '../../../core/fit/index';
-import {
-  checkShapedSmoothingSize,
-  fitShapedSmoothingSpline,
-  MAX_SHAPED_SMOOTHING_DISTINCT,
-  penalisedCoefficients,
-  shapedSmoothingSplineAtLambda,
-} from '../../../core/fit/shapedSmoothing';
+import { checkShapedSmoothingSize, fitShapedSmoothingSpline, MAX_SHAPED_SMOOTHING_DISTINCT, penalisedCoefficients, shapedSmoothingSplineAtLambda } from '../../../core/fit/shapedSmoothing';
 import { SHAPES } from '../../../core/fit/shape';
 import { fitSmoothingSpline, lambdaForDf } from '../../../core/fit/smoothingSpline';
 import { ERRORS_PER_CANDIDATE, ResampleEngine } from '../../../core/tune/engine';
@@ -153,7 +147,7 @@ describe('fitShapedSmoothingSpline against R (quadprog::solve.QP on the same pen
     });
   }
 
-  it('fitShapedSmoothingSpline finds the lambda R finds for each df and then R\'s fit (lambda within 1e-6)', () => {
+  it("fitShapedSmoothingSpline finds the lambda R finds for each df and then R's fit (lambda within 1e-6)", () => {
     for (const c of fixture.cases) {
       const fit = fitShapedSmoothingSpline(caseData(c), c.df, c.shapes);
       if (c.lambda === null) {
@@ -184,7 +178,10 @@ describe('fitShapedSmoothingSpline: the shape on a dense grid', () => {
       const d = noisy(7, 150, c.truth, c.sd);
       const free = fitSmoothingSpline(d, c.df);
       // Second differences on the grid are of order h^2 f'', so real bends show at 1e-6 here; rounding stays near 1e-15.
-      assert.ok(c.shapes.some((s) => violation(dense(free, c.out), s) > 100 * GRID_TOLERANCE), 'the unconstrained fit breaks the shape (so the check is not vacuous)');
+      assert.ok(
+        c.shapes.some((s) => violation(dense(free, c.out), s) > 100 * GRID_TOLERANCE),
+        'the unconstrained fit breaks the shape (so the check is not vacuous)',
+      );
       const fit = fitCurve(d, { kind: 'smoothing-spline', df: c.df, shape: c.shapes });
       // Within the data range always; beyond it (linear continuation) for monotone and convex/concave shapes.
       for (const s of c.shapes) assert.ok(violation(dense(fit, c.out), s) <= GRID_TOLERANCE, `${s} breaks by ${violation(dense(fit, c.out), s)}`);
@@ -251,7 +248,10 @@ describe('fitShapedSmoothingSpline: inactive constraints and limits', () => {
     const n = MAX_SHAPED_SMOOTHING_DISTINCT + 1;
     const d = { x: Float64Array.from({ length: n }, (_, i) => i), y: Float64Array.from({ length: n }, (_, i) => Math.sqrt(i)) };
     const message = new RegExp(`limited to ${MAX_SHAPED_SMOOTHING_DISTINCT} distinct x values.*the data has ${n}\\. Use the shape-constrained natural spline \\(--curve natural-spline\\)`);
-    assert.throws(() => fitCurve(d, { kind: 'smoothing-spline', df: 5, shape: ['increasing'] }), (e: unknown) => e instanceof FitError && message.test(e.message));
+    assert.throws(
+      () => fitCurve(d, { kind: 'smoothing-spline', df: 5, shape: ['increasing'] }),
+      (e: unknown) => e instanceof FitError && message.test(e.message),
+    );
     assert.throws(() => checkShapedSmoothingSize(n), FitError);
     checkShapedSmoothingSize(MAX_SHAPED_SMOOTHING_DISTINCT);
     // Without a shape the smoothing spline has no such limit.
@@ -269,14 +269,24 @@ describe('fitShapedSmoothingSpline: inactive constraints and limits', () => {
 describe('tuning shape-constrained smoothing splines', () => {
   const cars = caseData(fixture.cases[0] as RCase); // datasets::cars (Ezekiel 1930), 19 distinct speeds
 
-  it('ResampleEngine refits each fold at the candidate\'s full-data lambda: errors equal direct refits (1e-10)', () => {
+  it("ResampleEngine refits each fold at the candidate's full-data lambda: errors equal direct refits (1e-10)", () => {
     const dfs = [3, 6, 9];
     const lambdas = dfs.map((df) => lambdaForDf(cars, df));
     // The engine takes each candidate's lambda for x scaled to [0, 1] over the range of all rows (FitResult.lambdaScaled).
     const scaled = dfs.map((df) => fitSmoothingSpline(cars, df).lambdaScaled as number);
     const shape: Shape[] = ['increasing', 'convex'];
     const folds = 5;
-    const engine = new ResampleEngine({ x: cars.x, y: cars.y, kind: 'smoothing-spline', dfs, params: scaled, resample: { kind: 'folds', folds, repeats: 1 }, seed: 3, order: orderByX(cars.x), model: { shape } });
+    const engine = new ResampleEngine({
+      x: cars.x,
+      y: cars.y,
+      kind: 'smoothing-spline',
+      dfs,
+      params: scaled,
+      resample: { kind: 'folds', folds, repeats: 1 },
+      seed: 3,
+      order: orderByX(cars.x),
+      model: { shape },
+    });
     const labels = new Uint16Array(cars.x.length);
     foldLabels(orderByX(cars.x), folds, 3, 0, labels);
     let anyActive = false;

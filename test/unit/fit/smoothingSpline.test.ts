@@ -157,7 +157,10 @@ describe('fitSmoothingSpline', () => {
     const sy = maxAbs(carsW.y);
     assert.equal(fit.df, 2);
     assert.equal(fit.lambda, Infinity);
-    assert.ok(fit.notes.some((s) => /straight line/.test(s)), fit.notes.join(' | '));
+    assert.ok(
+      fit.notes.some((s) => /straight line/.test(s)),
+      fit.notes.join(' | '),
+    );
     for (let i = 0; i < carsW.x.length; i++) {
       const xi = carsW.x[i] as number;
       assert.ok(Math.abs((fit.fitted[i] as number) - (a + b * xi)) <= 1e-10 * sy, `fitted[${i}]`);
@@ -295,7 +298,7 @@ describe('fitSmoothingSpline', () => {
           dense.coef.forEach((c, i) => assert.ok(Math.abs((fit.coefficients[i] as number) - c) <= 1e-7 * cScale + 1e-12, `coefficient ${i}: ${fit.coefficients[i]} vs ${c}`));
           for (let i = 0; i < xs.length; i++) {
             const row = basisRow(dense.ev, xs[i] as number);
-            const h = (d.w as Float64Array)[i]! * (Matrix.rowVector(row).mmul(dense.ainv).mmul(Matrix.columnVector(row)).get(0, 0));
+            const h = (d.w as Float64Array)[i]! * Matrix.rowVector(row).mmul(dense.ainv).mmul(Matrix.columnVector(row)).get(0, 0);
             assert.ok(Math.abs((fit.leverage[i] as number) - h) <= 1e-7 * h + 1e-12, `leverage ${i}: ${fit.leverage[i]} vs ${h}`);
           }
           const lo = Math.min(...base);
@@ -410,7 +413,10 @@ describe('fitSmoothingSpline', () => {
       (e: unknown) => e instanceof FitError && e.message === 'smoothing spline with df 9 needs more than 9 distinct x values; the data has 6',
     );
     assert.throws(() => fitSmoothingSpline(six, 6), /df 6 needs more than 6 distinct x values; the data has 6/);
-    assert.throws(() => fitSmoothingSpline(six, 1.5), (e: unknown) => e instanceof FitError && /at least 2/.test(e.message));
+    assert.throws(
+      () => fitSmoothingSpline(six, 1.5),
+      (e: unknown) => e instanceof FitError && /at least 2/.test(e.message),
+    );
     assert.throws(() => fitSmoothingSpline(six, NaN), FitError);
     const three: XYData = { x: Float64Array.of(1, 1, 2, 3, 3), y: Float64Array.of(1, 2, 3, 4, 5) };
     assert.throws(
@@ -423,8 +429,14 @@ describe('fitSmoothingSpline', () => {
       (e: unknown) => e instanceof InputError && e.place.line === 4 && /not a finite number/.test(e.message),
     );
     const badW: XYData = { x: Float64Array.of(1, 2, 3, 4, 5), y: Float64Array.of(1, 2, 3, 4, 5), w: Float64Array.of(1, 1, 0, 1, 1) };
-    assert.throws(() => fitSmoothingSpline(badW, 3), (e: unknown) => e instanceof InputError && /positive/.test(e.message));
-    assert.throws(() => smoothingSplineAtLambda(six, 0), (e: unknown) => e instanceof FitError && /positive/.test(e.message));
+    assert.throws(
+      () => fitSmoothingSpline(badW, 3),
+      (e: unknown) => e instanceof InputError && /positive/.test(e.message),
+    );
+    assert.throws(
+      () => smoothingSplineAtLambda(six, 0),
+      (e: unknown) => e instanceof FitError && /positive/.test(e.message),
+    );
     assert.throws(() => smoothingSplineAtLambda(six, -1), FitError);
   });
 
@@ -435,7 +447,10 @@ describe('fitSmoothingSpline', () => {
     const m = 2000;
     const x = Float64Array.from({ length: m }, (_, i) => (i / (m - 1)) ** 2);
     const y = x.map((v, i) => Math.sin(6 * v) + Math.cos(i));
-    assert.throws(() => fitSmoothingSpline({ x, y }, m - 1.5), (e: unknown) => e instanceof FitError && /too close to interpolating/.test(e.message));
+    assert.throws(
+      () => fitSmoothingSpline({ x, y }, m - 1.5),
+      (e: unknown) => e instanceof FitError && /too close to interpolating/.test(e.message),
+    );
     const ok: FitResult = fitSmoothingSpline({ x, y }, 100);
     assert.ok(Math.abs(ok.df - 100) <= 1e-6);
   });

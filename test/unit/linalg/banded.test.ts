@@ -73,14 +73,16 @@ describe('banded LDL factorisation, solve and inverse band', () => {
     // Tolerance: 1e-10 times the largest entry of the dense result (moderate conditioning).
     fc.assert(
       fc.property(
-        fc.integer({ min: 1, max: 30 }).chain((n) =>
-          fc.tuple(
-            fc.constant(n),
-            fc.integer({ min: 0, max: Math.min(5, n - 1) }),
-            fc.array(fc.double({ min: -1, max: 1, noNaN: true }), { minLength: n * 6, maxLength: n * 6 }),
-            fc.array(fc.double({ min: -10, max: 10, noNaN: true }), { minLength: n, maxLength: n }),
+        fc
+          .integer({ min: 1, max: 30 })
+          .chain((n) =>
+            fc.tuple(
+              fc.constant(n),
+              fc.integer({ min: 0, max: Math.min(5, n - 1) }),
+              fc.array(fc.double({ min: -1, max: 1, noNaN: true }), { minLength: n * 6, maxLength: n * 6 }),
+              fc.array(fc.double({ min: -10, max: 10, noNaN: true }), { minLength: n, maxLength: n }),
+            ),
           ),
-        ),
         ([n, p, entries, rhs]) => {
           const b = Matrix.zeros(n, n);
           for (let i = 0; i < n; i++) {
@@ -129,9 +131,18 @@ describe('banded LDL factorisation, solve and inverse band', () => {
   it('bandLdl refuses indefinite and singular matrices, naming the pivot', () => {
     // Source: [[1, 2], [2, 1]] has eigenvalues 3 and -1 (indefinite); [[1, 1], [1, 1]] is
     // singular; a zero diagonal entry cannot be a positive definite matrix.
-    assert.throws(() => bandLdl(Float64Array.of(1, 2, 1, 0), 2, 1), (e: unknown) => e instanceof FitError && /pivot 2 of 2/.test(e.message));
-    assert.throws(() => bandLdl(Float64Array.of(1, 1, 1, 0), 2, 1), (e: unknown) => e instanceof FitError && /pivot 2 of 2/.test(e.message));
-    assert.throws(() => bandLdl(Float64Array.of(0, 0, 1, 0), 2, 1), (e: unknown) => e instanceof FitError && /pivot 1 of 2/.test(e.message));
+    assert.throws(
+      () => bandLdl(Float64Array.of(1, 2, 1, 0), 2, 1),
+      (e: unknown) => e instanceof FitError && /pivot 2 of 2/.test(e.message),
+    );
+    assert.throws(
+      () => bandLdl(Float64Array.of(1, 1, 1, 0), 2, 1),
+      (e: unknown) => e instanceof FitError && /pivot 2 of 2/.test(e.message),
+    );
+    assert.throws(
+      () => bandLdl(Float64Array.of(0, 0, 1, 0), 2, 1),
+      (e: unknown) => e instanceof FitError && /pivot 1 of 2/.test(e.message),
+    );
   });
 
   it('band functions reject storage of the wrong shape', () => {

@@ -17,19 +17,20 @@ import { factorSpd } from '../../../core/linalg/spd';
 const entry = fc.integer({ min: -500, max: 500 }).map((v) => v / 100);
 
 /** G = M'M + I (q x q, SPD), g, A (r x q) and h with a known feasible point b* (h = A b* - slack). */
-const problem = fc
-  .record({ q: fc.integer({ min: 1, max: 6 }), r: fc.integer({ min: 1, max: 9 }) })
-  .chain(({ q, r }) =>
-    fc.record({
-      q: fc.constant(q),
-      r: fc.constant(r),
-      m: fc.array(entry, { minLength: q * q, maxLength: q * q }),
-      g: fc.array(entry, { minLength: q, maxLength: q }),
-      a: fc.array(entry, { minLength: r * q, maxLength: r * q }),
-      b: fc.array(entry, { minLength: q, maxLength: q }),
-      slack: fc.array(fc.integer({ min: 0, max: 300 }).map((v) => v / 100), { minLength: r, maxLength: r }),
-    }),
-  );
+const problem = fc.record({ q: fc.integer({ min: 1, max: 6 }), r: fc.integer({ min: 1, max: 9 }) }).chain(({ q, r }) =>
+  fc.record({
+    q: fc.constant(q),
+    r: fc.constant(r),
+    m: fc.array(entry, { minLength: q * q, maxLength: q * q }),
+    g: fc.array(entry, { minLength: q, maxLength: q }),
+    a: fc.array(entry, { minLength: r * q, maxLength: r * q }),
+    b: fc.array(entry, { minLength: q, maxLength: q }),
+    slack: fc.array(
+      fc.integer({ min: 0, max: 300 }).map((v) => v / 100),
+      { minLength: r, maxLength: r },
+    ),
+  }),
+);
 
 function spd(m: number[], q: number): Float64Array {
   const g = new Float64Array(q * q);
@@ -62,7 +63,10 @@ describe('solveLsi (least squares with inequality constraints via LDP and NNLS)'
 
   it('solveLsi throws FitError naming the fit when the constraints are inconsistent', () => {
     // b >= 1 and -b >= 0 cannot both hold.
-    assert.throws(() => solveLsi(Float64Array.of(1), Float64Array.of(0), 1, Float64Array.of(1, -1), Float64Array.of(1, 0), 2, 'test fit'), (e: unknown) => e instanceof FitError && /test fit: the shape constraints cannot all hold/.test(e.message));
+    assert.throws(
+      () => solveLsi(Float64Array.of(1), Float64Array.of(0), 1, Float64Array.of(1, -1), Float64Array.of(1, 0), 2, 'test fit'),
+      (e: unknown) => e instanceof FitError && /test fit: the shape constraints cannot all hold/.test(e.message),
+    );
   });
 
   it('solveLsi satisfies the Kuhn-Tucker conditions on seeded random problems with a feasible point', () => {
@@ -110,7 +114,7 @@ describe('activeSetCovariance (covariance with the active constraints as equalit
     for (let i = 0; i < 4; i++) assert.ok(Math.abs((cov[i] as number) - (want[i] as number)) <= 1e-15, `cov[${i}] = ${cov[i]}`);
   });
 
-  it('activeSetCovariance equals Z (Z\'GZ)^-1 Z\' with Z the null space of the active rows, and drops dependent rows', () => {
+  it("activeSetCovariance equals Z (Z'GZ)^-1 Z' with Z the null space of the active rows, and drops dependent rows", () => {
     // Tolerance 1e-9 relative to the largest entry of G^-1.
     fc.assert(
       fc.property(problem, ({ q, r, m, a }) => {

@@ -44,16 +44,14 @@ function bruteForce(e: Float64Array, m: number, n: number, f: Float64Array): { x
 /** Entries in [-10, 10] on a 0.01 grid: well scaled, with exact zeros and repeated values (rank deficiency) common. */
 const entry = fc.integer({ min: -1000, max: 1000 }).map((v) => v / 100);
 
-const problem = fc
-  .record({ m: fc.integer({ min: 1, max: 7 }), n: fc.integer({ min: 1, max: 6 }) })
-  .chain(({ m, n }) =>
-    fc.record({
-      m: fc.constant(m),
-      n: fc.constant(n),
-      e: fc.array(entry, { minLength: m * n, maxLength: m * n }),
-      f: fc.array(entry, { minLength: m, maxLength: m }),
-    }),
-  );
+const problem = fc.record({ m: fc.integer({ min: 1, max: 7 }), n: fc.integer({ min: 1, max: 6 }) }).chain(({ m, n }) =>
+  fc.record({
+    m: fc.constant(m),
+    n: fc.constant(n),
+    e: fc.array(entry, { minLength: m * n, maxLength: m * n }),
+    f: fc.array(entry, { minLength: m, maxLength: m }),
+  }),
+);
 
 describe('nnls (Lawson & Hanson non-negative least squares)', () => {
   it('nnls reproduces the example of its doc comment: E = I, f = (1, -1) gives x = (1, 0)', () => {

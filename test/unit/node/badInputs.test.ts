@@ -47,7 +47,12 @@ const CLI_CASES: readonly CliCase[] = [
   { name: 'a seed that is no whole number', args: [...base, '--seed', '1.5'], code: 2, message: /seed/ },
   { name: 'a hold-out fraction above 0.5', args: [...base, '--holdout', '0.7'], code: 2, message: /--holdout/ },
   { name: 'a bare a:b:c grid', args: [...base, '--df', '3', '--grid', '10:20:5'], code: 2, message: /third field must say what it is/ },
-  { name: 'a grid outside the data range names the file', args: [...base, '--df', '3', '--grid', '0:30:count=7'], code: 2, message: /data\.csv: 2 grid point\(s\) lie outside the data range \[4, 25\].*--extrapolate/ },
+  {
+    name: 'a grid outside the data range names the file',
+    args: [...base, '--df', '3', '--grid', '0:30:count=7'],
+    code: 2,
+    message: /data\.csv: 2 grid point\(s\) lie outside the data range \[4, 25\].*--extrapolate/,
+  },
   { name: 'digits out of range', args: [...base, '--digits', '40'], code: 2, message: /--digits/ },
   { name: 'an unknown table column', args: [...base, '--columns', 'x,fitted'], code: 2, message: /fitted/ },
   { name: 'an unknown emitter', args: [...base, '--emit', 'rust'], code: 2, message: /rust/ },
@@ -59,7 +64,13 @@ const CLI_CASES: readonly CliCase[] = [
   { name: 'opposite shapes', args: [...base, '--shape', 'increasing,decreasing'], code: 2, message: /increasing.*decreasing|opposite/ },
   { name: '--out naming a file', args: [...base, '--out', 'DIR/afile'], setup: (dir) => writeFileSync(join(dir, 'afile'), 'x'), code: 2, message: /the output folder .*afile is a file/ },
   { name: '--out below a file', args: [...base, '--out', 'DIR/afile/sub'], setup: (dir) => writeFileSync(join(dir, 'afile'), 'x'), code: 2, message: /lies below .*afile, which is not a folder/ },
-  { name: 'a folder where the table goes', args: [...base, '--out', 'DIR/o'], setup: (dir) => mkdirSync(join(dir, 'o', 'data.curve.csv'), { recursive: true }), code: 2, message: /data\.curve\.csv is a folder/ },
+  {
+    name: 'a folder where the table goes',
+    args: [...base, '--out', 'DIR/o'],
+    setup: (dir) => mkdirSync(join(dir, 'o', 'data.curve.csv'), { recursive: true }),
+    code: 2,
+    message: /data\.curve\.csv is a folder/,
+  },
   {
     name: 'two data files of the same name in one output folder',
     args: [...base, '--df', '3', '--out', 'DIR/o'],
@@ -72,7 +83,13 @@ const CLI_CASES: readonly CliCase[] = [
     code: 2,
     message: /holds the outputs of another data file of the same name \(\.\.\/other\/data\.csv\)/,
   },
-  { name: 'a table Knotwise did not write', args: [...base, '--out', 'DIR/o'], setup: (dir) => (mkdirSync(join(dir, 'o')), writeFileSync(join(dir, 'o', 'data.curve.csv'), 'mine\n')), code: 2, message: /not written by Knotwise/ },
+  {
+    name: 'a table Knotwise did not write',
+    args: [...base, '--out', 'DIR/o'],
+    setup: (dir) => (mkdirSync(join(dir, 'o')), writeFileSync(join(dir, 'o', 'data.curve.csv'), 'mine\n')),
+    code: 2,
+    message: /not written by Knotwise/,
+  },
   { name: 'a missing data file', args: ['DIR/nothing.csv', '--x', 'a', '--y', 'b'], code: 2, message: /nothing\.csv/ },
   { name: 'a folder as the data file', args: ['DIR', '--x', 'a', '--y', 'b'], code: 2, message: /folder|not a file|regular/i },
   { name: 'escape sequences in a column name reach the terminal neutralised', args: ['DATA', '--x', 'speed', '--y', 'di\u001b[31mst'], code: 2, message: /di\\u001b\[31mst/ },
@@ -125,7 +142,11 @@ describe('bad inputs (catalogue)', () => {
         const out = r.code === 0 ? (JSON.parse(r.stdout) as { data: { rejected: { line: number; reason: string }[] } }) : undefined;
         const text = out ? JSON.stringify(out.data.rejected) : r.stderr;
         assert.match(text, c.message, `${c.name}: ${text.slice(0, 400)}`);
-        if (out && c.line !== undefined) assert.ok(out.data.rejected.some((row) => row.line === c.line), `${c.name}: line ${c.line} rejected`);
+        if (out && c.line !== undefined)
+          assert.ok(
+            out.data.rejected.some((row) => row.line === c.line),
+            `${c.name}: line ${c.line} rejected`,
+          );
       }
     });
   });

@@ -41,9 +41,7 @@ const csv = fc
     tail: fc.constantFrom('', '\n', '\n\n', '   \n', '\u001a'),
     seed: fc.integer(),
   })
-  .chain(({ names, bom, sep, eol, tail }) =>
-    fc.array(row(names.length), { minLength: 0, maxLength: 25 }).map((rows) => bom + [names.join(sep), ...rows.map((r) => r.join(sep))].join(eol) + tail),
-  );
+  .chain(({ names, bom, sep, eol, tail }) => fc.array(row(names.length), { minLength: 0, maxLength: 25 }).map((rows) => bom + [names.join(sep), ...rows.map((r) => r.join(sep))].join(eol) + tail));
 
 describe('fuzzed CSV texts (seeded)', function () {
   this.timeout(600_000);

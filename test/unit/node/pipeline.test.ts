@@ -26,7 +26,12 @@ describe('runPipeline', () => {
   it('runPipeline twice on the same file and plan gives the same output texts (a rerun is byte-identical)', async function () {
     this.timeout(60_000);
     const data = copyFixture('mcycle.csv', join(dir, 'mcycle.csv'));
-    const plan: FitPlan = { columns: { x: 'times', y: 'accel' }, tune: true, options: { kind: 'natural-spline', candidates: [4, 6, 8, 10, 12], resample: { kind: 'bootstrap', resamples: 30 }, rule: { kind: 'one-se' }, seed: 21 }, output: { ...DEFAULT_OUTPUT, emit: ['c', 'ts', 'json'], report: true } };
+    const plan: FitPlan = {
+      columns: { x: 'times', y: 'accel' },
+      tune: true,
+      options: { kind: 'natural-spline', candidates: [4, 6, 8, 10, 12], resample: { kind: 'bootstrap', resamples: 30 }, rule: { kind: 'one-se' }, seed: 21 },
+      output: { ...DEFAULT_OUTPUT, emit: ['c', 'ts', 'json'], report: true },
+    };
     const a = await runPipeline(data, plan, join(dir, 'out'));
     const b = await runPipeline(data, plan, join(dir, 'out'));
     assert.deepEqual(
@@ -39,7 +44,12 @@ describe('runPipeline', () => {
   it('with a held-out fraction the fitted rows are the analysis rows (per-row arrays line up)', async function () {
     this.timeout(60_000);
     const data = copyFixture('cars.csv', join(dir, 'cars.csv'));
-    const plan: FitPlan = { columns: { x: 'speed', y: 'dist' }, tune: true, options: { kind: 'natural-spline', candidates: [2, 3, 4], resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'least-error' }, seed: 2, holdout: 0.2 }, output: { ...DEFAULT_OUTPUT, report: true } };
+    const plan: FitPlan = {
+      columns: { x: 'speed', y: 'dist' },
+      tune: true,
+      options: { kind: 'natural-spline', candidates: [2, 3, 4], resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'least-error' }, seed: 2, holdout: 0.2 },
+      output: { ...DEFAULT_OUTPUT, report: true },
+    };
     const r = await runPipeline(data, plan, dir);
     assert.equal(r.selection.data.x.length, 50);
     assert.equal(r.fitted.x.length, r.analysis?.n);

@@ -21,7 +21,10 @@ import type { XYData } from '../../../core/types';
 const REPO = join(__dirname, '..', '..', '..');
 
 function load(name: string): XYData {
-  const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', name), 'utf8').trim().split('\n').slice(1);
+  const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', name), 'utf8')
+    .trim()
+    .split('\n')
+    .slice(1);
   return {
     x: Float64Array.from(rows, (r) => Number(r.split(',')[0])),
     y: Float64Array.from(rows, (r) => Number(r.split(',')[1])),
@@ -32,7 +35,12 @@ function load(name: string): XYData {
 function input(data: XYData, df: number, output: Partial<OutputOptions>, stem: string): DeliverInput {
   const fit = fitCurve(data, { kind: 'natural-spline', df });
   return {
-    plan: { columns: { x: 'x', y: 'y' }, tune: false, options: { kind: 'natural-spline', candidates: [df], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output: { ...DEFAULT_OUTPUT, ...output } },
+    plan: {
+      columns: { x: 'x', y: 'y' },
+      tune: false,
+      options: { kind: 'natural-spline', candidates: [df], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 },
+      output: { ...DEFAULT_OUTPUT, ...output },
+    },
     stem,
     dataFile: `${stem}.csv`,
     dataPath: `${stem}.csv`,
@@ -88,13 +96,19 @@ describe('buildDeliverables', () => {
       .map((r) => Number(r[0]));
     assert.ok(negX.length > 5, `${negX.length} negative rows`);
     assert.deepEqual(
-      csv.slice(1).filter((l) => l.endsWith(',1')).map((l) => Number(l.split(',')[0])),
+      csv
+        .slice(1)
+        .filter((l) => l.endsWith(',1'))
+        .map((l) => Number(l.split(',')[0])),
       negX,
     );
     assert.equal((d.record.table as { negative: number[] }).negative.length, negX.length);
     assert.ok(d.warnings.some((w) => new RegExp(`^The curve is below zero at ${negX.length} table row\\(s\\) .* although the quantity was declared non-negative`).test(w)));
     // mcycle: the first negative acceleration, -1.3 g, is on line 3 of the CSV.
-    assert.ok(d.warnings.some((w) => /reading\(s\) are below zero although the quantity was declared non-negative \(the first on line 3\)/.test(w)), d.warnings.join('\n'));
+    assert.ok(
+      d.warnings.some((w) => /reading\(s\) are below zero although the quantity was declared non-negative \(the first on line 3\)/.test(w)),
+      d.warnings.join('\n'),
+    );
     assert.match(text(d, 'report'), new RegExp(`\\*\\*The curve is below zero at ${negX.length} rows\\*\\* although the quantity was declared non-negative`));
   });
 
@@ -117,10 +131,14 @@ describe('buildDeliverables', () => {
     assert.equal(d.files[0]?.name, 'cars.curve.csv');
     assert.equal(d.files[d.files.length - 1]?.name, 'cars.fit.json');
     const listed = (d.record.outputs as { file: string; sha256: string }[]).map((o) => o.file);
-    assert.deepEqual(listed, d.files.slice(1, -1).map((f) => f.name));
+    assert.deepEqual(
+      listed,
+      d.files.slice(1, -1).map((f) => f.name),
+    );
     assert.equal((d.record.table as { sha256: string }).sha256, createHash('sha256').update(text(d, 'table')).digest('hex'));
     // Every file a person reads carries the caution (the CSV and the figures are data).
-    for (const f of d.files) if (f.kind !== 'figure' && f.kind !== 'table') assert.ok(f.text.includes(f.kind === 'record' ? JSON.stringify(CAUTION) : 'not a certified calibration'), `${f.name} carries the caution`);
+    for (const f of d.files)
+      if (f.kind !== 'figure' && f.kind !== 'table') assert.ok(f.text.includes(f.kind === 'record' ? JSON.stringify(CAUTION) : 'not a certified calibration'), `${f.name} carries the caution`);
     const again = make();
     assert.deepEqual(
       again.files.map((f) => f.text),
@@ -136,15 +154,21 @@ describe('buildDeliverables', () => {
     assert.ok(Math.abs((ip.step as number) - 0.21) <= 1e-12);
   });
 
-  it('names the table and the record as asked (the editor\'s output names), and the record lists the table by that name', () => {
+  it("names the table and the record as asked (the editor's output names), and the record lists the table by that name", () => {
     const d = buildDeliverables({ ...input(cars, 3, {}, 'cars'), names: { table: 'braking.csv', record: 'braking.json' } });
-    assert.deepEqual(d.files.map((f) => f.name), ['braking.csv', 'braking.json']);
+    assert.deepEqual(
+      d.files.map((f) => f.name),
+      ['braking.csv', 'braking.json'],
+    );
     const rec = JSON.parse(text(d, 'record')) as { table: { file: string; sha256: string } };
     assert.equal(rec.table.file, 'braking.csv');
     assert.equal(rec.table.sha256, createHash('sha256').update(text(d, 'table')).digest('hex'));
     // Without names, the command line's: <stem>.curve.csv and <stem>.fit.json; same bytes otherwise.
     const plain = buildDeliverables(input(cars, 3, {}, 'cars'));
-    assert.deepEqual(plain.files.map((f) => f.name), ['cars.curve.csv', 'cars.fit.json']);
+    assert.deepEqual(
+      plain.files.map((f) => f.name),
+      ['cars.curve.csv', 'cars.fit.json'],
+    );
     assert.equal(text(plain, 'table'), text(d, 'table'));
   });
 });

@@ -30,10 +30,23 @@ describe('shellWord', () => {
 
 describe('fitCommand', () => {
   it('fitCommand spells out a tuned plan and leaves out options at their defaults', () => {
-    const plan: FitPlan = { columns: { x: 'speed [mph]', y: 'dist' }, tune: true, options: { kind: 'natural-spline', resample: { kind: 'folds', folds: 10, repeats: 5 }, rule: { kind: 'one-se' }, seed: 1 }, output: DEFAULT_OUTPUT };
+    const plan: FitPlan = {
+      columns: { x: 'speed [mph]', y: 'dist' },
+      tune: true,
+      options: { kind: 'natural-spline', resample: { kind: 'folds', folds: 10, repeats: 5 }, rule: { kind: 'one-se' }, seed: 1 },
+      output: DEFAULT_OUTPUT,
+    };
     assert.equal(fitCommand(plan, '../cars.csv'), "knotwise fit ../cars.csv --x 'speed [mph]' --y dist --curve natural-spline --resampling folds:10x5 --rule one-se --seed 1 --out .");
-    const fixed: FitPlan = { columns: { x: 'speed', y: 'dist', weights: 'w' }, tune: false, options: { kind: 'smoothing-spline', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output: { grid: { kind: 'auto', tolerance: 0.01 }, extrapolate: true, digits: 6, columns: ['x', 'fit'], flagNegative: true, emit: ['c', 'ts'], report: true } };
-    assert.equal(fitCommand(fixed, 'cars.csv'), 'knotwise fit cars.csv --x speed --y dist --weights w --curve smoothing-spline --df 4.5 --grid auto:0.01 --extrapolate --digits 6 --columns x,fit --flag-negative --emit c,ts --report --out .');
+    const fixed: FitPlan = {
+      columns: { x: 'speed', y: 'dist', weights: 'w' },
+      tune: false,
+      options: { kind: 'smoothing-spline', candidates: [4.5], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 },
+      output: { grid: { kind: 'auto', tolerance: 0.01 }, extrapolate: true, digits: 6, columns: ['x', 'fit'], flagNegative: true, emit: ['c', 'ts'], report: true },
+    };
+    assert.equal(
+      fitCommand(fixed, 'cars.csv'),
+      'knotwise fit cars.csv --x speed --y dist --weights w --curve smoothing-spline --df 4.5 --grid auto:0.01 --extrapolate --digits 6 --columns x,fit --flag-negative --emit c,ts --report --out .',
+    );
   });
 
   it('the regenerate command, run by sh in the output folder, rewrites every output byte for byte', async function () {
@@ -42,7 +55,34 @@ describe('fitCommand', () => {
     try {
       const data = copyFixture('cars.csv', join(dir, "field data (it's here)", 'cars.csv'));
       const out = join(dir, 'tables');
-      const r = await runMain('fit', data, '--x', 'speed [mph]', '--y', 'dist [ft]', '--df', '2..6', '--resampling', 'bootstrap:20', '--rule', 'simplest-within:3', '--seed', '5', '--grid', 'auto:1', '--columns', 'x,fit,piLower,piUpper', '--flag-negative', '--digits', '7', '--emit', 'c,ts,json', '--report', '--out', out);
+      const r = await runMain(
+        'fit',
+        data,
+        '--x',
+        'speed [mph]',
+        '--y',
+        'dist [ft]',
+        '--df',
+        '2..6',
+        '--resampling',
+        'bootstrap:20',
+        '--rule',
+        'simplest-within:3',
+        '--seed',
+        '5',
+        '--grid',
+        'auto:1',
+        '--columns',
+        'x,fit,piLower,piUpper',
+        '--flag-negative',
+        '--digits',
+        '7',
+        '--emit',
+        'c,ts,json',
+        '--report',
+        '--out',
+        out,
+      );
       assert.equal(r.code, 0, r.stderr);
       const record = JSON.parse(readFileSync(join(out, 'cars.fit.json'), 'utf8')) as { regenerate: string };
       const header = readFileSync(join(out, 'cars.curve.h'), 'utf8');
@@ -71,7 +111,7 @@ describe('fitCommand', () => {
     const cases: { name: string; folder: string; file: string; x: string; y: string; extra: string[] }[] = [
       { name: 'negative grid range (temperatures below zero)', folder: 'neg', file: 'cars.csv', x: 'speed', y: 'dist', extra: ['--grid', '-40:85:count=126', '--extrapolate', '--df', '3'] },
       { name: 'negative grid given as --grid=...', folder: 'negeq', file: 'cars.csv', x: 'speed', y: 'dist', extra: ['--grid=-5:30:step=0.5', '--extrapolate', '--df', '4'] },
-      { name: 'spaces and quotes in file and column names', folder: "run \"A\" it's", file: "cars 'data' \"v2\".csv", x: 'speed [mph]', y: "it's dist", extra: ['--df', '3'] },
+      { name: 'spaces and quotes in file and column names', folder: 'run "A" it\'s', file: 'cars \'data\' "v2".csv', x: 'speed [mph]', y: "it's dist", extra: ['--df', '3'] },
       { name: 'non-ASCII names', folder: 'données', file: 'mesures α-β.csv', x: 'vitesse µ', y: 'distance Ω', extra: ['--df', '3'] },
       { name: 'a data file whose name starts with a dash', folder: 'dash', file: '-cars.csv', x: 'speed', y: 'dist', extra: ['--df', '3'] },
     ];

@@ -49,11 +49,42 @@ describe('fit record and its JSON Schema', () => {
     const out = join(dir, 'out');
     const run = async (file: string, p: FitPlan): Promise<Record<string, unknown>> => (await runPipeline(file, p, out)).deliverables.record;
     records.tunedAuto = await run(mcycle, plan({ columns: { x: 'times', y: 'accel' }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'auto', tolerance: 1 }, emit: ['c', 'ts', 'json'], report: true } }));
-    records.fixedList = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, tune: false, options: { kind: 'polynomial', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [0, 10, 20, 30] }, extrapolate: true, columns: ['x', 'fit'], flagNegative: true, digits: 6 } }));
-    records.weightedHoldout = await run(carsW, plan({ columns: { x: 'speed', y: 'dist', weights: 'w' }, options: { kind: 'smoothing-spline', candidates: [2, 3, 4, 5], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'simplest-within', percent: 5 }, seed: 4, holdout: 0.2 }, output: { ...DEFAULT_OUTPUT, grid: { kind: 'data' } } }));
-    records.poissonTuned = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, options: { kind: 'natural-spline', candidates: [2, 3, 4], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'one-se' }, seed: 5, outcome: 'counts' } }));
-    records.shapeRobust = await run(cars, plan({ columns: { x: 'speed', y: 'dist' }, tune: false, options: { kind: 'natural-spline', candidates: [4], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, shape: ['increasing'], robust: { k: 2 } } }));
-    records.rejectedLoo = await run(air, plan({ columns: { x: 'Temp', y: 'Ozone' }, options: { kind: 'natural-spline', resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1 } }));
+    records.fixedList = await run(
+      cars,
+      plan({
+        columns: { x: 'speed', y: 'dist' },
+        tune: false,
+        options: { kind: 'polynomial', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0 },
+        output: { ...DEFAULT_OUTPUT, grid: { kind: 'list', values: [0, 10, 20, 30] }, extrapolate: true, columns: ['x', 'fit'], flagNegative: true, digits: 6 },
+      }),
+    );
+    records.weightedHoldout = await run(
+      carsW,
+      plan({
+        columns: { x: 'speed', y: 'dist', weights: 'w' },
+        options: { kind: 'smoothing-spline', candidates: [2, 3, 4, 5], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'simplest-within', percent: 5 }, seed: 4, holdout: 0.2 },
+        output: { ...DEFAULT_OUTPUT, grid: { kind: 'data' } },
+      }),
+    );
+    records.poissonTuned = await run(
+      cars,
+      plan({
+        columns: { x: 'speed', y: 'dist' },
+        options: { kind: 'natural-spline', candidates: [2, 3, 4], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'one-se' }, seed: 5, outcome: 'counts' },
+      }),
+    );
+    records.shapeRobust = await run(
+      cars,
+      plan({
+        columns: { x: 'speed', y: 'dist' },
+        tune: false,
+        options: { kind: 'natural-spline', candidates: [4], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, shape: ['increasing'], robust: { k: 2 } },
+      }),
+    );
+    records.rejectedLoo = await run(
+      air,
+      plan({ columns: { x: 'Temp', y: 'Ozone' }, options: { kind: 'natural-spline', resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1 } }),
+    );
   });
   after(() => {
     rmSync(dir, { recursive: true, force: true });
@@ -69,19 +100,38 @@ describe('fit record and its JSON Schema', () => {
     // The runs really differ where the schema has alternatives.
     assert.equal((records.fixedList?.selection as unknown) ?? null, null);
     // R: sum(is.na(airquality$Ozone)) is 37 (from memory; the CSV writes them as NA).
-    assert.equal(((records.rejectedLoo?.data as { rejected: unknown[] }).rejected.length), 37);
-    assert.equal(((records.weightedHoldout?.data as { columns: { weights?: string } }).columns.weights), 'w');
-    assert.equal(((records.tunedAuto?.spec as { grid: { kind: string } }).grid.kind), 'auto');
-    assert.equal(((records.poissonTuned?.selection as { metric: string }).metric), 'deviance');
-    assert.deepEqual(((records.shapeRobust?.spec as { model: unknown }).model), { outcome: null, shape: ['increasing'], robust: { k: 2 }, trials: null });
-    assert.equal(((records.tunedAuto?.outputs as unknown[]).length), 9); // 3 emitted files, the report and 5 figures
+    assert.equal((records.rejectedLoo?.data as { rejected: unknown[] }).rejected.length, 37);
+    assert.equal((records.weightedHoldout?.data as { columns: { weights?: string } }).columns.weights, 'w');
+    assert.equal((records.tunedAuto?.spec as { grid: { kind: string } }).grid.kind, 'auto');
+    assert.equal((records.poissonTuned?.selection as { metric: string }).metric, 'deviance');
+    assert.deepEqual((records.shapeRobust?.spec as { model: unknown }).model, { outcome: null, shape: ['increasing'], robust: { k: 2 }, trials: null });
+    assert.equal((records.tunedAuto?.outputs as unknown[]).length, 9); // 3 emitted files, the report and 5 figures
   });
 
   it('a record holds everything needed to rebuild the table: data SHA-256 and path, the full spec, and the regenerate command', () => {
     const r = records.tunedAuto as Record<string, any>;
     assert.match(r.data.sha256, /^[0-9a-f]{64}$/);
     assert.equal(r.data.path, '../mcycle.csv');
-    for (const key of ['curve', 'tuned', 'candidates', 'candidatesDefault', 'resampling', 'seed', 'rule', 'tolerancePercent', 'holdout', 'grid', 'gridDefault', 'digits', 'extrapolate', 'columns', 'flagNegative', 'emit', 'report', 'level']) {
+    for (const key of [
+      'curve',
+      'tuned',
+      'candidates',
+      'candidatesDefault',
+      'resampling',
+      'seed',
+      'rule',
+      'tolerancePercent',
+      'holdout',
+      'grid',
+      'gridDefault',
+      'digits',
+      'extrapolate',
+      'columns',
+      'flagNegative',
+      'emit',
+      'report',
+      'level',
+    ]) {
       assert.ok(key in r.spec, `spec.${key}`);
     }
     assert.equal(r.regenerate, 'knotwise fit ../mcycle.csv --x times --y accel --curve natural-spline --resampling folds:5 --rule one-se --seed 1 --grid auto:1 --emit c,ts,json --report --out .');
@@ -100,7 +150,22 @@ describe('fit record and its JSON Schema', () => {
     const x = Float64Array.from(cars.x);
     const y = Float64Array.from(cars.y);
     const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 3 });
-    const rec = fitRecord({ dataFile: 'd.csv', dataSha256: 'e'.repeat(64), columns: { x: 'speed', y: 'dist' }, rowsRead: 50, rowsUsed: 50, rejected: [], curve: 'natural-spline', fit, diagnostics: diagnose({ x, y }, fit), grid: { kind: 'data' }, digits: 8, extrapolate: false, tableFile: 'd.curve.csv', tableSha256: 'f'.repeat(64) });
+    const rec = fitRecord({
+      dataFile: 'd.csv',
+      dataSha256: 'e'.repeat(64),
+      columns: { x: 'speed', y: 'dist' },
+      rowsRead: 50,
+      rowsUsed: 50,
+      rejected: [],
+      curve: 'natural-spline',
+      fit,
+      diagnostics: diagnose({ x, y }, fit),
+      grid: { kind: 'data' },
+      digits: 8,
+      extrapolate: false,
+      tableFile: 'd.curve.csv',
+      tableSha256: 'f'.repeat(64),
+    });
     assertValid(JSON.parse(JSON.stringify(rec)), 'record without plan');
     assert.equal((rec.table as { points: unknown }).points, null);
   });

@@ -55,14 +55,25 @@ describe('curve registry', () => {
   });
 
   it('the kind can take outcomes and robust fits through the shared row-basis machinery', async () => {
-    const analysis = await analyse(cars, { kind: 'test-linear-spline', candidates: [2, 3, 4], resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'least-error' }, seed: 3, robust: true });
+    const analysis = await analyse(cars, {
+      kind: 'test-linear-spline',
+      candidates: [2, 3, 4],
+      resample: { kind: 'folds', folds: 5, repeats: 1 },
+      rule: { kind: 'least-error' },
+      seed: 3,
+      robust: true,
+    });
     assert.ok(analysis.chosen.model?.robust, 'robust report present');
     assert.throws(() => fitCurve(cars, { kind: 'test-linear-spline', df: 3, shape: ['increasing'] }), /takes no shape constraints/);
   });
 
   it('unknown kinds and the old spellings are refused with the list of kinds', () => {
     for (const old of ['natural', 'poly', 'smooth', 'spline']) {
-      assert.throws(() => parseCurve(old), (e: unknown) => e instanceof InputError && /unknown curve ".*"; use natural-spline, polynomial, smoothing-spline/.test(e.message), old);
+      assert.throws(
+        () => parseCurve(old),
+        (e: unknown) => e instanceof InputError && /unknown curve ".*"; use natural-spline, polynomial, smoothing-spline/.test(e.message),
+        old,
+      );
     }
     assert.throws(() => registerCurveKind(curveKind('polynomial')), /registered already/);
     assert.throws(() => unregisterCurveKind('polynomial'), /cannot be removed/);

@@ -24,22 +24,40 @@ const settings = pkg.contributes.configuration.properties as Json;
 
 describe('registries, package.json and the record schema agree', () => {
   it('knotwise.curve lists every built-in curve kind with its description and default', () => {
-    assert.deepEqual(settings['knotwise.curve'].enum, BUILTIN_CURVES.map((k) => k.id));
-    assert.deepEqual(settings['knotwise.curve'].enumDescriptions, BUILTIN_CURVES.map((k) => k.description));
+    assert.deepEqual(
+      settings['knotwise.curve'].enum,
+      BUILTIN_CURVES.map((k) => k.id),
+    );
+    assert.deepEqual(
+      settings['knotwise.curve'].enumDescriptions,
+      BUILTIN_CURVES.map((k) => k.description),
+    );
     assert.equal(settings['knotwise.curve'].default, DEFAULT_CURVE);
     assert.equal(DEFAULTS.kind, DEFAULT_CURVE);
   });
 
   it('knotwise.outcome lists every outcome with its description and default', () => {
-    assert.deepEqual(settings['knotwise.outcome'].enum, OUTCOME_LIST.map((o) => o.id));
-    assert.deepEqual(settings['knotwise.outcome'].enumDescriptions, OUTCOME_LIST.map((o) => o.description));
+    assert.deepEqual(
+      settings['knotwise.outcome'].enum,
+      OUTCOME_LIST.map((o) => o.id),
+    );
+    assert.deepEqual(
+      settings['knotwise.outcome'].enumDescriptions,
+      OUTCOME_LIST.map((o) => o.description),
+    );
     assert.equal(settings['knotwise.outcome'].default, DEFAULT_OUTCOME);
   });
 
   it('knotwise.rule lists the rules a setting may name, with their descriptions', () => {
     const settable = RULE_LIST.filter((r) => r.setting);
-    assert.deepEqual(settings['knotwise.rule'].enum, settable.map((r) => r.id));
-    assert.deepEqual(settings['knotwise.rule'].enumDescriptions, settable.map((r) => r.description));
+    assert.deepEqual(
+      settings['knotwise.rule'].enum,
+      settable.map((r) => r.id),
+    );
+    assert.deepEqual(
+      settings['knotwise.rule'].enumDescriptions,
+      settable.map((r) => r.description),
+    );
     assert.equal(settings['knotwise.rule'].default, DEFAULT_RULE);
   });
 
@@ -56,7 +74,10 @@ describe('registries, package.json and the record schema agree', () => {
     for (const text of ['bootstrap:1', 'bootstrap:5001', 'folds:1', 'folds:101', 'folds:5x101']) {
       assert.throws(() => parseResampling(text), /from|takes/, text);
       const r = readSettings((k) => (k === 'resampling' ? text : undefined));
-      assert.ok(r.problems.some((p) => p.startsWith('knotwise.resampling')), `${text}: ${r.problems.join('; ')}`);
+      assert.ok(
+        r.problems.some((p) => p.startsWith('knotwise.resampling')),
+        `${text}: ${r.problems.join('; ')}`,
+      );
     }
     for (const text of ['bootstrap:2', 'bootstrap:5000', 'folds:2', 'folds:100x100', 'leave-one-out', 'gcv']) {
       assert.deepEqual(readSettings((k) => (k === 'resampling' ? text : undefined)).problems, [], text);
@@ -67,8 +88,14 @@ describe('registries, package.json and the record schema agree', () => {
 
   it('the record schema names the same curve kinds, outcomes, resampling texts and rules', () => {
     const spec = schema.properties.spec.properties;
-    assert.deepEqual(spec.curve.enum, BUILTIN_CURVES.map((k) => k.id));
-    assert.deepEqual(schema.properties.fit.properties.curve.enum, BUILTIN_CURVES.map((k) => k.id));
+    assert.deepEqual(
+      spec.curve.enum,
+      BUILTIN_CURVES.map((k) => k.id),
+    );
+    assert.deepEqual(
+      schema.properties.fit.properties.curve.enum,
+      BUILTIN_CURVES.map((k) => k.id),
+    );
     assert.deepEqual(spec.model.properties.outcome.enum, [...OUTCOME_LIST.map((o) => o.id), null]);
     assert.equal(spec.resampling.pattern, RESAMPLING_PATTERN);
     assert.equal(spec.rule.pattern, RULE_PATTERN);
@@ -78,7 +105,23 @@ describe('registries, package.json and the record schema agree', () => {
   it('no setting or record key keeps a replaced name', () => {
     for (const old of ['knotwise.curveFamily', 'knotwise.huberK']) assert.equal(settings[old], undefined, old);
     const text = JSON.stringify(settings);
-    for (const old of ['"natural"', '"poly"', '"smooth"', '"gaussian"', '"poisson"', '"binomial"', 'boot:', 'cv:', '"1se"', '"lowest"', '"tolerance"', '--family', '--model ', '--huber-k', '--nonnegative']) {
+    for (const old of [
+      '"natural"',
+      '"poly"',
+      '"smooth"',
+      '"gaussian"',
+      '"poisson"',
+      '"binomial"',
+      'boot:',
+      'cv:',
+      '"1se"',
+      '"lowest"',
+      '"tolerance"',
+      '--family',
+      '--model ',
+      '--huber-k',
+      '--nonnegative',
+    ]) {
       assert.ok(!text.includes(old), `package.json settings still say ${old}`);
     }
     const s = JSON.stringify(schema);

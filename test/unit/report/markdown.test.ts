@@ -37,7 +37,11 @@ describe('reportMarkdown', () => {
     // The rows the analysis fitted: analyse's own split (its per-row arrays have analysis.n rows).
     const keep = holdoutMask(orderByX(sel.data.x), 0.2, 9);
     const idx = [...keep.keys()].filter((i) => keep[i] === 0);
-    const fitted = { x: Float64Array.from(idx, (i) => sel.data.x[i] as number), y: Float64Array.from(idx, (i) => sel.data.y[i] as number), lines: Int32Array.from(idx, (i) => (sel.data.lines as Int32Array)[i] as number) };
+    const fitted = {
+      x: Float64Array.from(idx, (i) => sel.data.x[i] as number),
+      y: Float64Array.from(idx, (i) => sel.data.y[i] as number),
+      lines: Int32Array.from(idx, (i) => (sel.data.lines as Int32Array)[i] as number),
+    };
     const d = buildDeliverables({
       plan,
       stem: 'airquality',
@@ -86,7 +90,10 @@ describe('reportMarkdown', () => {
   });
 
   it('ends with how to reproduce and check, in a shell block', () => {
-    assert.match(report, /```sh\nknotwise fit airquality\.csv --x Temp --y Ozone --curve natural-spline --df 2,3,4,5,6 --resampling folds:5x2 --rule one-se --seed 9 --holdout 0\.2 --grid 50,60,70,80,90,100 --extrapolate --flag-negative --emit c --report --out \.\nknotwise check airquality\.fit\.json\n```\n$/);
+    assert.match(
+      report,
+      /```sh\nknotwise fit airquality\.csv --x Temp --y Ozone --curve natural-spline --df 2,3,4,5,6 --resampling folds:5x2 --rule one-se --seed 9 --holdout 0\.2 --grid 50,60,70,80,90,100 --extrapolate --flag-negative --emit c --report --out \.\nknotwise check airquality\.fit\.json\n```\n$/,
+    );
     assert.match(report, /generated code: \[airquality\.curve\.h\]\(airquality\.curve\.h\)/);
   });
 });

@@ -20,11 +20,7 @@ function referenceOrder(values: Float64Array): number[] {
 }
 
 /** Doubles of every kind: ordinary, huge, tiny, subnormal, signed zeros, infinities, NaN. */
-const anyDouble = fc.oneof(
-  fc.double(),
-  fc.constantFrom(0, -0, NaN, Infinity, -Infinity, 5e-324, -5e-324, Number.MAX_VALUE, -Number.MAX_VALUE, 1, -1),
-  fc.integer({ min: -3, max: 3 }),
-);
+const anyDouble = fc.oneof(fc.double(), fc.constantFrom(0, -0, NaN, Infinity, -Infinity, 5e-324, -5e-324, Number.MAX_VALUE, -Number.MAX_VALUE, 1, -1), fc.integer({ min: -3, max: 3 }));
 
 describe('argsortStable', () => {
   it('argsortStable orders by value with ties by index (worked example in the doc comment)', () => {
@@ -33,7 +29,10 @@ describe('argsortStable', () => {
 
   it('argsortStable equals the stable Array.prototype.sort order for any doubles (ECMA-262 stable sort)', () => {
     // Short arrays take the insertion path, longer ones the radix passes.
-    for (const [minLength, maxLength] of [[0, 31], [32, 400]] as const) {
+    for (const [minLength, maxLength] of [
+      [0, 31],
+      [32, 400],
+    ] as const) {
       fc.assert(
         fc.property(fc.array(anyDouble, { minLength, maxLength, size: 'max' }), (list) => {
           const values = Float64Array.from(list);

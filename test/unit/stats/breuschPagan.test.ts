@@ -41,12 +41,15 @@ function correlation(a: Float64Array, b: Float64Array): number {
 }
 
 describe('breuschPagan', () => {
-  it("breuschPagan with one regressor is n times the squared correlation of e^2 with x (Koenker 1981: n R^2)", () => {
+  it('breuschPagan with one regressor is n times the squared correlation of e^2 with x (Koenker 1981: n R^2)', () => {
     const n = 60;
     const x = Float64Array.from({ length: n }, (_, i) => i / 7);
     const e = seededNormals(3, n).map((v, i) => v * (1 + 0.05 * i));
     const r = breuschPagan(e, lineDesign(x));
-    const rho = correlation(e.map((v) => v * v), x);
+    const rho = correlation(
+      e.map((v) => v * v),
+      x,
+    );
     assert.ok(Math.abs(r.statistic - n * rho * rho) <= 1e-12 * r.statistic, `${r.statistic} vs ${n * rho * rho}`);
     assert.equal(r.df, 1);
     assert.ok(Math.abs(r.pValue - pchisq(r.statistic, 1, false)) <= 1e-15);
@@ -57,7 +60,10 @@ describe('breuschPagan', () => {
     const x = Float64Array.from({ length: n }, (_, i) => Math.log(i + 2));
     const e = seededNormals(12, n);
     const base = breuschPagan(e, lineDesign(x));
-    const scaled = breuschPagan(e.map((v) => 1e3 * v), lineDesign(x.map((v) => 5 - 3 * v)));
+    const scaled = breuschPagan(
+      e.map((v) => 1e3 * v),
+      lineDesign(x.map((v) => 5 - 3 * v)),
+    );
     assert.ok(Math.abs(base.statistic - scaled.statistic) <= 1e-10 * base.statistic);
   });
 
@@ -93,7 +99,10 @@ describe('breuschPagan', () => {
 
   it('breuschPagan rejects intercept-only designs, too few rows, non-finite or equal-magnitude residuals and collinear designs', () => {
     const ones = denseDesign(new Float64Array(5).fill(1), 1);
-    assert.throws(() => breuschPagan(Float64Array.of(1, 2, 3, 4, 5), ones), (e: unknown) => e instanceof InputError && /at least one regressor; the design has 1 column/.test(e.message));
+    assert.throws(
+      () => breuschPagan(Float64Array.of(1, 2, 3, 4, 5), ones),
+      (e: unknown) => e instanceof InputError && /at least one regressor; the design has 1 column/.test(e.message),
+    );
     const x = Float64Array.of(1, 2, 3, 4);
     assert.throws(() => breuschPagan(Float64Array.of(1, -1), lineDesign(x.subarray(0, 2))), /more residuals \(2\) than design columns \(2\)/);
     assert.throws(() => breuschPagan(Float64Array.of(1, NaN, 1, 2), lineDesign(x)), /residual 2 is not a finite number/);

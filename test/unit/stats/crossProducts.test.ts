@@ -16,7 +16,7 @@ function directProducts(block: Float64Array, rows: number, p: number): Float64Ar
 }
 
 describe('addCrossProducts', () => {
-  it('addCrossProducts adds the upper triangle of X\'X (worked example in the doc comment)', () => {
+  it("addCrossProducts adds the upper triangle of X'X (worked example in the doc comment)", () => {
     const out = new Float64Array(4);
     addCrossProducts(Float64Array.of(1, 0, 1, 2), 2, 2, out);
     assert.deepEqual(Array.from(out), [2, 2, 0, 4]);

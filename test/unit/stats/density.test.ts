@@ -25,11 +25,21 @@ describe('binnedDensity', () => {
 
   it('binnedDensity keeps every finite point inside its own ranges (property, seeded)', () => {
     fc.assert(
-      fc.property(fc.array(fc.tuple(fc.double({ min: -1e9, max: 1e9, noNaN: true }), fc.double({ min: -5, max: 5, noNaN: true })), { minLength: 1, maxLength: 200 }), fc.integer({ min: 1, max: 30 }), fc.integer({ min: 1, max: 30 }), (pts, nx, ny) => {
-        const g = binnedDensity(Float64Array.from(pts, (p) => p[0]), Float64Array.from(pts, (p) => p[1]), nx, ny);
-        const total = g.counts.reduce((s, c) => s + c, 0);
-        return total === pts.length && g.outside === 0 && g.counts.length === nx * ny;
-      }),
+      fc.property(
+        fc.array(fc.tuple(fc.double({ min: -1e9, max: 1e9, noNaN: true }), fc.double({ min: -5, max: 5, noNaN: true })), { minLength: 1, maxLength: 200 }),
+        fc.integer({ min: 1, max: 30 }),
+        fc.integer({ min: 1, max: 30 }),
+        (pts, nx, ny) => {
+          const g = binnedDensity(
+            Float64Array.from(pts, (p) => p[0]),
+            Float64Array.from(pts, (p) => p[1]),
+            nx,
+            ny,
+          );
+          const total = g.counts.reduce((s, c) => s + c, 0);
+          return total === pts.length && g.outside === 0 && g.counts.length === nx * ny;
+        },
+      ),
       { seed: 3, numRuns: 150 },
     );
   });

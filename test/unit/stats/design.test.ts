@@ -13,7 +13,10 @@ describe('denseDesign', () => {
   });
 
   it('denseDesign rejects a length that is not a whole number of rows and a bad column count', () => {
-    assert.throws(() => denseDesign(new Float64Array(5), 2), (e: unknown) => e instanceof InputError && /5\) are not a whole number of rows of 2 columns/.test(e.message));
+    assert.throws(
+      () => denseDesign(new Float64Array(5), 2),
+      (e: unknown) => e instanceof InputError && /5\) are not a whole number of rows of 2 columns/.test(e.message),
+    );
     assert.throws(() => denseDesign(new Float64Array(4), 0), /whole number of columns >= 1, got 0/);
   });
 });

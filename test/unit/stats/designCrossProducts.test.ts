@@ -27,10 +27,11 @@ function crossProduct(u: Float64Array, v: Float64Array, n: number, p: number, q:
 /** (n x n) M times (n x p) X, row-major. */
 function times(m: Float64Array, x: Float64Array, n: number, p: number): Float64Array {
   const out = new Float64Array(n * p);
-  for (let i = 0; i < n; i++) for (let k = 0; k < n; k++) {
-    const mik = m[i * n + k] as number;
-    if (mik !== 0) for (let b = 0; b < p; b++) out[i * p + b] = (out[i * p + b] as number) + mik * (x[k * p + b] as number);
-  }
+  for (let i = 0; i < n; i++)
+    for (let k = 0; k < n; k++) {
+      const mik = m[i * n + k] as number;
+      if (mik !== 0) for (let b = 0; b < p; b++) out[i * p + b] = (out[i * p + b] as number) + mik * (x[k * p + b] as number);
+    }
   return out;
 }
 
@@ -55,7 +56,11 @@ describe('designCrossProducts', () => {
   });
 
   it("designCrossProducts gives X'X, X'AX, X'A^2X, X'u and u'u as the dense products with A of Durbin & Watson (1950), across row blocks", () => {
-    for (const [n, p] of [[7, 3], [300, 4], [257, 5]] as const) {
+    for (const [n, p] of [
+      [7, 3],
+      [300, 4],
+      [257, 5],
+    ] as const) {
       const x = seededNormals(n + p, n * p);
       const e = seededNormals(2 * n + p, n);
       const s = designCrossProducts(denseDesign(x, p), n, { squaresOf: e, differences: true });
@@ -87,6 +92,9 @@ describe('designCrossProducts', () => {
       },
     };
     designCrossProducts(design, 300, { squaresOf: new Float64Array(300).fill(1), differences: true });
-    assert.deepEqual(calls, Array.from({ length: 300 }, (_, i) => i));
+    assert.deepEqual(
+      calls,
+      Array.from({ length: 300 }, (_, i) => i),
+    );
   });
 });

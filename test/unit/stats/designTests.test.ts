@@ -43,12 +43,18 @@ describe('durbinWatsonAndBreuschPagan', () => {
     const { chebyshev } = polynomialDesigns(n, 3);
     const e = seededNormals(2, n);
     e[7] = NaN;
-    assert.throws(() => durbinWatsonAndBreuschPagan(e, chebyshev), (err: unknown) => err instanceof InputError && /Durbin-Watson: residual 8 is not a finite number/.test(err.message));
+    assert.throws(
+      () => durbinWatsonAndBreuschPagan(e, chebyshev),
+      (err: unknown) => err instanceof InputError && /Durbin-Watson: residual 8 is not a finite number/.test(err.message),
+    );
     const alternating = Float64Array.from({ length: n }, (_, i) => (i % 2 ? 1 : -1));
     assert.throws(() => durbinWatsonAndBreuschPagan(alternating, chebyshev), /Breusch-Pagan: the squared residuals are all equal/);
     const ones = denseDesign(new Float64Array(n).fill(1), 1);
     assert.throws(() => durbinWatsonAndBreuschPagan(seededNormals(3, n), ones), /Breusch-Pagan needs an intercept and at least one regressor/);
-    const collinear = denseDesign(Float64Array.from({ length: 2 * n }, (_, k) => (k % 2 ? 2 : 1)), 2);
+    const collinear = denseDesign(
+      Float64Array.from({ length: 2 * n }, (_, k) => (k % 2 ? 2 : 1)),
+      2,
+    );
     assert.throws(() => durbinWatsonAndBreuschPagan(seededNormals(4, n), collinear), FitError);
   });
 });

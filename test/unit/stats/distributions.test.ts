@@ -6,10 +6,7 @@ function close(actual: number, expected: number, tol: number, what: string): voi
   assert.ok(Math.abs(actual - expected) <= tol, `${what}: got ${actual}, expected ${expected} (tolerance ${tol})`);
 }
 function closeRel(actual: number, expected: number, rel: number, what: string): void {
-  assert.ok(
-    Math.abs(actual - expected) <= rel * Math.abs(expected),
-    `${what}: got ${actual}, expected ${expected} (relative tolerance ${rel})`,
-  );
+  assert.ok(Math.abs(actual - expected) <= rel * Math.abs(expected), `${what}: got ${actual}, expected ${expected} (relative tolerance ${rel})`);
 }
 
 // NIST/SEMATECH e-Handbook of Statistical Methods, section 1.3.6.7.2, "Critical values of
@@ -100,18 +97,13 @@ describe('qt', () => {
 
   it('qt inverts pt to 1e-12 relative for non-integer df and both tails (property, seeded)', () => {
     fc.assert(
-      fc.property(
-        fc.double({ min: 1, max: 1e4, noNaN: true }),
-        fc.double({ min: 1e-12, max: 1 - 1e-12, noNaN: true }),
-        fc.boolean(),
-        (df, p, lower) => {
-          const t = qt(p, df, lower);
-          const back = pt(t, df, lower);
-          const small = Math.min(p, 1 - p);
-          // Relative to the smaller tail, which is what the quantile resolves.
-          return Math.abs(back - p) <= 1e-12 * small + 1e-15;
-        },
-      ),
+      fc.property(fc.double({ min: 1, max: 1e4, noNaN: true }), fc.double({ min: 1e-12, max: 1 - 1e-12, noNaN: true }), fc.boolean(), (df, p, lower) => {
+        const t = qt(p, df, lower);
+        const back = pt(t, df, lower);
+        const small = Math.min(p, 1 - p);
+        // Relative to the smaller tail, which is what the quantile resolves.
+        return Math.abs(back - p) <= 1e-12 * small + 1e-15;
+      }),
       { seed: 20240611, numRuns: 300 },
     );
   });
@@ -210,8 +202,16 @@ describe('lgamma', () => {
 
 describe('pbeta and pgamma', () => {
   it('pbeta(x, a, 1) = x^a and pbeta(x, 1, b) = 1 - (1 - x)^b (closed forms)', () => {
-    for (const [x, a] of [[0.3, 2.5], [0.9, 40], [1e-4, 0.5]] as const) closeRel(pbeta(x, a, 1), x ** a, 1e-13, `pbeta(${x}, ${a}, 1)`);
-    for (const [x, b] of [[0.3, 2.5], [0.01, 300]] as const) {
+    for (const [x, a] of [
+      [0.3, 2.5],
+      [0.9, 40],
+      [1e-4, 0.5],
+    ] as const)
+      closeRel(pbeta(x, a, 1), x ** a, 1e-13, `pbeta(${x}, ${a}, 1)`);
+    for (const [x, b] of [
+      [0.3, 2.5],
+      [0.01, 300],
+    ] as const) {
       closeRel(pbeta(x, 1, b, false), (1 - x) ** b, 1e-12, `upper pbeta(${x}, 1, ${b})`);
     }
   });
@@ -233,7 +233,11 @@ describe('pbeta and pgamma', () => {
 
 describe('pf', () => {
   it('pf(t^2, 1, df) = P(|T| <= t) (square of a Student t)', () => {
-    for (const [t, df] of [[0.4, 3], [2.228138851986274, 10], [7, 2.5]] as const) {
+    for (const [t, df] of [
+      [0.4, 3],
+      [2.228138851986274, 10],
+      [7, 2.5],
+    ] as const) {
       closeRel(pf(t * t, 1, df, false), 2 * pt(t, df, false), 1e-13, `pf(${t}^2, 1, ${df})`);
     }
   });

@@ -74,7 +74,10 @@ describe('durbinWatson', () => {
     let mean = 0;
     for (const v of e) mean += v;
     mean /= n;
-    const r = durbinWatson(e.map((v) => v - mean), interceptOnly(n));
+    const r = durbinWatson(
+      e.map((v) => v - mean),
+      interceptOnly(n),
+    );
     assert.equal(r.method, 'normal');
     const sd = Math.sqrt((4 * (n - 2)) / (n * n - 1));
     assert.ok(Math.abs(r.pValue - pnorm((r.statistic - 2) / sd)) <= 1e-13, `${r.pValue}`);
@@ -133,7 +136,10 @@ describe('durbinWatson', () => {
   });
 
   it('durbinWatson rejects short, non-finite or all-zero residuals and unusable designs', () => {
-    assert.throws(() => durbinWatson(Float64Array.of(1, 2)), (e: unknown) => e instanceof InputError && /at least 3 residuals; got 2/.test(e.message));
+    assert.throws(
+      () => durbinWatson(Float64Array.of(1, 2)),
+      (e: unknown) => e instanceof InputError && /at least 3 residuals; got 2/.test(e.message),
+    );
     assert.throws(() => durbinWatson(Float64Array.of(1, Infinity, 2)), /residual 2 is not a finite number/);
     assert.throws(() => durbinWatson(new Float64Array(5)), /all residuals are zero/);
     assert.throws(() => durbinWatson(Float64Array.of(1, -1, 1), denseDesign(new Float64Array(9).fill(1), 3)), /more rows \(3\) than design columns \(3\)/);

@@ -11,7 +11,7 @@ function accumulate(rows: number[][], y: number[]): GivensQR {
 }
 
 describe('GivensQR', () => {
-  it('GivensQR gives R with R\'R = X\'X and |Q\'y|^2 + RSS = |y|^2 (orthogonality of Q)', () => {
+  it("GivensQR gives R with R'R = X'X and |Q'y|^2 + RSS = |y|^2 (orthogonality of Q)", () => {
     const z = seededNormals(17, 200);
     const rows: number[][] = [];
     const y: number[] = [];
@@ -36,9 +36,18 @@ describe('GivensQR', () => {
     qr.checkRank();
   });
 
-  it('GivensQR fits points on a line exactly: residual sum of squares 0, R b = Q\'y gives the line', () => {
+  it("GivensQR fits points on a line exactly: residual sum of squares 0, R b = Q'y gives the line", () => {
     // y = 1 + 2x on x = 0..4: the least-squares line is the line itself.
-    const qr = accumulate([[1, 0], [1, 1], [1, 2], [1, 3], [1, 4]], [1, 3, 5, 7, 9]);
+    const qr = accumulate(
+      [
+        [1, 0],
+        [1, 1],
+        [1, 2],
+        [1, 3],
+        [1, 4],
+      ],
+      [1, 3, 5, 7, 9],
+    );
     assert.ok(qr.residualSS <= 1e-24);
     const r = qr.r;
     const b1 = (qr.qty[1] as number) / (r[3] as number);
@@ -47,7 +56,15 @@ describe('GivensQR', () => {
   });
 
   it("GivensQR.solveTransposed solves R' u = v", () => {
-    const qr = accumulate([[2, 1, 0], [0, 3, 1], [1, 0, 4], [1, 1, 1]], [0, 0, 0, 0]);
+    const qr = accumulate(
+      [
+        [2, 1, 0],
+        [0, 3, 1],
+        [1, 0, 4],
+        [1, 1, 1],
+      ],
+      [0, 0, 0, 0],
+    );
     const v = Float64Array.of(1, -2, 0.5);
     const u = new Float64Array(3);
     qr.solveTransposed(v, u);
@@ -59,7 +76,18 @@ describe('GivensQR', () => {
   });
 
   it('GivensQR.checkRank names the column that repeats the others', () => {
-    const qr = accumulate([[1, 2, 3], [1, 5, 6], [1, 7, 8], [1, 0, 1]], [0, 0, 0, 0]);
-    assert.throws(() => qr.checkRank(), (e: unknown) => e instanceof FitError && /column 3 of 3/.test(e.message));
+    const qr = accumulate(
+      [
+        [1, 2, 3],
+        [1, 5, 6],
+        [1, 7, 8],
+        [1, 0, 1],
+      ],
+      [0, 0, 0, 0],
+    );
+    assert.throws(
+      () => qr.checkRank(),
+      (e: unknown) => e instanceof FitError && /column 3 of 3/.test(e.message),
+    );
   });
 });

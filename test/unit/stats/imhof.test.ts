@@ -13,7 +13,15 @@ function weights(k: number, l: number, c: number): Float64Array {
 describe('quadraticFormLowerTail', () => {
   it('quadraticFormLowerTail(chi2_k - c chi2_l) equals the F distribution P(F(k, l) < c l / k) to 1e-9', () => {
     // chi2_k / chi2_l < c  <=>  (chi2_k / k) / (chi2_l / l) < c l / k (definition of F).
-    for (const [k, l, c] of [[1, 1, 1], [3, 5, 0.7], [10, 2, 3], [40, 45, 0.9], [2, 60, 0.01], [1, 1, 1e-4], [1, 30, 25]] as const) {
+    for (const [k, l, c] of [
+      [1, 1, 1],
+      [3, 5, 0.7],
+      [10, 2, 3],
+      [40, 45, 0.9],
+      [2, 60, 0.01],
+      [1, 1, 1e-4],
+      [1, 30, 25],
+    ] as const) {
       const got = quadraticFormLowerTail(weights(k, l, c));
       const want = pf((c * l) / k, k, l);
       assert.ok(Math.abs(got - want) <= 1e-9, `k=${k} l=${l} c=${c}: ${got} vs ${want}`);

@@ -3,7 +3,7 @@ import { InputError } from '../../../core/errors';
 import { influentialRows } from '../../../core/stats/influence';
 
 describe('influentialRows', () => {
-  it('influentialRows uses 2 df / n for leverage (Hoaglin & Welsch 1978), 4 / n (common practice) and 1 (Cook & Weisberg 1982) for Cook\'s D', () => {
+  it("influentialRows uses 2 df / n for leverage (Hoaglin & Welsch 1978), 4 / n (common practice) and 1 (Cook & Weisberg 1982) for Cook's D", () => {
     const n = 50;
     const r = influentialRows(new Float64Array(n).fill(0.04), new Float64Array(n).fill(0.01), 2);
     assert.deepEqual(
@@ -48,16 +48,22 @@ describe('influentialRows', () => {
     assert.equal(r.rows[0]?.line, 99);
   });
 
-  it('influentialRows puts rows with undefined Cook\'s distance (leverage 1) last and flags them by leverage', () => {
+  it("influentialRows puts rows with undefined Cook's distance (leverage 1) last and flags them by leverage", () => {
     const r = influentialRows(Float64Array.of(1, 0.1, 0.1, 0.1), Float64Array.of(NaN, 2, 0, 0), 1);
-    assert.deepEqual(r.rows.map((row) => [row.index, row.exceeds]), [
-      [1, ["Cook's D > 4 / n", "Cook's D > 1"]],
-      [0, ['leverage > 2 df / n']],
-    ]);
+    assert.deepEqual(
+      r.rows.map((row) => [row.index, row.exceeds]),
+      [
+        [1, ["Cook's D > 4 / n", "Cook's D > 1"]],
+        [0, ['leverage > 2 df / n']],
+      ],
+    );
   });
 
   it('influentialRows rejects mismatched lengths, no rows and df <= 0', () => {
-    assert.throws(() => influentialRows(new Float64Array(3), new Float64Array(2), 1), (e: unknown) => e instanceof InputError && /3 leverages but 2 Cook's distances/.test(e.message));
+    assert.throws(
+      () => influentialRows(new Float64Array(3), new Float64Array(2), 1),
+      (e: unknown) => e instanceof InputError && /3 leverages but 2 Cook's distances/.test(e.message),
+    );
     assert.throws(() => influentialRows(new Float64Array(0), new Float64Array(0), 1), /no rows/);
     assert.throws(() => influentialRows(new Float64Array(2), new Float64Array(2), 0), /df must be > 0, got 0/);
     assert.throws(() => influentialRows(new Float64Array(2), new Float64Array(2), 1, new Int32Array(3)), /2 rows but 3 line numbers/);

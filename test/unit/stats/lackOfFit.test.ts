@@ -27,7 +27,13 @@ describe('lackOfFit', () => {
     const y = Float64Array.of(8, 1, 2, 6, 3, 4, 10);
     const shuffled = [6, 2, 0, 5, 3, 1, 4];
     const r1 = lackOfFit(x, y, undefined, 12, 2);
-    const r2 = lackOfFit(Float64Array.from(shuffled, (i) => x[i] as number), Float64Array.from(shuffled, (i) => y[i] as number), undefined, 12, 2);
+    const r2 = lackOfFit(
+      Float64Array.from(shuffled, (i) => x[i] as number),
+      Float64Array.from(shuffled, (i) => y[i] as number),
+      undefined,
+      12,
+      2,
+    );
     assert.ok(r1 && r2);
     assert.ok(Math.abs(r1.pureErrorSS - r2.pureErrorSS) <= 1e-13);
     assert.equal(r1.replicatedLevels, 3);
@@ -68,7 +74,10 @@ describe('lackOfFit', () => {
     assert.deepEqual(given, own);
     assert.ok(Math.abs(given.pureErrorSS - 6) <= 1e-13);
     const bad = (order: number[]): void => {
-      assert.throws(() => lackOfFit(x, y, undefined, 9, 2, Int32Array.from(order)), (e: unknown) => e instanceof InputError && /does not list every row once by ascending x/.test(e.message));
+      assert.throws(
+        () => lackOfFit(x, y, undefined, 9, 2, Int32Array.from(order)),
+        (e: unknown) => e instanceof InputError && /does not list every row once by ascending x/.test(e.message),
+      );
     };
     bad([1, 3, 2, 5, 4]); // a row missing
     bad([1, 1, 2, 5, 0, 4]); // a row twice
@@ -78,7 +87,10 @@ describe('lackOfFit', () => {
 
   it('lackOfFit rejects mismatched lengths, non-finite values, non-positive weights and a negative RSS', () => {
     const x = Float64Array.of(1, 1, 2);
-    assert.throws(() => lackOfFit(x, Float64Array.of(1, 2), undefined, 1, 1), (e: unknown) => e instanceof InputError && /x has 3 values but y has 2/.test(e.message));
+    assert.throws(
+      () => lackOfFit(x, Float64Array.of(1, 2), undefined, 1, 1),
+      (e: unknown) => e instanceof InputError && /x has 3 values but y has 2/.test(e.message),
+    );
     assert.throws(() => lackOfFit(x, Float64Array.of(1, NaN, 2), undefined, 1, 1), /row 2 has a non-finite x or y/);
     assert.throws(() => lackOfFit(x, Float64Array.of(1, 2, 3), Float64Array.of(1, 0, 1), 1, 1), /weight 2 must be > 0, got 0/);
     assert.throws(() => lackOfFit(x, Float64Array.of(1, 2, 3), undefined, -1, 1), /must be >= 0, got -1/);

@@ -21,17 +21,21 @@ describe('quantileType7', () => {
 
   it('quantileType7 is monotone in p and stays within [min, max] (property, seeded)', () => {
     fc.assert(
-      fc.property(fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 1, maxLength: 40 }), fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { minLength: 1, maxLength: 10 }), (values, probs) => {
-        const sorted = Float64Array.from(values).sort();
-        const ps = probs.slice().sort((a, b) => a - b);
-        const q = quantileType7(sorted, ps);
-        for (let k = 0; k < q.length; k++) {
-          const v = q[k] as number;
-          if (v < (sorted[0] as number) || v > (sorted[sorted.length - 1] as number)) return false;
-          if (k > 0 && v < (q[k - 1] as number) - 1e-9 * Math.abs(v)) return false;
-        }
-        return true;
-      }),
+      fc.property(
+        fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 1, maxLength: 40 }),
+        fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { minLength: 1, maxLength: 10 }),
+        (values, probs) => {
+          const sorted = Float64Array.from(values).sort();
+          const ps = probs.slice().sort((a, b) => a - b);
+          const q = quantileType7(sorted, ps);
+          for (let k = 0; k < q.length; k++) {
+            const v = q[k] as number;
+            if (v < (sorted[0] as number) || v > (sorted[sorted.length - 1] as number)) return false;
+            if (k > 0 && v < (q[k - 1] as number) - 1e-9 * Math.abs(v)) return false;
+          }
+          return true;
+        },
+      ),
       { seed: 7, numRuns: 200 },
     );
   });

@@ -27,12 +27,18 @@ describe('shapiroWilk', () => {
 
   it('shapiroWilk is invariant to order, location and positive scale (property, seeded)', () => {
     fc.assert(
-      fc.property(fc.integer({ min: 3, max: 60 }), fc.integer({ min: 1, max: 1e6 }), fc.double({ min: -1e3, max: 1e3, noNaN: true }), fc.double({ min: 1e-2, max: 1e2, noNaN: true }), (n, seed, shift, scale) => {
-        const x = seededNormals(seed, n);
-        const base = shapiroWilk(x);
-        const moved = shapiroWilk(x.map((v) => shift + scale * v).reverse());
-        return Math.abs(base.statistic - moved.statistic) <= 1e-9 && Math.abs(base.pValue - moved.pValue) <= 1e-8;
-      }),
+      fc.property(
+        fc.integer({ min: 3, max: 60 }),
+        fc.integer({ min: 1, max: 1e6 }),
+        fc.double({ min: -1e3, max: 1e3, noNaN: true }),
+        fc.double({ min: 1e-2, max: 1e2, noNaN: true }),
+        (n, seed, shift, scale) => {
+          const x = seededNormals(seed, n);
+          const base = shapiroWilk(x);
+          const moved = shapiroWilk(x.map((v) => shift + scale * v).reverse());
+          return Math.abs(base.statistic - moved.statistic) <= 1e-9 && Math.abs(base.pValue - moved.pValue) <= 1e-8;
+        },
+      ),
       { seed: 11, numRuns: 100 },
     );
   });
@@ -69,7 +75,10 @@ describe('shapiroWilk', () => {
   });
 
   it('shapiroWilk refuses fewer than 3 values, equal values and non-finite values', () => {
-    assert.throws(() => shapiroWilk(Float64Array.of(1, 2)), (e: unknown) => e instanceof InputError && /at least 3 values; got 2/.test(e.message));
+    assert.throws(
+      () => shapiroWilk(Float64Array.of(1, 2)),
+      (e: unknown) => e instanceof InputError && /at least 3 values; got 2/.test(e.message),
+    );
     assert.throws(() => shapiroWilk(Float64Array.of(4, 4, 4, 4)), /all 4 values are equal/);
     assert.throws(() => shapiroWilk(Float64Array.of(1, NaN, 3)), /value 2 is not a finite number/);
   });

@@ -17,7 +17,10 @@ const REPO = join(__dirname, '..', '..', '..');
 
 /** MASS::mcycle as columns. */
 function mcycle(): { x: Float64Array; y: Float64Array } {
-  const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv'), 'utf8').trim().split('\n').slice(1);
+  const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv'), 'utf8')
+    .trim()
+    .split('\n')
+    .slice(1);
   return { x: Float64Array.from(rows, (r) => Number(r.split(',')[0])), y: Float64Array.from(rows, (r) => Number(r.split(',')[1])) };
 }
 
@@ -38,7 +41,13 @@ function denseError(f: (x: number) => number, start: number, stop: number, m: nu
 
 describe('autoStep', () => {
   it('autoStep(x^2, [0, 1], tolerance 0.011) takes 5 intervals with error h^2/4 = 0.01 (4 intervals would give 0.015625)', () => {
-    const a = autoStep((x) => x * x, 0, 1, 0.011, (v) => v);
+    const a = autoStep(
+      (x) => x * x,
+      0,
+      1,
+      0.011,
+      (v) => v,
+    );
     assert.equal(a.intervals, 5);
     assert.ok(Math.abs(a.step - 0.2) <= 1e-15, `step ${a.step} (tolerance 1e-15)`);
     assert.ok(Math.abs(a.maxError - 0.01) <= 1e-12, `maxError ${a.maxError} (tolerance 1e-12)`);
@@ -63,7 +72,14 @@ describe('autoStep', () => {
 
   it('autoStep refuses a tolerance at or below the rounding of the printed values, saying so', () => {
     assert.throws(
-      () => autoStep((x) => 1000 + x, 0, 1, 1e-6, (v) => Number(formatNumber(v, 4))),
+      () =>
+        autoStep(
+          (x) => 1000 + x,
+          0,
+          1,
+          1e-6,
+          (v) => Number(formatNumber(v, 4)),
+        ),
       (e: unknown) => e instanceof InputError && /not above the rounding of the printed table values/.test(e.message) && /--digits/.test(e.message),
     );
   });
@@ -72,7 +88,14 @@ describe('autoStep', () => {
     this.timeout(120_000);
     // e^(40x) on [0, 1]: f'' up to 1600 e^40 needs h below about 1e-9 for tolerance 1e-3.
     assert.throws(
-      () => autoStep((x) => Math.exp(40 * x), 0, 1, 1e-3, (v) => v),
+      () =>
+        autoStep(
+          (x) => Math.exp(40 * x),
+          0,
+          1,
+          1e-3,
+          (v) => v,
+        ),
       (e: unknown) => e instanceof InputError && /needs more than 1000000 table rows/.test(e.message),
     );
   });

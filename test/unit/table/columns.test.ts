@@ -12,7 +12,10 @@ import { parseColumns, shapeTable } from '../../../core/table/columns';
 import { curveTable, TABLE_COLUMNS } from '../../../core/table/curveTable';
 
 const REPO = join(__dirname, '..', '..', '..');
-const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv'), 'utf8').trim().split('\n').slice(1);
+const rows = readFileSync(join(REPO, 'test', 'e2e', 'fixtures', 'mcycle.csv'), 'utf8')
+  .trim()
+  .split('\n')
+  .slice(1);
 const x = Float64Array.from(rows, (r) => Number(r.split(',')[0]));
 const y = Float64Array.from(rows, (r) => Number(r.split(',')[1]));
 const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 8 });

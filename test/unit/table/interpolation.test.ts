@@ -11,7 +11,7 @@ import { interpolationError, SAMPLES_PER_INTERVAL } from '../../../core/table/in
 const TOL = 1e-12;
 
 describe('interpolationError', () => {
-  it('interpolationError of x^2 on a uniform grid is h^2/4 at every interval midpoint (f\'\' = 2, so c h^2 / 8)', () => {
+  it("interpolationError of x^2 on a uniform grid is h^2/4 at every interval midpoint (f'' = 2, so c h^2 / 8)", () => {
     const h = 0.25;
     const xs = Float64Array.from({ length: 5 }, (_, i) => i * h);
     const ys = Float64Array.from(xs, (x) => x * x);
@@ -52,7 +52,13 @@ describe('interpolationError', () => {
 
   it('interpolationError is 0 for a straight line, skips repeated x, and handles fewer than two nodes', () => {
     const xs = Float64Array.of(0, 1, 1, 2);
-    assert.ok(interpolationError((x) => 2 * x - 5, xs, Float64Array.from(xs, (x) => 2 * x - 5)).maxError <= 1e-15);
+    assert.ok(
+      interpolationError(
+        (x) => 2 * x - 5,
+        xs,
+        Float64Array.from(xs, (x) => 2 * x - 5),
+      ).maxError <= 1e-15,
+    );
     assert.equal(interpolationError(Math.sin, Float64Array.of(1), Float64Array.of(Math.sin(1))).maxError, 0);
     assert.equal(interpolationError(Math.sin, new Float64Array(0), new Float64Array(0)).maxError, 0);
   });

@@ -319,7 +319,10 @@ describe('foldLabels and bootstrapCounts', () => {
     bootstrapCounts(n, 5, 3, a);
     bootstrapCounts(n, 5, 3, b);
     assert.deepEqual(a, b);
-    assert.equal(a.reduce((s, v) => s + v, 0), n);
+    assert.equal(
+      a.reduce((s, v) => s + v, 0),
+      n,
+    );
     // A row is out of bag with probability (1 - 1/n)^n (direct calculation: n independent draws
     // miss it), 0.3675 for n = 500; the share's SD is about sqrt(p (1 - p) / n) = 0.0216, so a
     // band of +-0.11 (5 SD) fails only for a broken sampler.
@@ -395,7 +398,10 @@ describe('runners', () => {
     // Tolerance 0: each resample depends only on (seed, index), so the doubles must be identical.
     assert.equal(threaded.length, 10);
     for (let r = 0; r < 10; r++) assert.deepEqual(Array.from(threaded[r] as Float64Array), Array.from(inline[r] as Float64Array), `resample ${r}`);
-    assert.ok(threaded.every((e) => e.every((v) => Number.isFinite(v) && v > 0)), 'all errors finite');
+    assert.ok(
+      threaded.every((e) => e.every((v) => Number.isFinite(v) && v > 0)),
+      'all errors finite',
+    );
     assert.deepEqual(
       progress.reports.map(([d]) => d),
       Array.from({ length: 10 }, (_, i) => i + 1),

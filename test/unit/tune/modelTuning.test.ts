@@ -115,7 +115,14 @@ describe('ResampleEngine with outcome families, shapes and robust fitting', () =
 describe('tuneCurve with outcome families, shapes and robust fitting', () => {
   it('a Poisson outcome is tuned on the mean deviance of the held-out rows, and every candidate reports it', async () => {
     const d = dataset('discoveries');
-    const { result, fits } = await tuneCurve(prepareData(d), { kind: 'natural-spline', candidates: [2, 3, 4, 6], outcome: 'counts', resample: { kind: 'folds', folds: 5, repeats: 2 }, rule: { kind: 'one-se' }, seed: 1 });
+    const { result, fits } = await tuneCurve(prepareData(d), {
+      kind: 'natural-spline',
+      candidates: [2, 3, 4, 6],
+      outcome: 'counts',
+      resample: { kind: 'folds', folds: 5, repeats: 2 },
+      rule: { kind: 'one-se' },
+      seed: 1,
+    });
     assert.equal(result.metric, 'deviance');
     for (const c of result.candidates) {
       assert.equal(c.skipped, undefined);
@@ -128,7 +135,14 @@ describe('tuneCurve with outcome families, shapes and robust fitting', () => {
 
   it('a shape-constrained tuning refits each candidate with the constraints (and the chosen fit keeps the shape)', async () => {
     const d = dataset('cars');
-    const { result, fits } = await tuneCurve(prepareData(d), { kind: 'natural-spline', candidates: [2, 3, 4, 5], shape: ['increasing'], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'least-error' }, seed: 2 });
+    const { result, fits } = await tuneCurve(prepareData(d), {
+      kind: 'natural-spline',
+      candidates: [2, 3, 4, 5],
+      shape: ['increasing'],
+      resample: { kind: 'bootstrap', resamples: 20 },
+      rule: { kind: 'least-error' },
+      seed: 2,
+    });
     assert.equal(result.metric, 'rmse');
     const fit = fits.get(result.selected.df);
     assert.ok(fit?.model?.constraints);
@@ -143,7 +157,10 @@ describe('tuneCurve with outcome families, shapes and robust fitting', () => {
   it('tuneCurve refuses exact leave-one-out for non-linear fits and the deviance metric for a Gaussian outcome', async () => {
     const p = prepareData(dataset('cars'));
     const base = { kind: 'natural-spline' as const, rule: { kind: 'one-se' as const }, seed: 1 };
-    await assert.rejects(tuneCurve(p, { ...base, robust: true, resample: { kind: 'leave-one-out' } }), (e: unknown) => e instanceof InputError && /exact leave-one-out needs a plain least-squares fit/.test(e.message));
+    await assert.rejects(
+      tuneCurve(p, { ...base, robust: true, resample: { kind: 'leave-one-out' } }),
+      (e: unknown) => e instanceof InputError && /exact leave-one-out needs a plain least-squares fit/.test(e.message),
+    );
     await assert.rejects(tuneCurve(p, { ...base, metric: 'deviance', resample: { kind: 'folds', folds: 5, repeats: 1 } }), /mean deviance is the error of counts and proportions/);
     await assert.rejects(tuneCurve(p, { ...base, kind: 'smoothing-spline', robust: true, resample: { kind: 'folds', folds: 5, repeats: 1 } }), /cubic smoothing spline has no robust fit/);
   });

@@ -43,23 +43,14 @@ function toCandidates(rows: readonly Row[]): CandidateResult[] {
  * Means come partly from a small set of values so that ties (equal means, means exactly on a
  * threshold) occur often; the rest are spread over 0.001 .. 1000.
  */
-const meanArb = fc.oneof(
-  fc.constantFrom(0.25, 0.5, 1, 2),
-  fc.double({ min: 0.001, max: 1000, noNaN: true, noDefaultInfinity: true }),
-);
+const meanArb = fc.oneof(fc.constantFrom(0.25, 0.5, 1, 2), fc.double({ min: 0.001, max: 1000, noNaN: true, noDefaultInfinity: true }));
 const seArb = fc.oneof(fc.constantFrom(0, 0.25, 0.5), fc.double({ min: 0, max: 50, noNaN: true, noDefaultInfinity: true }));
 const kindArb = fc.constantFrom<Row['kind']>('ok', 'ok', 'ok', 'ok', 'skipped', 'nan');
 
 /** A candidate table in random order with distinct df (1..40) and at least one usable row. */
 const tableArb: fc.Arbitrary<Row[]> = fc
   .uniqueArray(fc.integer({ min: 1, max: 40 }), { minLength: 1, maxLength: 14 })
-  .chain((dfs) =>
-    fc.tuple(
-      fc.constant(dfs),
-      fc.array(fc.tuple(kindArb, meanArb, seArb), { minLength: dfs.length, maxLength: dfs.length }),
-      fc.nat({ max: dfs.length - 1 }),
-    ),
-  )
+  .chain((dfs) => fc.tuple(fc.constant(dfs), fc.array(fc.tuple(kindArb, meanArb, seArb), { minLength: dfs.length, maxLength: dfs.length }), fc.nat({ max: dfs.length - 1 })))
   .map(([dfs, cells, forcedOk]) =>
     dfs.map((df, i) => {
       const [kind, mean, se] = cells[i] as [Row['kind'], number, number];
@@ -134,18 +125,13 @@ describe('selectDf', () => {
   it('selectDf breaks ties towards the smaller df under every rule', () => {
     // Source: issue #3, "Ties go to the smaller df". Every usable candidate gets the same mean.
     fc.assert(
-      fc.property(
-        fc.uniqueArray(fc.integer({ min: 1, max: 40 }), { minLength: 2, maxLength: 10 }),
-        meanArb,
-        seArb,
-        (dfs, mean, se) => {
-          const cands = toCandidates(dfs.map((df) => ({ df, kind: 'ok' as const, mean, se })));
-          const smallest = Math.min(...dfs);
-          for (const rule of [{ kind: 'least-error' }, { kind: 'one-se' }, { kind: 'simplest-within', percent: 0 }, { kind: 'simplest-within', percent: 5 }] as RuleSpec[]) {
-            assert.equal(selectDf(cands, rule, 'rmse').df, smallest, `rule ${rule.kind}`);
-          }
-        },
-      ),
+      fc.property(fc.uniqueArray(fc.integer({ min: 1, max: 40 }), { minLength: 2, maxLength: 10 }), meanArb, seArb, (dfs, mean, se) => {
+        const cands = toCandidates(dfs.map((df) => ({ df, kind: 'ok' as const, mean, se })));
+        const smallest = Math.min(...dfs);
+        for (const rule of [{ kind: 'least-error' }, { kind: 'one-se' }, { kind: 'simplest-within', percent: 0 }, { kind: 'simplest-within', percent: 5 }] as RuleSpec[]) {
+          assert.equal(selectDf(cands, rule, 'rmse').df, smallest, `rule ${rule.kind}`);
+        }
+      }),
       { numRuns: RUNS, seed: SEED + 3 },
     );
   });
@@ -201,8 +187,14 @@ describe('selectDf', () => {
       { df: 5, kind: 'ok', mean: 0.9, se: 0.1 },
       { df: 7, kind: 'skipped', mean: 0, se: 0 },
     ]);
-    assert.throws(() => selectDf(cands, { kind: 'pick', df: 4 }, 'rmse'), (e: unknown) => e instanceof InputError && /df 4 .*candidates: 3, 5/.test(e.message));
-    assert.throws(() => selectDf(cands, { kind: 'pick', df: 7 }, 'rmse'), (e: unknown) => e instanceof InputError && /df 7/.test(e.message));
+    assert.throws(
+      () => selectDf(cands, { kind: 'pick', df: 4 }, 'rmse'),
+      (e: unknown) => e instanceof InputError && /df 4 .*candidates: 3, 5/.test(e.message),
+    );
+    assert.throws(
+      () => selectDf(cands, { kind: 'pick', df: 7 }, 'rmse'),
+      (e: unknown) => e instanceof InputError && /df 7/.test(e.message),
+    );
   });
 
   it('selectDf throws an InputError listing the skip reasons when no candidate is usable', () => {
@@ -225,7 +217,11 @@ describe('selectDf', () => {
   it('selectDf(simplest-within) refuses a negative, non-finite or over-100 percentage', () => {
     const cands = toCandidates([{ df: 3, kind: 'ok', mean: 1, se: 0.1 }]);
     for (const percent of [-1, NaN, Infinity, 150]) {
-      assert.throws(() => selectDf(cands, { kind: 'simplest-within', percent }, 'rmse'), (e: unknown) => e instanceof InputError && /tolerance/.test(e.message), `percent ${percent}`);
+      assert.throws(
+        () => selectDf(cands, { kind: 'simplest-within', percent }, 'rmse'),
+        (e: unknown) => e instanceof InputError && /tolerance/.test(e.message),
+        `percent ${percent}`,
+      );
     }
   });
 
@@ -244,7 +240,17 @@ describe('selectDf', () => {
     // at df 9 with SE 0.006, df 5 is the smallest df within one SE, and df 2..4 are above it.
     // The expected sentence follows issue #3, in the words of the rules registry.
     const means = new Map([
-      [2, 0.52], [3, 0.41], [4, 0.33], [5, 0.305], [6, 0.304], [7, 0.303], [8, 0.302], [9, 0.301], [10, 0.302], [11, 0.304], [12, 0.306],
+      [2, 0.52],
+      [3, 0.41],
+      [4, 0.33],
+      [5, 0.305],
+      [6, 0.304],
+      [7, 0.303],
+      [8, 0.302],
+      [9, 0.301],
+      [10, 0.302],
+      [11, 0.304],
+      [12, 0.306],
     ]);
     const cands: CandidateResult[] = [...means].map(([df, mean]) => ({ df, errors: { rmse: summary(mean, df === 9 ? 0.006 : 0.007) } }));
     const s = selectDf(cands, { kind: 'one-se' }, 'rmse');
@@ -256,7 +262,10 @@ describe('selectDf', () => {
     // The other rules on the same table: lowest -> 9; within 2 % (threshold 0.30702) -> 5.
     assert.deepEqual(
       s.alternatives.map((a) => [a.rule.kind, a.df]),
-      [['least-error', 9], ['simplest-within', 5]],
+      [
+        ['least-error', 9],
+        ['simplest-within', 5],
+      ],
     );
     assert.ok(s.reason.includes('least mean error → df 9'), s.reason);
   });

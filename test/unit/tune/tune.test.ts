@@ -90,7 +90,13 @@ describe('tuneCurve', () => {
   it('tuneCurve keeps candidates above the distinct-x count as skipped, with the reason in words (cars, 19 distinct speeds)', async () => {
     // datasets::cars has 19 distinct speeds (R: length(unique(cars$speed))); docs/design.md, "df": a
     // candidate whose df exceeds the number of distinct x values is skipped with that reason.
-    const { result, fits } = await tuneCurve(prepareData(CARS), { kind: 'natural-spline', candidates: [25, 2, 3, 20, 4], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'one-se' }, seed: 3 });
+    const { result, fits } = await tuneCurve(prepareData(CARS), {
+      kind: 'natural-spline',
+      candidates: [25, 2, 3, 20, 4],
+      resample: { kind: 'bootstrap', resamples: 20 },
+      rule: { kind: 'one-se' },
+      seed: 3,
+    });
     assert.deepEqual(
       result.candidates.map((c) => c.df),
       [2, 3, 4, 20, 25],
@@ -117,14 +123,26 @@ describe('tuneCurve', () => {
     // 7 distinct speeds and df 7: a bootstrap sample that misses one of them cannot fit 7
     // coefficients. Speeds 8 and 9 occur once each among the 15 rows, and a sample misses a
     // given row with probability (1 - 1/15)^15 = 0.355, so most samples miss at least one speed.
-    const { result } = await tuneCurve(prepareData(carsUpTo12()), { kind: 'natural-spline', candidates: [2, 3, 7], resample: { kind: 'bootstrap', resamples: 20 }, rule: { kind: 'least-error' }, seed: 1 });
+    const { result } = await tuneCurve(prepareData(carsUpTo12()), {
+      kind: 'natural-spline',
+      candidates: [2, 3, 7],
+      resample: { kind: 'bootstrap', resamples: 20 },
+      rule: { kind: 'least-error' },
+      seed: 1,
+    });
     const c7 = result.candidates.find((c) => c.df === 7);
     assert.match(c7?.skipped ?? '', /could not determine the curve in \d+ of 20 resamples/);
     assert.equal(result.candidates.find((c) => c.df === 2)?.skipped, undefined);
   });
 
   it('tuneCurve(loo) puts the exact leave-one-out RMSE of each candidate into errors.rmse.mean (mcycle, against R brute-force refits)', async () => {
-    const { result, fits } = await tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [2, 3, 4, 5, 6, 7, 8], resample: { kind: 'leave-one-out' }, rule: { kind: 'least-error' }, seed: 1 });
+    const { result, fits } = await tuneCurve(prepareData(MCYCLE), {
+      kind: 'natural-spline',
+      candidates: [2, 3, 4, 5, 6, 7, 8],
+      resample: { kind: 'leave-one-out' },
+      rule: { kind: 'least-error' },
+      seed: 1,
+    });
     assert.equal(result.metric, 'rmse');
     for (const c of result.candidates) {
       const fit = fits.get(c.df);
@@ -194,8 +212,14 @@ describe('tuneCurve', () => {
     const progress = recorder();
     await tuneCurve(prepareData(MCYCLE), { kind: 'natural-spline', candidates: [3, 5], resample: { kind: 'bootstrap', resamples: 12 }, rule: { kind: 'one-se' }, seed: 2 }, undefined, progress);
     const resamples = progress.reports.filter(([, total]) => total === 12).map(([done]) => done);
-    assert.deepEqual(resamples, Array.from({ length: 12 }, (_, i) => i + 1));
-    assert.ok(progress.reports.every(([, , m]) => m.length > 0), 'every report has a message');
+    assert.deepEqual(
+      resamples,
+      Array.from({ length: 12 }, (_, i) => i + 1),
+    );
+    assert.ok(
+      progress.reports.every(([, , m]) => m.length > 0),
+      'every report has a message',
+    );
 
     for (const after of [0, 1, 4]) {
       const cancelling = recorder(after);
