@@ -1,4 +1,5 @@
 import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
+import { centringOffset } from '../stats/weightedMean';
 import { FitError } from '../errors';
 import { nullSpace } from '../linalg/nullSpace';
 import { accumulateRow, buildCells, SUMS_PER_CELL } from './powerSums/cells';
@@ -42,14 +43,7 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
   );
   // y centred at its weighted mean: the sums and the solve see y - mean, which the B-splines
   // (summing to 1) add back exactly; a small signal on a large offset keeps its digits.
-  let sw = 0;
-  let swy = 0;
-  for (let i = 0; i < n; i++) {
-    const wi = w ? (w[i] as number) : 1;
-    sw += wi;
-    swy += wi * (y[i] as number);
-  }
-  const offset = Number.isFinite(swy / sw) ? swy / sw : 0;
+  const offset = centringOffset(y, w);
   const sums = new Float64Array((cells.breaks.length - 1) * SUMS_PER_CELL);
   for (let i = 0; i < n; i++) accumulateRow(sums, cells.cell[i] as number, cells.t[i] as number, (y[i] as number) - offset, w ? (w[i] as number) : 1);
   const buf = new Float64Array(4);

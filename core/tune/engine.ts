@@ -1,4 +1,5 @@
 import { prepareData } from '../fit/prepared';
+import { weightedMean } from '../stats/weightedMean';
 import type { OutcomeFamily } from '../fit/glm';
 import { isPlainModel } from '../fit/model';
 import { accumulateRow, type Cells, SUMS_PER_CELL } from '../fit/powerSums/cells';
@@ -61,14 +62,8 @@ export class ResampleEngine {
     const { x, y, w } = problem;
     const n = x.length;
     this.n = n;
-    let sw = 0;
-    let swy = 0;
-    for (let i = 0; i < n; i++) {
-      const wi = w ? (w[i] as number) : 1;
-      sw += wi;
-      swy += wi * (y[i] as number);
-    }
-    this.ymean = swy / sw;
+    const { mean, weight: sw } = weightedMean(y, w);
+    this.ymean = mean;
     let ss = 0;
     for (let i = 0; i < n; i++) ss += (w ? (w[i] as number) : 1) * ((y[i] as number) - this.ymean) ** 2;
     this.yscale = Math.sqrt(ss / sw) || 1;

@@ -4,6 +4,7 @@
  * sums of squares of the rows and of the pooled means differ by a constant), and the way
  * back from the pooled problem to the rows.
  */
+import { centringOffset } from '../../stats/weightedMean';
 import { FitError } from '../../errors';
 import type { XYData } from '../../types';
 import { prepareData } from '../prepared';
@@ -67,14 +68,7 @@ export function poolTies(data: XYData): Pooled {
       group[i] = lo;
     }
   }
-  let sw = 0;
-  let swy = 0;
-  for (let i = 0; i < n; i++) {
-    const wi = w ? (w[i] as number) : 1;
-    sw += wi;
-    swy += wi * (y[i] as number);
-  }
-  const offset = Number.isFinite(swy / sw) ? swy / sw : 0;
+  const offset = centringOffset(y, w);
   const ws = new Float64Array(m);
   const yc = new Float64Array(m);
   for (let i = 0; i < n; i++) {

@@ -16,23 +16,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { checkRecord, findRecords, runCheck } from '../../../core/node/check';
 import { VERSION } from '../../../core/version';
-import { copyFixture, REPO, runMain, type Run } from './runMain';
+import { copyFixture, REPO, runCheckIn, runMain, type Run } from './runMain';
 
-/** Runs runCheck with `cwd` and output captured. */
-async function check(cwd: string, ...argv: string[]): Promise<Run> {
-  let stdout = '';
-  let stderr = '';
-  const out = process.stdout.write;
-  const err = process.stderr.write;
-  process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
-  process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
-  try {
-    return { code: await runCheck(argv, cwd), stdout, stderr };
-  } finally {
-    process.stdout.write = out;
-    process.stderr.write = err;
-  }
-}
+/** Runs `knotwise check` in `cwd` with output captured. */
+const check = runCheckIn;
 
 /** One record's state in `check --json`. */
 interface RecordState {

@@ -14,26 +14,12 @@ import { strict as assert } from 'node:assert';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { runCheck } from '../../../core/node/check';
 import { RandomStream } from '../../../core/tune/rng';
 import { VERSION } from '../../../core/version';
-import { copyFixture, runMain, type Run } from './runMain';
+import { copyFixture, runCheckIn, runMain, type Run } from './runMain';
 
-/** Runs runCheck in `cwd` with output captured. */
-async function check(cwd: string, ...argv: string[]): Promise<Run> {
-  let stdout = '';
-  let stderr = '';
-  const out = process.stdout.write;
-  const err = process.stderr.write;
-  process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
-  process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
-  try {
-    return { code: await runCheck(argv, cwd), stdout, stderr };
-  } finally {
-    process.stdout.write = out;
-    process.stderr.write = err;
-  }
-}
+/** Runs `knotwise check` in `cwd` with output captured. */
+const check = runCheckIn;
 
 /** The three ways check is run: one record, its folder, and no argument (as a CI step does). */
 const MODES: readonly (readonly string[])[] = [[join('tables', 'cars.fit.json')], ['tables'], []];

@@ -5,6 +5,7 @@
  */
 import { copyFileSync, mkdirSync } from 'node:fs';
 import { dirname, join } from 'node:path';
+import { runCheck } from '../../../core/node/check';
 import { type CliEnv, main } from '../../../core/node/cli';
 
 export const REPO = join(__dirname, '..', '..', '..');
@@ -26,6 +27,23 @@ export async function runMain(...argv: string[]): Promise<Run> {
 
 /** Runs `main(argv)` with output captured and `env` (standard input, progress stream, clock) injected. */
 export async function runMainWith(env: Partial<CliEnv>, ...argv: string[]): Promise<Run> {
+  return captured(() =>
+    main(argv, {
+      readStdin: () => Promise.resolve(new Uint8Array(0)),
+      stdinIsTTY: false,
+      progressStream: { write: (t: string) => process.stderr.write(t), isTTY: false },
+      ...env,
+    }),
+  );
+}
+
+/** Runs `knotwise check` in `cwd` (core/node/check.ts runCheck) with output captured. */
+export async function runCheckIn(cwd: string, ...argv: string[]): Promise<Run> {
+  return captured(() => runCheck(argv, cwd));
+}
+
+/** Runs `command` with this process's stdout and stderr captured; returns its exit code and what it printed. */
+async function captured(command: () => Promise<number>): Promise<Run> {
   let stdout = '';
   let stderr = '';
   const out = process.stdout.write;
@@ -33,12 +51,7 @@ export async function runMainWith(env: Partial<CliEnv>, ...argv: string[]): Prom
   process.stdout.write = ((chunk: string | Uint8Array) => ((stdout += String(chunk)), true)) as typeof process.stdout.write;
   process.stderr.write = ((chunk: string | Uint8Array) => ((stderr += String(chunk)), true)) as typeof process.stderr.write;
   try {
-    const code = await main(argv, {
-      readStdin: () => Promise.resolve(new Uint8Array(0)),
-      stdinIsTTY: false,
-      progressStream: { write: (t: string) => process.stderr.write(t), isTTY: false },
-      ...env,
-    });
+    const code = await command();
     return { code, stdout, stderr };
   } finally {
     process.stdout.write = out;
