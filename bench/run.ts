@@ -64,7 +64,7 @@ async function panelTimings(sizes: readonly number[]): Promise<void> {
     const bytes = Buffer.byteLength(JSON.stringify(payload));
     const t2 = performance.now();
     log(
-      `| panel for ${n} rows: analyse (default settings: natural, ${analysis.tune.candidates.length} candidates, bootstrap:50, 1se) + panel message | ${((t2 - t0) / 1000).toFixed(2)} s (analyse ${((t1 - t0) / 1000).toFixed(2)} s, message ${((t2 - t1) / 1000).toFixed(2)} s, ${bytes} bytes) |`,
+      `| panel for ${n} rows: analyse (default settings: natural-spline, ${analysis.tune.candidates.length} candidates, bootstrap:50, one-se) + panel message | ${((t2 - t0) / 1000).toFixed(2)} s (analyse ${((t1 - t0) / 1000).toFixed(2)} s, message ${((t2 - t1) / 1000).toFixed(2)} s, ${bytes} bytes) |`,
     );
   }
 }
