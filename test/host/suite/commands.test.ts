@@ -361,11 +361,28 @@ describe('Knotwise commands in the extension host', function () {
       await setSetting('resampling', undefined);
     });
     const drift = { columns: { x: 'load', y: 'strain' } };
+    /** Run ids the big file's panel has been told about so far. */
+    const runIds = (): Set<number> =>
+      new Set(
+        api()
+          .panelLog(big())
+          .flatMap((m) => ('runId' in m ? [m.runId] : [])),
+      );
+    /** Waits until a new run reports resampling progress in its panel (it is then mid-run, not before or after). */
+    const resampling = (earlier: Set<number>): Promise<true> =>
+      waitFor('a new run resampling', () =>
+        api()
+          .panelLog(big())
+          .some((m) => m.type === 'running' && !earlier.has(m.runId) && (m.fraction ?? 0) > 0)
+          ? true
+          : undefined,
+      );
 
     it('Stop Tuning cancels a save-and-tune run and leaves no files behind', async function () {
       const before = readdirSync(folder().fsPath).sort();
+      const earlier = runIds();
       const pending = vscode.commands.executeCommand('knotwise.saveCurveTable', big(), { ...drift, replaceForeignFiles: 'yes' }) as Thenable<RunSummary>;
-      await new Promise((r) => setTimeout(r, 1500));
+      await resampling(earlier);
       const stopped = (await vscode.commands.executeCommand('knotwise.stopTuning')) as number;
       assert.equal(stopped, 1, 'one run was running');
       const result = await pending;
@@ -374,8 +391,9 @@ describe('Knotwise commands in the extension host', function () {
     });
 
     it('a second run on the same file replaces the first', async function () {
+      const earlier = runIds();
       const first = vscode.commands.executeCommand('knotwise.tuneCurve', big(), drift) as Thenable<RunSummary>;
-      await new Promise((r) => setTimeout(r, 800));
+      await resampling(earlier);
       await setSetting('resampling', 'folds:5');
       // The settings change reruns open panels; the explicit second run supersedes both.
       const second = (await vscode.commands.executeCommand('knotwise.tuneCurve', big(), drift)) as RunSummary;
