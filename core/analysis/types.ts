@@ -1,14 +1,12 @@
-import type { CurveKindId, FitResult, ModelOptions, XYData } from '../types';
-import type { ResampleSpec, RuleSpec, TuneResult } from '../tune/types';
+import type { TuneOptions } from '../tune/tune';
+import type { TuneResult } from '../tune/types';
+import type { FitResult, XYData } from '../types';
 
-/** Everything one analysis needs besides the data (ModelOptions: outcome family, shape, robust fitting). */
-export interface AnalysisOptions extends ModelOptions {
-  readonly kind: CurveKindId;
-  /** Candidate df; absent means the family's default range. */
-  readonly candidates?: readonly number[] | undefined;
-  readonly resample: ResampleSpec;
-  readonly rule: RuleSpec;
-  readonly seed: number;
+/**
+ * Everything one analysis needs besides the data: what tuning takes (curve, candidates,
+ * resampling, rule, seed, model options; core/tune/tune.ts) and a held-out fraction.
+ */
+export interface AnalysisOptions extends Omit<TuneOptions, 'metric'> {
   /** Fraction of rows held out (stratified by x) and used once at the end; 0 or absent for none. */
   readonly holdout?: number | undefined;
 }

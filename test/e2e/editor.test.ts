@@ -62,6 +62,26 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     if (!failed && runDir) rmSync(runDir, { recursive: true, force: true });
   });
 
+  /** Picks a colour theme through the command palette, as a person would, and waits until the workbench wears it. */
+  async function chooseTheme(theme: string, workbenchClass: string): Promise<void> {
+    const input = page.locator('.quick-input-widget input.input');
+    // Give the workbench the keyboard (the panel may have it).
+    await page.locator('.part.sidebar .title-label').first().click();
+    await page.keyboard.press('F1');
+    await input.waitFor();
+    await input.fill('>Preferences: Color Theme');
+    await page
+      .getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ })
+      .first()
+      .click();
+    // The theme picker is open once it lists the installed themes.
+    await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Light Modern"]').first().waitFor();
+    await input.fill(theme);
+    await page.locator(`.quick-input-widget .monaco-list-row[aria-label*="${theme}"]`).first().waitFor();
+    await page.keyboard.press('Enter');
+    await page.locator(`.monaco-workbench.${workbenchClass}`).waitFor({ timeout: 30000 });
+  }
+
   /** Waits until the panel shows a finished run newer than `before`. */
   async function newRun(before: number, after: string): Promise<void> {
     // Run ids only grow: a ready panel with another run id shows a newer run.
@@ -164,23 +184,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   });
 
   it('the panel follows a dark theme', async function () {
-    // Through the command palette, as a person would.
-    const input = page.locator('.quick-input-widget input.input');
-    // Give the workbench the keyboard (the panel had it after the click on save).
-    await page.locator('.part.sidebar .title-label').first().click();
-    await page.keyboard.press('F1');
-    await input.waitFor();
-    await input.fill('>Preferences: Color Theme');
-    await page
-      .getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ })
-      .first()
-      .click();
-    // The theme picker is open once it lists the installed themes.
-    await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Light Modern"]').first().waitFor();
-    await input.fill('Dark Modern');
-    await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Dark Modern"]').first().waitFor();
-    await page.keyboard.press('Enter');
-    await page.locator('.monaco-workbench.vs-dark').waitFor({ timeout: 30000 });
+    await chooseTheme('Dark Modern', 'vs-dark');
     // Knotwise's own panel follows: its body takes the dark theme class and its badge a dark-theme colour.
     await panel.locator('body.vscode-dark').waitFor({ timeout: 30000 });
     const darkBadge = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor')) as string;
@@ -191,24 +195,11 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   });
 
   it('the panel reads in high-contrast themes and at half width', async function () {
-    const input = page.locator('.quick-input-widget input.input');
     for (const [theme, workbench, body] of [
       ['Dark High Contrast', 'hc-black', 'vscode-high-contrast'],
       ['Light High Contrast', 'hc-light', 'vscode-high-contrast-light'],
     ] as const) {
-      await page.locator('.part.sidebar .title-label').first().click();
-      await page.keyboard.press('F1');
-      await input.waitFor();
-      await input.fill('>Preferences: Color Theme');
-      await page
-        .getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ })
-        .first()
-        .click();
-      await page.locator('.quick-input-widget .monaco-list-row[aria-label*="Light Modern"]').first().waitFor();
-      await input.fill(theme);
-      await page.locator(`.quick-input-widget .monaco-list-row[aria-label*="${theme}"]`).first().waitFor();
-      await page.keyboard.press('Enter');
-      await page.locator(`.monaco-workbench.${workbench}`).waitFor({ timeout: 30000 });
+      await chooseTheme(theme, workbench);
       await panel.locator(`body.${body}`).waitFor({ timeout: 30000 });
       // High-contrast themes draw borders around the panel's controls.
       const border = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-save")).borderTopStyle')) as string;

@@ -4,7 +4,6 @@
 // With --packaged (the `packaged` layer): builds knotwise-<version>.vsix with `npm run package`,
 // installs it into a fresh workbench and runs test/e2e/packaged.test.ts against it.
 import { spawnSync } from 'node:child_process';
-import { build } from 'esbuild';
 import { existsSync, mkdirSync, readFileSync, statSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -30,21 +29,9 @@ try {
     process.env.KNOTWISE_VSIX = vsix;
     failures = await runMocha([join(here, 'packaged.test.ts')], { timeout: 90000, title: 'packaged layer' });
   } else {
-    const node = { bundle: true, sourcemap: true, platform: 'node', format: 'cjs', target: 'es2022', logLevel: 'warning' };
-    await Promise.all([
-      build({ ...node, entryPoints: [join(repoRoot, 'extension', 'main.ts')], outfile: join(repoRoot, 'dist', 'extension.js'), external: ['vscode'] }),
-      build({ ...node, entryPoints: [join(repoRoot, 'core', 'node', 'resampleWorker.ts')], outfile: join(repoRoot, 'dist', 'resampleWorker.js') }),
-      build({
-        bundle: true,
-        sourcemap: true,
-        platform: 'browser',
-        format: 'iife',
-        target: 'es2022',
-        logLevel: 'warning',
-        entryPoints: [join(repoRoot, 'webview', 'main.ts')],
-        outfile: join(repoRoot, 'dist', 'webview', 'main.js'),
-      }),
-    ]);
+    // The same development bundles as npm run build (the packaged layer's minified ones are replaced).
+    const built = spawnSync(process.execPath, [join(repoRoot, 'scripts', 'build.mjs')], { cwd: repoRoot, stdio: 'inherit' });
+    if (built.status !== 0) throw new Error('the bundles did not build');
     console.log(`whole-editor layer: bundles built in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
     failures = await runMocha([join(here, 'editor.test.ts')], { timeout: 90000, title: 'whole-editor layer' });
   }

@@ -2,6 +2,7 @@
 // workbench in headless Chromium, docs/testing.md, "Extension host"), loaded through the workbench's
 // extensionDevelopmentPath / extensionTestsPath payload.
 // Usage: node test/host/run.mjs   (prints "N passed, M failed" last; exit 1 on failure)
+import { spawnSync } from 'node:child_process';
 import { build } from 'esbuild';
 import { copyFileSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
@@ -15,24 +16,21 @@ const RESULT_TAG = 'KNOTWISE-HOST-RESULT ';
 const TIMEOUT_MS = 240_000;
 
 /** Bundles what the extension host loads: the extension, the resample worker, the panel, the CLI and the test suite. */
+/** The product's bundles as npm run build makes them, and the host suite bundled for the extension host. */
 async function buildAll() {
-  const node = { bundle: true, sourcemap: true, platform: 'node', format: 'cjs', target: 'es2022', logLevel: 'warning' };
-  await Promise.all([
-    build({ ...node, entryPoints: [join(repoRoot, 'extension', 'main.ts')], outfile: join(repoRoot, 'dist', 'extension.js'), external: ['vscode'] }),
-    build({ ...node, entryPoints: [join(repoRoot, 'core', 'node', 'resampleWorker.ts')], outfile: join(repoRoot, 'dist', 'resampleWorker.js') }),
-    build({ ...node, entryPoints: [join(repoRoot, 'core', 'node', 'cli.ts')], outfile: join(repoRoot, 'dist', 'cli.js'), banner: { js: '#!/usr/bin/env node' } }),
-    build({
-      bundle: true,
-      sourcemap: true,
-      platform: 'browser',
-      format: 'iife',
-      target: 'es2022',
-      logLevel: 'warning',
-      entryPoints: [join(repoRoot, 'webview', 'main.ts')],
-      outfile: join(repoRoot, 'dist', 'webview', 'main.js'),
-    }),
-    build({ ...node, entryPoints: [join(here, 'suite', 'index.ts')], outfile: join(repoRoot, 'dist', 'test', 'host', 'index.js'), external: ['vscode', 'mocha'] }),
-  ]);
+  const built = spawnSync(process.execPath, [join(repoRoot, 'scripts', 'build.mjs')], { cwd: repoRoot, stdio: 'inherit' });
+  if (built.status !== 0) throw new Error('the bundles did not build');
+  await build({
+    bundle: true,
+    sourcemap: true,
+    platform: 'node',
+    format: 'cjs',
+    target: 'es2022',
+    logLevel: 'warning',
+    entryPoints: [join(here, 'suite', 'index.ts')],
+    outfile: join(repoRoot, 'dist', 'test', 'host', 'index.js'),
+    external: ['vscode', 'mocha'],
+  });
 }
 
 let passed = 0;
