@@ -84,9 +84,6 @@ export class Controller implements vscode.Disposable {
     s.add(vscode.workspace.onDidSaveTextDocument((doc) => this.touch(doc.uri, 'save')));
     // Context keys of the command palette (package.json): the palette's own context has no
     // resource keys, so the host says whether the active editor holds a CSV or TSV.
-    void vscode.commands.executeCommand('setContext', 'knotwise.active', true);
-    this.updateTableContext();
-    s.add(vscode.window.onDidChangeActiveTextEditor(() => this.updateTableContext()));
     s.add(
       vscode.workspace.onDidCloseTextDocument((doc) => {
         // Unsaved edits may have been dropped: the data is the file on disk again. The
@@ -154,12 +151,6 @@ export class Controller implements vscode.Disposable {
       this.fileSettings.set(key, s);
     }
     return s;
-  }
-
-  /** Sets the `knotwise.tableActive` context key: the active text editor shows a CSV or TSV file. */
-  private updateTableContext(): void {
-    const uri = vscode.window.activeTextEditor?.document.uri;
-    void vscode.commands.executeCommand('setContext', 'knotwise.tableActive', uri !== undefined && isTableFile(uri));
   }
 
   /** Sets the `knotwise.tuning` context key (package.json shows Stop Tuning only while it is true). */

@@ -82,6 +82,25 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.locator(`.monaco-workbench.${workbenchClass}`).waitFor({ timeout: 30000 });
   }
 
+  /** The Knotwise commands the command palette lists now (their titles), as a person would see them. */
+  async function paletteCommands(): Promise<string[]> {
+    const input = page.locator('.quick-input-widget input.input');
+    // Give the workbench the keyboard (the panel may have it).
+    await page.locator('.part.sidebar .title-label').first().click();
+    await page.keyboard.press('F1');
+    await input.waitFor();
+    await input.fill('>Knotwise: ');
+    // Every palette lists the walkthrough's command once the filter has applied.
+    await page
+      .getByRole('option', { name: /Knotwise: Open the Demo Data/ })
+      .first()
+      .waitFor();
+    const names = await page.locator('.quick-input-widget .monaco-list-row').evaluateAll((rows) => rows.map((r) => r.getAttribute('aria-label') ?? ''));
+    await page.keyboard.press('Escape');
+    await input.waitFor({ state: 'hidden' });
+    return names.filter((n) => n.startsWith('Knotwise: ')).map((n) => n.replace(/, .*$/, ''));
+  }
+
   /** Waits until the panel shows a finished run newer than `before`. */
   async function newRun(before: number, after: string): Promise<void> {
     // Run ids only grow: a ready panel with another run id shows a newer run.
@@ -355,6 +374,11 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
       .first()
       .click();
     await page.locator('.tab', { hasText: 'Curve review' }).first().waitFor({ state: 'detached' });
+    // With no data file in front, the palette lists only what can act without one.
+    const idle = await paletteCommands();
+    for (const absent of ['Tune a Curve', 'Save Curve Table', 'Stop Tuning', 'Forget the Column Choice']) {
+      assert.ok(!idle.some((n) => n.includes(absent)), `${absent} is not listed with no data file open: ${idle.join(' | ')}`);
+    }
     // Invented seeded readings, only to make a run long enough to stop (no reference value).
     let seed = 987654321;
     const rand = (): number => (seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32;
@@ -373,6 +397,14 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'drift.csv' }).first().waitFor();
     await page.keyboard.press('Enter');
     await page.locator('.tab.active', { hasText: 'drift.csv' }).first().waitFor();
+    const withData = await paletteCommands();
+    for (const present of ['Tune a Curve', 'Save Curve Table', 'Forget the Column Choice']) {
+      assert.ok(
+        withData.some((n) => n.includes(present)),
+        `${present} is listed with a CSV in front: ${withData.join(' | ')}`,
+      );
+    }
+    assert.ok(!withData.some((n) => n.includes('Stop Tuning')), 'Stop Tuning is not listed while nothing runs');
     await page.keyboard.press('F1');
     await input.fill('>Knotwise: Tune a Curve');
     await page
@@ -390,6 +422,10 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.keyboard.press('Enter');
     const toast = page.locator('.notification-toast', { hasText: 'Knotwise: tuning the curve for drift.csv' });
     await toast.waitFor({ timeout: 30000 });
+    assert.ok(
+      (await paletteCommands()).some((n) => n.includes('Stop Tuning')),
+      'Stop Tuning is listed while a run goes on',
+    );
     // The run has read its settings; Run again below takes a quick method.
     writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'gcv' }));
     await toast.getByRole('button', { name: 'Cancel' }).click();
