@@ -4,20 +4,28 @@
  * nothing here passes or fails.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdirSync, writeFileSync, existsSync } from 'node:fs';
+import { createHash } from 'node:crypto';
+import { appendFileSync, copyFileSync, mkdirSync, mkdtempSync, rmSync, utimesSync, writeFileSync, existsSync } from 'node:fs';
+import { readFile, stat } from 'node:fs/promises';
 import { cpus, totalmem } from 'node:os';
-import { join } from 'node:path';
+import { dirname, join, resolve } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { analyse } from '../core/analysis/analysis';
 import { diagnose } from '../core/analysis/diagnose';
 import { fitCurve, prepareData } from '../core/fit/index';
 import { selectColumns } from '../core/ingest/select';
+import { writeOutputs } from '../core/node/outputs';
+import { runPipeline } from '../core/node/pipeline';
 import { readCsvFile } from '../core/node/readCsv';
+import { DEFAULT_OUTPUT, type FitPlan } from '../core/outputs/plan';
+import { RecordScan, type ScanFileSystem } from '../core/outputs/recordScan';
 import { workerRunner } from '../core/node/pool';
 import { RandomStream } from '../core/tune/rng';
 import { buildPanelPayload } from '../core/view/payload';
 
 const ROWS = Number(process.env.KNOTWISE_BENCH_ROWS ?? 1_000_000);
+/** `panel`: only the panel figures; `records`: only the record scan (neither writes bench/results.md). */
+const PART = process.env.KNOTWISE_BENCH_PART;
 const dir = join(__dirname, '..', 'bench', 'tmp');
 const lines: string[] = [];
 const log = (s: string): void => {
@@ -111,8 +119,95 @@ async function timeMedian<T>(label: string, f: () => Promise<T> | T, reps = 3): 
   return out as T;
 }
 
+/** Node's file system as the record scan sees it (the editor's is workspace.fs, extension/records.ts). */
+const nodeScanFs: ScanFileSystem = {
+  stat: async (path) => {
+    try {
+      const st = await stat(path);
+      return { size: st.size, mtime: st.mtimeMs };
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code === 'ENOENT') return undefined;
+      throw e;
+    }
+  },
+  readFile: (path) => readFile(path),
+  resolve: (record, name) => resolve(dirname(record), name),
+};
+
+const RECORD_FOLDERS = 1000;
+const RECORD_ROWS = 10_000;
+const RECORDS_CHANGED = 10;
+
+/**
+ * The cheap check of the editor's record watch (core/outputs/recordScan.ts) over a
+ * workspace of 1,000 folders, each with a 10,000-row CSV, its curve table and its fit
+ * record (one real fit, as `knotwise fit` writes it, copied byte for byte): a first look
+ * with the records written last (nothing needs hashing), a first scan that hashes
+ * everything (the records made older than their files, as after a clone), a scan with
+ * nothing changed, and one after 10 data files changed.
+ */
+async function recordScanTimings(): Promise<void> {
+  const root = mkdtempSync(join(dir, 'records-'));
+  try {
+    const first = join(root, 'f0000');
+    mkdirSync(first);
+    makeCsv(join(first, 'readings.csv'), RECORD_ROWS);
+    const plan: FitPlan = {
+      columns: { x: 'x', y: 'y' },
+      tune: true,
+      options: { kind: 'natural-spline', resample: { kind: 'bootstrap', resamples: 50 }, rule: { kind: 'one-se' }, seed: 1 },
+      output: DEFAULT_OUTPUT,
+    };
+    const run = await runPipeline(join(first, 'readings.csv'), plan, first);
+    const written = writeOutputs(first, run.deliverables.files, join(first, 'readings.csv'), false);
+    // The data first and the record last, in every folder, as Knotwise writes them.
+    const names = ['readings.csv', ...written.map((p) => p.slice(first.length + 1))];
+    const records: string[] = [join(first, names[names.length - 1] as string)];
+    for (let i = 1; i < RECORD_FOLDERS; i++) {
+      const folder = join(root, `f${String(i).padStart(4, '0')}`);
+      mkdirSync(folder);
+      for (const n of names) copyFileSync(join(first, n), join(folder, n));
+      records.push(join(folder, names[names.length - 1] as string));
+    }
+    const sha256 = (bytes: Uint8Array): string => createHash('sha256').update(bytes).digest('hex');
+    const scanAll = async (label: string, scan: RecordScan): Promise<void> => {
+      const before = scan.hashed;
+      let stale = 0;
+      const t0 = performance.now();
+      for (const r of records) {
+        const c = await scan.check(r);
+        if (c.state !== 'record') throw new Error(`${r}: not read as a fit record (${c.state})`);
+        if (c.reasons.length) stale++;
+      }
+      const secs = (performance.now() - t0) / 1000;
+      const files = scan.hashed.files - before.files;
+      const mib = (scan.hashed.bytes - before.bytes) / 2 ** 20;
+      log(`| record scan, ${RECORD_FOLDERS} records of ${RECORD_ROWS}-row CSVs: ${label} | ${secs.toFixed(2)} s (${files} files hashed, ${mib.toFixed(0)} MiB; ${stale} out of date) |`);
+    };
+    const trusting = new RecordScan(nodeScanFs, sha256);
+    await scanAll('first look, records written last', trusting);
+    await scanAll('second look, nothing changed', trusting);
+    // Records older than their files: a first look hashes every data file and table.
+    const anHourAgo = new Date(Date.now() - 3_600_000);
+    for (const r of records) utimesSync(r, anHourAgo, anHourAgo);
+    const scan = new RecordScan(nodeScanFs, sha256);
+    await scanAll('first scan, hashing everything', scan);
+    await scanAll('second scan, nothing changed', scan);
+    for (const r of records.slice(0, RECORDS_CHANGED)) appendFileSync(join(dirname(r), 'readings.csv'), '100.000000,0.000000\n');
+    await scanAll(`after ${RECORDS_CHANGED} data files changed`, scan);
+  } finally {
+    rmSync(root, { recursive: true, force: true });
+  }
+}
+
 async function main(): Promise<void> {
   mkdirSync(dir, { recursive: true });
+  if (PART === 'records') {
+    log('| stage | time |');
+    log('| --- | --- |');
+    await recordScanTimings();
+    return;
+  }
   const csv = join(dir, `bench-${ROWS}.csv`);
   if (!existsSync(csv)) makeCsv(csv, ROWS);
   log(`# Knotwise benchmark`);
@@ -122,7 +217,7 @@ async function main(): Promise<void> {
   log('| stage | time |');
   log('| --- | --- |');
   await panelTimings([100_000, ROWS]);
-  if (process.env.KNOTWISE_BENCH_PART === 'panel') return;
+  if (PART === 'panel') return;
   const table = await timeMedian(`ingest (stream, parse, SHA-256) of ${ROWS} rows`, () => readCsvFile(csv));
   const data = selectColumns(table, { x: 'x', y: 'y' }).data;
   const prepared = prepareData(data);
@@ -141,6 +236,7 @@ async function main(): Promise<void> {
   await time('tuning: 10 natural-spline candidates x 10-fold CV', () =>
     analyse(data, { kind: 'natural-spline', candidates: cands, resample: { kind: 'folds', folds: 10, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }, workerRunner()),
   );
+  await recordScanTimings();
   log(`| peak resident memory of the whole run | ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB |`);
   const r = spawnSync('Rscript', ['--version'], { encoding: 'utf8' });
   if (r.status === 0) {

@@ -4,6 +4,7 @@
  */
 import * as vscode from 'vscode';
 import type { KnotwiseApi, RunSummary, SaveCommandOptions, TuneCommandOptions } from './api';
+import { CHECK_CHANNEL_NAME, CHECK_TABLES_COMMAND, checkCurveTables } from './checkTables';
 import { Controller } from './controller';
 import { isTableFile } from './csvSource';
 import { openDemoData } from './demo';
@@ -17,6 +18,7 @@ export const COMMANDS = {
   stop: 'knotwise.stopTuning',
   forget: 'knotwise.forgetColumns',
   stale: STALE_COMMAND,
+  check: CHECK_TABLES_COMMAND,
   demo: 'knotwise.openDemoData',
 } as const;
 
@@ -52,6 +54,9 @@ export function activate(context: vscode.ExtensionContext): KnotwiseApi {
     }),
   );
   store.add(vscode.commands.registerCommand(COMMANDS.stale, () => controller.records.offer()));
+  // The report's channel is made at the first check, so the output list shows it only after one.
+  let checkOutput: vscode.OutputChannel | undefined;
+  store.add(vscode.commands.registerCommand(COMMANDS.check, () => checkCurveTables(controller.records, (checkOutput ??= store.add(vscode.window.createOutputChannel(CHECK_CHANNEL_NAME))))));
   store.add(vscode.commands.registerCommand(COMMANDS.demo, () => openDemoData(context.extensionUri)));
   context.subscriptions.push(store);
   return controller.api();

@@ -1,35 +1,35 @@
 /**
  * Every fit record in the workspace, watched: a record is out of date when its data file
  * or one of its outputs (the curve table and any other file it lists) is no longer the
- * bytes whose SHA-256 it names. The check is cheap: a file's size and modification time
- * first, and its bytes are hashed only when those are new; the first look at a record
- * hashes only files newer than the record itself (Knotwise writes the record last).
- * Records out of date get a Problems entry on the record file and count in a status bar
- * item, whose command offers to refit and save, open the review, or show what changed.
- * The scan starts after activation, off the activation path; watchers follow the records
- * and the files they name.
+ * bytes whose SHA-256 it names. The check is cheap (core/outputs/recordScan.ts, here on
+ * workspace.fs): a file's size and modification time first, and its bytes are hashed only
+ * when those are new; the first look at a record hashes only files newer than the record
+ * itself (Knotwise writes the record last). Records out of date get a Problems entry on the
+ * record file and count in a status bar item, whose command offers to refit and save, open
+ * the review, or show what changed (the full check of extension/checkTables.ts). The scan
+ * starts after activation, off the activation path; watchers follow the records and the
+ * files they name.
  */
 import * as vscode from 'vscode';
-import { RECORD_FORMAT } from '../core/outputs/record';
+import { RecordScan, type RecordFiles, type RecordRead, type ScanFileSystem } from '../core/outputs/recordScan';
+import { fullCheck, needsDisk, showCheck } from './checkTables';
 import { isNotFound, sha256 } from './csvSource';
 import { DisposableStore } from './disposables';
 
 /** The command of the status bar item (also in package.json). */
 export const STALE_COMMAND = 'knotwise.showStaleTables';
 
-/** Where a record's files are and which bytes it names. */
-interface RecordFiles {
-  readonly data: { readonly uri: vscode.Uri; readonly name: string; readonly sha256: string };
-  readonly outputs: readonly { readonly uri: vscode.Uri; readonly name: string; readonly sha256: string }[];
-  /** The columns as recorded (for a refit from the editor). */
-  readonly columns: { readonly x: string; readonly y: string; readonly weights?: string; readonly trials?: string };
-}
+/** A sentence's text with its first letter in capitals. */
+const capitalised = (text: string): string => text.charAt(0).toUpperCase() + text.slice(1);
+
+/** Folders the search for records leaves out. */
+const RECORD_SEARCH_EXCLUDE = '**/{node_modules,.*}/**';
 
 /** What the watch knows of one record. */
 interface Entry {
   files: RecordFiles | undefined;
   /** Why the record is out of date (empty: current). */
-  reasons: string[];
+  reasons: readonly string[];
 }
 
 /** A stale record as the API shows it. */
@@ -44,44 +44,27 @@ export function staleText(n: number): string | undefined {
   return n === 0 ? undefined : `$(warning) ${n} curve table${n === 1 ? '' : 's'} out of date`;
 }
 
-/** A path from a record ('/'-separated, relative to the record's folder, or absolute) as a URI. */
-function resolvePath(folder: vscode.Uri, path: string): vscode.Uri {
-  return path.startsWith('/') ? folder.with({ path }) : vscode.Uri.joinPath(folder, path);
-}
-
-const isText = (v: unknown): v is string => typeof v === 'string' && v.length > 0 && v.length < 4096;
-
-/** The files a record names, or undefined when the bytes are not a Knotwise fit record. */
-export function recordFiles(recordUri: vscode.Uri, bytes: Uint8Array): RecordFiles | undefined {
-  let rec: unknown;
-  try {
-    rec = JSON.parse(new TextDecoder().decode(bytes));
-  } catch {
-    return undefined;
-  }
-  const o = rec as { format?: unknown; data?: Record<string, unknown>; table?: Record<string, unknown>; outputs?: unknown };
-  if (typeof o !== 'object' || o === null || o.format !== RECORD_FORMAT || !o.data || !o.table) return undefined;
-  const { data, table } = o;
-  if (!isText(data.path) || !isText(data.sha256) || !isText(table.file) || !isText(table.sha256)) return undefined;
-  const folder = vscode.Uri.joinPath(recordUri, '..');
-  const outputs = [{ file: table.file, sha256: table.sha256 }, ...(Array.isArray(o.outputs) ? (o.outputs as { file?: unknown; sha256?: unknown }[]) : [])]
-    .filter((e): e is { file: string; sha256: string } => isText(e.file) && isText(e.sha256) && !e.file.includes('..') && !e.file.startsWith('/'))
-    .map((e) => ({ uri: vscode.Uri.joinPath(folder, e.file), name: e.file, sha256: e.sha256 }));
-  const cols = (data.columns ?? {}) as Record<string, unknown>;
-  if (!isText(cols.x) || !isText(cols.y)) return undefined;
-  return {
-    data: { uri: resolvePath(folder, data.path), name: data.path, sha256: data.sha256 },
-    outputs,
-    columns: { x: cols.x, y: cols.y, ...(isText(cols.weights) ? { weights: cols.weights } : {}), ...(isText(cols.trials) ? { trials: cols.trials } : {}) },
-  };
-}
-
-/** The size, modification time and (once read) SHA-256 of a file. */
-interface Stamp {
-  readonly size: number;
-  readonly mtime: number;
-  sha256?: string;
-}
+/**
+ * The workspace file system as the record scan sees it: paths are URIs as text, and a name
+ * from a record is placed relative to the record's folder (or, starting with '/', as a path
+ * in the record's scheme and authority).
+ */
+const workspaceScanFs: ScanFileSystem = {
+  stat: async (path) => {
+    try {
+      const st = await vscode.workspace.fs.stat(vscode.Uri.parse(path));
+      return { size: st.size, mtime: st.mtime };
+    } catch (err) {
+      if (isNotFound(err)) return undefined;
+      throw err;
+    }
+  },
+  readFile: async (path) => vscode.workspace.fs.readFile(vscode.Uri.parse(path)),
+  resolve: (record, name) => {
+    const folder = vscode.Uri.joinPath(vscode.Uri.parse(record), '..');
+    return (name.startsWith('/') ? folder.with({ path: name }) : vscode.Uri.joinPath(folder, name)).toString();
+  },
+};
 
 /** Watches the workspace's fit records. */
 export class RecordWatch implements vscode.Disposable {
@@ -89,7 +72,7 @@ export class RecordWatch implements vscode.Disposable {
   private readonly diagnostics = this.store.add(vscode.languages.createDiagnosticCollection('knotwise-records'));
   private readonly status = this.store.add(vscode.window.createStatusBarItem('knotwise.staleTables', vscode.StatusBarAlignment.Left, 50));
   private readonly entries = new Map<string, Entry>();
-  private readonly stamps = new Map<string, Stamp>();
+  private readonly scan = new RecordScan(workspaceScanFs, sha256);
   /** Per-file watchers of the files records name, by URI. */
   private readonly fileWatchers = new Map<string, vscode.Disposable>();
   /** Records naming each watched file, by the file's URI. */
@@ -111,9 +94,22 @@ export class RecordWatch implements vscode.Disposable {
     this.store.add(w.onDidCreate((u) => this.enqueue(u)));
     this.store.add(w.onDidChange((u) => this.enqueue(u)));
     this.store.add(w.onDidDelete((u) => this.forget(u)));
-    void vscode.workspace.findFiles(this.recordGlob(), '**/{node_modules,.*}/**').then((found) => {
+    void this.findRecords().then((found) => {
       for (const u of found) this.enqueue(u);
     });
+  }
+
+  /** Every fit record in the workspace (the glob of the watch), in order of their URIs. */
+  async findRecords(): Promise<vscode.Uri[]> {
+    const found = await vscode.workspace.findFiles(this.recordGlob(), RECORD_SEARCH_EXCLUDE);
+    return found.sort((a, b) => a.toString().localeCompare(b.toString()));
+  }
+
+  /** Checks these records again (starting the watch if need be); resolves when every check queued so far is done. */
+  refresh(records: readonly vscode.Uri[]): Promise<void> {
+    this.start();
+    for (const u of records) this.enqueue(u);
+    return this.settled();
   }
 
   /** Records out of date, in order of their URIs. */
@@ -121,7 +117,7 @@ export class RecordWatch implements vscode.Disposable {
     return [...this.entries.entries()]
       .filter(([, e]) => e.reasons.length > 0 && e.files)
       .sort(([a], [b]) => a.localeCompare(b))
-      .map(([k, e]) => ({ record: k, data: (e.files as RecordFiles).data.uri.toString(), reasons: [...e.reasons] }));
+      .map(([k, e]) => ({ record: k, data: (e.files as RecordFiles).data.path, reasons: [...e.reasons] }));
   }
 
   /** The status bar item's text (undefined while hidden). */
@@ -142,63 +138,26 @@ export class RecordWatch implements vscode.Disposable {
   private forget(recordUri: vscode.Uri): void {
     const key = recordUri.toString();
     this.entries.delete(key);
+    this.scan.forget(key);
     this.diagnostics.delete(recordUri);
     for (const set of this.namedBy.values()) set.delete(key);
     this.render();
-  }
-
-  /** A file's stamp now, or undefined when it is missing. */
-  private async stampOf(uri: vscode.Uri): Promise<Stamp | undefined> {
-    try {
-      const st = await vscode.workspace.fs.stat(uri);
-      const key = uri.toString();
-      const known = this.stamps.get(key);
-      if (known && known.size === st.size && known.mtime === st.mtime) return known;
-      const fresh: Stamp = { size: st.size, mtime: st.mtime };
-      this.stamps.set(key, fresh);
-      return fresh;
-    } catch (err) {
-      if (isNotFound(err)) return undefined;
-      throw err;
-    }
-  }
-
-  /** The SHA-256 of a file with this stamp, read once per stamp. */
-  private async hashOf(uri: vscode.Uri, stamp: Stamp): Promise<string> {
-    stamp.sha256 ??= sha256(await vscode.workspace.fs.readFile(uri));
-    return stamp.sha256;
   }
 
   /** Checks one record: its data and outputs against the SHA-256s it names. */
   private async check(recordUri: vscode.Uri): Promise<void> {
     if (this.disposed) return;
     const key = recordUri.toString();
-    let bytes: Uint8Array;
-    let recordStamp: Stamp | undefined;
+    let read: RecordRead;
     try {
-      recordStamp = await this.stampOf(recordUri);
-      if (!recordStamp) return this.forget(recordUri);
-      bytes = await vscode.workspace.fs.readFile(recordUri);
+      read = await this.scan.read(key);
     } catch {
       return;
     }
-    const files = recordFiles(recordUri, bytes);
-    if (!files) return this.forget(recordUri);
-    const reasons: string[] = [];
-    const first = !this.entries.has(key);
-    const look = async (f: { uri: vscode.Uri; name: string; sha256: string }, what: string): Promise<void> => {
-      this.watchFile(f.uri, key);
-      const st = await this.stampOf(f.uri);
-      if (!st) {
-        reasons.push(`${what} ${f.name} is missing`);
-        return;
-      }
-      // A first look hashes only files changed after the record was written (Knotwise writes the record last).
-      if (first && st.sha256 === undefined && st.mtime <= recordStamp.mtime) return;
-      if ((await this.hashOf(f.uri, st)) !== f.sha256) reasons.push(`${what} ${f.name} changed since the record was written (its SHA-256 differs)`);
-    };
-    await look(files.data, 'the data');
-    for (const [i, o] of files.outputs.entries()) await look(o, i === 0 ? 'the curve table' : 'the output');
+    if (read.state !== 'record') return this.forget(recordUri);
+    const { files, bytes } = read;
+    for (const f of [files.data, ...files.outputs]) this.watchFile(vscode.Uri.parse(f.path), key);
+    const reasons = await this.scan.compare(read);
     this.entries.set(key, { files, reasons });
     if (reasons.length === 0) this.diagnostics.delete(recordUri);
     else {
@@ -278,14 +237,31 @@ export class RecordWatch implements vscode.Disposable {
       title: `Knotwise: ${vscode.workspace.asRelativePath(vscode.Uri.parse(pick.record))}`,
       placeHolder: pick.reasons.join('; '),
     });
-    if (action === refit) await vscode.commands.executeCommand('knotwise.saveCurveTable', files.data.uri, { columns: files.columns });
-    else if (action === open) await vscode.commands.executeCommand('knotwise.tuneCurve', files.data.uri, { columns: files.columns });
-    else if (action === show) {
-      void vscode.window.showInformationMessage(`Knotwise: ${vscode.workspace.asRelativePath(vscode.Uri.parse(pick.record))} is out of date.`, {
+    const data = vscode.Uri.parse(files.data.path);
+    if (action === refit) await vscode.commands.executeCommand('knotwise.saveCurveTable', data, { columns: files.columns });
+    else if (action === open) await vscode.commands.executeCommand('knotwise.tuneCurve', data, { columns: files.columns });
+    else if (action === show) await this.showWhatChanged(vscode.Uri.parse(pick.record), pick.reasons);
+  }
+
+  /**
+   * What changed in one record: on disk the full check (every output rebuilt from the data
+   * and the recorded spec, compared byte for byte) with a progress notification, then its
+   * messages; elsewhere the cheap reasons, saying why that is all.
+   */
+  private async showWhatChanged(recordUri: vscode.Uri, reasons: readonly string[]): Promise<void> {
+    const shown = vscode.workspace.asRelativePath(recordUri);
+    if (recordUri.scheme !== 'file') {
+      void vscode.window.showInformationMessage(`Knotwise: ${shown} is out of date.`, {
         modal: true,
-        detail: pick.reasons.map((r) => `• ${r}`).join('\n'),
+        detail: [...reasons.map((r) => `• ${r}`), '', `${capitalised(needsDisk(recordUri))}.`].join('\n'),
       });
+      return;
     }
+    const result = await vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title: `Knotwise: checking ${shown} (rebuilding every output from the data)` }, () =>
+      fullCheck(recordUri),
+    );
+    await this.refresh([recordUri]);
+    void showCheck(result);
   }
 
   dispose(): void {

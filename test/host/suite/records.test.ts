@@ -2,11 +2,13 @@
  * Fit records in the workspace, watched: a record whose data or curve table is no longer
  * the bytes it names is marked in the Problems panel (on the record file) and counted in
  * the status bar; saving again from the editor clears it. Data: R's `cars` (Ezekiel 1930;
- * test/e2e/fixtures/make-fixtures.R), copied under a new name.
+ * test/e2e/fixtures/make-fixtures.R), copied under a new name. The command Check Every
+ * Curve Table rebuilds each record's outputs and says which are current.
  */
 import assert from 'node:assert/strict';
 import * as vscode from 'vscode';
 import type { RunSummary, StaleRecordView } from '../../../extension/api';
+import type { RecordCheckView } from '../../../extension/checkTables';
 import { staleText } from '../../../extension/records';
 import { api, closeEverything, EXTENSION_ID, file, text, waitFor, writeText } from './helpers';
 
@@ -81,5 +83,48 @@ describe('fit records in the workspace', function () {
       for (const u of [data, record, table]) await vscode.workspace.fs.delete(u).then(undefined, () => undefined);
     }
     await waitFor('a deleted record to be forgotten', async () => ((await staleEntry(record)) === undefined && entries(record).length === 0 ? true : undefined));
+  });
+
+  it('Check Every Curve Table in the Workspace rebuilds every record: one whose data changed is out of date with what changed, one untouched is current', async function () {
+    const made = (stem: string) => ({ data: file(`${stem}.csv`), record: file(`${stem}.fit.json`), table: file(`${stem}.curve.csv`) });
+    const stale = made('check-stale');
+    const current = made('check-current');
+    try {
+      for (const f of [stale, current]) {
+        await vscode.workspace.fs.copy(file('cars.csv'), f.data, { overwrite: true });
+        await save(f.data);
+      }
+      await closeEverything();
+      const before = await text(stale.data);
+      const rows = before.trim().split('\n').length - 1;
+      await writeText(stale.data, before + '26,95\n');
+
+      const results = (await vscode.commands.executeCommand('knotwise.checkCurveTables')) as RecordCheckView[];
+      const checked = results.map((r) => r.record);
+      for (const f of [stale, current]) assert.equal(checked.filter((r) => r === f.record.toString()).length, 1, `${f.record.path} is checked once`);
+
+      const changed = results.find((r) => r.record === stale.record.toString());
+      assert.equal(changed?.status, 'changed', JSON.stringify(changed));
+      const [first, ...rest] = changed.messages;
+      // Rebuilt from the data: the new row counts, and any change of the chosen df is said.
+      assert.match(first ?? '', new RegExp(`^data check-stale\\.csv changed: SHA-256 was [0-9a-f]{16}\\.\\.\\., now [0-9a-f]{16}\\.\\.\\.; rows used ${rows}, now ${rows + 1}$`));
+      for (const m of rest.filter((m) => m.startsWith('the chosen df'))) assert.match(m, /^the chosen df would change from \d+ to \d+$/);
+      assert.ok(
+        rest.some((m) => m.startsWith('check-stale.fit.json differs from the rebuilt record')),
+        rest.join('\n'),
+      );
+      assert.match(changed.update ?? '', /^knotwise fit check-stale\.csv --x /);
+
+      const fine = results.find((r) => r.record === current.record.toString());
+      assert.equal(fine?.status, 'current', JSON.stringify(fine));
+      assert.deepEqual(fine.messages, []);
+      assert.equal(fine.update, undefined);
+
+      // The watch's entries are checked again: the changed record is listed, the current one is not.
+      assert.deepEqual((await staleEntry(stale.record))?.reasons, ['the data check-stale.csv changed since the record was written (its SHA-256 differs)']);
+      assert.equal(await staleEntry(current.record), undefined);
+    } finally {
+      for (const f of [stale, current]) for (const u of [f.data, f.record, f.table]) await vscode.workspace.fs.delete(u).then(undefined, () => undefined);
+    }
   });
 });
