@@ -8,7 +8,7 @@ import type { FitResult } from '../types';
 import { RowBasisCurve } from './linearFit';
 import { fitNaturalSpline } from './naturalSpline';
 import type { PreparedData } from './prepared';
-import { summariseFit } from './summary';
+import { dataTotals, summariseLazily } from './summary';
 
 /**
  * Natural cubic regression splines at several df at once, for tuning. One pass of per-cell
@@ -16,9 +16,11 @@ import { summariseFit } from './summary';
  * matrix (docs/design.md, "Power sums"); fitted values and leverage then come from the cell cubics in
  * O(n) per candidate without evaluating B-splines row by row. y is centred at its weighted
  * mean before the sums are taken (and the mean added back), as fitNaturalSpline does. The
- * results equal fitNaturalSpline up to rounding. Returns each df's fit, or the FitError that
+ * results equal fitNaturalSpline up to rounding. Each fit's per-row arrays (fitted values,
+ * residuals, leverage and what follows from them) are built when first read: usually only
+ * the chosen candidate's are. Returns each df's fit, or the FitError that
  * skipped it (with fitNaturalSpline's account of what the data lacks).
- * Cost O(n) + candidates x O(n).
+ * Cost O(n) + candidates x O(n) (one cubic per row), and O(n) more for each fit whose rows are read.
  * Example: fitNaturalSplineBatch(prepareData({ x, y }), [2, 4, 8]).get(4) // a FitResult, or the FitError that skipped df 4
  */
 export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly number[]): Map<number, FitResult | FitError> {
@@ -46,7 +48,7 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
   const offset = centringOffset(y, w);
   const sums = new Float64Array((cells.breaks.length - 1) * SUMS_PER_CELL);
   for (let i = 0; i < n; i++) accumulateRow(sums, cells.cell[i] as number, cells.t[i] as number, (y[i] as number) - offset, w ? (w[i] as number) : 1);
-  const buf = new Float64Array(4);
+  const totals = dataTotals(data);
   for (const { df, knots, basis } of specs) {
     const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
     const model = new SplineFromSums(cells, basis, z, `natural spline with df ${df}`);
@@ -56,32 +58,44 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
       continue;
     }
     const cov = model.covariance();
-    const p = basis.size;
-    const fitted = new Float64Array(n);
-    const residuals = new Float64Array(n);
-    const leverage = new Float64Array(n);
+    const fitPoly = Float64Array.from(model.fitPoly);
+    // The residual sum of squares row by row (the sums' subtraction would lose digits when the fit is close).
+    let rss = 0;
     for (let i = 0; i < n; i++) {
-      const c = cells.cell[i] as number;
+      const o = (cells.cell[i] as number) * 4;
       const t = cells.t[i] as number;
-      const f = model.valueAt(c, t);
-      fitted[i] = offset + f;
-      residuals[i] = (y[i] as number) - offset - f;
-      const first = model.basisAt(c, t, buf);
-      let h = 0;
-      for (let a = 0; a < 4; a++) {
-        const off = (first + a) * p + first;
-        const s =
-          (cov[off] as number) * (buf[0] as number) + (cov[off + 1] as number) * (buf[1] as number) + (cov[off + 2] as number) * (buf[2] as number) + (cov[off + 3] as number) * (buf[3] as number);
-        h += (buf[a] as number) * s;
-      }
-      leverage[i] = (w ? (w[i] as number) : 1) * h;
+      const f = (fitPoly[o] as number) + t * ((fitPoly[o + 1] as number) + t * ((fitPoly[o + 2] as number) + t * (fitPoly[o + 3] as number)));
+      const r = (y[i] as number) - offset - f;
+      rss += (w ? (w[i] as number) : 1) * r * r;
     }
     const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, model.theta, cov, z, offset);
     const coefficients = model.theta.map((c) => c + offset);
-    out.set(
-      df,
-      summariseFit(data, { kind: 'natural-spline', df, curve, coefficients, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), fitted, residuals, leverage, notes: knots.notes }),
-    );
+    const rows = (): { fitted: Float64Array; residuals: Float64Array; leverage: Float64Array } => {
+      const p = basis.size;
+      const buf = new Float64Array(4);
+      const fitted = new Float64Array(n);
+      const residuals = new Float64Array(n);
+      const leverage = new Float64Array(n);
+      for (let i = 0; i < n; i++) {
+        const c = cells.cell[i] as number;
+        const t = cells.t[i] as number;
+        const o = c * 4;
+        const f = (fitPoly[o] as number) + t * ((fitPoly[o + 1] as number) + t * ((fitPoly[o + 2] as number) + t * (fitPoly[o + 3] as number)));
+        fitted[i] = offset + f;
+        residuals[i] = (y[i] as number) - offset - f;
+        const first = model.basisAt(c, t, buf);
+        let h = 0;
+        for (let a = 0; a < 4; a++) {
+          const off = (first + a) * p + first;
+          const s =
+            (cov[off] as number) * (buf[0] as number) + (cov[off + 1] as number) * (buf[1] as number) + (cov[off + 2] as number) * (buf[2] as number) + (cov[off + 3] as number) * (buf[3] as number);
+          h += (buf[a] as number) * s;
+        }
+        leverage[i] = (w ? (w[i] as number) : 1) * h;
+      }
+      return { fitted, residuals, leverage };
+    };
+    out.set(df, summariseLazily(data, { kind: 'natural-spline', df, curve, coefficients, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), rss, rows, notes: knots.notes }, totals));
   }
   return out;
 }

@@ -1,5 +1,6 @@
 import { InputError } from '../errors';
 import type { XYData } from '../types';
+import { orderByX } from '../stats/orderByX';
 
 /** Largest magnitude accepted for y: squares and cross products of y must stay finite. */
 export const MAX_MAGNITUDE = 1e150;
@@ -56,7 +57,10 @@ export function prepareData(data: XYData): PreparedData {
         throw new InputError(`weight ${wi} is too small to fit (weights from ${MIN_WEIGHT} up are supported; only their ratios matter, so rescale the column)`, { line, column: 'weights' });
     }
   }
-  const sortedX = Float64Array.from(x).sort();
+  // The sorted values through the order the tuning and the checks share (+ 0 writes -0 as 0, equal anyway).
+  const order = orderByX(x);
+  const sortedX = new Float64Array(n);
+  for (let k = 0; k < n; k++) sortedX[k] = (x[order[k] as number] as number) + 0;
   let distinct = 1;
   for (let i = 1; i < n; i++) if (sortedX[i] !== sortedX[i - 1]) distinct++;
   const spread = (sortedX[n - 1] as number) - (sortedX[0] as number);

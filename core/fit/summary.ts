@@ -35,80 +35,159 @@ export interface SolvedFit {
  * Cost O(n).
  */
 export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
-  const { x, y, w } = data;
+  const { x, y } = data;
   const n = x.length;
-  const df = solved.df;
   let residuals = solved.residuals;
   if (!residuals) {
     residuals = new Float64Array(n);
     for (let i = 0; i < n; i++) residuals[i] = (y[i] as number) - (solved.fitted[i] as number);
   }
-  const cooks = new Float64Array(n);
+  const r = residuals;
+  const totals = dataTotals(data);
   let rss = 0;
+  for (let i = 0; i < n; i++) {
+    const ri = r[i] as number;
+    rss += (data.w ? (data.w[i] as number) : 1) * ri * ri;
+  }
+  const stats = fitStatistics(n, solved.df, rss, totals);
+  const rows = rowStatistics(data, solved.df, stats.sigma * stats.sigma, r, solved.leverage);
+  return {
+    ...baseOf(solved, n, stats),
+    fitted: solved.fitted,
+    residuals: r,
+    leverage: solved.leverage,
+    cooksDistance: rows.cooks,
+    looRmse: rows.looRmse,
+    notes: rows.looInfinite ? [...solved.notes, LOO_INFINITE_NOTE] : [...solved.notes],
+  };
+}
+
+/** What a solver that keeps no per-row arrays hands to `summariseLazily`. */
+export interface CompactFit extends Omit<SolvedFit, 'fitted' | 'residuals' | 'leverage'> {
+  /** Weighted residual sum of squares. */
+  readonly rss: number;
+  /** Fitted values, residuals and hat diagonal, built when first asked for. */
+  readonly rows: () => { readonly fitted: Float64Array; readonly residuals: Float64Array; readonly leverage: Float64Array };
+}
+
+/**
+ * The fit as summariseFit would return it, with the per-row arrays (fitted, residuals,
+ * leverage, Cook's distance) and what needs them (the leave-one-out RMSE, its note) built
+ * on first access: tuning fits every candidate, and only the chosen one's rows are usually
+ * looked at. `totals` are the data's, shared by every candidate (dataTotals). Same values as
+ * summariseFit given the same residual sum of squares.
+ */
+export function summariseLazily(data: XYData, solved: CompactFit, totals: DataTotals): FitResult {
+  const n = data.x.length;
+  const stats = fitStatistics(n, solved.df, solved.rss, totals);
+  let rows: { fitted: Float64Array; residuals: Float64Array; leverage: Float64Array; cooks: Float64Array; looRmse: number; looInfinite: boolean } | undefined;
+  const built = (): NonNullable<typeof rows> => {
+    if (!rows) {
+      const r = solved.rows();
+      rows = { ...r, ...rowStatistics(data, solved.df, stats.sigma * stats.sigma, r.residuals, r.leverage) };
+    }
+    return rows;
+  };
+  const fit = baseOf(solved, n, stats);
+  return Object.defineProperties(fit, {
+    fitted: { get: () => built().fitted, enumerable: true },
+    residuals: { get: () => built().residuals, enumerable: true },
+    leverage: { get: () => built().leverage, enumerable: true },
+    cooksDistance: { get: () => built().cooks, enumerable: true },
+    looRmse: { get: () => built().looRmse, enumerable: true },
+    notes: { get: () => (built().looInfinite ? [...solved.notes, LOO_INFINITE_NOTE] : [...solved.notes]), enumerable: true },
+  }) as FitResult;
+}
+
+const LOO_INFINITE_NOTE = 'Some rows have leverage 1, so their leave-one-out error is undefined; the leave-one-out RMSE is reported as infinite.';
+
+/** Totals of the data that every fit of it shares: rows' weight, log weights, total sum of squares. */
+export interface DataTotals {
+  readonly sw: number;
+  readonly sumLogW: number;
+  readonly tss: number;
+}
+
+/** The data's totals (O(n)). */
+export function dataTotals(data: XYData): DataTotals {
+  const { y, w } = data;
+  const n = y.length;
   let sw = 0;
   let swy = 0;
   let sumLogW = 0;
   for (let i = 0; i < n; i++) {
     const wi = w ? (w[i] as number) : 1;
-    const r = residuals[i] as number;
-    rss += wi * r * r;
     sw += wi;
     swy += wi * (y[i] as number);
     if (w) sumLogW += Math.log(wi);
   }
   const ybar = swy / sw;
   let tss = 0;
-  let loo = 0;
-  let looInfinite = false;
   for (let i = 0; i < n; i++) {
-    const wi = w ? (w[i] as number) : 1;
     const d = (y[i] as number) - ybar;
-    tss += wi * d * d;
-    const h = solved.leverage[i] as number;
-    const r = residuals[i] as number;
-    if (1 - h <= 1e-10) {
-      if (Math.abs(r) > 0) looInfinite = true;
-    } else {
-      const e = r / (1 - h);
-      loo += wi * e * e;
-    }
+    tss += (w ? (w[i] as number) : 1) * d * d;
   }
+  return { sw, sumLogW, tss };
+}
+
+/** The statistics that follow from the residual sum of squares (formulas above). */
+function fitStatistics(n: number, df: number, rss: number, totals: DataTotals) {
   const residualDf = n - df;
   const sigma2 = residualDf > 0 ? rss / residualDf : NaN;
-  for (let i = 0; i < n; i++) {
-    const wi = w ? (w[i] as number) : 1;
-    const h = solved.leverage[i] as number;
-    const r = residuals[i] as number;
-    cooks[i] = 1 - h <= 1e-10 ? NaN : (wi * r * r * h) / (df * sigma2 * (1 - h) * (1 - h));
-  }
-  const logLik = 0.5 * (sumLogW - n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(rss)));
+  const logLik = 0.5 * (totals.sumLogW - n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(rss)));
   const k = df + 1;
   const aic = -2 * logLik + 2 * k;
-  const notes = [...solved.notes];
-  if (looInfinite) notes.push('Some rows have leverage 1, so their leave-one-out error is undefined; the leave-one-out RMSE is reported as infinite.');
   return {
-    kind: solved.kind,
-    df,
-    n,
     residualDf,
-    curve: solved.curve,
-    coefficients: solved.coefficients,
-    knots: solved.knots,
-    fitted: solved.fitted,
-    residuals,
-    leverage: solved.leverage,
-    cooksDistance: cooks,
     rss,
     sigma: Math.sqrt(sigma2),
-    r2: tss > 0 ? 1 - rss / tss : NaN,
+    r2: totals.tss > 0 ? 1 - rss / totals.tss : NaN,
     logLik,
     aic,
     aicc: n - k - 1 > 0 ? aic + (2 * k * (k + 1)) / (n - k - 1) : Infinity,
     bic: -2 * logLik + Math.log(n) * k,
-    looRmse: looInfinite ? Infinity : Math.sqrt(loo / sw),
     gcv: rss / n / ((1 - df / n) * (1 - df / n)),
+    sw: totals.sw,
+  };
+}
+
+/** Cook's distances and the exact leave-one-out RMSE (formulas above). */
+function rowStatistics(data: XYData, df: number, sigma2: number, residuals: Float64Array, leverage: Float64Array): { cooks: Float64Array; looRmse: number; looInfinite: boolean } {
+  const w = data.w;
+  const n = residuals.length;
+  const cooks = new Float64Array(n);
+  let loo = 0;
+  let sw = 0;
+  let looInfinite = false;
+  for (let i = 0; i < n; i++) {
+    const wi = w ? (w[i] as number) : 1;
+    const h = leverage[i] as number;
+    const r = residuals[i] as number;
+    sw += wi;
+    if (1 - h <= 1e-10) {
+      if (Math.abs(r) > 0) looInfinite = true;
+      cooks[i] = NaN;
+    } else {
+      const e = r / (1 - h);
+      loo += wi * e * e;
+      cooks[i] = (wi * r * r * h) / (df * sigma2 * (1 - h) * (1 - h));
+    }
+  }
+  return { cooks, looRmse: looInfinite ? Infinity : Math.sqrt(loo / sw), looInfinite };
+}
+
+/** The fields every summary shares, from the solver and the statistics. */
+function baseOf(solved: Omit<SolvedFit, 'fitted' | 'residuals' | 'leverage'>, n: number, stats: ReturnType<typeof fitStatistics>) {
+  const { sw: _sw, ...numbers } = stats;
+  return {
+    kind: solved.kind,
+    df: solved.df,
+    n,
+    curve: solved.curve,
+    coefficients: solved.coefficients,
+    knots: solved.knots,
+    ...numbers,
     ...(solved.lambda !== undefined ? { lambda: solved.lambda } : {}),
     ...(solved.lambdaScaled !== undefined ? { lambdaScaled: solved.lambdaScaled } : {}),
-    notes,
   };
 }

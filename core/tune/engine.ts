@@ -76,6 +76,13 @@ export class ResampleEngine {
     this.cells = built.cells;
     this.models = built.models;
     const cellCount = this.cells ? this.cells.breaks.length - 1 : 0;
+    if (this.models) {
+      const C = this.models.length;
+      this.trained = new Uint8Array(C);
+      this.sae = new Float64Array(C);
+      this.maxAbs = new Float64Array(C);
+      this.polys = new Float64Array(cellCount * C * 4);
+    }
     this.sums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
     this.testSums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
     const cells = this.cells;
@@ -132,22 +139,48 @@ export class ResampleEngine {
     const C = this.trainers.length;
     let wTest = 0;
     for (let j = 0; j < nTest; j++) wTest += w ? (w[testIdx[j] as number] as number) : 1;
+    const models = this.models;
+    if (models) {
+      // The natural-spline hot path: every candidate's fit from the training sums, its squared
+      // error from the test sums, and the absolute errors of all candidates in one pass over the test rows.
+      const trained = this.trained;
+      for (let k = 0; k < C; k++) trained[k] = nTest > 0 && (this.trainers[k] as Trainer).train(weights, this.sums) ? 1 : 0;
+      this.absoluteErrorsFromCells(models, nTest);
+      for (let k = 0; k < C; k++) {
+        if (trained[k] === 0) {
+          out[k] = out[C + k] = out[2 * C + k] = out[3 * C + k] = NaN;
+          continue;
+        }
+        const sse = (models[k] as SplineFromSums).sse(this.testSums as Float64Array);
+        out[k] = this.yscale * Math.sqrt(sse / wTest);
+        out[C + k] = (this.yscale * (this.sae[k] as number)) / wTest;
+        out[2 * C + k] = this.yscale * (this.maxAbs[k] as number);
+        out[3 * C + k] = (this.yscale * this.yscale * sse) / wTest;
+      }
+      return;
+    }
     for (let k = 0; k < C; k++) {
       const tr = this.trainers[k] as Trainer;
       if (nTest === 0 || !tr.train(weights, this.sums)) {
         out[k] = out[C + k] = out[2 * C + k] = out[3 * C + k] = NaN;
         continue;
       }
-      const m = this.models?.[k];
-      const acc = m ? this.testErrorsFromCells(m.fitPoly, nTest) : this.testErrors(tr, nTest);
-      const sse = m ? m.sse(this.testSums as Float64Array) : acc.sse;
-      out[k] = this.yscale * Math.sqrt(sse / wTest);
+      const acc = this.testErrors(tr, nTest);
+      out[k] = this.yscale * Math.sqrt(acc.sse / wTest);
       out[C + k] = (this.yscale * acc.sae) / wTest;
       out[2 * C + k] = this.yscale * acc.maxAbs;
       // Mean deviance per unit weight of the held-out rows (docs/design.md, "Errors"); Gaussian: mean squared error.
-      out[3 * C + k] = tr.scoring ? this.testDeviance(tr, nTest) / wTest : (this.yscale * this.yscale * sse) / wTest;
+      out[3 * C + k] = tr.scoring ? this.testDeviance(tr, nTest) / wTest : (this.yscale * this.yscale * acc.sse) / wTest;
     }
   }
+
+  /** Per candidate: 1 when it was fitted in this resample (the hot path). */
+  private readonly trained = new Uint8Array(0);
+  /** Per candidate: weighted sum of absolute test errors and the largest one (the hot path). */
+  private readonly sae = new Float64Array(0);
+  private readonly maxAbs = new Float64Array(0);
+  /** The cubics of every candidate, cell-major: polys[(cell * C + k) * 4 + p] (the hot path). */
+  private readonly polys = new Float64Array(0);
 
   private readonly acc = { sae: 0, sse: 0, maxAbs: 0 };
 
@@ -186,27 +219,42 @@ export class ResampleEngine {
     return this.acc;
   }
 
-  /** Absolute errors on the test rows from per-cell cubics (the natural-spline hot path). */
-  private testErrorsFromCells(fp: Float64Array, nTest: number): { sae: number; sse: number; maxAbs: number } {
-    const { testIdx, yc } = this;
+  /**
+   * Absolute errors on the test rows of every trained candidate, from the per-cell cubics,
+   * in one pass over the rows: each row is read once and its cell's cubics of all
+   * candidates lie side by side (the natural-spline hot path). Fills sae and maxAbs.
+   */
+  private absoluteErrorsFromCells(models: readonly SplineFromSums[], nTest: number): void {
+    const C = models.length;
     const cells = this.cells as Cells;
+    const cellCount = cells.breaks.length - 1;
+    const { polys, trained, sae, maxAbs, testIdx, yc } = this;
+    for (let k = 0; k < C; k++) {
+      const fp = (models[k] as SplineFromSums).fitPoly;
+      for (let c = 0; c < cellCount; c++) {
+        const to = (c * C + k) * 4;
+        // A candidate not fitted in this resample gets a zero cubic; its errors are not reported.
+        const on = trained[k] === 1;
+        for (let p = 0; p < 4; p++) polys[to + p] = on ? (fp[c * 4 + p] as number) : 0;
+      }
+    }
+    sae.fill(0);
+    maxAbs.fill(0);
     const cell = cells.cell;
     const tt = cells.t;
     const w = this.problem.w;
-    let sae = 0;
-    let maxAbs = 0;
     for (let j = 0; j < nTest; j++) {
       const i = testIdx[j] as number;
-      const o = (cell[i] as number) * 4;
       const t = tt[i] as number;
-      const f = (fp[o] as number) + t * ((fp[o + 1] as number) + t * ((fp[o + 2] as number) + t * (fp[o + 3] as number)));
-      const a = Math.abs((yc[i] as number) - f);
-      sae += w ? (w[i] as number) * a : a;
-      if (a > maxAbs) maxAbs = a;
+      const y = yc[i] as number;
+      const wi = w ? (w[i] as number) : 1;
+      let o = (cell[i] as number) * C * 4;
+      for (let k = 0; k < C; k++, o += 4) {
+        const f = (polys[o] as number) + t * ((polys[o + 1] as number) + t * ((polys[o + 2] as number) + t * (polys[o + 3] as number)));
+        const a = Math.abs(y - f);
+        sae[k] = (sae[k] as number) + wi * a;
+        if (a > (maxAbs[k] as number)) maxAbs[k] = a;
+      }
     }
-    this.acc.sae = sae;
-    this.acc.sse = NaN;
-    this.acc.maxAbs = maxAbs;
-    return this.acc;
   }
 }

@@ -1,11 +1,8 @@
 import { InputError } from '../errors';
-import { argsortStable } from '../stats/argsort';
 import { RandomStream } from './rng';
 
-/** Row indices sorted by x (ties by row index), by the stable radix argsort `argsortStable`; O(n). */
-export function orderByX(x: Float64Array): Int32Array {
-  return argsortStable(x);
-}
+/** The rows in x order (core/stats/orderByX.ts), shared by the tuning plan's callers. */
+export { orderByX } from '../stats/orderByX';
 
 /**
  * Held-out check set, stratified by x: rows in x order are cut into round(fraction n)

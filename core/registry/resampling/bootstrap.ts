@@ -15,11 +15,7 @@ const RESAMPLES = { min: 2, max: 5000 } as const;
  */
 export function bootstrapCounts(n: number, seed: number, b: number, counts: Uint32Array): void {
   counts.fill(0);
-  const rng = new RandomStream(seed, 1 + b);
-  for (let i = 0; i < n; i++) {
-    const j = rng.int(n);
-    counts[j] = (counts[j] as number) + 1;
-  }
+  new RandomStream(seed, 1 + b).countDraws(n, n, counts);
 }
 
 /** The bootstrap with the error measured on the out-of-bag rows. */
