@@ -45,3 +45,22 @@ export class CancelledError extends Error {
     this.name = 'CancelledError';
   }
 }
+
+/** True for the errors JavaScript raises when memory for an array cannot be had. */
+export function isAllocationFailure(e: unknown): boolean {
+  return e instanceof RangeError && /allocation failed|Invalid (typed )?array length|out of memory/i.test(e.message);
+}
+
+/**
+ * The InputError for running out of memory with `rows` data rows read (`stage`: while
+ * reading them, or while fitting them): the count and what to do, never a stack trace.
+ * Example: outOfMemory(20_000_000, 'reading', { file: 'big.csv', line: 20_000_002 }).
+ */
+export function outOfMemory(rows: number, stage: 'reading' | 'fitting', place: Place = {}): InputError {
+  const count = rows.toLocaleString('en-US');
+  const when = stage === 'reading' ? `after ${count} data rows were read` : `while fitting ${count} data rows`;
+  return new InputError(
+    `out of memory ${when}: the data do not fit in the memory this process may use. Fit a part of the rows (for example every 10th row, or one range of x at a time), or run where the process may use more memory (a larger machine, a higher ulimit, or NODE_OPTIONS=--max-old-space-size=<megabytes> when the JavaScript heap is the limit)`,
+    place,
+  );
+}

@@ -5,7 +5,7 @@
  * header wider than MAX_COLUMNS, a control character in a column name and a quoted field
  * left open at the end of the file stop the whole file.
  */
-import { InputError } from '../errors';
+import { InputError, isAllocationFailure, outOfMemory } from '../errors';
 import { columnNames, headerControl, headerText, MAX_COLUMNS, MAX_NAME_CHARS } from './header';
 import { CELL_EMPTY, CELL_MISSING, CELL_NOT_NUMBER, CELL_NUMBER, CellParser, cellReason, shortCellReason } from './numberCell';
 import type { CellKind } from './numberCell';
@@ -205,7 +205,7 @@ export class TableBuilder implements RecordSink {
       else this.rowProblems.push({ line, reason: this.fieldCountReason(count, line, lastLine) });
       return;
     }
-    if (this.rowCount === this.capacity) this.grow();
+    if (this.rowCount === this.capacity) this.grow(line);
     const row = this.rowCount++;
     this.lines[row] = line;
     const values = this.recValues;
@@ -263,16 +263,22 @@ export class TableBuilder implements RecordSink {
     }
   }
 
-  private grow(): void {
+  /** Doubles the columns' room for the row on `line`. Running out of memory here is an InputError with the rows read so far. */
+  private grow(line: number): void {
     const capacity = this.capacity * 2;
-    this.columns = this.columns.map((col) => {
-      const grown = new Float64Array(capacity);
-      grown.set(col);
-      return grown;
-    });
-    const lines = new Int32Array(capacity);
-    lines.set(this.lines);
-    this.lines = lines;
+    try {
+      this.columns = this.columns.map((col) => {
+        const grown = new Float64Array(capacity);
+        grown.set(col);
+        return grown;
+      });
+      const lines = new Int32Array(capacity);
+      lines.set(this.lines);
+      this.lines = lines;
+    } catch (e) {
+      if (isAllocationFailure(e)) throw outOfMemory(this.rowCount, 'reading', { file: this.file, line });
+      throw e;
+    }
     this.capacity = capacity;
   }
 

@@ -9,7 +9,7 @@ import { existsSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import type { AnalysisOptions } from '../analysis/types';
 import { EMIT_KINDS, emitName, parseEmit } from '../emit/index';
-import { CancelledError, InputError } from '../errors';
+import { CancelledError, InputError, isAllocationFailure } from '../errors';
 import type { FitPlan, OutputOptions } from '../outputs/plan';
 import { CAUTION } from '../outputs/record';
 import { MAX_CANDIDATES, parseDfList, parseSeed } from '../tune/candidates';
@@ -686,9 +686,10 @@ export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): 
       process.stderr.write(terminalText(`knotwise: ${err.describe()}`) + '\n');
       return 2;
     }
-    if (err instanceof RangeError && /allocation failed|Invalid (typed )?array length|out of memory/i.test(err.message)) {
+    if (isAllocationFailure(err)) {
+      // Out of memory outside the reading and the fitting (which say how many rows): the same advice, without a count.
       process.stderr.write(
-        'knotwise: the data do not fit in the memory this process may use. Free memory, fit a part of the rows, or raise the limit of the JavaScript heap (NODE_OPTIONS=--max-old-space-size=<megabytes>).\n',
+        'knotwise: out of memory: the data do not fit in the memory this process may use. Fit a part of the rows, or run where the process may use more memory (a larger machine, a higher ulimit, or NODE_OPTIONS=--max-old-space-size=<megabytes> when the JavaScript heap is the limit).\n',
       );
       return 2;
     }

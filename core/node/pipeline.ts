@@ -8,7 +8,7 @@ import { analyse } from '../analysis/analysis';
 import type { Analysis, Diagnostics } from '../analysis/types';
 import { buildDeliverables, type Deliverables } from '../outputs/deliver';
 import { diagnose } from '../analysis/diagnose';
-import { InputError } from '../errors';
+import { InputError, isAllocationFailure, outOfMemory } from '../errors';
 import { fitCurve } from '../fit/index';
 import { selectColumns, type Selection } from '../ingest/select';
 import { selectTrials } from '../ingest/trials';
@@ -78,6 +78,7 @@ export async function runPipeline(
       fit = fitCurve(selection.data, { kind: plan.options.kind, df: plan.options.candidates?.[0] as number, outcome, shape, robust });
     }
   } catch (e) {
+    if (isAllocationFailure(e)) throw outOfMemory(selection.data.x.length, 'fitting', { file });
     throw placed(e, file, selection.labels);
   }
   // The rows the fit used: those analyse tuned (without held-out rows), else all.

@@ -2,7 +2,7 @@ import { availableParallelism } from 'node:os';
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
-import { CancelledError } from '../errors';
+import { CancelledError, isAllocationFailure } from '../errors';
 import type { ResampleProblem } from '../tune/engine';
 import { inlineRunner, type ResampleRunner } from '../tune/tune';
 import type { Progress } from '../tune/types';
@@ -62,7 +62,9 @@ export function workerRunner(threads = availableParallelism()): ResampleRunner {
               progress?.report(done, count, `resample ${done} of ${count}`);
               if (done === count) finish();
             } else if (m.type === 'error') {
-              finish(new Error(`resampling worker failed: ${m.message}`));
+              // Memory a worker could not get is the same condition as on the main thread (the pipeline says how many rows).
+              const text = m.message ?? '';
+              finish(isAllocationFailure(new RangeError(text)) ? new RangeError(text) : new Error(`resampling worker failed: ${text}`));
             }
           });
           worker.on('error', (e) => finish(e));
