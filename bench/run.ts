@@ -5,7 +5,7 @@
  */
 import { execFileSync, spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { appendFileSync, copyFileSync, mkdirSync, mkdtempSync, rmSync, utimesSync, writeFileSync, existsSync } from 'node:fs';
+import { appendFileSync, copyFileSync, mkdirSync, mkdtempSync, rmSync, statSync, utimesSync, writeFileSync, existsSync } from 'node:fs';
 import { readFile, stat } from 'node:fs/promises';
 import { cpus, totalmem } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
@@ -22,6 +22,9 @@ import { RecordScan, type ScanFileSystem } from '../core/outputs/recordScan';
 import { workerRunner } from '../core/node/pool';
 import { RandomStream } from '../core/tune/rng';
 import { buildPanelPayload } from '../core/view/payload';
+import { tuneCurve } from '../core/tune/tune';
+import { curveKind } from '../core/registry/curves/index';
+import { medianRun, runCli, writeBenchCsv, type ProcessRun } from './processes';
 
 const ROWS = Number(process.env.KNOTWISE_BENCH_ROWS ?? 1_000_000);
 /** `panel`: only the panel figures; `records`: only the record scan (neither writes bench/results.md). */
@@ -48,13 +51,6 @@ function makeRows(n: number): { x: Float64Array; y: Float64Array; lines: Int32Ar
     lines[i] = i + 2;
   }
   return { x, y, lines };
-}
-
-function makeCsv(path: string, n: number): void {
-  const { x, y } = makeRows(n);
-  const parts: string[] = ['x,y'];
-  for (let i = 0; i < n; i++) parts.push(`${(x[i] as number).toFixed(6)},${(y[i] as number).toFixed(6)}`);
-  writeFileSync(path, parts.join('\n') + '\n');
 }
 
 /**
@@ -151,7 +147,7 @@ async function recordScanTimings(): Promise<void> {
   try {
     const first = join(root, 'f0000');
     mkdirSync(first);
-    makeCsv(join(first, 'readings.csv'), RECORD_ROWS);
+    writeBenchCsv(join(first, 'readings.csv'), RECORD_ROWS);
     const plan: FitPlan = {
       columns: { x: 'x', y: 'y' },
       tune: true,
@@ -200,6 +196,185 @@ async function recordScanTimings(): Promise<void> {
   }
 }
 
+/** The command the targets name: 10 natural-spline candidates, default table and record, no --json. */
+const CANDIDATES = '2,3,4,5,6,7,8,10,12,15';
+const cliPath = join(__dirname, 'cli.js');
+
+/** The whole command line on `rows` rows with `scheme`, median of `reps` runs. */
+function cliFit(rows: number, scheme: string, reps: number): ProcessRun & { readonly runs: number } {
+  const csv = join(dir, `bench-${rows}.csv`);
+  writeBenchCsv(csv, rows);
+  const out = join(dir, `out-${rows}`);
+  return medianRun(reps, () => {
+    rmSync(out, { recursive: true, force: true });
+    return runCli(cliPath, ['fit', csv, '--x', 'x', '--y', 'y', '--df', CANDIDATES, '--resampling', scheme, '--seed', '1', '--out', out], dir);
+  });
+}
+
+/** "1.23 s" against a target, with whether it is met. */
+function against(value: number, target: number, unit: string, digits = 2): string {
+  return `${value.toFixed(digits)} ${unit} (target ${target} ${unit}: ${value <= target ? 'met' : 'not met'})`;
+}
+
+/** The targets of the speed and memory issue, each measured as the issue defines it. */
+async function targets(): Promise<void> {
+  log('## Targets (whole command-line process, median of three runs)');
+  log('');
+  log(
+    `\`knotwise fit data.csv --x x --y y --df ${CANDIDATES} --resampling <scheme> --seed 1\`, writing the default table and record; peak memory is the process's maximum resident set (worker threads included) from getrusage at exit.`,
+  );
+  log('');
+  log('| measure | figure |');
+  log('| --- | --- |');
+  const boot = cliFit(1_000_000, 'bootstrap:50', 3);
+  log(`| 1,000,000 rows, bootstrap:50: time | ${against(boot.seconds, 2.5, 's')} |`);
+  log(`| 1,000,000 rows, bootstrap:50: peak memory | ${against(boot.peakMiB, 250, 'MiB', 0)} |`);
+  const folds = cliFit(1_000_000, 'folds:10', 3);
+  log(`| 1,000,000 rows, folds:10: time | ${against(folds.seconds, 1.2, 's')} |`);
+  log(`| 1,000,000 rows, folds:10: peak memory | ${folds.peakMiB.toFixed(0)} MiB |`);
+  const csv = join(dir, 'bench-1000000.csv');
+  const ingest = await medianSeconds(() => readCsvFile(csv));
+  log(`| ingest of 1,000,000 rows (stream, decode, parse, SHA-256; in process) | ${against(ingest, 0.3, 's')} |`);
+  const ten = cliFit(10_000_000, 'bootstrap:50', 3);
+  log(`| 10,000,000 rows, bootstrap:50: time | ${against(ten.seconds, 30, 's', 1)} |`);
+  log(`| 10,000,000 rows, bootstrap:50: peak memory | ${against(ten.peakMiB, 400, 'MiB', 0)} |`);
+  const wide = join(dir, 'wide-header.csv');
+  if (!existsSync(wide)) writeFileSync(wide, Array.from({ length: 2_000_000 }, (_, k) => `c${k}`).join(',') + '\n1,2\n');
+  const refused = runCli(cliPath, ['fit', wide, '--x', 'c0', '--y', 'c1', '--print-only'], dir);
+  log(`| a header of 2,000,000 columns refused (exit ${refused.status}): time | ${against(refused.seconds, 1, 's')} |`);
+  log(`| the same refusal: peak memory | ${against(refused.peakMiB, 100, 'MiB', 0)} |`);
+  log('');
+}
+
+/** Median of three in-process timings (s). */
+async function medianSeconds(f: () => Promise<unknown> | unknown): Promise<number> {
+  const secs: number[] = [];
+  for (let k = 0; k < 3; k++) {
+    const t0 = performance.now();
+    await f();
+    secs.push((performance.now() - t0) / 1000);
+  }
+  return secs.sort((a, b) => a - b)[1] as number;
+}
+
+/** Time and peak memory from 10,000 rows up, bootstrap:50 (100,000,000 rows with KNOTWISE_BENCH_HUGE=1). */
+function scaling(): void {
+  log('## Scaling (whole process, bootstrap:50, the command above)');
+  log('');
+  log('| rows | time | time per 1,000,000 rows | peak memory |');
+  log('| --- | --- | --- | --- |');
+  const sizes = [10_000, 100_000, 1_000_000, 10_000_000, ...(process.env.KNOTWISE_BENCH_HUGE === '1' ? [100_000_000] : [])];
+  for (const rows of sizes) {
+    const r = cliFit(rows, 'bootstrap:50', rows >= 100_000_000 ? 1 : 3);
+    log(`| ${rows.toLocaleString('en-US')} | ${r.seconds.toFixed(2)} s (median of ${r.runs}) | ${((r.seconds * 1e6) / rows).toFixed(2)} s | ${r.peakMiB.toFixed(0)} MiB |`);
+  }
+  log('');
+}
+
+/** Where the time of one 1,000,000-row run goes, stage by stage, in process (one run after a warm-up). */
+async function stages(): Promise<void> {
+  const csv = join(dir, 'bench-1000000.csv');
+  const plan: FitPlan = {
+    columns: { x: 'x', y: 'y' },
+    tune: true,
+    options: { kind: 'natural-spline', candidates: CANDIDATES.split(',').map(Number), resample: { kind: 'bootstrap', resamples: 50 }, rule: { kind: 'one-se' }, seed: 1 },
+    output: DEFAULT_OUTPUT,
+  };
+  await runPipeline(csv, plan, dir);
+  const t: [string, number][] = [];
+  let t0 = performance.now();
+  const mark = (label: string): void => {
+    const now = performance.now();
+    t.push([label, (now - t0) / 1000]);
+    t0 = now;
+  };
+  const table = await readCsvFile(csv);
+  mark('read (stream, decode, parse, SHA-256)');
+  const data = selectColumns(table, { x: 'x', y: 'y' }).data;
+  mark('choose the columns');
+  const prepared = prepareData(data);
+  mark('check the rows, order by x');
+  const dfs = CANDIDATES.split(',').map(Number);
+  curveKind('natural-spline').fitAll?.(prepared, dfs);
+  mark('fit every candidate to all rows (power sums; repeated inside the tuning below)');
+  const { result, fits } = await tuneCurve(prepared, { ...plan.options, rule: { kind: 'one-se' } }, workerRunner());
+  mark('tuning: those fits, then 50 bootstrap resamples x 10 candidates on worker threads');
+  const chosen = fits.get(result.selected.df);
+  if (!chosen) throw new Error('no chosen fit');
+  void chosen.residuals;
+  mark("the chosen fit's rows (fitted values, residuals, leverage)");
+  diagnose(data, chosen);
+  mark('residual checks');
+  log('## Where the time goes (1,000,000 rows, bootstrap:50, in process, one run after a warm-up)');
+  log('');
+  log('| stage | time |');
+  log('| --- | --- |');
+  for (const [label, secs] of t) log(`| ${label} | ${secs.toFixed(3)} s |`);
+  log('');
+}
+
+/** The same work in R (splines::ns with .lm.fit, the basis built once per candidate), whole processes at 100,000 rows. */
+function sideBySide(): void {
+  const rows = 100_000;
+  const csv = join(dir, `bench-${rows}.csv`);
+  writeBenchCsv(csv, rows);
+  log('## Side by side with base R (100,000 rows, 10 candidates x 50 bootstrap resamples, whole processes, median of three)');
+  log('');
+  const ours = cliFit(rows, 'bootstrap:50', 3);
+  const version = spawnSync('Rscript', ['--version'], { encoding: 'utf8' });
+  if (version.status !== 0) {
+    log(`| Knotwise | ${ours.seconds.toFixed(2)} s |`);
+    log('| R | not installed here (apt-get install r-base-core) |');
+    log('');
+    return;
+  }
+  // Written for speed: each candidate's basis once, .lm.fit on the drawn rows, RMSE, MAE and maximum error on the out-of-bag rows.
+  const script = `library(splines); d <- read.csv(${JSON.stringify(csv)}); n <- nrow(d); set.seed(1)
+X <- lapply(c(${CANDIDATES}), function(k) if (k == 2) cbind(1, d$x) else cbind(1, ns(d$x, df = k - 1)))
+for (b in 1:50) { i <- sample.int(n, n, replace = TRUE); oob <- which(tabulate(i, n) == 0)
+  for (Xk in X) { f <- .lm.fit(Xk[i, , drop = FALSE], d$y[i]); e <- d$y[oob] - Xk[oob, , drop = FALSE] %*% f$coefficients; c(sqrt(mean(e^2)), mean(abs(e)), max(abs(e))) } }`;
+  const scriptFile = join(dir, 'side-by-side.R');
+  writeFileSync(scriptFile, script + '\n');
+  const secs: number[] = [];
+  for (let k = 0; k < 3; k++) {
+    const t0 = performance.now();
+    const r = spawnSync('Rscript', [scriptFile], { encoding: 'utf8' });
+    if (r.status !== 0) throw new Error(`the R script failed: ${r.stderr}`);
+    secs.push((performance.now() - t0) / 1000);
+  }
+  const theirs = secs.sort((a, b) => a - b)[1] as number;
+  log('| program | time |');
+  log('| --- | --- |');
+  log(`| Knotwise (whole command: read, tune, choose, check residuals, write table and record) | ${ours.seconds.toFixed(2)} s |`);
+  log(`| R ${version.stderr.trim().replace(/^Rscript \(R\) version /, '')} (read.csv, the loop above; no residual checks, no outputs) | ${theirs.toFixed(2)} s |`);
+  log(`| ratio | ${(theirs / ours.seconds).toFixed(1)} |`);
+  log('');
+}
+
+/** Sizes of what ships: the packaged extension and its bundles, and the command-line package. */
+function sizes(): void {
+  log('## What ships');
+  log('');
+  const root = join(__dirname, '..');
+  const vsix = join(dir, 'knotwise.vsix');
+  // Packaging rebuilds the bundles minified (vscode:prepublish); the development build is restored after.
+  execFileSync('npx', ['vsce', 'package', '--no-rewrite-relative-links', '--out', vsix], { cwd: root, stdio: 'ignore' });
+  const kib = (f: string): string => `${(statSync(f).size / 1024).toFixed(0)} KiB`;
+  log('| file | size |');
+  log('| --- | --- |');
+  log(`| the extension package (.vsix) | ${kib(vsix)} |`);
+  for (const f of ['dist/extension.js', 'dist/resampleWorker.js', 'dist/webview/main.js']) log(`| ${f} (minified, in the .vsix) | ${kib(join(root, f))} |`);
+  execFileSync(process.execPath, [join(root, 'scripts', 'build.mjs')], { cwd: root, stdio: 'ignore' });
+  const tgz = execFileSync(process.execPath, [join(root, 'scripts', 'pack-cli.mjs')], { cwd: root, encoding: 'utf8' })
+    .trim()
+    .split('\n')
+    .pop() as string;
+  log(`| the command-line package (${tgz.replace(/-\d.*$/, '-<version>.tgz')}) | ${kib(join(root, tgz))} |`);
+  rmSync(join(root, tgz), { force: true });
+  rmSync(vsix, { force: true });
+  log('');
+}
+
 async function main(): Promise<void> {
   mkdirSync(dir, { recursive: true });
   if (PART === 'records') {
@@ -208,50 +383,56 @@ async function main(): Promise<void> {
     await recordScanTimings();
     return;
   }
+  const only = (part: string): boolean => PART === undefined || PART === part;
   const csv = join(dir, `bench-${ROWS}.csv`);
-  if (!existsSync(csv)) makeCsv(csv, ROWS);
+  writeBenchCsv(csv, ROWS);
   log(`# Knotwise benchmark`);
   log('');
-  log(`Machine: ${cpus().length} x ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, Node ${process.version}. Data: ${ROWS} rows, two columns (invented, seed 7).`);
+  log(
+    `Machine: ${cpus().length} x ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, Node ${process.version}. Data: invented readings (seed 7), two columns. Run with \`npm run bench\`; \`KNOTWISE_BENCH_PART=<targets|scaling|stages|panel|fits|r|sizes|records>\` runs one part (and writes nothing), \`KNOTWISE_BENCH_HUGE=1\` adds 100,000,000 rows to the scaling table.`,
+  );
   log('');
-  log('| stage | time |');
-  log('| --- | --- |');
-  await panelTimings([100_000, ROWS]);
-  if (PART === 'panel') return;
-  const table = await timeMedian(`ingest (stream, parse, SHA-256) of ${ROWS} rows`, () => readCsvFile(csv));
-  const data = selectColumns(table, { x: 'x', y: 'y' }).data;
-  const prepared = prepareData(data);
-  const fit = await timeMedian('natural spline df 10, full regression output', () => fitCurve(prepared, { kind: 'natural-spline', df: 10 }));
-  await timeMedian('residual diagnostics of that fit', () => diagnose(data, fit));
-  await timeMedian('natural spline df 10 with full regression output and residual diagnostics, together', () => diagnose(data, fitCurve(prepared, { kind: 'natural-spline', df: 10 })));
-  await timeMedian('polynomial df 8', () => fitCurve(prepared, { kind: 'polynomial', df: 8 }));
-  await time('smoothing spline df 20 (lambda search)', () => fitCurve(prepared, { kind: 'smoothing-spline', df: 20 }));
-  const counts = prepareData({ x: data.x, y: poissonCounts(data.x) });
-  await timeMedian('Poisson natural spline df 10 (IRLS), full output', () => fitCurve(counts, { kind: 'natural-spline', df: 10, outcome: 'counts' }));
-  await timeMedian('increasing natural spline df 10 (constrained least squares, NNLS), full output', () => fitCurve(prepared, { kind: 'natural-spline', df: 10, shape: ['increasing'] }));
-  const cands = [3, 4, 5, 6, 7, 8, 9, 10, 11, 12];
-  await time('tuning: 10 natural-spline candidates x 50 bootstrap resamples (worker threads)', () =>
-    analyse(data, { kind: 'natural-spline', candidates: cands, resample: { kind: 'bootstrap', resamples: 50 }, rule: { kind: 'one-se' }, seed: 1 }, workerRunner()),
-  );
-  await time('tuning: 10 natural-spline candidates x 10-fold CV', () =>
-    analyse(data, { kind: 'natural-spline', candidates: cands, resample: { kind: 'folds', folds: 10, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }, workerRunner()),
-  );
-  await recordScanTimings();
-  log(`| peak resident memory of the whole run | ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB |`);
-  const r = spawnSync('Rscript', ['--version'], { encoding: 'utf8' });
-  if (r.status === 0) {
-    const boots = 3;
-    const script = `library(splines); d <- read.csv("${csv}"); n <- nrow(d); set.seed(1)
-t0 <- proc.time()[["elapsed"]]
-for (b in 1:${boots}) { i <- sample.int(n, n, replace = TRUE); oob <- setdiff(seq_len(n), i)
-  for (k in c(${cands.join(',')})) { X <- ns(d$x, df = k - 1); f <- lm.fit(cbind(1, X[i, ]), d$y[i]); e <- d$y[oob] - cbind(1, X[oob, ]) %*% f$coefficients; sqrt(mean(e^2)) } }
-cat(proc.time()[["elapsed"]] - t0)`;
-    const secs = Number(execFileSync('Rscript', ['-e', script], { encoding: 'utf8', maxBuffer: 1 << 20 }).trim());
-    log(`| R (lm.fit with splines::ns in a loop), ${boots} bootstrap resamples x 10 candidates, measured | ${secs.toFixed(1)} s |`);
-    log(`| the same R loop scaled to 50 resamples (x ${(50 / boots).toFixed(1)}) | ${((secs * 50) / boots).toFixed(0)} s |`);
-  } else {
-    log('| R comparison | R not installed |');
+  if (only('targets')) await targets();
+  if (only('scaling')) scaling();
+  if (only('stages')) await stages();
+  if (only('panel')) {
+    log('## The editor panel (in process: analyse with the default settings, then the panel message; the editor adds its own drawing)');
+    log('');
+    log('| stage | time |');
+    log('| --- | --- |');
+    const before = process.memoryUsage().rss;
+    await panelTimings([100_000, ROWS]);
+    log(`| resident memory grown over those two panels (target for the editor's host: 300 MB) | ${((process.memoryUsage().rss - before) / 2 ** 20).toFixed(0)} MiB |`);
+    log('');
   }
+  if (only('fits')) {
+    log(`## Single fits and tunings (in process, ${ROWS.toLocaleString('en-US')} rows)`);
+    log('');
+    log('| stage | time |');
+    log('| --- | --- |');
+    const table = await timeMedian(`ingest (stream, parse, SHA-256) of ${ROWS} rows`, () => readCsvFile(csv));
+    const data = selectColumns(table, { x: 'x', y: 'y' }).data;
+    const prepared = prepareData(data);
+    const fit = await timeMedian('natural spline df 10, full regression output', () => fitCurve(prepared, { kind: 'natural-spline', df: 10 }));
+    await timeMedian('residual diagnostics of that fit', () => diagnose(data, fit));
+    await timeMedian('polynomial df 8', () => fitCurve(prepared, { kind: 'polynomial', df: 8 }));
+    await time('smoothing spline df 20 (lambda search)', () => fitCurve(prepared, { kind: 'smoothing-spline', df: 20 }));
+    const counts = prepareData({ x: data.x, y: poissonCounts(data.x) });
+    await timeMedian('Poisson natural spline df 10 (IRLS), full output', () => fitCurve(counts, { kind: 'natural-spline', df: 10, outcome: 'counts' }));
+    await timeMedian('increasing natural spline df 10 (constrained least squares, NNLS), full output', () => fitCurve(prepared, { kind: 'natural-spline', df: 10, shape: ['increasing'] }));
+    log('');
+  }
+  if (only('r')) sideBySide();
+  if (only('records')) {
+    log("## Fit records in the workspace (the editor's quick check)");
+    log('');
+    log('| stage | time |');
+    log('| --- | --- |');
+    await recordScanTimings();
+    log('');
+  }
+  if (only('sizes')) sizes();
+  if (PART !== undefined) return;
   writeFileSync(join(__dirname, '..', 'bench', 'results.md'), lines.join('\n') + '\n');
   console.log('\nwritten to bench/results.md');
 }

@@ -2,7 +2,7 @@ import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline'
 import { centringOffset } from '../stats/weightedMean';
 import { FitError } from '../errors';
 import { nullSpace } from '../linalg/nullSpace';
-import { accumulateRow, buildCells, SUMS_PER_CELL } from './powerSums/cells';
+import { accumulateRow, buildCells, type Cells, SUMS_PER_CELL } from './powerSums/cells';
 import { SplineFromSums } from './powerSums/splineSums';
 import type { FitResult } from '../types';
 import { RowBasisCurve } from './linearFit';
@@ -49,6 +49,8 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
   const sums = new Float64Array((cells.breaks.length - 1) * SUMS_PER_CELL);
   for (let i = 0; i < n; i++) accumulateRow(sums, cells.cell[i] as number, cells.t[i] as number, (y[i] as number) - offset, w ? (w[i] as number) : 1);
   const totals = dataTotals(data);
+  // Every candidate fitted from the sums first; then one pass over the rows gives all their residual sums of squares.
+  const fitted: { df: number; knots: (typeof specs)[number]['knots']; basis: ExtrapolatingBSplineBasis; model: SplineFromSums; z: Float64Array; fitPoly: Float64Array }[] = [];
   for (const { df, knots, basis } of specs) {
     const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
     const model = new SplineFromSums(cells, basis, z, `natural spline with df ${df}`);
@@ -57,17 +59,18 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
       out.set(df, rowByRowError(prepared, df) ?? new FitError(model.lastError));
       continue;
     }
+    fitted.push({ df, knots, basis, model, z, fitPoly: Float64Array.from(model.fitPoly) });
+  }
+  const rssOf = residualSumsOfSquares(
+    fitted.map((f) => f.fitPoly),
+    cells,
+    y,
+    w,
+    offset,
+  );
+  for (const [k, { df, knots, basis, model, z, fitPoly }] of fitted.entries()) {
     const cov = model.covariance();
-    const fitPoly = Float64Array.from(model.fitPoly);
-    // The residual sum of squares row by row (the sums' subtraction would lose digits when the fit is close).
-    let rss = 0;
-    for (let i = 0; i < n; i++) {
-      const o = (cells.cell[i] as number) * 4;
-      const t = cells.t[i] as number;
-      const f = (fitPoly[o] as number) + t * ((fitPoly[o + 1] as number) + t * ((fitPoly[o + 2] as number) + t * (fitPoly[o + 3] as number)));
-      const r = (y[i] as number) - offset - f;
-      rss += (w ? (w[i] as number) : 1) * r * r;
-    }
+    const rss = rssOf[k] as number;
     const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, model.theta, cov, z, offset);
     const coefficients = model.theta.map((c) => c + offset);
     const rows = (): { fitted: Float64Array; residuals: Float64Array; leverage: Float64Array } => {
@@ -109,4 +112,35 @@ function rowByRowError(prepared: PreparedData, df: number): FitError | undefined
     if (e instanceof FitError) return e;
     throw e;
   }
+}
+
+/**
+ * The weighted residual sum of squares of every candidate, row by row in one pass (the
+ * sums' subtraction would lose digits when a fit is close): for each row its cell's cubic
+ * of every candidate, in the row order a pass per candidate would take, so each sum is the
+ * same to the last bit.
+ */
+function residualSumsOfSquares(polys: readonly Float64Array[], cells: Cells, y: Float64Array, w: Float64Array | undefined, offset: number): Float64Array {
+  const C = polys.length;
+  const cellCount = cells.breaks.length - 1;
+  // The cubics side by side per cell: all[(cell * C + k) * 4 + p].
+  const all = new Float64Array(cellCount * C * 4);
+  for (let k = 0; k < C; k++) {
+    const fp = polys[k] as Float64Array;
+    for (let c = 0; c < cellCount; c++) for (let p = 0; p < 4; p++) all[(c * C + k) * 4 + p] = fp[c * 4 + p] as number;
+  }
+  const rss = new Float64Array(C);
+  const n = y.length;
+  for (let i = 0; i < n; i++) {
+    const t = cells.t[i] as number;
+    const yc = (y[i] as number) - offset;
+    const wi = w ? (w[i] as number) : 1;
+    let o = (cells.cell[i] as number) * C * 4;
+    for (let k = 0; k < C; k++, o += 4) {
+      const f = (all[o] as number) + t * ((all[o + 1] as number) + t * ((all[o + 2] as number) + t * (all[o + 3] as number)));
+      const r = yc - f;
+      rss[k] = (rss[k] as number) + wi * r * r;
+    }
+  }
+  return rss;
 }

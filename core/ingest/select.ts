@@ -145,6 +145,13 @@ export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: s
     const detail = first !== undefined ? ` (the first: line ${first.line}${first.column !== '' ? `, column "${first.column}"` : ''}: ${first.reason})` : '';
     throw new InputError(`no usable rows: every row has a missing or invalid value in ${names}${detail}`, { file });
   }
+  const [cx, cy, cw] = chosen as [ColumnInfo, ColumnInfo, ColumnInfo | undefined];
+  const labels = cw !== undefined ? { x: cx.label, y: cy.label, weights: cw.label } : { x: cx.label, y: cy.label };
+  const units = cw !== undefined ? { x: cx.unit, y: cy.unit, weights: cw.unit } : { x: cx.unit, y: cy.unit };
+  if (kept === n && xs.length === n && ys.length === n && table.lines.length === n) {
+    // Every row kept: the table's own columns serve (neither is changed after reading), so a large file is not held twice.
+    return { data: { x: xs, y: ys, w: ws, lines: table.lines }, rejected, labels, units };
+  }
   const x = new Float64Array(kept);
   const y = new Float64Array(kept);
   const w = ws !== undefined ? new Float64Array(kept) : undefined;
@@ -157,11 +164,5 @@ export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: s
     lines[i] = table.lines[r] as number;
     i++;
   }
-  const [cx, cy, cw] = chosen as [ColumnInfo, ColumnInfo, ColumnInfo | undefined];
-  return {
-    data: { x, y, w, lines },
-    rejected,
-    labels: cw !== undefined ? { x: cx.label, y: cy.label, weights: cw.label } : { x: cx.label, y: cy.label },
-    units: cw !== undefined ? { x: cx.unit, y: cy.unit, weights: cw.unit } : { x: cx.unit, y: cy.unit },
-  };
+  return { data: { x, y, w, lines }, rejected, labels, units };
 }

@@ -314,8 +314,8 @@ export class TableBuilder implements RecordSink {
     });
     return {
       columns,
-      values: this.columns.map((col) => col.slice(0, n)),
-      lines: this.lines.slice(0, n),
+      values: this.columns.map((col) => trimmed(col, n)),
+      lines: trimmed(this.lines, n),
       rowCount: n,
       format: { delimiter: this.format.delimiter, decimalComma: this.format.decimalComma, header: this.format.header, bom: this.format.bom, lineEnding: this.format.lineEnding },
       problems: this.collectProblems(columns),
@@ -342,4 +342,12 @@ export class TableBuilder implements RecordSink {
     }
     return all.sort((a, b) => a.line - b.line);
   }
+}
+
+/**
+ * The first n values of a column grown by doubling: a view when little room is left over
+ * (no second copy of a large column at the end of reading), a copy when much is.
+ */
+function trimmed<T extends Float64Array | Int32Array>(a: T, n: number): T {
+  return (n >= a.length * 0.75 ? a.subarray(0, n) : a.slice(0, n)) as T;
 }

@@ -34,6 +34,8 @@ export function workerRunner(threads = availableParallelism()): ResampleRunner {
       const workers = Math.max(1, Math.min(threads, count));
       if (workers === 1 || problem.x.length * count < INLINE_BELOW) return inlineRunner.run(problem, count, progress);
       const { file, execArgv } = workerScript();
+      // The rows once in shared memory, so every worker reads the same bytes instead of a copy of its own.
+      const shared: ResampleProblem = { ...problem, x: toShared(problem.x), y: toShared(problem.y), w: problem.w && toShared(problem.w), order: toShared(problem.order) };
       const results: Float64Array[] = new Array(count);
       let done = 0;
       const pool: Worker[] = [];
@@ -53,7 +55,7 @@ export function workerRunner(threads = availableParallelism()): ResampleRunner {
         for (let k = 0; k < workers; k++) {
           const indices: number[] = [];
           for (let r = k; r < count; r += workers) indices.push(r);
-          const worker = new Worker(file, { workerData: { problem, indices }, execArgv });
+          const worker = new Worker(file, { workerData: { problem: shared, indices }, execArgv });
           pool.push(worker);
           worker.on('message', (m: { type: string; r?: number; errors?: Float64Array; message?: string }) => {
             if (m.type === 'resample') {
@@ -72,4 +74,12 @@ export function workerRunner(threads = availableParallelism()): ResampleRunner {
       });
     },
   };
+}
+
+/** The values in a SharedArrayBuffer (as they are when already there): posted to a worker, they are shared, not copied. */
+function toShared<T extends Float64Array | Int32Array>(a: T): T {
+  if (a.buffer instanceof SharedArrayBuffer) return a;
+  const copy = new (a.constructor as new (b: SharedArrayBuffer) => T)(new SharedArrayBuffer(a.byteLength));
+  copy.set(a);
+  return copy;
 }

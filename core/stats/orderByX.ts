@@ -17,3 +17,12 @@ export function orderByX(x: Float64Array): Int32Array {
   }
   return order;
 }
+
+/**
+ * Records `order` as the x order of `x`, computed elsewhere (a worker thread receives both
+ * from the thread that sorted them). `order` must be orderByX of the same values.
+ */
+export function knownOrder(x: Float64Array, order: Int32Array): void {
+  if (order.length !== x.length) throw new Error(`an order of ${order.length} rows for ${x.length} values`);
+  orders.set(x, order);
+}

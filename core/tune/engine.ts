@@ -1,4 +1,5 @@
 import { prepareData } from '../fit/prepared';
+import { knownOrder } from '../stats/orderByX';
 import { weightedMean } from '../stats/weightedMean';
 import type { OutcomeFamily } from '../fit/glm';
 import { isPlainModel } from '../fit/model';
@@ -34,6 +35,8 @@ export interface ResampleProblem {
  */
 export const ERRORS_PER_CANDIDATE = 4;
 
+const EMPTY = new Float64Array(0);
+
 /**
  * Evaluates resamples for all candidates of one curve kind. The same resamples serve every
  * candidate. For natural splines one pass of per-cell power sums per resample serves all
@@ -60,6 +63,8 @@ export class ResampleEngine {
 
   constructor(private readonly problem: ResampleProblem) {
     const { x, y, w } = problem;
+    // The order came with the problem: preparing the rows below need not sort them again.
+    knownOrder(x, problem.order);
     const n = x.length;
     this.n = n;
     const { mean, weight: sw } = weightedMean(y, w);
@@ -69,12 +74,13 @@ export class ResampleEngine {
     this.yscale = Math.sqrt(ss / sw) || 1;
     this.yc = new Float64Array(n);
     for (let i = 0; i < n; i++) this.yc[i] = ((y[i] as number) - this.ymean) / this.yscale;
-    this.weights = new Float64Array(n);
     this.testIdx = new Int32Array(n);
     const built = this.buildTrainers();
     this.trainers = built.trainers;
     this.cells = built.cells;
     this.models = built.models;
+    // The power-sum trainers read the sums only: no per-row training weights to fill.
+    this.weights = this.models ? EMPTY : new Float64Array(n);
     const cellCount = this.cells ? this.cells.breaks.length - 1 : 0;
     if (this.models) {
       const C = this.models.length;
@@ -92,7 +98,7 @@ export class ResampleEngine {
       seed: problem.seed,
       order: problem.order,
       w,
-      weights: this.weights,
+      weights: this.models ? undefined : this.weights,
       testIdx: this.testIdx,
       powerSums:
         cells && this.sums && this.testSums

@@ -53,7 +53,7 @@ export const bootstrap: ResamplingScheme<Bootstrap> = {
     for (let i = 0; i < n; i++) {
       const c = counts[i] as number;
       const wi = w ? (w[i] as number) : 1;
-      weights[i] = c * wi;
+      if (weights) weights[i] = c * wi;
       if (c === 0) testIdx[nTest++] = i;
       if (powerSums) powerSums.add(c > 0 ? powerSums.train : powerSums.test, i, c > 0 ? c * wi : wi);
     }

@@ -88,7 +88,7 @@ export const folds: ResamplingScheme<Folds> = {
     let nTest = 0;
     for (let i = 0; i < n; i++) {
       const inFold = labels[i] === fold;
-      weights[i] = inFold ? 0 : w ? (w[i] as number) : 1;
+      if (weights) weights[i] = inFold ? 0 : w ? (w[i] as number) : 1;
       if (inFold) testIdx[nTest++] = i;
     }
     if (powerSums && foldSums) {

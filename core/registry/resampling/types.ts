@@ -19,8 +19,11 @@ export interface DrawState {
   readonly order: Int32Array;
   /** Prior weights, or undefined for all 1. */
   readonly w: Float64Array | undefined;
-  /** Training weight of every row (multiplicity times prior weight; 0 = not trained on). */
-  readonly weights: Float64Array;
+  /**
+   * Training weight of every row (multiplicity times prior weight; 0 = not trained on);
+   * undefined on the power-sum path, whose trainers read the sums only.
+   */
+  readonly weights: Float64Array | undefined;
   /** Indices of the test rows; the scheme returns how many it wrote. */
   readonly testIdx: Int32Array;
   /** Power-sum fast path: adds row i with weight wi into `sums` (a training or test buffer). */
