@@ -200,8 +200,19 @@ async function recordScanTimings(): Promise<void> {
 const CANDIDATES = '2,3,4,5,6,7,8,10,12,15';
 const cliPath = join(__dirname, 'cli.js');
 
-/** The whole command line on `rows` rows with `scheme`, median of `reps` runs. */
+const cliRuns = new Map<string, ProcessRun & { readonly runs: number }>();
+
+/** The whole command line on `rows` rows with `scheme`, median of `reps` runs; the same measurement is not repeated within one bench run. */
 function cliFit(rows: number, scheme: string, reps: number): ProcessRun & { readonly runs: number } {
+  const key = `${rows} ${scheme} ${reps}`;
+  const known = cliRuns.get(key);
+  if (known) return known;
+  const run = measureCliFit(rows, scheme, reps);
+  cliRuns.set(key, run);
+  return run;
+}
+
+function measureCliFit(rows: number, scheme: string, reps: number): ProcessRun & { readonly runs: number } {
   const csv = join(dir, `bench-${rows}.csv`);
   writeBenchCsv(csv, rows);
   const out = join(dir, `out-${rows}`);
