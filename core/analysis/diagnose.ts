@@ -1,29 +1,40 @@
-import { testText } from '../words/numbers';
 import type { Diagnostics } from './types';
+import { CHECK_LEVEL, EXCESS_KURTOSIS_MATTERS, LAG1_MATTERS, misfitRatio, MISFIT_RATIO_MATTERS, SKEWNESS_MATTERS, SPREAD_RATIO_MATTERS, verdict } from './checks';
+import { dispersionOf } from './dispersion';
+import { exactFitResidual } from './exactFit';
+import { influenceOf, noInfluence } from './influence';
+import { rowOrderCheck } from './rowOrder';
+import { checkWarnings } from './warnings';
 import { RowBasisCurve } from '../fit/linearFit';
 import { breuschPagan } from '../stats/breuschPagan';
 import type { DesignRows } from '../stats/design';
 import { durbinWatson } from '../stats/durbinWatson';
 import { durbinWatsonAndBreuschPagan } from '../stats/designTests';
+import { lag1Correlation, moments, spreadRatio } from '../stats/effects';
 import { checkResiduals } from '../fit/modelResiduals';
-import { influentialRows } from '../stats/influence';
 import { lackOfFit } from '../stats/lackOfFit';
 import { normalQuantiles } from '../stats/normalQuantiles';
 import { shapiroWilk } from '../stats/shapiroWilk';
 import { orderByX } from '../tune/plan';
 import type { FitResult, XYData } from '../types';
 
-/** Significance level of the residual checks' warnings (common practice). */
-export const CHECK_LEVEL = 0.05;
+export { CHECK_LEVEL };
+
 /** Most points of the normal-quantile plot sent to a figure. */
 const QQ_POINTS = 400;
 
 /**
  * Residual diagnostics of a fit: Shapiro-Wilk on the residuals, Durbin-Watson on the rows
  * ordered by x, Breusch-Pagan (Koenker) on the model's design, the lack-of-fit F test when
- * x has replicates, influential rows with CSV lines, normal-quantile plot data, and
- * plain-language warnings for checks that fail at the 5 % level. Weighted fits use
- * residuals scaled by sqrt(w). O(n log n + n p^2).
+ * x has replicates, each with an effect size (skewness and excess kurtosis, lag-1
+ * correlation, spread ratio across thirds of x, misfit ratio; core/analysis/checks.ts) that
+ * decides with the p-value whether it warns; the dispersion of counts and proportions; the
+ * residuals in row order with a measure of drift; influential rows by the rules of
+ * core/stats/influence.ts with CSV lines; normal-quantile plot data; and plain-language
+ * warnings (core/analysis/warnings.ts). A fit through every reading (residuals at rounding
+ * level, or as many coefficients as rows) skips the residual tests, the influence rules and
+ * the row-order check, and says so. Weighted fits use residuals scaled by sqrt(w); counts
+ * and proportions deviance residuals. O(n log n + n p^2).
  */
 export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   const n = fit.n;
@@ -42,54 +53,47 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
     if (rootW) rootW[j] = Math.sqrt(w?.[i] as number);
     scaled[j] = checked.residuals[i] as number;
   }
-  const warnings: string[] = [];
   const design = designInXOrder(fit, xSorted, rootW);
-  const out: { -readonly [K in keyof Diagnostics]: Diagnostics[K] } = { influential: influentialRows(fit.leverage, fit.cooksDistance, fit.df, data.lines), warnings };
+  const out: { -readonly [K in keyof Diagnostics]: Diagnostics[K] } = { influential: noInfluence(fit, data), warnings: [] };
   // With no residual df (as many coefficients as rows) the residuals are rounding noise: nothing to check.
-  const interpolates = !(fit.residualDf > 0) || (design !== undefined && design.p >= n);
-  if (n >= 3 && interpolates) {
-    warnings.push(
-      `The residual checks were not run: too few rows for the df (n = ${n}, df = ${fit.df}); a curve with as many coefficients as rows passes through every reading and leaves no residual variation to check.`,
-    );
+  if (!(fit.residualDf > 0) || (design !== undefined && design.p >= n)) {
+    out.exactFit = { reason: 'no-residual-df', maxResidual: maxAbs(fit.residuals) };
+  } else {
+    const exact = exactFitResidual(fit, data);
+    if (exact !== undefined) out.exactFit = { reason: 'rounding', maxResidual: exact };
   }
-  const spread = !interpolates && scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
+  if (out.exactFit) {
+    out.warnings = checkWarnings(out, fit, n);
+    return out;
+  }
+  const dispersion = dispersionOf(fit, data);
+  if (dispersion) out.dispersion = dispersion;
+  out.influential = influenceOf(fit, data);
+  const spread = scaled.some((v) => Math.abs(v - (scaled[0] as number)) > 0);
   if (n >= 3 && spread && checked.gaussianChecks) {
     const sw = shapiroWilk(scaled);
-    out.shapiroWilk = sw;
-    if (sw.pValue < CHECK_LEVEL) warnings.push(`Residuals do not look normal (Shapiro-Wilk ${testText('W', [], sw.statistic, sw.pValue)}); the bands assume normal errors.`);
+    const { skewness, excessKurtosis } = moments(scaled);
+    out.shapiroWilk = { ...sw, skewness, excessKurtosis, ...verdict(sw.pValue, Math.abs(skewness) >= SKEWNESS_MATTERS || Math.abs(excessKurtosis) >= EXCESS_KURTOSIS_MATTERS) };
   }
   if (n >= 3 && spread) {
     // One pass over the design rows serves both tests when the model has a finite design.
     const both = design && checked.gaussianChecks ? durbinWatsonAndBreuschPagan(scaled, design) : undefined;
     const dw = both ? both.durbinWatson : durbinWatson(scaled, design);
-    out.durbinWatson = dw;
-    if (dw.pValue < CHECK_LEVEL)
-      warnings.push(`Residuals in x order are positively correlated (Durbin-Watson ${testText('DW', [], dw.statistic, dw.pValue)}): the curve may be too stiff, or the readings drift.`);
+    const lag1 = lag1Correlation(scaled);
+    // Durbin-Watson tests against positive correlation, so only a positive lag-1 correlation counts.
+    out.durbinWatson = { ...dw, lag1, ...verdict(dw.pValue, lag1 >= LAG1_MATTERS) };
     if (checked.gaussianChecks) {
       const bp = both ? both.breuschPagan : breuschPagan(scaled, lineDesign(xSorted, rootW));
-      out.breuschPagan = bp;
-      if (bp.pValue < CHECK_LEVEL)
-        warnings.push(`The spread of the residuals changes with x (Breusch-Pagan ${testText('BP χ²', [bp.df], bp.statistic, bp.pValue)}); the bands assume constant spread. Consider weights.`);
+      const ratio = spreadRatio(scaled);
+      out.breuschPagan = { ...bp, spreadRatio: ratio, ...verdict(bp.pValue, ratio >= SPREAD_RATIO_MATTERS) };
     }
   }
-  const lof = checked.gaussianChecks && !interpolates ? lackOfFit(data.x, data.y, w, fit.rss, fit.df, order) : undefined;
+  const lof = checked.gaussianChecks ? lackOfFit(data.x, data.y, w, fit.rss, fit.df, order) : undefined;
   if (lof) {
-    out.lackOfFit = lof;
-    if (lof.pValue < CHECK_LEVEL)
-      warnings.push(
-        `The curve misses the means of replicated readings more than their scatter explains (lack-of-fit ${testText('F', [lof.df1, lof.df2], lof.F, lof.pValue)}); a more flexible curve may be needed.`,
-      );
+    const misfit = misfitRatio(lof.F, lof.df1, n);
+    out.lackOfFit = { ...lof, misfitRatio: misfit, ...verdict(lof.pValue, misfit >= MISFIT_RATIO_MATTERS) };
   }
-  if (out.influential.total > 0) {
-    const strong = out.influential.rows.filter((r) => r.cooksDistance > 1);
-    if (strong.length)
-      warnings.push(
-        `${strong.length} row(s) have Cook's distance above 1 (lines ${strong
-          .slice(0, 5)
-          .map((r) => r.line)
-          .join(', ')}): check them before trusting the curve.`,
-      );
-  }
+  if (n >= 3 && spread) out.rowOrder = rowOrderCheck(checked.residuals, x, data.lines);
   if (n >= 3 && checked.scale > 0) {
     const std = new Float64Array(n);
     for (let i = 0; i < n; i++) {
@@ -99,7 +103,14 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
     const qq = normalQuantiles(std, QQ_POINTS);
     out.normalQuantiles = { theoretical: Array.from(qq.theoretical), sample: Array.from(qq.sample) };
   }
+  out.warnings = checkWarnings(out, fit, n);
   return out;
+}
+
+function maxAbs(a: Float64Array): number {
+  let m = 0;
+  for (const v of a) m = Math.max(m, Math.abs(v));
+  return m;
 }
 
 /** Model-matrix rows of a regression basis at x sorted ascending (scaled by sqrt(w)), or undefined for the smoothing spline. */

@@ -68,8 +68,9 @@ export const poissonFamily: OutcomeFamily = {
   outcome: 'counts',
   distribution: 'Poisson',
   link: 'log',
-  validReading: (y) => y >= 0,
-  readingRule: 'counts must be at least 0',
+  // Poisson readings are counts of events: whole numbers of at least 0 (McCullagh & Nelder 1989, chapter 6; chapter from memory).
+  validReading: (y) => y >= 0 && Number.isInteger(y),
+  readingRule: 'counts must be whole numbers of at least 0',
   boundNote: (rows) => `${rows} row(s) have a fitted mean numerically 0; the curve's logarithm runs off to minus infinity there and its bands are unreliable.`,
   predictionLimits: (lowP, highP, lo, hi) => [qpois(lowP, lo), qpois(highP, hi)],
   linkfun: (mu) => Math.log(mu),
@@ -114,7 +115,7 @@ export const binomialFamily: OutcomeFamily = {
 };
 
 /**
- * Checks that y fits the outcome: Poisson counts y >= 0; binomial proportions 0 <= y <= 1.
+ * Checks that y fits the outcome: Poisson counts whole numbers y >= 0; binomial proportions 0 <= y <= 1.
  * Throws InputError naming the first bad row's CSV line. O(n).
  * Example: checkOutcomeData('counts', { x, y: Float64Array.of(0, 2, -1) }) throws for the third row.
  */

@@ -17,6 +17,10 @@ import { parseColumns } from '../table/columns';
 import { OPTIONAL_COLUMNS, TABLE_COLUMNS } from '../table/curveTable';
 import { DEFAULT_GRID_COUNT, MAX_GRID_POINTS, parseGrid } from '../table/grid';
 import { metricLabel, sig } from '../tune/format';
+import { DEFAULT_TOLERANCE_PERCENT, errorPlace } from '../tune/rules';
+import { atPlace } from '../words/numbers';
+import { checkViews } from '../view/words';
+import { dispersionNumbers } from '../words/checks';
 import { isPlainModel, MAX_HUBER_K } from '../fit/model';
 import { modelReportJson, modelSpecJson } from '../fit/modelJson';
 import { HUBER_K } from '../fit/robust';
@@ -533,7 +537,15 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
         ...c,
         errors: Object.fromEntries(Object.entries(c.errors).map(([k, e]) => [k, { mean: finite(e.mean), se: finite(e.se), values: e.values.map(finite) }])),
       }));
-      out.selected = { df: t.selected.df, rule: t.selected.rule, metric: t.selected.metric, reason: t.selected.reason, threshold: t.selected.threshold ?? null, alternatives: t.selected.alternatives };
+      out.selected = {
+        df: t.selected.df,
+        rule: t.selected.rule,
+        metric: t.selected.metric,
+        reason: t.selected.reason,
+        threshold: t.selected.threshold ?? null,
+        alternatives: t.selected.alternatives,
+        edge: t.selected.edge ?? null,
+      };
       if (t.holdout) out.holdout = t.holdout;
     }
     process.stdout.write(JSON.stringify(out) + '\n');
@@ -545,18 +557,24 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     ];
     if (analysis) {
       lines.push(`Tuning (${formatResampling(analysis.tune.resample)}, seed ${analysis.tune.seed}):`);
+      // The decimal place of the explanation below (errorPlace), so each mean reads the same in both.
+      const rule = analysis.tune.selected.rule;
+      const place = errorPlace(analysis.tune.candidates, analysis.tune.metric, rule.kind === 'simplest-within' ? rule.percent : DEFAULT_TOLERANCE_PERCENT);
       for (const c of analysis.tune.candidates) {
         const e = c.errors[analysis.tune.metric];
-        lines.push(c.skipped ? `  df ${c.df}: skipped - ${c.skipped}` : `  df ${c.df}: ${metricLabel(analysis.tune.metric)} ${sig(e?.mean ?? NaN)} (SE ${sig(e?.se ?? NaN, 2)})`);
+        lines.push(c.skipped ? `  df ${c.df}: skipped - ${c.skipped}` : `  df ${c.df}: ${metricLabel(analysis.tune.metric)} ${atPlace(e?.mean ?? NaN, place)} (SE ${sig(e?.se ?? NaN, 2)})`);
       }
       lines.push(analysis.tune.selected.reason);
       if (analysis.tune.holdout)
         lines.push(`Held-out rows: ${analysis.tune.holdout.rows}, RMSE ${sig(analysis.tune.holdout.rmse)}${analysis.tune.holdout.warning ? ` - ${analysis.tune.holdout.warning}` : ''}`);
     }
     const explained = byDeviance(fit) ? `deviance explained ${sig(100 * fit.r2, 3)} %` : `R² ${sig(fit.r2, 4)}`;
-    lines.push(`Fit: ${fit.kind} df ${sig(fit.df, 4)}, residual SD ${sig(fit.sigma)}, ${explained}, LOO RMSE ${sig(fit.looRmse)}, GCV ${sig(fit.gcv)}`);
+    // 4 digits, as the report's and the panel's fit line print them.
+    lines.push(`Fit: ${fit.kind} df ${sig(fit.df, 4)}, residual SD ${sig(fit.sigma, 4)}, ${explained}, LOO RMSE ${sig(fit.looRmse, 4)}, GCV ${sig(fit.gcv, 4)}`);
     if (!isPlainModel(args.options)) lines.push(modelLine(fit, args.trials));
     for (const note of fit.notes) lines.push(`Note: ${note}`);
+    // The residual checks in the words of the panel and the report (core/view/words.ts).
+    for (const c of checkViews(diagnostics)) lines.push(`Check: ${c.name}: ${c.text}`);
     const ip = deliverables.summary.interpolation;
     lines.push(
       `Table: ${deliverables.summary.points} rows` +
@@ -578,7 +596,10 @@ function modelLine(fit: FitResult, trials: string | undefined): string {
   if (!m) return 'Model: continuous readings, least squares';
   const o = outcomeKind(m.outcome);
   const parts = [`${o.id} readings (${o.distribution}, ${o.link} link)${trials !== undefined ? `, trials from column "${trials}"` : ''}`];
-  if (m.glm) parts.push(`deviance ${sig(m.glm.deviance)} (flat curve ${sig(m.glm.nullDeviance)}), Pearson dispersion ${sig(m.glm.dispersion)}`);
+  if (m.glm)
+    parts.push(
+      `deviance ${sig(m.glm.deviance)} (flat curve ${sig(m.glm.nullDeviance)}), ${dispersionNumbers({ ratio: m.glm.dispersion, residualDf: fit.residualDf, pearsonChi2: m.glm.pearsonChi2 })}`,
+    );
   if (m.constraints) parts.push(`shape ${m.shape.join(' + ')}: ${m.constraints.active} of ${m.constraints.total} constraints active`);
   if (m.robust) {
     const rows = m.robust.downweighted.rows;

@@ -1,5 +1,4 @@
-import type { Analysis } from '../analysis/types';
-import type { Diagnostics } from '../analysis/types';
+import type { Analysis, Diagnostics } from '../analysis/types';
 import type { RejectedRow } from '../ingest/select';
 import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from './plan';
 import type { TableColumn } from '../table/curveTable';
@@ -85,6 +84,41 @@ function derivedPlan(input: RecordInput): FitPlan {
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
 
+/** An object's numbers with non-finite values as null (JSON has no NaN), other values as they are. */
+function finiteFields<T extends object>(o: T | undefined): Record<string, unknown> | null {
+  if (!o) return null;
+  return Object.fromEntries(Object.entries(o).map(([k, v]) => [k, typeof v === 'number' ? num(v) : v]));
+}
+
+/**
+ * The record's diagnostics: each test with its effect size and verdict, the dispersion of
+ * counts and proportions, the drift in row order (its measure; the plot series stays in the
+ * panel), whether the curve passes through every reading, every influential row with the
+ * rules it breaks (the first `shown` are the ones the report and the panel list by line),
+ * their CSV lines, and the warnings.
+ */
+function diagnosticsRecord(d: Diagnostics): Record<string, unknown> {
+  const inf = d.influential;
+  const row = d.rowOrder;
+  return {
+    shapiroWilk: finiteFields(d.shapiroWilk),
+    durbinWatson: finiteFields(d.durbinWatson),
+    breuschPagan: finiteFields(d.breuschPagan),
+    lackOfFit: finiteFields(d.lackOfFit),
+    dispersion: finiteFields(d.dispersion),
+    rowOrder: row ? { lag1: num(row.lag1), runs: finiteFields(row.runs), sameAsX: row.sameAsX, sizeMatters: row.sizeMatters, flagged: row.flagged } : null,
+    exactFit: finiteFields(d.exactFit),
+    influence: {
+      thresholds: inf.thresholds.map((t) => ({ rule: t.rule, measure: t.measure, value: num(t.value), source: t.source })),
+      total: inf.total,
+      shown: inf.shown,
+      rows: inf.rows.map((r) => ({ line: r.line, leverage: num(r.leverage), cooksDistance: num(r.cooksDistance), studentized: num(r.studentized), exceeds: r.exceeds })),
+    },
+    influentialRows: inf.rows.map((r) => r.line),
+    warnings: d.warnings,
+  };
+}
+
 /**
  * The fit record: everything needed to rebuild and audit the curve table (data file and its
  * SHA-256, columns, rows used and rejected, the full spec, knots, coefficients, the chosen
@@ -166,16 +200,10 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
             c.skipped !== undefined ? { df: c.df, skipped: c.skipped } : { df: c.df, ...Object.fromEntries(Object.entries(c.errors).map(([k, e]) => [k, { mean: num(e.mean), se: num(e.se) }])) },
           ),
           holdout: a.tune.holdout ?? null,
+          edge: a.tune.selected.edge ?? null,
         }
       : null,
-    diagnostics: {
-      shapiroWilk: input.diagnostics.shapiroWilk ?? null,
-      durbinWatson: input.diagnostics.durbinWatson ?? null,
-      breuschPagan: input.diagnostics.breuschPagan ?? null,
-      lackOfFit: input.diagnostics.lackOfFit ?? null,
-      influentialRows: input.diagnostics.influential.rows.map((r) => r.line),
-      warnings: input.diagnostics.warnings,
-    },
+    diagnostics: diagnosticsRecord(input.diagnostics),
     table: {
       file: input.tableFile,
       sha256: input.tableSha256,

@@ -9,7 +9,9 @@ import type { Analysis, Diagnostics } from '../analysis/types';
 import type { RejectedRow } from '../ingest/select';
 import { shellWord } from '../outputs/shellWord';
 import { num } from '../plots/svg';
-import { percent } from '../words/numbers';
+import { atPlace, percent, sig } from '../words/numbers';
+import { dispersionNumbers, influenceBreakdown, thresholdWords } from '../words/checks';
+import { DEFAULT_TOLERANCE_PERCENT, errorPlace } from '../tune/rules';
 import type { TableSummary } from '../outputs/record';
 import { metricLabel } from '../tune/format';
 import type { FitResult } from '../types';
@@ -74,9 +76,10 @@ function whyThisDf(a: Analysis | undefined, fit: FitResult): string[] {
   const out = [`${md(s.reason)}`, '', `Errors were estimated by ${md(resamplingWords(t.resample, t.seed))}; the rule is the ${md(ruleWords(s.rule))} (\`--rule ${formatRule(s.rule)}\`).`];
   if (t.holdout) {
     const h = t.holdout;
+    // Three digits, as the held-out warning prints them (core/analysis/analysis.ts).
     out.push(
       '',
-      `Held-out check (${h.rows} rows, ${num(100 * h.fraction, 3)} % set aside before tuning and used once): RMSE ${num(h.rmse)} against the resampled ${num(h.resampledRmse)}.${h.warning ? ` **${md(h.warning)}**` : ''}`,
+      `Held-out check (${h.rows} rows, ${num(100 * h.fraction, 3)} % set aside before tuning and used once): RMSE ${sig(h.rmse)} against the resampled ${sig(h.resampledRmse)}.${h.warning ? ` **${md(h.warning)}**` : ''}`,
     );
   }
   return [...out, ''];
@@ -85,6 +88,9 @@ function whyThisDf(a: Analysis | undefined, fit: FitResult): string[] {
 function candidateTable(a: Analysis): string[] {
   const metric = a.tune.metric;
   const label = metricLabel(metric);
+  // The decimal place of the explanation (errorPlace), so each mean reads here as it does there.
+  const rule = a.tune.selected.rule;
+  const place = errorPlace(a.tune.candidates, metric, rule.kind === 'simplest-within' ? rule.percent : DEFAULT_TOLERANCE_PERCENT);
   const out = [`| df | mean ${label} | SE | AIC | BIC | |`, '| ---: | ---: | ---: | ---: | ---: | --- |'];
   for (const c of a.tune.candidates) {
     if (c.skipped !== undefined) {
@@ -94,11 +100,16 @@ function candidateTable(a: Analysis): string[] {
     const e = c.errors[metric];
     const chosen = c.df === a.tune.selected.df ? '**chosen**' : '';
     out.push(
-      `| ${num(c.df)} | ${e ? num(e.mean, 5) : ''} | ${e && Number.isFinite(e.se) ? num(e.se, 3) : ''} | ${c.aic !== undefined ? num(c.aic, 6) : ''} | ${c.bic !== undefined ? num(c.bic, 6) : ''} | ${chosen} |`,
+      `| ${num(c.df)} | ${e ? atPlace(e.mean, place) : ''} | ${e && Number.isFinite(e.se) ? sig(e.se, 2) : ''} | ${c.aic !== undefined ? num(c.aic, 6) : ''} | ${c.bic !== undefined ? num(c.bic, 6) : ''} | ${chosen} |`,
     );
   }
-  if (a.tune.selected.threshold !== undefined) out.push('', `Threshold of the rule: ${num(a.tune.selected.threshold, 5)}.`);
+  if (a.tune.selected.threshold !== undefined) out.push('', `Threshold of the rule: ${atPlace(a.tune.selected.threshold, place)}.`);
   return [...out, ''];
+}
+
+/** The influence thresholds with their sources, for the report. */
+function thresholdList(inf: Diagnostics['influential']): string {
+  return inf.thresholds.map((t) => `${thresholdWords(t)} (${md(t.source)})`).join('; ');
 }
 
 function checks(d: Diagnostics, fit: FitResult): string[] {
@@ -109,15 +120,14 @@ function checks(d: Diagnostics, fit: FitResult): string[] {
     `Fit: residual SD ${num(fit.sigma)}, ${fit.model?.glm ? `deviance explained ${percent(fit.r2)}` : `R² ${num(fit.r2)}`}, exact leave-one-out RMSE ${num(fit.looRmse)}, GCV ${num(fit.gcv)}, AIC ${num(fit.aic, 6)}, BIC ${num(fit.bic, 6)}.`,
   );
   const inf = d.influential;
-  if (inf.total === 0) out.push('', 'No row exceeds the influence thresholds.');
+  if (d.exactFit) out.push('', 'The curve passes through every reading, so no row is judged for influence.');
+  else if (inf.total === 0) out.push('', `No row stands out. Thresholds: ${thresholdList(inf)}.`);
   else {
-    out.push(
-      '',
-      `Influential rows (${inf.total}; thresholds: ${inf.thresholds.map((t) => `${t.measure === 'cooks' ? "Cook's distance" : 'leverage'} > ${num(t.value, 3)} (${md(t.source)})`).join(', ')}):`,
-      '',
-    );
-    for (const r of inf.rows.slice(0, REPORT_LIST_LIMIT)) out.push(`- line ${r.line}: leverage ${num(r.leverage, 3)}, Cook's distance ${num(r.cooksDistance, 3)}`);
-    if (inf.rows.length > REPORT_LIST_LIMIT) out.push(`- … and ${inf.rows.length - REPORT_LIST_LIMIT} more`);
+    out.push('', `Rows that stand out: ${inf.total} (${md(influenceBreakdown(inf))}). Thresholds: ${thresholdList(inf)}.`, '');
+    for (const r of inf.rows.slice(0, inf.shown)) {
+      out.push(`- line ${r.line}: studentized residual ${num(r.studentized, 3)}, Cook's distance ${num(r.cooksDistance, 3)}, leverage ${num(r.leverage, 3)}`);
+    }
+    if (inf.total > inf.shown) out.push(`- … and ${inf.total - inf.shown} more (all are listed in the fit record)`);
   }
   return [...out, ''];
 }
@@ -180,7 +190,7 @@ function modelSection(fit: FitResult): string[] {
   out.push(`- Readings: ${outcome}; ${m.converged ? `converged in ${m.iterations} iteration${m.iterations === 1 ? '' : 's'}` : `**did not converge** in ${m.iterations} iterations`}.`);
   if (m.glm)
     out.push(
-      `- Deviance explained ${percent(1 - m.glm.deviance / m.glm.nullDeviance)} (deviance ${num(m.glm.deviance, 6)}; ${num(m.glm.nullDeviance, 6)} for a flat curve); dispersion (Pearson chi-square / residual df) ${num(m.glm.dispersion, 4)}. Bands are computed on the ${m.link} scale and mapped back.`,
+      `- Deviance explained ${percent(1 - m.glm.deviance / m.glm.nullDeviance)} (deviance ${num(m.glm.deviance, 6)}; ${num(m.glm.nullDeviance, 6)} for a flat curve); ${dispersionNumbers({ ratio: m.glm.dispersion, residualDf: fit.residualDf, pearsonChi2: m.glm.pearsonChi2 })} over the residual df. Bands are computed on the ${m.link} scale and mapped back.`,
     );
   if (m.shape.length) {
     const c = m.constraints;

@@ -465,6 +465,61 @@ export function pf(q: number, df1: number, df2: number, lowerTail = true): numbe
   return betaTail(u / denominator, df2 / denominator, df1 / 2, df2 / 2, lowerTail);
 }
 
+/** Bisection steps of qf: each halves the bracket, so 1100 reach any double in (0, 1) from [0, 1]. */
+const QF_MAX_STEPS = 1100;
+/** qf stops when the bracket of the beta variable is this narrow relative to its value. */
+const QF_RELATIVE_TOLERANCE = 1e-15;
+
+/**
+ * Quantile of the F distribution with df1, df2 > 0 (df2 may be Infinity): the q with
+ * P(X <= q) = p, or P(X > q) = p when `lowerTail` is false. Inverts pf through the beta
+ * variable x = df1 q / (df1 q + df2) (Abramowitz & Stegun 1964, section 26.6) by bisection on
+ * [0, 1], which cannot miss since I_x is monotone; then q = df2 x / (df1 (1 - x)). Accurate
+ * to about 1e-14 relative. Cost: up to QF_MAX_STEPS evaluations of pf (about 50 for a median).
+ * Example: qf(0.5, 8, 992) is the median of F(8, 992), about 0.92.
+ */
+export function qf(p: number, df1: number, df2: number, lowerTail = true): number {
+  checkProbability('qf', p);
+  checkPositive('qf', 'df1', df1);
+  checkPositive('qf', 'df2', df2);
+  if (df2 === Infinity) {
+    // F(df1, Infinity) is chi-square(df1) / df1: bisection on the chi-square scale.
+    return bisect((q) => pchisq(q * df1, df1, lowerTail), p, lowerTail);
+  }
+  const target = lowerTail ? p : 1 - p;
+  if (target <= 0) return 0;
+  if (target >= 1) return Infinity;
+  let lo = 0;
+  let hi = 1;
+  for (let k = 0; k < QF_MAX_STEPS && hi - lo > QF_RELATIVE_TOLERANCE * hi; k++) {
+    const mid = lo / 2 + hi / 2;
+    if (mid <= lo || mid >= hi) break;
+    const below = lowerTail ? pbeta(mid, df1 / 2, df2 / 2) < p : pbeta(mid, df1 / 2, df2 / 2, false) > p;
+    if (below) lo = mid;
+    else hi = mid;
+  }
+  const x = lo / 2 + hi / 2;
+  return (df2 * x) / (df1 * (1 - x));
+}
+
+/** The q with cdf(q) = p (lower tail) or cdf(q) = p as an upper tail, for an increasing lower-tail cdf on [0, Infinity). */
+function bisect(cdf: (q: number) => number, p: number, lowerTail: boolean): number {
+  const below = (q: number): boolean => (lowerTail ? cdf(q) < p : cdf(q) > p);
+  let lo = 0;
+  let hi = 1;
+  for (let k = 0; k < QF_MAX_STEPS && below(hi); k++) {
+    lo = hi;
+    hi *= 2;
+  }
+  for (let k = 0; k < QF_MAX_STEPS && hi - lo > QF_RELATIVE_TOLERANCE * hi; k++) {
+    const mid = lo / 2 + hi / 2;
+    if (mid <= lo || mid >= hi) break;
+    if (below(mid)) lo = mid;
+    else hi = mid;
+  }
+  return lo / 2 + hi / 2;
+}
+
 function checkPositive(fn: string, name: string, value: number): void {
   if (!(value > 0)) throw new RangeError(`${fn}: ${name} must be > 0, got ${value}`);
 }

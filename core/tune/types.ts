@@ -53,6 +53,25 @@ export interface Selection {
   readonly threshold?: number;
   /** What each of the other rules would have chosen. */
   readonly alternatives: readonly { readonly rule: RuleSpec; readonly df: number }[];
+  /** Present when the chosen df or the least error sits at an end of the candidates (core/tune/rules.ts candidateEdge). */
+  readonly edge?: CandidateEdge;
+}
+
+/**
+ * A choice at an end of the candidate range: the best df may lie beyond the candidates.
+ * `widen` is a wider candidate range in the form the command line's --df and the editor's
+ * knotwise.candidates setting take (e.g. '2..20').
+ */
+export interface CandidateEdge {
+  /** Which end: the largest candidate df ('upper') or the smallest one above df 2 ('lower'). */
+  readonly side: 'lower' | 'upper';
+  /** The candidate df at that end. */
+  readonly df: number;
+  /** True when the chosen df is that candidate. */
+  readonly chosen: boolean;
+  /** True when the least mean error is at that candidate. */
+  readonly leastError: boolean;
+  readonly widen: string;
 }
 
 /** Errors of the chosen fit on the held-out check set, next to the resampled estimate. */

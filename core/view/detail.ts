@@ -3,8 +3,10 @@
  * stays small at any n.
  */
 import type { Diagnostics } from '../analysis/types';
+import { influenceOf } from '../analysis/influence';
 import { checkResiduals } from '../fit/modelResiduals';
-import type { FitDetail, InfluentialRow, ModelReportView } from './model';
+import type { InfluenceRule } from '../stats/influence';
+import type { FitDetail, InfluentialRow, ModelReportView, RowOrderView } from './model';
 import { num } from '../plots/svg';
 import type { FitResult, XYData } from '../types';
 import { cloudOf, DEFAULT_CLOUD_LIMITS, type CloudLimits } from './cloud';
@@ -13,29 +15,14 @@ import { maxPerCell, normalQuantiles } from './series';
 import { checkViews, modelReportLines } from './words';
 import { renderOptions } from '../words/options';
 
-/** Largest number of influential rows listed by line. */
-export const MAX_INFLUENTIAL_LISTED = 30;
 /** Largest number of down-weighted rows (robust fits) listed by line. */
 export const MAX_DOWNWEIGHTED_LISTED = 30;
 /** Number of x cells of the thinned influence figures. */
 const INFLUENCE_CELLS = 240;
 /** Number of quantiles of the normal quantile plot for large n. */
 const QQ_POINTS = 300;
-
-/** Thresholds that mark a row as influential, with where they come from. */
-export interface InfluenceThresholds {
-  readonly cooks: number;
-  readonly leverage: number;
-}
-
-/**
- * Cook's distance above 4/n (common practice) and leverage above 2 df / n (Hoaglin &
- * Welsch 1978, "The hat matrix in regression and ANOVA", The American Statistician 32(1),
- * 17-22). Used when the analysis supplied no thresholds. Example: defaultThresholds(100, 5).leverage === 0.1.
- */
-export function defaultThresholds(n: number, df: number): InfluenceThresholds {
-  return { cooks: 4 / n, leverage: (2 * df) / n };
-}
+/** Cook's distance line drawn where the median of F(df, n - df) is undefined (no residual df): Cook & Weisberg's (1982) rule of thumb of 1. */
+const COOKS_FALLBACK = 1;
 
 /** Options of fitDetail. */
 export interface DetailOptions {
@@ -91,23 +78,26 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
   }
   // Counts and proportions: deviance residuals (on a common scale); otherwise reading minus fit, in units of y.
   const shown = checked.kind === 'deviance' ? checked.residuals : fit.residuals;
-  const given = options.diagnostics?.influential.thresholds;
-  const th = defaultThresholds(n, fit.df);
-  const cooksThreshold = given?.find((t) => t.measure === 'cooks')?.value ?? th.cooks;
-  const leverageThreshold = given?.find((t) => t.measure === 'leverage')?.value ?? th.leverage;
-
-  const flagged: number[] = [];
-  for (let i = 0; i < n; i++) {
-    if ((fit.cooksDistance[i] as number) > cooksThreshold || (fit.leverage[i] as number) > leverageThreshold) flagged.push(i);
-  }
-  flagged.sort((a, b) => (fit.cooksDistance[b] as number) - (fit.cooksDistance[a] as number));
-  const influential: InfluentialRow[] = flagged.slice(0, MAX_INFLUENTIAL_LISTED).map((i) => {
+  // The analysis's influence report when given (the same rows the record and the report list), else the same rules here.
+  const report = options.diagnostics?.influential ?? influenceOf(fit, data);
+  const limit = (rule: InfluenceRule): number => report.thresholds.find((t) => t.rule === rule)?.value ?? NaN;
+  const cooksThreshold = Number.isFinite(limit('cooks')) ? limit('cooks') : COOKS_FALLBACK;
+  const leverageThreshold = limit('leverage');
+  const outlierThreshold = limit('outlier');
+  const influential: InfluentialRow[] = report.rows.slice(0, report.shown).map((r) => {
     const exceeds: string[] = [];
-    const d = fit.cooksDistance[i] as number;
-    const h = fit.leverage[i] as number;
-    if (d > cooksThreshold) exceeds.push(`Cook's distance ${num(d, 3)} > ${num(cooksThreshold, 3)}`);
-    if (h > leverageThreshold) exceeds.push(`leverage ${num(h, 3)} > ${num(leverageThreshold, 3)}`);
-    return { line: lines ? (lines[i] as number) : 0, x: roundSig(data.x[i] as number), y: roundSig(data.y[i] as number), leverage: roundSig(h, 5), cooksDistance: roundSig(d, 5), exceeds };
+    if (r.exceeds.includes('outlier')) exceeds.push(`|studentized residual| ${num(Math.abs(r.studentized), 3)} > ${num(outlierThreshold, 3)} (Bonferroni outlier test)`);
+    if (r.exceeds.includes('cooks')) exceeds.push(`Cook's distance ${num(r.cooksDistance, 3)} > ${num(cooksThreshold, 3)}`);
+    if (r.exceeds.includes('leverage')) exceeds.push(`leverage ${num(r.leverage, 3)} > ${num(leverageThreshold, 3)}`);
+    return {
+      line: lines ? (lines[r.index] as number) : 0,
+      x: roundSig(data.x[r.index] as number),
+      y: roundSig(data.y[r.index] as number),
+      leverage: roundSig(r.leverage, 5),
+      cooksDistance: roundSig(r.cooksDistance, 5),
+      ...(Number.isFinite(r.studentized) ? { studentized: roundSig(r.studentized, 5) } : {}),
+      exceeds,
+    };
   });
 
   const warnings: string[] = [];
@@ -124,6 +114,7 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
   const cooks = maxPerCell(data.x, fit.cooksDistance, lines, limits.maxPoints, INFLUENCE_CELLS);
   const lev = maxPerCell(data.x, fit.leverage, lines, limits.maxPoints, INFLUENCE_CELLS);
   const model = modelReportView(fit, data);
+  const rowOrder = rowOrderView(options.diagnostics);
   if (fit.model && !fit.model.converged) warnings.push(`The fit at df ${num(fit.df, 4)} did not converge; treat this curve with caution.`);
   return {
     df: fit.df,
@@ -143,10 +134,28 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
     leverage: { x: lev.x, h: lev.v, lines: lev.lines, binned: lev.binned },
     cooksThreshold: roundSig(cooksThreshold, 5),
     leverageThreshold: roundSig(leverageThreshold, 5),
+    ...(Number.isFinite(outlierThreshold) ? { outlierThreshold: roundSig(outlierThreshold, 5) } : {}),
     influential,
-    influentialTotal: flagged.length,
+    influentialTotal: report.total,
     checks,
     warnings: warnings.map((t) => renderOptions(t, 'editor')),
     ...(model ? { model } : {}),
+    ...(rowOrder ? { rowOrder } : {}),
+  };
+}
+
+/** The row-order series and its drift measure for the panel (numbers rounded for display). */
+function rowOrderView(d: Diagnostics | undefined): RowOrderView | undefined {
+  const r = d?.rowOrder;
+  if (!r) return undefined;
+  return {
+    row: r.series.row,
+    line: r.series.line,
+    residual: roundAll(r.series.residual),
+    blockSize: r.series.blockSize,
+    lag1: roundSig(r.lag1, 5),
+    ...(Number.isFinite(r.runs.z) ? { runsZ: roundSig(r.runs.z, 5), runsPValue: roundSig(r.runs.pValue, 5) } : {}),
+    sameAsX: r.sameAsX,
+    flagged: r.flagged,
   };
 }

@@ -52,16 +52,20 @@ export interface InfluentialRow {
   readonly y: number;
   readonly leverage: number;
   readonly cooksDistance: number;
+  /** Studentized residual (likelihood residual for counts and proportions; absent where undefined). */
+  readonly studentized?: number;
   /** Which thresholds it exceeds, in words. */
   readonly exceeds: readonly string[];
 }
 
-/** One residual check's outcome in words (statistic, p-value, verdict). */
+/** One residual check's outcome in words (statistic, p-value, effect size, verdict). */
 export interface CheckView {
   readonly name: string;
   readonly text: string;
-  /** True when the check flags a problem at the 5 % level. */
+  /** True when the test is significant at the 5 % level and its effect size matters. */
   readonly flagged: boolean;
+  /** The effect size that decides with the p-value, with the threshold from which it matters (core/analysis/checks.ts). */
+  readonly effect?: { readonly name: string; readonly value: number; readonly threshold: number; readonly matters: boolean };
 }
 
 /** A row a robust (Huber) fit gave weight below 1, named by its CSV line. */
@@ -110,11 +114,15 @@ export interface FitDetail {
   readonly cooks: { readonly x: readonly number[]; readonly d: readonly number[]; readonly lines: readonly number[]; readonly binned: boolean };
   /** Leverage against x, drawn like `cooks`. */
   readonly leverage: { readonly x: readonly number[]; readonly h: readonly number[]; readonly lines: readonly number[]; readonly binned: boolean };
+  /** Cook's distance above the median of F(df, n - df) marks a row (1 where that is undefined). */
   readonly cooksThreshold: number;
+  /** Leverage above max(0.5, 3 df / n) marks a row. */
   readonly leverageThreshold: number;
-  /** Influential rows, largest Cook's distance first, at most a few dozen. */
+  /** |Studentized residual| above this marks an outlier (Bonferroni test at 5 %); absent without residual df. */
+  readonly outlierThreshold?: number;
+  /** The influential rows to show by line: the ten furthest past a threshold (core/stats/influence.ts). */
   readonly influential: readonly InfluentialRow[];
-  /** How many rows exceed a threshold in total. */
+  /** How many rows exceed a threshold in total (all are listed in the fit record). */
   readonly influentialTotal: number;
   /** Residual checks (present for the df they were computed for). */
   readonly checks: readonly CheckView[];
@@ -122,6 +130,29 @@ export interface FitDetail {
   readonly warnings: readonly string[];
   /** Present when the readings are counts or proportions, or shape constraints or robust fitting were used. */
   readonly model?: ModelReportView;
+  /** Residuals against row order (the order of the file, usually of measurement), for a drift plot; absent when the checks were not run. */
+  readonly rowOrder?: RowOrderView | undefined;
+}
+
+/** Residuals in row order and the drift measure (core/analysis/rowOrder.ts). */
+export interface RowOrderView {
+  /** 1-based row position of each point (the first row of its block). */
+  readonly row: readonly number[];
+  /** CSV line of each point (0 when unknown). */
+  readonly line: readonly number[];
+  /** The residual, or the mean residual of the block (residuals as the checks examine them). */
+  readonly residual: readonly number[];
+  /** Rows per point: 1 up to 500 rows, else consecutive blocks. */
+  readonly blockSize: number;
+  /** Correlation of neighbouring rows' residuals. */
+  readonly lag1: number;
+  /** Runs test on the signs: z and one-sided p-value (too few runs means drift); absent when the residuals all share one sign. */
+  readonly runsZ?: number;
+  readonly runsPValue?: number;
+  /** The rows are in x order, so this repeats the Durbin-Watson check. */
+  readonly sameAsX: boolean;
+  /** Drift that matters: significant, and a correlation of neighbouring rows of 0.1 or more. */
+  readonly flagged: boolean;
 }
 
 /** Where the data came from and what the columns are called (text from the CSV: insert as text only). */

@@ -2,11 +2,14 @@
  * Plain words the panel and the report show for residual checks and model reports (the
  * words of curve kinds, outcomes, resampling schemes and rules live in core/registry/).
  */
-import type { Diagnostics } from '../analysis/types';
+import type { Diagnostics, SizedVerdict } from '../analysis/types';
+import { CHECK_LEVEL, EXCESS_KURTOSIS_MATTERS, LAG1_MATTERS, MISFIT_RATIO_MATTERS, SKEWNESS_MATTERS, SPREAD_RATIO_MATTERS } from '../analysis/checks';
+import { OVERDISPERSED, UNDERDISPERSED } from '../analysis/dispersion';
+import { breuschPaganNumbers, dispersionNumbers, durbinWatsonNumbers, lackOfFitNumbers, rowOrderNumbers, shapiroWilkNumbers } from '../words/checks';
 import { shapeWords } from '../fit/shape';
 import type { CheckView } from './model';
 import { num } from '../plots/svg';
-import { percent, testText } from '../words/numbers';
+import { percent, sig } from '../words/numbers';
 import { outcomeKind } from '../registry/outcomes/index';
 import type { ModelReport, Outcome, Shape } from '../types';
 
@@ -20,43 +23,108 @@ function methodWords(method: 'exact' | 'normal' | 'asymptotic'): string {
   return words[method];
 }
 
-/** The residual checks of a Diagnostics, each in one line, flagged at the 5 % level. */
+/** What a test found, in words: flagged (significant and large enough), significant but small, large but not significant, or nothing. */
+function verdictWords(pValue: number, v: SizedVerdict, words: { readonly found: string; readonly small: string; readonly none: string }): string {
+  if (v.flagged) return words.found;
+  if (pValue < CHECK_LEVEL) return `detectable (many rows make small departures significant), but ${words.small} is too small to matter`;
+  return v.sizeMatters ? `no clear evidence: the size reaches its threshold, but with these rows the test cannot tell it from chance` : words.none;
+}
+
+/**
+ * The residual checks of a Diagnostics, each in one line with its test, p-value and effect
+ * size, flagged when the test is significant at CHECK_LEVEL and the size matters
+ * (core/analysis/checks.ts); also the dispersion of counts and proportions and the drift in
+ * row order.
+ */
 export function checkViews(d: Diagnostics): CheckView[] {
   const out: CheckView[] = [];
   if (d.shapiroWilk) {
     const s = d.shapiroWilk;
-    const flagged = s.pValue < 0.05;
+    const words = {
+      found: 'the residuals depart from a normal distribution, so the prediction band may be off',
+      small: `a skewness under ${sig(SKEWNESS_MATTERS)} and an excess kurtosis under ${sig(EXCESS_KURTOSIS_MATTERS)} in size`,
+      none: 'no evidence against normal residuals',
+    };
+    const bySkew = Math.abs(s.skewness) / SKEWNESS_MATTERS >= Math.abs(s.excessKurtosis) / EXCESS_KURTOSIS_MATTERS;
     out.push({
       name: 'Shapiro-Wilk (are the residuals normal?)',
-      text: `${testText('W', [], s.statistic, s.pValue)}, n = ${s.n}: ${flagged ? 'the residuals depart from a normal distribution, so the prediction band may be off' : 'no evidence against normal residuals'}${s.note ? ` (${s.note})` : ''}.`,
-      flagged,
+      text: `${shapiroWilkNumbers(s)}, n = ${s.n}: ${verdictWords(s.pValue, s, words)}${s.note ? ` (${s.note})` : ''}.`,
+      flagged: s.flagged,
+      effect: bySkew
+        ? { name: 'skewness', value: s.skewness, threshold: SKEWNESS_MATTERS, matters: s.sizeMatters }
+        : { name: 'excess kurtosis', value: s.excessKurtosis, threshold: EXCESS_KURTOSIS_MATTERS, matters: s.sizeMatters },
     });
   }
   if (d.durbinWatson) {
     const s = d.durbinWatson;
-    const flagged = s.pValue < 0.05;
+    const words = {
+      found: 'neighbouring residuals are correlated, a sign of structure the curve misses or of drift',
+      small: `a lag-1 correlation below ${sig(LAG1_MATTERS)}`,
+      none: 'no evidence of correlated neighbours',
+    };
     out.push({
       name: 'Durbin-Watson (do neighbours in x order move together?)',
-      text: `${testText('DW', [], s.statistic, s.pValue)} (${methodWords(s.method)}): ${flagged ? 'neighbouring residuals are correlated, a sign of structure the curve misses or of drift' : 'no evidence of correlated neighbours'}.`,
-      flagged,
+      text: `${durbinWatsonNumbers(s, methodWords(s.method))}: ${verdictWords(s.pValue, s, words)}.`,
+      flagged: s.flagged,
+      effect: { name: 'lag-1 correlation', value: s.lag1, threshold: LAG1_MATTERS, matters: s.sizeMatters },
     });
   }
   if (d.breuschPagan) {
     const s = d.breuschPagan;
-    const flagged = s.pValue < 0.05;
+    const words = {
+      found: 'the spread of the residuals changes along the curve, so one band width does not fit everywhere',
+      small: `a spread ratio below ${sig(SPREAD_RATIO_MATTERS)}`,
+      none: 'no evidence of changing spread',
+    };
     out.push({
       name: 'Breusch-Pagan (does the spread change?)',
-      text: `${testText('BP χ²', [s.df], s.statistic, s.pValue)}: ${flagged ? 'the spread of the residuals changes along the curve, so one band width does not fit everywhere' : 'no evidence of changing spread'}.`,
-      flagged,
+      text: `${breuschPaganNumbers(s)}: ${verdictWords(s.pValue, s, words)}.`,
+      flagged: s.flagged,
+      effect: { name: 'spread ratio', value: s.spreadRatio, threshold: SPREAD_RATIO_MATTERS, matters: s.sizeMatters },
     });
   }
   if (d.lackOfFit) {
     const s = d.lackOfFit;
-    const flagged = s.pValue < 0.05;
+    const words = {
+      found: 'the curve misses the means of repeated readings by more than their scatter',
+      small: `a misfit below ${sig(MISFIT_RATIO_MATTERS)} of the replicate SD`,
+      none: 'the curve agrees with the means of repeated readings',
+    };
     out.push({
       name: 'Lack-of-fit F test (repeated x values)',
-      text: `${testText('F', [s.df1, s.df2], s.F, s.pValue)}: ${flagged ? 'the curve misses the means of repeated readings by more than their scatter' : 'the curve agrees with the means of repeated readings'}.`,
-      flagged,
+      text: `${lackOfFitNumbers(s)}: ${verdictWords(s.pValue, s, words)}.`,
+      flagged: s.flagged,
+      effect: { name: 'misfit ratio', value: s.misfitRatio, threshold: MISFIT_RATIO_MATTERS, matters: s.sizeMatters },
+    });
+  }
+  if (d.dispersion) {
+    const s = d.dispersion;
+    const words = {
+      over: `more scatter than the distribution allows (above ${sig(OVERDISPERSED)}), so the bands are too narrow`,
+      under: `less scatter than the distribution gives (below ${sig(UNDERDISPERSED, 2)}), so the bands are too wide`,
+      'as-expected': `the scatter matches the distribution (between ${sig(UNDERDISPERSED, 2)} and ${sig(OVERDISPERSED)})`,
+      binary: 'pass/fail readings one at a time cannot show over- or under-dispersion',
+    } as const;
+    const over = s.ratio >= 1;
+    out.push({
+      name: 'Dispersion (is the scatter what the distribution says?)',
+      text: `${dispersionNumbers(s)}: ${words[s.verdict]}.`,
+      flagged: s.verdict === 'over' || s.verdict === 'under',
+      effect: { name: 'dispersion', value: s.ratio, threshold: over ? OVERDISPERSED : UNDERDISPERSED, matters: s.verdict === 'over' || s.verdict === 'under' },
+    });
+  }
+  if (d.rowOrder) {
+    const s = d.rowOrder;
+    const words = {
+      found: 'the residuals drift along the rows: the readings may have changed while they were taken',
+      small: `a correlation of neighbouring rows below ${sig(LAG1_MATTERS)}`,
+      none: 'no evidence of drift along the rows',
+    };
+    out.push({
+      name: 'Row order (do the residuals drift along the file?)',
+      text: `${rowOrderNumbers(s)}: ${s.sameAsX ? 'the rows are in x order, so this repeats the Durbin-Watson check' : verdictWords(s.runs.pValue, s, words)}.`,
+      flagged: s.flagged,
+      effect: { name: 'correlation of neighbouring rows', value: s.lag1, threshold: LAG1_MATTERS, matters: s.sizeMatters },
     });
   }
   return out;
@@ -102,7 +170,7 @@ export function modelReportLines(r: ModelReport, residualDf: number): string[] {
     const g = r.glm;
     out.push(`Deviance explained ${percent(1 - g.deviance / g.nullDeviance)}: deviance ${num(g.deviance, 5)} on ${num(residualDf, 4)} residual df, ${num(g.nullDeviance, 5)} for a flat curve.`);
     out.push(
-      `Pearson dispersion ${num(g.dispersion, 3)}: about 1 when the spread follows the ${outcomeKind(r.outcome).distribution} distribution; well above 1 means overdispersion, and the bands are then too narrow.`,
+      `Pearson ${dispersionNumbers({ ratio: g.dispersion, residualDf, pearsonChi2: g.pearsonChi2 })}: about 1 when the spread follows the ${outcomeKind(r.outcome).distribution} distribution; above ${sig(OVERDISPERSED)} the bands are too narrow, below ${sig(UNDERDISPERSED, 2)} too wide (common practice).`,
     );
   }
   if (r.constraints) {

@@ -22,7 +22,6 @@ import { denseDesign } from '../../core/stats/design';
 import { durbinWatsonAndBreuschPagan } from '../../core/stats/designTests';
 import { lgamma, pbeta, pchisq, pf, pgamma, pnorm, pt, qnorm, qt } from '../../core/stats/distributions';
 import { durbinWatson } from '../../core/stats/durbinWatson';
-import { influentialRows } from '../../core/stats/influence';
 import { lackOfFit } from '../../core/stats/lackOfFit';
 import { normalQuantiles } from '../../core/stats/normalQuantiles';
 import { quantileType7 } from '../../core/stats/quantile';
@@ -43,11 +42,6 @@ interface FitRecord {
   readonly design: number[];
   readonly residuals: number[];
   readonly rss: number;
-  readonly leverage: number[];
-  readonly cooksDistance: number[];
-  readonly influentialLeverage: number[];
-  readonly influentialCooks: number[];
-  readonly influentialCooks1: number[];
   readonly shapiroWilk: TestRecord;
   readonly durbinWatson: TestRecord & { readonly method: 'exact' | 'normal'; readonly pValuePan100: number | null };
   readonly breuschPagan: TestRecord & { readonly df: number };
@@ -204,19 +198,6 @@ for (const c of fixture.cases) {
         rel(lof.pureErrorSS, ref.pureErrorSS, STAT_REL, 'pure error SS');
         rel(lof.lackOfFitSS, ref.lackOfFitSS, STAT_REL, 'lack-of-fit SS');
         assert.equal(lof.replicatedLevels, ref.replicatedLevels);
-      });
-
-      it("influentialRows flags the rows R's hatvalues and cooks.distance put above 2p/n, 4/n and 1", () => {
-        const report = influentialRows(Float64Array.from(r.leverage), Float64Array.from(r.cooksDistance), r.p, undefined, r.n);
-        const byRule = (rule: string): number[] =>
-          report.rows
-            .filter((row) => row.exceeds.some((e) => e === rule))
-            .map((row) => row.index)
-            .sort((a, b) => a - b);
-        assert.deepEqual(byRule('leverage > 2 df / n'), r.influentialLeverage);
-        assert.deepEqual(byRule("Cook's D > 4 / n"), r.influentialCooks);
-        assert.deepEqual(byRule("Cook's D > 1"), r.influentialCooks1);
-        assert.equal(report.total, new Set([...r.influentialLeverage, ...r.influentialCooks]).size);
       });
     });
   }

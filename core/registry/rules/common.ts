@@ -12,3 +12,14 @@ export function smallestUnder(list: readonly Usable[], threshold: number): Usabl
   for (const u of list) if (u.e.mean <= threshold) return u;
   return leastOf(list);
 }
+
+/** The candidate just simpler than `u` (the one before it by df), if any: the one the threshold turned away. */
+export function simplerThan(list: readonly Usable[], u: Usable): Usable | undefined {
+  return list[list.indexOf(u) - 1];
+}
+
+/** " The next simpler candidate, df 4, has 0.33, above it." when there is one, else ''. */
+export function aboveText(list: readonly Usable[], chosen: Usable, num: (v: number) => string): string {
+  const above = simplerThan(list, chosen);
+  return above ? ` The next simpler candidate, df ${above.df}, has ${num(above.e.mean)}, above it.` : '';
+}

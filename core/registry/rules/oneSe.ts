@@ -1,6 +1,5 @@
-import { sig } from '../../tune/format';
 import type { RuleSpec } from '../../tune/types';
-import { smallestUnder } from './common';
+import { aboveText, smallestUnder } from './common';
 import type { SelectionRule } from './types';
 
 type OneSe = Extract<RuleSpec, { kind: 'one-se' }>;
@@ -21,12 +20,12 @@ export const oneSe: SelectionRule<OneSe> = {
   parse: (text) => (text === 'one-se' ? { kind: 'one-se' } : undefined),
   format: () => 'one-se',
   words: () => 'one-standard-error rule',
-  pick(_r, { list, best, head, metricName }) {
+  pick(_r, { list, best, head, metricName, num }) {
     if (!Number.isFinite(best.e.se)) {
       return { chosen: best, sentence: `${head} The one-standard-error rule needs a standard error, which ${metricName} does not have here, so the least mean error decides: df ${best.df}.` };
     }
     const threshold = best.e.mean + best.e.se;
     const c = smallestUnder(list, threshold);
-    return { chosen: c, threshold, sentence: `${head} One-SE threshold ${sig(threshold)}. The smallest df at or under it is ${c.df} (${sig(c.e.mean)}), chosen.` };
+    return { chosen: c, threshold, sentence: `${head} One-SE threshold ${num(threshold)}. The smallest df at or under it is ${c.df} (${num(c.e.mean)}), chosen.${aboveText(list, c, num)}` };
   },
 };

@@ -19,9 +19,9 @@ export const pickDf: SelectionRule<PickDf> = {
   },
   format: (r) => `pick:${r.df}`,
   words: () => 'df picked by the person',
-  pick(r, { list, head, metricName }) {
+  pick(r, { list, head, metricName, num }) {
     const c = list.find((u) => u.df === r.df);
     if (!c) throw new InputError(`df ${r.df} was picked but is not an evaluated candidate (candidates: ${list.map((u) => u.df).join(', ')})`);
-    return { chosen: c, sentence: `${head} df ${c.df} was picked by the person (mean ${metricName} ${sig(c.e.mean)}${Number.isFinite(c.e.se) ? `, SE ${sig(c.e.se, 2)}` : ''}).` };
+    return { chosen: c, sentence: `${head} df ${c.df} was picked by the person (mean ${metricName} ${num(c.e.mean)}${Number.isFinite(c.e.se) ? `, SE ${sig(c.e.se, 2)}` : ''}).` };
   },
 };

@@ -1,7 +1,6 @@
 import { InputError } from '../../errors';
-import { sig } from '../../tune/format';
 import type { RuleSpec } from '../../tune/types';
-import { smallestUnder } from './common';
+import { aboveText, smallestUnder } from './common';
 import type { SelectionRule } from './types';
 
 type SimplestWithin = Extract<RuleSpec, { kind: 'simplest-within' }>;
@@ -33,10 +32,14 @@ export const simplestWithin: SelectionRule<SimplestWithin> = {
   },
   format: (r) => `simplest-within:${r.percent}`,
   words: (r) => `simplest within ${r.percent} % of the least error`,
-  pick(r, { list, best, head }) {
+  pick(r, { list, best, head, num }) {
     checkTolerance(r.percent);
     const threshold = best.e.mean * (1 + r.percent / 100);
     const c = smallestUnder(list, threshold);
-    return { chosen: c, threshold, sentence: `${head} Simplest within ${r.percent} %: threshold ${sig(threshold)}. The smallest df at or under it is ${c.df} (${sig(c.e.mean)}), chosen.` };
+    return {
+      chosen: c,
+      threshold,
+      sentence: `${head} Simplest within ${r.percent} %: threshold ${num(threshold)}. The smallest df at or under it is ${c.df} (${num(c.e.mean)}), chosen.${aboveText(list, c, num)}`,
+    };
   },
 };

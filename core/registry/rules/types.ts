@@ -28,6 +28,8 @@ export interface PickContext {
   readonly metricName: string;
   /** "Least mean RMSE 0.301 at df 7 (SE 0.012)." */
   readonly head: string;
+  /** A mean error or threshold as the sentence prints it: digits that tell the compared values apart (core/tune/rules.ts errorDigits). */
+  readonly num: (value: number) => string;
 }
 
 /** A selection rule. `R` is its spec type (a member of RuleSpec). */

@@ -112,7 +112,11 @@ describe('Poisson and binomial fits (IRLS)', () => {
     const lines = Int32Array.of(2, 3, 4, 5, 6);
     assert.throws(
       () => fitCurve({ x, y: Float64Array.of(1, 2, -1, 0, 3), lines }, { kind: 'natural-spline', df: 2, outcome: 'counts' }),
-      (e: unknown) => e instanceof InputError && e.place.line === 4 && /counts must be at least 0; got -1/.test(e.message),
+      (e: unknown) => e instanceof InputError && e.place.line === 4 && /counts must be whole numbers of at least 0; got -1/.test(e.message),
+    );
+    assert.throws(
+      () => fitCurve({ x, y: Float64Array.of(1, 2, 0.5, 0, 3), lines }, { kind: 'natural-spline', df: 2, outcome: 'counts' }),
+      (e: unknown) => e instanceof InputError && e.place.line === 4 && e.place.column === 'y' && /counts must be whole numbers of at least 0; got 0\.5/.test(e.message),
     );
     assert.throws(
       () => fitCurve({ x, y: Float64Array.of(0, 1, 0.5, 1.5, 0), lines }, { kind: 'natural-spline', df: 2, outcome: 'proportions' }),

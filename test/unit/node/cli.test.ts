@@ -238,6 +238,28 @@ describe('knotwise fit (command line)', () => {
     });
   });
 
+  describe('summary and JSON of issue 14 (numbers that carry their evidence, edges, checks)', () => {
+    it('the summary prints each candidate mean as the explanation does, and the residual checks in the words of the report', async () => {
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resampling', 'folds:5', '--seed', '1');
+      assert.equal(r0.code, 0, r0.stderr);
+      const why = /^Least mean RMSE (\S+) at df (\d+)/m.exec(r0.stdout);
+      assert.ok(why, r0.stdout);
+      assert.match(r0.stdout, new RegExp(`^  df ${why[2]}: RMSE ${(why[1] as string).replace('.', '\\.')} \\(SE `, 'm'));
+      assert.match(r0.stdout, /^Check: Durbin-Watson \(do neighbours in x order move together\?\): DW = [\d.]+, p [=<] [\d.e-]+ \([^)]*\); lag-1 correlation -?[\d.]+: /m);
+    });
+
+    it('a least error at the largest candidate is flagged in the explanation and in --json selected.edge (cars, leave-one-out, df 2..3)', async () => {
+      // R's exact leave-one-out RMSE of lm(dist ~ ns(speed, df = k - 1)): 15.697 at df 2, 15.647 at df 3 (fits.R), so the least is at the largest candidate.
+      const r0 = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..3', '--resampling', 'leave-one-out', '--rule', 'least-error', '--json');
+      assert.equal(r0.code, 0, r0.stderr);
+      const out = JSON.parse(r0.stdout) as Record<string, any>;
+      assert.deepEqual(out.selected.edge, { side: 'upper', df: 3, chosen: true, leastError: true, widen: '2..6' });
+      assert.match(out.selected.reason, /df 3 is the largest candidate and has the least error: the best df may lie beyond the candidates; widen them, e\.g\. --df 2\.\.6\./);
+      const inner = await run('fit', cars, '--x', 'speed', '--y', 'dist', '--df', '2..6', '--resampling', 'leave-one-out', '--rule', 'least-error', '--json');
+      assert.equal((JSON.parse(inner.stdout) as Record<string, any>).selected.edge, null);
+    });
+  });
+
   describe('bad input (issue #2 item 7): exit code 2 and a message saying what and where', () => {
     it('an empty file', async () => {
       const p = file('empty.csv', '');

@@ -150,6 +150,16 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     );
   });
 
+  it('--outcome counts refuses a reading that is not a whole number, or below 0, naming file, line and column (tuned and fixed df)', async () => {
+    // Issue 14, item 4: Poisson counts are whole numbers of at least 0 (McCullagh & Nelder 1989, chapter 6; chapter from memory).
+    const frac = csv('frac.csv', 'setting,defects', ['1,0', '2,3', '3,2.5', '4,4', '5,6', '6,5', '7,8', '8,9']);
+    for (const extra of [[], ['--df', '3']]) {
+      refused(await run('fit', frac, '--x', 'setting', '--y', 'defects', '--outcome', 'counts', ...extra), /frac\.csv, line 4, column "defects": counts must be whole numbers of at least 0; got 2\.5/);
+    }
+    const neg = csv('neg.csv', 'setting,defects', ['1,0', '2,-1', '3,2', '4,4', '5,6', '6,5', '7,8', '8,9']);
+    refused(await run('fit', neg, '--x', 'setting', '--y', 'defects', '--outcome', 'counts', '--df', '3'), /neg\.csv, line 3, column "defects": counts must be whole numbers of at least 0; got -1/);
+  });
+
   it('--trials rejects rows without trials by line and refuses successes above the trials, naming line and column', async () => {
     const bad = csv('trials.csv', 'dose,n,dead', ['1,10,0', '2,0,0', '3,10,4', '4,,1', '5,10,9', '6,10,10']);
     const r = await run('fit', bad, '--x', 'dose', '--y', 'dead', '--outcome', 'proportions', '--trials', 'n', '--df', '2', '--json');

@@ -145,6 +145,39 @@ describe('fit record and its JSON Schema', () => {
     assert.match(f.caution, /not a certified calibration/);
   });
 
+  it('the record carries each test with its effect size and verdict, the dispersion of counts, the drift in row order and every influential row', () => {
+    const r = records.tunedAuto as Record<string, any>;
+    const d = r.diagnostics;
+    // MASS::mcycle: the residual checks run (n = 133, df below n).
+    for (const key of ['shapiroWilk', 'durbinWatson', 'breuschPagan']) assert.equal(typeof d[key].flagged, 'boolean', key);
+    assert.equal(typeof d.durbinWatson.lag1, 'number');
+    assert.equal(typeof d.breuschPagan.spreadRatio, 'number');
+    assert.equal(typeof d.shapiroWilk.skewness, 'number');
+    assert.equal(d.exactFit, null);
+    assert.equal(d.dispersion, null);
+    assert.equal(typeof d.rowOrder.lag1, 'number');
+    assert.equal(d.rowOrder.series, undefined, 'the plot series stays in the panel');
+    assert.deepEqual(
+      d.influence.thresholds.map((t: { rule: string }) => t.rule),
+      ['outlier', 'cooks', 'leverage'],
+    );
+    assert.equal(d.influence.rows.length, d.influence.total);
+    assert.equal(d.influence.shown, Math.min(10, d.influence.total));
+    assert.deepEqual(
+      d.influentialRows,
+      d.influence.rows.map((row: { line: number }) => row.line),
+    );
+    const p = records.poissonTuned as Record<string, any>;
+    assert.ok(['over', 'under', 'as-expected'].includes(p.diagnostics.dispersion.verdict), JSON.stringify(p.diagnostics.dispersion));
+    assert.equal(p.diagnostics.breuschPagan, null);
+    // poissonTuned tunes df 2, 3, 4: the edge is flagged exactly when the least mean deviance
+    // (the record's own candidate errors) is at df 4, or df 4 is chosen (df 2 is never an edge).
+    const cands = p.selection.candidates as { df: number; deviance: { mean: number } }[];
+    const least = cands.reduce((a, b) => (b.deviance.mean < a.deviance.mean ? b : a));
+    const upper = least.df === 4 || p.selection.df === 4;
+    assert.deepEqual(p.selection.edge, upper ? { side: 'upper', df: 4, chosen: p.selection.df === 4, leastError: least.df === 4, widen: '2..8' } : null);
+  });
+
   it('a record made without a plan or table summary (as the editor writes it) still validates', () => {
     const cars = (JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixtures', 'fits.json'), 'utf8')) as { datasets: { cars: { x: number[]; y: number[] } } }).datasets.cars;
     const x = Float64Array.from(cars.x);
@@ -190,6 +223,12 @@ describe('fit record and its JSON Schema', () => {
       ['emitter not known', (r) => (r.spec.emit = ['rust'])],
       ['table column not known', (r) => (r.table.columns = ['x', 'fitted'])],
       ['missing regenerate command', (r) => delete r.regenerate],
+      ['missing selection edge', (r) => delete r.selection.edge],
+      ['edge on no known side', (r) => (r.selection.edge = { side: 'middle', df: 5, chosen: true, leastError: true, widen: '2..10' })],
+      ['influence rule not known', (r) => (r.diagnostics.influence.rows = [{ line: 2, leverage: 0.1, cooksDistance: 2, studentized: 1, exceeds: ['cooks > 4/n'] }])],
+      ['more than ten rows shown', (r) => (r.diagnostics.influence.shown = 11)],
+      ['test without its verdict', (r) => r.diagnostics.durbinWatson && delete r.diagnostics.durbinWatson.flagged],
+      ['dispersion verdict not known', (r) => (r.diagnostics.dispersion = { pearsonChi2: 1, residualDf: 1, ratio: 1, verdict: 'fine' })],
     ];
     for (const [what, mutate] of broken) {
       const r = JSON.parse(JSON.stringify(base)) as Record<string, any>;

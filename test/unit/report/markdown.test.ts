@@ -89,6 +89,21 @@ describe('reportMarkdown', () => {
     assert.match(report, new RegExp(`… and ${37 - REPORT_LIST_LIMIT} more \\(all are listed in the fit record\\)`));
   });
 
+  it('prints each candidate mean in the table as the explanation prints it (one rule for the same quantity)', () => {
+    // Issue 14, item 3: the explanation's least mean, chosen mean and next simpler mean appear
+    // in the candidate table with the same digits.
+    const why = /Least mean RMSE (\S+) at df (\d+)[^\n]*The smallest df at or under it is (\d+) \((\S+)\), chosen\./.exec(report);
+    assert.ok(why, 'explanation found');
+    const row = (df: string): string | undefined => new RegExp(`\\n\\| ${df} \\| (\\S+) \\|`).exec(report)?.[1];
+    assert.equal(row(why[2] as string), why[1]);
+    assert.equal(row(why[3] as string), why[4]);
+  });
+
+  it('names the rules by which rows stand out, with their sources', () => {
+    assert.match(report, /(No row stands out|Rows that stand out: \d+ \([^)]*\))\. Thresholds: \|studentized residual\| above [\d.]+ \(Bonferroni outlier test at 5 % \(Weisberg 2014/);
+    assert.match(report, /Cook's distance above 0\.\d+ \(median of F\(df, n - df\)/);
+  });
+
   it('ends with how to reproduce and check, in a shell block', () => {
     assert.match(
       report,

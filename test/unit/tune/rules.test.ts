@@ -14,7 +14,8 @@
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import { InputError } from '../../../core/errors';
-import { selectDf } from '../../../core/tune/rules';
+import { errorPlace, selectDf } from '../../../core/tune/rules';
+import { atPlace, sig } from '../../../core/words/numbers';
 import type { CandidateResult, ErrorSummary, RuleSpec } from '../../../core/tune/types';
 import { parseRule } from '../../../core/registry/rules/index';
 
@@ -74,9 +75,6 @@ function reference(rows: readonly Row[], rule: RuleSpec): number {
       return rule.df;
   }
 }
-
-/** Three significant digits without trailing zeros, for means in 1e-4 .. 1e6 (the format of issue #3's example). */
-const three = (v: number): string => String(Number(v.toPrecision(3)));
 
 describe('selectDf', () => {
   it('selectDf(one-se) is never more complex than selectDf(lowest) and matches the definition', () => {
@@ -146,13 +144,17 @@ describe('selectDf', () => {
         const ok = rows.filter((r) => r.kind === 'ok');
         const bestMean = Math.min(...ok.map((r) => r.mean));
         const chosen = ok.find((r) => r.df === s.df) as Row;
-        assert.ok(s.reason.includes(`Least mean RMSE ${three(bestMean)} at df `), s.reason);
+        // Every mean and threshold is printed down to the tuning's decimal place (errorPlace), with at least 3 digits of the least mean.
+        const place = errorPlace(cands, 'rmse', rule.kind === 'simplest-within' ? rule.percent : 2);
+        const print = (v: number): string => atPlace(v, place);
+        assert.ok(place <= Math.floor(Math.log10(bestMean)) - 2);
+        assert.ok(s.reason.includes(`Least mean RMSE ${print(bestMean)} at df `), s.reason);
         if (rule.kind === 'least-error') {
           assert.ok(s.reason.includes(`so df ${s.df} is chosen.`), s.reason);
         } else {
           assert.ok(s.threshold !== undefined, 'threshold recorded');
-          assert.ok(s.reason.includes(three(s.threshold)), `threshold ${s.threshold} missing: ${s.reason}`);
-          assert.ok(s.reason.includes(`is ${s.df} (${three(chosen.mean)}), chosen.`), s.reason);
+          assert.ok(s.reason.includes(print(s.threshold)), `threshold ${s.threshold} missing: ${s.reason}`);
+          assert.ok(s.reason.includes(`is ${s.df} (${print(chosen.mean)}), chosen.`), s.reason);
           assert.ok(chosen.mean <= s.threshold, 'chosen mean at or under the threshold');
         }
         assert.ok(s.reason.includes('Other rules:'), s.reason);
@@ -281,5 +283,131 @@ describe('parseRule', () => {
     // The old spellings are gone (nothing was released, so there are no aliases).
     for (const old of ['lowest', '1se', 'tol:2', 'df:7']) assert.throws(() => parseRule(old), /is not understood/, old);
     assert.throws(() => parseRule('simplest-within:101'), /from 0 to 100/);
+  });
+});
+
+/** Every number of a sentence, as written (plain or exponent notation). */
+function numbersIn(text: string): string[] {
+  return text.match(/-?\d+(?:\.\d+)?(?:e[+-]\d+)?/g) ?? [];
+}
+
+describe('selectDf: numbers that carry their evidence', () => {
+  it('reproduces issue 14: an SE of 4.1e-5 on a mean of 0.3 no longer prints the threshold as the least mean', () => {
+    // The candidate table of issue 14, item 3 (invented numbers of that shape): least mean
+    // RMSE 0.300012 at df 12 with SE 4.1e-5; with 3 digits the least mean, the one-SE
+    // threshold and the chosen mean all read "0.3".
+    const means = new Map([
+      [8, 0.30019],
+      [9, 0.30005],
+      [10, 0.30003],
+      [11, 0.300019],
+      [12, 0.300012],
+    ]);
+    const cands: CandidateResult[] = [...means].map(([df, mean]) => ({ df, errors: { rmse: summary(mean, 4.1e-5) } }));
+    const s = selectDf(cands, { kind: 'one-se' }, 'rmse');
+    assert.equal(s.df, 9);
+    const printed = numbersIn(s.reason.split(' Other rules')[0] as string);
+    // Least mean, df 12, SE, threshold, chosen df 9, its mean, the next simpler df 8, its mean.
+    const [least, , se, threshold, , chosen, , above] = printed;
+    assert.equal(se, '4.1e-5', s.reason);
+    assert.notEqual(least, threshold, s.reason);
+    assert.notEqual(chosen, threshold, s.reason);
+    assert.ok(Number(least) < Number(threshold) && Number(chosen) <= Number(threshold) && Number(above) > Number(threshold), s.reason);
+  });
+
+  it('the printed least mean, threshold, chosen mean and next simpler mean differ whenever the values do, and keep their order', () => {
+    // Property of the rule in core/words/numbers.ts (digitsToTell): rounding every compared
+    // value to a common number of significant digits is monotone, so digits that tell the
+    // values apart also show their order. Means are drawn very close together (relative gaps
+    // down to 1e-12) so that three digits would often print them alike.
+    const closeTable = fc
+      .tuple(
+        fc.double({ min: 0.01, max: 1000, noNaN: true }),
+        fc.array(fc.double({ min: -12, max: -1, noNaN: true }), { minLength: 2, maxLength: 10 }),
+        fc.array(fc.double({ min: 0, max: 3, noNaN: true }), { minLength: 10, maxLength: 10 }),
+        fc.double({ min: -13, max: -1, noNaN: true }),
+      )
+      .map(([base, gaps, shape, seExp]) => gaps.map((g, i) => ({ df: i + 2, kind: 'ok' as const, mean: base * (1 + (shape[i] as number) * 10 ** g), se: base * 10 ** seExp })));
+    fc.assert(
+      fc.property(closeTable, fc.constantFrom<RuleSpec>({ kind: 'one-se' }, { kind: 'simplest-within', percent: 0.001 }, { kind: 'simplest-within', percent: 2 }), (rows, rule) => {
+        const s = selectDf(toCandidates(rows), rule, 'rmse');
+        const head =
+          /^Least mean RMSE (\S+) at df \d+ \(SE \S+\)\. .*threshold (\S+)\. The smallest df at or under it is \d+ \((\S+)\), chosen\.(?: The next simpler candidate, df \d+, has (\S+), above it\.)?/.exec(
+            s.reason,
+          );
+        assert.ok(head, s.reason);
+        const [least, threshold, chosen, above] = [head[1], head[2], head[3], head[4]].map((t) => (t === undefined ? undefined : Number(t)));
+        const best = Math.min(...rows.map((r) => r.mean));
+        const chosenMean = (rows.find((r) => r.df === s.df) as Row).mean;
+        const t = s.threshold as number;
+        // Values that differ only beyond the 15 digits a double carries may print alike (MAX_SIG_DIGITS).
+        const same = (a: number | undefined, b: number | undefined, va: number, vb: number): void => {
+          if (sig(va, 15) !== sig(vb, 15)) assert.notEqual(a, b, `${va} and ${vb} print alike: ${s.reason}`);
+        };
+        same(least, threshold, best, t);
+        same(chosen, threshold, chosenMean, t);
+        assert.ok((chosen as number) <= (threshold as number), s.reason);
+        if (above !== undefined) {
+          const aboveMean = (rows.find((r) => r.df === s.df - 1) as Row).mean;
+          same(above, threshold, aboveMean, t);
+          assert.ok(above > (threshold as number), s.reason);
+        }
+      }),
+      { numRuns: RUNS, seed: SEED + 7 },
+    );
+  });
+
+  it('errorPlace tells the least mean from every other candidate mean, so a candidate table shows which is least', () => {
+    fc.assert(
+      fc.property(tableArb, (rows) => {
+        const cands = toCandidates(rows);
+        const place = errorPlace(cands, 'rmse');
+        const ok = rows.filter((r) => r.kind === 'ok');
+        const best = Math.min(...ok.map((r) => r.mean));
+        // Values that differ only beyond the 15 digits a double carries may print alike (MAX_SIG_DIGITS).
+        for (const r of ok) if (sig(r.mean, 15) !== sig(best, 15)) assert.ok(Number(atPlace(r.mean, place)) > Number(atPlace(best, place)), `${r.mean} vs ${best} at 10^${place}`);
+      }),
+      { numRuns: RUNS, seed: SEED + 8 },
+    );
+  });
+});
+
+describe('selectDf: a choice at the edge of the candidates', () => {
+  const table = (means: readonly number[], first = 2): CandidateResult[] => means.map((mean, i) => ({ df: first + i, errors: { rmse: summary(mean, 0.001) } }));
+
+  it('flags the largest candidate when the error is still falling there, with words and a wider range', () => {
+    // Error still falling at the largest df: the least error may lie beyond the candidates.
+    const s = selectDf(table([0.9, 0.7, 0.5, 0.4, 0.35, 0.3]), { kind: 'one-se' }, 'rmse');
+    assert.equal(s.df, 7);
+    assert.deepEqual(s.edge, { side: 'upper', df: 7, chosen: true, leastError: true, widen: '2..14' });
+    assert.match(s.reason, /df 7 is the largest candidate.*the best df may lie beyond the candidates; widen them, e\.g\. --df 2\.\.14\./);
+    assert.match(selectDf(table([0.9, 0.7, 0.5, 0.4, 0.35, 0.3]), { kind: 'one-se' }, 'rmse', 'editor').reason, /widen them, e\.g\. the setting knotwise\.candidates 2\.\.14\./);
+  });
+
+  it('flags the smallest candidate above df 2 when it is chosen, and not df 2 itself', () => {
+    const low = selectDf(table([0.3, 0.31, 0.32, 0.33], 5), { kind: 'least-error' }, 'rmse');
+    assert.deepEqual(low.edge, { side: 'lower', df: 5, chosen: true, leastError: true, widen: '2..8' });
+    assert.match(low.reason, /df 5 is the smallest candidate/);
+    const line = selectDf(table([0.3, 0.31, 0.32, 0.33], 2), { kind: 'least-error' }, 'rmse');
+    assert.equal(line.edge, undefined, line.reason);
+    assert.doesNotMatch(line.reason, /widen/);
+  });
+
+  it('flags the least error at the largest candidate even when the rule chose a smaller df', () => {
+    const s = selectDf(table([0.9, 0.5, 0.3005, 0.3004, 0.3003, 0.3]), { kind: 'one-se' }, 'rmse');
+    assert.equal(s.df, 4);
+    assert.deepEqual(s.edge, { side: 'upper', df: 7, chosen: false, leastError: true, widen: '2..14' });
+  });
+
+  it('a df picked by the person at an end is flagged only through the least error', () => {
+    // The person's own pick is deliberate; only where the least error lies says the range may be too narrow.
+    assert.equal(selectDf(table([0.9, 0.5, 0.3, 0.32, 0.35]), { kind: 'pick', df: 6 }, 'rmse').edge, undefined);
+    assert.deepEqual(selectDf(table([0.9, 0.5, 0.4, 0.32, 0.3]), { kind: 'pick', df: 4 }, 'rmse').edge, { side: 'upper', df: 6, chosen: false, leastError: true, widen: '2..12' });
+  });
+
+  it('does not flag an inner choice, nor the largest usable df when larger candidates were skipped', () => {
+    assert.equal(selectDf(table([0.9, 0.5, 0.3, 0.32, 0.35]), { kind: 'least-error' }, 'rmse').edge, undefined);
+    const cands: CandidateResult[] = [...table([0.9, 0.5, 0.3]), { df: 5, skipped: 'needs at least 5 distinct x values; the data has 4', errors: {} }];
+    assert.equal(selectDf(cands, { kind: 'least-error' }, 'rmse').edge, undefined);
   });
 });

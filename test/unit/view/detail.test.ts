@@ -14,6 +14,7 @@ import { fitCurve } from '../../../core/fit/index';
 import type { Cloud } from '../../../core/view/model';
 import type { FitSpec, XYData } from '../../../core/types';
 import { fitDetail, MAX_DOWNWEIGHTED_LISTED, modelReportView } from '../../../core/view/detail';
+import { diagnose } from '../../../core/analysis/diagnose';
 
 const FIXTURES = join(__dirname, '..', '..', 'reference', 'fixtures');
 
@@ -132,5 +133,46 @@ describe('fitDetail', () => {
     assert.ok(view.constraints.total > 0 && view.constraints.active <= view.constraints.total);
     assert.ok(view.lines.some((l) => l.startsWith('Shape increasing: ')));
     assert.equal(modelReportView(fitCurve(d, { kind: 'natural-spline', df: 5 }), d), undefined);
+  });
+
+  it('fitDetail(MASS::hills df=3): the influential rows R flags, at most ten shown, with the thresholds and the residuals in row order', () => {
+    // test/reference/fixtures/influence.json, case "hills lm df=3" (test/reference/r/influence.R):
+    // R flags rows 2 and 31 as outliers and row 34 by Cook's distance and leverage (0-based, x sorted).
+    const infl = JSON.parse(readFileSync(join(FIXTURES, 'influence.json'), 'utf8')) as {
+      datasets: Record<string, Dataset>;
+      lm: { name: string; outliers: number[]; cooksRows: number[]; leverageRows: number[]; outlierLimit: number; cooksLimit: number }[];
+    };
+    const c = infl.lm.find((k) => k.name === 'hills lm df=3');
+    assert.ok(c);
+    const d = data(infl.datasets.hills as Dataset);
+    const fit = fitCurve(d, { kind: 'natural-spline', df: 3 });
+    const detail = fitDetail(fit, d, { diagnostics: diagnose(d, fit) });
+    const flaggedByR = [...new Set([...c.outliers, ...c.cooksRows, ...c.leverageRows])];
+    assert.equal(detail.influentialTotal, flaggedByR.length);
+    assert.deepEqual(
+      detail.influential.map((r) => r.line - 2).sort((a, b) => a - b),
+      flaggedByR.sort((a, b) => a - b),
+    );
+    // The panel rounds thresholds to 5 significant digits (core/view/detail.ts).
+    closeAll('thresholds', [detail.outlierThreshold as number, detail.cooksThreshold], [c.outlierLimit, c.cooksLimit], 1e-4);
+    for (const r of detail.influential) assert.ok(r.exceeds.length > 0 && r.studentized !== undefined, JSON.stringify(r));
+    assert.ok(detail.influential.some((r) => r.exceeds.some((e) => /Bonferroni/.test(e))));
+    // Row order: the rows here are in x order, so the drift check is the Durbin-Watson check again.
+    assert.equal(detail.rowOrder?.sameAsX, true);
+    assert.equal(detail.rowOrder?.residual.length, d.x.length);
+    assert.ok(
+      detail.checks.every((k) => k.effect !== undefined),
+      'every check carries its effect size',
+    );
+  });
+
+  it('fitDetail shows at most ten influential rows and counts the rest', () => {
+    // MASS::mcycle with df 2 (a straight line through a wave): many rows stand out.
+    const d = data(physics.datasets.mcycle as Dataset);
+    const fit = fitCurve(d, { kind: 'natural-spline', df: 2 });
+    const diagnostics = diagnose(d, fit);
+    const detail = fitDetail(fit, d, { diagnostics });
+    assert.equal(detail.influentialTotal, diagnostics.influential.total);
+    assert.equal(detail.influential.length, Math.min(10, diagnostics.influential.total));
   });
 });

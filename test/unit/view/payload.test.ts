@@ -94,4 +94,18 @@ describe('buildPanelPayload', () => {
     assert.equal(forEditor(`raise ${opt('digits')}`), 'raise the setting knotwise.table.significantDigits');
     assert.doesNotMatch(JSON.stringify(p), /\u27e6|--[a-z]/);
   });
+
+  it('buildPanelPayload: the residual details carry the residuals in row order and the drift measure (issue 14, item 4)', async () => {
+    // datasets::discoveries as counts: rows in year order, which is also x order.
+    const a = await analyse(data('discoveries'), { kind: 'natural-spline', candidates: [3, 4, 5], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1, outcome: 'counts' });
+    const p = buildPanelPayload({ ...base, analysis: a });
+    const r = p.details[0]?.rowOrder;
+    assert.ok(r, 'row-order data in the payload');
+    assert.equal(r.residual.length, 100);
+    assert.deepEqual(r.line.slice(0, 3), [2, 3, 4]);
+    assert.equal(r.sameAsX, true);
+    assert.equal(r.flagged, false, 'rows in x order never flag a drift of their own');
+    // The same lag-1 correlation as the record's diagnostics (rounded to 5 digits for the panel).
+    assert.ok(Math.abs(r.lag1 - (a.diagnostics.rowOrder?.lag1 as number)) <= 1e-5 * Math.max(1, Math.abs(r.lag1)));
+  });
 });
