@@ -56,10 +56,16 @@ export type PanelMessage =
   /** Run the analysis again with these model options (they override the settings for this file). */
   | { readonly type: 'model'; readonly runId: number; readonly model: ModelChoice };
 
+/** The panel's folding sections of details, by id, in the order the panel shows them. */
+export const FOLD_IDS = ['residual-checks', 'influential-rows', 'candidates', 'model-report', 'notes'] as const;
+/** One folding section of the panel. */
+export type FoldId = (typeof FOLD_IDS)[number];
+
 /**
  * What the panel keeps across reloads (the webview's saved state): its data file, the run
- * it showed, the rule the person chose and the model options set in the panel. After a
- * window reload the host reads it back to restore the panel, so it is checked like a message.
+ * it showed, the rule the person chose, the model options set in the panel, and how the
+ * person left the view (open sections, the error figure's range). After a window reload
+ * the host reads it back to restore the panel, so it is checked like a message.
  */
 export interface PanelState {
   /** The data file's URI as text. */
@@ -68,6 +74,10 @@ export interface PanelState {
   readonly rule?: RuleSpec;
   /** Present when the panel's controls set the model options (they override the settings for this file). */
   readonly model?: ModelChoice;
+  /** The folding sections left open (each at most once). */
+  readonly open?: readonly FoldId[];
+  /** What the error figure shows: the window around the decision or every candidate. */
+  readonly errorRange?: 'decision' | 'all';
 }
 
 /** Compile-time exhaustiveness check for switches over message tags. */
@@ -195,14 +205,23 @@ export function isPanelState(s: unknown): s is PanelState {
   const o = plainObject(s);
   return (
     o !== undefined &&
-    hasExactKeys(o, ['file'], ['runId', 'rule', 'model']) &&
+    hasExactKeys(o, ['file'], ['runId', 'rule', 'model', 'open', 'errorRange']) &&
     typeof o.file === 'string' &&
     o.file.length > 0 &&
     o.file.length <= MAX_URI_TEXT &&
     (o.runId === undefined || isId(o.runId)) &&
     (o.rule === undefined || isRuleSpec(o.rule)) &&
-    (o.model === undefined || isModelChoice(o.model))
+    (o.model === undefined || isModelChoice(o.model)) &&
+    (o.open === undefined || isFoldList(o.open)) &&
+    (o.errorRange === undefined || o.errorRange === 'decision' || o.errorRange === 'all')
   );
+}
+
+const FOLD_NAMES: readonly string[] = FOLD_IDS;
+
+/** True when `v` lists known folding sections, each at most once. */
+function isFoldList(v: unknown): v is readonly FoldId[] {
+  return Array.isArray(v) && v.length <= FOLD_NAMES.length && v.every((f) => typeof f === 'string' && FOLD_NAMES.includes(f)) && new Set(v).size === v.length;
 }
 
 /** True when every named field of `o` is an array. */

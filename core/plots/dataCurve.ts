@@ -1,12 +1,13 @@
 /**
  * Figure: the readings with the fitted curve, its 95 % confidence band for the mean and
- * the 95 % prediction band for a new reading.
+ * the 95 % prediction band for a new reading. A density grid lies beneath the bands and the
+ * curve, with its legend under the axes; dots lie on top, where each can be pointed at.
  */
 import type { Cloud, CurveView } from '../view/model';
-import { cloudMarks, cloudRanges, cloudWords } from './cloud';
+import { cloudMarks, cloudRanges, cloudWords, densityLegend, LEGEND_HEIGHT } from './cloud';
 import { plotFrame } from './frame';
 import { extent } from './scale';
-import { bandPath, linePath, num, reading, svgDocument } from './svg';
+import { bandPath, FIGURE_HEIGHT, FIGURE_WIDTH, linePath, num, reading, svgDocument } from './svg';
 
 /** Inputs of dataCurveSvg. Labels may come from the CSV; they are escaped. */
 export interface DataCurveSpec {
@@ -33,16 +34,20 @@ export function dataCurveSvg(spec: DataCurveSpec): string {
   });
   const px = grid.map((v) => frame.sx(v));
   const map = (a: readonly number[]) => a.map((v) => frame.sy(v));
+  const readings = cloudMarks(spec.data, frame, { x: spec.xLabel, y: spec.yLabel });
+  const density = spec.data.kind === 'bins';
   const body =
     frame.clipDef +
     frame.axes +
+    // A density grid first, so the bands and the curve are drawn over it and stay visible.
+    (density ? readings : '') +
     `<g clip-path="${frame.clip}">` +
     `<path class="kw-band-pi" d="${bandPath(px, map(curve.piLower), map(curve.piUpper))}"/>` +
     `<path class="kw-band-ci" d="${bandPath(px, map(curve.ciLower), map(curve.ciUpper))}"/>` +
     `<path class="kw-curve" d="${linePath(px, map(curve.fit))}"/>` +
     `</g>` +
-    // Readings last, so they stay on top for hovering and clicking.
-    cloudMarks(spec.data, frame, { x: spec.xLabel, y: spec.yLabel });
+    // Dots last, so each stays on top for hovering and clicking.
+    (density ? densityLegend(spec.data) : readings);
   const lo = grid[0] ?? NaN;
   const hi = grid[grid.length - 1] ?? NaN;
   return svgDocument(
@@ -55,5 +60,7 @@ export function dataCurveSvg(spec: DataCurveSpec): string {
         reading(spec.reading),
     },
     body,
+    FIGURE_WIDTH,
+    FIGURE_HEIGHT + (density ? LEGEND_HEIGHT : 0),
   );
 }

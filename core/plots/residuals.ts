@@ -2,10 +2,10 @@
  * Figure: residuals against x or against fitted values, with the zero line.
  */
 import type { Cloud } from '../view/model';
-import { cloudMarks, cloudRanges, cloudWords } from './cloud';
+import { cloudMarks, cloudRanges, cloudWords, densityLegend, LEGEND_HEIGHT } from './cloud';
 import { plotFrame } from './frame';
 import { extent } from './scale';
-import { coord, reading, svgDocument } from './svg';
+import { coord, FIGURE_HEIGHT, FIGURE_WIDTH, reading, svgDocument } from './svg';
 
 /** Inputs of residualSvg. `against` names the horizontal quantity (a column label or "fitted value"). */
 export interface ResidualSpec {
@@ -27,7 +27,13 @@ export function residualSvg(spec: ResidualSpec): string {
   const yName = deviance ? 'deviance residual' : 'residual';
   const frame = plotFrame({ id: spec.id, xDomain: extent([r.x], 0.02), yDomain: ys, xLabel: spec.against, yLabel: yName });
   const y0 = coord(frame.sy(0));
-  const body = frame.clipDef + frame.axes + `<path class="kw-zero" d="M${frame.left} ${y0}H${frame.right}"/>` + cloudMarks(spec.cloud, frame, { x: spec.against, y: yName });
+  const density = spec.cloud.kind === 'bins';
+  const body =
+    frame.clipDef +
+    frame.axes +
+    `<path class="kw-zero" d="M${frame.left} ${y0}H${frame.right}"/>` +
+    cloudMarks(spec.cloud, frame, { x: spec.against, y: yName }) +
+    (spec.cloud.kind === 'bins' ? densityLegend(spec.cloud) : '');
   return svgDocument(
     spec.id,
     {
@@ -37,5 +43,7 @@ export function residualSvg(spec: ResidualSpec): string {
         reading(spec.reading),
     },
     body,
+    FIGURE_WIDTH,
+    FIGURE_HEIGHT + (density ? LEGEND_HEIGHT : 0),
   );
 }

@@ -1,7 +1,9 @@
 /**
  * Chooses how readings are drawn: every point when there are few and they do not pile
- * up, otherwise counts on a grid, so the panel message stays small at any n.
+ * up, otherwise counts on a grid (core/stats/density.ts binnedDensity), so the panel
+ * message stays small at any n.
  */
+import { binnedDensity } from '../stats/density';
 import type { Cloud } from './model';
 import { roundAll } from './round';
 
@@ -21,7 +23,9 @@ export const DEFAULT_CLOUD_LIMITS: CloudLimits = { maxPoints: 2000, nx: 64, ny: 
 
 /**
  * Points or bins for (x[i], y[i]); non-finite pairs are left out. `lines` gives each
- * row's CSV line. O(n) (plus O(n) hashing when n <= maxPoints).
+ * row's CSV line. Bins are binnedDensity's cells over the finite readings' ranges (each
+ * [lo, lo + w) but the last, which holds the maximum; a flat range widened by 0.5 each
+ * side). O(n) (plus O(n) hashing when n <= maxPoints).
  * Example: cloudOf(x, y, lines).kind === 'points' for 50 distinct readings.
  */
 export function cloudOf(x: ArrayLike<number>, y: ArrayLike<number>, lines?: ArrayLike<number>, limits: CloudLimits = DEFAULT_CLOUD_LIMITS): Cloud {
@@ -59,19 +63,14 @@ export function cloudOf(x: ArrayLike<number>, y: ArrayLike<number>, lines?: Arra
   // Widen flat ranges so every reading falls in a cell.
   if (xMin === xMax) [xMin, xMax] = [xMin - 0.5, xMax + 0.5];
   if (yMin === yMax) [yMin, yMax] = [yMin - 0.5, yMax + 0.5];
-  const { nx, ny } = limits;
-  const counts = new Array<number>(nx * ny).fill(0);
-  const fx = nx / (xMax - xMin);
-  const fy = ny / (yMax - yMin);
-  for (let i = 0; i < n; i++) {
-    const xi = x[i] as number;
-    const yi = y[i] as number;
-    if (!Number.isFinite(xi) || !Number.isFinite(yi)) continue;
-    const cx = Math.min(nx - 1, Math.floor((xi - xMin) * fx));
-    const cy = Math.min(ny - 1, Math.floor((yi - yMin) * fy));
-    counts[cy * nx + cx] = (counts[cy * nx + cx] as number) + 1;
-  }
-  return { kind: 'bins', xMin, xMax, yMin, yMax, nx, ny, counts, total: finite };
+  // The one binning Knotwise has, checked against R's table(cut(...)) (test/reference/density.test.ts).
+  const grid = binnedDensity(asFloat64(x), asFloat64(y), limits.nx, limits.ny, [xMin, xMax], [yMin, yMax]);
+  return { kind: 'bins', xMin, xMax, yMin, yMax, nx: grid.nx, ny: grid.ny, counts: Array.from(grid.counts), total: finite };
+}
+
+/** `v` as a Float64Array (itself when it is one; a copy otherwise). */
+function asFloat64(v: ArrayLike<number>): Float64Array {
+  return v instanceof Float64Array ? v : Float64Array.from(v);
 }
 
 /** True when so many readings share the same (x, y) that dots would hide them. */

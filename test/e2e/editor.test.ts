@@ -82,6 +82,30 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.locator(`.monaco-workbench.${workbenchClass}`).waitFor({ timeout: 30000 });
   }
 
+  /**
+   * The colour a workbench theme variable names inside the panel, as the page computes colours
+   * (rgb(...)): a probe element coloured with the variable, read back and removed.
+   */
+  async function themeColour(variable: string): Promise<string> {
+    return (await panel.evaluate(`(() => {
+      const probe = document.createElement('span');
+      probe.style.color = 'var(${variable})';
+      document.body.append(probe);
+      const colour = getComputedStyle(probe).color;
+      probe.remove();
+      return colour;
+    })()`)) as string;
+  }
+
+  /** Knotwise's own colours in the panel now: the df badge, the explanation and the fitted curve. */
+  async function panelColours(): Promise<{ badge: string; text: string; curve: string }> {
+    return (await panel.evaluate(`(() => ({
+      badge: getComputedStyle(document.querySelector('#kw-chosen-df')).backgroundColor,
+      text: getComputedStyle(document.querySelector('#kw-reason')).color,
+      curve: getComputedStyle(document.querySelector('#fig-data .kw-curve')).stroke,
+    }))()`)) as { badge: string; text: string; curve: string };
+  }
+
   /** The Knotwise commands the command palette lists now (their titles), as a person would see them. */
   async function paletteCommands(): Promise<string[]> {
     const input = page.locator('.quick-input-widget input.input');
@@ -172,11 +196,14 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     const reason = (await panel.textContent('#kw-reason')) ?? '';
     assert.match(reason, new RegExp(`One-SE threshold .* The smallest df at or under it is ${chosenDf} `));
     assert.equal(await panel.locator('figure.kw-figure svg[role="img"]').count(), 7);
-    // The panel's own styles loaded (theme variables applied to the badge).
-    const bg = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor')) as string;
-    assert.notEqual(bg, 'rgba(0, 0, 0, 0)');
-    lightBadge = bg;
-    lightText = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-reason")).color')) as string;
+    // The panel's own styles loaded: the badge, the explanation and the curve wear the workbench's theme variables.
+    const light = await panelColours();
+    assert.notEqual(light.badge, 'rgba(0, 0, 0, 0)');
+    assert.equal(light.badge, await themeColour('--vscode-badge-background'));
+    assert.equal(light.text, await themeColour('--vscode-foreground'));
+    assert.equal(light.curve, await themeColour('--vscode-charts-blue'));
+    lightBadge = light.badge;
+    lightText = light.text;
     await page.screenshot({ path: join(artifacts, 'editor-light.png') });
   });
 
@@ -191,6 +218,11 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     assert.equal(rec.format, 'knotwise-fit-record');
     assert.equal(rec.selection.df, chosenDf);
     assert.equal(rec.data.file, 'mcycle.csv');
+    // The save's commit marker and temporary files are gone once it says Saved.
+    assert.deepEqual(
+      readdirSync(workspace).filter((f) => /knotwise/.test(f)),
+      [],
+    );
   });
 
   it('Run again in the panel runs the analysis again and shows the new run', async function () {
@@ -204,12 +236,14 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
 
   it('the panel follows a dark theme', async function () {
     await chooseTheme('Dark Modern', 'vs-dark');
-    // Knotwise's own panel follows: its body takes the dark theme class and its badge a dark-theme colour.
+    // Knotwise's own panel follows: its badge, explanation and curve take the dark theme's colours, which differ from the light ones.
     await panel.locator('body.vscode-dark').waitFor({ timeout: 30000 });
-    const darkBadge = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor')) as string;
-    assert.notEqual(darkBadge, lightBadge, 'the df badge changed colour with the theme');
-    const darkText = await panel.evaluate('getComputedStyle(document.querySelector("#kw-reason")).color');
-    assert.notEqual(darkText, lightText, 'the explanation text changed colour with the theme');
+    const dark = await panelColours();
+    assert.equal(dark.badge, await themeColour('--vscode-badge-background'), 'the df badge wears the theme variable');
+    assert.equal(dark.text, await themeColour('--vscode-foreground'), 'the explanation wears the theme variable');
+    assert.equal(dark.curve, await themeColour('--vscode-charts-blue'), 'the curve wears the theme variable');
+    assert.notEqual(dark.badge, lightBadge, 'the df badge changed colour with the theme');
+    assert.notEqual(dark.text, lightText, 'the explanation text changed colour with the theme');
     await page.screenshot({ path: join(artifacts, 'editor-dark.png') });
   });
 
@@ -223,6 +257,9 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
       // High-contrast themes draw borders around the panel's controls.
       const border = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-save")).borderTopStyle')) as string;
       assert.notEqual(border, 'none', `${theme}: the save button has a border`);
+      // Knotwise's own: the df badge is outlined in the theme's contrast border.
+      const outline = (await panel.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).borderTopColor')) as string;
+      assert.equal(outline, await themeColour('--vscode-contrastBorder'), `${theme}: the badge wears the contrast border`);
       await page.screenshot({ path: join(artifacts, `editor-${workbench}.png`) });
     }
     // Half width: an editor group of about 700 CSS pixels.

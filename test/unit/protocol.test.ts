@@ -11,7 +11,7 @@ import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../core/analysis/analysis';
-import { isHostMessage, isModelChoice, isPanelMessage, isPanelState, isRuleSpec, MAX_MESSAGE_TEXT, MAX_SAVED_FILES, type HostMessage, type PanelMessage } from '../../core/protocol';
+import { FOLD_IDS, isHostMessage, isModelChoice, isPanelMessage, isPanelState, isRuleSpec, MAX_MESSAGE_TEXT, MAX_SAVED_FILES, type HostMessage, type PanelMessage } from '../../core/protocol';
 import { OUTCOME_LIST } from '../../core/registry/outcomes/index';
 import { RULE_LIST } from '../../core/registry/rules/index';
 import type { DataStateView, FitDetail, PanelPayload, RefitView } from '../../core/view/model';
@@ -346,18 +346,21 @@ describe('isHostMessage', () => {
 });
 
 describe('isPanelState', () => {
-  it('accepts the state a panel keeps, also after a JSON round trip', () => {
+  it("accepts the state a panel keeps (open sections and the error figure's range included), also after a JSON round trip", () => {
     for (const st of [
       { file: 'file:///data/cars.csv' },
       { file: 'vscode-remote://host/data/cars.csv', runId: 3, rule: { kind: 'pick', df: 5 } },
       { file: 'file:///data/cars.csv', runId: 0, rule: { kind: 'one-se' }, model: { outcome: 'counts', shape: ['increasing'], robust: false } },
+      { file: 'file:///data/cars.csv', open: ['residual-checks', 'notes'], errorRange: 'all' },
+      { file: 'file:///data/cars.csv', open: [...FOLD_IDS], errorRange: 'decision' },
+      { file: 'file:///data/cars.csv', open: [] },
     ]) {
       assert.equal(isPanelState(st), true, JSON.stringify(st));
       assert.equal(isPanelState(JSON.parse(JSON.stringify(st))), true, `JSON ${JSON.stringify(st)}`);
     }
   });
 
-  it('refuses a state without a file, with wrong fields or extra keys, or with prototype keys', () => {
+  it('refuses a state without a file, with wrong fields or extra keys, unknown or repeated sections, or with prototype keys', () => {
     for (const st of [
       undefined,
       null,
@@ -371,6 +374,13 @@ describe('isPanelState', () => {
       { file: 'file:///a.csv', rule: { kind: 'lowest' } },
       { file: 'file:///a.csv', model: { outcome: 'gaussian', shape: [], robust: false } },
       { file: 'file:///a.csv', html: '<img>' },
+      { file: 'file:///a.csv', open: ['residual-checks', 'residual-checks'] },
+      { file: 'file:///a.csv', open: ['warnings'] },
+      { file: 'file:///a.csv', open: 'notes' },
+      { file: 'file:///a.csv', open: [7] },
+      { file: 'file:///a.csv', open: [...FOLD_IDS, 'notes'] },
+      { file: 'file:///a.csv', errorRange: 'some' },
+      { file: 'file:///a.csv', errorRange: true },
       JSON.parse('{"file":"file:///a.csv","__proto__":{"polluted":true}}'),
       Object.create({ file: 'file:///a.csv' }) as object,
     ]) {

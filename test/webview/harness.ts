@@ -81,12 +81,23 @@ export async function startPanelServer(): Promise<PanelServer> {
   return { origin, close: () => new Promise<void>((r) => server.close(() => r())) };
 }
 
-/** Theme variables of VS Code's default light and dark themes, for screenshots outside the editor. */
-export type Theme = 'light' | 'dark';
+/** Stand-ins for VS Code's default light, dark and high-contrast (dark) themes, for screenshots outside the editor (theme.css). */
+export type Theme = 'light' | 'dark' | 'high-contrast';
+
+/** How to open the panel page. */
+export interface OpenOptions {
+  readonly theme?: Theme;
+  /** The state the webview starts with, as VS Code hands a reloaded webview what it saved. */
+  readonly state?: unknown;
+  /** The page's size in CSS pixels (default: the browser context's). */
+  readonly viewport?: { readonly width: number; readonly height: number };
+}
 
 /** Opens the panel page, installs the stub host and waits for the panel's `ready`. */
-export async function openPanel(browser: LaunchedChromium, server: PanelServer, fixture: Fixture | undefined, theme: Theme = 'light'): Promise<PanelPage> {
+export async function openPanel(browser: LaunchedChromium, server: PanelServer, fixture: Fixture | undefined, options: OpenOptions = {}): Promise<PanelPage> {
+  const { theme = 'light' } = options;
   const page = await browser.context.newPage();
+  if (options.viewport) await page.setViewportSize({ ...options.viewport });
   page.setDefaultTimeout(WAIT_LIMIT_MS);
   const sent: PanelMessage[] = [];
   const waiters = new Set<() => void>();
@@ -131,7 +142,8 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
     }
   });
   await page.addInitScript({ path: join(__dirname, 'stub.js') });
-  await page.goto(`${server.origin}/?theme=${theme}`);
+  const query = new URLSearchParams({ theme, ...(options.state !== undefined ? { state: JSON.stringify(options.state) } : {}) });
+  await page.goto(`${server.origin}/?${query.toString()}`);
   await page.addStyleTag({ url: `${server.origin}/theme.css` });
   const pp: PanelPage = {
     page,

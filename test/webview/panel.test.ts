@@ -9,18 +9,20 @@ import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../core/analysis/analysis';
+import { binLevel } from '../../core/plots/cloud';
 import { num } from '../../core/plots/svg';
+import { sig } from '../../core/tune/format';
 import { MAX_MESSAGE_TEXT, type HostMessage } from '../../core/protocol';
 import { OUTCOME_LIST } from '../../core/registry/outcomes/index';
-import { RULE_LIST } from '../../core/registry/rules/index';
-import { FIGURE_CATALOGUE, type FigureView } from '../../core/view/figureCatalogue';
+import { RULE_LIST, ruleWords } from '../../core/registry/rules/index';
+import { errorPoints, FIGURE_CATALOGUE, type FigureView } from '../../core/view/figureCatalogue';
 import type { PanelPayload } from '../../core/view/model';
 import { selectDf } from '../../core/tune/rules';
-import type { RuleSpec } from '../../core/tune/types';
+import type { RuleSpec, Selection } from '../../core/tune/types';
 import { buildPanelPayload } from '../../core/view/payload';
 import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 import { analysedFixture, mcycleFixture, type Fixture } from './fixture';
-import { openPanel, startPanelServer, type PanelPage, type PanelServer } from './harness';
+import { openPanel, startPanelServer, type OpenOptions, type PanelPage, type PanelServer } from './harness';
 
 const artifacts = join(__dirname, '..', '..', 'test-artifacts');
 
@@ -29,6 +31,14 @@ interface Physics {
   readonly glm: readonly { readonly dataset: string; readonly outcome: string; readonly df: number; readonly deviance: number; readonly rCall: string }[];
   readonly rlm: readonly { readonly dataset: string; readonly df: number; readonly weights: readonly number[]; readonly scale: number; readonly rCall: string }[];
 }
+/** The few page globals the page functions here read (this file compiles without the DOM library). */
+interface PageDoc {
+  readonly document: { querySelector(selector: string): { readonly textContent: string | null } | null };
+}
+interface HTMLDetailsLike {
+  readonly open: boolean;
+}
+
 const physics = (): Physics => JSON.parse(readFileSync(join(__dirname, '..', 'reference', 'fixtures', 'physics.json'), 'utf8')) as Physics;
 
 describe('Knotwise panel (webview in headless Chromium)', function () {
@@ -48,21 +58,47 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await server?.close();
   });
 
-  async function shown(fixture: Fixture, theme: 'light' | 'dark' = 'light'): Promise<PanelPage> {
-    const pp = await openPanel(browser, server, fixture, theme);
+  async function shown(fixture: Fixture, options: OpenOptions = {}): Promise<PanelPage> {
+    const pp = await openPanel(browser, server, fixture, options);
     await pp.send({ type: 'result', payload: fixture.payload });
     await pp.page.waitForSelector('#knotwise-root[data-state="ready"]');
     return pp;
   }
 
-  const expected = (payload: PanelPayload, rule: RuleSpec) => selectDf(payload.candidates, rule, payload.metric);
+  const expected = (payload: PanelPayload, rule: RuleSpec) => selectDf(payload.candidates, rule, payload.metric, 'editor');
+
+  /**
+   * The panel explains `sel` as core does: its reason is core's explanation up to the list of
+   * other rules, which the panel lists itself, the simplest-within rule at `tolerance` %
+   * (what the tolerance box shows), each choice computed by selectDf.
+   */
+  async function assertExplains(page: PanelPage['page'], payload: PanelPayload, sel: Selection, tolerance: number): Promise<void> {
+    assert.equal(await page.textContent('#kw-chosen-df'), `df ${sel.df}`);
+    const reason = (await page.textContent('#kw-reason')) ?? '';
+    assert.ok(reason.length > 20 && sel.reason.startsWith(reason), `"${reason}" opens "${sel.reason}"`);
+    assert.match(reason, new RegExp(`\\b${sel.df}\\b`), 'the reason names the chosen df');
+    // In core's order of the other rules; the simplest-within rule at the box's tolerance.
+    const others = sel.alternatives.map((a) => {
+      const rule: RuleSpec = a.rule.kind === 'simplest-within' ? { kind: 'simplest-within', percent: tolerance } : a.rule;
+      const df = expected(payload, rule).df;
+      return `${ruleWords(rule)} → df ${df}${df === sel.df ? ' (the same)' : ''}`;
+    });
+    assert.deepEqual(await page.$$eval('#kw-alternatives li', (ls) => ls.map((l) => l.textContent)), others);
+    assert.equal(await page.inputValue('#kw-tolerance'), String(tolerance), 'the tolerance box shows the tolerance the explanation uses');
+    assert.equal(await page.inputValue('#kw-df'), String(sel.df), 'the df chooser shows the chosen df');
+  }
+
+  /** Opens a folding section of details by clicking its title, as a person would. */
+  async function openFold(page: PanelPage['page'], id: string): Promise<void> {
+    await page.click(`#kw-fold-${id} > summary`);
+    await page.waitForSelector(`#kw-fold-${id}[open]`);
+  }
 
   it('renders the chosen df, the rule explanation and every figure with a text alternative', async function () {
     const pp = await shown(mcycle);
     const sel = expected(mcycle.payload, mcycle.payload.rule);
     const page = pp.page;
-    assert.equal(await page.textContent('#kw-chosen-df'), `df ${sel.df}`);
-    assert.equal(await page.textContent('#kw-reason'), sel.reason);
+    await assertExplains(page, mcycle.payload, sel, mcycle.payload.tolerancePercent);
     assert.equal(await page.getAttribute('#knotwise-root', 'data-chosen-df'), String(sel.df));
     // Every figure of DESIGN capability 6 is there, each an SVG with role img, a title and a description.
     const figures = await page.$$eval('figure.kw-figure', (fs) =>
@@ -100,8 +136,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.notEqual(oneSe.df, lowest.df);
     const before = pp.sent.length;
     await page.check('#kw-rule-least-error');
-    assert.equal(await page.textContent('#kw-chosen-df'), `df ${lowest.df}`);
-    assert.equal(await page.textContent('#kw-reason'), lowest.reason);
+    await assertExplains(page, mcycle.payload, lowest, 2);
     const choice = await pp.waitForSent('choice', before);
     assert.deepEqual(choice, { type: 'choice', runId: 1, rule: { kind: 'least-error' }, df: lowest.df });
     assert.match((await page.textContent('#fig-error title')) ?? '', /RMSE/);
@@ -113,8 +148,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await page.press('#kw-tolerance', 'Enter');
     await page.locator('#kw-tolerance').dispatchEvent('change');
     const tol = expected(mcycle.payload, { kind: 'simplest-within', percent: 10 });
-    assert.equal(await page.textContent('#kw-chosen-df'), `df ${tol.df}`);
-    assert.equal(await page.textContent('#kw-reason'), tol.reason);
+    await assertExplains(page, mcycle.payload, tol, 10);
 
     // A df by hand: the residual figures follow once the host answers the detail request.
     const manualDf = 4;
@@ -123,7 +157,9 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.equal(await page.textContent('#kw-chosen-df'), `df ${manualDf}`);
     const need = await pp.waitForSent('needDetail', mark);
     assert.deepEqual(need, { type: 'needDetail', runId: 1, df: manualDf });
-    await page.waitForSelector('#fig-qq svg');
+    // The pick keeps the tolerance the box shows for the simplest-within rule among the other rules.
+    await assertExplains(page, mcycle.payload, expected(mcycle.payload, { kind: 'pick', df: manualDf }), 10);
+    await page.waitForSelector('#fig-qq svg', { state: 'attached' });
     assert.match((await page.textContent('#fig-resid-x svg > title')) ?? '', /\(df 4\)/);
     await page.close();
   });
@@ -176,19 +212,58 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await circle.hover();
     assert.equal(await circle.getAttribute('data-line'), '134');
     await pp.waitForText('#fig-data .kw-readout', /times 57\.6, accel 10\.7, CSV line 134/);
+    // The reading is marked on the figure and its values show beside it.
+    assert.match((await circle.getAttribute('class')) ?? '', /\bkw-hovered\b/);
+    const tip = page.locator('#fig-data .kw-tip');
+    assert.equal(await tip.isVisible(), true);
+    assert.match((await tip.textContent()) ?? '', /times 57\.6, accel 10\.7, CSV line 134/);
+    const [c, t] = [await circle.boundingBox(), await tip.boundingBox()];
+    assert.ok(c && t, 'the reading and its values have boxes');
+    // Beside it: the values start or end within 20 CSS pixels of the point, level with it.
+    const gap = Math.min(Math.abs(t.x - (c.x + c.width)), Math.abs(c.x - (t.x + t.width)));
+    assert.ok(gap <= 20 && t.y <= c.y + c.height && t.y + t.height >= c.y, `values at ${JSON.stringify(t)}, reading at ${JSON.stringify(c)}`);
+    await page.locator('#fig-data').screenshot({ path: join(artifacts, 'webview-hover.png') });
+    // Leaving the figure takes the mark and the values away.
+    await page.mouse.move(1, 1);
+    await tip.waitFor({ state: 'hidden' });
+    assert.doesNotMatch((await circle.getAttribute('class')) ?? '', /\bkw-hovered\b/);
+    await openFold(page, 'influential-rows');
     const button = page.locator('#kw-influence-body button[data-line]').first();
     assert.equal(await button.count(), 1, 'mcycle has influential rows at this df');
     const want = Number(await button.getAttribute('data-line'));
     const mark = pp.sent.length;
     await button.click();
     assert.deepEqual(await pp.waitForSent('revealLine', mark), { type: 'revealLine', line: want });
-    // The marked points of the Cook's distance figure are reachable by keyboard too.
-    const point = page.locator('#fig-cooks circle[tabindex="0"]').first();
-    const pointLine = Number(await point.getAttribute('data-line'));
-    await point.focus();
-    const mark2 = pp.sent.length;
+    await page.close();
+  });
+
+  it("a marked point of the Cook's distance figure takes the keyboard focus, shows its values and opens its line (MASS::hills)", async function () {
+    // MASS::hills (Atkinson 1986) with a natural spline of df 3: R's lm(y ~ ns(x, df = 2)) puts one row over the
+    // Cook's distance threshold (test/reference/fixtures/influence.json, from test/reference/r/influence.R).
+    const ref = JSON.parse(readFileSync(join(__dirname, '..', 'reference', 'fixtures', 'influence.json'), 'utf8')) as {
+      datasets: { hills: { x: number[]; y: number[] } };
+      lm: { name: string; cooksRows: number[] }[];
+    };
+    const rows = ref.lm.find((c) => c.name === 'hills lm df=3')?.cooksRows ?? [];
+    assert.equal(rows.length, 1, 'R puts one row of hills over the threshold');
+    const hills = ref.datasets.hills;
+    const data = { x: Float64Array.from(hills.x), y: Float64Array.from(hills.y), lines: Int32Array.from(hills.x, (_, i) => i + 2) };
+    const analysis = await analyse(data, { kind: 'natural-spline', candidates: [3], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1 });
+    const payload = buildPanelPayload({ runId: 1, analysis, source: { fileName: 'hills.csv', xLabel: 'dist', yLabel: 'time' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
+    const pp = await shown({ payload, analysis, data });
+    const page = pp.page;
+    await openFold(page, 'influential-rows');
+    const points = page.locator('#fig-cooks circle[tabindex="0"]');
+    assert.equal(await points.count(), rows.length);
+    // R's row (a 0-based index in the data's order, as influence.R writes it) is CSV line index + 2.
+    const line = (rows[0] as number) + 2;
+    assert.equal(await points.first().getAttribute('data-line'), String(line));
+    await points.first().focus();
+    assert.match((await page.locator('#fig-cooks .kw-tip').textContent()) ?? '', new RegExp(`line ${line}`));
+    assert.equal(await page.locator('#fig-cooks .kw-tip').isVisible(), true);
+    const mark = pp.sent.length;
     await page.keyboard.press('Enter');
-    assert.deepEqual(await pp.waitForSent('revealLine', mark2), { type: 'revealLine', line: pointLine });
+    assert.deepEqual(await pp.waitForSent('revealLine', mark), { type: 'revealLine', line });
     await page.close();
   });
 
@@ -265,9 +340,25 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.equal(payload.data.kind, 'bins');
     const pp = await shown({ payload, analysis, data });
     const page = pp.page;
-    assert.ok((await page.locator('#fig-data rect.kw-bin').count()) > 100);
+    assert.ok((await page.locator('#fig-data .kw-bins rect.kw-bin').count()) > 100);
     assert.equal(await page.locator('#fig-data circle').count(), 0);
-    assert.match((await page.textContent('#fig-data svg > desc')) ?? '', /200000 readings drawn as a density grid/);
+    assert.match((await page.textContent('#fig-data svg > desc')) ?? '', /200000 readings drawn as a density grid .* logarithmic scale/);
+    // Drawn beneath: the density grid comes before the bands and the curve in document (paint) order.
+    const order = await page.$$eval('#fig-data svg .kw-bins, #fig-data svg .kw-band-pi, #fig-data svg .kw-band-ci, #fig-data svg .kw-curve', (es) => es.map((e) => e.getAttribute('class')));
+    assert.deepEqual(order, ['kw-bins', 'kw-band-pi', 'kw-band-ci', 'kw-curve']);
+    // The shades step on a logarithmic scale of the counts (core/plots/cloud.ts binLevel): each cell's class is
+    // its count's, read from its hover text, and several classes are in use.
+    if (payload.data.kind !== 'bins') throw new Error('expected a density grid');
+    const fullest = Math.max(...payload.data.counts);
+    const cells = await page.$$eval('#fig-data .kw-bins rect', (rs) => rs.map((r) => ({ cls: r.getAttribute('class') ?? '', title: r.querySelector('title')?.textContent ?? '' })));
+    for (const c of cells) assert.equal(c.cls, `kw-bin kw-bin-${binLevel(Number(/^(\d+) reading/.exec(c.title)?.[1]), fullest)}`, c.title);
+    assert.ok(new Set(cells.map((c) => c.cls)).size >= 3, 'several shades in use');
+    const legend = await page.$$eval('#fig-data .kw-legend text', (ts) => ts.map((t) => t.textContent ?? ''));
+    assert.equal(legend[0], 'readings per cell:');
+    assert.match(legend[1] ?? '', /^1(–\d+)?$/);
+    assert.match(legend[legend.length - 1] ?? '', new RegExp(`–${fullest}$`));
+    assert.equal(await page.locator('#fig-data .kw-legend rect.kw-bin').count(), legend.length - 1);
+    await page.locator('#fig-data').screenshot({ path: join(artifacts, 'webview-density.png') });
     await page.close();
   });
 
@@ -345,6 +436,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.equal(listed[0], lowest);
     assert.match((await page.textContent('#kw-model-lines')) ?? '', new RegExp(`robust scale ${num(ref.scale, 4).replace('.', '\\.')}`));
     assert.equal(await page.isChecked('#kw-robust'), true);
+    await openFold(page, 'model-report');
     const mark = pp.sent.length;
     await page.click(`#kw-downweighted button[data-line="${lowest}"]`);
     assert.deepEqual(await pp.waitForSent('revealLine', mark), { type: 'revealLine', line: lowest });
@@ -411,7 +503,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     const page = pp.page;
     const p = mcycle.payload;
     const sel = expected(p, p.rule);
-    await page.waitForSelector('#fig-qq svg');
+    await page.waitForSelector('#fig-qq svg', { state: 'attached' });
     const view: FigureView = {
       xLabel: p.source.xLabel,
       yLabel: p.source.yLabel,
@@ -421,15 +513,19 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
       curve: p.curves.find((c) => c.df === sel.df),
       tuning: { metric: p.metric, candidates: p.candidates, rule: sel.rule, threshold: sel.threshold },
       detail: p.details.find((d) => d.df === sel.df),
+      errorRange: 'decision',
     };
     const shownFigures = await page.$$eval('figure.kw-figure', (fs) =>
       fs.map((f) => ({ id: f.id, caption: f.querySelector('figcaption')?.textContent ?? '', desc: f.querySelector('svg > desc')?.textContent ?? '' })),
     );
+    // Every figure the catalogue draws from this view, in its order (one without its data is left out).
+    const drawable = FIGURE_CATALOGUE.filter((f) => f.svg(view) !== undefined);
+    assert.ok(drawable.length >= 7, 'the curve, the error and the residual and influence figures');
     assert.deepEqual(
       shownFigures.map((f) => f.id),
-      FIGURE_CATALOGUE.map((f) => f.id),
+      drawable.map((f) => f.id),
     );
-    for (const [i, f] of FIGURE_CATALOGUE.entries()) {
+    for (const [i, f] of drawable.entries()) {
       const got = shownFigures[i];
       assert.equal(got?.caption, f.title(view), f.id);
       assert.ok(got?.desc.endsWith(f.description), `${f.id}: ${got?.desc}`);
@@ -474,16 +570,261 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await page.close();
   });
 
-  for (const theme of ['light', 'dark'] as const) {
-    it(`screenshot in the ${theme} theme (test-artifacts/webview-${theme}.png)`, async function () {
-      const pp = await shown(mcycle, theme);
-      await pp.page.screenshot({ path: join(artifacts, `webview-${theme}.png`), fullPage: true });
-      const bg = await pp.page.evaluate('getComputedStyle(document.body).backgroundColor');
-      // Light theme: white editor background; dark: a dark one (theme variables applied).
-      assert.equal(bg, theme === 'light' ? 'rgb(255, 255, 255)' : 'rgb(31, 31, 31)');
-      await pp.page.close();
-    });
+  /** The colour a theme variable names, as the page computes colours (rgb(...)), read through a probe element. */
+  async function themeColour(page: PanelPage['page'], variable: string): Promise<string> {
+    return page.evaluate((v) => {
+      const doc = (globalThis as unknown as { document: { createElement(t: string): HTMLProbe; body: { append(e: HTMLProbe): void } } }).document;
+      const probe = doc.createElement('span');
+      probe.style.color = `var(${v})`;
+      doc.body.append(probe);
+      const colour = (globalThis as unknown as { getComputedStyle(e: HTMLProbe): { color: string } }).getComputedStyle(probe).color;
+      probe.remove();
+      return colour;
+    }, variable);
   }
+  interface HTMLProbe {
+    readonly style: { color: string };
+    remove(): void;
+  }
+
+  /** The gap between two boxes in CSS pixels: 0 when they touch or overlap, else the larger of the horizontal and vertical gaps. */
+  const gap = (a: Box, b: Box): number => Math.max(0, a.x - (b.x + b.width), b.x - (a.x + a.width), a.y - (b.y + b.height), b.y - (a.y + a.height));
+  interface Box {
+    readonly x: number;
+    readonly y: number;
+    readonly width: number;
+    readonly height: number;
+  }
+
+  // The badge colour of each theme, to tell the themes apart.
+  const badges = new Map<string, string>();
+  for (const theme of ['light', 'dark', 'high-contrast'] as const) {
+    for (const width of [1400, 700]) {
+      it(`${theme} theme at ${width} x 900: the answer, the curve and the error figure in the first 900 pixels, each control beside what it changes (test-artifacts/webview-${theme}-${width}.png)`, async function () {
+        const pp = await shown(mcycle, { theme, viewport: { width, height: 900 } });
+        const page = pp.page;
+        await page.screenshot({ path: join(artifacts, `webview-${theme}-${width}.png`), fullPage: true });
+        const box = async (selector: string): Promise<Box> => {
+          const b = await page.locator(selector).boundingBox();
+          assert.ok(b, `${selector} is shown`);
+          return b;
+        };
+        // The chosen df with its reason, the curve with its bands and the error figure lie entirely in the first screen.
+        for (const selector of ['#kw-chosen-df', '#kw-reason', '#fig-data', '#fig-data .kw-band-pi', '#fig-error']) {
+          const b = await box(selector);
+          assert.ok(b.y >= 0 && b.y + b.height <= 900, `${selector} spans y ${b.y} to ${b.y + b.height} at width ${width}`);
+          assert.ok(b.x >= 0 && b.x + b.width <= width, `${selector} spans x ${b.x} to ${b.x + b.width} at width ${width}`);
+        }
+        // Each control beside what it changes: save and run again beside the chosen df, the rules beside the
+        // error figure, each rule's input beside its rule, the model controls beside the figures they refit.
+        const near = 48;
+        const [save, badge, answer] = [await box('#kw-save'), await box('#kw-chosen-df'), await box('#kw-answer')];
+        assert.ok(save.y < badge.y + badge.height && badge.y < save.y + save.height && gap(save, answer) === 0, 'save in the row of the chosen df');
+        assert.ok(gap(await box('#kw-rules'), await box('#fig-error')) <= near, 'the rule controls beside the error figure');
+        assert.ok(gap(await box('#kw-tolerance'), await box('label[for="kw-rule-simplest-within"]')) <= near / 2, 'the tolerance beside its rule');
+        assert.ok(gap(await box('#kw-df'), await box('label[for="kw-rule-pick"]')) <= near / 2, 'the df chooser beside its rule');
+        const model = await box('#kw-model-controls');
+        assert.ok(Math.min(gap(model, await box('#fig-data')), gap(model, await box('#kw-error-section'))) <= near, 'the model controls beside the figures');
+        // The panel wears the theme: the badge and the curve take the theme's colours.
+        const badgeColour = (await page.evaluate('getComputedStyle(document.querySelector("#kw-chosen-df")).backgroundColor')) as string;
+        assert.equal(badgeColour, await themeColour(page, '--vscode-badge-background'));
+        const curve = (await page.evaluate('getComputedStyle(document.querySelector("#fig-data .kw-curve")).stroke')) as string;
+        assert.equal(curve, await themeColour(page, '--vscode-charts-blue'));
+        const bg = (await page.evaluate('getComputedStyle(document.body).backgroundColor')) as string;
+        assert.equal(bg, await themeColour(page, '--vscode-editor-background'));
+        badges.set(theme, badgeColour);
+        if (theme !== 'light') assert.notEqual(badgeColour, badges.get('light'), `the badge differs between the light and the ${theme} theme`);
+        await page.close();
+      });
+    }
+  }
+
+  it('the error figure first shows the window around the decision, where threshold and nearby candidates stand apart; Show all candidates shows every one', async function () {
+    const pp = await openPanel(browser, server, mcycle, { viewport: { width: 1400, height: 900 } });
+    const page = pp.page;
+    await pp.send({ type: 'file', uri: 'file:///data/mcycle.csv', fileName: 'mcycle.csv' } satisfies HostMessage);
+    await pp.send({ type: 'result', payload: mcycle.payload });
+    const p = mcycle.payload;
+    const sel = expected(p, p.rule);
+    assert.ok(sel.threshold !== undefined, 'the one-SE rule has a threshold');
+    const points = errorPoints(p.candidates, p.metric);
+    const best = points.reduce((b, q) => (q.mean < b.mean ? q : b));
+    // The candidate the threshold turned away: the next simpler one than the chosen (its mean is above the threshold).
+    const away = points.filter((q) => q.df < sel.df).pop();
+    assert.ok(away && away.mean > sel.threshold, 'mcycle has a simpler candidate above the threshold');
+    /** Vertical distances in CSS pixels from the threshold line to the centres of the turned-away and the least-error candidates. */
+    const distances = async (): Promise<{ away: number; best: number }> => {
+      const line = await page.locator('#fig-error path.kw-threshold').boundingBox();
+      const centre = async (df: number): Promise<number> => {
+        const b = await page.locator(`#fig-error circle[data-df="${df}"]`).boundingBox();
+        assert.ok(b, `df ${df} is drawn`);
+        return b.y + b.height / 2;
+      };
+      assert.ok(line);
+      const y = line.y + line.height / 2;
+      return { away: Math.abs((await centre(away.df)) - y), best: Math.abs((await centre(best.df)) - y) };
+    };
+    const focused = await distances();
+    assert.match((await page.textContent('#fig-error figcaption')) ?? '', /around the decision/);
+    assert.ok((await page.locator('#fig-error .kw-err-point').count()) < points.length, 'the window leaves some candidates out');
+    await page.check('#kw-error-all');
+    await page.waitForFunction(() => !/around the decision/.test((globalThis as unknown as PageDoc).document.querySelector('#fig-error figcaption')?.textContent ?? ''));
+    assert.equal(await page.locator('#fig-error circle.kw-err-point').count(), points.length, 'every candidate is shown');
+    const whole = await distances();
+    // Zoomed in, the threshold stands clearly apart from the nearby candidates: several pixels from the
+    // turned-away one and at least 3 times as far as over the whole range, for both candidates.
+    assert.ok(focused.away >= 5, `turned-away candidate ${focused.away.toFixed(1)} px from the threshold`);
+    assert.ok(focused.away >= 3 * whole.away && focused.best >= 3 * whole.best, `focused ${JSON.stringify(focused)}, whole range ${JSON.stringify(whole)}`);
+    // The choice of range is kept with the panel's state, and a new result keeps it.
+    assert.equal(((await page.evaluate('window.__knotwiseState()')) as { errorRange?: string }).errorRange, 'all');
+    await pp.send({ type: 'result', payload: { ...p, runId: 2 } });
+    await page.waitForSelector('#knotwise-root[data-run-id="2"]');
+    assert.equal(await page.isChecked('#kw-error-all'), true);
+    await page.uncheck('#kw-error-all');
+    assert.match((await page.textContent('#fig-error figcaption')) ?? '', /around the decision/);
+    await page.close();
+  });
+
+  it('an invalid tolerance shows a message beside the box and changes nothing; the box then shows the tolerance in effect', async function () {
+    const pp = await shown(mcycle);
+    const page = pp.page;
+    const p = mcycle.payload;
+    await page.check('#kw-rule-simplest-within');
+    const two = expected(p, { kind: 'simplest-within', percent: 2 });
+    await assertExplains(page, p, two, 2);
+    const reason = await page.textContent('#kw-reason');
+    for (const bad of ['150', '-1']) {
+      const mark = pp.sent.length;
+      await page.fill('#kw-tolerance', bad);
+      await page.locator('#kw-tolerance-error').waitFor();
+      assert.equal(await page.textContent('#kw-tolerance-error'), 'The tolerance must be a percentage from 0 to 100; 2 % stays in effect.');
+      assert.equal(await page.getAttribute('#kw-tolerance', 'aria-invalid'), 'true');
+      assert.equal(await page.textContent('#kw-reason'), reason, `${bad}: the explanation is unchanged`);
+      assert.equal(await page.textContent('#kw-chosen-df'), `df ${two.df}`);
+      assert.deepEqual(
+        pp.sent.slice(mark).filter((m) => m.type === 'choice'),
+        [],
+        'no new choice reached the host',
+      );
+      // Leaving the box: it shows the tolerance in effect again; the message stays to say why.
+      await page.locator('#kw-tolerance').blur();
+      assert.equal(await page.inputValue('#kw-tolerance'), '2');
+      assert.equal(await page.getAttribute('#kw-tolerance', 'aria-invalid'), null);
+      assert.equal(await page.locator('#kw-tolerance-error').isVisible(), true);
+      await assertExplains(page, p, two, 2);
+    }
+    // A valid tolerance applies as it is typed and takes the message away.
+    await page.fill('#kw-tolerance', '10');
+    assert.equal(await page.locator('#kw-tolerance-error').isVisible(), false);
+    await assertExplains(page, p, expected(p, { kind: 'simplest-within', percent: 10 }), 10);
+    // Under another rule the box keeps its tolerance, and so does the list of other rules.
+    await page.check('#kw-rule-one-se');
+    assert.equal(await page.isDisabled('#kw-tolerance'), true);
+    await assertExplains(page, p, expected(p, { kind: 'one-se' }), 10);
+    // A df picked by hand: the chooser and the explanation agree, and a rule choosing again moves the chooser.
+    await page.selectOption('#kw-df', '12');
+    await assertExplains(page, p, expected(p, { kind: 'pick', df: 12 }), 10);
+    await page.check('#kw-rule-least-error');
+    await assertExplains(page, p, expected(p, { kind: 'least-error' }), 10);
+    await page.close();
+  });
+
+  it('details fold: they start folded, the warnings link opens its section, and open sections stay open across a new result and a reloaded webview', async function () {
+    const pp = await openPanel(browser, server, mcycle);
+    const page = pp.page;
+    const file: HostMessage = { type: 'file', uri: 'file:///data/mcycle.csv', fileName: 'mcycle.csv' };
+    await pp.send(file);
+    await pp.send({ type: 'result', payload: mcycle.payload });
+    const openFolds = (): Promise<string[]> => page.$$eval('details.kw-fold', (ds) => ds.filter((d) => (d as HTMLDetailsLike).open).map((d) => d.getAttribute('data-fold') ?? ''));
+    assert.deepEqual(await page.$$eval('details.kw-fold', (ds) => ds.map((d) => d.getAttribute('data-fold'))), ['residual-checks', 'influential-rows', 'candidates', 'model-report', 'notes']);
+    assert.deepEqual(await openFolds(), []);
+    assert.equal(await page.locator('#fig-qq').isVisible(), false, 'folded details are out of sight');
+    // mcycle's checks flag problems: the answer says how many warnings, and its link opens the checks.
+    assert.match((await page.textContent('#kw-warning-note')) ?? '', /^\d+ warnings? for this df; see the residual checks$/);
+    await page.click('#kw-warning-link');
+    await page.locator('#fig-qq').waitFor();
+    await openFold(page, 'candidates');
+    assert.deepEqual(await openFolds(), ['residual-checks', 'candidates']);
+    assert.deepEqual(((await page.evaluate('window.__knotwiseState()')) as { open?: string[] }).open, ['residual-checks', 'candidates']);
+    await page.screenshot({ path: join(artifacts, 'webview-details.png'), fullPage: true });
+    // A new result builds the panel again, with the same sections open.
+    await pp.send({ type: 'result', payload: { ...mcycle.payload, runId: 2 } });
+    await page.waitForSelector('#knotwise-root[data-run-id="2"]');
+    assert.deepEqual(await openFolds(), ['residual-checks', 'candidates']);
+    // Closing is remembered as well; the keyboard opens a section too.
+    await page.click('#kw-fold-candidates > summary');
+    await page.focus('#kw-fold-notes > summary');
+    await page.keyboard.press('Enter');
+    await page.waitForSelector('#kw-fold-notes[open]');
+    assert.deepEqual(await openFolds(), ['residual-checks', 'notes']);
+    const saved = await page.evaluate('window.__knotwiseState()');
+    assert.deepEqual((saved as { open?: string[] }).open, ['residual-checks', 'notes']);
+    await page.close();
+    // A reloaded webview (hidden and shown again) starts from what it saved.
+    const again = await openPanel(browser, server, mcycle, { state: saved });
+    await again.send(file);
+    await again.send({ type: 'result', payload: { ...mcycle.payload, runId: 2 } });
+    await again.page.waitForSelector('#knotwise-root[data-run-id="2"]');
+    assert.deepEqual(await again.page.$$eval('details.kw-fold[open]', (ds) => ds.map((d) => d.getAttribute('data-fold'))), ['residual-checks', 'notes']);
+    await again.page.close();
+  });
+
+  it('details the core adds when it has them: residuals in row order, studentized residuals and the outlier threshold', async function () {
+    // Rendering check: mcycle's details with these fields filled from its own fit (residuals in reverse
+    // row order, so not in x order; residual over residual SD standing in for the studentized residual).
+    const detail = mcycle.payload.details[0];
+    assert.ok(detail);
+    const residuals = Array.from(mcycle.analysis.chosen.residuals).reverse();
+    const rowOrder = {
+      row: residuals.map((_, i) => i + 1),
+      line: residuals.map((_, i) => residuals.length + 1 - i),
+      residual: residuals,
+      blockSize: 1,
+      lag1: 0,
+      runsZ: 0,
+      runsPValue: 1,
+      sameAsX: false,
+      flagged: false,
+    };
+    const influential = detail.influential.map((r) => ({ ...r, studentized: r.y / detail.sigma }));
+    const outlierThreshold = 3.5;
+    const payload: PanelPayload = { ...mcycle.payload, details: [{ ...detail, rowOrder, influential, outlierThreshold }] };
+    const pp = await shown({ ...mcycle, payload });
+    const page = pp.page;
+    await openFold(page, 'residual-checks');
+    assert.equal(await page.locator('#fig-row-order circle.kw-point').count(), residuals.length);
+    assert.equal(await page.textContent('#fig-row-order figcaption'), 'Residuals in the order of the rows in the file');
+    await openFold(page, 'influential-rows');
+    const heads = await page.$$eval('#kw-influence-body th', (hs) => hs.map((h) => h.textContent));
+    assert.ok(heads.includes('studentized residual'), heads.join(', '));
+    const column = heads.indexOf('studentized residual');
+    const first = await page.$$eval('#kw-influence-body tbody tr:first-child td', (ds) => ds.map((d) => d.textContent));
+    assert.equal(first[column], sig(influential[0]?.studentized as number, 3));
+    assert.match((await page.textContent('#kw-influence-body caption')) ?? '', new RegExp(`\\|studentized residual\\| over ${outlierThreshold}$`));
+    await page.close();
+  });
+
+  it('a choice at an end of the candidates says so under the reason, naming the setting that widens them', async function () {
+    // MASS::mcycle with candidates df 3 to 6 only: the least error is at the largest candidate.
+    const fx = await analysedFixture('mcycle.csv', 'times', 'accel', {
+      kind: 'natural-spline',
+      candidates: [3, 4, 5, 6],
+      resample: { kind: 'folds', folds: 5, repeats: 1 },
+      rule: { kind: 'least-error' },
+      seed: 1,
+    });
+    const sel = expected(fx.payload, fx.payload.rule);
+    assert.ok(sel.edge, 'core flags the edge for this fixture');
+    const pp = await shown(fx);
+    const more = pp.page.locator('#kw-reason-more');
+    assert.equal(await more.isVisible(), true);
+    assert.equal(await more.getAttribute('class'), 'kw-warning');
+    const text = (await more.textContent()) ?? '';
+    assert.ok(sel.reason.endsWith(text), `"${text}" closes "${sel.reason}"`);
+    assert.match(text, /knotwise\.\w+/);
+    assert.doesNotMatch(text, /(^|\s)--[a-z]/);
+    await pp.page.close();
+  });
 
   it('before the first result the panel shows the run with its progress and a Stop button; a failure offers Run again', async function () {
     const pp = await openPanel(browser, server, mcycle);

@@ -12,7 +12,8 @@ import type { Analysis } from '../../../core/analysis/types';
 import { selectDf } from '../../../core/tune/rules';
 import type { RuleSpec } from '../../../core/tune/types';
 import type { XYData } from '../../../core/types';
-import { errorPoints, FIGURE_CATALOGUE, type FigureView } from '../../../core/view/figureCatalogue';
+import { decisionWindow } from '../../../core/view/errorFocus';
+import { errorPoints, errorWindowOf, FIGURE_CATALOGUE, type FigureView } from '../../../core/view/figureCatalogue';
 import type { FitDetail } from '../../../core/view/model';
 import { buildPanelPayload, detailFor } from '../../../core/view/payload';
 
@@ -39,6 +40,16 @@ function viewOf(a: Analysis, rule: RuleSpec, labels: readonly [string, string] =
   };
 }
 
+/**
+ * `v` with residuals in the order of the rows, as the residual checks give them when the rows
+ * are not in x order: here the chosen fit's residuals taken in reverse, a drawing input only.
+ */
+function withRowOrder(v: FigureView, a: Analysis, blockSize = 1): FigureView {
+  const r = Array.from(a.chosen.residuals).reverse();
+  const rowOrder = { row: r.map((_, i) => i + 1), line: r.map((_, i) => r.length + 1 - i), residual: r, blockSize, lag1: 0, runsZ: 0, runsPValue: 1, sameAsX: false, flagged: false };
+  return { ...v, detail: { ...(v.detail as FitDetail), rowOrder } };
+}
+
 describe('FIGURE_CATALOGUE', () => {
   let cars: Analysis;
 
@@ -48,22 +59,23 @@ describe('FIGURE_CATALOGUE', () => {
 
   it('lists each figure once, with the panel ids and report keys the panel and report rely on', () => {
     assert.deepEqual(
-      FIGURE_CATALOGUE.map((f) => [f.key, f.id, f.needs, f.inReport]),
+      FIGURE_CATALOGUE.map((f) => [f.key, f.id, f.needs, f.inReport, f.section]),
       [
-        ['curve', 'fig-data', 'curve', true],
-        ['error', 'fig-error', 'tuning', true],
-        ['residuals-x', 'fig-resid-x', 'detail', true],
-        ['residuals-fitted', 'fig-resid-fit', 'detail', true],
-        ['normal-quantiles', 'fig-qq', 'detail', true],
-        ['cooks', 'fig-cooks', 'detail', false],
-        ['leverage', 'fig-leverage', 'detail', false],
+        ['curve', 'fig-data', 'curve', true, 'decision'],
+        ['error', 'fig-error', 'tuning', true, 'decision'],
+        ['residuals-x', 'fig-resid-x', 'detail', true, 'residual-checks'],
+        ['residuals-fitted', 'fig-resid-fit', 'detail', true, 'residual-checks'],
+        ['row-order', 'fig-row-order', 'detail', false, 'residual-checks'],
+        ['normal-quantiles', 'fig-qq', 'detail', true, 'residual-checks'],
+        ['cooks', 'fig-cooks', 'detail', false, 'influential-rows'],
+        ['leverage', 'fig-leverage', 'detail', false, 'influential-rows'],
       ],
     );
     for (const f of FIGURE_CATALOGUE) assert.ok(f.description.length > 20 && f.description.endsWith('.'), `${f.key} says how to read it`);
   });
 
   it('draws every figure from a full view: its id on the SVG, its description closing the <desc>', () => {
-    const v = viewOf(cars, { kind: 'one-se' });
+    const v = withRowOrder(viewOf(cars, { kind: 'one-se' }), cars);
     for (const f of FIGURE_CATALOGUE) {
       const svg = f.svg(v);
       assert.ok(svg !== undefined, f.key);
@@ -75,7 +87,7 @@ describe('FIGURE_CATALOGUE', () => {
   });
 
   it('leaves out what the view lacks, and titles it all the same (the panel shows a placeholder)', () => {
-    const full = viewOf(cars, { kind: 'one-se' });
+    const full = withRowOrder(viewOf(cars, { kind: 'one-se' }), cars);
     const bare: FigureView = { ...full, curve: undefined, tuning: undefined, detail: undefined };
     for (const f of FIGURE_CATALOGUE) {
       assert.equal(f.svg(bare), undefined, f.key);
@@ -101,6 +113,41 @@ describe('FIGURE_CATALOGUE', () => {
     const least = viewOf(cars, { kind: 'least-error' });
     assert.equal(least.tuning?.threshold, undefined);
     assert.doesNotMatch(error.title(least), /dashed/);
+  });
+
+  it('the error figure around the decision: the window of core/view/errorFocus.ts when asked for and useful, said in the title', () => {
+    const error = FIGURE_CATALOGUE.find((f) => f.key === 'error');
+    assert.ok(error);
+    const v = viewOf(cars, { kind: 'one-se' });
+    const t = v.tuning;
+    assert.ok(t);
+    const window = decisionWindow(errorPoints(t.candidates, t.metric), v.df, t.threshold);
+    assert.ok(window, 'cars with df 2 to 6 has a window around the decision');
+    const focused: FigureView = { ...v, errorRange: 'decision' };
+    assert.deepEqual(errorWindowOf(focused), window);
+    assert.deepEqual((error.input(focused) as { window: unknown }).window, window);
+    assert.match(error.title(focused), new RegExp(`; df ${window.df[0]} to ${window.df[1]}, around the decision$`));
+    // Every candidate: asked for, or by default (the report draws it so).
+    for (const all of [{ ...v, errorRange: 'all' as const }, v]) {
+      assert.equal(errorWindowOf(all), undefined);
+      assert.equal((error.input(all) as { window: unknown }).window, undefined);
+      assert.doesNotMatch(error.title(all), /around the decision/);
+    }
+  });
+
+  it('the figure of residuals in row order is left out without them or when the rows are in x order; block means say so', () => {
+    const rowOrder = FIGURE_CATALOGUE.find((f) => f.key === 'row-order');
+    assert.ok(rowOrder);
+    const v = viewOf(cars, { kind: 'one-se' });
+    const given = withRowOrder(v, cars);
+    assert.equal(rowOrder.svg({ ...v, detail: { ...(v.detail as FitDetail), rowOrder: undefined } }), undefined);
+    const inXOrder = { ...given, detail: { ...(given.detail as FitDetail), rowOrder: { ...(given.detail?.rowOrder as NonNullable<FitDetail['rowOrder']>), sameAsX: true } } };
+    assert.equal(rowOrder.svg(inXOrder), undefined);
+    const svg = rowOrder.svg(given) ?? '';
+    assert.equal((svg.match(/<circle class="kw-point"/g) ?? []).length, CARS.x.length, 'one point per row');
+    assert.match(svg, /data-line="\d+"/);
+    assert.equal(rowOrder.title(given), 'Residuals in the order of the rows in the file');
+    assert.equal(rowOrder.title(withRowOrder(v, cars, 50)), 'Residuals in the order of the rows in the file (each point the mean of 50 rows)');
   });
 
   it('errorPoints leaves out skipped candidates and those without the metric', () => {
