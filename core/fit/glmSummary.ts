@@ -1,9 +1,6 @@
 import type { Curve, CurveKindId, FitResult, ModelReport, XYData } from '../types';
 import type { OutcomeFamily } from './glm';
 
-/** A Pearson dispersion above this suggests more scatter than the outcome family allows (a Knotwise rule of thumb). */
-export const OVERDISPERSION_NOTE = 1.5;
-
 /** What a Poisson or binomial fit hands to `summariseGlm`. */
 export interface SolvedGlm {
   readonly kind: CurveKindId;
@@ -94,11 +91,7 @@ export function summariseGlm(data: XYData, fam: OutcomeFamily, s: SolvedGlm): Fi
   const residualDf = n - df;
   const dispersion = residualDf > 0 ? chi2 / residualDf : NaN;
   const notes = [...s.notes];
-  if (dispersion > OVERDISPERSION_NOTE) {
-    notes.push(
-      `The Pearson dispersion is ${dispersion.toPrecision(3)} (about 1 is expected): the readings scatter more than a ${fam.distribution} distribution allows, so the bands are too narrow; check for missing structure or use a more flexible curve.`,
-    );
-  }
+  // The dispersion is judged, with what to do, by the residual checks (core/analysis/dispersion.ts), once.
   if (atBound > 0) {
     notes.push(fam.boundNote(atBound));
   }

@@ -13,6 +13,7 @@
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { diagnose } from '../../../core/analysis/diagnose';
 import { InputError } from '../../../core/errors';
 import { bandsAt } from '../../../core/fit/bands';
 import { CachedRows } from '../../../core/fit/cachedRows';
@@ -155,14 +156,18 @@ describe('Poisson and binomial fits (IRLS)', () => {
     assert.match(fit.notes.join(' '), /fitted probabilities numerically 0 or 1/);
   });
 
-  it('an overdispersed count outcome gets a note about the Pearson dispersion (seeded negative-binomial-like counts)', () => {
+  it('an overdispersed count outcome reports its Pearson dispersion, judged once by the residual checks (seeded negative-binomial-like counts)', () => {
     // Counts with extra-Poisson scatter: round(exp(2 + 0.8 z)) with z seeded normal.
     const z = seededNormals(4, 200);
     const x = Float64Array.from({ length: 200 }, (_, i) => i);
     const y = Float64Array.from(z, (v) => Math.round(Math.exp(2 + 0.8 * v)));
     const fit = fitCurve({ x, y }, { kind: 'natural-spline', df: 3, outcome: 'counts' });
     assert.ok((fit.model?.glm?.dispersion as number) > 1.5);
-    assert.match(fit.notes.join(' '), /Pearson dispersion is .* the bands are too narrow/);
+    // The fit's notes leave it to the checks, so the panel and the report say it once.
+    assert.doesNotMatch(fit.notes.join(' '), /dispersion/i);
+    const checks = diagnose({ x, y }, fit);
+    assert.equal(checks.dispersion?.verdict, 'over');
+    assert.equal(checks.warnings.filter((w) => /dispersion/i.test(w)).length, 1);
   });
 });
 
