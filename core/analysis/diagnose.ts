@@ -117,6 +117,7 @@ function maxAbs(a: Float64Array): number {
 function designInXOrder(fit: FitResult, xSorted: Float64Array, rootW: Float64Array | undefined): DesignRows | undefined {
   const curve = fit.curve;
   if (!(curve instanceof RowBasisCurve)) return undefined;
+  const sparse = curve.sparseDesign();
   return {
     p: curve.designSize,
     row(j: number, out: Float64Array): void {
@@ -125,6 +126,20 @@ function designInXOrder(fit: FitResult, xSorted: Float64Array, rootW: Float64Arr
         const s = rootW[j] as number;
         for (let k = 0; k < out.length; k++) out[k] = (out[k] as number) * s;
       }
+    },
+    // The same rows as basis rows with a few non-zeros, so the cross products skip the zeros.
+    sparse: {
+      size: sparse.size,
+      width: sparse.width,
+      expand: sparse.expand,
+      row(j: number, out: Float64Array): number {
+        const first = sparse.row(xSorted[j] as number, out);
+        if (rootW) {
+          const s = rootW[j] as number;
+          for (let k = 0; k < sparse.width; k++) out[k] = (out[k] as number) * s;
+        }
+        return first;
+      },
     },
   };
 }

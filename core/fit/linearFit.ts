@@ -284,6 +284,15 @@ export class RowBasisCurve implements Curve {
     }
   }
 
+  /**
+   * The model matrix in sparse form: designRow(x) = E' b(x), b(x) the basis row with `width`
+   * non-zeros from the index `row` returns, E the null-space map (absent without one).
+   */
+  sparseDesign(): { readonly size: number; readonly width: number; readonly expand: Float64Array | undefined; row(x: number, out: Float64Array): number } {
+    const basis = this.basis;
+    return { size: basis.size, width: basis.width, expand: this.z, row: (x, out) => basis.row(x, out) };
+  }
+
   value(x: number): number {
     const first = this.basis.row(x, this.buf);
     let f = 0;

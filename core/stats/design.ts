@@ -11,6 +11,22 @@ export interface DesignRows {
   readonly p: number;
   /** Copies row i (0-based) into `out`, which has length p. */
   row(i: number, out: Float64Array): void;
+  /** The same rows in a sparse form, when the design has one (a B-spline basis); absent: dense rows only. */
+  readonly sparse?: SparseRows | undefined;
+}
+
+/**
+ * Design rows as x_i = E' b_i, where b_i (length `size`) is zero but for `width` entries
+ * from index `first` (a B-spline basis: 4 of them), and E is `size` x p (row-major; absent
+ * when p = size and E is the identity). Cross products are then summed in the sparse basis,
+ * touching `width` x `width` entries a row, and mapped by E once at the end.
+ */
+export interface SparseRows {
+  readonly size: number;
+  readonly width: number;
+  readonly expand?: Float64Array | undefined;
+  /** Writes the `width` entries of b_i into `out` and returns `first`. */
+  row(i: number, out: Float64Array): number;
 }
 
 /**

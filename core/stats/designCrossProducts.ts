@@ -1,5 +1,5 @@
 import { addCrossProducts, rowViews } from './crossProducts';
-import type { DesignRows } from './design';
+import type { DesignRows, SparseRows } from './design';
 
 /** Rows gathered per block of cross products (scratch of a few BLOCK_ROWS x p blocks). */
 const BLOCK_ROWS = 128;
@@ -42,6 +42,7 @@ export interface DesignCrossProducts {
  * { differences: true }) has gram [3, 3; ., 5] and X'AX [0, 0; ., 2].
  */
 export function designCrossProducts(design: DesignRows, n: number, request: CrossProductRequest): DesignCrossProducts {
+  if (design.sparse) return sparseCrossProducts(design.sparse, design.p, n, request);
   const p = design.p;
   const e = request.squaresOf;
   // Row-major block of [x_i | u_i]; the design writes straight into its rows.
@@ -130,4 +131,125 @@ class DifferenceSums {
     addCrossProducts(this.prevDiff, 1, this.p, this.xa2x);
     return { xax: this.xax, xa2x: this.xa2x };
   }
+}
+
+/**
+ * The same cross products as `designCrossProducts` for rows x_i = E' b_i with sparse b_i
+ * (SparseRows): b b', b u, d d' and a a' are summed in the sparse basis, where a row touches
+ * only the entries its non-zeros span (a B-spline row 4, a difference between neighbouring
+ * rows at most 8), and mapped back as E' M E once. The same sums up to rounding; cost
+ * O(n width^2 + size^2 p) instead of O(n p^2).
+ */
+function sparseCrossProducts(rows: SparseRows, p: number, n: number, request: CrossProductRequest): DesignCrossProducts {
+  const { size, width } = rows;
+  const e = request.squaresOf;
+  let meanSquare = 0;
+  if (e) {
+    for (let i = 0; i < n; i++) meanSquare += (e[i] as number) * (e[i] as number);
+    meanSquare /= n;
+  }
+  const g = new Float64Array(size * size);
+  const xu = new Float64Array(size);
+  const dd = request.differences ? new Float64Array(size * size) : undefined;
+  const aa = request.differences ? new Float64Array(size * size) : undefined;
+  const vals = new Float64Array(width);
+  // Dense b_i, b_(i-1), d_i = b_i - b_(i-1), d_(i-1) over the basis, and where each is non-zero.
+  let b = new Float64Array(size);
+  let bPrev = new Float64Array(size);
+  let d = new Float64Array(size);
+  let dPrev = new Float64Array(size);
+  const a = new Float64Array(size);
+  let bLo = 0;
+  let bHi = -1;
+  let dLo = 0;
+  let dHi = -1;
+  let uu = 0;
+  for (let i = 0; i < n; i++) {
+    const first = rows.row(i, vals);
+    // b_i replaces b_(i-1), whose old non-zeros are cleared.
+    const t = bPrev;
+    bPrev = b;
+    b = t;
+    for (let k = bLo; k <= bHi; k++) b[k] = 0;
+    const prevLo = bLo;
+    const prevHi = bHi;
+    bLo = first;
+    bHi = first + width - 1;
+    for (let k = 0; k < width; k++) b[first + k] = vals[k] as number;
+    outer(g, size, b, bLo, bHi, 1);
+    if (e) {
+      const v = e[i] as number;
+      const u = v * v - meanSquare;
+      uu += u * u;
+      for (let k = bLo; k <= bHi; k++) xu[k] = (xu[k] as number) + (b[k] as number) * u;
+    }
+    if (dd && aa) {
+      // d_i = b_i - b_(i-1) (d_0 = 0); a_(i-1) = d_(i-1) - d_i.
+      const td = dPrev;
+      dPrev = d;
+      d = td;
+      const pdLo = dLo;
+      const pdHi = dHi;
+      for (let k = pdLo; k <= pdHi; k++) d[k] = 0;
+      if (i === 0) {
+        dLo = 0;
+        dHi = -1;
+      } else {
+        dLo = Math.min(bLo, prevLo);
+        dHi = Math.max(bHi, prevHi);
+        for (let k = dLo; k <= dHi; k++) d[k] = (b[k] as number) - (bPrev[k] as number);
+      }
+      outer(dd, size, d, dLo, dHi, 1);
+      const aLo = pdHi < pdLo ? dLo : dHi < dLo ? pdLo : Math.min(pdLo, dLo);
+      const aHi = Math.max(pdHi, dHi);
+      for (let k = aLo; k <= aHi; k++) a[k] = (dPrev[k] as number) - (d[k] as number);
+      outer(aa, size, a, aLo, aHi, 1);
+      for (let k = aLo; k <= aHi; k++) a[k] = 0;
+    }
+  }
+  // The last row of AX, a_(n-1) = d_(n-1).
+  if (aa) outer(aa, size, d, dLo, dHi, 1);
+  const out: { -readonly [K in keyof DesignCrossProducts]: DesignCrossProducts[K] } = { p, n, gram: mapped(g, rows.expand, size, p) };
+  if (e) out.squares = { xu: rows.expand ? mappedVector(xu, rows.expand, size, p) : xu, uu, meanSquare };
+  if (dd && aa) out.differences = { xax: mapped(dd, rows.expand, size, p), xa2x: mapped(aa, rows.expand, size, p) };
+  return out;
+}
+
+/** Adds s v v' to the upper triangle of m (size x size) over the entries lo..hi of v. */
+function outer(m: Float64Array, size: number, v: Float64Array, lo: number, hi: number, s: number): void {
+  for (let r = lo; r <= hi; r++) {
+    const vr = s * (v[r] as number);
+    if (vr === 0) continue;
+    const o = r * size;
+    for (let c = r; c <= hi; c++) m[o + c] = (m[o + c] as number) + vr * (v[c] as number);
+  }
+}
+
+/** E' M E (p x p, upper triangle) for M symmetric with its upper triangle filled; M itself when E is absent. */
+function mapped(m: Float64Array, expand: Float64Array | undefined, size: number, p: number): Float64Array {
+  if (!expand) return m;
+  const full = (r: number, c: number): number => (r <= c ? (m[r * size + c] as number) : (m[c * size + r] as number));
+  // M E first (size x p), then E' (M E).
+  const me = new Float64Array(size * p);
+  for (let r = 0; r < size; r++)
+    for (let j = 0; j < p; j++) {
+      let s = 0;
+      for (let k = 0; k < size; k++) s += full(r, k) * (expand[k * p + j] as number);
+      me[r * p + j] = s;
+    }
+  const out = new Float64Array(p * p);
+  for (let i = 0; i < p; i++)
+    for (let j = i; j < p; j++) {
+      let s = 0;
+      for (let k = 0; k < size; k++) s += (expand[k * p + i] as number) * (me[k * p + j] as number);
+      out[i * p + j] = s;
+    }
+  return out;
+}
+
+/** E' v. */
+function mappedVector(v: Float64Array, expand: Float64Array, size: number, p: number): Float64Array {
+  const out = new Float64Array(p);
+  for (let k = 0; k < size; k++) for (let j = 0; j < p; j++) out[j] = (out[j] as number) + (expand[k * p + j] as number) * (v[k] as number);
+  return out;
 }

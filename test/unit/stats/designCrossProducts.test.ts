@@ -2,6 +2,9 @@ import { strict as assert } from 'node:assert';
 import { denseDesign } from '../../../core/stats/design';
 import { designCrossProducts } from '../../../core/stats/designCrossProducts';
 import { seededNormals } from './seededNormal';
+import { fitCurve } from '../../../core/fit/index';
+import { RowBasisCurve } from '../../../core/fit/linearFit';
+import type { DesignRows } from '../../../core/stats/design';
 
 /**
  * The Durbin-Watson first-difference matrix A (n x n): diagonal 1, 2, ..., 2, 1 and -1 next
@@ -96,5 +99,65 @@ describe('designCrossProducts', () => {
       calls,
       Array.from({ length: 300 }, (_, i) => i),
     );
+  });
+
+  it("the sparse form of a spline design (basis rows and the null-space map) gives the same X'X, X'AX, X'A^2X and X'u as the dense products", () => {
+    // Seeded x with ties, sorted as the residual checks order them; natural spline df 6 (basis
+    // with the natural constraint's null-space map) and polynomial df 4 (dense, no map); weighted rows.
+    for (const [kind, df] of [
+      ['natural-spline', 6],
+      ['polynomial', 4],
+    ] as const) {
+      const n = 300;
+      const raw = seededNormals(77, n);
+      const x = Float64Array.from(raw, (v) => Math.round(v * 20) / 4).sort();
+      const y = Float64Array.from(x, (v, i) => Math.sin(v) + 0.1 * (seededNormals(5, n)[i] as number));
+      const rootW = Float64Array.from(x, (_, i) => Math.sqrt(1 + (i % 3)));
+      const fit = fitCurve({ x, y }, { kind, df });
+      const curve = fit.curve;
+      assert.ok(curve instanceof RowBasisCurve);
+      const p = curve.designSize;
+      const sparse = curve.sparseDesign();
+      const dense: DesignRows = {
+        p,
+        row(i, out) {
+          curve.designRow(x[i] as number, out);
+          for (let k = 0; k < p; k++) out[k] = (out[k] as number) * (rootW[i] as number);
+        },
+      };
+      const withSparse: DesignRows = {
+        ...dense,
+        sparse: {
+          size: sparse.size,
+          width: sparse.width,
+          expand: sparse.expand,
+          row(i, out) {
+            const first = sparse.row(x[i] as number, out);
+            for (let k = 0; k < sparse.width; k++) out[k] = (out[k] as number) * (rootW[i] as number);
+            return first;
+          },
+        },
+      };
+      const e = seededNormals(9, n);
+      const a = designCrossProducts(dense, n, { squaresOf: e, differences: true });
+      const b = designCrossProducts(withSparse, n, { squaresOf: e, differences: true });
+      // The reference: the dense matrix X and A of Durbin & Watson (1950) multiplied out.
+      const xm = new Float64Array(n * p);
+      const row = new Float64Array(p);
+      for (let i = 0; i < n; i++) {
+        dense.row(i, row);
+        xm.set(row, i * p);
+      }
+      const ax = times(differenceMatrix(n), xm, n, p);
+      for (const s2 of [a, b]) {
+        assert.ok(s2.differences && s2.squares);
+        assertUpperClose(s2.gram, crossProduct(xm, xm, n, p, p), p, `${kind} X'X`);
+        assertUpperClose(s2.differences.xax, crossProduct(xm, ax, n, p, p), p, `${kind} X'AX`);
+        assertUpperClose(s2.differences.xa2x, crossProduct(ax, ax, n, p, p), p, `${kind} X'A^2X`);
+      }
+      assert.ok(a.squares && b.squares);
+      for (let k = 0; k < p; k++) assert.ok(Math.abs((a.squares.xu[k] as number) - (b.squares.xu[k] as number)) <= 1e-11 * n, `${kind} X'u ${k}`);
+      assert.equal(a.squares.uu, b.squares.uu);
+    }
   });
 });
