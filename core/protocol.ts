@@ -13,6 +13,7 @@
 import { SHAPES } from './fit/shape';
 import { OUTCOME_LIST } from './registry/outcomes/index';
 import { MAX_TOLERANCE_PERCENT } from './registry/rules/index';
+import { parseDfList } from './tune/candidates';
 import type { RuleSpec } from './tune/types';
 import type { DataStateView, FitDetail, ModelChoice, PanelPayload } from './view/model';
 
@@ -54,7 +55,9 @@ export type PanelMessage =
   /** Run the analysis again with the current settings. */
   | { readonly type: 'rerun' }
   /** Run the analysis again with these model options (they override the settings for this file). */
-  | { readonly type: 'model'; readonly runId: number; readonly model: ModelChoice };
+  | { readonly type: 'model'; readonly runId: number; readonly model: ModelChoice }
+  /** Run the analysis again with these candidate df, written as the command line's --df takes them (e.g. '2..20'); they override the settings for this file. */
+  | { readonly type: 'candidates'; readonly runId: number; readonly candidates: string };
 
 /** The panel's folding sections of details, by id, in the order the panel shows them. */
 export const FOLD_IDS = ['residual-checks', 'influential-rows', 'candidates', 'model-report', 'notes'] as const;
@@ -78,6 +81,10 @@ export interface PanelState {
   readonly open?: readonly FoldId[];
   /** What the error figure shows: the window around the decision or every candidate. */
   readonly errorRange?: 'decision' | 'all';
+  /** Present when the panel set the candidate df (as the command line's --df takes them); they override the settings for this file. */
+  readonly candidates?: string;
+  /** True when the person asked to see every listed influential row, not only the first ten. */
+  readonly allInfluential?: boolean;
 }
 
 /** Compile-time exhaustiveness check for switches over message tags. */
@@ -172,6 +179,19 @@ export function isModelChoice(m: unknown): m is ModelChoice {
   );
 }
 
+/** Longest candidate text a message may carry (a range or a list of up to MAX_CANDIDATES df). */
+const MAX_CANDIDATE_TEXT = 2048;
+
+/** True when `t` is candidate df text the command line's --df accepts (a df, a list or a range; core/tune/candidates.ts parseDfList). */
+export function isCandidateText(t: unknown): t is string {
+  if (typeof t !== 'string' || t.length === 0 || t.length > MAX_CANDIDATE_TEXT) return false;
+  try {
+    return parseDfList(t).length > 0;
+  } catch {
+    return false;
+  }
+}
+
 /** True when `m` is a PanelMessage (the host checks everything it receives). */
 export function isPanelMessage(m: unknown): m is PanelMessage {
   const o = plainObject(m);
@@ -192,6 +212,8 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
       return hasExactKeys(o, ['type', 'line']) && isId(o.line) && o.line >= 1;
     case 'model':
       return hasExactKeys(o, ['type', 'runId', 'model']) && isId(o.runId) && isModelChoice(o.model);
+    case 'candidates':
+      return hasExactKeys(o, ['type', 'runId', 'candidates']) && isId(o.runId) && isCandidateText(o.candidates);
     default:
       return false;
   }
@@ -205,7 +227,7 @@ export function isPanelState(s: unknown): s is PanelState {
   const o = plainObject(s);
   return (
     o !== undefined &&
-    hasExactKeys(o, ['file'], ['runId', 'rule', 'model', 'open', 'errorRange']) &&
+    hasExactKeys(o, ['file'], ['runId', 'rule', 'model', 'open', 'errorRange', 'candidates', 'allInfluential']) &&
     typeof o.file === 'string' &&
     o.file.length > 0 &&
     o.file.length <= MAX_URI_TEXT &&
@@ -213,7 +235,9 @@ export function isPanelState(s: unknown): s is PanelState {
     (o.rule === undefined || isRuleSpec(o.rule)) &&
     (o.model === undefined || isModelChoice(o.model)) &&
     (o.open === undefined || isFoldList(o.open)) &&
-    (o.errorRange === undefined || o.errorRange === 'decision' || o.errorRange === 'all')
+    (o.errorRange === undefined || o.errorRange === 'decision' || o.errorRange === 'all') &&
+    (o.candidates === undefined || isCandidateText(o.candidates)) &&
+    (o.allInfluential === undefined || typeof o.allInfluential === 'boolean')
   );
 }
 

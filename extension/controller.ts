@@ -16,7 +16,7 @@ import { routePanelMessage } from './panelMessages';
 import { RejectedRowsView } from './problems';
 import { RecordWatch } from './records';
 import { DataSession, type SessionContext } from './session';
-import { analysisOptions, readSettings, sameAnalysis, type Settings } from './settings';
+import { readSettings, sameAnalysis, type Settings } from './settings';
 
 /** How long after activation the workspace's fit records are first looked at (ms): off the activation path. */
 const RECORD_SCAN_DELAY_MS = 1000;
@@ -238,7 +238,7 @@ export class Controller implements vscode.Disposable {
    * Applies changed settings to open panels where it matters: options that change the
    * analysis rerun it; a new rule or tolerance re-renders the same run; table and output
    * settings only affect the next save; refit settings change what the banner says.
-   * Changed model settings replace the panel's own.
+   * Changed model settings replace the panel's own, and a changed candidates setting the panel's candidates.
    */
   private settingsChanged(): void {
     const windowBefore = this.settings;
@@ -253,8 +253,10 @@ export class Controller implements vscode.Disposable {
       const ruleChanged = JSON.stringify(old.rule) !== JSON.stringify(now.rule) || old.tolerancePercent !== now.tolerancePercent;
       const refitChanged = old.refitOnSave !== now.refitOnSave;
       if (modelChanged) s.model = undefined;
+      // A changed candidates setting replaces the candidates the panel set.
+      if (JSON.stringify(old.candidates) !== JSON.stringify(now.candidates)) s.candidates = undefined;
       if (!s.result || !s.hasPanel) continue;
-      if (!sameAnalysis(s.result.options, analysisOptions(now, s.modelFor()))) void s.tune({ background: true });
+      if (!sameAnalysis(s.result.options, s.analysisOptionsFor(now))) void s.tune({ background: true });
       else if (ruleChanged) s.showResult(now.rule);
       else if (refitChanged) s.postDataState();
     }

@@ -33,6 +33,8 @@ import { detailFor, errorText, modelSummary, type RunResult } from './result';
 import { analyseWithProgress, RunTicket } from './run';
 import { saveDeliverables, type OverwriteAnswer } from './save';
 import { analysisOptions, modelOptions, type ModelSettings, type Settings } from './settings';
+import type { AnalysisOptions } from '../core/analysis/types';
+import { parseDfList } from '../core/tune/candidates';
 
 /** What every session shares: the extension's folder, remembered columns, Problems, the worker pool, settings and run ids. */
 export interface SessionContext {
@@ -83,6 +85,8 @@ export class DataSession implements vscode.Disposable {
   rule: RuleSpec | undefined;
   /** Model options set with the panel's controls; they replace the settings' for this file until those change. */
   model: ModelSettings | undefined;
+  /** Candidate df set with the panel's "Widen the candidates" button (the command line's --df text); they replace the setting's for this file until it changes. */
+  candidates: string | undefined;
   /** The latest payload posted to the panel, and counts for the API. */
   payload: PanelPayload | undefined;
   posted = 0;
@@ -125,6 +129,12 @@ export class DataSession implements vscode.Disposable {
       }
     }
     return settings.model;
+  }
+
+  /** The analysis options of this file's next run: the settings with the panel's model options and candidates where set. */
+  analysisOptionsFor(settings: Settings = this.ctx.settings(this.uri)): AnalysisOptions {
+    const opts = analysisOptions(settings, this.modelFor());
+    return this.candidates !== undefined ? { ...opts, candidates: parseDfList(this.candidates) } : opts;
   }
 
   /** The columns for a run: given, remembered (when not asking), or picked; undefined when the person dismissed a pick or none may be asked. */
@@ -175,7 +185,7 @@ export class DataSession implements vscode.Disposable {
       const trials = binomial && typeof choice.trials === 'string' ? choice.trials : undefined;
       const columns =
         trials !== undefined ? selectTrials(source.table, { x: choice.x, y: choice.y }, trials, file) : selectColumns(source.table, { x: choice.x, y: choice.y, weights: choice.weights }, file);
-      const opts = analysisOptions(settings, model);
+      const opts = this.analysisOptionsFor(settings);
       if (background && !this.hasPanel) return { status: 'dismissed', file, runId };
       this.ctx.problems.show(this.uri, source.text, source.table, columns.rejected);
       const panel = this.openPanel();
@@ -295,6 +305,7 @@ export class DataSession implements vscode.Disposable {
       if (typeof next !== 'string') this.model = this.differsFromSettings(next) ? next : undefined;
     }
     if (state.rule) this.rule = state.rule;
+    if (state.candidates !== undefined) this.candidates = state.candidates;
     void this.tune({ noPicks: true, keep: true });
   }
 
@@ -321,6 +332,7 @@ export class DataSession implements vscode.Disposable {
       rule: rule ?? this.rule,
       trialsLabel: r.trials !== undefined ? r.columns.labels.weights : undefined,
       modelFromPanel: this.model !== undefined,
+      candidatesFromPanel: this.candidates,
       detail: (df) => detailFor(r, df),
       warnings: settings.problems,
     });
@@ -587,6 +599,17 @@ export class DataSession implements vscode.Disposable {
       return;
     }
     this.model = this.differsFromSettings(next) ? next : undefined;
+    void this.tune();
+  }
+
+  /**
+   * The panel's "Widen the candidates" button: keeps these candidate df (the command line's
+   * --df text, already checked by the protocol's guard) for this file and reruns, keeping
+   * the person's rule, model options and columns.
+   */
+  widenCandidates(text: string): void {
+    if (!this.result) return;
+    this.candidates = text;
     void this.tune();
   }
 

@@ -1,15 +1,11 @@
 /**
- * The explanation the panel shows beside the chosen df, agreeing with its inputs. Core's
- * explanation (core/tune/rules.ts selectDf) ends with what the other rules would choose,
- * and for the simplest-within rule it assumes the default tolerance unless that rule is
- * the one in use; the panel's tolerance box may say otherwise. So the panel shows the
- * rule's own sentences as the reason and lists the other rules itself, the simplest-within
- * rule with the tolerance the box shows.
+ * The explanation the panel shows beside the chosen df, agreeing with its inputs. The panel
+ * chooses with core's selectDf at the tolerance its box shows (listTolerance), and core
+ * returns the explanation in parts: the rule's own sentences, what the other rules would
+ * choose (the simplest-within rule at that tolerance) and the caveats after them. The panel
+ * shows the parts in their own places and never parses the explanation's text.
  */
-import { ruleWords } from '../core/registry/rules/index';
-import { selectDf } from '../core/tune/rules';
 import type { RuleSpec, Selection } from '../core/tune/types';
-import type { PanelPayload } from '../core/view/model';
 
 /** What another rule would choose. */
 export interface OtherChoice {
@@ -26,23 +22,7 @@ export interface Explanation {
   readonly others: readonly OtherChoice[];
 }
 
-/**
- * The explanation of `sel` with the simplest-within rule at `tolerance` %: core's
- * explanation split around its list of other rules (which the panel lists itself, with the
- * box's tolerance). When core words that list otherwise than expected, its explanation is
- * the reason, whole, with core's own list, so nothing is ever cut wrongly. O(candidates).
- */
-export function explain(p: PanelPayload, sel: Selection, tolerance: number): Explanation {
-  const listed = sel.alternatives.map((a) => `${ruleWords(a.rule)} → df ${a.df}`).join('; ');
-  const tail = ` Other rules: ${listed}.`;
-  const at = sel.reason.indexOf(tail);
-  if (at < 0) return { reason: sel.reason, more: '', others: sel.alternatives };
-  const reason = sel.reason.slice(0, at);
-  const more = sel.reason.slice(at + tail.length).trim();
-  const others = sel.alternatives.map((a) => {
-    if (a.rule.kind !== 'simplest-within' || a.rule.percent === tolerance) return a;
-    const rule: RuleSpec = { kind: 'simplest-within', percent: tolerance };
-    return { rule, df: selectDf(p.candidates, rule, p.metric, 'editor').df };
-  });
-  return { reason, more, others };
+/** The explanation of `sel` (chosen with the panel's tolerance) in the parts the panel shows. O(1). */
+export function explain(sel: Selection): Explanation {
+  return { reason: sel.ruleReason, more: sel.caveats, others: sel.alternatives };
 }

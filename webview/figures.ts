@@ -19,7 +19,7 @@ export function panelFigureView(payload: PanelPayload, selection: Selection, det
     data: payload.data,
     grid: payload.grid,
     curve: payload.curves.find((c) => c.df === selection.df),
-    tuning: { metric: payload.metric, candidates: payload.candidates, rule: selection.rule, threshold: selection.threshold },
+    tuning: { metric: payload.metric, candidates: payload.candidates, rule: selection.rule, threshold: selection.threshold, tolerancePercent: selection.otherRulesTolerance },
     detail,
     errorRange,
   };

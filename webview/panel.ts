@@ -40,6 +40,8 @@ export class Panel {
   private readonly open = new Set<FoldId>();
   /** What the error figure shows. */
   private errorRange: 'decision' | 'all' = 'decision';
+  /** Every listed influential row shown, not only the first ten. */
+  private allInfluential = false;
   private readonly details = new Map<number, FitDetail>();
   private readonly requested = new Set<number>();
   private nextRequest = 1;
@@ -76,6 +78,12 @@ export class Panel {
       details.scrollIntoView({ block: 'start' });
     },
     changeModel: (model) => this.changeModel(model),
+    widenCandidates: (candidates) => this.widenCandidates(candidates),
+    setAllInfluential: (all) => {
+      this.allInfluential = all;
+      this.keepState();
+      this.update();
+    },
     save: () => this.save(),
     rerun: () => this.rerun(),
     stop: () => this.stop(),
@@ -89,6 +97,7 @@ export class Panel {
     const kept = host.loadState();
     for (const id of kept?.open ?? []) this.open.add(id);
     if (kept?.errorRange) this.errorRange = kept.errorRange;
+    if (kept?.allInfluential) this.allInfluential = true;
     root.addEventListener('click', (e) => this.onActivate(e));
     root.addEventListener('keydown', (e) => {
       if ((e.key === 'Enter' || e.key === ' ') && (e.target as Element | null)?.closest?.('svg [data-line][tabindex]')) {
@@ -269,7 +278,7 @@ export class Panel {
     return s !== undefined && (s.change !== undefined || s.analysed === 'unsaved');
   }
 
-  /** Keeps the file, run, rule, panel-set model options and the view the person left in the webview's state (restored after a reload). */
+  /** Keeps the file, run, rule, panel-set model options and candidates, and the view the person left in the webview's state (restored after a reload). */
   private keepState(): void {
     if (!this.file) return;
     const p = this.payload;
@@ -280,6 +289,8 @@ export class Panel {
       ...(p?.model.fromPanel ? { model: { outcome: p.model.outcome, shape: [...p.model.shape], robust: p.model.robust } } : {}),
       ...(open.length ? { open } : {}),
       ...(this.errorRange !== 'decision' ? { errorRange: this.errorRange } : {}),
+      ...(p?.candidatesFromPanel !== undefined ? { candidates: p.candidatesFromPanel } : {}),
+      ...(this.allInfluential ? { allInfluential: true } : {}),
     };
     this.host.saveState(state);
   }
@@ -287,8 +298,8 @@ export class Panel {
   private currentSelection(): Selection | undefined {
     if (!this.payload) return undefined;
     try {
-      // The editor's words: an option named in the explanation is a setting, not a flag.
-      return selectDf(this.payload.candidates, this.rule, this.payload.metric, 'editor');
+      // The editor's words (an option named in the explanation is a setting, not a flag), and the tolerance the box shows for the simplest-within rule.
+      return selectDf(this.payload.candidates, this.rule, this.payload.metric, 'editor', this.tolerance);
     } catch {
       return undefined;
     }
@@ -318,7 +329,15 @@ export class Panel {
       this.host.post({ type: 'needDetail', runId: p.runId, df: selection.df });
     }
     this.root.dataset.chosenDf = String(selection.df);
-    const choice = { payload: p, selection, detail, view: panelFigureView(p, selection, detail, this.errorRange), rule: this.rule, tolerance: this.tolerance };
+    const choice = {
+      payload: p,
+      selection,
+      detail,
+      view: panelFigureView(p, selection, detail, this.errorRange),
+      rule: this.rule,
+      tolerance: this.tolerance,
+      allInfluential: this.allInfluential,
+    };
     for (const s of this.sections) s.show(choice);
   }
 
@@ -327,6 +346,13 @@ export class Panel {
     if (!p) return;
     this.setRunning(true, 'Tuning again with the new readings and shape…');
     this.host.post({ type: 'model', runId: p.runId, model });
+  }
+
+  private widenCandidates(candidates: string): void {
+    const p = this.payload;
+    if (!p) return;
+    this.setRunning(true, `Tuning again with the candidates df ${candidates}…`);
+    this.host.post({ type: 'candidates', runId: p.runId, candidates });
   }
 
   private rerun(): void {

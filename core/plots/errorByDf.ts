@@ -32,6 +32,12 @@ export interface ErrorByDfSpec {
   readonly reading?: string | undefined;
   /** Show only this window (df range and error range); default every candidate. */
   readonly window?: ErrorWindow | undefined;
+  /**
+   * How a mean error or the threshold prints in the hover texts and the description: the
+   * tuning's one printer (core/tune/rules.ts errorFormat), so the figure reads as the
+   * explanation and the candidates table; default 5 significant digits.
+   */
+  readonly format?: ((value: number) => string) | undefined;
 }
 
 /** Half the side of the triangle that marks a mean outside the window's error range. */
@@ -59,6 +65,7 @@ export function errorByDfSvg(spec: ErrorByDfSpec): string {
     ...(integerDf && dfs.length <= 24 ? { xTicks: dfs } : {}),
   });
   const { sx, sy } = frame;
+  const fmt = spec.format ?? ((v: number): string => num(v, 5));
   // The line runs through every candidate; the clip keeps the part inside the window.
   let marks = `<path class="kw-err-line" d="${linePath(
     all.map((p) => sx(p.df)),
@@ -68,7 +75,7 @@ export function errorByDfSvg(spec: ErrorByDfSpec): string {
   for (const p of pts) {
     const x = coord(sx(p.df));
     const chosen = p.df === spec.chosenDf;
-    const tip = `df ${num(p.df)}: mean ${spec.metricName} ${num(p.mean, 5)}${Number.isFinite(p.se) ? `, SE ${num(p.se, 3)}` : ''}${chosen ? ' (chosen)' : ''}`;
+    const tip = `df ${num(p.df)}: mean ${spec.metricName} ${fmt(p.mean)}${Number.isFinite(p.se) ? `, SE ${num(p.se, 3)}` : ''}${chosen ? ' (chosen)' : ''}`;
     const above = p.mean > yDomain[1];
     if (above || p.mean < yDomain[0]) {
       // A mean beyond the window's error range: a triangle at the edge, pointing the way it lies.
@@ -87,7 +94,7 @@ export function errorByDfSvg(spec: ErrorByDfSpec): string {
   }
   if (th.length) {
     const y = coord(sy(th[0] as number));
-    marks += `<path class="kw-threshold" d="M${frame.left} ${y}H${frame.right}"><title>${escapeXml(`threshold ${num(th[0] as number, 5)}`)}</title></path>`;
+    marks += `<path class="kw-threshold" d="M${frame.left} ${y}H${frame.right}"><title>${escapeXml(`threshold ${fmt(th[0] as number)}`)}</title></path>`;
   }
   const chosen = all.find((p) => p.df === spec.chosenDf);
   const best = all.reduce<ErrorPoint | undefined>((b, p) => (b === undefined || p.mean < b.mean ? p : b), undefined);
@@ -103,9 +110,9 @@ export function errorByDfSvg(spec: ErrorByDfSpec): string {
     all.length === 0
       ? 'No candidate could be evaluated.'
       : `Mean ${spec.metricName} of ${all.length} candidates from df ${num(all[0]?.df as number)} to ${num(all[all.length - 1]?.df as number)}` +
-        (best ? `; lowest ${num(best.mean, 4)} at df ${num(best.df)}` : '') +
-        (th.length ? `; threshold ${num(th[0] as number, 4)}` : '') +
-        (chosen ? `; ${spec.ruleName} chooses df ${num(chosen.df)} (${num(chosen.mean, 4)}).` : '.') +
+        (best ? `; lowest ${fmt(best.mean)} at df ${num(best.df)}` : '') +
+        (th.length ? `; threshold ${fmt(th[0] as number)}` : '') +
+        (chosen ? `; ${spec.ruleName} chooses df ${num(chosen.df)} (${fmt(chosen.mean)}).` : '.') +
         shown +
         reading(spec.reading);
   return svgDocument(spec.id, { title: `Resampled ${spec.metricName} against df`, desc }, frame.clipDef + frame.axes + `<g clip-path="${frame.clip}">${marks}</g>`);

@@ -57,7 +57,10 @@ export function reportFigures(input: FigureInput): ReportFigure[] {
     data: cloudOf(fitted.x, fitted.y, fitted.lines),
     grid: Array.from(grid),
     curve: curveView(fit, grid),
-    tuning: input.analysis && sel ? { metric: input.analysis.tune.metric, candidates: input.analysis.tune.candidates, rule: sel.rule, threshold: sel.threshold } : undefined,
+    tuning:
+      input.analysis && sel
+        ? { metric: input.analysis.tune.metric, candidates: input.analysis.tune.candidates, rule: sel.rule, threshold: sel.threshold, tolerancePercent: sel.otherRulesTolerance }
+        : undefined,
     detail: fitDetail(fit, fitted, { diagnostics: input.diagnostics }),
   };
   const out: ReportFigure[] = [];

@@ -148,17 +148,21 @@ function edgeWords(edge: CandidateEdge, audience: Audience): string {
  * threshold with errorPlace (so the compared numbers differ visibly when they differ), and
  * flags a choice at an end of the candidates (candidateEdge; `edge`), naming the option
  * that widens them in `audience`'s words (the command line's --df by default, the
- * editor's setting for 'editor'). O(candidates).
+ * editor's setting for 'editor'). `listTolerance` is the tolerance in percent the
+ * simplest-within rule is listed with when it is not the rule in use (the panel passes its
+ * tolerance box's); it also sets the printed digits (errorPlace). The explanation's parts
+ * come separately too (ruleReason, alternatives, caveats), so no front end parses `reason`.
+ * O(candidates).
  * Throws InputError when no candidate is usable or a picked df is not a candidate.
  * Example: selectDf(cands, { kind: 'one-se' }, 'rmse').df.
  */
-export function selectDf(candidates: readonly CandidateResult[], rule: RuleSpec, metric: Metric, audience: Audience = 'cli'): Selection {
+export function selectDf(candidates: readonly CandidateResult[], rule: RuleSpec, metric: Metric, audience: Audience = 'cli', listTolerance: number = DEFAULT_TOLERANCE_PERCENT): Selection {
   const list = usable(candidates, metric);
   if (list.length === 0) {
     const reasons = candidates.filter((c) => c.skipped).map((c) => `df ${c.df}: ${c.skipped}`);
     throw new InputError(`no candidate df could be evaluated${reasons.length ? ` (${reasons.join('; ')})` : ''}`);
   }
-  const percent = rule.kind === 'simplest-within' ? rule.percent : DEFAULT_TOLERANCE_PERCENT;
+  const percent = rule.kind === 'simplest-within' ? rule.percent : listTolerance;
   const place = comparisonPlace(list, percent);
   const main = pick(list, rule, metric, place);
   const others: RuleSpec[] = [{ kind: 'least-error' }, { kind: 'one-se' }, { kind: 'simplest-within', percent }].filter((r) => r.kind !== rule.kind) as RuleSpec[];
@@ -167,11 +171,15 @@ export function selectDf(candidates: readonly CandidateResult[], rule: RuleSpec,
   const skipped = candidates.filter((c) => c.skipped !== undefined).length;
   const skippedText = skipped ? ` ${skipped} candidate${skipped > 1 ? 's were' : ' was'} skipped (see the candidate list).` : '';
   const edge = edgeOf(list, candidates, main.chosen.df, rule);
+  const caveats = `${skippedText}${edge ? ` ${edgeWords(edge, audience)}` : ''}`.trim();
   return {
     df: main.chosen.df,
     rule,
     metric,
     reason: `${main.sentence} Other rules: ${altText}.${skippedText}${edge ? ` ${edgeWords(edge, audience)}` : ''}`,
+    ruleReason: main.sentence,
+    caveats,
+    otherRulesTolerance: percent,
     ...(main.threshold !== undefined ? { threshold: main.threshold } : {}),
     alternatives,
     ...(edge ? { edge } : {}),

@@ -47,8 +47,14 @@ export interface Selection {
   readonly df: number;
   readonly rule: RuleSpec;
   readonly metric: Metric;
-  /** Plain-language explanation with the numbers behind it. */
+  /** Plain-language explanation with the numbers behind it (the record's `selection.reason`): ruleReason, the other rules, then caveats. */
   readonly reason: string;
+  /** The rule's own sentences: what it compared and what it chose (the start of `reason`). */
+  readonly ruleReason: string;
+  /** What `reason` says after the other rules: skipped candidates and a choice at an end of the candidates ('' when neither). */
+  readonly caveats: string;
+  /** The tolerance in percent the simplest-within rule is listed with among `alternatives` (its own when it is the rule in use). */
+  readonly otherRulesTolerance: number;
   /** For the one-SE and tolerance rules: the error threshold the chosen df is under. */
   readonly threshold?: number;
   /** What each of the other rules would have chosen. */

@@ -15,6 +15,8 @@ import { maxPerCell, normalQuantiles } from './series';
 import { checkViews, modelReportLines } from './words';
 import { renderOptions } from '../words/options';
 
+/** Largest number of influential rows the panel can list by line (most influential first); the fit record lists them all. */
+export const MAX_INFLUENTIAL_LISTED = 200;
 /** Largest number of down-weighted rows (robust fits) listed by line. */
 export const MAX_DOWNWEIGHTED_LISTED = 30;
 /** Number of x cells of the thinned influence figures. */
@@ -84,7 +86,7 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
   const cooksThreshold = Number.isFinite(limit('cooks')) ? limit('cooks') : COOKS_FALLBACK;
   const leverageThreshold = limit('leverage');
   const outlierThreshold = limit('outlier');
-  const influential: InfluentialRow[] = report.rows.slice(0, report.shown).map((r) => {
+  const influential: InfluentialRow[] = report.rows.slice(0, MAX_INFLUENTIAL_LISTED).map((r) => {
     const exceeds: string[] = [];
     if (r.exceeds.includes('outlier')) exceeds.push(`|studentized residual| ${num(Math.abs(r.studentized), 3)} > ${num(outlierThreshold, 3)} (Bonferroni outlier test)`);
     if (r.exceeds.includes('cooks')) exceeds.push(`Cook's distance ${num(r.cooksDistance, 3)} > ${num(cooksThreshold, 3)}`);
@@ -136,6 +138,7 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
     leverageThreshold: roundSig(leverageThreshold, 5),
     ...(Number.isFinite(outlierThreshold) ? { outlierThreshold: roundSig(outlierThreshold, 5) } : {}),
     influential,
+    influentialShown: report.shown,
     influentialTotal: report.total,
     checks,
     warnings: warnings.map((t) => renderOptions(t, 'editor')),

@@ -13,6 +13,7 @@ import { normalQqSvg, type NormalQqSpec } from '../plots/normalQq';
 import { residualSvg, type ResidualSpec } from '../plots/residuals';
 import { ruleWords } from '../registry/rules/index';
 import { metricLabel } from '../tune/format';
+import { errorFormat } from '../tune/rules';
 import type { CandidateResult, Metric, RuleSpec } from '../tune/types';
 import { decisionWindow, type ErrorWindow } from './errorFocus';
 import type { Cloud, CurveView, FitDetail } from './model';
@@ -25,6 +26,8 @@ export interface FigureTuning {
   /** The rule that chose the df, and its error threshold when it has one. */
   readonly rule: RuleSpec;
   readonly threshold?: number | undefined;
+  /** The tolerance the explanation lists the simplest-within rule with (Selection.otherRulesTolerance): it sets the printed digits of the means (errorFormat). */
+  readonly tolerancePercent?: number | undefined;
 }
 
 /** What the figures of one df are drawn from (labels may come from the CSV; the SVG builders escape them). */
@@ -170,6 +173,7 @@ const error = define<ErrorByDfSpec>({
       ruleName: `the ${ruleWords(t.rule)}`,
       reading: ERROR_READING,
       window: errorWindowOf(v),
+      format: errorFormat(t.candidates, t.metric, t.tolerancePercent),
     };
   },
   draw: errorByDfSvg,

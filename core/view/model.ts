@@ -120,8 +120,10 @@ export interface FitDetail {
   readonly leverageThreshold: number;
   /** |Studentized residual| above this marks an outlier (Bonferroni test at 5 %); absent without residual df. */
   readonly outlierThreshold?: number;
-  /** The influential rows to show by line: the ten furthest past a threshold (core/stats/influence.ts). */
+  /** The influential rows by line, furthest past a threshold first: at most MAX_INFLUENTIAL_LISTED (core/view/detail.ts) of them (core/stats/influence.ts). */
   readonly influential: readonly InfluentialRow[];
+  /** How many of `influential` the panel shows at first (the first ten at most, as the report lists); the rest on request. */
+  readonly influentialShown: number;
   /** How many rows exceed a threshold in total (all are listed in the fit record). */
   readonly influentialTotal: number;
   /** Residual checks (present for the df they were computed for). */
@@ -220,6 +222,8 @@ export interface PanelPayload {
   readonly details: readonly FitDetail[];
   /** Present when this run replaced an earlier one of the same file and columns: what moved. */
   readonly refit?: RefitView;
+  /** Present when the panel set the candidate df (as the command line's --df takes them, e.g. '2..20'); they override the settings for this file. */
+  readonly candidatesFromPanel?: string;
 }
 
 /**

@@ -46,6 +46,8 @@ export interface PayloadInput {
   readonly trialsLabel?: string | undefined;
   /** True when the model options came from the panel's controls rather than the settings. */
   readonly modelFromPanel?: boolean | undefined;
+  /** The candidate df text when the panel set them (they override the settings for this file). */
+  readonly candidatesFromPanel?: string | undefined;
   /** Residual details by df (e.g. a host's cache); default detailFor. */
   readonly detail?: ((df: number) => FitDetail | undefined) | undefined;
   /** Extra run-level warnings (e.g. from the grid settings). */
@@ -176,5 +178,6 @@ export function buildPanelPayload(input: PayloadInput): PanelPayload {
     grid: roundAll(grid),
     curves,
     details: detail ? [detail] : [],
+    ...(input.candidatesFromPanel !== undefined ? { candidatesFromPanel: input.candidatesFromPanel } : {}),
   };
 }

@@ -55,6 +55,8 @@ const PANEL_MESSAGES: readonly PanelMessage[] = [
   { type: 'model', runId: 3, model: { outcome: 'continuous', shape: [], robust: true } },
   { type: 'refitAndSave', requestId: 4, runId: 3, rule: { kind: 'pick', df: 5 } },
   { type: 'stop' },
+  { type: 'candidates', runId: 3, candidates: '2..20' },
+  { type: 'candidates', runId: 3, candidates: '3, 5, 8' },
 ];
 
 /** The fields of each panel message that must be whole numbers >= 0 (ids) or finite numbers > 0 (df). */
@@ -120,6 +122,13 @@ describe('isPanelMessage', () => {
     assert.equal(isPanelMessage(JSON.parse('{"type":"save","requestId":1,"runId":1,"rule":{"kind":"one-se","__proto__":{"x":1}}}')), false, 'nested in the rule');
     assert.equal(isPanelMessage(JSON.parse('{"type":"model","runId":1,"model":{"outcome":"counts","shape":[],"robust":false,"__proto__":{"x":1}}}')), false, 'nested in the model');
     assert.equal(({} as Record<string, unknown>).polluted, undefined, 'checking polluted nothing');
+  });
+
+  it("refuses candidates the command line's --df would refuse", () => {
+    for (const bad of ['', ' ', '20..2', '2..500', '0', '-3', 'a..b', '2..20; rm', '1e999', 'NaN', 7, null, ['2..20'], { from: 2, to: 20 }, `2,${'3,'.repeat(2000)}4`]) {
+      assert.equal(isPanelMessage({ type: 'candidates', runId: 3, candidates: bad }), false, JSON.stringify(bad).slice(0, 40));
+    }
+    assert.equal(isPanelMessage({ type: 'candidates', runId: 3, candidates: '2..20', rule: { kind: 'one-se' } }), false, 'an extra key');
   });
 
   it('refuses inherited fields, class instances and symbol keys', () => {
@@ -354,6 +363,8 @@ describe('isPanelState', () => {
       { file: 'file:///data/cars.csv', open: ['residual-checks', 'notes'], errorRange: 'all' },
       { file: 'file:///data/cars.csv', open: [...FOLD_IDS], errorRange: 'decision' },
       { file: 'file:///data/cars.csv', open: [] },
+      { file: 'file:///data/cars.csv', runId: 4, candidates: '2..20', allInfluential: true },
+      { file: 'file:///data/cars.csv', allInfluential: false },
     ]) {
       assert.equal(isPanelState(st), true, JSON.stringify(st));
       assert.equal(isPanelState(JSON.parse(JSON.stringify(st))), true, `JSON ${JSON.stringify(st)}`);
@@ -381,6 +392,9 @@ describe('isPanelState', () => {
       { file: 'file:///a.csv', open: [...FOLD_IDS, 'notes'] },
       { file: 'file:///a.csv', errorRange: 'some' },
       { file: 'file:///a.csv', errorRange: true },
+      { file: 'file:///a.csv', candidates: '12..2' },
+      { file: 'file:///a.csv', candidates: 12 },
+      { file: 'file:///a.csv', allInfluential: 'yes' },
       JSON.parse('{"file":"file:///a.csv","__proto__":{"polluted":true}}'),
       Object.create({ file: 'file:///a.csv' }) as object,
     ]) {

@@ -804,7 +804,7 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await page.close();
   });
 
-  it('a choice at an end of the candidates says so under the reason, naming the setting that widens them', async function () {
+  it('a choice at an end of the candidates says so under the reason, naming the setting that widens them, with a button that asks for the wider candidates', async function () {
     // MASS::mcycle with candidates df 3 to 6 only: the least error is at the largest candidate.
     const fx = await analysedFixture('mcycle.csv', 'times', 'accel', {
       kind: 'natural-spline',
@@ -819,11 +819,90 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     const more = pp.page.locator('#kw-reason-more');
     assert.equal(await more.isVisible(), true);
     assert.equal(await more.getAttribute('class'), 'kw-warning');
-    const text = (await more.textContent()) ?? '';
-    assert.ok(sel.reason.endsWith(text), `"${text}" closes "${sel.reason}"`);
+    const text = (await pp.page.textContent('#kw-reason-more-text')) ?? '';
+    assert.ok(text.length > 0 && sel.reason.endsWith(text), `"${text}" closes "${sel.reason}"`);
     assert.match(text, /knotwise\.\w+/);
     assert.doesNotMatch(text, /(^|\s)--[a-z]/);
+    // The button beside the warning names the wider candidates core proposes and asks the host for them.
+    const widen = pp.page.locator('#kw-widen');
+    assert.equal(await widen.isVisible(), true);
+    assert.equal(await widen.textContent(), `Widen the candidates to ${sel.edge.widen}`);
+    const mark = pp.sent.length;
+    await widen.click();
+    assert.deepEqual(await pp.waitForSent('candidates', mark), { type: 'candidates', runId: 1, candidates: sel.edge.widen });
+    assert.equal(await pp.page.getAttribute('#knotwise-root', 'data-state'), 'running', 'the panel shows the rerun');
     await pp.page.close();
+  });
+
+  it('without a choice at an end of the candidates there is no widen button, and candidates set in the panel are named and kept', async function () {
+    const sel = expected(mcycle.payload, mcycle.payload.rule);
+    assert.equal(sel.edge, undefined, 'mcycle with df 3 to 15 is no edge case');
+    const pp = await openPanel(browser, server, mcycle);
+    await pp.send({ type: 'file', uri: 'file:///data/mcycle.csv', fileName: 'mcycle.csv' } satisfies HostMessage);
+    await pp.send({ type: 'result', payload: mcycle.payload });
+    await pp.page.waitForSelector('#knotwise-root[data-state="ready"]');
+    assert.equal(await pp.page.locator('#kw-widen').isVisible(), false);
+    assert.equal(await pp.page.locator('#kw-candidates-words').count(), 0, 'candidates from the settings are not called set in the panel');
+    await pp.send({ type: 'result', payload: { ...mcycle.payload, runId: 2, candidatesFromPanel: '3..30' } });
+    await pp.page.waitForSelector('#knotwise-root[data-run-id="2"]');
+    assert.equal(await pp.page.textContent('#kw-candidates-words'), 'Candidates: df 3..30 (set in this panel; the settings say otherwise)');
+    assert.equal(((await pp.page.evaluate('window.__knotwiseState()')) as { candidates?: string }).candidates, '3..30');
+    assert.equal(pp.sent.filter((m) => m.type === 'candidates').length, 0, 'nothing asked for wider candidates by itself');
+    await pp.page.close();
+  });
+
+  it('influential rows: the first ten, every listed row on request (remembered), and how many more the fit record lists', async function () {
+    // Rendering check: mcycle's details with every row of its fit listed as influential, most Cook's distance first.
+    const detail = mcycle.payload.details[0];
+    assert.ok(detail);
+    const fit = mcycle.analysis.chosen;
+    const lines = mcycle.data.lines as Int32Array;
+    const order = Array.from(fit.cooksDistance.keys()).sort((a, b) => (fit.cooksDistance[b] as number) - (fit.cooksDistance[a] as number));
+    const influential = order.map((i) => ({
+      line: lines[i] as number,
+      x: mcycle.data.x[i] as number,
+      y: mcycle.data.y[i] as number,
+      leverage: fit.leverage[i] as number,
+      cooksDistance: fit.cooksDistance[i] as number,
+      exceeds: ['listed for this rendering check'],
+    }));
+    const listed = influential.length;
+    const rowsShown = (page: PanelPage['page']): Promise<number> => page.locator('#kw-influence-body tbody tr').count();
+    const all: PanelPayload = { ...mcycle.payload, details: [{ ...detail, influential, influentialShown: 10, influentialTotal: listed }] };
+    const pp = await openPanel(browser, server, mcycle);
+    const file: HostMessage = { type: 'file', uri: 'file:///data/mcycle.csv', fileName: 'mcycle.csv' };
+    await pp.send(file);
+    await pp.send({ type: 'result', payload: all });
+    await openFold(pp.page, 'influential-rows');
+    assert.equal(await rowsShown(pp.page), 10);
+    assert.equal(await pp.page.textContent('#kw-influence-all'), `Show all ${listed}`);
+    assert.equal(await pp.page.getAttribute('#kw-influence-all', 'aria-expanded'), 'false');
+    await pp.page.click('#kw-influence-all');
+    await pp.page.waitForSelector('#kw-influence-all[aria-expanded="true"]');
+    assert.equal(await rowsShown(pp.page), listed);
+    assert.equal(await pp.page.textContent('#kw-influence-all'), 'Show the first 10');
+    assert.equal(await pp.page.locator('#kw-influence-unlisted').count(), 0, 'every row is listed');
+    const firstLine = await pp.page.getAttribute('#kw-influence-body tbody tr:first-child [data-line]', 'data-line');
+    assert.equal(Number(firstLine), influential[0]?.line);
+    const saved = await pp.page.evaluate('window.__knotwiseState()');
+    assert.equal((saved as { allInfluential?: boolean }).allInfluential, true);
+    await pp.page.close();
+    // More rows over a threshold than the panel lists: a reloaded webview keeps every listed row shown and counts the rest.
+    const more = 450;
+    const many: PanelPayload = { ...mcycle.payload, runId: 2, details: [{ ...detail, influential, influentialShown: 10, influentialTotal: more }] };
+    const again = await openPanel(browser, server, mcycle, { state: saved });
+    await again.send(file);
+    await again.send({ type: 'result', payload: many });
+    await again.page.waitForSelector('#knotwise-root[data-run-id="2"]');
+    assert.equal(await rowsShown(again.page), listed);
+    assert.equal(await again.page.textContent('#kw-influence-unlisted'), `${more - listed} more rows over a threshold are not listed here; the fit record lists them all.`);
+    await again.page.click('#kw-influence-all');
+    await again.page.waitForSelector('#kw-influence-all[aria-expanded="false"]');
+    assert.equal(await rowsShown(again.page), 10);
+    assert.equal(await again.page.textContent('#kw-influence-all'), `Show the first ${listed}`);
+    assert.match((await again.page.textContent('#kw-influence-body caption')) ?? '', new RegExp(`^${more} rows over a threshold; the 10 furthest past one are listed here`));
+    assert.equal(((await again.page.evaluate('window.__knotwiseState()')) as { allInfluential?: boolean }).allInfluential, undefined);
+    await again.page.close();
   });
 
   it('before the first result the panel shows the run with its progress and a Stop button; a failure offers Run again', async function () {

@@ -30,7 +30,19 @@ export function answerSection(p: PanelPayload, actions: PanelActions): Section {
   const badge = el('span', { class: 'kw-df-badge', id: 'kw-chosen-df' });
   const stats = el('span', { id: 'kw-fit-stats', class: 'kw-muted' });
   const reason = el('p', { id: 'kw-reason', 'aria-live': 'polite' });
-  const more = el('p', { id: 'kw-reason-more', hidden: true });
+  const moreText = el('span', { id: 'kw-reason-more-text' });
+  // A choice at an end of the candidates: one click reruns with the wider candidates the warning names.
+  let widenTo = '';
+  const widen = button(
+    'kw-widen',
+    'kw-secondary',
+    '',
+    () => {
+      if (widenTo !== '') actions.widenCandidates(widenTo);
+    },
+    true,
+  );
+  const more = el('p', { id: 'kw-reason-more', hidden: true }, moreText, ' ', widen);
   const others = el('ul', { id: 'kw-alternatives', class: 'kw-inline-list' });
   const warningText = el('span', { id: 'kw-warning-count' });
   const warningLink = button('kw-warning-link', 'kw-link', 'see the residual checks', () => actions.openFold('residual-checks'));
@@ -72,10 +84,13 @@ export function answerSection(p: PanelPayload, actions: PanelActions): Section {
       stats.textContent = detail
         ? `residual SD ${sig(detail.sigma, 4)}, ${detail.model?.glm ? `deviance explained ${percent(detail.r2)}` : `R² ${sig(detail.r2, 4)}`}, AIC ${sig(detail.aic, 5)}${detail.lambda !== undefined ? `, lambda ${sig(detail.lambda, 3)}` : ''}`
         : '';
-      const e = explain(c.payload, sel, c.tolerance);
+      const e = explain(sel);
       reason.textContent = e.reason;
-      more.textContent = e.more;
+      moreText.textContent = e.more;
       more.hidden = e.more === '';
+      widenTo = sel.edge?.widen ?? '';
+      widen.hidden = widenTo === '';
+      widen.textContent = widenTo === '' ? '' : `Widen the candidates to ${widenTo}`;
       // A choice at an end of the candidates is a warning: the best df may lie beyond them.
       more.className = sel.edge ? 'kw-warning' : 'kw-muted';
       replaceChildren(others, ...e.others.map((a) => el('li', {}, `${ruleWords(a.rule)} → df ${a.df}${a.df === sel.df ? ' (the same)' : ''}`)));

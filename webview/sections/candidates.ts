@@ -3,7 +3,7 @@
  * standard error), information criteria and status, the chosen one marked.
  */
 import { metricLabel, sig } from '../../core/tune/format';
-import { DEFAULT_TOLERANCE_PERCENT, errorFormat } from '../../core/tune/rules';
+import { errorFormat } from '../../core/tune/rules';
 import { el, replaceChildren } from '../dom';
 import { fold } from '../fold';
 import type { PanelActions, Section } from './section';
@@ -18,8 +18,8 @@ export function candidatesSection(open: boolean, actions: PanelActions): Section
     show(c) {
       const p = c.payload;
       const name = metricLabel(p.metric);
-      // Means printed as the explanation prints them.
-      const mean = errorFormat(p.candidates, p.metric, c.rule.kind === 'simplest-within' ? c.rule.percent : DEFAULT_TOLERANCE_PERCENT);
+      // Means printed as the explanation prints them (at the tolerance it lists the simplest-within rule with).
+      const mean = errorFormat(p.candidates, p.metric, c.selection.otherRulesTolerance);
       const table = el(
         'table',
         { class: 'kw-table' },

@@ -15,6 +15,7 @@ export function headerSection(p: PanelPayload): HTMLElement {
     el('h1', {}, `${s.yLabel} against ${s.xLabel}`),
     el('p', { class: 'kw-meta' }, `${s.fileName} · ${rows}${s.weightsLabel ? ` · weights: ${s.weightsLabel}` : ''} · ${p.curveWords} · ${p.resamplingWords}`),
     el('p', { class: 'kw-meta', id: 'kw-model-words' }, `Model: ${p.model.words}${p.model.fromPanel ? ' (set in this panel; the settings say otherwise)' : ''}`),
+    p.candidatesFromPanel !== undefined ? el('p', { class: 'kw-meta', id: 'kw-candidates-words' }, `Candidates: df ${p.candidatesFromPanel} (set in this panel; the settings say otherwise)`) : null,
     el('p', { class: 'kw-meta', id: 'kw-follow-note', hidden: true }),
   );
 }

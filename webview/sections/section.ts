@@ -20,6 +20,8 @@ export interface Choice {
   readonly rule: RuleSpec;
   /** The tolerance in effect: the simplest-within rule's, or the one it would use. */
   readonly tolerance: number;
+  /** True when the person asked to see every listed influential row, not only the first ten. */
+  readonly allInfluential: boolean;
 }
 
 /** What a section may ask of the panel. */
@@ -34,6 +36,10 @@ export interface PanelActions {
   foldToggled(id: FoldId, open: boolean): void;
   /** Run the analysis again with these model options. */
   changeModel(model: ModelChoice): void;
+  /** Run the analysis again with these candidate df (the command line's --df text, e.g. '2..20'). */
+  widenCandidates(candidates: string): void;
+  /** Show every listed influential row, or only the first ten. */
+  setAllInfluential(all: boolean): void;
   save(): void;
   rerun(): void;
   stop(): void;

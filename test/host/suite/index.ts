@@ -38,6 +38,7 @@ export async function run(): Promise<void> {
   require('./follow.test');
   require('./records.test');
   require('./saveRecovery.test');
+  require('./candidates.test');
   await new Promise<void>((resolve, reject) => {
     const runner = mocha.run((failures) => {
       const stats = runner.stats ?? { passes: 0, failures };

@@ -16,8 +16,8 @@ import fc from 'fast-check';
 import { InputError } from '../../../core/errors';
 import { errorPlace, selectDf } from '../../../core/tune/rules';
 import { atPlace, sig } from '../../../core/words/numbers';
-import type { CandidateResult, ErrorSummary, RuleSpec } from '../../../core/tune/types';
-import { parseRule } from '../../../core/registry/rules/index';
+import type { CandidateResult, ErrorSummary, RuleSpec, Selection } from '../../../core/tune/types';
+import { parseRule, ruleWords } from '../../../core/registry/rules/index';
 
 const RUNS = 300;
 const SEED = 20250301;
@@ -409,5 +409,52 @@ describe('selectDf: a choice at the edge of the candidates', () => {
     assert.equal(selectDf(table([0.9, 0.5, 0.3, 0.32, 0.35]), { kind: 'least-error' }, 'rmse').edge, undefined);
     const cands: CandidateResult[] = [...table([0.9, 0.5, 0.3]), { df: 5, skipped: 'needs at least 5 distinct x values; the data has 4', errors: {} }];
     assert.equal(selectDf(cands, { kind: 'least-error' }, 'rmse').edge, undefined);
+  });
+});
+
+describe('selectDf: the explanation in parts', () => {
+  // Invented candidate means for a behaviour test (how the explanation is assembled).
+  const cands: CandidateResult[] = [
+    { df: 3, errors: { rmse: summary(1.3, 0.02) } },
+    { df: 4, errors: { rmse: summary(1.05, 0.02) } },
+    { df: 5, errors: { rmse: summary(1.02, 0.02) } },
+    { df: 6, errors: { rmse: summary(1.0, 0.02) } },
+    { df: 7, skipped: 'rank deficient', errors: {} },
+  ];
+
+  it('reason is ruleReason, the other rules, then the caveats, so no front end needs to parse it', () => {
+    for (const rule of [{ kind: 'one-se' }, { kind: 'least-error' }, { kind: 'simplest-within', percent: 3 }, { kind: 'pick', df: 4 }] as const) {
+      const s = selectDf(cands, rule, 'rmse', 'editor');
+      const others = s.alternatives.map((a) => `${ruleWords(a.rule)} → df ${a.df}`).join('; ');
+      assert.equal(s.reason, `${s.ruleReason} Other rules: ${others}.${s.caveats ? ` ${s.caveats}` : ''}`, JSON.stringify(rule));
+      assert.ok(s.ruleReason.length > 0 && !s.ruleReason.includes('Other rules'));
+      assert.match(s.caveats, /^1 candidate was skipped/);
+    }
+  });
+
+  it('lists the simplest-within rule at listTolerance (default 2 %) unless it is the rule in use, and says which tolerance it used', () => {
+    const listed = (s: Selection): number | undefined => s.alternatives.map((a) => a.rule).find((r) => r.kind === 'simplest-within')?.percent;
+    const byDefault = selectDf(cands, { kind: 'one-se' }, 'rmse');
+    assert.equal(byDefault.otherRulesTolerance, 2);
+    assert.equal(listed(byDefault), 2);
+    const wide = selectDf(cands, { kind: 'one-se' }, 'rmse', 'cli', 10);
+    assert.equal(wide.otherRulesTolerance, 10);
+    assert.equal(listed(wide), 10);
+    // Within 10 % of 1.0 the simplest is df 4 (1.05); within 2 % it is df 5 (1.02).
+    assert.equal(wide.alternatives.find((a) => a.rule.kind === 'simplest-within')?.df, 4);
+    assert.equal(byDefault.alternatives.find((a) => a.rule.kind === 'simplest-within')?.df, 5);
+    const own = selectDf(cands, { kind: 'simplest-within', percent: 3 }, 'rmse', 'cli', 10);
+    assert.equal(own.otherRulesTolerance, 3, 'the rule in use keeps its own tolerance');
+    assert.equal(listed(own), undefined);
+  });
+
+  it('the caveats carry the edge warning, in the words of the audience', () => {
+    const edge = selectDf(cands, { kind: 'least-error' }, 'rmse', 'editor');
+    assert.equal(edge.edge, undefined, 'a skipped larger candidate is no edge');
+    const upper = cands.slice(0, 4);
+    const s = selectDf(upper, { kind: 'least-error' }, 'rmse', 'editor');
+    assert.ok(s.edge);
+    assert.match(s.caveats, new RegExp(`knotwise\\.candidates ${s.edge.widen.replace('.', '\\.')}`));
+    assert.ok(s.reason.endsWith(s.caveats));
   });
 });

@@ -13,7 +13,8 @@ import { join } from 'node:path';
 import { fitCurve } from '../../../core/fit/index';
 import type { Cloud } from '../../../core/view/model';
 import type { FitSpec, XYData } from '../../../core/types';
-import { fitDetail, MAX_DOWNWEIGHTED_LISTED, modelReportView } from '../../../core/view/detail';
+import { fitDetail, MAX_DOWNWEIGHTED_LISTED, MAX_INFLUENTIAL_LISTED, modelReportView } from '../../../core/view/detail';
+import { influentialRows } from '../../../core/stats/influence';
 import { diagnose } from '../../../core/analysis/diagnose';
 
 const FIXTURES = join(__dirname, '..', '..', 'reference', 'fixtures');
@@ -166,13 +167,37 @@ describe('fitDetail', () => {
     );
   });
 
-  it('fitDetail shows at most ten influential rows and counts the rest', () => {
-    // MASS::mcycle with df 2 (a straight line through a wave): many rows stand out.
+  it('fitDetail lists every influential row (up to the limit), marks at most ten to show first, and counts them all', () => {
+    // MASS::mcycle with df 2 (a straight line through a wave).
     const d = data(physics.datasets.mcycle as Dataset);
     const fit = fitCurve(d, { kind: 'natural-spline', df: 2 });
     const diagnostics = diagnose(d, fit);
     const detail = fitDetail(fit, d, { diagnostics });
     assert.equal(detail.influentialTotal, diagnostics.influential.total);
-    assert.equal(detail.influential.length, Math.min(10, diagnostics.influential.total));
+    assert.equal(detail.influentialShown, Math.min(10, diagnostics.influential.total));
+    assert.deepEqual(
+      detail.influential.map((r) => r.line),
+      diagnostics.influential.rows.map((r) => r.line),
+    );
+  });
+
+  it('fitDetail lists at most MAX_INFLUENTIAL_LISTED influential rows, the furthest past a threshold first, and counts every one', () => {
+    // Invented rows for a behaviour test (how many are listed, not a statistical value): 1,000
+    // readings on a gentle curve, with an influence report in which 300 rows are outliers.
+    const n = 1000;
+    const x = Float64Array.from({ length: n }, (_, i) => i / 10);
+    const y = Float64Array.from(x, (v, i) => Math.sin(v / 20) + 0.01 * ((i * 7919) % 13));
+    const lines = Int32Array.from({ length: n }, (_, i) => i + 2);
+    const d: XYData = { x, y, lines };
+    const fit = fitCurve(d, { kind: 'natural-spline', df: 4 });
+    const studentized = Float64Array.from({ length: n }, (_, i) => (i % 3 === 0 && i < 900 ? 20 + i / 100 : 0));
+    const influential = influentialRows({ leverage: fit.leverage, cooksDistance: new Float64Array(n), studentized, df: fit.df, reference: 'student', lines: d.lines });
+    assert.equal(influential.total, 300);
+    const detail = fitDetail(fit, d, { diagnostics: { ...diagnose(d, fit), influential } });
+    assert.equal(detail.influentialTotal, 300);
+    assert.equal(detail.influential.length, MAX_INFLUENTIAL_LISTED);
+    assert.equal(detail.influentialShown, 10);
+    // The largest studentized residual (row 897, line 899) comes first.
+    assert.equal(detail.influential[0]?.line, 899);
   });
 });

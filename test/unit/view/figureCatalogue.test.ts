@@ -9,7 +9,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../../core/analysis/analysis';
 import type { Analysis } from '../../../core/analysis/types';
-import { selectDf } from '../../../core/tune/rules';
+import { errorFormat, selectDf } from '../../../core/tune/rules';
 import type { RuleSpec } from '../../../core/tune/types';
 import type { XYData } from '../../../core/types';
 import { decisionWindow } from '../../../core/view/errorFocus';
@@ -113,6 +113,36 @@ describe('FIGURE_CATALOGUE', () => {
     const least = viewOf(cars, { kind: 'least-error' });
     assert.equal(least.tuning?.threshold, undefined);
     assert.doesNotMatch(error.title(least), /dashed/);
+  });
+
+  it("the error figure prints mean errors and the threshold as the explanation and the candidates table do (errorFormat at the explanation's tolerance)", () => {
+    const error = FIGURE_CATALOGUE.find((f) => f.key === 'error');
+    assert.ok(error);
+    for (const [rule, tolerance] of [
+      [{ kind: 'one-se' }, 2],
+      [{ kind: 'simplest-within', percent: 7 }, 7],
+      [{ kind: 'least-error' }, 0.5],
+    ] as const) {
+      const base = viewOf(cars, rule);
+      const t = base.tuning;
+      assert.ok(t);
+      const sel = selectDf(t.candidates, rule, t.metric, 'editor', tolerance);
+      assert.equal(sel.otherRulesTolerance, tolerance);
+      const v: FigureView = { ...base, tuning: { ...t, tolerancePercent: sel.otherRulesTolerance }, errorRange: 'all' };
+      const svg: string = error.svg(v) ?? '';
+      const fmt = errorFormat(t.candidates, t.metric, tolerance);
+      const hovers: [number, string][] = [...svg.matchAll(/data-df="([^"]+)"><title>df [^:]+: mean RMSE ([^,<]+)/g)].map((m) => [Number(m[1]), m[2] ?? '']);
+      assert.ok(hovers.length > 0, 'every point has its hover text');
+      for (const [df, printed] of hovers) {
+        const mean = t.candidates.find((c) => c.df === df)?.errors.rmse?.mean as number;
+        assert.equal(printed, fmt(mean), `df ${df}`);
+      }
+      // The best mean as the explanation prints it, in the explanation and in the figure.
+      const best = Math.min(...t.candidates.map((c) => c.errors.rmse?.mean ?? Infinity));
+      assert.ok(sel.ruleReason.includes(`Least mean RMSE ${fmt(best)} at df`), sel.ruleReason);
+      assert.match(svg, new RegExp(`lowest ${fmt(best).replace('.', '\\.')} at df`));
+      if (sel.threshold !== undefined) assert.ok(svg.includes(`threshold ${fmt(sel.threshold)}`) && sel.ruleReason.includes(fmt(sel.threshold)), sel.ruleReason);
+    }
   });
 
   it('the error figure around the decision: the window of core/view/errorFocus.ts when asked for and useful, said in the title', () => {
