@@ -357,7 +357,7 @@ for (b in 1:50) { i <- sample.int(n, n, replace = TRUE); oob <- which(tabulate(i
   log('| program | time |');
   log('| --- | --- |');
   log(`| Knotwise (whole command: read, tune, choose, check residuals, write table and record) | ${ours.seconds.toFixed(2)} s |`);
-  log(`| R ${version.stderr.trim().replace(/^Rscript \(R\) version /, '')} (read.csv, the loop above; no residual checks, no outputs) | ${theirs.toFixed(2)} s |`);
+  log(`| R ${(version.stdout || version.stderr).trim().replace(/^Rscript \(R\) version /, '')} (read.csv, the loop above; no residual checks, no outputs) | ${theirs.toFixed(2)} s |`);
   log(`| ratio | ${(theirs / ours.seconds).toFixed(1)} |`);
   log('');
 }
