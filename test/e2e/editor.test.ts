@@ -13,7 +13,7 @@ import assert from 'node:assert/strict';
 import { createHash } from 'node:crypto';
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import type { Frame, Page } from 'playwright-core';
+import type { Frame, Locator, Page } from 'playwright-core';
 import type { CodeServer, LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 
 const fixtures = join(__dirname, 'fixtures');
@@ -62,14 +62,19 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     if (!failed && runDir) rmSync(runDir, { recursive: true, force: true });
   });
 
-  /** Picks a colour theme through the command palette, as a person would, and waits until the workbench wears it. */
-  async function chooseTheme(theme: string, workbenchClass: string): Promise<void> {
+  /** Opens the command palette from the workbench (not the panel, which may have the keyboard) and types `text`; returns its input. */
+  async function openPalette(text: string): Promise<Locator> {
     const input = page.locator('.quick-input-widget input.input');
-    // Give the workbench the keyboard (the panel may have it).
     await page.locator('.part.sidebar .title-label').first().click();
     await page.keyboard.press('F1');
     await input.waitFor();
-    await input.fill('>Preferences: Color Theme');
+    await input.fill(text);
+    return input;
+  }
+
+  /** Picks a colour theme through the command palette, as a person would, and waits until the workbench wears it. */
+  async function chooseTheme(theme: string, workbenchClass: string): Promise<void> {
+    const input = await openPalette('>Preferences: Color Theme');
     await page
       .getByRole('option', { name: /^Preferences: Color Theme\b(?! \()/ })
       .first()
@@ -108,12 +113,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
 
   /** The Knotwise commands the command palette lists now (their titles), as a person would see them. */
   async function paletteCommands(): Promise<string[]> {
-    const input = page.locator('.quick-input-widget input.input');
-    // Give the workbench the keyboard (the panel may have it).
-    await page.locator('.part.sidebar .title-label').first().click();
-    await page.keyboard.press('F1');
-    await input.waitFor();
-    await input.fill('>Knotwise: ');
+    const input = await openPalette('>Knotwise: ');
     // Every palette lists the walkthrough's command once the filter has applied.
     await page
       .getByRole('option', { name: /Knotwise: Open the Demo Data/ })
