@@ -5,7 +5,7 @@
  * parsing, defaults and `--help`; accepted values and limits come from the registries.
  * Errors go to stderr with exit code 2 and say what and where.
  */
-import { existsSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import type { AnalysisOptions } from '../analysis/types';
 import { EMIT_KINDS, emitName, parseEmit } from '../emit/index';
@@ -31,14 +31,27 @@ import { VERSION } from '../version';
 import { DEFAULT_DIGITS } from '../table/formatCsv';
 import { curveKinds, DEFAULT_CURVE, parseCurve, resolveModel } from '../registry/curves/index';
 import { DEFAULT_OUTCOME, OUTCOME_LIST, outcomeKind, parseOutcome } from '../registry/outcomes/index';
-import { DEFAULT_RESAMPLING, formatResampling, parseResampling, RESAMPLING_LIST } from '../registry/resampling/index';
+import { DEFAULT_RESAMPLING, formatResampling, parseResampling, RESAMPLING_LIST, resamplingScheme } from '../registry/resampling/index';
 import { DEFAULT_RULE, MAX_TOLERANCE_PERCENT, parseRule, RULE_LIST } from '../registry/rules/index';
 import { type CommandSpec, defineCommand, formatHelp, nearest, parseCommand } from './args';
 import { CHECK_COMMAND, runCheck } from './check';
 import { writeOutputs } from './outputs';
 import { checkOutputFolder, checkOutputNames, terminalText } from './outputTargets';
 import { runPipeline } from './pipeline';
+import { startWorkersEarly } from './pool';
 import { type Clock, ProgressLine, type ProgressStream } from './progress';
+
+/** Data files from this size up start their resampling workers before reading (about 50,000 rows of two columns). */
+const EARLY_WORKERS_BYTES = 1 << 20;
+
+/** The size of a file in bytes, or 0 when it cannot be read (reading it reports why). */
+function fileSize(file: string): number {
+  try {
+    return statSync(file).size;
+  } catch {
+    return 0;
+  }
+}
 
 /** Fewest and most significant digits of the table. */
 const DIGITS = { min: 3, max: 17 } as const;
@@ -475,6 +488,9 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
   const showProgress = args.progress || (env.progressStream.isTTY === true && !args.quiet);
   const progress = showProgress ? new ProgressLine(env.progressStream, env.clock) : undefined;
   if (args.out !== undefined) checkOutputFolder(args.out);
+  // A tuning of a large file resamples on worker threads: start them now, so that loading
+  // them overlaps reading and fitting (small files resample inline and need none).
+  if (plan.tune && resamplingScheme(plan.options.resample).method === 'resamples' && (bytes?.length ?? fileSize(args.file)) >= EARLY_WORKERS_BYTES) startWorkersEarly();
   let run;
   try {
     run = await runPipeline(dataName, plan, args.out ?? (args.stdin ? '.' : dirname(args.file)), undefined, { bytes, progress });

@@ -55,7 +55,9 @@ export function workerRunner(threads = availableParallelism()): ResampleRunner {
         for (let k = 0; k < workers; k++) {
           const indices: number[] = [];
           for (let r = k; r < count; r += workers) indices.push(r);
-          const worker = new Worker(file, { workerData: { problem: shared, indices }, execArgv });
+          const worker = takeStarted() ?? new Worker(file, { execArgv });
+          worker.ref();
+          worker.postMessage({ problem: shared, indices });
           pool.push(worker);
           worker.on('message', (m: { type: string; r?: number; errors?: Float64Array; message?: string }) => {
             if (m.type === 'resample') {
@@ -82,4 +84,31 @@ function toShared<T extends Float64Array | Int32Array>(a: T): T {
   const copy = new (a.constructor as new (b: SharedArrayBuffer) => T)(new SharedArrayBuffer(a.byteLength));
   copy.set(a);
   return copy;
+}
+
+/** Workers started ahead of their job (startWorkersEarly), idle until a run takes them. */
+const started: Worker[] = [];
+
+function takeStarted(): Worker | undefined {
+  return started.pop();
+}
+
+/**
+ * Starts `count` resampling workers now, so that loading their code overlaps the reading and
+ * fitting that come before the resampling; a run takes them instead of starting its own.
+ * Idle workers do not keep the process alive. Example: startWorkersEarly() at the start of
+ * a tuning command.
+ */
+export function startWorkersEarly(count = availableParallelism()): void {
+  const { file, execArgv } = workerScript();
+  while (started.length < count) {
+    const w = new Worker(file, { execArgv });
+    w.unref();
+    // A started worker that fails before it has a job is dropped; a run then starts its own.
+    w.on('error', () => {
+      const at = started.indexOf(w);
+      if (at >= 0) started.splice(at, 1);
+    });
+    started.push(w);
+  }
 }

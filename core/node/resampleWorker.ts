@@ -1,6 +1,7 @@
 /**
  * Worker-thread entry: builds a ResampleEngine from the posted problem and evaluates the
- * resample indices it is given, posting each resample's errors as soon as it is done.
+ * resample indices it is given, posting each resample's errors as soon as it is done. The
+ * job is the worker's start data, or its first message when it was started ahead of it.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../tune/engine';
@@ -10,15 +11,20 @@ interface Job {
   readonly indices: readonly number[];
 }
 
-const job = workerData as Job;
-try {
-  const engine = new ResampleEngine(job.problem);
-  for (const r of job.indices) {
-    const errors = new Float64Array(engine.size * ERRORS_PER_CANDIDATE);
-    engine.run(r, errors);
-    parentPort?.postMessage({ type: 'resample', r, errors }, [errors.buffer]);
+function work(job: Job): void {
+  try {
+    const engine = new ResampleEngine(job.problem);
+    for (const r of job.indices) {
+      const errors = new Float64Array(engine.size * ERRORS_PER_CANDIDATE);
+      engine.run(r, errors);
+      parentPort?.postMessage({ type: 'resample', r, errors }, [errors.buffer]);
+    }
+    parentPort?.postMessage({ type: 'done' });
+  } catch (e) {
+    parentPort?.postMessage({ type: 'error', message: (e as Error).message });
   }
-  parentPort?.postMessage({ type: 'done' });
-} catch (e) {
-  parentPort?.postMessage({ type: 'error', message: (e as Error).message });
 }
+
+// The job comes with the worker's start, or later as its first message (a worker started early).
+if (workerData) work(workerData as Job);
+else parentPort?.once('message', (job: Job) => work(job));

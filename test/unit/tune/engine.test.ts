@@ -27,7 +27,7 @@ import { fitPolynomial } from '../../../core/fit/polynomial';
 import { fitSmoothingSpline, lambdaForDf, smoothingSplineAtLambda } from '../../../core/fit/smoothingSpline';
 import { prepareData } from '../../../core/fit/prepared';
 import { nullSpace } from '../../../core/linalg/nullSpace';
-import { workerRunner } from '../../../core/node/pool';
+import { startWorkersEarly, workerRunner } from '../../../core/node/pool';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../../../core/tune/engine';
 import { bootstrapCounts, foldLabels } from '../../../core/registry/resampling/index';
 import { orderByX } from '../../../core/tune/plan';
@@ -407,6 +407,32 @@ describe('runners', () => {
       Array.from({ length: 10 }, (_, i) => i + 1),
     );
     assert.ok(progress.reports.every(([, t]) => t === 10));
+  });
+
+  it('workers started early take the next run, starting no others, with the same results as inline', async function () {
+    this.timeout(120_000);
+    // 30,000 rows x 10 resamples: above the size the pool runs inline.
+    const p = bigProblem('natural-spline', [3, 5, 8], 10, 12);
+    const created: workerThreads.Worker[] = [];
+    const Original = workerThreads.Worker;
+    workerThreads.Worker = class extends Original {
+      constructor(...args: ConstructorParameters<typeof Original>) {
+        super(...args);
+        created.push(this);
+      }
+    };
+    let threaded: Float64Array[];
+    try {
+      startWorkersEarly(2);
+      assert.equal(created.length, 2, 'two workers started ahead of the run');
+      threaded = await workerRunner(2).run(p, 10);
+    } finally {
+      workerThreads.Worker = Original;
+    }
+    assert.equal(created.length, 2, 'the run took the started workers');
+    assert.equal(threaded.length, 10);
+    const inline = await inlineRunner.run(p, 10);
+    for (let r = 0; r < 10; r++) assert.deepEqual(Array.from(threaded[r] as Float64Array), Array.from(inline[r] as Float64Array), `resample ${r}`);
   });
 
   it('workerRunner rejects with CancelledError when cancelled and terminates its workers', async function () {
