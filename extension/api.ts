@@ -64,8 +64,8 @@ export type SaveSummary = RunSummary & { readonly files?: readonly string[] };
 
 /** What the extension offers other extensions and its tests (the value `activate` returns). */
 export interface KnotwiseApi {
-  /** The panel of a file: its latest payload, how many results were posted to it and how many analyses ran. */
-  panelState(uri: vscode.Uri): { readonly payload: PanelPayload; readonly posted: number; readonly analysed: number } | undefined;
+  /** The panel of a file: its latest payload, how many results were posted to it, how many analyses ran, and whether its script has loaded. */
+  panelState(uri: vscode.Uri): { readonly payload: PanelPayload; readonly posted: number; readonly analysed: number; readonly ready: boolean } | undefined;
   /** Whether the analysis a file's panel shows is of the data as it is now (as the panel is told). */
   dataState(uri: vscode.Uri): DataStateView | undefined;
   /** The latest messages posted to a file's open panel, oldest first (empty without one). */

@@ -108,7 +108,7 @@ export class Controller implements vscode.Disposable {
     return {
       panelState: (uri) => {
         const s = find(uri);
-        return s?.payload ? { payload: s.payload, posted: s.posted, analysed: s.analysed } : undefined;
+        return s?.payload ? { payload: s.payload, posted: s.posted, analysed: s.analysed, ready: s.panelReady } : undefined;
       },
       dataState: (uri) => {
         const s = find(uri);

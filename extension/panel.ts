@@ -90,6 +90,11 @@ export class PanelView implements vscode.Disposable {
     return this.closed ? undefined : this.panel.viewColumn;
   }
 
+  /** Whether the panel's script has loaded and said it is listening. */
+  get isReady(): boolean {
+    return this.ready;
+  }
+
   /** Sends a message now, or when the panel's script is ready. */
   post(message: HostMessage): void {
     if (this.closed) return;

@@ -108,6 +108,11 @@ export class DataSession implements vscode.Disposable {
   }
 
   /** True while the panel is open. */
+  /** Whether the panel's script has loaded (it says `ready`). */
+  get panelReady(): boolean {
+    return this.hasPanel && (this.panel as PanelView).isReady;
+  }
+
   get hasPanel(): boolean {
     return this.panel !== undefined && !this.panel.isClosed;
   }

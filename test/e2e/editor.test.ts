@@ -65,11 +65,18 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   /** Opens the command palette from the workbench (not the panel, which may have the keyboard) and types `text`; returns its input. */
   async function openPalette(text: string): Promise<Locator> {
     const input = page.locator('.quick-input-widget input.input');
-    await page.locator('.part.sidebar .title-label').first().click();
-    await page.keyboard.press('F1');
-    await input.waitFor();
-    await input.fill(text);
-    return input;
+    // A panel that opens or takes focus in that moment closes the palette: open it again then.
+    for (let attempt = 1; ; attempt++) {
+      await page.locator('.part.sidebar .title-label').first().click();
+      await page.keyboard.press('F1');
+      await input.waitFor();
+      try {
+        await input.fill(text, { timeout: 5000 });
+        return input;
+      } catch (e) {
+        if (attempt === 3) throw e;
+      }
+    }
   }
 
   /** Picks a colour theme through the command palette, as a person would, and waits until the workbench wears it. */
@@ -459,6 +466,8 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.keyboard.press('Enter');
     const toast = page.locator('.notification-toast', { hasText: 'Knotwise: tuning the curve for drift.csv' });
     await toast.waitFor({ timeout: 30000 });
+    // The run opens its panel, which takes the focus; the palette is opened after that.
+    await page.locator('.tab', { hasText: 'Curve review · drift.csv' }).first().waitFor();
     assert.ok(
       (await paletteCommands()).some((n) => n.includes('Stop Tuning')),
       'Stop Tuning is listed while a run goes on',

@@ -77,6 +77,9 @@ describe('widening the candidates from the panel', function () {
       return s && s.analysed > analysed && s.payload.runId > after.payload.runId ? s : undefined;
     });
     assert.equal(third.payload.candidatesFromPanel, undefined);
+    // The panel's page has loaded before the test closes it (a page closed while loading
+    // could still ask for its script and style).
+    await waitFor("the panel's script to load", () => api().panelState(uri())?.ready || undefined);
     assert.deepEqual(
       third.payload.candidates.map((c) => c.df),
       [3, 4, 5, 6, 7, 8],
