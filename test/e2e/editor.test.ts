@@ -14,6 +14,7 @@ import { createHash } from 'node:crypto';
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Frame, Locator, Page } from 'playwright-core';
+import { tuneFromExplorer } from './flows';
 import type { CodeServer, LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 
 const fixtures = join(__dirname, 'fixtures');
@@ -156,28 +157,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   }
 
   it('the explorer context menu of a CSV offers Knotwise', async function () {
-    const row = page.getByRole('treeitem', { name: 'mcycle.csv' });
-    await row.waitFor({ timeout: 60000 });
-    const item = page.locator('.monaco-menu .action-label', { hasText: 'Tune a Curve for This Data' });
-    // The menu lists the extension's entry once the extension host has registered it.
-    const deadline = Date.now() + 60000;
-    for (;;) {
-      await row.click({ button: 'right' });
-      const shown = await item.waitFor({ timeout: 3000 }).then(
-        () => true,
-        () => false,
-      );
-      if (shown) break;
-      await page.keyboard.press('Escape');
-      if (Date.now() > deadline) throw new Error('the explorer menu never offered Knotwise');
-    }
-    await item.click();
-    // A click that lands while the menu is still settling only highlights the entry; Enter runs it.
-    const closed = await item.waitFor({ state: 'hidden', timeout: 1000 }).then(
-      () => true,
-      () => false,
-    );
-    if (!closed) await page.keyboard.press('Enter');
+    await tuneFromExplorer(page, 'mcycle.csv');
   });
 
   it('quick picks ask for x, y and weights, numeric columns first with previews', async function () {

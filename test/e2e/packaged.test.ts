@@ -10,6 +10,7 @@ import assert from 'node:assert/strict';
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import type { Frame, Page } from 'playwright-core';
+import { tuneFromExplorer } from './flows';
 import type { CodeServer, LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 
 const fixtures = join(__dirname, 'fixtures');
@@ -100,26 +101,7 @@ describe('Knotwise installed from its .vsix (code-server workbench)', function (
   });
 
   it('the explorer context menu of the CSV offers Knotwise and quick picks ask for the columns', async function () {
-    const row = page.getByRole('treeitem', { name: 'mcycle.csv' });
-    await row.waitFor({ timeout: 60000 });
-    const item = page.locator('.monaco-menu .action-label', { hasText: 'Tune a Curve for This Data' });
-    const deadline = Date.now() + 60000;
-    for (;;) {
-      await row.click({ button: 'right' });
-      const shown = await item.waitFor({ timeout: 3000 }).then(
-        () => true,
-        () => false,
-      );
-      if (shown) break;
-      await page.keyboard.press('Escape');
-      if (Date.now() > deadline) throw new Error('the explorer menu never offered Knotwise');
-    }
-    await item.click();
-    const closed = await item.waitFor({ state: 'hidden', timeout: 1000 }).then(
-      () => true,
-      () => false,
-    );
-    if (!closed) await page.keyboard.press('Enter');
+    await tuneFromExplorer(page, 'mcycle.csv');
     const input = page.locator('.quick-input-widget input.input');
     const title = page.locator('.quick-input-widget .quick-input-title');
     await title.filter({ hasText: 'the x column of mcycle.csv' }).waitFor();

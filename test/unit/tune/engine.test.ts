@@ -35,6 +35,23 @@ import { inlineRunner } from '../../../core/tune/tune';
 import type { Progress, ResampleSpec } from '../../../core/tune/types';
 import type { CurveKindId } from '../../../core/types';
 
+/** Runs f while counting the worker threads started (f sees the list as it grows). */
+async function countingWorkers<T>(f: (created: readonly workerThreads.Worker[]) => Promise<T>): Promise<{ created: workerThreads.Worker[]; result: T }> {
+  const created: workerThreads.Worker[] = [];
+  const Original = workerThreads.Worker;
+  workerThreads.Worker = class extends Original {
+    constructor(...args: ConstructorParameters<typeof Original>) {
+      super(...args);
+      created.push(this);
+    }
+  };
+  try {
+    return { created, result: await f(created) };
+  } finally {
+    workerThreads.Worker = Original;
+  }
+}
+
 const REL = 1e-9;
 const ABS_FLOOR = 1e-12;
 
@@ -377,22 +394,9 @@ describe('runners', () => {
   it('workerRunner gives results identical to inlineRunner on 30,000 rows x 10 resamples, in resample order, with progress', async function () {
     this.timeout(120_000);
     const p = bigProblem('natural-spline', [2, 3, 4, 5, 6, 7, 8, 9, 10, 11], 10, 77);
-    const created: workerThreads.Worker[] = [];
-    const Original = workerThreads.Worker;
-    // Count the threads the pool starts (it must not fall back to inline for this size).
-    workerThreads.Worker = class extends Original {
-      constructor(...args: ConstructorParameters<typeof Original>) {
-        super(...args);
-        created.push(this);
-      }
-    };
-    let threaded: Float64Array[];
     const progress = recorder();
-    try {
-      threaded = await workerRunner(2).run(p, 10, progress);
-    } finally {
-      workerThreads.Worker = Original;
-    }
+    // Count the threads the pool starts (it must not fall back to inline for this size).
+    const { created, result: threaded } = await countingWorkers(() => workerRunner(2).run(p, 10, progress));
     assert.equal(created.length, 2, 'two worker threads');
     const inline = await inlineRunner.run(p, 10);
     // Tolerance 0: each resample depends only on (seed, index), so the doubles must be identical.
@@ -413,22 +417,13 @@ describe('runners', () => {
     this.timeout(120_000);
     // 30,000 rows x 10 resamples: above the size the pool runs inline.
     const p = bigProblem('natural-spline', [3, 5, 8], 10, 12);
-    const created: workerThreads.Worker[] = [];
-    const Original = workerThreads.Worker;
-    workerThreads.Worker = class extends Original {
-      constructor(...args: ConstructorParameters<typeof Original>) {
-        super(...args);
-        created.push(this);
-      }
-    };
-    let threaded: Float64Array[];
-    try {
+    let startedEarly = 0;
+    const { created, result: threaded } = await countingWorkers((made) => {
       startWorkersEarly(2);
-      assert.equal(created.length, 2, 'two workers started ahead of the run');
-      threaded = await workerRunner(2).run(p, 10);
-    } finally {
-      workerThreads.Worker = Original;
-    }
+      startedEarly = made.length;
+      return workerRunner(2).run(p, 10);
+    });
+    assert.equal(startedEarly, 2, 'two workers started ahead of the run');
     assert.equal(created.length, 2, 'the run took the started workers');
     assert.equal(threaded.length, 10);
     const inline = await inlineRunner.run(p, 10);
