@@ -2,7 +2,7 @@ import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline'
 import { centringOffset } from '../stats/weightedMean';
 import { FitError } from '../errors';
 import { nullSpace } from '../linalg/nullSpace';
-import { accumulateRow, buildCells, type Cells, SUMS_PER_CELL } from './powerSums/cells';
+import { accumulateRow, buildCells, type Cells, interleaveCubics, SUMS_PER_CELL } from './powerSums/cells';
 import { SplineFromSums } from './powerSums/splineSums';
 import type { FitResult } from '../types';
 import { RowBasisCurve } from './linearFit';
@@ -123,12 +123,7 @@ function rowByRowError(prepared: PreparedData, df: number): FitError | undefined
 function residualSumsOfSquares(polys: readonly Float64Array[], cells: Cells, y: Float64Array, w: Float64Array | undefined, offset: number): Float64Array {
   const C = polys.length;
   const cellCount = cells.breaks.length - 1;
-  // The cubics side by side per cell: all[(cell * C + k) * 4 + p].
-  const all = new Float64Array(cellCount * C * 4);
-  for (let k = 0; k < C; k++) {
-    const fp = polys[k] as Float64Array;
-    for (let c = 0; c < cellCount; c++) for (let p = 0; p < 4; p++) all[(c * C + k) * 4 + p] = fp[c * 4 + p] as number;
-  }
+  const all = interleaveCubics(polys, cellCount, new Float64Array(cellCount * C * 4));
   const rss = new Float64Array(C);
   const n = y.length;
   for (let i = 0; i < n; i++) {

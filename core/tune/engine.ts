@@ -3,7 +3,7 @@ import { knownOrder } from '../stats/orderByX';
 import { weightedMean } from '../stats/weightedMean';
 import type { OutcomeFamily } from '../fit/glm';
 import { isPlainModel } from '../fit/model';
-import { accumulateRow, type Cells, SUMS_PER_CELL } from '../fit/powerSums/cells';
+import { accumulateRow, type Cells, interleaveCubics, SUMS_PER_CELL } from '../fit/powerSums/cells';
 import type { SplineFromSums } from '../fit/powerSums/splineSums';
 import { curveKind, resolveModel, type Trainer, type TrainerSet } from '../registry/curves/index';
 import { resamplingScheme, type DrawState } from '../registry/resampling/index';
@@ -235,15 +235,13 @@ export class ResampleEngine {
     const cells = this.cells as Cells;
     const cellCount = cells.breaks.length - 1;
     const { polys, trained, sae, maxAbs, testIdx, yc } = this;
-    for (let k = 0; k < C; k++) {
-      const fp = (models[k] as SplineFromSums).fitPoly;
-      for (let c = 0; c < cellCount; c++) {
-        const to = (c * C + k) * 4;
-        // A candidate not fitted in this resample gets a zero cubic; its errors are not reported.
-        const on = trained[k] === 1;
-        for (let p = 0; p < 4; p++) polys[to + p] = on ? (fp[c * 4 + p] as number) : 0;
-      }
-    }
+    // A candidate not fitted in this resample gets a zero cubic; its errors are not reported.
+    interleaveCubics(
+      models.map((m) => m.fitPoly),
+      cellCount,
+      polys,
+      trained,
+    );
     sae.fill(0);
     maxAbs.fill(0);
     const cell = cells.cell;

@@ -66,3 +66,18 @@ export function accumulateRow(s: Float64Array, cellIndex: number, t: number, y: 
   s[o + 10] = (s[o + 10] as number) + wy * t3;
   s[o + 11] = (s[o + 11] as number) + wy * y;
 }
+
+/**
+ * The per-cell cubics of several candidates (each fitPoly[c * 4 + p]) laid side by side per
+ * cell into `out`: out[(c * C + k) * 4 + p], so a pass over rows reads one cell's cubics of
+ * every candidate together. A candidate with `use[k] === 0` gets a zero cubic.
+ */
+export function interleaveCubics(polys: readonly Float64Array[], cellCount: number, out: Float64Array, use?: Uint8Array): Float64Array {
+  const C = polys.length;
+  for (let k = 0; k < C; k++) {
+    const fp = polys[k] as Float64Array;
+    const on = use === undefined || use[k] === 1;
+    for (let c = 0; c < cellCount; c++) for (let p = 0; p < 4; p++) out[(c * C + k) * 4 + p] = on ? (fp[c * 4 + p] as number) : 0;
+  }
+  return out;
+}
