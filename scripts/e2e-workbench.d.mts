@@ -5,10 +5,13 @@ export declare const repoRoot: string;
 export declare const artifactsDir: string;
 export declare function freshRunDir(prefix: string): string;
 export declare function isLocalUrl(url: string): boolean;
+export declare function isWebviewResourceUrl(url: string): boolean;
 export interface LaunchedChromium {
   readonly context: BrowserContext;
   readonly page: Page;
   readonly blocked: string[];
+  /** Webview resource requests that missed the workbench's service worker (aborted). */
+  readonly missedWorker: string[];
   close(): Promise<void>;
 }
 export declare function launchChromium(options?: { viewport?: { width: number; height: number } }): Promise<LaunchedChromium>;

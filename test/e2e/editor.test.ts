@@ -403,17 +403,18 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     for (const absent of ['Tune a Curve', 'Save Curve Table', 'Stop Tuning', 'Forget the Column Choice']) {
       assert.ok(!idle.some((n) => n.includes(absent)), `${absent} is not listed with no data file open: ${idle.join(' | ')}`);
     }
-    // Invented seeded readings, only to make a run long enough to stop (no reference value).
+    // Invented seeded readings, only to make a run long enough to stop (no reference value):
+    // 200,000 rows and 5,000 bootstrap resamples take about half a minute on this machine class.
     let seed = 987654321;
     const rand = (): number => (seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32;
     const rows = ['load [kN],strain [um]'];
-    for (let i = 0; i < 40000; i++) {
+    for (let i = 0; i < 200000; i++) {
       const x = 100 * rand();
       rows.push(`${x.toFixed(4)},${(Math.sqrt(x) * 30 + 5 * (rand() - 0.5)).toFixed(3)}`);
     }
     writeFileSync(join(workspace, 'drift.csv'), rows.join('\n') + '\n');
     mkdirSync(join(workspace, '.vscode'), { recursive: true });
-    writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'bootstrap:2000' }));
+    writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'bootstrap:5000' }));
     const before = readdirSync(workspace).sort();
     // Open the file with quick open, then run the command from the palette.
     await page.keyboard.press('Control+P');
@@ -421,6 +422,8 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'drift.csv' }).first().waitFor();
     await page.keyboard.press('Enter');
     await page.locator('.tab.active', { hasText: 'drift.csv' }).first().waitFor();
+    // The editor shows the file's text once it has loaded it; the palette is read after that.
+    await page.locator('.editor-instance .view-line', { hasText: 'load [kN]' }).first().waitFor();
     const withData = await paletteCommands();
     for (const present of ['Tune a Curve', 'Save Curve Table', 'Forget the Column Choice']) {
       assert.ok(
@@ -464,6 +467,8 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
         const root = await f.$('#knotwise-root').catch(() => null);
         const text = root ? await root.textContent() : null;
         if (text && /Tuning was cancelled/.test(text)) said = f;
+        const state = root ? await root.getAttribute('data-state') : null;
+        assert.notEqual(state, 'ready', 'the run ended before Cancel was pressed; the test needs a longer run');
       }
       if (!said) await page.waitForTimeout(200);
     }
@@ -478,7 +483,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     assert.ok(frame);
     await frame.click('#kw-rerun');
     await frame.locator('#knotwise-root[data-state="ready"]').waitFor({ timeout: 60000 });
-    assert.match((await frame.textContent('.kw-meta')) ?? '', /^drift\.csv · 40000 rows used/);
+    assert.match((await frame.textContent('.kw-meta')) ?? '', /^drift\.csv · 200000 rows used/);
     assert.match((await frame.textContent('#kw-chosen-df')) ?? '', /^df \d+$/);
   });
 

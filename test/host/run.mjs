@@ -79,6 +79,9 @@ try {
   } else if (code !== 0 && failed === 0) {
     failed = 1;
   }
+  if (browser.missedWorker.length) {
+    console.log(`host layer: webview resource requests missed the workbench's service worker (aborted, not counted):\n  ${browser.missedWorker.join('\n  ')}`);
+  }
   if (browser.blocked.length) {
     console.log(`host layer: requests outside 127.0.0.1 were attempted:\n  ${browser.blocked.join('\n  ')}`);
     failed += 1;
