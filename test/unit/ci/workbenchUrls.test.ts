@@ -5,9 +5,14 @@
  * code-server workbench (seen in this project's host-layer log).
  */
 import { strict as assert } from 'node:assert';
-import { isLocalUrl, isWebviewResourceUrl } from '../../../scripts/e2e-workbench.mjs';
 
 describe('request watch of the browser layers', () => {
+  let isLocalUrl: (url: string) => boolean;
+  let isWebviewResourceUrl: (url: string) => boolean;
+  before(async () => {
+    ({ isLocalUrl, isWebviewResourceUrl } = await import('../../../scripts/e2e-workbench.mjs'));
+  });
+
   it('loopback and browser-internal URLs stay on the machine; other hosts do not', () => {
     assert.ok(isLocalUrl('http://127.0.0.1:43981/stable/static/out/vs/workbench.js'));
     assert.ok(isLocalUrl('data:text/plain,hi'));
