@@ -57,10 +57,12 @@ export type PanelMessage =
   /** Run the analysis again with these model options (they override the settings for this file). */
   | { readonly type: 'model'; readonly runId: number; readonly model: ModelChoice }
   /** Run the analysis again with these candidate df, written as the command line's --df takes them (e.g. '2..20'); they override the settings for this file. */
-  | { readonly type: 'candidates'; readonly runId: number; readonly candidates: string };
+  | { readonly type: 'candidates'; readonly runId: number; readonly candidates: string }
+  /** Save the inverse table with the curve table from now on (true) or not (false): the host sets knotwise.inverse.write for the data's folder. */
+  | { readonly type: 'inverseTable'; readonly save: boolean };
 
 /** The panel's folding sections of details, by id, in the order the panel shows them. */
-export const FOLD_IDS = ['residual-checks', 'influential-rows', 'candidates', 'model-report', 'notes'] as const;
+export const FOLD_IDS = ['residual-checks', 'influential-rows', 'calibration', 'candidates', 'model-report', 'notes'] as const;
 /** One folding section of the panel. */
 export type FoldId = (typeof FOLD_IDS)[number];
 
@@ -214,6 +216,8 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
       return hasExactKeys(o, ['type', 'runId', 'model']) && isId(o.runId) && isModelChoice(o.model);
     case 'candidates':
       return hasExactKeys(o, ['type', 'runId', 'candidates']) && isId(o.runId) && isCandidateText(o.candidates);
+    case 'inverseTable':
+      return hasExactKeys(o, ['type', 'save']) && typeof o.save === 'boolean';
     default:
       return false;
   }

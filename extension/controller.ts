@@ -258,6 +258,7 @@ export class Controller implements vscode.Disposable {
       if (!s.result || !s.hasPanel) continue;
       if (!sameAnalysis(s.result.options, s.analysisOptionsFor(now))) void s.tune({ background: true });
       else if (ruleChanged) s.showResult(now.rule);
+      else if (JSON.stringify([old.inverse, old.inverseOptions]) !== JSON.stringify([now.inverse, now.inverseOptions])) s.showResult();
       else if (refitChanged) s.postDataState();
     }
   }

@@ -36,6 +36,9 @@ export function routePanelMessage(session: DataSession, m: PanelMessage): void {
     case 'model':
       if (r && m.runId === r.runId) session.switchModel(m.model);
       return;
+    case 'inverseTable':
+      void session.setInverseSaved(m.save);
+      return;
     case 'candidates':
       if (r && m.runId === r.runId) session.widenCandidates(m.candidates);
       return;

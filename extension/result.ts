@@ -14,6 +14,10 @@ import type { FitDetail } from '../core/view/model';
 import type { ModelSummary } from './api';
 import type { ColumnChoice } from './columns';
 import type { CsvSource } from './csvSource';
+import type { CurveSample } from '../core/calibrate/drift';
+import { recordSample } from '../core/calibrate/baseline';
+import { calibrationView } from '../core/view/calibration';
+import type { Settings } from './settings';
 
 /** A finished run. */
 export interface RunResult {
@@ -28,6 +32,29 @@ export interface RunResult {
   /** Residual checks and panel details by df, computed once each. */
   readonly checks: Map<number, Diagnostics>;
   readonly details: Map<number, FitDetail>;
+  /** The curve of the fit record beside the data when the run ended ('none': no record; 'unusable': a record without a usable curve sample). */
+  recorded?: CurveSample | 'none' | 'unusable' | undefined;
+}
+
+/** The recorded curve of a parsed fit record, for the drift (undefined input: no record). */
+export function recordedCurve(record: unknown): CurveSample | 'none' | 'unusable' {
+  if (record === undefined) return 'none';
+  return recordSample(record) ?? 'unusable';
+}
+
+/**
+ * A df's panel details with the calibration section added (computed afresh: it follows the
+ * inverse-table settings, which may change while the panel is open).
+ */
+export function withCalibration(r: RunResult, detail: FitDetail | undefined, settings: Settings): FitDetail | undefined {
+  const fit = detail ? r.analysis.fits.get(detail.df) : undefined;
+  if (!detail || !fit) return detail;
+  try {
+    return { ...detail, calibration: calibrationView(fit, settings.inverseOptions, settings.inverse !== undefined, r.recorded ?? 'none', r.columns.labels) };
+  } catch {
+    // A curve the inverse cannot handle is reported inside calibrationView; anything else leaves the details as they were.
+    return detail;
+  }
 }
 
 /** An error as one line for the person (an InputError in the editor's words). */

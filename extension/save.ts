@@ -22,6 +22,7 @@ import { DEFAULT_OUTPUT, type FitPlan } from '../core/outputs/plan';
 import { selectDf } from '../core/tune/rules';
 import type { RuleSpec } from '../core/tune/types';
 import { outputName, type Settings } from './settings';
+import { inverseWords } from '../core/calibrate/inverseOutput';
 
 /** Everything a save needs from a finished run. */
 export interface SaveInput {
@@ -60,7 +61,7 @@ export function savePlan(input: SaveInput): FitPlan {
     columns: { x, y, weights: trials !== undefined ? undefined : weights },
     tune: true,
     options: { ...input.analysis.options, rule: input.rule },
-    output: { ...DEFAULT_OUTPUT, grid: settings.grid, extrapolate: settings.extrapolate, flagNegative: settings.flagNegative, digits: settings.digits },
+    output: { ...DEFAULT_OUTPUT, grid: settings.grid, extrapolate: settings.extrapolate, flagNegative: settings.flagNegative, digits: settings.digits, inverse: settings.inverse },
     ...(trials !== undefined ? { trials } : {}),
   };
 }
@@ -91,7 +92,7 @@ function relativeDataPath(folder: vscode.Uri, dataUri: vscode.Uri): string {
  * grid problems and a rule that cannot choose). The names follow the settings; with the
  * default names the bytes equal the command line's.
  */
-export function deliverables(input: SaveInput, folder: vscode.Uri): Deliverables {
+export function deliverables(input: SaveInput, folder: vscode.Uri, previous?: unknown): Deliverables {
   const { analysis, settings } = input;
   const plan = savePlan(input);
   const selected = withRule(analysis, input.rule, cachedDiagnostics(input));
@@ -113,7 +114,17 @@ export function deliverables(input: SaveInput, folder: vscode.Uri): Deliverables
     diagnostics: selected.diagnostics,
     sha256,
     names,
+    previous,
   });
+}
+
+/** The fit record a save replaces, parsed, or undefined when there is none or it is not JSON (its curve becomes the baseline of the drift). */
+export async function previousRecord(uri: vscode.Uri): Promise<unknown> {
+  try {
+    return JSON.parse(new TextDecoder().decode(await vscode.workspace.fs.readFile(uri))) as unknown;
+  } catch {
+    return undefined;
+  }
 }
 
 /** The cached checks of the df `input.rule` chooses, if that df differs from the analysis's choice and is cached. */
@@ -204,7 +215,9 @@ function tableNote(d: Deliverables): string {
   const fmt = (v: number): string => String(Number(v.toPrecision(3)));
   const step = d.grid.auto ? `automatic step ${fmt(d.grid.auto.step)} (tolerance ${fmt(d.grid.auto.tolerance)})` : '';
   const interp = ip ? `; straight lines between rows stay within ${fmt(ip.maxError)} of the curve` : '';
-  return `The table has ${s.points} rows${step ? `, ${step}` : ''}${interp}${s.extrapolated.length ? `; ${s.extrapolated.length} extrapolated` : ''}.`;
+  const inverse = d.inverse ? ` Inverse table: ${inverseWords(d.inverse.summary)}` : '';
+  const drift = d.drift ? ` Against the curve the record replaced: ${d.drift.words}` : '';
+  return `The table has ${s.points} rows${step ? `, ${step}` : ''}${interp}${s.extrapolated.length ? `; ${s.extrapolated.length} extrapolated` : ''}.${inverse}${drift}`;
 }
 
 /**
@@ -213,7 +226,7 @@ function tableNote(d: Deliverables): string {
  */
 export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer): Promise<Saved | undefined> {
   const folder = outputFolder(input.dataUri, input.settings.outputFolder);
-  const out = deliverables(input, folder);
+  const out = deliverables(input, folder, await previousRecord(vscode.Uri.joinPath(folder, outputName(input.settings.recordName, input.fileName))));
   const record = out.files.find((f) => f.kind === 'record');
   if (!record) throw new Error('buildDeliverables returned no fit record');
   const targets = out.files.map((f) => ({ file: f, uri: vscode.Uri.joinPath(folder, f.name) }));

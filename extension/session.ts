@@ -29,10 +29,10 @@ import { stillValid, whatMoved } from './moved';
 import { PanelView } from './panel';
 import { routePanelMessage } from './panelMessages';
 import type { RejectedRowsView } from './problems';
-import { detailFor, errorText, modelSummary, type RunResult } from './result';
+import { detailFor, errorText, modelSummary, recordedCurve, withCalibration, type RunResult } from './result';
 import { analyseWithProgress, RunTicket } from './run';
-import { saveDeliverables, type OverwriteAnswer } from './save';
-import { analysisOptions, modelOptions, type ModelSettings, type Settings } from './settings';
+import { outputFolder, previousRecord, saveDeliverables, type OverwriteAnswer } from './save';
+import { analysisOptions, modelOptions, outputName, type ModelSettings, type Settings } from './settings';
 import type { AnalysisOptions } from '../core/analysis/types';
 import { parseDfList } from '../core/tune/candidates';
 
@@ -204,6 +204,8 @@ export class DataSession implements vscode.Disposable {
       this.analysed++;
       if (!current()) return { status: 'superseded', file, runId };
       const result: RunResult = { runId, source, choice, columns, trials, options: opts, analysis, checks: new Map([[analysis.chosen.df, analysis.diagnostics]]), details: new Map() };
+      // The curve of the fit record beside the data, for the drift.
+      result.recorded = await this.recordedCurve();
       // The person's rule (read now: it may have changed in the panel during the run) where it still applies.
       const before = this.result;
       const ruleBefore = this.rule;
@@ -338,7 +340,7 @@ export class DataSession implements vscode.Disposable {
       trialsLabel: r.trials !== undefined ? r.columns.labels.weights : undefined,
       modelFromPanel: this.model !== undefined,
       candidatesFromPanel: this.candidates,
-      detail: (df) => detailFor(r, df),
+      detail: (df) => withCalibration(r, detailFor(r, df), settings),
       warnings: settings.problems,
     });
     const shown: PanelPayload = moved ? { ...payload, refit: moved } : payload;
@@ -349,11 +351,32 @@ export class DataSession implements vscode.Disposable {
     this.postDataState();
   }
 
+  /**
+   * The panel's inverse-table switch: sets knotwise.inverse.write for the data file's
+   * workspace folder (the workspace when it has none); the settings change re-renders the panel.
+   */
+  async setInverseSaved(save: boolean): Promise<void> {
+    const config = vscode.workspace.getConfiguration('knotwise', this.uri);
+    const folder = vscode.workspace.getWorkspaceFolder(this.uri);
+    await config.update('inverse.write', save, folder ? vscode.ConfigurationTarget.WorkspaceFolder : vscode.ConfigurationTarget.Workspace);
+  }
+
+  /** The curve of the fit record the next save would replace (core/calibrate/baseline.ts). */
+  private async recordedCurve(): Promise<RunResult['recorded']> {
+    try {
+      const settings = this.ctx.settings(this.uri);
+      const name = outputName(settings.recordName, baseName(this.uri));
+      return recordedCurve(await previousRecord(vscode.Uri.joinPath(outputFolder(this.uri, settings.outputFolder), name)));
+    } catch {
+      return 'none';
+    }
+  }
+
   /** Answers the panel's request for the residual details of one df of the shown run. */
   sendDetail(runId: number, df: number): void {
     const r = this.result;
     if (!r || runId !== r.runId) return;
-    const detail = detailFor(r, df);
+    const detail = withCalibration(r, detailFor(r, df), this.ctx.settings(this.uri));
     if (detail) this.post({ type: 'detail', runId, detail });
   }
 

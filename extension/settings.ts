@@ -12,6 +12,7 @@ import { HUBER_K } from '../core/fit/robust';
 import { checkShapes } from '../core/fit/shape';
 import { parseDfList } from '../core/tune/candidates';
 import { parseGrid, type GridSpec } from '../core/table/grid';
+import { checkInverse, DEFAULT_INVERSE, EDITOR_INVERSE_NAMES, INVERSE_LIMITS, type InverseSpec } from '../core/calibrate/spec';
 import type { ResampleSpec, RuleSpec } from '../core/tune/types';
 import type { CurveKindId, ModelOptions, Outcome, Shape } from '../core/types';
 import { DEFAULT_CURVE, parseCurve, resolveModel } from '../core/registry/curves/index';
@@ -43,6 +44,10 @@ export interface Settings {
   /** knotwise.table.flagNegative: flag table rows where the curve is below zero. */
   readonly flagNegative: boolean;
   readonly digits: number;
+  /** knotwise.inverse.*: the inverse table to save with the curve table, or undefined when knotwise.inverse.write is off. */
+  readonly inverse: InverseSpec | undefined;
+  /** The inverse table's options even when it is not written (the panel previews it). */
+  readonly inverseOptions: InverseSpec;
   /** Output folder: '' means next to the data file; relative paths start at the data file's folder. */
   readonly outputFolder: string;
   /** File name patterns; ${name} is the data file's name without its extension. */
@@ -157,6 +162,10 @@ export function readSettings(get: SettingReader): Settings {
   const flagRaw = get('table.flagNegative');
   const flagNegative = typeof flagRaw === 'boolean' ? flagRaw : DEFAULTS.flagNegative;
 
+  const inverseOptions = readInverse(get, problems);
+  const writeRaw = get('inverse.write');
+  const inverse = writeRaw === true ? inverseOptions : undefined;
+
   const refitRaw = get('refit.onSave');
   const refitOnSave = typeof refitRaw === 'boolean' ? refitRaw : DEFAULTS.refitOnSave;
 
@@ -176,6 +185,8 @@ export function readSettings(get: SettingReader): Settings {
     grid,
     extrapolate,
     flagNegative,
+    inverse,
+    inverseOptions,
     digits: numIn('table.significantDigits', DEFAULTS.significantDigits, LIMITS.significantDigits, true),
     outputFolder: str('output.folder', DEFAULTS.outputFolder),
     tableName,
@@ -184,6 +195,30 @@ export function readSettings(get: SettingReader): Settings {
     refitAskAboveRows: numIn('refit.askAboveRows', DEFAULTS.refitAskAboveRows, LIMITS.refitAskAboveRows, true),
     problems,
   };
+}
+
+/** knotwise.inverse.*: checked as the command line checks its options; a bad value is listed in `problems` and its default used. */
+function readInverse(get: SettingReader, problems: string[]): InverseSpec {
+  const value = <T>(key: string, fallback: T, ok: (v: unknown) => boolean): T => {
+    const v = get(key);
+    if (v === undefined || v === null) return fallback;
+    if (ok(v)) return v as T;
+    problems.push(`knotwise.${key} ${JSON.stringify(v)} is not usable; using the default`);
+    return fallback;
+  };
+  const gridText = value<string>('inverse.grid', '', (v) => typeof v === 'string');
+  let grid: GridSpec | undefined;
+  if (gridText.trim() !== '') {
+    try {
+      grid = checkInverse({ ...DEFAULT_INVERSE, grid: parseGrid(gridText) }, EDITOR_INVERSE_NAMES).grid;
+    } catch (err) {
+      problems.push(`knotwise.inverse.grid: ${err instanceof InputError ? err.describe('editor') : String(err)}; using the default`);
+    }
+  }
+  const m = value<number>('inverse.readingsAveraged', 1, (v) => Number.isInteger(v) && (v as number) >= INVERSE_LIMITS.readingsAveraged.min && (v as number) <= INVERSE_LIMITS.readingsAveraged.max);
+  const u = value<number>('inverse.referenceUncertainty', 0, (v) => typeof v === 'number' && Number.isFinite(v) && v >= 0);
+  const w = value<number>('inverse.maxIntervalWidth', 0, (v) => typeof v === 'number' && Number.isFinite(v) && v >= 0);
+  return { grid, readingsAveraged: m, referenceUncertainty: u, maxWidth: w > 0 ? w : undefined };
 }
 
 /**

@@ -26,6 +26,7 @@ import { headerSection } from './sections/header';
 import { influenceSection } from './sections/influence';
 import { modelReportSection } from './sections/modelReport';
 import { notesSection } from './sections/notes';
+import { calibrationSection } from './sections/calibration';
 import { residualChecksSection } from './sections/residualChecks';
 import type { PanelActions, Section } from './sections/section';
 import type { Host } from './vscodeApi';
@@ -79,6 +80,7 @@ export class Panel {
     },
     changeModel: (model) => this.changeModel(model),
     widenCandidates: (candidates) => this.widenCandidates(candidates),
+    setInverseSaved: (save) => this.host.post({ type: 'inverseTable', save }),
     setAllInfluential: (all) => {
       this.allInfluential = all;
       this.keepState();
@@ -187,6 +189,7 @@ export class Panel {
     const folds = [
       residualChecksSection(open('residual-checks'), this.actions),
       influenceSection(open('influential-rows'), this.actions),
+      calibrationSection(open('calibration'), this.actions),
       candidatesSection(open('candidates'), this.actions),
       modelReportSection(open('model-report'), this.actions),
       notesSection(open('notes'), this.actions),

@@ -3,11 +3,11 @@
  */
 import { InputError } from '../errors';
 import { cHeader } from './cHeader';
-import { EMIT_KINDS, type EmitInput, type EmitKind } from './common';
+import { EMIT_KINDS, type EmitInput, type EmitKind, type EmitPart } from './common';
 import { jsonTable } from './jsonTable';
 import { tsModule } from './tsModule';
 
-export { EMIT_KINDS, type EmitInput, type EmitKind } from './common';
+export { EMIT_KINDS, type EmitInput, type EmitKind, type EmitPart } from './common';
 
 /**
  * Parses an emitter list such as `c,ts,json` (any order, repeats ignored) into EMIT_KINDS
@@ -21,9 +21,12 @@ export function parseEmit(text: string): EmitKind[] {
   return EMIT_KINDS.filter((k) => asked.includes(k));
 }
 
-/** File name of an emitted file: `<stem>.curve.h`, `<stem>.curve.ts`, `<stem>.curve.json`. */
-export function emitName(kind: EmitKind, stem: string): string {
-  return `${stem}.curve.${kind === 'c' ? 'h' : kind}`;
+/**
+ * File name of an emitted file: `<stem>.curve.h`, `<stem>.curve.ts`, `<stem>.curve.json`, and
+ * for the inverse table `<stem>.inverse.h`, `.inverse.ts`, `.inverse.json`.
+ */
+export function emitName(kind: EmitKind, stem: string, part: EmitPart = 'curve'): string {
+  return `${stem}.${part}.${kind === 'c' ? 'h' : kind}`;
 }
 
 /** The text of one emitted file. */

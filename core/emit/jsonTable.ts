@@ -22,18 +22,22 @@ export function jsonTable(input: EmitInput): string {
   t.columns.forEach((c, j) => {
     columns[c] = t.rows.map((r) => v(r[j] as number));
   });
+  const inverse = input.part === 'inverse';
+  const key = inverse ? 'reading' : 'x';
   const doc = {
     generatedBy: 'knotwise',
     source: { file: input.source.file, sha256: input.source.sha256 },
     record: input.recordFile,
     regenerate: input.regenerate,
     curve: input.curve,
+    ...(inverse ? { table: 'inverse', method: input.method ?? null } : {}),
     length: t.rows.length,
-    xFirst: xs.length ? v(xs[0] as number) : null,
-    xLast: xs.length ? v(xs[xs.length - 1] as number) : null,
+    [`${key}First`]: xs.length ? v(xs[0] as number) : null,
+    [`${key}Last`]: xs.length ? v(xs[xs.length - 1] as number) : null,
     dataXMin: v(input.dataRange[0]),
     dataXMax: v(input.dataRange[1]),
-    xStep: input.step !== undefined ? v(input.step) : null,
+    ...(inverse && input.readingRange ? { readingMin: v(input.readingRange[0]), readingMax: v(input.readingRange[1]) } : {}),
+    [`${key}Step`]: input.step !== undefined ? v(input.step) : null,
     columns,
     caution: input.caution,
   };

@@ -27,6 +27,8 @@ export function tsModule(input: EmitInput): string {
   const t = input.table;
   const num = (v: number): string => tsLiteral(formatNumber(v, input.digits));
   const xs = t.rows.map((r) => r[0] as number);
+  const inverse = input.part === 'inverse';
+  const key = inverse ? 'reading' : 'x';
   const out: string[] = [
     ...noticeLines(input).map((l) => `// ${l}`.trimEnd()),
     '',
@@ -34,14 +36,21 @@ export function tsModule(input: EmitInput): string {
     `export const length = ${t.rows.length};`,
     '/** The data file the curve was fitted to, and the SHA-256 of its bytes. */',
     `export const source = { file: ${JSON.stringify(input.source.file)}, sha256: ${JSON.stringify(input.source.sha256)} } as const;`,
-    '/** First and last x of the table. */',
-    `export const xFirst: number = ${xs.length ? num(xs[0] as number) : 'NaN'};`,
-    `export const xLast: number = ${xs.length ? num(xs[xs.length - 1] as number) : 'NaN'};`,
-    '/** Range of x in the data; table rows outside it are extrapolated. */',
+    `/** First and last ${key} of the table. */`,
+    `export const ${key}First: number = ${xs.length ? num(xs[0] as number) : 'NaN'};`,
+    `export const ${key}Last: number = ${xs.length ? num(xs[xs.length - 1] as number) : 'NaN'};`,
+    `/** Range of x in the data; ${inverse ? 'the quantity is never estimated outside it' : 'table rows outside it are extrapolated'}. */`,
     `export const dataXMin: number = ${num(input.dataRange[0])};`,
     `export const dataXMax: number = ${num(input.dataRange[1])};`,
-    '/** Step between consecutive x, or null when they are not evenly spaced. */',
-    `export const xStep: number | null = ${input.step !== undefined ? num(input.step) : 'null'};`,
+    ...(inverse && input.readingRange
+      ? [
+          '/** Readings the curve reaches over the data range; rows outside it are flagged in outside. */',
+          `export const readingMin: number = ${num(input.readingRange[0])};`,
+          `export const readingMax: number = ${num(input.readingRange[1])};`,
+        ]
+      : []),
+    `/** Step between consecutive ${key}, or null when they are not evenly spaced. */`,
+    `export const ${key}Step: number | null = ${input.step !== undefined ? num(input.step) : 'null'};`,
   ];
   t.columns.forEach((c, j) => {
     const flag = isFlag(c);

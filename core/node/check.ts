@@ -16,6 +16,8 @@ import { fitCommand } from '../outputs/plan';
 import { shellWord } from '../outputs/shellWord';
 import { readRecordFile, type RecordFile } from '../outputs/recordPlan';
 import { VERSION } from '../version';
+import { driftFromRecord } from '../calibrate/drift';
+import { recordSample } from '../calibrate/baseline';
 import { sha256 } from './outputs';
 import { portableRelative, runPipeline, type PipelineRun } from './pipeline';
 
@@ -162,7 +164,7 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
   let run: PipelineRun;
   try {
     // The table and record under the names they were written with (the editor lets them be renamed).
-    run = await runPipeline(dataFile, rec.plan, folder, { table: tableName, record: basename(recordPath) });
+    run = await runPipeline(dataFile, rec.plan, folder, { table: tableName, record: basename(recordPath) }, { previous: read.json });
   } catch (e) {
     // The data may have changed so that it no longer fits: say both.
     const sha = sha256(readFileSync(dataFile));
@@ -184,6 +186,11 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
       `data ${named(rec.dataPath)} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(run.table.sha256)}${rows !== rec.rowsUsed ? `; rows used ${rec.rowsUsed}, now ${rows}` : ''}`,
     );
     if (run.fit.df !== rec.df) messages.push(`the chosen df would change from ${rec.df} to ${run.fit.df}`);
+    // How far the curve of the changed data lies from the recorded one (core/calibrate/drift.ts).
+    const recorded = recordSample(read.json);
+    const drift = recorded ? driftFromRecord(recorded, run.fit) : null;
+    if (drift) messages.push(`the curve would move: ${drift.words}`);
+    else if (recorded) messages.push('the curve of the changed data shares no x range with the recorded one');
   }
   let versionOnly = false;
   for (const f of run.deliverables.files) {

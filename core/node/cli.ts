@@ -29,12 +29,15 @@ import { MAX_SHAPED_SMOOTHING_DISTINCT } from '../fit/shapedSmoothing';
 import type { FitResult, ModelOptions } from '../types';
 import { VERSION } from '../version';
 import { DEFAULT_DIGITS } from '../table/formatCsv';
+import { inverseWords } from '../calibrate/inverseOutput';
+import { checkInverse, CLI_INVERSE_NAMES, INVERSE_DEFAULT_POINTS, INVERSE_LIMITS, type InverseSpec } from '../calibrate/spec';
 import { curveKinds, DEFAULT_CURVE, parseCurve, resolveModel } from '../registry/curves/index';
 import { DEFAULT_OUTCOME, OUTCOME_LIST, outcomeKind, parseOutcome } from '../registry/outcomes/index';
 import { DEFAULT_RESAMPLING, formatResampling, parseResampling, RESAMPLING_LIST, resamplingScheme } from '../registry/resampling/index';
 import { DEFAULT_RULE, MAX_TOLERANCE_PERCENT, parseRule, RULE_LIST } from '../registry/rules/index';
 import { type CommandSpec, defineCommand, formatHelp, nearest, parseCommand } from './args';
 import { CHECK_COMMAND, runCheck } from './check';
+import { COMPARE_COMMAND, runCompare } from './compareRecords';
 import { writeOutputs } from './outputs';
 import { checkOutputFolder, checkOutputNames, terminalText } from './outputTargets';
 import { runPipeline } from './pipeline';
@@ -184,6 +187,40 @@ function fitCommand() {
       { group: 'Table', name: 'flag-negative', help: 'the quantity cannot be negative: flag table rows where the curve is below zero; --shape nonnegative constrains the curve instead' },
       { group: 'Table', name: 'digits', value: 'n', help: 'significant digits of the table values', default: String(DEFAULT_DIGITS), limits: `${DIGITS.min} to ${DIGITS.max}` },
       {
+        group: 'Inverse table',
+        name: 'inverse',
+        help: 'also write <name>.inverse.csv: from a reading back to the quantity x, with 95 % inverse-prediction intervals; the curve must rise or fall throughout the data range',
+      },
+      {
+        group: 'Inverse table',
+        name: 'inverse-grid',
+        value: 'grid',
+        help: 'readings at which the inverse table is evaluated, in the forms of --grid (in units of y); auto:<tolerance> takes the tolerance in units of x; implies --inverse',
+        defaultText: `${INVERSE_DEFAULT_POINTS} points over the readings the curve reaches`,
+      },
+      {
+        group: 'Inverse table',
+        name: 'readings-averaged',
+        value: 'm',
+        help: 'each reading to invert is the mean of m readings; implies --inverse',
+        default: '1',
+        limits: `${INVERSE_LIMITS.readingsAveraged.min} to ${INVERSE_LIMITS.readingsAveraged.max}`,
+      },
+      {
+        group: 'Inverse table',
+        name: 'reference-uncertainty',
+        value: 'u',
+        help: 'standard uncertainty of the reference values of x, in units of x; widens the intervals (implies --inverse)',
+        default: '0',
+      },
+      {
+        group: 'Inverse table',
+        name: 'max-interval-width',
+        value: 'width',
+        help: 'flag inverse-table rows whose interval is wider than this, in units of x (implies --inverse)',
+        defaultText: 'none flagged',
+      },
+      {
         group: 'Files',
         name: 'out',
         value: 'folder',
@@ -229,7 +266,7 @@ const DEMO_COMMAND = defineCommand({
 
 /** Every command, in the order the general help lists them. */
 export function commands(): CommandSpec[] {
-  return [fitCommand(), CHECK_COMMAND, DEMO_COMMAND];
+  return [fitCommand(), CHECK_COMMAND, COMPARE_COMMAND, DEMO_COMMAND];
 }
 
 /** The general help: commands and where to find their options. */
@@ -365,6 +402,7 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
       flagNegative: a.flag('flag-negative'),
       emit: emit !== undefined ? parseEmit(emit) : [],
       report: a.flag('report'),
+      inverse: parseInverseFlags(a),
     },
     // Outputs go next to the data unless --out names a folder or --print-only asks for none.
     out: printing ? undefined : (a.text('out') ?? dirname(file)),
@@ -379,6 +417,29 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
       ...model,
     },
   };
+}
+
+/** --inverse and its options as an inverse spec; undefined when none of them was given. */
+function parseInverseFlags(a: { flag(name: string): boolean; text(name: string): string | undefined; given(name: string): boolean }): InverseSpec | undefined {
+  const named = ['inverse-grid', 'readings-averaged', 'reference-uncertainty', 'max-interval-width'];
+  if (!a.flag('inverse') && !named.some((n) => a.given(n))) return undefined;
+  const number = (name: string, fallback: number | undefined): number | undefined => {
+    const t = a.text(name);
+    if (t === undefined) return fallback;
+    const v = Number(t);
+    if (t.trim() === '' || !Number.isFinite(v)) throw new InputError(`--${name} must be a number; got "${t}"`);
+    return v;
+  };
+  const grid = a.text('inverse-grid');
+  return checkInverse(
+    {
+      grid: grid !== undefined ? parseGrid(grid) : undefined,
+      readingsAveraged: number('readings-averaged', 1) as number,
+      referenceUncertainty: number('reference-uncertainty', 0) as number,
+      maxWidth: number('max-interval-width', undefined),
+    },
+    CLI_INVERSE_NAMES,
+  );
 }
 
 /** Refuses one column named by two of --x, --y, --weights, --trials. */
@@ -540,6 +601,10 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
         negativePoints: deliverables.summary.negative === null ? null : deliverables.summary.negative.length,
       },
       diagnostics,
+      // The inverse table and the drift, as the record keeps them (null when not made).
+      inverse: deliverables.record.inverse ?? null,
+      inverseRows: deliverables.inverse ? deliverables.inverse.table.rows.map((r) => r.map(finite)) : null,
+      drift: deliverables.record.drift ?? null,
       warnings: deliverables.warnings,
       // Data from standard input cannot be read again: no command redoes the run.
       regenerate: args.stdin ? null : deliverables.regenerate,
@@ -598,6 +663,8 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
           ? `; linear interpolation between rows stays within ${sig(ip.maxError)} of the curve${ip.tolerance !== null ? ` (automatic step ${sig(ip.step ?? NaN, 6)}, tolerance ${sig(ip.tolerance)})` : ''}`
           : ''),
     );
+    if (deliverables.inverse) lines.push(`Inverse table: ${inverseWords(deliverables.inverse.summary)}`);
+    if (deliverables.drift) lines.push(`Drift from the curve the record replaced: ${deliverables.drift.words}`);
     for (const w of deliverables.warnings) lines.push(`Warning: ${w}`);
     if (written) for (const f of written.files) lines.push(`Wrote ${f}`);
     lines.push(`Caution: ${CAUTION}`);
@@ -692,6 +759,8 @@ export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): 
         return await runDemo(rest, e);
       case 'check':
         return await runCheck(rest);
+      case 'compare':
+        return runCompare(rest);
       case undefined:
         process.stderr.write(usage() + '\n');
         return 2;

@@ -3,7 +3,8 @@
  * output's text. Shared by `knotwise fit` (which then writes them) and `knotwise check`
  * (which compares them with what is on disk), so both take exactly the same steps.
  */
-import { relative, resolve, sep, basename, extname } from 'node:path';
+import { readFileSync } from 'node:fs';
+import { relative, resolve, sep, basename, extname, join } from 'node:path';
 import { analyse } from '../analysis/analysis';
 import type { Analysis, Diagnostics } from '../analysis/types';
 import { buildDeliverables, type Deliverables } from '../outputs/deliver';
@@ -48,12 +49,25 @@ export function portableRelative(folder: string, target: string): string {
 }
 
 /**
+ * The fit record at `path` parsed, or undefined when there is none or it is not JSON: the
+ * record a new run replaces, whose curve becomes the baseline of the drift.
+ */
+export function readPreviousRecord(path: string): unknown {
+  try {
+    return JSON.parse(readFileSync(path, 'utf8')) as unknown;
+  } catch {
+    return undefined;
+  }
+}
+
+/**
  * Reads `file`, fits as `plan` says, and builds the outputs as they would be written into
  * `outFolder` (the data path in the record and the regenerate command is relative to it).
  * `names` renames the table and the record (as the editor's output name settings do;
  * default `<name>.curve.csv` and `<name>.fit.json`). `source.bytes` are the data when they
  * come from elsewhere than the file (standard input; `file` then only names them), and
- * `source.progress` hears of the tuning's progress.
+ * `source.progress` hears of the tuning's progress. `source.previous` is the parsed record
+ * the outputs replace; by default the record of that name in `outFolder` is read.
  * Throws InputError (with file, line and column where known) for bad input.
  * Example: const run = await runPipeline('cal.csv', plan, 'out'); run.deliverables.files.
  */
@@ -62,7 +76,7 @@ export async function runPipeline(
   plan: FitPlan,
   outFolder: string,
   names?: { readonly table: string; readonly record: string },
-  source: { readonly bytes?: Uint8Array | undefined; readonly progress?: Progress | undefined } = {},
+  source: { readonly bytes?: Uint8Array | undefined; readonly progress?: Progress | undefined; readonly previous?: unknown } = {},
 ): Promise<PipelineRun> {
   const table = source.bytes !== undefined ? readCsvBytes(source.bytes, file) : await readCsvFile(file);
   // A binomial outcome with a trials column: proportions, with the trials as weights (core/ingest/trials.ts).
@@ -84,7 +98,9 @@ export async function runPipeline(
   // The rows the fit used: those analyse tuned (without held-out rows), else all.
   const fitted = analysis ? analysis.data : selection.data;
   const diagnostics = analysis ? analysis.diagnostics : diagnose(selection.data, fit);
+  const recordName = names?.record ?? `${basename(file, extname(file))}.fit.json`;
   const deliverables = buildDeliverables({
+    previous: source.previous !== undefined ? source.previous : readPreviousRecord(join(outFolder, recordName)),
     plan,
     stem: basename(file, extname(file)),
     dataFile: basename(file),

@@ -21,6 +21,11 @@ import { interpolationError } from '../table/interpolation';
 import { sig } from '../tune/format';
 import type { FitResult, XYData } from '../types';
 import { curveWords } from '../registry/curves/index';
+import { buildInverse, inverseWords, type InverseOutput } from '../calibrate/inverseOutput';
+import { inverseTableCsv } from '../calibrate/inverseCsv';
+import { curveSample, driftFromRecord, type Drift } from '../calibrate/drift';
+import { baselineWords, chooseBaseline } from '../calibrate/baseline';
+import { reportDriftFigure } from '../report/figures';
 
 /** Above this many rows the interpolation error of a given (not automatic) grid is not computed. */
 export const INTERPOLATION_CHECK_LIMIT = 200_000;
@@ -52,6 +57,12 @@ export interface DeliverInput {
    * the command line's (the editor lets them be renamed). The record lists the table by this name.
    */
   readonly names?: { readonly table: string; readonly record: string } | undefined;
+  /**
+   * The fit record this run replaces, parsed (the record of the same name in the output
+   * folder), or undefined. Its curve sample becomes the new record's baseline, against which
+   * the drift is measured (core/calibrate/baseline.ts).
+   */
+  readonly previous?: unknown;
 }
 
 /** One file to write. */
@@ -73,6 +84,10 @@ export interface Deliverables {
   /** Warnings about the table (extrapolated rows, negative values, added columns), then the residual checks'. */
   readonly warnings: readonly string[];
   readonly regenerate: string;
+  /** The inverse table, when asked for. */
+  readonly inverse?: InverseOutput | undefined;
+  /** The drift against the baseline (the curve the record replaced), when there is one. */
+  readonly drift: Drift | null;
 }
 
 /** Step of a uniform grid, else undefined. */
@@ -182,7 +197,27 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
     caution: CAUTION,
   };
   for (const kind of out.emit) files.push({ kind, name: emitName(kind, input.stem), text: emitText(kind, emitInput) });
+  // The inverse table (reading to quantity) and its code, when asked for.
+  const inverse = out.inverse !== undefined ? buildInverse(fit, out.inverse, round) : undefined;
+  const inverseName = `${input.stem}.inverse.csv`;
+  if (inverse) {
+    files.push({ kind: 'inverse', name: inverseName, text: inverseTableCsv(inverse.table, out.digits) });
+    const inverseInput: EmitInput = {
+      ...emitInput,
+      part: 'inverse',
+      table: inverse.table,
+      step: inverse.grid.auto ? inverse.grid.auto.step : uniformStep(inverse.grid.spec, inverse.grid.points),
+      readingRange: inverse.summary.readingRange,
+      method: inverse.summary.method,
+    };
+    for (const kind of out.emit) files.push({ kind, name: emitName(kind, input.stem, 'inverse'), text: emitText(kind, inverseInput) });
+  }
+  // The curve this record replaces, and how far the new one moved from it.
+  const sample = curveSample(fit);
+  const baseline = chooseBaseline(input.previous, sample);
+  const drift = baseline ? driftFromRecord(baseline.sample, fit) : null;
   if (out.report) {
+    const driftFigure = drift && baseline ? reportDriftFigure(input.stem, baseline.sample, sample, drift, input.selection.labels) : undefined;
     const figures = reportFigures({
       stem: input.stem,
       fitted: input.fitted,
@@ -208,10 +243,15 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
       warnings,
       recordFile: names.record,
       regenerate,
-      emitted: out.emit.map((k) => emitName(k, input.stem)),
+      emitted: [...out.emit.map((k) => emitName(k, input.stem)), ...(inverse ? out.emit.map((k) => emitName(k, input.stem, 'inverse')) : [])],
       caution: CAUTION,
+      calibration: {
+        inverse: inverse ? { file: inverseName, summary: inverse.summary, words: inverseWords(inverse.summary) } : undefined,
+        drift: drift && baseline ? { words: drift.words, baseline: baselineWords(baseline), figure: driftFigure } : undefined,
+      },
     });
     files.push({ kind: 'report', name: names.report, text: markdown }, ...figures.map((f) => ({ kind: 'figure' as const, name: f.name, text: f.svg })));
+    if (driftFigure) files.push({ kind: 'figure', name: driftFigure.name, text: driftFigure.svg });
   }
   const outputs: OutputEntry[] = files
     .filter((f): f is OutputFile & { kind: OutputKind } => f.kind !== 'table' && f.kind !== 'record')
@@ -237,7 +277,13 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
     table: summary,
     outputs,
     warnings,
+    calibration: {
+      inverse: inverse ? { file: inverseName, sha256: input.sha256(files.find((f) => f.name === inverseName)?.text ?? ''), summary: inverse.summary } : null,
+      sample,
+      baseline,
+      drift,
+    },
   });
   files.push({ kind: 'record', name: names.record, text: JSON.stringify(record, null, 2) + '\n' });
-  return { table: shaped.table, grid, summary, files, record, warnings, regenerate };
+  return { table: shaped.table, grid, summary, files, record, warnings, regenerate, inverse, drift };
 }

@@ -12,6 +12,7 @@ import { DEFAULT_DIGITS } from '../table/formatCsv';
 import { formatGrid, type GridSpec } from '../table/grid';
 import { formatResampling } from '../registry/resampling/index';
 import { formatRule } from '../registry/rules/index';
+import { inverseWords, type InverseSpec } from '../calibrate/spec';
 
 /** What to write besides the fit: table grid and format, safety flags, emitters, report. */
 export interface OutputOptions {
@@ -25,6 +26,8 @@ export interface OutputOptions {
   readonly flagNegative: boolean;
   readonly emit: readonly EmitKind[];
   readonly report: boolean;
+  /** Also write the inverse table (reading to quantity, with inverse-prediction intervals); undefined: not asked for. */
+  readonly inverse?: InverseSpec | undefined;
 }
 
 /** Output options when nothing is asked for. */
@@ -76,6 +79,7 @@ export function fitCommand(plan: FitPlan, dataPath: string): string {
   if (out.flagNegative) w.push('--flag-negative');
   if (out.emit.length) w.push('--emit', out.emit.join(','));
   if (out.report) w.push('--report');
+  if (out.inverse !== undefined) w.push(...inverseWords(out.inverse, shellWord));
   w.push('--out', '.');
   return w.join(' ');
 }

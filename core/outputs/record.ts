@@ -10,10 +10,44 @@ import { CAUTION } from '../words/caution';
 export { CAUTION };
 import { formatResampling } from '../registry/resampling/index';
 import { formatRule } from '../registry/rules/index';
+import type { InverseSpec } from '../calibrate/spec';
+import type { InverseSummary } from '../calibrate/inverseOutput';
+import { curveSample, type CurveSample, type Drift } from '../calibrate/drift';
+import type { Baseline } from '../calibrate/baseline';
+
+/** spec.inverse: the inverse table as asked for, or null. */
+function inverseSpecRecord(spec: InverseSpec | undefined): Record<string, unknown> | null {
+  if (!spec) return null;
+  return { grid: spec.grid ?? null, readingsAveraged: spec.readingsAveraged, referenceUncertainty: spec.referenceUncertainty, maxIntervalWidth: spec.maxWidth ?? null };
+}
+
+/** The fit's curve sample, or null for a curve without an x range to sample. */
+function sampleOrNull(f: FitResult): CurveSample | null {
+  try {
+    return curveSample(f);
+  } catch {
+    return null;
+  }
+}
+
+/** The record's `drift`: the numbers and the words, non-finite numbers as null. */
+function driftRecord(d: Drift | null): Record<string, unknown> | null {
+  if (!d) return null;
+  return {
+    from: d.from,
+    to: d.to,
+    points: d.points,
+    largest: { x: d.largest.x, difference: num(d.largest.difference) },
+    largestRelative: d.largestRelative ? { x: d.largestRelative.x, z: num(d.largestRelative.z), difference: num(d.largestRelative.difference) } : null,
+    withinRecordedBand: d.withinRecordedBand,
+    outside: d.outside.map((o) => ({ from: o.from, to: o.to })),
+    words: d.words,
+  };
+}
 
 /** Format name and version of the fit record (schema: schema/fit-record.schema.json). */
 export const RECORD_FORMAT = 'knotwise-fit-record';
-export const RECORD_VERSION = 2;
+export const RECORD_VERSION = 3;
 
 /** What the fit record is built from. */
 export interface RecordInput {
@@ -43,6 +77,16 @@ export interface RecordInput {
   readonly outputs?: readonly OutputEntry[] | undefined;
   /** Every warning shown for the run (table flags and residual checks). */
   readonly warnings?: readonly string[] | undefined;
+  /** The inverse table, the curve sample, the baseline it replaced and the drift from it (core/calibrate/). */
+  readonly calibration?: CalibrationRecord | undefined;
+}
+
+/** What the record keeps for calibration use. */
+export interface CalibrationRecord {
+  readonly inverse: { readonly file: string; readonly sha256: string; readonly summary: InverseSummary } | null;
+  readonly sample: CurveSample;
+  readonly baseline: Baseline | null;
+  readonly drift: Drift | null;
 }
 
 /** What a written curve table holds, for the record. */
@@ -62,7 +106,7 @@ export interface TableSummary {
 }
 
 /** Kinds of files written beside the table and the record. */
-export type OutputKind = 'c' | 'ts' | 'json' | 'report' | 'figure';
+export type OutputKind = 'c' | 'ts' | 'json' | 'report' | 'figure' | 'inverse';
 
 /** One written file and the SHA-256 of its bytes. */
 export interface OutputEntry {
@@ -134,6 +178,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
   const t = input.table;
   // The df asked for (a smoothing spline's achieved trace differs from it in the last digits).
   const askedDf = a ? f.df : (plan.options.candidates?.[0] ?? f.df);
+  const c = input.calibration;
   return {
     format: RECORD_FORMAT,
     version: RECORD_VERSION,
@@ -165,6 +210,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       flagNegative: plan.output.flagNegative,
       emit: plan.output.emit,
       report: plan.output.report,
+      inverse: inverseSpecRecord(plan.output.inverse),
       level: BAND_LEVEL,
       // Outcome family, shapes, robust fitting and trials column exactly as asked (read back by core/outputs/recordPlan.ts).
       model: {
@@ -215,6 +261,10 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
       extrapolated: t ? t.extrapolated : null,
       negative: t ? t.negative : null,
     },
+    inverse: c?.inverse ? { file: c.inverse.file, sha256: c.inverse.sha256, ...finiteFields(c.inverse.summary) } : null,
+    curveSample: c ? c.sample : sampleOrNull(f),
+    baseline: c?.baseline ?? null,
+    drift: driftRecord(c?.drift ?? null),
     outputs: input.outputs ?? [],
     warnings: input.warnings ?? input.diagnostics.warnings,
     regenerate: fitCommand(plan, dataPath),

@@ -8,6 +8,7 @@ import { EMIT_KINDS, type EmitKind } from '../emit/common';
 import { InputError } from '../errors';
 import { DEFAULT_OUTPUT, type FitPlan } from './plan';
 import { RECORD_FORMAT, RECORD_VERSION } from './record';
+import { checkInverse, type InverseSpec } from '../calibrate/spec';
 import { RECORD_SCHEMA } from './recordSchema';
 import { parseShapeList } from '../fit/shape';
 import type { ModelOptions } from '../types';
@@ -80,11 +81,11 @@ class Fields {
 }
 
 /** A grid object as the record stores it, checked through its text form. */
-function gridOf(v: unknown, f: Fields): GridSpec {
-  if (v === null || typeof v !== 'object') f.fail('spec.grid', 'must be an object');
+function gridOf(v: unknown, f: Fields, path = 'spec.grid'): GridSpec {
+  if (v === null || typeof v !== 'object') f.fail(path, 'must be an object');
   const g = v as Json;
   const numbers = (keys: string[]): void => {
-    for (const k of keys) if (g[k] !== undefined && (typeof g[k] !== 'number' || !Number.isFinite(g[k]))) f.fail(`spec.grid.${k}`, 'must be a number');
+    for (const k of keys) if (g[k] !== undefined && (typeof g[k] !== 'number' || !Number.isFinite(g[k]))) f.fail(`${path}.${k}`, 'must be a number');
   };
   switch (g.kind) {
     case 'count':
@@ -97,15 +98,37 @@ function gridOf(v: unknown, f: Fields): GridSpec {
       numbers(['tolerance', 'start', 'stop']);
       break;
     case 'list':
-      if (!Array.isArray(g.values) || g.values.some((x) => typeof x !== 'number' || !Number.isFinite(x))) f.fail('spec.grid.values', 'must be an array of numbers');
+      if (!Array.isArray(g.values) || g.values.some((x) => typeof x !== 'number' || !Number.isFinite(x))) f.fail(`${path}.values`, 'must be an array of numbers');
       break;
     case 'data':
       break;
     default:
-      f.fail('spec.grid.kind', 'must be count, step, data, list or auto');
+      f.fail(`${path}.kind`, 'must be count, step, data, list or auto');
   }
-  return f.parse('spec.grid', () => parseGrid(formatGrid(g as GridSpec)));
+  return f.parse(path, () => parseGrid(formatGrid(g as GridSpec)));
 }
+
+/** spec.inverse: the inverse table as asked for, or undefined (null: not asked for). */
+function inverseOf(v: unknown, f: Fields): InverseSpec | undefined {
+  if (v === null || v === undefined) return undefined;
+  if (typeof v !== 'object') return f.fail('spec.inverse', 'must be an object or null');
+  const o = v as Json;
+  const spec: InverseSpec = {
+    grid: o.grid === null || o.grid === undefined ? undefined : gridOf(o.grid, f, 'spec.inverse.grid'),
+    readingsAveraged: f.num(o, 'readingsAveraged', 'spec.inverse.readingsAveraged'),
+    referenceUncertainty: f.num(o, 'referenceUncertainty', 'spec.inverse.referenceUncertainty'),
+    maxWidth: o.maxIntervalWidth === null || o.maxIntervalWidth === undefined ? undefined : f.num(o, 'maxIntervalWidth', 'spec.inverse.maxIntervalWidth'),
+  };
+  return f.parse('spec.inverse', () => checkInverse(spec, RECORD_INVERSE_NAMES));
+}
+
+/** The record's key paths, for messages about spec.inverse. */
+const RECORD_INVERSE_NAMES = {
+  grid: 'spec.inverse.grid',
+  readingsAveraged: 'spec.inverse.readingsAveraged',
+  referenceUncertainty: 'spec.inverse.referenceUncertainty',
+  maxWidth: 'spec.inverse.maxIntervalWidth',
+};
 
 /** spec.model (absent in records without model options): outcome, shapes, robust fitting, trials column. */
 function modelOf(v: unknown, f: Fields): { options: ModelOptions; trials?: string } {
@@ -195,6 +218,7 @@ export function readRecord(json: unknown, where: string): RecordedRun {
     flagNegative: f.bool(spec, 'flagNegative', 'spec.flagNegative', false),
     emit: spec.emit === undefined ? [] : emit,
     report: f.bool(spec, 'report', 'spec.report', false),
+    inverse: inverseOf(spec.inverse, f),
   };
   const weights = columns.weights === undefined || columns.weights === null ? undefined : f.str(columns, 'weights', 'data.columns.weights');
   const plan: FitPlan = {

@@ -12,6 +12,8 @@ import { fitDetail } from '../view/detail';
 import { FIGURE_CATALOGUE, type FigureView } from '../view/figureCatalogue';
 import { curveView, evenGrid, PANEL_GRID_POINTS } from '../view/payload';
 import { standaloneSvg } from './figureStyle';
+import type { CurveSample, Drift } from '../calibrate/drift';
+import { driftSvg } from '../plots/drift';
 
 /** One figure file of the report. */
 export interface ReportFigure {
@@ -70,4 +72,17 @@ export function reportFigures(input: FigureInput): ReportFigure[] {
     if (svg !== undefined) out.push({ name: `${stem}.report.${f.key}.svg`, caption: f.title(view), description: f.description, svg: standaloneSvg(svg) });
   }
   return out;
+}
+
+/** How to read the drift figure (the panel shows the same text under it). */
+export const DRIFT_READING =
+  'The dashed line and the lighter band are the curve the fit record held and its 95 % band; the solid line and the darker band are the new curve and its band. The ring marks where they differ most relative to their combined standard error.';
+
+/**
+ * The drift figure of the report, `<stem>.report.drift.svg`: the baseline curve and the new
+ * one with their bands (core/plots/drift.ts). O(sample points).
+ */
+export function reportDriftFigure(stem: string, recorded: CurveSample, current: CurveSample, drift: Drift, labels: { readonly x: string; readonly y: string }): ReportFigure {
+  const svg = driftSvg({ id: 'kw-fig-drift', recorded, current, drift, xLabel: labels.x, yLabel: labels.y, reading: DRIFT_READING });
+  return { name: `${stem}.report.drift.svg`, caption: 'The new curve over the recorded one, each with its 95 % band', description: DRIFT_READING, svg: standaloneSvg(svg) };
 }

@@ -16,6 +16,7 @@ import type { TableSummary } from '../outputs/record';
 import { metricLabel } from '../tune/format';
 import type { FitResult } from '../types';
 import { checkViews } from '../view/words';
+import type { InverseSummary } from '../calibrate/inverseOutput';
 import type { ReportFigure } from './figures';
 import { formatRule, ruleWords } from '../registry/rules/index';
 import { curveWords } from '../registry/curves/index';
@@ -43,6 +44,30 @@ export interface ReportInput {
   /** Names of the emitted code files. */
   readonly emitted: readonly string[];
   readonly caution: string;
+  /** The inverse table and the drift from the recorded curve, when there are. */
+  readonly calibration?: {
+    readonly inverse?: { readonly file: string; readonly summary: InverseSummary; readonly words: string } | undefined;
+    readonly drift?: { readonly words: string; readonly baseline: string; readonly figure?: ReportFigure | undefined } | undefined;
+  };
+}
+
+/** The inverse table and the drift sections (empty when neither was made). */
+function calibrationSections(input: ReportInput): string[] {
+  const out: string[] = [];
+  const inv = input.calibration?.inverse;
+  if (inv) {
+    out.push(
+      '## Inverse table',
+      '',
+      `[${md(inv.file)}](${link(inv.file)}) gives the quantity (${md(input.labels.x)}) for a reading (${md(input.labels.y)}). ${md(inv.words)}`,
+      '',
+      `Intervals: ${md(inv.summary.method)}`,
+      '',
+    );
+  }
+  const drift = input.calibration?.drift;
+  if (drift) out.push('## Drift from the recorded curve', '', `Compared with ${md(drift.baseline)}: ${md(drift.words)}`, '', ...figure(drift.figure));
+  return out;
 }
 
 /** Text from the CSV or a file name, with Markdown and HTML punctuation escaped. */
@@ -233,7 +258,7 @@ export function reportMarkdown(input: ReportInput): string {
   lines.push('## Residual checks', '', ...checks(input.diagnostics, fit), ...figure(fig('residuals-x')), ...figure(fig('residuals-fitted')), ...figure(fig('normal-quantiles')));
   const notes = [...fit.notes, ...(a ? a.tune.notes : [])];
   if (notes.length) lines.push('## Notes', '', ...notes.map((n) => `- ${md(n)}`), '');
-  lines.push('## Curve table', '', ...tableSection(input), '## Data', '', ...dataSection(input));
+  lines.push('## Curve table', '', ...tableSection(input), ...calibrationSections(input), '## Data', '', ...dataSection(input));
   lines.push(
     '## Reproduce and check',
     '',

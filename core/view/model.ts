@@ -8,6 +8,18 @@
 import type { CurveKindId, Outcome, Shape } from '../types';
 import type { CandidateResult, HoldoutReport, Metric, RuleSpec } from '../tune/types';
 
+/** The panel's calibration section for one df (built by core/view/calibration.ts). */
+export interface CalibrationView {
+  /** The inverse table in words, or why there is none. */
+  readonly inverse: { readonly words: string; readonly method: string } | { readonly refused: string };
+  /** True when saving writes the inverse table too (knotwise.inverse.write). */
+  readonly inverseSaved: boolean;
+  /** The drift from the recorded curve, when a fit record of this data exists and overlaps; `within`: inside the recorded band everywhere (null: cannot be judged). */
+  readonly drift?: { readonly words: string; readonly svg: string; readonly within: boolean | null } | undefined;
+  /** Set when a record exists but cannot be compared (no curve sample, no common range). */
+  readonly driftNote?: string | undefined;
+}
+
 /** Readings drawn one by one (small n) or as a 2-D count grid (large n or heavy overplotting). */
 export type Cloud = CloudPoints | CloudBins;
 
@@ -132,6 +144,8 @@ export interface FitDetail {
   readonly warnings: readonly string[];
   /** Present when the readings are counts or proportions, or shape constraints or robust fitting were used. */
   readonly model?: ModelReportView;
+  /** The inverse table in words (or why there is none) and the drift from the recorded curve (core/view/calibration.ts); absent until the host adds it. */
+  readonly calibration?: CalibrationView | undefined;
   /** Residuals against row order (the order of the file, usually of measurement), for a drift plot; absent when the checks were not run. */
   readonly rowOrder?: RowOrderView | undefined;
 }

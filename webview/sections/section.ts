@@ -38,6 +38,8 @@ export interface PanelActions {
   changeModel(model: ModelChoice): void;
   /** Run the analysis again with these candidate df (the command line's --df text, e.g. '2..20'). */
   widenCandidates(candidates: string): void;
+  /** Save the inverse table with the curve table from now on, or not. */
+  setInverseSaved(save: boolean): void;
   /** Show every listed influential row, or only the first ten. */
   setAllInfluential(all: boolean): void;
   save(): void;

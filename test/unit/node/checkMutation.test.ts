@@ -242,7 +242,7 @@ describe('knotwise check against changed files', () => {
     caught(
       await tampered(
         () => undefined,
-        (t) => t.replace('"version": 2,', '"version":  2,'),
+        (t) => t.replace('"version": 3,', '"version":  3,'),
       ),
       1,
       same,
@@ -250,7 +250,7 @@ describe('knotwise check against changed files', () => {
     caught(
       await tampered(
         () => undefined,
-        (t) => t.replace('"version": 2,', '"version": 2.0,'),
+        (t) => t.replace('"version": 3,', '"version": 3.0,'),
       ),
       1,
       same,

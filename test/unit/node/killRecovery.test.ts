@@ -165,9 +165,13 @@ describe('a kill of the command line while it writes', function () {
     }
     const setCars = snapshot(out);
     const rewriteMs: number[] = [];
+    // A rewrite's record keeps the curve it replaced (its baseline, core/calibrate/baseline.ts):
+    // the new set of a rewrite is what an uncut rewrite over the other data's set writes.
+    let setCarsOverFewer = setCars;
     for (const text of [fewerText, carsText, fewerText]) {
       writeFileSync(data, text);
       rewriteMs.push(await uncut());
+      if (text === carsText) setCarsOverFewer = snapshot(out);
     }
     const setFewer = snapshot(out);
     assert.equal(setFewer.size, 5);
@@ -178,10 +182,10 @@ describe('a kill of the command line while it writes', function () {
     // Rewrites: the folder holds one data set's outputs; the data change to the other; the run is killed.
     let current: 'cars' | 'fewer' = 'fewer';
     const rewrites = await series('rewrite', rewriteUncut.writeMs as number, random, () => {
-      const oldSet = current === 'cars' ? setCars : setFewer;
+      const oldSet = current === 'cars' ? setCarsOverFewer : setFewer;
       current = current === 'cars' ? 'fewer' : 'cars';
       writeFileSync(data, current === 'cars' ? carsText : fewerText);
-      return { oldSet, newSet: current === 'cars' ? setCars : setFewer };
+      return { oldSet, newSet: current === 'cars' ? setCarsOverFewer : setFewer };
     });
 
     // First writes: an empty folder, the original data.

@@ -9,7 +9,7 @@
  */
 import { strict as assert } from 'node:assert';
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, utimesSync, writeFileSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, utimesSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { InputError } from '../../../core/errors';
@@ -218,9 +218,14 @@ describe('what a killed run left', () => {
     rmSync(dir, { recursive: true, force: true });
   });
 
-  /** The outputs a run of `fitArgs` writes, by name (from a run in a folder of its own). */
+  /**
+   * The outputs a run of `fitArgs` writes, by name (from a run in a folder of its own that
+   * holds a copy of `out`'s fit record, since a record keeps the curve of the one it replaces).
+   */
   async function outputsOf(csv: string): Promise<SetFile[]> {
     const other = join(dir, 'reference');
+    mkdirSync(other, { recursive: true });
+    if (existsSync(join(out, 'cars.fit.json'))) copyFileSync(join(out, 'cars.fit.json'), join(other, 'cars.fit.json'));
     writeFileSync(data, csv);
     assert.equal((await runMain(...fitArgs().map((a) => (a === out ? other : a)))).code, 0);
     // The same names and bytes as in `out`: the record names the data by a path relative to its folder, the same from both.

@@ -212,7 +212,7 @@ describe('fit record and its JSON Schema', () => {
       ['unknown grid kind', (r) => (r.spec.grid = { kind: 'bogus' })],
       ['rule not understood', (r) => (r.spec.rule = 'best')],
       ['other format', (r) => (r.format = 'something-else')],
-      ['newer version', (r) => (r.version = 3)],
+      ['newer version', (r) => (r.version = 4)],
       ['older version', (r) => (r.version = 1)],
       ['old key spec.family', (r) => ((r.spec.family = r.spec.curve), delete r.spec.curve)],
       ['old curve value', (r) => (r.spec.curve = 'natural')],

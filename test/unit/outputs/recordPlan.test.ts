@@ -112,11 +112,11 @@ describe('readRecord', () => {
     refuse({ format: 'x' }, /not a fit record: "format" is "x", expected "knotwise-fit-record"/);
     refuse({ format: 'knotwise-fit-record', version: 9 }, /version 9 was written by a newer Knotwise/);
     refuse({ format: 'knotwise-fit-record', version: 1 }, /version 1 was written by an earlier Knotwise whose words have changed/);
-    refuse({ format: 'knotwise-fit-record', version: 2, tool: {}, data: { columns: {} } }, /"spec" must be an object/);
+    refuse({ format: 'knotwise-fit-record', version: 3, tool: {}, data: { columns: {} } }, /"spec" must be an object/);
     const spec = { curve: 'natural-spline', candidates: [3], resampling: null, rule: 'pick:3', grid: { kind: 'count', start: 0, stop: 1, count: 'x' }, extrapolate: false, digits: 8, emit: [] };
     const rec = {
       format: 'knotwise-fit-record',
-      version: 2,
+      version: 3,
       tool: { version: '0' },
       data: { file: 'a.csv', sha256: 'a', rowsUsed: 1, columns: { x: 'a', y: 'b' } },
       spec,
@@ -152,10 +152,10 @@ describe('readRecord', () => {
     refuse(Uint8Array.from([0x7b, 0xc3, 0x28, 0x7d]), /^not a fit record: the file is not UTF-8 text$/);
     refuse(bytes('\uFEFF' + text), /starts with a byte order mark/);
     refuse(bytes(text.slice(0, 400)), /^not valid JSON \(.*\); the file looks truncated$/);
-    refuse(bytes(text.replace('"version": 2', '"version": 1')), /version 1 was written by an earlier Knotwise/);
+    refuse(bytes(text.replace('"version": 3', '"version": 2')), /version 2 was written by an earlier Knotwise/);
     refuse(
       bytes(text.replace('"rowsRead": 50', '"rowsRead": -50').replace('"level": 0.95', '"level": 0.9')),
-      /^the fit record does not follow its schema \(schema\/fit-record\.schema\.json, version 2\): "data\.rowsRead" must be at least 0; it is -50; "spec\.level" must be 0\.95; it is 0\.9$/,
+      /^the fit record does not follow its schema \(schema\/fit-record\.schema\.json, version 3\): "data\.rowsRead" must be at least 0; it is -50; "spec\.level" must be 0\.95; it is 0\.9$/,
     );
     const many = JSON.parse(text) as Record<string, unknown>;
     for (const k of ['fit', 'table', 'outputs', 'warnings', 'caution']) delete many[k];

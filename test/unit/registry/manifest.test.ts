@@ -99,7 +99,7 @@ describe('registries, package.json and the record schema agree', () => {
     assert.deepEqual(spec.model.properties.outcome.enum, [...OUTCOME_LIST.map((o) => o.id), null]);
     assert.equal(spec.resampling.pattern, RESAMPLING_PATTERN);
     assert.equal(spec.rule.pattern, RULE_PATTERN);
-    assert.equal(schema.properties.version.const, 2);
+    assert.equal(schema.properties.version.const, 3);
   });
 
   it('no setting or record key keeps a replaced name', () => {
