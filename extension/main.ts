@@ -5,6 +5,7 @@
 import * as vscode from 'vscode';
 import type { KnotwiseApi, RunSummary, SaveCommandOptions, TuneCommandOptions } from './api';
 import { CHECK_CHANNEL_NAME, CHECK_TABLES_COMMAND, checkCurveTables } from './checkTables';
+import { COMPARE_RECORDS_COMMAND, compareFitRecords } from './compareRecords';
 import { Controller } from './controller';
 import { isTableFile } from './csvSource';
 import { openDemoData } from './demo';
@@ -20,6 +21,7 @@ export const COMMANDS = {
   stale: STALE_COMMAND,
   check: CHECK_TABLES_COMMAND,
   demo: 'knotwise.openDemoData',
+  compare: COMPARE_RECORDS_COMMAND,
 } as const;
 
 const store = new DisposableStore();
@@ -57,6 +59,15 @@ export function activate(context: vscode.ExtensionContext): KnotwiseApi {
   // The report's channel is made at the first check, so the output list shows it only after one.
   let checkOutput: vscode.OutputChannel | undefined;
   store.add(vscode.commands.registerCommand(COMMANDS.check, () => checkCurveTables(controller.records, (checkOutput ??= store.add(vscode.window.createOutputChannel(CHECK_CHANNEL_NAME))))));
+  store.add(
+    vscode.commands.registerCommand(COMMANDS.compare, (arg?: unknown, earlier?: unknown) =>
+      compareFitRecords(
+        (checkOutput ??= store.add(vscode.window.createOutputChannel(CHECK_CHANNEL_NAME))),
+        arg instanceof vscode.Uri ? arg : undefined,
+        earlier instanceof vscode.Uri ? earlier : undefined,
+      ),
+    ),
+  );
   store.add(vscode.commands.registerCommand(COMMANDS.demo, () => openDemoData(context.extensionUri)));
   context.subscriptions.push(store);
   return controller.api();

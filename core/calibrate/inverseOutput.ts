@@ -8,7 +8,7 @@ import { resolveGrid, type ResolvedGrid } from '../table/autoStep';
 import { checkInRange, formatGrid, gridPoints, type GridSpec } from '../table/grid';
 import type { Curve, FitResult } from '../types';
 import { sig } from '../words/numbers';
-import { inverseTable, inverseValue, readingRange, type InverseTable } from './inverse';
+import { inverseOf, inverseTable, readingRange, type InverseTable } from './inverse';
 import { INVERSE_DEFAULT_POINTS, type InverseSpec } from './spec';
 
 /** The inverse table built for a fit, with what the record keeps of it. */
@@ -44,12 +44,13 @@ export interface InverseSummary {
 
 /** A Curve-shaped view of the inverse (reading to quantity) for the automatic step; it has no variance. */
 function inverseCurve(fit: FitResult, range: readonly [number, number]): Curve {
+  const inverse = inverseOf(fit);
   return {
     kind: fit.kind,
     df: fit.df,
     lower: range[0],
     upper: range[1],
-    value: (r: number) => inverseValue(fit, r),
+    value: (r: number) => inverse.quantity(r),
     varianceFactor: () => NaN,
   };
 }

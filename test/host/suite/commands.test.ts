@@ -10,7 +10,7 @@
  */
 import assert from 'node:assert/strict';
 import { execFileSync } from 'node:child_process';
-import { copyFileSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as vscode from 'vscode';
@@ -92,8 +92,12 @@ function cliOutputs(name: string, args: readonly string[]): { table: string; rec
   const out = mkdtempSync(join(tmpdir(), 'knotwise-cli-'));
   try {
     copyFileSync(file(name).fsPath, join(out, name));
-    execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'fit', join(out, name), ...args, '--save']);
     const stem = name.replace(/\.csv$/, '');
+    // A record keeps the curve of the record it replaces (its baseline): the command line
+    // replaces the same record as the editor did, the one now beside the data.
+    const record = file(`${stem}.fit.json`).fsPath;
+    if (existsSync(record)) copyFileSync(record, join(out, `${stem}.fit.json`));
+    execFileSync(process.execPath, [join(extensionPath(), 'dist', 'cli.js'), 'fit', join(out, name), ...args, '--save']);
     return { table: readFileSync(join(out, `${stem}.curve.csv`), 'utf8'), record: readFileSync(join(out, `${stem}.fit.json`), 'utf8') };
   } finally {
     rmSync(out, { recursive: true, force: true });
@@ -130,6 +134,7 @@ describe('Knotwise commands in the extension host', function () {
     const contributed = (ext?.packageJSON.contributes.commands as { command: string }[]).map((c) => c.command);
     assert.deepEqual(contributed.sort(), [
       'knotwise.checkCurveTables',
+      'knotwise.compareFitRecords',
       'knotwise.forgetColumns',
       'knotwise.openDemoData',
       'knotwise.saveCurveTable',

@@ -52,7 +52,15 @@ describe('manifest (package.json, package.nls.json)', function () {
 
   it('the menus offer the file commands for .csv and .tsv in any letter case, and for nothing else', function () {
     const m = raw.contributes.menus;
-    const fileEntries = [...m['explorer/context'], ...m['editor/title'], ...m['editor/context']];
+    // Every entry but the one that compares fit records (checked below) acts on a data file.
+    const fileEntries = [...m['explorer/context'], ...m['editor/title'], ...m['editor/context']].filter((e) => e.command !== 'knotwise.compareFitRecords');
+    const compare = m['explorer/context'].filter((e) => e.command === 'knotwise.compareFitRecords');
+    assert.equal(compare.length, 1);
+    const recordName = /resourceFilename =~ \/((?:\\.|[^/])+)\/([a-z]*)/.exec(compare[0]?.when ?? '');
+    assert.ok(recordName, `the compare entry names fit records: ${compare[0]?.when}`);
+    const recordRe = new RegExp(recordName[1] ?? '', recordName[2]);
+    for (const n of ['cal.fit.json', 'Cal.FIT.JSON']) assert.ok(recordRe.test(n), `compare accepts ${n}`);
+    for (const n of ['cal.json', 'cal.csv', 'cal.fit.json.bak']) assert.ok(!recordRe.test(n), `compare refuses ${n}`);
     assert.ok(fileEntries.length >= 5);
     for (const entry of fileEntries) {
       const patterns = extnamePatterns(entry.when ?? '');

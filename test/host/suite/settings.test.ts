@@ -7,6 +7,7 @@
 import assert from 'node:assert/strict';
 import * as vscode from 'vscode';
 import { analysisOptions, DEFAULTS, modelOptions, readSettings } from '../../../extension/settings';
+import { DEFAULT_INVERSE } from '../../../core/calibrate/spec';
 
 describe('settings snapshot (readSettings)', function () {
   it('readSettings() with nothing set gives the command line defaults', function () {
@@ -118,6 +119,11 @@ describe('settings snapshot (readSettings)', function () {
       'knotwise.output.recordName': DEFAULTS.recordName,
       'knotwise.refit.onSave': DEFAULTS.refitOnSave,
       'knotwise.refit.askAboveRows': DEFAULTS.refitAskAboveRows,
+      'knotwise.inverse.write': false,
+      'knotwise.inverse.grid': '',
+      'knotwise.inverse.readingsAveraged': DEFAULT_INVERSE.readingsAveraged,
+      'knotwise.inverse.referenceUncertainty': DEFAULT_INVERSE.referenceUncertainty,
+      'knotwise.inverse.maxIntervalWidth': 0,
     };
     assert.deepEqual(Object.keys(props).sort(), Object.keys(expected).sort());
     for (const [k, v] of Object.entries(expected)) assert.deepEqual(props[k]?.default, v, k);
