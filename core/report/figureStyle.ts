@@ -24,6 +24,7 @@ export const REPORT_FIGURE_CSS = [
   '.kw-err-point{fill:#222222}',
   '.kw-err-point.kw-chosen{fill:#c05a00;stroke:#222222;stroke-width:1}',
   '.kw-threshold{stroke:#c05a00;stroke-dasharray:5 4;stroke-width:1.4;fill:none}',
+  '.kw-band-pi.kw-drift-recorded{fill:#c05a00;fill-opacity:0.15}',
   '.kw-stem{stroke:#777777;stroke-width:0.8}',
   '.kw-influential{fill:#b3261e;stroke:#b3261e;fill-opacity:1}',
 ].join('');

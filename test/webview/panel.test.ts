@@ -20,6 +20,10 @@ import type { PanelPayload } from '../../core/view/model';
 import { selectDf } from '../../core/tune/rules';
 import type { RuleSpec, Selection } from '../../core/tune/types';
 import { buildPanelPayload } from '../../core/view/payload';
+import { calibrationView } from '../../core/view/calibration';
+import { DEFAULT_INVERSE } from '../../core/calibrate/spec';
+import { curveSample } from '../../core/calibrate/drift';
+import { fitCurve } from '../../core/fit/index';
 import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 import { analysedFixture, mcycleFixture, type Fixture } from './fixture';
 import { openPanel, startPanelServer, type OpenOptions, type PanelPage, type PanelServer } from './harness';
@@ -736,7 +740,14 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await pp.send(file);
     await pp.send({ type: 'result', payload: mcycle.payload });
     const openFolds = (): Promise<string[]> => page.$$eval('details.kw-fold', (ds) => ds.filter((d) => (d as HTMLDetailsLike).open).map((d) => d.getAttribute('data-fold') ?? ''));
-    assert.deepEqual(await page.$$eval('details.kw-fold', (ds) => ds.map((d) => d.getAttribute('data-fold'))), ['residual-checks', 'influential-rows', 'candidates', 'model-report', 'notes']);
+    assert.deepEqual(await page.$$eval('details.kw-fold', (ds) => ds.map((d) => d.getAttribute('data-fold'))), [
+      'residual-checks',
+      'influential-rows',
+      'calibration',
+      'candidates',
+      'model-report',
+      'notes',
+    ]);
     assert.deepEqual(await openFolds(), []);
     assert.equal(await page.locator('#fig-qq').isVisible(), false, 'folded details are out of sight');
     // mcycle's checks flag problems: the answer says how many warnings, and its link opens the checks.
@@ -1073,6 +1084,47 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
       rule: { kind: 'pick', df: 6 },
       model: { outcome: 'continuous', shape: ['nonnegative'], robust: false },
     });
+    await page.close();
+  });
+
+  /** `fx` with the calibration section the host adds to the chosen df's details (core/view/calibration.ts). */
+  function withCalibrationOf(fx: Fixture, recorded: Parameters<typeof calibrationView>[3], saved: boolean): Fixture {
+    const detail = fx.payload.details[0];
+    assert.ok(detail);
+    const fit = fx.analysis.fits.get(detail.df);
+    assert.ok(fit);
+    const calibration = calibrationView(fit, DEFAULT_INVERSE, saved, recorded, { x: fx.payload.source.xLabel, y: fx.payload.source.yLabel });
+    return { ...fx, payload: { ...fx.payload, details: [{ ...detail, calibration }] } };
+  }
+
+  it('calibration use: a curve that turns has no inverse table, said where and in the editor words; no record yet says what the first save does', async function () {
+    const pp = await shown(withCalibrationOf(mcycle, 'none', false));
+    const page = pp.page;
+    await openFold(page, 'calibration');
+    const refused = (await page.textContent('#kw-inverse-refused')) ?? '';
+    assert.match(refused, /^No inverse table: the fitted curve turns at x = /);
+    assert.match(refused, /the setting knotwise\.shape/);
+    assert.doesNotMatch(refused, /--shape/);
+    assert.match((await page.textContent('#kw-drift-words')) ?? '', /first save writes the curve/);
+    assert.equal(await page.isChecked('#kw-inverse-save'), false);
+    await page.close();
+  });
+
+  it('calibration use (datasets::cars): the inverse table in words, the switch asks the host to save it, and the drift from the recorded curve with its figure', async function () {
+    const fx = await analysedFixture('cars.csv', 'speed', 'dist', { kind: 'natural-spline', candidates: [2, 3, 4], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1 });
+    // The recorded curve: the same data 10 ft lower (least squares is linear in y, so the new curve lies 10 ft above it everywhere).
+    const lower = fitCurve({ x: fx.data.x, y: Float64Array.from(fx.data.y, (v) => v - 10) }, { kind: 'natural-spline', df: fx.payload.details[0]?.df ?? 2 });
+    const pp = await shown(withCalibrationOf(fx, curveSample(lower), false));
+    const page = pp.page;
+    await openFold(page, 'calibration');
+    assert.match((await page.textContent('#kw-inverse-words')) ?? '', /^101 rows from reading .* \(the curve rises throughout the data range\)/);
+    assert.match((await page.textContent('#kw-drift-words')) ?? '', /^The new curve .*10 above the recorded curve/);
+    assert.equal(await page.locator('#kw-fig-drift-box svg[role="img"]').count(), 1);
+    await page.screenshot({ path: join(artifacts, 'webview-calibration.png'), fullPage: true });
+    const mark = pp.sent.length;
+    await page.click('#kw-inverse-save');
+    assert.deepEqual(await pp.waitForSent('inverseTable', mark), { type: 'inverseTable', save: true });
+    assert.deepEqual(await pp.cspViolations(), []);
     await page.close();
   });
 

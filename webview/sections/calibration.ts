@@ -32,8 +32,15 @@ export function calibrationSection(open: boolean, actions: PanelActions): Sectio
       if ('refused' in inv) replaceChildren(inverse, el('p', { class: 'kw-warning', id: 'kw-inverse-refused' }, `No inverse table: ${inv.refused}`));
       else replaceChildren(inverse, el('p', { id: 'kw-inverse-words' }, inv.words), el('p', { class: 'kw-muted' }, inv.method));
       if (cal.drift) {
-        const figure = el('figure', { class: 'kw-figure', id: 'kw-fig-drift-box' }, svgFromText(cal.drift.svg), el('figcaption', {}, 'The new curve over the recorded one, each with its 95 % band'));
-        replaceChildren(drift, el('p', { id: 'kw-drift-words' }, cal.drift.words), figure);
+        const words = el('p', { id: 'kw-drift-words' }, cal.drift.words);
+        let svg: SVGSVGElement | undefined;
+        try {
+          svg = svgFromText(cal.drift.svg);
+        } catch {
+          // The words stand without the figure.
+        }
+        const figure = svg ? el('figure', { class: 'kw-figure', id: 'kw-fig-drift-box' }, svg, el('figcaption', {}, 'The new curve over the recorded one, each with its 95 % band')) : undefined;
+        replaceChildren(drift, words, ...(figure ? [el('div', { class: 'kw-figures' }, figure)] : []));
       } else
         replaceChildren(drift, el('p', { class: 'kw-muted', id: 'kw-drift-words' }, cal.driftNote ?? 'No fit record of this data yet: the first save writes the curve later fits are compared with.'));
       f.note.textContent = [

@@ -39,6 +39,7 @@ export async function run(): Promise<void> {
   require('./records.test');
   require('./saveRecovery.test');
   require('./candidates.test');
+  require('./calibration.test');
   await new Promise<void>((resolve, reject) => {
     const runner = mocha.run((failures) => {
       const stats = runner.stats ?? { passes: 0, failures };
