@@ -1126,6 +1126,16 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     assert.deepEqual(await pp.waitForSent('inverseTable', mark), { type: 'inverseTable', save: true });
     assert.deepEqual(await pp.cspViolations(), []);
     await page.close();
+    // The section in the dark and high-contrast themes at half width: the words and the figure still fit.
+    for (const theme of ['dark', 'high-contrast'] as const) {
+      const themed = await shown(withCalibrationOf(fx, curveSample(lower), true), { theme, viewport: { width: 700, height: 900 } });
+      await openFold(themed.page, 'calibration');
+      assert.equal(await themed.page.isChecked('#kw-inverse-save'), true);
+      const figure = await themed.page.locator('#kw-fig-drift-box').boundingBox();
+      assert.ok(figure && figure.width <= 700, `the drift figure fits the half-width panel (${figure?.width})`);
+      await themed.page.locator('#kw-fold-calibration').screenshot({ path: join(artifacts, `webview-calibration-${theme}-700.png`) });
+      await themed.page.close();
+    }
   });
 
   it('no request left 127.0.0.1', function () {
