@@ -221,6 +221,18 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     assert.match((await panel.textContent('#kw-reason')) ?? '', /One-SE threshold/);
   });
 
+  it('Calibration use: the curve of MASS::mcycle turns, so there is no inverse table; the rerun lies on the curve just saved', async function () {
+    await panel.click('#kw-fold-calibration > summary');
+    await panel.locator('#kw-fold-calibration[open]').waitFor();
+    assert.match((await panel.textContent('#kw-inverse-refused')) ?? '', /^No inverse table: the fitted curve turns at x = .*the setting knotwise\.shape/);
+    // The same data and choice as the record saved above: difference 0 everywhere.
+    assert.match((await panel.textContent('#kw-drift-words')) ?? '', /stays within the recorded curve's 95 % band everywhere/);
+    await panel.locator('#kw-fold-calibration').scrollIntoViewIfNeeded();
+    await page.screenshot({ path: join(artifacts, 'editor-calibration.png') });
+    // Folded again, as the tests after this one expect the panel.
+    await panel.click('#kw-fold-calibration > summary');
+  });
+
   it('the panel follows a dark theme', async function () {
     await chooseTheme('Dark Modern', 'vs-dark');
     // Knotwise's own panel follows: its badge, explanation and curve take the dark theme's colours, which differ from the light ones.
