@@ -113,6 +113,40 @@ describe('calibration use on the command line', function () {
     assert.match(changed.stdout, /cars\.inverse\.csv differs from the rebuilt one/);
   });
 
+  it('an automatic step of the inverse table keeps straight lines between its rows within the tolerance (in x) of the exact inverse, found by bisection', async () => {
+    const run = await runMain(...fitArgs('--inverse-grid', 'auto:0.05', '--digits', '10').map((a) => (a === '2' ? '4' : a)), '--shape', 'increasing');
+    assert.equal(run.code, 0, run.stderr);
+    const rows = csvRows(readFileSync(join(dir, 'cars.inverse.csv'), 'utf8'));
+    const record = JSON.parse(readFileSync(join(dir, 'cars.fit.json'), 'utf8')) as { inverse: { interpolation: { tolerance: number; maxError: number } } };
+    assert.equal(record.inverse.interpolation.tolerance, 0.05);
+    assert.ok(rows.length > 2 && rows.length < 200, `${rows.length} rows`);
+    // The same fit, and its inverse by plain bisection on the curve (independent of the inverse code).
+    const table = csvRows(readFileSync(cars, 'utf8').replace(/^.*\n/, 'speed,dist\n'));
+    const fit = fitCurve({ x: Float64Array.from(table, (r) => r.speed as number), y: Float64Array.from(table, (r) => r.dist as number) }, { kind: 'natural-spline', df: 4, shape: ['increasing'] });
+    const invert = (y0: number): number => {
+      let lo = fit.curve.lower;
+      let hi = fit.curve.upper;
+      for (let k = 0; k < 200; k++) {
+        const mid = (lo + hi) / 2;
+        if (fit.curve.value(mid) < y0) lo = mid;
+        else hi = mid;
+      }
+      return (lo + hi) / 2;
+    };
+    let worst = 0;
+    for (let i = 0; i + 1 < rows.length; i++) {
+      const a = rows[i] as Record<string, number>;
+      const b = rows[i + 1] as Record<string, number>;
+      for (let k = 1; k < 20; k++) {
+        const r = (a.reading as number) + (((b.reading as number) - (a.reading as number)) * k) / 20;
+        const linear = (a.quantity as number) + (((b.quantity as number) - (a.quantity as number)) * k) / 20;
+        worst = Math.max(worst, Math.abs(linear - invert(r)));
+      }
+    }
+    assert.ok(worst <= 0.05, `largest gap ${worst}`);
+    assert.ok(worst > 0.005, `the step is not needlessly fine (largest gap ${worst})`);
+  });
+
   it('a curve that turns is refused, naming where it turns and the shape that makes it monotone', async () => {
     const mcycle = copyFixture('mcycle.csv', join(dir, 'mcycle.csv'));
     const run = await runMain('fit', mcycle, '--x', 'times', '--y', 'accel', '--df', '8', '--inverse', '--quiet');
