@@ -473,3 +473,23 @@ export function driftWords(d: Omit<Drift, 'words'>): string {
   }
   return text;
 }
+
+/** A number for JSON: null when not finite. */
+const jsonNumber = (v: number): number | null => (Number.isFinite(v) ? v : null);
+
+/**
+ * The drift as plain JSON (the record's `drift`, and `knotwise compare --json`'s with the
+ * interpolation bound added): non-finite numbers as null. Example: driftJson(d).words.
+ */
+export function driftJson(d: Drift): Record<string, unknown> {
+  return {
+    from: d.from,
+    to: d.to,
+    points: d.points,
+    largest: { x: d.largest.x, difference: jsonNumber(d.largest.difference) },
+    largestRelative: d.largestRelative ? { x: d.largestRelative.x, z: jsonNumber(d.largestRelative.z), difference: jsonNumber(d.largestRelative.difference) } : null,
+    withinRecordedBand: d.withinRecordedBand,
+    outside: d.outside.map((o) => ({ from: o.from, to: o.to })),
+    words: d.words,
+  };
+}

@@ -7,7 +7,7 @@
  * a record cannot be read.
  */
 import { readFileSync } from 'node:fs';
-import { driftBetweenSamples, type Drift } from '../calibrate/drift';
+import { driftBetweenSamples, driftJson, type Drift } from '../calibrate/drift';
 import { InputError } from '../errors';
 import { readRecordFile } from '../outputs/recordPlan';
 import { defineCommand, formatHelp, parseCommand } from './args';
@@ -42,24 +42,11 @@ function sampleOf(path: string): { sample: NonNullable<ReturnType<typeof recordS
 
 /** The JSON object `compare --json` prints. */
 export function compareJson(earlier: string, later: string, d: Drift | null): Record<string, unknown> {
-  const n = (v: number): number | null => (Number.isFinite(v) ? v : null);
   return {
     earlier,
     later,
     overlap: d !== null,
-    drift: d
-      ? {
-          from: d.from,
-          to: d.to,
-          points: d.points,
-          largest: { x: d.largest.x, difference: n(d.largest.difference) },
-          largestRelative: d.largestRelative ? { x: d.largestRelative.x, z: n(d.largestRelative.z), difference: n(d.largestRelative.difference) } : null,
-          withinRecordedBand: d.withinRecordedBand,
-          outside: d.outside,
-          interpolationBound: n(d.interpolationBound),
-          words: d.words,
-        }
-      : null,
+    drift: d ? { ...driftJson(d), interpolationBound: Number.isFinite(d.interpolationBound) ? d.interpolationBound : null } : null,
   };
 }
 

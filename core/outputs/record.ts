@@ -12,7 +12,7 @@ import { formatResampling } from '../registry/resampling/index';
 import { formatRule } from '../registry/rules/index';
 import type { InverseSpec } from '../calibrate/spec';
 import type { InverseSummary } from '../calibrate/inverseOutput';
-import { curveSample, type CurveSample, type Drift } from '../calibrate/drift';
+import { curveSample, driftJson, type CurveSample, type Drift } from '../calibrate/drift';
 import type { Baseline } from '../calibrate/baseline';
 
 /** spec.inverse: the inverse table as asked for, or null. */
@@ -28,21 +28,6 @@ function sampleOrNull(f: FitResult): CurveSample | null {
   } catch {
     return null;
   }
-}
-
-/** The record's `drift`: the numbers and the words, non-finite numbers as null. */
-function driftRecord(d: Drift | null): Record<string, unknown> | null {
-  if (!d) return null;
-  return {
-    from: d.from,
-    to: d.to,
-    points: d.points,
-    largest: { x: d.largest.x, difference: num(d.largest.difference) },
-    largestRelative: d.largestRelative ? { x: d.largestRelative.x, z: num(d.largestRelative.z), difference: num(d.largestRelative.difference) } : null,
-    withinRecordedBand: d.withinRecordedBand,
-    outside: d.outside.map((o) => ({ from: o.from, to: o.to })),
-    words: d.words,
-  };
 }
 
 /** Format name and version of the fit record (schema: schema/fit-record.schema.json). */
@@ -264,7 +249,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
     inverse: c?.inverse ? { file: c.inverse.file, sha256: c.inverse.sha256, ...finiteFields(c.inverse.summary) } : null,
     curveSample: c ? c.sample : sampleOrNull(f),
     baseline: c?.baseline ?? null,
-    drift: driftRecord(c?.drift ?? null),
+    drift: c?.drift ? driftJson(c.drift) : null,
     outputs: input.outputs ?? [],
     warnings: input.warnings ?? input.diagnostics.warnings,
     regenerate: fitCommand(plan, dataPath),

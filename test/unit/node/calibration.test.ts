@@ -42,6 +42,12 @@ function csvRows(text: string): Record<string, number>[] {
   return lines.map((l) => Object.fromEntries(l.split(',').map((v, i) => [names[i] as string, Number(v)])));
 }
 
+/** Adds `by` to every reading (the second column) of a CSV file, in place. */
+function shiftReadings(path: string, by: number): void {
+  const [head, ...lines] = readFileSync(path, 'utf8').trim().split('\n');
+  writeFileSync(path, [head, ...lines.map((l) => `${l.split(',')[0]},${Number(l.split(',')[1]) + by}`)].join('\n') + '\n');
+}
+
 describe('calibration use on the command line', function () {
   this.timeout(120_000);
   let dir: string;
@@ -166,17 +172,7 @@ describe('calibration use on the command line', function () {
     assert.equal((await runMain(...fitArgs())).code, 0);
     assert.equal(readFileSync(join(dir, 'cars.fit.json'), 'utf8'), firstText);
     // Every distance 5 ft longer: the straight line moves up by exactly 5 (least squares is linear in y).
-    const text = readFileSync(cars, 'utf8').split('\n');
-    writeFileSync(
-      cars,
-      [
-        text[0],
-        ...text
-          .slice(1)
-          .filter((l) => l !== '')
-          .map((l) => `${l.split(',')[0]},${Number(l.split(',')[1]) + 5}`),
-      ].join('\n') + '\n',
-    );
+    shiftReadings(cars, 5);
     const stale = await runCheckIn(dir);
     assert.equal(stale.code, 1);
     assert.match(stale.stdout, /the curve would move: The new curve /);
@@ -221,17 +217,7 @@ describe('calibration use on the command line', function () {
     const same = await runMain('compare', a, join(dir, 'cars.fit.json'));
     assert.equal(same.code, 0, same.stdout + same.stderr);
     assert.match(same.stdout, /stays within the recorded curve's 95 % band everywhere/);
-    const text = readFileSync(cars, 'utf8').split('\n');
-    writeFileSync(
-      cars,
-      [
-        text[0],
-        ...text
-          .slice(1)
-          .filter((l) => l !== '')
-          .map((l) => `${l.split(',')[0]},${Number(l.split(',')[1]) + 40}`),
-      ].join('\n') + '\n',
-    );
+    shiftReadings(cars, 40);
     assert.equal((await runMain(...fitArgs())).code, 0);
     const moved = await runMain('compare', a, join(dir, 'cars.fit.json'), '--json');
     assert.equal(moved.code, 1);
