@@ -196,6 +196,58 @@ async function recordScanTimings(): Promise<void> {
   }
 }
 
+/** Groups in the grouped-fit figure, and rows of each. */
+const GROUPS = 1000;
+const GROUP_ROWS = 1000;
+
+/**
+ * Invented readings of many devices (seed 13): device d's readings follow the benchmark's
+ * curve shifted by a device offset and scaled slightly, x in [0, 100), with uniform noise.
+ */
+function writeGroupCsv(path: string): void {
+  if (existsSync(path)) return;
+  const rng = new RandomStream(13, 0);
+  const parts: string[] = ['device,x,y\n'];
+  for (let d = 0; d < GROUPS; d++) {
+    const offset = (rng.int(1e6) / 1e6 - 0.5) * 2;
+    const scale = 1 + (rng.int(1e6) / 1e6 - 0.5) * 0.2;
+    for (let i = 0; i < GROUP_ROWS; i++) {
+      const xi = (rng.int(1e9) / 1e9) * 100;
+      const noise = (rng.int(1e6) / 1e6 - 0.5) * 0.6;
+      parts.push(`dev${String(d).padStart(4, '0')},${xi.toFixed(6)},${(scale * (Math.sin(xi / 12) * 3 + xi * 0.05) + offset + noise).toFixed(6)}\n`);
+    }
+  }
+  writeFileSync(path, parts.join(''));
+}
+
+/** The grouped fit as a whole process: 1,000 devices of 1,000 rows, each tuned over 10 candidates with 50 bootstrap resamples. */
+function groupTimings(): void {
+  const csv = join(dir, `groups-${GROUPS}x${GROUP_ROWS}.csv`);
+  writeGroupCsv(csv);
+  const out = join(dir, 'groups-out');
+  rmSync(out, { recursive: true, force: true });
+  mkdirSync(out, { recursive: true });
+  const r = medianRun(1, () =>
+    runCli(
+      join(__dirname, '..', 'dist', 'cli.js'),
+      ['fit', csv, '--x', 'x', '--y', 'y', '--per', 'device', '--df', CANDIDATES, '--resampling', 'bootstrap:50', '--seed', '1', '--out', out, '--quiet'],
+      out,
+    ),
+  );
+  log(
+    `| ${GROUPS} groups of ${GROUP_ROWS} rows (\`--per device\`, 10 candidates, bootstrap:50 each; a table per group, the summary and the group record; target 10 s) | ${r.seconds.toFixed(2)} s, peak ${r.peakMiB.toFixed(0)} MiB |`,
+  );
+  const shared = medianRun(1, () =>
+    runCli(
+      join(__dirname, '..', 'dist', 'cli.js'),
+      ['fit', csv, '--x', 'x', '--y', 'y', '--per', 'device', '--df', CANDIDATES, '--resampling', 'bootstrap:50', '--seed', '1', '--shared-df', '--long-table', '--out', out, '--quiet'],
+      out,
+    ),
+  );
+  log(`| the same with \`--shared-df --long-table\` (pooled error, one long table, the one-curve test) | ${shared.seconds.toFixed(2)} s, peak ${shared.peakMiB.toFixed(0)} MiB |`);
+  rmSync(out, { recursive: true, force: true });
+}
+
 /** The command the targets name: 10 natural-spline candidates, default table and record, no --json. */
 const CANDIDATES = '2,3,4,5,6,7,8,10,12,15';
 const cliPath = join(__dirname, 'cli.js');
@@ -431,6 +483,14 @@ async function main(): Promise<void> {
     const counts = prepareData({ x: data.x, y: poissonCounts(data.x) });
     await timeMedian('Poisson natural spline df 10 (IRLS), full output', () => fitCurve(counts, { kind: 'natural-spline', df: 10, outcome: 'counts' }));
     await timeMedian('increasing natural spline df 10 (constrained least squares, NNLS), full output', () => fitCurve(prepared, { kind: 'natural-spline', df: 10, shape: ['increasing'] }));
+    log('');
+  }
+  if (only('groups')) {
+    log('## Many devices in one file (whole processes)');
+    log('');
+    log('| run | time, peak memory |');
+    log('| --- | --- |');
+    groupTimings();
     log('');
   }
   if (only('r')) sideBySide();

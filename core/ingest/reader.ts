@@ -88,7 +88,7 @@ export function createCsvReader(options: CsvReaderOptions = {}): CsvReader {
     const length = sampleLength(text);
     const sampleComplete = complete && text.length <= length;
     const detection = detectFormat(sampleComplete ? text : text.slice(0, length), sampleComplete, options);
-    builder = new TableBuilder({ ...detection, bom }, file, blankLines);
+    builder = new TableBuilder({ ...detection, bom }, file, blankLines, options.keepText);
     tokenizer = new CsvTokenizer(detection.delimiter, builder, blankLines + 1);
     tokenizer.push(text);
   }

@@ -13,6 +13,16 @@ import { codePoint, escapeHidden, shorten } from './text';
 import type { RecordSink } from './tokenizer';
 import type { CellProblems, ColumnInfo, CsvFormat, ParsedTable, TableProblem } from './types';
 
+/** The index of the column `name` names among `names` (label, then header text, then either ignoring case), or -1. */
+function keptColumn(names: readonly { readonly label: string; readonly header: string }[], name: string): number {
+  const exact = names.findIndex((c) => c.label === name);
+  if (exact >= 0) return exact;
+  const header = names.findIndex((c) => c.header !== '' && c.header === name);
+  if (header >= 0) return header;
+  const lower = name.toLowerCase();
+  return names.findIndex((c) => c.label.toLowerCase() === lower || (c.header !== '' && c.header.toLowerCase() === lower));
+}
+
 /** Invalid cells per column whose reason quotes the cell text; later ones get a short reason. */
 export const QUOTED_REASONS_PER_COLUMN = 1000;
 /** Rows of the first allocation of every column, when the table is narrow. */
@@ -115,11 +125,20 @@ export class TableBuilder implements RecordSink {
   private readonly tabs: boolean;
   /** Line where the next record starts (known once the previous one ended). */
   private nextLine: number;
+  /** The column whose cell texts are kept (keepText), once the header named it; -1: none. */
+  private textColumn = -1;
+  /** Code of each row's kept text (-1: an empty cell), and the texts by code. */
+  private textCodes = new Int32Array(0);
+  private readonly textNames: string[] = [];
+  private readonly textIndex = new Map<string, number>();
+  private recText = -1;
 
   constructor(
     private readonly format: BuilderFormat,
     private readonly file?: string,
     skippedBlankLines = 0,
+    /** A column (label or header text, as column choices name them) whose cell texts are kept, e.g. a device name. */
+    private readonly keepText?: string,
   ) {
     this.headerPending = format.header;
     this.blankLines = skippedBlankLines;
@@ -153,6 +172,8 @@ export class TableBuilder implements RecordSink {
     this.numericCounts = new Float64Array(count);
     this.missingCounts = new Float64Array(count);
     this.invalid = Array.from({ length: count }, () => new ProblemList());
+    this.textCodes = new Int32Array(this.capacity);
+    if (this.keepText !== undefined) this.textColumn = keptColumn(columnNames(this.format.header ? this.headerTexts : undefined, count), this.keepText);
   }
 
   field(s: string, start: number, end: number): void {
@@ -168,6 +189,7 @@ export class TableBuilder implements RecordSink {
       if (this.recBlank && !blankRange(s, start, end)) this.recBlank = false;
       return;
     }
+    if (k === this.textColumn) this.recText = this.textCode(s.slice(start, end).trim());
     const parser = this.parsers[k] as CellParser;
     this.recValues[k] = parser.parse(s, start, end);
     const kind = parser.kind;
@@ -208,6 +230,8 @@ export class TableBuilder implements RecordSink {
     if (this.rowCount === this.capacity) this.grow(line);
     const row = this.rowCount++;
     this.lines[row] = line;
+    this.textCodes[row] = this.recText;
+    this.recText = -1;
     const values = this.recValues;
     const kinds = this.recKinds;
     for (let k = 0; k < count; k++) {
@@ -275,6 +299,9 @@ export class TableBuilder implements RecordSink {
       const lines = new Int32Array(capacity);
       lines.set(this.lines);
       this.lines = lines;
+      const codes = new Int32Array(capacity);
+      codes.set(this.textCodes);
+      this.textCodes = codes;
     } catch (e) {
       if (isAllocationFailure(e)) throw outOfMemory(this.rowCount, 'reading', { file: this.file, line });
       throw e;
@@ -320,7 +347,20 @@ export class TableBuilder implements RecordSink {
       format: { delimiter: this.format.delimiter, decimalComma: this.format.decimalComma, header: this.format.header, bom: this.format.bom, lineEnding: this.format.lineEnding },
       problems: this.collectProblems(columns),
       blankLines: this.blankLines,
+      ...(this.textColumn >= 0 ? { text: { column: this.textColumn, codes: trimmed(this.textCodes, n), names: [...this.textNames] } } : {}),
     };
+  }
+
+  /** The code of a kept cell text (interned: one string per distinct text); -1 for an empty cell. */
+  private textCode(text: string): number {
+    if (text === '') return -1;
+    let code = this.textIndex.get(text);
+    if (code === undefined) {
+      code = this.textNames.length;
+      this.textNames.push(text);
+      this.textIndex.set(text, code);
+    }
+    return code;
   }
 
   /** Row problems, cell problems of numeric columns and one entry per text column, by line. */

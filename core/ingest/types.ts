@@ -86,6 +86,12 @@ export interface ParsedTable {
   readonly problems: readonly TableProblem[];
   /** Lines with no content or only spaces and tabs, which hold no data and are skipped. */
   readonly blankLines: number;
+  /**
+   * The cell texts of the column the reader was asked to keep (CsvReaderOptions.keepText),
+   * trimmed and interned: `codes[row]` indexes `names`, -1 for an empty cell. Absent when
+   * none was asked for or no column has that name.
+   */
+  readonly text?: { readonly column: number; readonly codes: Int32Array; readonly names: readonly string[] };
 }
 
 /** Options of the CSV reader; anything left out is detected from the first 64 KB. */
@@ -96,6 +102,8 @@ export interface CsvReaderOptions {
   readonly header?: boolean | undefined;
   /** Forces the decimal convention of every column. */
   readonly decimalComma?: boolean | undefined;
+  /** A column (label or header text) whose cell texts are kept as `ParsedTable.text`, e.g. the column naming each row's device. */
+  readonly keepText?: string | undefined;
 }
 
 /** Streaming reader: push text chunks in order, then finish. */

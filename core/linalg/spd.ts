@@ -19,7 +19,10 @@ export interface SpdFactor {
   readonly size: number;
   /** Inverse of the matrix, row-major size x size. */
   readonly inverse: Float64Array;
-  /** Estimated 2-norm condition number of the unit-diagonal-scaled matrix. */
+  /**
+   * Estimated 2-norm condition number of the unit-diagonal-scaled matrix; with `boundOnly`,
+   * an upper bound whenever that bound already passes the check.
+   */
   readonly condition: number;
   /** Solves A x = b. */
   solve(b: Float64Array): Float64Array;
@@ -36,9 +39,13 @@ export interface SpdFactor {
  * MAX_CONDITION (rank deficiency: the data cannot determine every coefficient); the reason
  * in the message comes from `explain` when given (a caller that knows the data says what
  * it lacks: too few rows for the df, weights too small, ...), else it describes the matrix.
+ * With `boundOnly` (the resampling hot path, which only needs the check), the product of the
+ * Frobenius norms of the scaled matrix and its inverse, an upper bound of the 2-norm
+ * condition number, is tried first: when it passes, the power iterations are skipped (the
+ * decision is the same, since the estimate lies below the bound); else they run as usual.
  * Cost O(p^3). Example: factorSpd(Float64Array.of(4, 2, 2, 3), 2, 'x').solve(Float64Array.of(2, 1)).
  */
-export function factorSpd(a: Float64Array, p: number, what: string, explain?: (failure: SpdFailure) => string): SpdFactor {
+export function factorSpd(a: Float64Array, p: number, what: string, explain?: (failure: SpdFailure) => string, boundOnly = false): SpdFactor {
   const fail = (failure: SpdFailure, plain: string): FitError => new FitError(`${what}: ${explain ? explain(failure) : plain}`);
   const scale = new Float64Array(p);
   for (let i = 0; i < p; i++) {
@@ -79,6 +86,9 @@ export function factorSpd(a: Float64Array, p: number, what: string, explain?: (f
     }
   }
   const inverse = new Float64Array(p * p);
+  // Squared Frobenius norms of the scaled matrix and of its inverse (for the bound).
+  let normA = 0;
+  let normInv = 0;
   for (let i = 0; i < p; i++) {
     for (let j = 0; j <= i; j++) {
       let s = 0;
@@ -86,9 +96,14 @@ export function factorSpd(a: Float64Array, p: number, what: string, explain?: (f
       const v = s * (scale[i] as number) * (scale[j] as number);
       inverse[i * p + j] = v;
       inverse[j * p + i] = v;
+      const aij = (a[i * p + j] as number) * (scale[i] as number) * (scale[j] as number);
+      const both = i === j ? 1 : 2;
+      normInv += both * s * s;
+      normA += both * aij * aij;
     }
   }
-  const condition = estimateCondition(l, linv, p);
+  const bound = Math.sqrt(normA * normInv);
+  const condition = boundOnly && bound < MAX_CONDITION ? bound : estimateCondition(l, linv, p);
   if (!(condition < MAX_CONDITION)) {
     throw fail({ kind: 'condition', index: -1, size: p, condition }, `the design is rank deficient (condition number ${condition.toExponential(2)}); the data cannot determine this many coefficients`);
   }

@@ -18,6 +18,8 @@ import { readRecordFile, type RecordFile } from '../outputs/recordPlan';
 import { VERSION } from '../version';
 import { driftFromRecord } from '../calibrate/drift';
 import { recordSample } from '../calibrate/baseline';
+import { isGroupRecord } from '../outputs/groupRecordPlan';
+import { checkGroupRecord } from './checkGroups';
 import { sha256 } from './outputs';
 import { portableRelative, runPipeline, type PipelineRun } from './pipeline';
 
@@ -61,6 +63,16 @@ export function findRecords(root: string): string[] {
   };
   walk(root);
   return out.sort();
+}
+
+/** The parsed JSON of a group record, or undefined for anything else (a fit record, or not JSON). */
+function groupRecordJson(bytes: Uint8Array): unknown {
+  try {
+    const json = JSON.parse(Buffer.from(bytes).toString('utf8')) as unknown;
+    return isGroupRecord(json) ? json : undefined;
+  } catch {
+    return undefined;
+  }
 }
 
 /** Short form of a SHA-256 for messages. */
@@ -143,6 +155,9 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
     const code = (e as NodeJS.ErrnoException).code;
     return failed([`${recordPath}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : errorText(e)}`]);
   }
+  // A group record (core/groups/deliver.ts) is checked by rebuilding the whole grouped fit.
+  const group = groupRecordJson(bytes);
+  if (group !== undefined) return checkGroupRecord(recordPath, bytes, group);
   let read: RecordFile;
   try {
     read = readRecordFile(bytes, recordPath);

@@ -30,6 +30,8 @@ import type { FitResult, ModelOptions } from '../types';
 import { VERSION } from '../version';
 import { DEFAULT_DIGITS } from '../table/formatCsv';
 import { inverseWords } from '../calibrate/inverseOutput';
+import type { GroupSpec } from '../groups/spec';
+import { runGroupFit } from './groupFit';
 import { checkInverse, CLI_INVERSE_NAMES, INVERSE_DEFAULT_POINTS, INVERSE_LIMITS, type InverseSpec } from '../calibrate/spec';
 import { curveKinds, DEFAULT_CURVE, parseCurve, resolveModel } from '../registry/curves/index';
 import { DEFAULT_OUTCOME, OUTCOME_LIST, outcomeKind, parseOutcome } from '../registry/outcomes/index';
@@ -87,9 +89,23 @@ function fitCommand() {
     operands: { min: 1, max: 1, name: 'data file', missing: 'no data file given: knotwise fit <file.csv> --x <column> --y <column> (or - for standard input)' },
     options: [
       { group: 'Data', name: 'x', value: 'column', help: 'the column of the input quantity, by header text or label', required: true },
-      { group: 'Data', name: 'y', value: 'column', help: 'the column of the readings, by header text or label', required: true },
+      { group: 'Data', name: 'y', value: 'column', help: 'the column of the readings, by header text or label (required unless --channels)' },
       { group: 'Data', name: 'weights', value: 'column', help: 'prior weights of the rows, positive', defaultText: 'every row weighs 1' },
       { group: 'Data', name: 'trials', value: 'column', help: 'with --outcome proportions: the number of trials of each row; --y then holds the successes' },
+      {
+        group: 'Groups',
+        name: 'per',
+        value: 'column',
+        help: 'split the rows by this column (a device, lot or channel name in each row) and tune and fit each group; rows with an empty group cell are rejected',
+      },
+      {
+        group: 'Groups',
+        name: 'channels',
+        value: 'list',
+        help: 'several reading columns against the same x (comma list), each tuned and fitted as a group of its own; replaces --y',
+      },
+      { group: 'Groups', name: 'shared-df', help: 'one df for all groups, chosen by the rule from their pooled resampled RMSE (resampling within each group); otherwise each group chooses its own' },
+      { group: 'Groups', name: 'long-table', help: 'write one table <name>.groups.curve.csv with a leading group column instead of a table per group' },
       {
         group: 'Curve',
         name: 'curve',
@@ -340,6 +356,8 @@ interface FitArgs {
   /** Folder to write into; undefined: write nothing. */
   readonly out?: string | undefined;
   readonly force: boolean;
+  /** --per or --channels: the rows split into groups. */
+  readonly groups?: GroupSpec | undefined;
 }
 
 /** Parses `knotwise fit`'s arguments; undefined when help was asked for (and printed). */
@@ -365,9 +383,12 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
         'data read from standard input (-) exist on no disk, so a table written from them could never be checked against them: add --print-only (or --json) to print the result without writing files',
       );
   }
+  const groups = parseGroupFlags(a, stdin);
+  if (!groups?.channels && a.text('y') === undefined) throw new InputError('--y is required: the column of the readings (or --channels for several)');
   checkDistinctColumns([
     ['--x', a.text('x')],
     ['--y', a.text('y')],
+    ['--per', a.text('per')],
     ['--weights', a.text('weights')],
     ['--trials', a.text('trials')],
   ]);
@@ -387,7 +408,8 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
     file,
     stdin,
     x: a.text('x') as string,
-    y: a.text('y') as string,
+    y: (groups?.channels?.[0] ?? a.text('y')) as string,
+    groups,
     weights: a.text('weights'),
     trials: a.text('trials'),
     json,
@@ -417,6 +439,26 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
       ...model,
     },
   };
+}
+
+/** --per, --channels, --shared-df and --long-table as a group spec; undefined without --per or --channels. */
+function parseGroupFlags(a: { flag(name: string): boolean; text(name: string): string | undefined; given(name: string): boolean }, stdin: boolean): GroupSpec | undefined {
+  const by = a.text('per');
+  const channelsText = a.text('channels');
+  if (by === undefined && channelsText === undefined) {
+    const stray = ['shared-df', 'long-table'].find((n) => a.given(n));
+    if (stray !== undefined) throw new InputError(`--${stray} needs groups: --per <column> or --channels <list>`);
+    return undefined;
+  }
+  if (by !== undefined && channelsText !== undefined) throw new InputError('--per splits by a column and --channels by reading columns; give one of them');
+  if (channelsText !== undefined && a.given('y')) throw new InputError('--channels names the reading columns; drop --y');
+  if (stdin) throw new InputError('groups read their file twice over; give the data file instead of standard input (-)');
+  for (const n of ['emit', 'report', 'inverse', 'inverse-grid', 'holdout', 'trials']) {
+    if (a.given(n)) throw new InputError(`--${n} is not available with groups yet; fit a group's rows on their own for it`);
+  }
+  const channels = channelsText?.split(',').map((c) => c.trim());
+  if (channels && (channels.length < 2 || channels.some((c) => c === ''))) throw new InputError(`--channels needs at least 2 column names separated by commas; got "${channelsText}"`);
+  return { by, channels, sharedDf: a.flag('shared-df'), longTable: a.flag('long-table') };
 }
 
 /** --inverse and its options as an inverse spec; undefined when none of them was given. */
@@ -544,6 +586,7 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     output: args.output,
     ...(args.trials !== undefined ? { trials: args.trials } : {}),
   };
+  if (args.groups) return runGroupFit({ ...plan, tune: true, groups: args.groups }, { file: args.file, out: args.out, force: args.force, json: args.json, quiet: args.quiet }, env);
   const dataName = args.stdin ? STDIN_NAME : args.file;
   // Progress on a terminal by itself (unless --quiet), elsewhere only when asked for.
   const showProgress = args.progress || (env.progressStream.isTTY === true && !args.quiet);
@@ -809,6 +852,12 @@ export async function main(argv: readonly string[], env: Partial<CliEnv> = {}): 
 }
 
 if (require.main === module) {
+  // A reader that stops early (`knotwise check | head`) closes the pipe: stop quietly, as
+  // command-line tools do, instead of dying with a stack trace.
+  process.stdout.on('error', (err: NodeJS.ErrnoException) => {
+    if (err.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    throw err;
+  });
   void main(process.argv.slice(2)).then((code) => {
     process.exitCode = code;
   });

@@ -112,3 +112,93 @@ export function startWorkersEarly(count = availableParallelism()): void {
     started.push(w);
   }
 }
+
+/** A resample runner whose workers stay up between runs, and that ends them when closed. */
+export interface StandingRunner extends ResampleRunner {
+  close(): void;
+}
+
+/**
+ * A runner for many small problems (the groups of a grouped fit): `threads` workers started
+ * once and kept, each run given whole to the next free worker (the runs of several groups
+ * then proceed side by side while the main thread fits and checks other groups). Results
+ * are those of the inline runner (each resample depends only on seed and index). Every run
+ * goes to a worker, in the order asked; a cancelled or failed run's worker is replaced.
+ * close() ends the workers; runs after it throw.
+ * Example: const r = poolRunner(); try { await analyseGroups(groups, opts, false, r); } finally { r.close(); }
+ */
+export function poolRunner(threads = availableParallelism()): StandingRunner {
+  const { file, execArgv } = workerScript();
+  const idle: Worker[] = [];
+  const all: Worker[] = [];
+  const waiting: ((w: Worker) => void)[] = [];
+  let closed = false;
+  for (let k = 0; k < Math.max(1, threads); k++) {
+    const w = takeStarted() ?? new Worker(file, { execArgv });
+    w.unref();
+    all.push(w);
+    idle.push(w);
+  }
+  const acquire = (): Promise<Worker> => {
+    const w = idle.pop();
+    return w ? Promise.resolve(w) : new Promise((resolve) => waiting.push(resolve));
+  };
+  const release = (w: Worker): void => {
+    const next = waiting.shift();
+    if (next) next(w);
+    else idle.push(w);
+  };
+  return {
+    async run(problem, count, progress) {
+      if (closed) throw new Error('poolRunner: run after close');
+      const worker = await acquire();
+      const results: Float64Array[] = new Array(count);
+      let done = 0;
+      try {
+        await new Promise<void>((resolve, reject) => {
+          const timer = setInterval(() => {
+            if (progress?.cancelled()) stop(new CancelledError());
+          }, CANCEL_POLL_MS);
+          const onMessage = (m: { type: string; r?: number; errors?: Float64Array; message?: string }): void => {
+            if (m.type === 'resample') {
+              results[m.r as number] = m.errors as Float64Array;
+              done++;
+              progress?.report(done, count, `resample ${done} of ${count}`);
+            } else if (m.type === 'done') stop();
+            else if (m.type === 'error') {
+              const text = m.message ?? '';
+              stop(isAllocationFailure(new RangeError(text)) ? new RangeError(text) : new Error(`resampling worker failed: ${text}`));
+            }
+          };
+          const onError = (e: Error): void => stop(e);
+          function stop(err?: Error): void {
+            clearInterval(timer);
+            worker.off('message', onMessage);
+            worker.off('error', onError);
+            if (err) reject(err);
+            else resolve();
+          }
+          worker.ref();
+          worker.on('message', onMessage);
+          worker.on('error', onError);
+          worker.postMessage({ problem, indices: Array.from({ length: count }, (_, r) => r) });
+        });
+      } catch (e) {
+        // A cancelled or failed job leaves the worker busy or broken: end it and start a fresh one.
+        void worker.terminate();
+        const fresh = new Worker(file, { execArgv });
+        fresh.unref();
+        all[all.indexOf(worker)] = fresh;
+        release(fresh);
+        throw e;
+      }
+      worker.unref();
+      release(worker);
+      return results;
+    },
+    close() {
+      closed = true;
+      for (const w of all) void w.terminate();
+    },
+  };
+}

@@ -4,7 +4,7 @@
  * job is the worker's start data, or its first message when it was started ahead of it.
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../tune/engine';
+import { ResampleEngine, type ResampleProblem } from '../tune/engine';
 
 interface Job {
   readonly problem: ResampleProblem;
@@ -15,7 +15,7 @@ function work(job: Job): void {
   try {
     const engine = new ResampleEngine(job.problem);
     for (const r of job.indices) {
-      const errors = new Float64Array(engine.size * ERRORS_PER_CANDIDATE);
+      const errors = new Float64Array(engine.outputLength);
       engine.run(r, errors);
       parentPort?.postMessage({ type: 'resample', r, errors }, [errors.buffer]);
     }
@@ -25,6 +25,7 @@ function work(job: Job): void {
   }
 }
 
-// The job comes with the worker's start, or later as its first message (a worker started early).
+// The job comes with the worker's start, or later as messages: a worker started early takes
+// its first job that way, and a worker of a standing pool (poolRunner) takes one job after another.
 if (workerData) work(workerData as Job);
-else parentPort?.once('message', (job: Job) => work(job));
+else parentPort?.on('message', (job: Job) => work(job));

@@ -5,6 +5,7 @@
  * workspace.fs) apply the same rule to the bytes they read.
  */
 import { RECORD_FORMAT } from './record';
+import { GROUP_RECORD_FORMAT } from '../groups/spec';
 
 /** The files a fit record lists with their SHA-256: the table and every other output, by file name. */
 export function recordedFiles(record: unknown): Map<string, string> {
@@ -47,6 +48,7 @@ export function writtenByKnotwise(target: TargetFile, recordText: string | undef
   } catch {
     return false;
   }
-  if ((rec as { format?: unknown } | null)?.format !== RECORD_FORMAT) return false;
+  const format = (rec as { format?: unknown } | null)?.format;
+  if (format !== RECORD_FORMAT && format !== GROUP_RECORD_FORMAT) return false;
   return target.isRecord || recordedFiles(rec).get(target.name) === target.sha256;
 }

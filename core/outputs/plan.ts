@@ -13,6 +13,7 @@ import { formatGrid, type GridSpec } from '../table/grid';
 import { formatResampling } from '../registry/resampling/index';
 import { formatRule } from '../registry/rules/index';
 import { inverseWords, type InverseSpec } from '../calibrate/spec';
+import { groupWords, type GroupSpec } from '../groups/spec';
 
 /** What to write besides the fit: table grid and format, safety flags, emitters, report. */
 export interface OutputOptions {
@@ -42,6 +43,8 @@ export interface FitPlan {
   readonly output: OutputOptions;
   /** Binomial outcome: the column holding each row's number of trials (y holds the successes). */
   readonly trials?: string | undefined;
+  /** Rows split into groups (by a column, or several reading columns), each tuned and fitted (core/groups/). */
+  readonly groups?: GroupSpec | undefined;
 }
 
 /**
@@ -55,7 +58,7 @@ export function fitCommand(plan: FitPlan, dataPath: string): string {
   const o = plan.options;
   // A relative path that starts with '-' would read as an option: `./` keeps it a file.
   const file = dataPath.startsWith('-') ? `./${dataPath}` : dataPath;
-  const w: string[] = ['knotwise', 'fit', shellWord(file), '--x', shellWord(plan.columns.x), '--y', shellWord(plan.columns.y)];
+  const w: string[] = ['knotwise', 'fit', shellWord(file), '--x', shellWord(plan.columns.x), ...(plan.groups?.channels ? [] : ['--y', shellWord(plan.columns.y)])];
   if (plan.columns.weights !== undefined) w.push('--weights', shellWord(plan.columns.weights));
   w.push('--curve', o.kind);
   // Outcome, trials, shapes, robust fitting (core/fit/model.ts).
@@ -80,6 +83,7 @@ export function fitCommand(plan: FitPlan, dataPath: string): string {
   if (out.emit.length) w.push('--emit', out.emit.join(','));
   if (out.report) w.push('--report');
   if (out.inverse !== undefined) w.push(...inverseWords(out.inverse, shellWord));
+  if (plan.groups !== undefined) w.push(...groupWords(plan.groups, shellWord));
   w.push('--out', '.');
   return w.join(' ');
 }

@@ -38,7 +38,7 @@ export interface RecordedRun {
 type Json = Record<string, unknown>;
 
 /** Reads typed fields of one record, naming the key at fault. */
-class Fields {
+export class Fields {
   constructor(private readonly where: string) {}
   fail(key: string, what: string): never {
     throw new InputError(`fit record: "${key}" ${what}`, { file: this.where });
@@ -81,7 +81,7 @@ class Fields {
 }
 
 /** A grid object as the record stores it, checked through its text form. */
-function gridOf(v: unknown, f: Fields, path = 'spec.grid'): GridSpec {
+export function gridOf(v: unknown, f: Fields, path = 'spec.grid'): GridSpec {
   if (v === null || typeof v !== 'object') f.fail(path, 'must be an object');
   const g = v as Json;
   const numbers = (keys: string[]): void => {
@@ -131,7 +131,7 @@ const RECORD_INVERSE_NAMES = {
 };
 
 /** spec.model (absent in records without model options): outcome, shapes, robust fitting, trials column. */
-function modelOf(v: unknown, f: Fields): { options: ModelOptions; trials?: string } {
+export function modelOf(v: unknown, f: Fields): { options: ModelOptions; trials?: string } {
   if (v === undefined || v === null) return { options: {} };
   if (typeof v !== 'object' || Array.isArray(v)) return f.fail('spec.model', 'must be an object');
   const m = v as Json;

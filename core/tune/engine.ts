@@ -131,9 +131,17 @@ export class ResampleEngine {
     return this.trainers.length;
   }
 
+  /** Length of run()'s output: ERRORS_PER_CANDIDATE values per candidate, then the weight of the rows scored. */
+  get outputLength(): number {
+    return this.trainers.length * ERRORS_PER_CANDIDATE + 1;
+  }
+
   /**
    * Errors of resample r for every candidate: out[k] RMSE, out[C + k] MAE, out[2C + k]
-   * maximum absolute error (NaN when candidate k is rank deficient in this resample).
+   * maximum absolute error (NaN when candidate k is rank deficient in this resample), and
+   * out[4C] the weight of the rows scored (their count without weights), when `out` has
+   * room for it (outputLength): RMSE^2 x that weight is the resample's squared-error sum,
+   * which pooled errors over groups add up.
    */
   run(r: number, out: Float64Array): void {
     const spec = this.problem.resample;
@@ -145,6 +153,7 @@ export class ResampleEngine {
     const C = this.trainers.length;
     let wTest = 0;
     for (let j = 0; j < nTest; j++) wTest += w ? (w[testIdx[j] as number] as number) : 1;
+    if (out.length > ERRORS_PER_CANDIDATE * this.trainers.length) out[ERRORS_PER_CANDIDATE * this.trainers.length] = wTest;
     const models = this.models;
     if (models) {
       // The natural-spline hot path: every candidate's fit from the training sums, its squared

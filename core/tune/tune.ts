@@ -46,7 +46,7 @@ export const inlineRunner: ResampleRunner = {
     const out: Float64Array[] = [];
     for (let r = 0; r < count; r++) {
       if (progress?.cancelled()) throw new CancelledError();
-      const e = new Float64Array(engine.size * ERRORS_PER_CANDIDATE);
+      const e = new Float64Array(engine.outputLength);
       engine.run(r, e);
       out.push(e);
       progress?.report(r + 1, count, `resample ${r + 1} of ${count}`);
@@ -114,6 +114,7 @@ export async function tuneCurve(
   const errors = new Map<number, CandidateResult['errors']>();
   const notes: string[] = [];
   const count = scheme.count(resample);
+  let scored: number[] | undefined;
   if (scheme.method === 'resamples' && fitted.length > 0) {
     const problem: ResampleProblem = {
       x: prepared.data.x,
@@ -129,6 +130,7 @@ export async function tuneCurve(
     };
     const perResample = await runner.run(problem, count, progress);
     const C = fitted.length;
+    scored = perResample.map((e) => (e.length > ERRORS_PER_CANDIDATE * C ? (e[ERRORS_PER_CANDIDATE * C] as number) : NaN));
     fitted.forEach((df, k) => {
       const pick = (offset: number): Float64Array => Float64Array.from(perResample, (e) => e[offset * C + k] as number);
       const rmse = summarise(pick(0));
@@ -153,7 +155,7 @@ export async function tuneCurve(
   });
   for (const df of skipped.keys()) fits.delete(df);
   const selected = selectDf(candidates, rule, metric);
-  return { result: { kind, resample, seed, metric, candidates, selected, notes }, fits };
+  return { result: { kind, resample, seed, metric, candidates, selected, notes, ...(scored ? { scored } : {}) }, fits };
 }
 
 function strip(s: ErrorSummary & { count: number }): ErrorSummary {

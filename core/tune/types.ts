@@ -101,6 +101,12 @@ export interface TuneResult {
   readonly selected: Selection;
   readonly holdout?: HoldoutReport;
   readonly notes: readonly string[];
+  /**
+   * Resampled tunings: the weight of the rows scored in each resample (their count without
+   * weights), aligned with each candidate's `errors.rmse.values`, so that RMSE^2 x scored is
+   * the resample's squared-error sum (pooled errors over groups, core/groups/).
+   */
+  readonly scored?: readonly number[];
 }
 
 /** Progress and cancellation, so a host can show a long run and stop it. */

@@ -124,7 +124,7 @@ export class SplineFromSums {
     const q = this.z.length / p;
     let theta: Float64Array;
     try {
-      const factor = factorSpd(congruence(g, this.z, p, q), q, this.label);
+      const factor = factorSpd(congruence(g, this.z, p, q), q, this.label, undefined, true);
       theta = times(this.z, factor.solve(transposeTimes(this.z, rhs, p, q)), p, q);
       this.theta = theta;
       this.inverse = factor.inverse;

@@ -1,0 +1,199 @@
+/**
+ * Everything a grouped fit writes, as text: one curve table per group (or one long table
+ * with a group column), the summary CSV of every group, and the group record that lists
+ * them with each group's rows, df, reason, curve and hashes. Pure; the command line writes
+ * the files and `knotwise check` rebuilds them to compare, both through this function.
+ */
+import type { Selection } from '../ingest/select';
+import type { RejectedRow } from '../ingest/select';
+import { CAUTION } from '../words/caution';
+import { printedValue } from '../emit/common';
+import { fitCommand, type FitPlan } from '../outputs/plan';
+import { resolveGrid } from '../table/autoStep';
+import { shapeTable } from '../table/columns';
+import { curveTable, type CurveTable } from '../table/curveTable';
+import { curveTableCsv, formatNumber } from '../table/formatCsv';
+import { checkInRange } from '../table/grid';
+import { VERSION } from '../version';
+import { formatResampling } from '../registry/resampling/index';
+import { formatRule } from '../registry/rules/index';
+import type { GroupAnalysis } from './analyse';
+import type { CommonCurveJson } from './commonJson';
+import type { GroupSpec } from './spec';
+
+export type { GroupSpec } from './spec';
+
+/** Format name and version of the group record. */
+import { GROUP_RECORD_FORMAT, GROUP_RECORD_VERSION } from './spec';
+
+export { GROUP_RECORD_FORMAT, GROUP_RECORD_VERSION };
+
+/** One file to write. */
+export interface GroupOutputFile {
+  readonly kind: 'table' | 'summary' | 'record';
+  readonly name: string;
+  readonly text: string;
+}
+
+/** What buildGroupDeliverables needs. */
+export interface GroupDeliverInput {
+  readonly plan: FitPlan & { readonly groups: GroupSpec };
+  readonly stem: string;
+  readonly dataFile: string;
+  readonly dataPath: string;
+  readonly dataSha256: string;
+  readonly rowsRead: number;
+  readonly labels: Selection['labels'];
+  readonly groupLabel?: string | undefined;
+  readonly rejected: readonly RejectedRow[];
+  readonly analysis: GroupAnalysis;
+  /** Does one curve serve all (core/groups/common.ts), as JSON with its words; null when not tested. */
+  readonly common: CommonCurveJson | null;
+  readonly sha256: (text: string) => string;
+}
+
+/** The outputs of a grouped fit. */
+export interface GroupDeliverables {
+  /** Tables first, then the summary, the record last. */
+  readonly files: readonly GroupOutputFile[];
+  readonly record: Record<string, unknown>;
+  readonly regenerate: string;
+}
+
+/** A group name as part of a file name: letters, digits, '.', '_' and '-' kept, runs of anything else as one '_'; unique within the run. */
+export function groupSlugs(names: readonly string[]): string[] {
+  const used = new Set<string>();
+  return names.map((name) => {
+    const base =
+      name
+        .replace(/[^A-Za-z0-9._-]+/g, '_')
+        .replace(/^[._]+|_+$/g, '')
+        .slice(0, 60) || 'group';
+    let slug = base;
+    for (let k = 2; used.has(slug.toLowerCase()); k++) slug = `${base}-${k}`;
+    used.add(slug.toLowerCase());
+    return slug;
+  });
+}
+
+/** A CSV field: quoted when it holds a comma, quote or line break (RFC 4180). */
+function csvField(text: string): string {
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+/**
+ * Builds every output of a grouped fit: each group's table on the plan's grid (the
+ * default: 101 points over the group's own data range), as a file per group
+ * `<stem>.<group>.curve.csv` or one `<stem>.groups.curve.csv` with a leading group column;
+ * the summary `<stem>.groups.csv` (group, rows, df, residual SD, resampled RMSE and its SE,
+ * table file); and the record `<stem>.groups.fit.json`. Same inputs, same bytes. Throws
+ * InputError for grid problems (a grid beyond a group's data range without extrapolation).
+ * Cost: O(groups x table rows).
+ */
+export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverables {
+  const { plan } = input;
+  const out = plan.output;
+  const round = (v: number): number => printedValue(v, out.digits);
+  const names = input.analysis.groups.map((g) => g.name);
+  const slugs = groupSlugs(names);
+  const tables: { name: string; slug: string; table: CurveTable }[] = input.analysis.groups.map((g, i) => {
+    const fit = g.analysis.chosen;
+    const sorted = Float64Array.from(g.analysis.data.x).sort();
+    const grid = resolveGrid(out.grid, sorted, fit.curve, round);
+    checkInRange(grid.points, fit.curve.lower, fit.curve.upper, out.extrapolate);
+    return { name: g.name, slug: slugs[i] as string, table: shapeTable(curveTable(fit, grid.points), out.columns, out.flagNegative).table };
+  });
+  const files: GroupOutputFile[] = [];
+  const tableFile = new Map<string, string>();
+  if (plan.groups.longTable) {
+    const columns = tables[0]?.table.columns ?? [];
+    const lines = [['group', ...columns].join(',')];
+    for (const t of tables) {
+      const body = curveTableCsv({ columns, rows: t.table.rows }, out.digits).split('\n').slice(1, -1);
+      for (const row of body) lines.push(`${csvField(t.name)},${row}`);
+    }
+    const name = `${input.stem}.groups.curve.csv`;
+    files.push({ kind: 'table', name, text: lines.join('\n') + '\n' });
+    for (const t of tables) tableFile.set(t.name, name);
+  } else {
+    for (const t of tables) {
+      const name = `${input.stem}.${t.slug}.curve.csv`;
+      files.push({ kind: 'table', name, text: curveTableCsv(t.table, out.digits) });
+      tableFile.set(t.name, name);
+    }
+  }
+  const num = (v: number | undefined): string => (v === undefined || !Number.isFinite(v) ? 'NaN' : formatNumber(v, out.digits));
+  const summaryLines = ['group,rows,df,residualSd,rmse,rmseSe,table'];
+  for (const g of input.analysis.groups) {
+    const a = g.analysis;
+    const e = a.tune.candidates.find((c) => c.df === a.chosen.df)?.errors.rmse;
+    summaryLines.push([csvField(g.name), String(a.n), formatNumber(a.chosen.df, 6), num(a.chosen.sigma), num(e?.mean), num(e?.se), csvField(tableFile.get(g.name) ?? '')].join(','));
+  }
+  const summaryName = `${input.stem}.groups.csv`;
+  files.push({ kind: 'summary', name: summaryName, text: summaryLines.join('\n') + '\n' });
+  const regenerate = fitCommand(plan, input.dataPath);
+  const o = plan.options;
+  const shared = input.analysis.shared;
+  const record = {
+    format: GROUP_RECORD_FORMAT,
+    version: GROUP_RECORD_VERSION,
+    tool: { name: 'knotwise', version: VERSION },
+    data: {
+      file: input.dataFile,
+      path: input.dataPath,
+      sha256: input.dataSha256,
+      columns: input.labels,
+      groupBy: input.groupLabel ?? null,
+      channels: plan.groups.channels ?? null,
+      rowsRead: input.rowsRead,
+      rejected: input.rejected.map((r) => ({ line: r.line, column: r.column, reason: r.reason })),
+    },
+    spec: {
+      curve: o.kind,
+      candidates: o.candidates ?? null,
+      resampling: formatResampling(o.resample),
+      seed: o.seed,
+      rule: formatRule(o.rule),
+      sharedDf: plan.groups.sharedDf,
+      longTable: plan.groups.longTable,
+      grid: out.grid ?? null,
+      digits: out.digits,
+      extrapolate: out.extrapolate,
+      columns: out.columns ?? null,
+      flagNegative: out.flagNegative,
+      model: { outcome: o.outcome ?? null, shape: o.shape ?? [], robust: o.robust === true ? true : o.robust ? { k: o.robust.k } : null },
+    },
+    shared: shared
+      ? {
+          df: shared.selection.df,
+          reason: shared.selection.reason,
+          candidates: shared.candidates.map((c) =>
+            c.skipped !== undefined ? { df: c.df, skipped: c.skipped } : { df: c.df, rmse: { mean: c.errors.rmse?.mean ?? null, se: c.errors.rmse?.se ?? null } },
+          ),
+        }
+      : null,
+    common: input.common,
+    groups: input.analysis.groups.map((g) => {
+      const a = g.analysis;
+      const f = a.chosen;
+      const finite = (v: number): number | null => (Number.isFinite(v) ? v : null);
+      return {
+        name: g.name,
+        rowsUsed: a.n,
+        df: f.df,
+        reason: a.tune.selected.reason,
+        residualSd: finite(f.sigma),
+        knots: Array.from(f.knots),
+        coefficients: Array.from(f.coefficients, finite),
+        range: [f.curve.lower, f.curve.upper],
+        table: tableFile.get(g.name) ?? null,
+        warnings: a.diagnostics.warnings,
+      };
+    }),
+    outputs: files.map((f) => ({ kind: f.kind, file: f.name, sha256: input.sha256(f.text) })),
+    regenerate,
+    caution: CAUTION,
+  };
+  files.push({ kind: 'record', name: `${input.stem}.groups.fit.json`, text: JSON.stringify(record, null, 2) + '\n' });
+  return { files, record, regenerate };
+}
