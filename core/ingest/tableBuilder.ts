@@ -131,7 +131,8 @@ export class TableBuilder implements RecordSink {
   private textCodes = new Int32Array(0);
   private readonly textNames: string[] = [];
   private readonly textIndex = new Map<string, number>();
-  private recText = -1;
+  /** The kept column's text in the current record (interned only when the record becomes a row). */
+  private recText = '';
 
   constructor(
     private readonly format: BuilderFormat,
@@ -189,7 +190,7 @@ export class TableBuilder implements RecordSink {
       if (this.recBlank && !blankRange(s, start, end)) this.recBlank = false;
       return;
     }
-    if (k === this.textColumn) this.recText = this.textCode(s.slice(start, end).trim());
+    if (k === this.textColumn) this.recText = s.slice(start, end).trim();
     const parser = this.parsers[k] as CellParser;
     this.recValues[k] = parser.parse(s, start, end);
     const kind = parser.kind;
@@ -222,6 +223,7 @@ export class TableBuilder implements RecordSink {
       return;
     }
     if (count !== this.expected || blank) {
+      this.recText = '';
       if (hadInvalid) this.recTexts.fill('');
       if (blank) this.blankLines++;
       else this.rowProblems.push({ line, reason: this.fieldCountReason(count, line, lastLine) });
@@ -230,8 +232,8 @@ export class TableBuilder implements RecordSink {
     if (this.rowCount === this.capacity) this.grow(line);
     const row = this.rowCount++;
     this.lines[row] = line;
-    this.textCodes[row] = this.recText;
-    this.recText = -1;
+    this.textCodes[row] = this.textColumn >= 0 ? this.textCode(this.recText) : -1;
+    this.recText = '';
     const values = this.recValues;
     const kinds = this.recKinds;
     for (let k = 0; k < count; k++) {

@@ -32,6 +32,8 @@ export interface OptionSpec<N extends string = string> {
   readonly defaultText?: string | undefined;
   /** The command refuses to run without it. */
   readonly required?: boolean | undefined;
+  /** A required option that another one replaces: not needed when that option (its name) is given. */
+  readonly requiredUnless?: N | undefined;
   /** Accepted values or forms, listed under the option in help. */
   readonly choices?: readonly Choice[] | undefined;
   /** Limits in words, e.g. `resamples 2 to 5000`. */
@@ -245,7 +247,7 @@ export function parseCommand<N extends string>(spec: CommandSpec<N>, argv: reado
     );
   }
   if (operands.length < min) throw new InputError(spec.operands.missing ?? `no ${name} given: knotwise ${spec.usage[0] as string}`);
-  const missing = spec.options.filter((o) => o.required && !values.has(o.name));
+  const missing = spec.options.filter((o) => o.required && !values.has(o.name) && !(o.requiredUnless !== undefined && values.has(o.requiredUnless)));
   if (missing.length) {
     throw new InputError(
       `${spec.name} needs ${spec.options
@@ -281,7 +283,7 @@ function wrap(text: string, indent: number, first = indent): string[] {
 
 /** How help states an option's default. */
 export function defaultWords(o: OptionSpec): string {
-  if (o.required) return 'required';
+  if (o.required) return o.requiredUnless !== undefined ? `required unless --${o.requiredUnless}` : 'required';
   if (o.default !== undefined) return `default ${o.default}`;
   if (o.defaultText !== undefined) return `default: ${o.defaultText}`;
   return o.value === undefined ? 'default off' : 'default none';

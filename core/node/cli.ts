@@ -89,7 +89,7 @@ function fitCommand() {
     operands: { min: 1, max: 1, name: 'data file', missing: 'no data file given: knotwise fit <file.csv> --x <column> --y <column> (or - for standard input)' },
     options: [
       { group: 'Data', name: 'x', value: 'column', help: 'the column of the input quantity, by header text or label', required: true },
-      { group: 'Data', name: 'y', value: 'column', help: 'the column of the readings, by header text or label (required unless --channels)' },
+      { group: 'Data', name: 'y', value: 'column', help: 'the column of the readings, by header text or label', required: true, requiredUnless: 'channels' },
       { group: 'Data', name: 'weights', value: 'column', help: 'prior weights of the rows, positive', defaultText: 'every row weighs 1' },
       { group: 'Data', name: 'trials', value: 'column', help: 'with --outcome proportions: the number of trials of each row; --y then holds the successes' },
       {
@@ -384,7 +384,6 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
       );
   }
   const groups = parseGroupFlags(a, stdin);
-  if (!groups?.channels && a.text('y') === undefined) throw new InputError('--y is required: the column of the readings (or --channels for several)');
   checkDistinctColumns([
     ['--x', a.text('x')],
     ['--y', a.text('y')],
