@@ -47,7 +47,6 @@ export class SplineFromSums {
   private readonly poly: Float64Array;
   private readonly g: Float64Array;
   private readonly rhs: Float64Array;
-  private readonly m = new Float64Array(16);
   /** Per-cell cubic of the last fit: fitPoly[c*4 + p]. */
   readonly fitPoly: Float64Array;
   /** B-spline coefficients of the last successful fit. */
@@ -95,7 +94,7 @@ export class SplineFromSums {
    * training rows cannot determine the coefficients (rank deficient in this resample).
    */
   fit(sums: Float64Array): boolean {
-    const { g, rhs, poly, first, m } = this;
+    const { g, rhs, poly, first } = this;
     const p = this.basis.size;
     g.fill(0);
     rhs.fill(0);
@@ -103,20 +102,35 @@ export class SplineFromSums {
       const o = c * SUMS_PER_CELL;
       const f = first[c] as number;
       const pc = c * 16;
+      // The cell's Gram block P H P' (H the Hankel matrix of the power sums S_0..S_6) and
+      // right-hand side P Y, written out: this loop runs for every candidate, cell and resample.
+      const s0 = sums[o] as number;
+      const s1 = sums[o + 1] as number;
+      const s2 = sums[o + 2] as number;
+      const s3 = sums[o + 3] as number;
+      const s4 = sums[o + 4] as number;
+      const s5 = sums[o + 5] as number;
+      const s6 = sums[o + 6] as number;
+      const y0 = sums[o + 7] as number;
+      const y1 = sums[o + 8] as number;
+      const y2 = sums[o + 9] as number;
+      const y3 = sums[o + 10] as number;
       for (let a = 0; a < 4; a++) {
-        let r = 0;
-        for (let q = 0; q < 4; q++) {
-          let s = 0;
-          for (let pw = 0; pw < 4; pw++) s += (poly[pc + a * 4 + pw] as number) * (sums[o + pw + q] as number);
-          m[a * 4 + q] = s;
-          r += (poly[pc + a * 4 + q] as number) * (sums[o + 7 + q] as number);
-        }
-        rhs[f + a] = (rhs[f + a] as number) + r;
+        const pa = pc + a * 4;
+        const a0 = poly[pa] as number;
+        const a1 = poly[pa + 1] as number;
+        const a2 = poly[pa + 2] as number;
+        const a3 = poly[pa + 3] as number;
+        // Row a of P H.
+        const m0 = a0 * s0 + a1 * s1 + a2 * s2 + a3 * s3;
+        const m1 = a0 * s1 + a1 * s2 + a2 * s3 + a3 * s4;
+        const m2 = a0 * s2 + a1 * s3 + a2 * s4 + a3 * s5;
+        const m3 = a0 * s3 + a1 * s4 + a2 * s5 + a3 * s6;
+        rhs[f + a] = (rhs[f + a] as number) + a0 * y0 + a1 * y1 + a2 * y2 + a3 * y3;
+        const row = (f + a) * p + f;
         for (let b = 0; b <= a; b++) {
-          let s = 0;
-          for (let q = 0; q < 4; q++) s += (poly[pc + b * 4 + q] as number) * (m[a * 4 + q] as number);
-          const idx = (f + a) * p + f + b;
-          g[idx] = (g[idx] as number) + s;
+          const pb = pc + b * 4;
+          g[row + b] = (g[row + b] as number) + (poly[pb] as number) * m0 + (poly[pb + 1] as number) * m1 + (poly[pb + 2] as number) * m2 + (poly[pb + 3] as number) * m3;
         }
       }
     }
