@@ -15,6 +15,7 @@ import { OUTCOME_LIST } from './registry/outcomes/index';
 import { MAX_TOLERANCE_PERCENT } from './registry/rules/index';
 import { parseDfList } from './tune/candidates';
 import type { RuleSpec } from './tune/types';
+import type { GroupsView } from './view/groups';
 import type { DataStateView, FitDetail, ModelChoice, PanelPayload } from './view/model';
 
 /** Messages from the host to the panel. */
@@ -34,7 +35,11 @@ export type HostMessage =
   /** Answer to `save` when nothing was written; the text says why. */
   | { readonly type: 'saveFailed'; readonly requestId: number; readonly message: string }
   /** Whether the data changed since run `runId` (sent after every result and on every change). */
-  | { readonly type: 'dataState'; readonly runId: number; readonly state: DataStateView };
+  | { readonly type: 'dataState'; readonly runId: number; readonly state: DataStateView }
+  /** A grouped run finished: the overview of every group (its `groupResult` follows). */
+  | { readonly type: 'groups'; readonly view: GroupsView }
+  /** The panel of group `group` (an index into the overview's groups) of the grouped run `setId`: replace everything shown below the overview. */
+  | { readonly type: 'groupResult'; readonly setId: number; readonly group: number; readonly payload: PanelPayload };
 
 /** Messages from the panel to the host. */
 export type PanelMessage =
@@ -59,7 +64,9 @@ export type PanelMessage =
   /** Run the analysis again with these candidate df, written as the command line's --df takes them (e.g. '2..20'); they override the settings for this file. */
   | { readonly type: 'candidates'; readonly runId: number; readonly candidates: string }
   /** Save the inverse table with the curve table from now on (true) or not (false): the host sets knotwise.inverse.write for the data's folder. */
-  | { readonly type: 'inverseTable'; readonly save: boolean };
+  | { readonly type: 'inverseTable'; readonly save: boolean }
+  /** Show group `group` (an index into the overview's groups) of the grouped run `setId`; the host answers with `groupResult`. */
+  | { readonly type: 'selectGroup'; readonly setId: number; readonly group: number };
 
 /** The panel's folding sections of details, by id, in the order the panel shows them. */
 export const FOLD_IDS = ['residual-checks', 'influential-rows', 'calibration', 'candidates', 'model-report', 'notes'] as const;
@@ -87,6 +94,8 @@ export interface PanelState {
   readonly candidates?: string;
   /** True when the person asked to see every listed influential row, not only the first ten. */
   readonly allInfluential?: boolean;
+  /** A grouped run: the name of the group shown (text from the CSV). */
+  readonly group?: string;
 }
 
 /** Compile-time exhaustiveness check for switches over message tags. */
@@ -98,6 +107,8 @@ export function unreachable(x: never): never {
 export const MAX_MESSAGE_TEXT = 65_536;
 /** Most files one `saved` answer lists (table, record, code files, report and its figures). */
 export const MAX_SAVED_FILES = 64;
+/** Most groups one grouped run may show. */
+export const MAX_GROUPS = 100_000;
 /** Deepest nesting of objects and arrays a payload or detail may have. */
 const MAX_DEPTH = 16;
 
@@ -122,6 +133,7 @@ const isFiniteNumber = (v: unknown): v is number => typeof v === 'number' && Num
 const isId = (v: unknown): v is number => Number.isSafeInteger(v) && (v as number) >= 0;
 const isPositive = (v: unknown): v is number => isFiniteNumber(v) && v > 0;
 const isText = (v: unknown): v is string => typeof v === 'string' && v.length <= MAX_MESSAGE_TEXT;
+const isGroupIndex = (v: unknown): v is number => isId(v) && v < MAX_GROUPS;
 
 /** Keys that could reach an object's prototype when copied carelessly. */
 const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor', 'prototype']);
@@ -218,6 +230,8 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
       return hasExactKeys(o, ['type', 'runId', 'candidates']) && isId(o.runId) && isCandidateText(o.candidates);
     case 'inverseTable':
       return hasExactKeys(o, ['type', 'save']) && typeof o.save === 'boolean';
+    case 'selectGroup':
+      return hasExactKeys(o, ['type', 'setId', 'group']) && isId(o.setId) && isGroupIndex(o.group);
     default:
       return false;
   }
@@ -231,7 +245,7 @@ export function isPanelState(s: unknown): s is PanelState {
   const o = plainObject(s);
   return (
     o !== undefined &&
-    hasExactKeys(o, ['file'], ['runId', 'rule', 'model', 'open', 'errorRange', 'candidates', 'allInfluential']) &&
+    hasExactKeys(o, ['file'], ['runId', 'rule', 'model', 'open', 'errorRange', 'candidates', 'allInfluential', 'group']) &&
     typeof o.file === 'string' &&
     o.file.length > 0 &&
     o.file.length <= MAX_URI_TEXT &&
@@ -241,7 +255,8 @@ export function isPanelState(s: unknown): s is PanelState {
     (o.open === undefined || isFoldList(o.open)) &&
     (o.errorRange === undefined || o.errorRange === 'decision' || o.errorRange === 'all') &&
     (o.candidates === undefined || isCandidateText(o.candidates)) &&
-    (o.allInfluential === undefined || typeof o.allInfluential === 'boolean')
+    (o.allInfluential === undefined || typeof o.allInfluential === 'boolean') &&
+    (o.group === undefined || (isText(o.group) && o.group.length > 0))
   );
 }
 
@@ -332,6 +347,45 @@ function isFitDetail(d: unknown): d is FitDetail {
   );
 }
 
+/** Numbers, null standing for a value without one (NaN after a JSON round trip). */
+const isNumberList = (v: unknown): v is readonly number[] => Array.isArray(v) && v.every((x) => typeof x === 'number' || x === null);
+
+/** True when `g` is one group of an overview: its fields with the right types (numbers may be NaN where a fit gives none). */
+function isGroupSummary(g: unknown): boolean {
+  const o = plainObject(g);
+  return (
+    o !== undefined &&
+    hasExactKeys(o, ['name', 'rows', 'df', 'sigma', 'lo', 'hi', 'curve', 'x', 'y', 'warnings']) &&
+    isText(o.name) &&
+    o.name.length > 0 &&
+    isId(o.rows) &&
+    isPositive(o.df) &&
+    (typeof o.sigma === 'number' || o.sigma === null) &&
+    isFiniteNumber(o.lo) &&
+    isFiniteNumber(o.hi) &&
+    o.lo <= o.hi &&
+    isNumberList(o.curve) &&
+    isNumberList(o.x) &&
+    isNumberList(o.y) &&
+    o.x.length === o.y.length &&
+    isId(o.warnings)
+  );
+}
+
+/** True when `v` is a GroupsView: exactly its fields, at least one and at most MAX_GROUPS groups, plain data throughout. */
+function isGroupsView(v: unknown): v is GroupsView {
+  const o = plainObject(v);
+  if (!o || !hasExactKeys(o, ['setId', 'fileName', 'groupLabel', 'xLabel', 'yLabel', 'rejected', 'groups'], ['shared', 'common'])) return false;
+  if (!isId(o.setId) || !isText(o.fileName) || !isText(o.groupLabel) || !isText(o.xLabel) || !isText(o.yLabel) || !isId(o.rejected)) return false;
+  if (!Array.isArray(o.groups) || o.groups.length === 0 || o.groups.length > MAX_GROUPS || !o.groups.every(isGroupSummary)) return false;
+  if (o.common !== undefined && !isText(o.common)) return false;
+  if (o.shared !== undefined) {
+    const sh = plainObject(o.shared);
+    if (!sh || !hasExactKeys(sh, ['df', 'reason']) || !isPositive(sh.df) || !isText(sh.reason)) return false;
+  }
+  return isPlainData(o);
+}
+
 /** True when `m` is a HostMessage (the panel checks everything it receives before showing it). */
 export function isHostMessage(m: unknown): m is HostMessage {
   const o = plainObject(m);
@@ -365,6 +419,10 @@ export function isHostMessage(m: unknown): m is HostMessage {
       );
     case 'saveFailed':
       return hasExactKeys(o, ['type', 'requestId', 'message']) && isId(o.requestId) && isText(o.message);
+    case 'groups':
+      return hasExactKeys(o, ['type', 'view']) && isGroupsView(o.view);
+    case 'groupResult':
+      return hasExactKeys(o, ['type', 'setId', 'group', 'payload']) && isId(o.setId) && isGroupIndex(o.group) && isPanelPayload(o.payload);
     default:
       return false;
   }

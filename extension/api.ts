@@ -8,12 +8,13 @@ import type { RuleSpec } from '../core/tune/types';
 import type { Outcome, Shape } from '../core/types';
 import type { HostMessage } from '../core/protocol';
 import type { DataStateView, PanelPayload } from '../core/view/model';
+import type { GroupsView } from '../core/view/groups';
 import type { ColumnChoice } from './columns';
 import type { OverwriteAnswer } from './save';
 
 /** Options of the tune command (for keybindings, other extensions and tests). */
 export interface TuneCommandOptions {
-  /** Columns to use without asking (`trials`: a binomial outcome's trials column). */
+  /** Columns to use without asking (`trials`: a binomial outcome's trials column; `per`: the column that splits the rows into groups, each tuned on its own). */
   readonly columns?: ColumnChoice;
 }
 
@@ -57,6 +58,10 @@ export interface RunSummary {
   readonly rejected?: number;
   readonly model?: ModelSummary;
   readonly message?: string;
+  /** A grouped run: every group in the file's order, with its chosen df and rows (chosenDf and candidates above are the group shown). */
+  readonly groups?: readonly { readonly name: string; readonly chosenDf: number; readonly rowsUsed: number }[];
+  /** A grouped run with one df for all groups: that df. */
+  readonly sharedDf?: number;
 }
 
 /** What a save command resolves to: the run's summary and the files written (URIs as text). */
@@ -64,8 +69,20 @@ export type SaveSummary = RunSummary & { readonly files?: readonly string[] };
 
 /** What the extension offers other extensions and its tests (the value `activate` returns). */
 export interface KnotwiseApi {
-  /** The panel of a file: its latest payload, how many results were posted to it, how many analyses ran, and whether its script has loaded. */
-  panelState(uri: vscode.Uri): { readonly payload: PanelPayload; readonly posted: number; readonly analysed: number; readonly ready: boolean } | undefined;
+  /**
+   * The panel of a file: its latest payload, how many results were posted to it, how many
+   * analyses ran, and whether its script has loaded; for a grouped run also the overview and
+   * the index of the group the payload shows.
+   */
+  panelState(uri: vscode.Uri):
+    | {
+        readonly payload: PanelPayload;
+        readonly posted: number;
+        readonly analysed: number;
+        readonly ready: boolean;
+        readonly groups?: { readonly view: GroupsView; readonly index: number };
+      }
+    | undefined;
   /** Whether the analysis a file's panel shows is of the data as it is now (as the panel is told). */
   dataState(uri: vscode.Uri): DataStateView | undefined;
   /** The latest messages posted to a file's open panel, oldest first (empty without one). */

@@ -1,8 +1,9 @@
 /**
  * Quick picks for the x, y and optional weight columns (for a binomial outcome: the
- * optional trials column instead of weights): numeric columns first, each with a preview
- * of its first values; the last choice per file is remembered in workspaceState and
- * offered first next time.
+ * optional trials column instead of weights), then, when other columns remain, the
+ * optional column to split the rows into groups by (extension/groupPick.ts): numeric
+ * columns first, each with a preview of its first values; the last choice per file is
+ * remembered in workspaceState and offered first next time.
  */
 import * as vscode from 'vscode';
 import type { ColumnInfo, ParsedTable } from '../core/ingest/types';
@@ -19,6 +20,12 @@ export interface ColumnChoice {
    * null when the person chose none, undefined when not asked yet.
    */
   readonly trials?: string | null | undefined;
+  /**
+   * The column whose cell texts name each row's group (the command line's --per): every
+   * group is tuned and fitted on its own. null when the person chose no groups, undefined
+   * when not asked yet.
+   */
+  readonly per?: string | null | undefined;
 }
 
 const MEMORY_KEY = 'knotwise.columns';
@@ -50,7 +57,7 @@ export class ColumnMemory {
 export function choiceFits(table: ParsedTable, choice: ColumnChoice): boolean {
   const labels = new Set(table.columns.map((c) => c.label));
   const optional = (c: string | null | undefined): boolean => c === undefined || c === null || labels.has(c);
-  return labels.has(choice.x) && labels.has(choice.y) && optional(choice.weights) && optional(choice.trials);
+  return labels.has(choice.x) && labels.has(choice.y) && optional(choice.weights) && optional(choice.trials) && optional(choice.per);
 }
 
 /** The first few values of a column as text. */
@@ -64,7 +71,8 @@ export function preview(table: ParsedTable, column: ColumnInfo): string {
   return out.join(', ') + (table.rowCount > PREVIEW_VALUES ? ', …' : '');
 }
 
-interface ColumnItem extends vscode.QuickPickItem {
+/** An entry of a column pick: a column, or the entry meaning none. */
+export interface ColumnItem extends vscode.QuickPickItem {
   readonly label: string;
   readonly column?: ColumnInfo;
 }
@@ -98,11 +106,12 @@ function items(table: ParsedTable, exclude: readonly string[], none: NoneItem | 
   return out;
 }
 
-async function pickOne(title: string, step: number, list: ColumnItem[], preferred: string | undefined, token: vscode.CancellationToken): Promise<ColumnItem | undefined> {
+/** One pick of the sequence (step `step` of `totalSteps`); undefined when dismissed. */
+export async function pickOne(title: string, step: number, list: ColumnItem[], preferred: string | undefined, token: vscode.CancellationToken, totalSteps = 3): Promise<ColumnItem | undefined> {
   const qp = vscode.window.createQuickPick<ColumnItem>();
   qp.title = title;
   qp.step = step;
-  qp.totalSteps = 3;
+  qp.totalSteps = totalSteps;
   qp.placeholder = 'Type to filter the columns; Enter to choose';
   qp.matchOnDescription = true;
   qp.items = list;
@@ -124,37 +133,54 @@ async function pickOne(title: string, step: number, list: ColumnItem[], preferre
 }
 
 /**
- * Asks for x, y and, as the third step, the weights, or for a binomial outcome
- * (`trials` true) the trials column; undefined when the person dismissed a pick. The
- * remembered choice of the step not asked is kept.
+ * The optional last pick: which remaining column splits the rows into groups (`exclude`:
+ * the columns already chosen); undefined when dismissed, null for no groups.
  */
-export async function pickColumns(table: ParsedTable, fileName: string, remembered: ColumnChoice | undefined, token: vscode.CancellationToken, trials = false): Promise<ColumnChoice | undefined> {
+export type GroupPick = (exclude: readonly string[], remembered: string | null | undefined, step: number, totalSteps: number) => Promise<string | null | undefined>;
+
+/**
+ * Asks for x, y and, as the third step, the weights, or for a binomial outcome
+ * (`trials` true) the trials column; then, when `group` is given and columns remain, the
+ * column to split the rows by. Undefined when the person dismissed a pick. The remembered
+ * choice of a step not asked is kept.
+ */
+export async function pickColumns(
+  table: ParsedTable,
+  fileName: string,
+  remembered: ColumnChoice | undefined,
+  token: vscode.CancellationToken,
+  trials = false,
+  group?: GroupPick,
+): Promise<ColumnChoice | undefined> {
   if (table.columns.length < 2) throw new Error(`${fileName} has ${table.columns.length} column; Knotwise needs at least two (x and y)`);
   const numeric = table.columns.filter((c) => c.numeric);
-  const x = await pickOne(`Knotwise: the x column of ${fileName} (what was set or measured as input)`, 1, items(table, [], undefined), remembered?.x ?? numeric[0]?.label, token);
+  // A fourth step only when a column may be left for it.
+  const steps = group && !trials && table.columns.length > 2 ? 4 : 3;
+  const pick = (title: string, step: number, list: ColumnItem[], preferred: string | undefined): Promise<ColumnItem | undefined> => pickOne(title, step, list, preferred, token, steps);
+  const x = await pick(`Knotwise: the x column of ${fileName} (what was set or measured as input)`, 1, items(table, [], undefined), remembered?.x ?? numeric[0]?.label);
   if (!x?.column) return undefined;
-  const y = await pickOne(
+  const y = await pick(
     `Knotwise: the y column of ${fileName} (the reading the curve describes)`,
     2,
     items(table, [x.label], undefined),
     remembered?.y ?? numeric.find((c) => c.label !== x.label)?.label,
-    token,
   );
   if (!y?.column) return undefined;
   if (trials) {
-    const t = await pickOne(
-      `Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`,
-      3,
-      items(table, [x.label, y.label], NO_TRIALS),
-      remembered?.trials ?? NO_TRIALS.label,
-      token,
-    );
+    const t = await pick(`Knotwise: number of trials for ${fileName} (optional; y then counts the successes)`, 3, items(table, [x.label, y.label], NO_TRIALS), remembered?.trials ?? NO_TRIALS.label);
     if (!t) return undefined;
-    return { x: x.label, y: y.label, weights: remembered?.weights, trials: t.column ? t.label : null };
+    return { x: x.label, y: y.label, weights: remembered?.weights, trials: t.column ? t.label : null, per: remembered?.per };
   }
-  const w = await pickOne(`Knotwise: weights for ${fileName} (optional)`, 3, items(table, [x.label, y.label], NO_WEIGHTS), remembered?.weights ?? NO_WEIGHTS.label, token);
+  const w = await pick(`Knotwise: weights for ${fileName} (optional)`, 3, items(table, [x.label, y.label], NO_WEIGHTS), remembered?.weights ?? NO_WEIGHTS.label);
   if (!w) return undefined;
-  return { x: x.label, y: y.label, weights: w.column ? w.label : undefined, trials: remembered?.trials };
+  const weights = w.column ? w.label : undefined;
+  const chosen = [x.label, y.label, ...(weights !== undefined ? [weights] : [])];
+  let per = remembered?.per;
+  if (group && table.columns.some((c) => !chosen.includes(c.label))) {
+    per = await group(chosen, remembered?.per, 4, steps);
+    if (per === undefined) return undefined;
+  } else if (group) per = null;
+  return { x: x.label, y: y.label, weights, trials: remembered?.trials, per };
 }
 
 /** Asks only for the trials column of a binomial outcome (x and y already chosen); undefined when dismissed. */

@@ -108,7 +108,9 @@ export class Controller implements vscode.Disposable {
     return {
       panelState: (uri) => {
         const s = find(uri);
-        return s?.payload ? { payload: s.payload, posted: s.posted, analysed: s.analysed, ready: s.panelReady } : undefined;
+        if (!s?.payload) return undefined;
+        const groups = s.groupsShown;
+        return { payload: s.payload, posted: s.posted, analysed: s.analysed, ready: s.panelReady, ...(groups ? { groups } : {}) };
       },
       dataState: (uri) => {
         const s = find(uri);
@@ -256,7 +258,9 @@ export class Controller implements vscode.Disposable {
       // A changed candidates setting replaces the candidates the panel set.
       if (JSON.stringify(old.candidates) !== JSON.stringify(now.candidates)) s.candidates = undefined;
       if (!s.result || !s.hasPanel) continue;
-      if (!sameAnalysis(s.result.options, s.analysisOptionsFor(now))) void s.tune({ background: true });
+      // A grouped run chose each group's df (or the shared one) by the rule: a new rule or a shared df chooses again.
+      const groupsChanged = s.result.groups !== undefined && (ruleChanged || old.groups.sharedDf !== now.groups.sharedDf);
+      if (!sameAnalysis(s.result.options, s.analysisOptionsFor(now)) || groupsChanged) void s.tune({ background: true });
       else if (ruleChanged) s.showResult(now.rule);
       else if (JSON.stringify([old.inverse, old.inverseOptions]) !== JSON.stringify([now.inverse, now.inverseOptions])) s.showResult();
       else if (refitChanged) s.postDataState();

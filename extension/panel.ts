@@ -2,7 +2,7 @@
  * One webview panel per CSV file: strict CSP with a fresh nonce per render, resources only
  * from dist/webview, messages checked against the protocol. Messages sent before the
  * panel's script is listening are kept (the latest of each kind) and sent on `ready`:
- * the file, the result, the data state and the status after it. A panel restored after a
+ * the file, a grouped run's overview, the result, the data state and the status after it. A panel restored after a
  * window reload is adopted rather than created.
  */
 import { randomBytes } from 'node:crypto';
@@ -24,6 +24,8 @@ export class PanelView implements vscode.Disposable {
   /** The file, the latest result, its data state and the latest status after it, re-sent when the webview (re)loads. */
   private lastFile: HostMessage | undefined;
   private lastResult: HostMessage | undefined;
+  /** The overview of a grouped run, re-sent before its group's result. */
+  private lastGroups: HostMessage | undefined;
   private lastDataState: HostMessage | undefined;
   private lastStatus: HostMessage | undefined;
   /** The latest messages posted, oldest first. */
@@ -61,7 +63,7 @@ export class PanelView implements vscode.Disposable {
         if (!isPanelMessage(m)) return;
         if (m.type === 'ready') {
           this.ready = true;
-          for (const kept of [this.lastFile, this.lastResult, this.lastDataState, this.lastStatus]) if (kept) void webview.postMessage(kept);
+          for (const kept of [this.lastFile, this.lastGroups, this.lastResult, this.lastDataState, this.lastStatus]) if (kept) void webview.postMessage(kept);
         }
         this.onMessage(m);
       }),
@@ -103,9 +105,14 @@ export class PanelView implements vscode.Disposable {
         this.lastFile = message;
         break;
       case 'result':
+      case 'groupResult':
+        if (message.type === 'result') this.lastGroups = undefined;
         this.lastResult = message;
         this.lastDataState = undefined;
         this.lastStatus = undefined;
+        break;
+      case 'groups':
+        this.lastGroups = message;
         break;
       case 'dataState':
         this.lastDataState = message;

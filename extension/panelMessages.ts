@@ -42,6 +42,9 @@ export function routePanelMessage(session: DataSession, m: PanelMessage): void {
     case 'candidates':
       if (r && m.runId === r.runId) session.widenCandidates(m.candidates);
       return;
+    case 'selectGroup':
+      session.selectGroup(m.setId, m.group);
+      return;
     default:
       unreachable(m);
   }

@@ -18,6 +18,7 @@ import type { CurveSample } from '../core/calibrate/drift';
 import { recordSample } from '../core/calibrate/baseline';
 import { calibrationView } from '../core/view/calibration';
 import type { Settings } from './settings';
+import type { GroupRunState } from './groupRun';
 
 /** A finished run. */
 export interface RunResult {
@@ -34,6 +35,8 @@ export interface RunResult {
   readonly details: Map<number, FitDetail>;
   /** The curve of the fit record beside the data when the run ended ('none': no record; 'unusable': a record without a usable curve sample). */
   recorded?: CurveSample | 'none' | 'unusable' | undefined;
+  /** A grouped run: every group, and which one this result shows (its `analysis` and `columns` are that group's). */
+  readonly groups?: GroupRunState | undefined;
 }
 
 /** The recorded curve of a parsed fit record, for the drift (undefined input: no record). */

@@ -6,7 +6,10 @@
 import * as vscode from 'vscode';
 import { analyse } from '../core/analysis/analysis';
 import type { Analysis, AnalysisOptions } from '../core/analysis/types';
+import { analyseGroups, type GroupAnalysis } from '../core/groups/analyse';
+import type { Group } from '../core/groups/split';
 import type { ResampleRunner } from '../core/tune/tune';
+import type { Progress } from '../core/tune/types';
 import type { XYData } from '../core/types';
 
 /** Smallest interval between progress updates (ms), so the notification is not flooded. */
@@ -46,11 +49,33 @@ export type ProgressListener = (message: string, fraction: number) => void;
  * notification's Cancel button or `token` stops it.
  */
 export function analyseWithProgress(runner: ResampleRunner, file: string, data: XYData, options: AnalysisOptions, token: vscode.CancellationToken, onProgress: ProgressListener): Promise<Analysis> {
+  return withRunProgress(`Knotwise: tuning the curve for ${file}`, token, onProgress, (progress) => analyse(data, options, runner, progress));
+}
+
+/**
+ * Tunes every group as analyseWithProgress tunes one data set (core/groups/analyse.ts: one
+ * group after another, or one df shared by all when `shared`), with the same notification
+ * and panel progress. Rejects with CancelledError when stopped.
+ */
+export function analyseGroupsWithProgress(
+  runner: ResampleRunner,
+  file: string,
+  groups: readonly Group[],
+  options: AnalysisOptions,
+  shared: boolean,
+  token: vscode.CancellationToken,
+  onProgress: ProgressListener,
+): Promise<GroupAnalysis> {
+  return withRunProgress(`Knotwise: tuning a curve for each of the ${groups.length} groups of ${file}`, token, onProgress, (progress) => analyseGroups(groups, options, shared, runner, progress));
+}
+
+/** Runs `work` with a cancellable progress notification that `onProgress` hears too (at most one step per PROGRESS_INTERVAL_MS). */
+function withRunProgress<T>(title: string, token: vscode.CancellationToken, onProgress: ProgressListener, work: (progress: Progress) => Promise<T>): Promise<T> {
   return Promise.resolve(
-    vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title: `Knotwise: tuning the curve for ${file}`, cancellable: true }, async (progress, notificationToken) => {
+    vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title, cancellable: true }, async (progress, notificationToken) => {
       let last = 0;
       let shown = 0;
-      return analyse(data, options, runner, {
+      return work({
         report: (done, total, message) => {
           const now = Date.now();
           if (now - last < PROGRESS_INTERVAL_MS && done < total) return;

@@ -82,7 +82,7 @@ export function outputFolder(dataUri: vscode.Uri, folderSetting: string): vscode
 }
 
 /** The data file's path relative to the output folder, `/`-separated (as the command line records it). */
-function relativeDataPath(folder: vscode.Uri, dataUri: vscode.Uri): string {
+export function relativeDataPath(folder: vscode.Uri, dataUri: vscode.Uri): string {
   if (folder.scheme !== dataUri.scheme || folder.authority !== dataUri.authority) return dataUri.path;
   return posix.relative(folder.path, dataUri.path) || posix.basename(dataUri.path);
 }
@@ -229,26 +229,45 @@ export async function saveDeliverables(input: SaveInput, answer: OverwriteAnswer
   const out = deliverables(input, folder, await previousRecord(vscode.Uri.joinPath(folder, outputName(input.settings.recordName, input.fileName))));
   const record = out.files.find((f) => f.kind === 'record');
   if (!record) throw new Error('buildDeliverables returned no fit record');
-  const targets = out.files.map((f) => ({ file: f, uri: vscode.Uri.joinPath(folder, f.name) }));
+  const uris = await writeOutputSet(folder, input.dataUri, out.files, record.name, answer, 'the new curve table and fit record');
+  return uris ? { uris, note: tableNote(out) } : undefined;
+}
+
+/**
+ * Writes `files` into `folder` as one set by the commit protocol, the record named `record`
+ * last, asking (unless `answer` says) before replacing files Knotwise did not write
+ * (`what`: what would replace them, in words). Resolves to the written files in the order
+ * written, or undefined when the person declined (nothing is written). Throws InputError
+ * when an output would replace the data file.
+ */
+export async function writeOutputSet(
+  folder: vscode.Uri,
+  dataUri: vscode.Uri,
+  files: readonly { readonly name: string; readonly text: string }[],
+  record: string,
+  answer: OverwriteAnswer,
+  what: string,
+): Promise<vscode.Uri[] | undefined> {
+  const targets = files.map((f) => ({ file: f, uri: vscode.Uri.joinPath(folder, f.name) }));
   for (const t of targets) {
-    if (t.uri.toString() === input.dataUri.toString()) throw new InputError(`the output name ${t.file.name} would replace the data file; change knotwise.output.tableName or recordName`);
+    if (t.uri.toString() === dataUri.toString()) throw new InputError(`the output name ${t.file.name} would replace the data file; change knotwise.output.tableName or recordName`);
   }
   const ask = async (foreign: readonly string[]): Promise<boolean> => {
     if (answer !== 'ask') return answer === 'yes';
     const shown = foreign.map((name) => vscode.workspace.asRelativePath(vscode.Uri.joinPath(folder, name)));
+    const listed = shown.length > 6 ? [...shown.slice(0, 5), `${shown.length - 5} more files`] : shown;
     const replace = 'Replace';
     const picked = await vscode.window.showWarningMessage(
-      `${shown.join(' and ')} ${shown.length > 1 ? 'exist and were' : 'exists and was'} not written by Knotwise. Replace with the new curve table and fit record?`,
+      `${listed.join(' and ')} ${shown.length > 1 ? 'exist and were' : 'exists and was'} not written by Knotwise. Replace with ${what}?`,
       { modal: true },
       replace,
     );
     return picked === replace;
   };
   // Recovery never replaces the data file, even when a commit marker names it.
-  const protect = vscode.Uri.joinPath(input.dataUri, '..').toString() === folder.toString() ? [posix.basename(input.dataUri.path)] : [];
-  const result = await runStepsAsync(writeSet(hostWriter(folder), out.files, record.name, protect), folderStep(folder, ask));
+  const protect = vscode.Uri.joinPath(dataUri, '..').toString() === folder.toString() ? [posix.basename(dataUri.path)] : [];
+  const result = await runStepsAsync(writeSet(hostWriter(folder), files, record, protect), folderStep(folder, ask));
   if (!result.written) return undefined;
   // The record last, as written: it vouches for the files before it.
-  const order = [...targets.filter((t) => t.file !== record), ...targets.filter((t) => t.file === record)];
-  return { uris: order.map((t) => t.uri), note: tableNote(out) };
+  return [...targets.filter((t) => t.file.name !== record), ...targets.filter((t) => t.file.name === record)].map((t) => t.uri);
 }

@@ -5,7 +5,8 @@
  * cancels the previous one), follows the data while its panel is open (an edit, a save,
  * a change on disk mark the analysis out of date at once, and a save refits when the
  * settings say so), and saves the curve table and fit record only of an analysis of the
- * bytes on disk.
+ * bytes on disk. A grouped run (the rows split by a column, extension/groupRun.ts) keeps
+ * one group on show as its result and saves every group's outputs at once.
  */
 import * as vscode from 'vscode';
 import type { Analysis } from '../core/analysis/types';
@@ -30,7 +31,15 @@ import { PanelView } from './panel';
 import { routePanelMessage } from './panelMessages';
 import type { RejectedRowsView } from './problems';
 import { detailFor, errorText, modelSummary, recordedCurve, withCalibration, type RunResult } from './result';
-import { analyseWithProgress, RunTicket } from './run';
+import { analyseGroupsWithProgress, analyseWithProgress, RunTicket } from './run';
+import { commonCurveFor } from '../core/groups/commonRun';
+import type { GroupAnalysis } from '../core/groups/analyse';
+import { buildGroupsView, type GroupsView } from '../core/view/groups';
+import { groupRunResult, splitRows } from './groupRun';
+import { groupPick } from './groupPick';
+import { saveGroupDeliverables } from './groupSave';
+import { splitByColumn } from '../core/groups/split';
+import { parseCsvText } from '../core/ingest/reader';
 import { outputFolder, previousRecord, saveDeliverables, type OverwriteAnswer } from './save';
 import { analysisOptions, modelOptions, outputName, type ModelSettings, type Settings } from './settings';
 import type { AnalysisOptions } from '../core/analysis/types';
@@ -63,6 +72,8 @@ export interface RunRequest {
   readonly noPicks?: boolean;
   /** Why the run replaces the shown one, for the panel's line about what moved. */
   readonly reason?: RefitView['reason'];
+  /** A grouped run: the name of the group to show (default: the one shown before, else the first). */
+  readonly group?: string;
 }
 
 /** What a save that writes nothing says in the panel and the command's answer. */
@@ -70,7 +81,7 @@ class NotSaved extends Error {}
 
 /** The two column choices name the same columns. */
 function sameColumns(a: ColumnChoice, b: ColumnChoice): boolean {
-  return a.x === b.x && a.y === b.y && (a.weights ?? null) === (b.weights ?? null) && (a.trials ?? null) === (b.trials ?? null);
+  return a.x === b.x && a.y === b.y && (a.weights ?? null) === (b.weights ?? null) && (a.trials ?? null) === (b.trials ?? null) && (a.per ?? null) === (b.per ?? null);
 }
 
 /** Everything Knotwise keeps for one data file. */
@@ -149,7 +160,7 @@ export class DataSession implements vscode.Disposable {
     const stored = this.ctx.memory.get(this.uri);
     const remembered = stored && choiceFits(source.table, stored) ? stored : undefined;
     if (noPicks) return remembered && (!binomial || remembered.trials !== undefined) ? remembered : undefined;
-    let choice = !ask && remembered ? remembered : await pickColumns(source.table, this.file, remembered, token, binomial);
+    let choice = !ask && remembered ? remembered : await pickColumns(source.table, this.file, remembered, token, binomial, groupPick(source.table, source.text, this.file, token));
     // A binomial outcome asks once for the trials column (null: none) before using a remembered choice.
     if (choice && binomial && choice.trials === undefined) choice = await pickTrials(source.table, this.file, choice, token);
     return choice;
@@ -188,6 +199,7 @@ export class DataSession implements vscode.Disposable {
       await this.ctx.memory.set(this.uri, choice);
       // A binomial outcome with a trials column: proportions weighted by the trials (as --trials on the command line).
       const trials = binomial && typeof choice.trials === 'string' ? choice.trials : undefined;
+      if (typeof choice.per === 'string') return await this.tuneGroups(ticket, source, choice, choice.per, trials, request);
       const columns =
         trials !== undefined ? selectTrials(source.table, { x: choice.x, y: choice.y }, trials, file) : selectColumns(source.table, { x: choice.x, y: choice.y, weights: choice.weights }, file);
       const opts = this.analysisOptionsFor(settings);
@@ -255,6 +267,81 @@ export class DataSession implements vscode.Disposable {
     }
   }
 
+  /**
+   * The grouped part of tune(): splits the rows by the group column `per`, tunes every group
+   * with the settings' options (one df for all when knotwise.groups.sharedDf is on), tests
+   * whether one curve serves all, and shows the overview with one group (the one shown
+   * before, or the one `request.group` names, else the first). Errors and cancellation go
+   * to tune()'s handling.
+   */
+  private async tuneGroups(ticket: RunTicket, source: CsvSource, choice: ColumnChoice, per: string, trials: string | undefined, request: RunRequest): Promise<RunSummary> {
+    const file = this.file;
+    const runId = ticket.runId;
+    const settings = this.ctx.settings(this.uri);
+    const opts = this.analysisOptionsFor(settings);
+    const { table, split } = splitRows(source, choice, per, opts, trials);
+    if (request.background && !this.hasPanel) return { status: 'dismissed', file, runId };
+    this.ctx.problems.show(this.uri, source.text, table, split.rejected);
+    const panel = this.openPanel();
+    panel.post({ type: 'running', runId, message: `Tuning ${split.groups.length} groups…` });
+    let analysis: GroupAnalysis;
+    try {
+      analysis = await analyseGroupsWithProgress(this.ctx.runner, file, split.groups, opts, settings.groups.sharedDf, ticket.token, (message, fraction) =>
+        panel.post({ type: 'running', runId, message: `${message}…`, fraction }),
+      );
+    } catch (err) {
+      throw placed(err, file, split.labels);
+    }
+    this.analysed++;
+    if (this.running !== ticket) return { status: 'superseded', file, runId };
+    const common = commonCurveFor(split, analysis);
+    const view = buildGroupsView({ setId: runId, fileName: file, split, analysis, common });
+    const wanted = request.group ?? (this.result?.groups ? this.result.groups.analysis.groups[this.result.groups.index]?.name : undefined);
+    const index = Math.max(
+      0,
+      analysis.groups.findIndex((g) => g.name === wanted),
+    );
+    const result = groupRunResult({ source, choice, options: opts }, { setId: runId, per, table, split, analysis, common, view, index }, index, runId);
+    this.result = result;
+    this.rule = undefined;
+    this.ruleDropped = false;
+    this.refitAsked = false;
+    const seen = await this.changeSince(result);
+    if (this.result !== result) return { status: 'superseded', file, runId };
+    this.change = seen.change;
+    panel.post({ type: 'groups', view });
+    this.showResult();
+    if (seen.change?.where === 'disk' && seen.now) this.refitOnSave(seen.now);
+    return {
+      status: 'done',
+      file,
+      runId,
+      chosenDf: result.analysis.chosen.df,
+      candidates: result.analysis.tune.candidates.map((c) => c.df),
+      rowsUsed: split.groups.reduce((n, g) => n + g.data.x.length, 0),
+      rejected: split.rejected.length,
+      groups: analysis.groups.map((g) => ({ name: g.name, chosenDf: g.analysis.chosen.df, rowsUsed: g.analysis.n })),
+      ...(analysis.shared ? { sharedDf: analysis.shared.selection.df } : {}),
+    };
+  }
+
+  /** The overview of the grouped run on show and the index of the group shown (undefined: not a grouped run). */
+  get groupsShown(): { readonly view: GroupsView; readonly index: number } | undefined {
+    const g = this.result?.groups;
+    return g ? { view: g.view, index: g.index } : undefined;
+  }
+
+  /** The panel asked for group `index` of the grouped run `setId`: shows it as a new view of the same run. */
+  selectGroup(setId: number, index: number): void {
+    const r = this.result;
+    const g = r?.groups;
+    if (!r || !g || g.setId !== setId || index >= g.analysis.groups.length || !this.panel) return;
+    this.result = groupRunResult(r, g, index, this.ctx.newRunId());
+    // Each group starts from its own choice.
+    this.rule = undefined;
+    this.showResult();
+  }
+
   /** Stops the running run; true when one was running. */
   stop(): boolean {
     if (!this.running) return false;
@@ -313,7 +400,7 @@ export class DataSession implements vscode.Disposable {
     }
     if (state.rule) this.rule = state.rule;
     if (state.candidates !== undefined) this.candidates = state.candidates;
-    void this.tune({ noPicks: true, keep: true });
+    void this.tune({ noPicks: true, keep: true, ...(state.group !== undefined ? { group: state.group } : {}) });
   }
 
   /** Posts the result to the panel; `rule` starts a new view of the same run with that rule; `moved` says what a rerun changed. */
@@ -340,14 +427,16 @@ export class DataSession implements vscode.Disposable {
       trialsLabel: r.trials !== undefined ? r.columns.labels.weights : undefined,
       modelFromPanel: this.model !== undefined,
       candidatesFromPanel: this.candidates,
-      detail: (df) => withCalibration(r, detailFor(r, df), settings),
+      // A group's panel has no calibration section (no inverse table with groups yet).
+      detail: (df) => (r.groups ? detailFor(r, df) : withCalibration(r, detailFor(r, df), settings)),
       warnings: settings.problems,
     });
     const shown: PanelPayload = moved ? { ...payload, refit: moved } : payload;
     this.rule = shown.rule;
     this.payload = shown;
     this.posted++;
-    this.panel.post({ type: 'result', payload: shown });
+    const g = r.groups;
+    this.panel.post(g ? { type: 'groupResult', setId: g.setId, group: g.index, payload: shown } : { type: 'result', payload: shown });
     this.postDataState();
   }
 
@@ -376,7 +465,7 @@ export class DataSession implements vscode.Disposable {
   sendDetail(runId: number, df: number): void {
     const r = this.result;
     if (!r || runId !== r.runId) return;
-    const detail = withCalibration(r, detailFor(r, df), this.ctx.settings(this.uri));
+    const detail = r.groups ? detailFor(r, df) : withCalibration(r, detailFor(r, df), this.ctx.settings(this.uri));
     if (detail) this.post({ type: 'detail', runId, detail });
   }
 
@@ -527,16 +616,22 @@ export class DataSession implements vscode.Disposable {
       }
       const saved = await this.save(this.rule ?? rule, 'ask');
       if (!saved) this.post({ type: 'saveFailed', requestId, message: 'Nothing was saved: an existing file was not written by Knotwise.' });
-      else this.post({ type: 'saved', requestId, files: saved.uris.map((u) => vscode.workspace.asRelativePath(u)), note: saved.note });
+      else this.post({ type: 'saved', requestId, files: (saved.named ?? saved.uris).map((u) => vscode.workspace.asRelativePath(u)), note: saved.note });
     } catch (err) {
       this.post({ type: 'saveFailed', requestId, message: `Nothing was saved: ${errorText(err)}.`.replace(/\.\.$/, '.') });
     }
   }
 
-  /** Saves the table and record of the shown run with `rule`; undefined when the person declined to replace a file. */
-  private async save(rule: RuleSpec, answer: OverwriteAnswer): Promise<{ uris: readonly vscode.Uri[]; note: string } | undefined> {
+  /**
+   * Saves the table and record of the shown run with `rule`, or of a grouped run every
+   * group's outputs as the command line writes them (the rule of the settings chose each
+   * group's df, as on the command line); undefined when the person declined to replace a file.
+   * `named`: the files to name in the panel when not all of them.
+   */
+  private async save(rule: RuleSpec, answer: OverwriteAnswer): Promise<{ uris: readonly vscode.Uri[]; note: string; named?: readonly vscode.Uri[] } | undefined> {
     const r = this.result;
     if (!r) throw new InputError('there is no finished run to save');
+    if (r.groups) return this.saveGroups(r, answer);
     const saved = await saveDeliverables(
       {
         dataUri: this.uri,
@@ -559,6 +654,37 @@ export class DataSession implements vscode.Disposable {
       void vscode.window
         .showInformationMessage(`Knotwise saved ${saved.uris.map((u) => vscode.workspace.asRelativePath(u)).join(' and ')}. ${saved.note}`, open)
         .then((pick) => (pick === open && table ? vscode.window.showTextDocument(table, { preview: true }) : undefined));
+    }
+    return saved;
+  }
+
+  /** Saves every group of the grouped run `r` (its source, columns and options as run). */
+  private async saveGroups(r: RunResult, answer: OverwriteAnswer): Promise<{ uris: readonly vscode.Uri[]; note: string; named: readonly vscode.Uri[] } | undefined> {
+    const g = r.groups;
+    if (!g) throw new InputError('this run has no groups');
+    const saved = await saveGroupDeliverables(
+      {
+        dataUri: this.uri,
+        fileName: r.source.fileName,
+        dataSha256: r.source.sha256,
+        rowsRead: g.table.rowCount,
+        columns: { x: r.choice.x, y: r.choice.y, weights: r.choice.weights },
+        per: g.per,
+        split: g.split,
+        analysis: g.analysis,
+        common: g.common,
+        options: r.options,
+        settings: this.ctx.settings(this.uri),
+      },
+      answer,
+    );
+    if (saved) {
+      const summary = saved.named[0];
+      void vscode.commands.executeCommand('revealInExplorer', summary).then(undefined, () => undefined);
+      const open = 'Open Summary';
+      void vscode.window
+        .showInformationMessage(`Knotwise saved ${saved.named.map((u) => vscode.workspace.asRelativePath(u)).join(' and ')}. ${saved.note}`, open)
+        .then((pick) => (pick === open && summary ? vscode.window.showTextDocument(summary, { preview: true }) : undefined));
     }
     return saved;
   }
@@ -589,7 +715,8 @@ export class DataSession implements vscode.Disposable {
       if (blocker) throw new NotSaved(blocker);
       const saved = await this.save(rule, options.replaceForeignFiles ?? 'ask');
       if (!saved) return { status: 'dismissed', file: r.source.fileName, runId: r.runId, message: 'an existing file was not written by Knotwise' };
-      return { status: 'done', file: r.source.fileName, runId: r.runId, chosenDf: selectDf(r.analysis.tune.candidates, rule, r.analysis.tune.metric).df, files: saved.uris.map((u) => u.toString()) };
+      const chosenDf = r.groups ? r.analysis.chosen.df : selectDf(r.analysis.tune.candidates, rule, r.analysis.tune.metric).df;
+      return { status: 'done', file: r.source.fileName, runId: r.runId, chosenDf, files: saved.uris.map((u) => u.toString()) };
     } catch (err) {
       const message = errorText(err);
       void vscode.window.showErrorMessage(`Knotwise: nothing was saved: ${message}`);
@@ -648,6 +775,12 @@ export class DataSession implements vscode.Disposable {
     try {
       const source = await readCsv(this.uri);
       if (!choiceFits(source.table, choice)) return;
+      if (typeof choice.per === 'string') {
+        // The rows of a grouped run, as its split rejects them (an empty group cell too).
+        const table = parseCsvText(source.text, { file: source.fileName, keepText: choice.per });
+        this.ctx.problems.show(this.uri, source.text, table, splitByColumn(table, { x: choice.x, y: choice.y, weights: choice.weights }, choice.per, source.fileName).rejected);
+        return;
+      }
       const trials = this.result?.trials;
       const columns =
         trials !== undefined

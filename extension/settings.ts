@@ -57,6 +57,8 @@ export interface Settings {
   readonly refitOnSave: boolean;
   /** knotwise.refit.askAboveRows: above this many data rows, ask before refitting on save. */
   readonly refitAskAboveRows: number;
+  /** knotwise.groups.*: a grouped run's df shared by every group (the command line's --shared-df), and one long table (--long-table). */
+  readonly groups: { readonly sharedDf: boolean; readonly longTable: boolean };
   /** Settings that were ignored, with why. */
   readonly problems: readonly string[];
 }
@@ -91,6 +93,8 @@ export const DEFAULTS = {
   recordName: '${name}.fit.json',
   refitOnSave: true,
   refitAskAboveRows: 200_000,
+  groupsSharedDf: false,
+  groupsLongTable: false,
 } as const;
 
 /** Limits of the numeric settings (the resampling limits live in core/registry/resampling/). */
@@ -169,6 +173,15 @@ export function readSettings(get: SettingReader): Settings {
   const refitRaw = get('refit.onSave');
   const refitOnSave = typeof refitRaw === 'boolean' ? refitRaw : DEFAULTS.refitOnSave;
 
+  const flag = (key: string, fallback: boolean): boolean => {
+    const v = get(key);
+    if (v === undefined || v === null) return fallback;
+    if (typeof v === 'boolean') return v;
+    problems.push(`knotwise.${key} must be true or false; using ${fallback}`);
+    return fallback;
+  };
+  const groups = { sharedDf: flag('groups.sharedDf', DEFAULTS.groupsSharedDf), longTable: flag('groups.longTable', DEFAULTS.groupsLongTable) };
+
   const tableName = checkName('output.tableName', str('output.tableName', DEFAULTS.tableName), DEFAULTS.tableName, problems);
   const recordName = checkName('output.recordName', str('output.recordName', DEFAULTS.recordName), DEFAULTS.recordName, problems);
 
@@ -193,6 +206,7 @@ export function readSettings(get: SettingReader): Settings {
     recordName,
     refitOnSave,
     refitAskAboveRows: numIn('refit.askAboveRows', DEFAULTS.refitAskAboveRows, LIMITS.refitAskAboveRows, true),
+    groups,
     problems,
   };
 }

@@ -34,6 +34,7 @@ const ALLOWED_ATTRIBUTES = new Set([
   'data-figure',
   'data-line',
   'data-df',
+  'data-group',
   'data-x',
   'id',
   'x',

@@ -8,7 +8,9 @@
  * shows a run's progress with a Stop button, a failed or cancelled run with a Run again
  * button, and a banner when the data changed since the analysis (then saving becomes
  * "Refit and save"). What the person set (rule, open sections, the error figure's range)
- * is kept in the webview's state. Every text from the CSV is set with textContent.
+ * is kept in the webview's state. A grouped run (the rows split into groups) adds a group
+ * selector at the top and the overview of every group above the details; the rest shows
+ * the selected group as a file of its own. Every text from the CSV is set with textContent.
  */
 import { FOLD_IDS, unreachable, type FoldId, type HostMessage, type PanelState } from '../core/protocol';
 import { selectDf } from '../core/tune/rules';
@@ -28,6 +30,8 @@ import { modelReportSection } from './sections/modelReport';
 import { notesSection } from './sections/notes';
 import { calibrationSection } from './sections/calibration';
 import { residualChecksSection } from './sections/residualChecks';
+import { groupBar, groupsOverview, SMALL_MULTIPLES_SHOWN, type GroupActions } from './sections/groups';
+import type { GroupsView } from '../core/view/groups';
 import type { PanelActions, Section } from './sections/section';
 import type { Host } from './vscodeApi';
 
@@ -54,6 +58,20 @@ export class Panel {
   /** The sections of the shown payload, in page order. */
   private sections: Section[] = [];
   private curve: CurveSection | undefined;
+  /** A grouped run's overview (from the host's `groups` message) and the group on show; undefined for a file of one data set. */
+  private groups: GroupsView | undefined;
+  private groupIndex = 0;
+  /** Every group's small figure shown, not only the first ones. */
+  private allGroups = false;
+  private readonly groupActions: GroupActions = {
+    select: (index) => this.selectGroup(index),
+    showAll: () => {
+      this.allGroups = true;
+      if (!this.payload) return;
+      this.build(this.payload, `#kw-small-button-${SMALL_MULTIPLES_SHOWN}`);
+      this.update();
+    },
+  };
   private readonly actions: PanelActions = {
     setRule: (rule) => this.setRule(rule),
     setTolerance: (percent) => {
@@ -121,6 +139,20 @@ export class Panel {
         this.setRunning(true, message.message, message.fraction);
         return;
       case 'result':
+        this.groups = undefined;
+        this.show(message.payload);
+        return;
+      case 'groups': {
+        // Shown with its first group's result, which follows; an overview older than what is shown is dropped.
+        const newest = this.groups ? this.groups.setId : this.payload ? this.payload.runId : -1;
+        if (message.view.setId < newest) return;
+        this.groups = message.view;
+        this.allGroups = false;
+        return;
+      }
+      case 'groupResult':
+        if (!this.groups || message.setId !== this.groups.setId || message.group >= this.groups.groups.length) return;
+        this.groupIndex = message.group;
         this.show(message.payload);
         return;
       case 'failed':
@@ -180,31 +212,66 @@ export class Panel {
     if (this.pendingSave !== undefined) this.status('Saving…');
   }
 
-  /** Lays out the sections of a new payload: header, banner and answer; the curve and the error figure with their controls; the folding details; the caution. */
-  private build(p: PanelPayload): void {
+  /**
+   * Lays out the sections of a new payload: header, banner and answer; the curve and the
+   * error figure with their controls; the folding details; the caution. A grouped run adds
+   * the group selector first and the overview of every group before the details (and has no
+   * calibration section). The element that had the focus gets it back when it is still
+   * there, else `focusFallback`.
+   */
+  private build(p: PanelPayload, focusFallback?: string): void {
+    const focused = (document.activeElement as HTMLElement | null)?.id;
     const open = (id: FoldId): boolean => this.open.has(id);
+    const groups = this.groups;
     const answer = answerSection(p, this.actions);
     const curve = curveSection(p, this.actions);
     const error = errorSection(p, this.actions);
     const folds = [
       residualChecksSection(open('residual-checks'), this.actions),
       influenceSection(open('influential-rows'), this.actions),
-      calibrationSection(open('calibration'), this.actions),
+      groups ? undefined : calibrationSection(open('calibration'), this.actions),
       candidatesSection(open('candidates'), this.actions),
       modelReportSection(open('model-report'), this.actions),
       notesSection(open('notes'), this.actions),
-    ];
+    ].filter((f): f is Section => f !== undefined);
     this.curve = curve;
     this.sections = [answer, curve, error, ...folds];
+    this.root.dataset.groups = groups ? String(groups.groups.length) : '';
     replaceChildren(
       this.root,
+      groups ? groupBar(groups, this.groupIndex, this.groupActions) : null,
       headerSection(p),
       bannerElement(() => this.rerun()),
       answer.element,
       el('div', { class: 'kw-decision', id: 'kw-decision' }, curve.element, error.element, curve.model.element),
+      groups ? groupsOverview(groups, this.groupIndex, this.allGroups, this.groupActions) : null,
       ...folds.map((f) => f.element),
       el('footer', { class: 'kw-caution', id: 'kw-caution' }, p.caution),
     );
+    if (groups) {
+      // The group's name in the title, beside what is plotted against what.
+      const h1 = this.root.querySelector('.kw-header h1');
+      const g = groups.groups[this.groupIndex];
+      if (h1 && g) h1.textContent = `${groups.groupLabel} ${g.name}: ${h1.textContent ?? ''}`;
+    }
+    const save = this.root.querySelector<HTMLButtonElement>('#kw-save');
+    if (save) save.textContent = this.saveLabel();
+    const again = (focused ? this.root.querySelector<HTMLElement>(`#${CSS.escape(focused)}`) : null) ?? (focusFallback ? this.root.querySelector<HTMLElement>(focusFallback) : null);
+    if (focused || focusFallback) again?.focus();
+  }
+
+  /** Shows group `index` of the grouped run on show: the host answers with its result. */
+  private selectGroup(index: number): void {
+    const g = this.groups;
+    if (!g || index < 0 || index >= g.groups.length || index === this.groupIndex) return;
+    this.status(`Showing ${g.groupLabel} ${g.groups[index]?.name ?? ''}…`);
+    this.host.post({ type: 'selectGroup', setId: g.setId, group: index });
+  }
+
+  /** The save button's words: a grouped run saves every group; a changed file refits first. */
+  private saveLabel(): string {
+    if (this.groups) return this.needsRefit() ? 'Refit and save every group' : 'Save every group';
+    return this.needsRefit() ? 'Refit and save' : 'Save table and record';
   }
 
   /** The view before the first result: what the run is doing, how far it is, and a Stop button. */
@@ -271,7 +338,7 @@ export class Panel {
     showDataState(this.root, state, this.file?.fileName ?? p.source.fileName);
     this.root.dataset.data = !state ? 'current' : state.change ? `changed-${state.change.where}` : state.analysed === 'unsaved' ? 'unsaved' : 'current';
     const save = this.root.querySelector<HTMLButtonElement>('#kw-save');
-    if (save) save.textContent = this.needsRefit() ? 'Refit and save' : 'Save table and record';
+    if (save) save.textContent = this.saveLabel();
     this.setSaveBusy(this.pendingSave !== undefined);
   }
 
@@ -286,6 +353,7 @@ export class Panel {
     if (!this.file) return;
     const p = this.payload;
     const open = FOLD_IDS.filter((id) => this.open.has(id));
+    const shownGroup = this.groups?.groups[this.groupIndex];
     const state: PanelState = {
       file: this.file.uri,
       ...(p ? { runId: p.runId, rule: this.rule } : {}),
@@ -294,6 +362,7 @@ export class Panel {
       ...(this.errorRange !== 'decision' ? { errorRange: this.errorRange } : {}),
       ...(p?.candidatesFromPanel !== undefined ? { candidates: p.candidatesFromPanel } : {}),
       ...(this.allInfluential ? { allInfluential: true } : {}),
+      ...(p && shownGroup ? { group: shownGroup.name } : {}),
     };
     this.host.saveState(state);
   }

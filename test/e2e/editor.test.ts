@@ -7,11 +7,15 @@
  * within a second, no stale save), save it (the refit keeps the df), reload the window
  * (the panel comes back); then start a long run from the command palette, stop it with
  * the notification's Cancel button, which leaves no file behind, and run it again from
- * the panel. No request may leave 127.0.0.1.
+ * the panel; last, split datasets::CO2 (Potvin, Lechowicz & Tardif 1990) by plant with the
+ * fourth pick, show a plant from its small figure and save every plant's table, the same
+ * bytes as the command line's `--per`. No request may leave 127.0.0.1.
  */
 import assert from 'node:assert/strict';
+import { execFileSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Frame, Locator, Page } from 'playwright-core';
 import { tuneFromExplorer } from './flows';
@@ -39,6 +43,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     workspace = join(runDir, 'workspace');
     mkdirSync(workspace, { recursive: true });
     copyFileSync(join(fixtures, 'mcycle.csv'), join(workspace, 'mcycle.csv'));
+    copyFileSync(join(fixtures, 'co2.csv'), join(workspace, 'co2.csv'));
     server = await wb.startCodeServer({ runDir, settings: { 'workbench.colorTheme': 'Default Light Modern' } });
     browser = await wb.launchChromium({ viewport: { width: 1500, height: 950 } });
     page = browser.page;
@@ -497,6 +502,55 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     await frame.locator('#knotwise-root[data-state="ready"]').waitFor({ timeout: 60000 });
     assert.match((await frame.textContent('.kw-meta')) ?? '', /^drift\.csv · 200000 rows used/);
     assert.match((await frame.textContent('#kw-chosen-df')) ?? '', /^df \d+$/);
+  });
+
+  it('many devices in one file: the fourth pick splits datasets::CO2 by plant; a small figure shows its plant; save writes what `knotwise fit --per plant` writes', async function () {
+    await tuneFromExplorer(page, 'co2.csv');
+    const input = page.locator('.quick-input-widget input.input');
+    const title = page.locator('.quick-input-widget .quick-input-title');
+    await title.filter({ hasText: 'the x column of co2.csv' }).waitFor();
+    await input.fill('conc');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'the y column' }).waitFor();
+    await input.fill('uptake');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'weights' }).waitFor();
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'split the rows of co2.csv into groups' }).waitFor();
+    // The plant column, first among the text columns, with its distinct values and how many (CO2's plants in file order).
+    await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Qn1, Qn2, Qn3, Qc1, Qc2, Qc3, …  (12 distinct values)' }).first().waitFor();
+    await page.screenshot({ path: join(artifacts, 'editor-group-pick.png') });
+    await input.fill('plant');
+    await page.keyboard.press('Enter');
+    // The grouped panel: the frame whose panel has the group selector.
+    let grouped: Frame | undefined;
+    const deadline = Date.now() + 60000;
+    while (!grouped && Date.now() < deadline) {
+      for (const f of page.frames()) if (await f.$('#knotwise-root[data-state="ready"] #kw-group-bar').catch(() => null)) grouped = f;
+      if (!grouped) await page.waitForTimeout(250);
+    }
+    assert.ok(grouped, 'the panel shows the grouped run');
+    assert.equal(await grouped.locator('#kw-group option').count(), 12);
+    assert.equal(await grouped.locator('#kw-multiples button.kw-small-multiple').count(), 12);
+    await grouped.click('#kw-small-button-5');
+    await grouped.locator('#kw-group-count', { hasText: '6 of 12 groups by plant' }).waitFor();
+    assert.equal(await grouped.inputValue('#kw-group'), '5');
+    assert.match((await grouped.textContent('.kw-header h1')) ?? '', /^plant Qc3: uptake against conc/);
+    await page.screenshot({ path: join(artifacts, 'editor-groups.png') });
+    await grouped.click('#kw-save');
+    await grouped.locator('#kw-status', { hasText: /^Saved co2\.groups\.csv and co2\.groups\.fit\.json\./ }).waitFor();
+    // The command line on a copy of the file with the workspace's settings (gcv resampling, since the long run above).
+    const copy = mkdtempSync(join(tmpdir(), 'knotwise-e2e-groups-'));
+    try {
+      copyFileSync(join(workspace, 'co2.csv'), join(copy, 'co2.csv'));
+      const cli = join(__dirname, '..', '..', 'dist', 'cli.js');
+      execFileSync(process.execPath, [cli, 'fit', join(copy, 'co2.csv'), '--x', 'conc', '--y', 'uptake', '--per', 'plant', '--resampling', 'gcv', '--save', '--quiet']);
+      const written = readdirSync(copy).filter((f) => f !== 'co2.csv');
+      assert.equal(written.length, 14, written.join(' '));
+      for (const f of written) assert.equal(readFileSync(join(workspace, f), 'utf8'), readFileSync(join(copy, f), 'utf8'), f);
+    } finally {
+      rmSync(copy, { recursive: true, force: true });
+    }
   });
 
   it('no request left 127.0.0.1', function () {

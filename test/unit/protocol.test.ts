@@ -5,13 +5,31 @@
  * field missing, a field of the wrong type, NaN or Infinity where a finite number is
  * needed, ids that are not whole numbers, extra keys, huge strings, `__proto__` and
  * `constructor` keys, inherited fields, nesting too deep) and must be refused. The payload
- * and detail come from a real analysis of datasets::cars (Ezekiel 1930; fits.json).
+ * and detail come from a real analysis of datasets::cars (Ezekiel 1930; fits.json), the
+ * overview of a grouped run from datasets::CO2 (Potvin, Lechowicz & Tardif 1990;
+ * test/e2e/fixtures/co2.csv).
  */
 import { strict as assert } from 'node:assert';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { analyse } from '../../core/analysis/analysis';
-import { FOLD_IDS, isHostMessage, isModelChoice, isPanelMessage, isPanelState, isRuleSpec, MAX_MESSAGE_TEXT, MAX_SAVED_FILES, type HostMessage, type PanelMessage } from '../../core/protocol';
+import {
+  FOLD_IDS,
+  isHostMessage,
+  isModelChoice,
+  isPanelMessage,
+  isPanelState,
+  isRuleSpec,
+  MAX_GROUPS,
+  MAX_MESSAGE_TEXT,
+  MAX_SAVED_FILES,
+  type HostMessage,
+  type PanelMessage,
+} from '../../core/protocol';
+import { analyseGroups } from '../../core/groups/analyse';
+import { splitByColumn } from '../../core/groups/split';
+import { parseCsvText } from '../../core/ingest/reader';
+import { buildGroupsView, type GroupsView } from '../../core/view/groups';
 import { OUTCOME_LIST } from '../../core/registry/outcomes/index';
 import { RULE_LIST } from '../../core/registry/rules/index';
 import type { DataStateView, FitDetail, PanelPayload, RefitView } from '../../core/view/model';
@@ -57,10 +75,12 @@ const PANEL_MESSAGES: readonly PanelMessage[] = [
   { type: 'stop' },
   { type: 'candidates', runId: 3, candidates: '2..20' },
   { type: 'candidates', runId: 3, candidates: '3, 5, 8' },
+  { type: 'selectGroup', setId: 3, group: 0 },
+  { type: 'selectGroup', setId: 3, group: 11 },
 ];
 
 /** The fields of each panel message that must be whole numbers >= 0 (ids) or finite numbers > 0 (df). */
-const NUMBER_FIELDS = ['runId', 'requestId', 'df', 'line'];
+const NUMBER_FIELDS = ['runId', 'requestId', 'df', 'line', 'setId', 'group'];
 
 describe('isPanelMessage', () => {
   it('accepts every well-formed message, also after a JSON round trip and a structured clone', () => {
@@ -111,6 +131,7 @@ describe('isPanelMessage', () => {
     }
     assert.equal(isPanelMessage({ type: 'revealLine', line: 0 }), false, 'CSV lines start at 1');
     assert.equal(isPanelMessage({ type: 'needDetail', runId: 1, df: 0 }), false, 'a df is positive');
+    assert.equal(isPanelMessage({ type: 'selectGroup', setId: 1, group: MAX_GROUPS }), false, 'no group beyond the most a run may have');
   });
 
   it('refuses extra keys, huge strings among them, and prototype keys at any level', () => {
@@ -219,9 +240,14 @@ const REFIT: RefitView = { reason: 'saved', rowsBefore: 50, rowsNow: 52, dfBefor
 describe('isHostMessage', () => {
   let payload: PanelPayload;
   let detail: FitDetail;
+  let view: GroupsView;
   let messages: HostMessage[];
 
   before(async () => {
+    const co2 = parseCsvText(readFileSync(join(__dirname, '..', 'e2e', 'fixtures', 'co2.csv'), 'utf8'), { file: 'co2.csv', keepText: 'plant' });
+    const split = splitByColumn(co2, { x: 'conc', y: 'uptake' }, 'plant', 'co2.csv');
+    const grouped = await analyseGroups(split.groups, { kind: 'natural-spline', candidates: [2, 3], resample: { kind: 'folds', folds: 7, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }, true);
+    view = buildGroupsView({ setId: 4, fileName: 'co2.csv', split, analysis: grouped, common: { words: 'The 12 plants need separate curves.' } });
     const data = { x: Float64Array.from(CARS.x), y: Float64Array.from(CARS.y), lines: Int32Array.from(CARS.x, (_, i) => i + 2) };
     const analysis = await analyse(data, { kind: 'natural-spline', candidates: [2, 3, 4, 5], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 1 });
     payload = buildPanelPayload({ runId: 4, analysis, source: { fileName: 'cars.csv', xLabel: 'speed', yLabel: 'dist' }, rejected: 0, heldOut: 0, tolerancePercent: 2 });
@@ -239,6 +265,8 @@ describe('isHostMessage', () => {
       { type: 'dataState', runId: 4, state: { analysed: 'disk', refit: 'automatic', followedOnDisk: false } },
       { type: 'dataState', runId: 4, state: { analysed: 'unsaved', change: { where: 'editor', added: 2, removed: 0, changed: 1, header: false }, refit: 'asked', followedOnDisk: true } },
       { type: 'result', payload: { ...payload, refit: REFIT } },
+      { type: 'groups', view },
+      { type: 'groupResult', setId: 4, group: 3, payload },
     ];
   });
 
@@ -271,7 +299,11 @@ describe('isHostMessage', () => {
     for (const m of messages) {
       for (const key of Object.keys(m)) {
         const wrong =
-          key === 'runId' || key === 'requestId' ? [...WRONG_FOR_NUMBER, -1, 0.5] : key === 'message' || key === 'note' ? WRONG_FOR_TEXT.filter((v) => !(key === 'note' && v === undefined)) : [];
+          key === 'runId' || key === 'requestId' || key === 'setId' || key === 'group'
+            ? [...WRONG_FOR_NUMBER, -1, 0.5]
+            : key === 'message' || key === 'note'
+              ? WRONG_FOR_TEXT.filter((v) => !(key === 'note' && v === undefined))
+              : [];
         for (const bad of wrong) assert.equal(isHostMessage(withField(m, key, bad)), false, `${m.type}.${key} = ${String(bad).slice(0, 20)}`);
       }
     }
@@ -307,6 +339,48 @@ describe('isHostMessage', () => {
       ['a huge warning in a detail', { type: 'detail', runId: 4, detail: { ...detail, warnings: [HUGE] } }],
     ];
     for (const [what, m] of broken) assert.equal(isHostMessage(m), false, what);
+    assert.equal(({} as Record<string, unknown>).polluted, undefined, 'checking polluted nothing');
+  });
+
+  it("refuses a grouped run's overview with a wrong field, no groups or too many, a broken group, a prototype key inside, or a group index out of range", () => {
+    assert.ok(view.shared && view.groups.length === 12, 'precondition: 12 plants with a shared df');
+    const g0 = view.groups[0] as GroupsView['groups'][number];
+    const groups = (v: unknown): unknown => ({ type: 'groups', view: v });
+    const withGroup = (g: unknown): unknown => groups({ ...view, groups: [g, ...view.groups.slice(1)] });
+    const broken: [string, unknown][] = [
+      ['no groups', groups({ ...view, groups: [] })],
+      ['too many groups', groups({ ...view, groups: Array<unknown>(MAX_GROUPS + 1).fill(g0) })],
+      ['groups not an array', groups({ ...view, groups: { 0: g0 } })],
+      ['setId NaN', groups({ ...view, setId: NaN })],
+      ['a huge group label', groups({ ...view, groupLabel: HUGE })],
+      ['a number as the x label', groups({ ...view, xLabel: 3 })],
+      ['rejected negative', groups({ ...view, rejected: -1 })],
+      ['an extra key in the view', groups({ ...view, html: '<b>' })],
+      ['a view without its file', groups(withField(view, 'fileName', 'missing'))],
+      ['common words that are a number', groups({ ...view, common: 5 })],
+      ['a shared df of 0', groups({ ...view, shared: { df: 0, reason: 'x' } })],
+      ['a shared df with an extra key', groups({ ...view, shared: { df: 3, reason: 'x', html: 1 } })],
+      ['a group name that is a number', withGroup({ ...g0, name: 7 })],
+      ['an empty group name', withGroup({ ...g0, name: '' })],
+      ['a huge group name', withGroup({ ...g0, name: HUGE })],
+      ['a group df of 0', withGroup({ ...g0, df: 0 })],
+      ['a group range upside down', withGroup({ ...g0, lo: g0.hi + 1 })],
+      ['a group range NaN', withGroup({ ...g0, lo: NaN })],
+      ['rows negative', withGroup({ ...g0, rows: -1 })],
+      ['a curve of texts', withGroup({ ...g0, curve: ['1'] })],
+      ['readings of unequal length', withGroup({ ...g0, x: [1, 2], y: [1] })],
+      ['an extra key in a group', withGroup({ ...g0, onclick: 'x' })],
+      ['a group without its curve', withGroup(withField(g0, 'curve', 'missing'))],
+      ['a __proto__ key in a group', groups(JSON.parse(JSON.stringify(view).replace('"groups":[{', '"groups":[{"__proto__":{"polluted":true},')))],
+      ['a __proto__ key in the view', groups(JSON.parse(`{"__proto__":{"polluted":true},${JSON.stringify(view).slice(1)}`))],
+      ['a group index beyond the most a run may have', { type: 'groupResult', setId: 4, group: MAX_GROUPS, payload }],
+      ['a group result with a broken payload', { type: 'groupResult', setId: 4, group: 0, payload: { ...payload, runId: NaN } }],
+      ['a group result without its set', { type: 'groupResult', group: 0, payload }],
+    ];
+    for (const [what, m] of broken) assert.equal(isHostMessage(m), false, what);
+    // A group whose fit has no residual SD (NaN, null after a JSON round trip) is still a group.
+    assert.equal(isHostMessage(groups({ ...view, groups: [{ ...g0, sigma: NaN }] })), true);
+    assert.equal(isHostMessage(JSON.parse(JSON.stringify(groups({ ...view, groups: [{ ...g0, sigma: NaN }] })))), true);
     assert.equal(({} as Record<string, unknown>).polluted, undefined, 'checking polluted nothing');
   });
 
@@ -365,6 +439,7 @@ describe('isPanelState', () => {
       { file: 'file:///data/cars.csv', open: [] },
       { file: 'file:///data/cars.csv', runId: 4, candidates: '2..20', allInfluential: true },
       { file: 'file:///data/cars.csv', allInfluential: false },
+      { file: 'file:///data/co2.csv', runId: 9, group: 'Qn1' },
     ]) {
       assert.equal(isPanelState(st), true, JSON.stringify(st));
       assert.equal(isPanelState(JSON.parse(JSON.stringify(st))), true, `JSON ${JSON.stringify(st)}`);
@@ -395,6 +470,9 @@ describe('isPanelState', () => {
       { file: 'file:///a.csv', candidates: '12..2' },
       { file: 'file:///a.csv', candidates: 12 },
       { file: 'file:///a.csv', allInfluential: 'yes' },
+      { file: 'file:///a.csv', group: '' },
+      { file: 'file:///a.csv', group: 7 },
+      { file: 'file:///a.csv', group: HUGE },
       JSON.parse('{"file":"file:///a.csv","__proto__":{"polluted":true}}'),
       Object.create({ file: 'file:///a.csv' }) as object,
     ]) {

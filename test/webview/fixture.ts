@@ -1,6 +1,7 @@
 /**
  * Panel payloads built by the real core (ingest, analyse, view) from the open data sets
- * in test/e2e/fixtures (R's `cars`, MASS::mcycle, MASS::menarche; see make-fixtures.R there).
+ * in test/e2e/fixtures (R's `cars`, MASS::mcycle, MASS::menarche, datasets::CO2; see
+ * make-fixtures.R there).
  */
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -12,6 +13,10 @@ import { selectTrials } from '../../core/ingest/trials';
 import type { PanelPayload } from '../../core/view/model';
 import type { XYData } from '../../core/types';
 import { buildPanelPayload } from '../../core/view/payload';
+import { analyseGroups } from '../../core/groups/analyse';
+import { commonCurveFor } from '../../core/groups/commonRun';
+import { splitByColumn } from '../../core/groups/split';
+import { buildGroupsView, type GroupsView } from '../../core/view/groups';
 
 export const fixtureDir = join(__dirname, '..', 'e2e', 'fixtures');
 
@@ -53,4 +58,37 @@ export function mcycleFixture(): Promise<Fixture> {
     rule: { kind: 'one-se' },
     seed: 1,
   });
+}
+
+/** A grouped run as the host shows it: the overview, and each group's panel under a run id. */
+export interface GroupsFixture {
+  readonly view: GroupsView;
+  readonly analyses: readonly Analysis[];
+  /** The panel of group `group` as the host sends it under run id `runId`. */
+  payloadFor(group: number, runId: number): PanelPayload;
+}
+
+/**
+ * datasets::CO2 split by plant (12 groups of 7 readings), each tuned with natural splines of
+ * df 2 to 4 by 7-fold cross-validation (seed 1), one-SE rule; the overview under set id `setId`.
+ */
+export async function co2GroupsFixture(setId = 10): Promise<GroupsFixture> {
+  const table = parseCsvText(readFileSync(join(fixtureDir, 'co2.csv'), 'utf8'), { file: 'co2.csv', keepText: 'plant' });
+  const split = splitByColumn(table, { x: 'conc', y: 'uptake' }, 'plant', 'co2.csv');
+  const analysis = await analyseGroups(split.groups, { kind: 'natural-spline', candidates: [2, 3, 4], resample: { kind: 'folds', folds: 7, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }, false);
+  const view = buildGroupsView({ setId, fileName: 'co2.csv', split, analysis, common: commonCurveFor(split, analysis) });
+  const analyses = analysis.groups.map((g) => g.analysis);
+  return {
+    view,
+    analyses,
+    payloadFor: (group, runId) =>
+      buildPanelPayload({
+        runId,
+        analysis: analyses[group] as Analysis,
+        source: { fileName: 'co2.csv', xLabel: split.labels.x, yLabel: split.labels.y },
+        rejected: split.rejected.length,
+        heldOut: 0,
+        tolerancePercent: 2,
+      }),
+  };
 }

@@ -40,6 +40,7 @@ export async function run(): Promise<void> {
   require('./saveRecovery.test');
   require('./candidates.test');
   require('./calibration.test');
+  require('./groups.test');
   await new Promise<void>((resolve, reject) => {
     const runner = mocha.run((failures) => {
       const stats = runner.stats ?? { passes: 0, failures };

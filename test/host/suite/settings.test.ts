@@ -94,6 +94,18 @@ describe('settings snapshot (readSettings)', function () {
     assert.deepEqual(readSettings((k) => raw[k]).rule, { kind: 'simplest-within', percent: 5 });
   });
 
+  it('readSettings() reads the group settings: off by default (the command line without --shared-df and --long-table), true when set, a value that is not true or false ignored with a message', function () {
+    assert.deepEqual(readSettings(() => undefined).groups, { sharedDf: false, longTable: false });
+    const on: Record<string, unknown> = { 'groups.sharedDf': true, 'groups.longTable': true };
+    const s = readSettings((k) => on[k]);
+    assert.deepEqual(s.groups, { sharedDf: true, longTable: true });
+    assert.deepEqual(s.problems, []);
+    const bad: Record<string, unknown> = { 'groups.sharedDf': 'yes', 'groups.longTable': 1 };
+    const b = readSettings((k) => bad[k]);
+    assert.deepEqual(b.groups, { sharedDf: false, longTable: false });
+    assert.deepEqual(b.problems, ['knotwise.groups.sharedDf must be true or false; using false', 'knotwise.groups.longTable must be true or false; using false']);
+  });
+
   it('package.json declares every setting readSettings reads, with the same defaults', function () {
     const ext = vscode.extensions.all.find((e) => e.packageJSON?.name === 'knotwise');
     assert.ok(ext, 'the Knotwise extension is loaded');
@@ -124,6 +136,8 @@ describe('settings snapshot (readSettings)', function () {
       'knotwise.inverse.readingsAveraged': DEFAULT_INVERSE.readingsAveraged,
       'knotwise.inverse.referenceUncertainty': DEFAULT_INVERSE.referenceUncertainty,
       'knotwise.inverse.maxIntervalWidth': 0,
+      'knotwise.groups.sharedDf': DEFAULTS.groupsSharedDf,
+      'knotwise.groups.longTable': DEFAULTS.groupsLongTable,
     };
     assert.deepEqual(Object.keys(props).sort(), Object.keys(expected).sort());
     for (const [k, v] of Object.entries(expected)) assert.deepEqual(props[k]?.default, v, k);
