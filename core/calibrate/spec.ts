@@ -70,7 +70,7 @@ export const EDITOR_INVERSE_NAMES: InverseOptionNames = {
 };
 
 /** The command-line words of a spec (options at their defaults left out), for the regenerate command. */
-export function inverseWords(spec: InverseSpec, quote: (text: string) => string): string[] {
+export function inverseFlags(spec: InverseSpec, quote: (text: string) => string): string[] {
   const w = ['--inverse'];
   if (spec.grid !== undefined) w.push('--inverse-grid', quote(formatGrid(spec.grid)));
   if (spec.readingsAveraged !== 1) w.push('--readings-averaged', String(spec.readingsAveraged));

@@ -21,7 +21,7 @@ export interface GroupSpec {
 }
 
 /** The command-line words of a group spec (for the regenerate command). */
-export function groupWords(g: GroupSpec, quote: (text: string) => string): string[] {
+export function groupFlags(g: GroupSpec, quote: (text: string) => string): string[] {
   const w: string[] = [];
   if (g.by !== undefined) w.push('--per', quote(g.by));
   if (g.channels !== undefined) w.push('--channels', quote(g.channels.join(',')));

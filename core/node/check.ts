@@ -12,16 +12,16 @@ import { basename, dirname, isAbsolute, join, relative, resolve, sep } from 'nod
 import { compareFile, jsonDifferences, printable } from '../outputs/compare';
 import { InputError } from '../errors';
 import { defineCommand, formatHelp, parseCommand } from './args';
-import { fitCommand } from '../outputs/plan';
+import { fitCommand, type FitPlan } from '../outputs/plan';
 import { shellWord } from '../outputs/shellWord';
 import { readRecordFile, type RecordFile } from '../outputs/recordPlan';
 import { VERSION } from '../version';
 import { driftFromRecord } from '../calibrate/drift';
 import { recordSample } from '../calibrate/baseline';
-import { isGroupRecord } from '../outputs/groupRecordPlan';
-import { checkGroupRecord } from './checkGroups';
+import { isGroupRecord, readGroupRecord, type GroupRecordRun } from '../outputs/groupRecordPlan';
+import { runGroupPipeline } from './groupPipeline';
 import { sha256 } from './outputs';
-import { portableRelative, runPipeline, type PipelineRun } from './pipeline';
+import { portableRelative, runPipeline } from './pipeline';
 
 /** The outcome for one record. */
 export interface CheckResult {
@@ -137,7 +137,8 @@ function result(r: CheckResult): CheckResult {
 
 /**
  * Checks one record by rebuilding everything from the data and the recorded spec, the
- * record included, and comparing byte for byte: the record must be a whole fit record of
+ * record included, and comparing byte for byte: the record must be a whole fit record (or
+ * group record, core/groups/deliver.ts, rebuilt by the grouped pipeline) of
  * this version that follows its schema (else 'error'); the data's SHA-256 is compared with
  * the recorded one; every output (table, emitted code, report and figures, and the record
  * itself) is rebuilt and compared with its file. The only difference allowed is the
@@ -155,39 +156,35 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
     const code = (e as NodeJS.ErrnoException).code;
     return failed([`${recordPath}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : errorText(e)}`]);
   }
-  // A group record (core/groups/deliver.ts) is checked by rebuilding the whole grouped fit.
-  const group = groupRecordJson(bytes);
-  if (group !== undefined) return checkGroupRecord(recordPath, bytes, group);
-  let read: RecordFile;
+  // A fit record or a group record (core/groups/deliver.ts): each says how to rebuild its outputs.
+  let read: Rebuildable;
   try {
-    read = readRecordFile(bytes, recordPath);
+    const group = groupRecordJson(bytes);
+    read = group !== undefined ? groupRebuild(readGroupRecord(group, recordPath), group) : fitRebuild(readRecordFile(bytes, recordPath), basename(recordPath));
   } catch (e) {
     return failed([errorText(e)]);
   }
-  const rec = read.run;
-  const writtenBy = rec.toolVersion;
+  const { writtenBy } = read;
   const folder = dirname(recordPath);
-  const dataFile = resolve(folder, rec.dataPath);
+  const dataFile = resolve(folder, read.dataPath);
   // Built from the spec with our own quoting; the record's regenerate text is only compared.
-  const regenerate = fitCommand(rec.plan, portableRelative(folder, dataFile));
-  const tableName = (rec.files[0] as { file: string }).file;
-  const outside = rec.files.find((f) => relative(resolve(folder), resolve(folder, f.file)).split(sep)[0] === '..' || isAbsolute(f.file));
-  if (outside) return failed([`the record names an output outside its folder: ${named(outside.file)}`], { writtenBy, regenerate });
-  if (!existsSync(dataFile)) return failed([`the data file ${named(rec.dataPath)} (data.path in the record) was not found`], { writtenBy, regenerate });
+  const regenerate = fitCommand(read.plan, portableRelative(folder, dataFile));
+  const outside = read.files.find((f) => relative(resolve(folder), resolve(folder, f)).split(sep)[0] === '..' || isAbsolute(f));
+  if (outside) return failed([`the record names an output outside its folder: ${named(outside)}`], { writtenBy, regenerate });
+  if (!existsSync(dataFile)) return failed([`the data file ${named(read.dataPath)} (data.path in the record) was not found`], { writtenBy, regenerate });
   const messages: string[] = [];
   const notes: string[] = [];
-  let run: PipelineRun;
+  let run: Rebuilt;
   try {
-    // The table and record under the names they were written with (the editor lets them be renamed).
-    run = await runPipeline(dataFile, rec.plan, folder, { table: tableName, record: basename(recordPath) }, { previous: read.json });
+    run = await read.rebuild(dataFile, folder);
   } catch (e) {
     // The data may have changed so that it no longer fits: say both.
     const sha = sha256(readFileSync(dataFile));
-    if (sha !== rec.dataSha256) {
+    if (sha !== read.dataSha256) {
       return result({
         record: recordPath,
         status: 'changed',
-        messages: [`data ${named(rec.dataPath)} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(sha)}`, `the outputs cannot be rebuilt from it: ${errorText(e)}`],
+        messages: [`data ${named(read.dataPath)} changed: SHA-256 was ${short(read.dataSha256)}, now ${short(sha)}`, `the outputs cannot be rebuilt from it: ${errorText(e)}`],
         notes,
         regenerate,
         writtenBy,
@@ -195,20 +192,9 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
     }
     return failed([`the outputs cannot be rebuilt: ${errorText(e)}`], { writtenBy, regenerate });
   }
-  if (run.table.sha256 !== rec.dataSha256) {
-    const rows = run.selection.data.x.length;
-    messages.push(
-      `data ${named(rec.dataPath)} changed: SHA-256 was ${short(rec.dataSha256)}, now ${short(run.table.sha256)}${rows !== rec.rowsUsed ? `; rows used ${rec.rowsUsed}, now ${rows}` : ''}`,
-    );
-    if (run.fit.df !== rec.df) messages.push(`the chosen df would change from ${rec.df} to ${run.fit.df}`);
-    // How far the curve of the changed data lies from the recorded one (core/calibrate/drift.ts).
-    const recorded = recordSample(read.json);
-    const drift = recorded ? driftFromRecord(recorded, run.fit) : null;
-    if (drift) messages.push(`the curve would move: ${drift.words}`);
-    else if (recorded) messages.push('the curve of the changed data shares no x range with the recorded one');
-  }
+  if (run.dataSha256 !== read.dataSha256) messages.push(`data ${named(read.dataPath)} changed: SHA-256 was ${short(read.dataSha256)}, now ${short(run.dataSha256)}${run.dataChanged}`, ...run.changes);
   let versionOnly = false;
-  for (const f of run.deliverables.files) {
+  for (const f of run.files) {
     const name = named(f.name);
     if (f.kind === 'record') {
       if (sameBytes(bytes, f.text)) continue;
@@ -235,6 +221,70 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
   }
   const status = messages.length ? 'changed' : 'current';
   return result({ record: recordPath, status, messages, notes, regenerate, writtenBy });
+}
+
+/** A record read for checking: its plan and provenance, and how to rebuild its outputs from the data. */
+interface Rebuildable {
+  readonly json: unknown;
+  readonly plan: FitPlan;
+  readonly dataPath: string;
+  readonly dataSha256: string;
+  readonly writtenBy: string;
+  /** Every output the record names (the record itself not included). */
+  readonly files: readonly string[];
+  rebuild(dataFile: string, folder: string): Promise<Rebuilt>;
+}
+
+/** The outputs rebuilt from the data, the data's SHA-256, and what a change of the data changes. */
+interface Rebuilt {
+  readonly dataSha256: string;
+  readonly files: readonly { readonly kind: string; readonly name: string; readonly text: string }[];
+  /** Added to "data ... changed" when it did: the rows used before and now. */
+  readonly dataChanged: string;
+  /** Said after it: the chosen df and how far the curve would move. */
+  readonly changes: readonly string[];
+}
+
+/** A fit record: rebuilt by the single-file pipeline, under the names it was written with. */
+function fitRebuild(read: RecordFile, recordName: string): Rebuildable {
+  const rec = read.run;
+  return {
+    json: read.json,
+    plan: rec.plan,
+    dataPath: rec.dataPath,
+    dataSha256: rec.dataSha256,
+    writtenBy: rec.toolVersion,
+    files: rec.files.map((f) => f.file),
+    async rebuild(dataFile, folder) {
+      // The table and record under the names they were written with (the editor lets them be renamed).
+      const run = await runPipeline(dataFile, rec.plan, folder, { table: (rec.files[0] as { file: string }).file, record: recordName }, { previous: read.json });
+      const rows = run.selection.data.x.length;
+      const changes: string[] = [];
+      if (run.fit.df !== rec.df) changes.push(`the chosen df would change from ${rec.df} to ${run.fit.df}`);
+      // How far the curve of the changed data lies from the recorded one (core/calibrate/drift.ts).
+      const recorded = recordSample(read.json);
+      const drift = recorded ? driftFromRecord(recorded, run.fit) : null;
+      if (drift) changes.push(`the curve would move: ${drift.words}`);
+      else if (recorded) changes.push('the curve of the changed data shares no x range with the recorded one');
+      return { dataSha256: run.table.sha256, files: run.deliverables.files, dataChanged: rows !== rec.rowsUsed ? `; rows used ${rec.rowsUsed}, now ${rows}` : '', changes };
+    },
+  };
+}
+
+/** A group record: rebuilt by the grouped pipeline (core/node/groupPipeline.ts). */
+function groupRebuild(rec: GroupRecordRun, json: unknown): Rebuildable {
+  return {
+    json,
+    plan: rec.plan,
+    dataPath: rec.dataPath,
+    dataSha256: rec.dataSha256,
+    writtenBy: rec.toolVersion,
+    files: rec.files.map((f) => f.file),
+    async rebuild(dataFile, folder) {
+      const run = await runGroupPipeline(dataFile, rec.plan, folder);
+      return { dataSha256: run.table.sha256, files: run.deliverables.files, dataChanged: '', changes: [] };
+    },
+  };
 }
 
 /** What the arguments name: record files (as given, or found in folders) and the folders in which none was found. */

@@ -4,7 +4,6 @@
  * build every output's text. Shared by `knotwise fit --per/--channels` and `knotwise
  * check` of a group record, so both take exactly the same steps.
  */
-import { basename, extname } from 'node:path';
 import { InputError } from '../errors';
 import { analyseGroups, type GroupAnalysis } from '../groups/analyse';
 import { commonCurveFor } from '../groups/commonRun';
@@ -13,9 +12,9 @@ import { splitByChannels, splitByColumn, type GroupSplit } from '../groups/split
 import type { FitPlan } from '../outputs/plan';
 import type { Progress } from '../tune/types';
 import { sha256 } from './outputs';
-import { portableRelative } from './pipeline';
+import { dataSource } from './pipeline';
 import { availableParallelism } from 'node:os';
-import { poolRunner, workerRunner, type StandingRunner } from './pool';
+import { poolRunner } from './pool';
 import { readCsvFile, type FileTable } from './readCsv';
 
 /** Everything one grouped run produced. */
@@ -39,21 +38,17 @@ export async function runGroupPipeline(file: string, plan: FitPlan & { readonly 
   // Many small groups: standing workers take one group's resamples each, while this thread
   // fits and checks the others (two groups in flight per worker keeps both busy).
   const threads = availableParallelism();
-  const runner = split.groups.length > 1 ? poolRunner(threads) : workerRunner();
+  const runner = poolRunner(threads);
   let analysis: GroupAnalysis;
   try {
     analysis = await analyseGroups(split.groups, plan.options, g.sharedDf, runner, progress, 2 * threads);
   } finally {
-    if ('close' in runner) (runner as StandingRunner).close();
+    runner.close();
   }
   const common = commonCurveFor(split, analysis);
   const deliverables = buildGroupDeliverables({
     plan,
-    stem: basename(file, extname(file)),
-    dataFile: basename(file),
-    dataPath: portableRelative(outFolder, file),
-    dataSha256: table.sha256,
-    rowsRead: table.rowCount,
+    ...dataSource(file, outFolder, table),
     labels: split.labels,
     groupLabel: split.groupLabel,
     rejected: split.rejected,

@@ -48,6 +48,11 @@ export function portableRelative(folder: string, target: string): string {
   return relative(resolve(folder), resolve(target)).split(sep).join('/');
 }
 
+/** Where the data came from, as the outputs name it: the file's stem and name, its path from the output folder, its SHA-256 and rows read. */
+export function dataSource(file: string, outFolder: string, table: FileTable): { stem: string; dataFile: string; dataPath: string; dataSha256: string; rowsRead: number } {
+  return { stem: basename(file, extname(file)), dataFile: basename(file), dataPath: portableRelative(outFolder, file), dataSha256: table.sha256, rowsRead: table.rowCount };
+}
+
 /**
  * The fit record at `path` parsed, or undefined when there is none or it is not JSON: the
  * record a new run replaces, whose curve becomes the baseline of the drift.
@@ -102,11 +107,7 @@ export async function runPipeline(
   const deliverables = buildDeliverables({
     previous: source.previous !== undefined ? source.previous : readPreviousRecord(join(outFolder, recordName)),
     plan,
-    stem: basename(file, extname(file)),
-    dataFile: basename(file),
-    dataPath: portableRelative(outFolder, file),
-    dataSha256: table.sha256,
-    rowsRead: table.rowCount,
+    ...dataSource(file, outFolder, table),
     selection,
     fitted,
     analysis,

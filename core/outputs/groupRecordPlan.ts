@@ -34,7 +34,7 @@ export function isGroupRecord(json: unknown): boolean {
  * Example: readGroupRecord(JSON.parse(text), 'rig.groups.fit.json').plan.groups.by.
  */
 export function readGroupRecord(json: unknown, where: string): GroupRecordRun {
-  const f = new Fields(where);
+  const f = new Fields(where, 'group record');
   if (!isGroupRecord(json)) throw new InputError(`not a group record: "format" is not "${GROUP_RECORD_FORMAT}"`, { file: where });
   const rec = json as Json;
   const version = f.num(rec, 'version');

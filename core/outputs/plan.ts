@@ -12,8 +12,8 @@ import { DEFAULT_DIGITS } from '../table/formatCsv';
 import { formatGrid, type GridSpec } from '../table/grid';
 import { formatResampling } from '../registry/resampling/index';
 import { formatRule } from '../registry/rules/index';
-import { inverseWords, type InverseSpec } from '../calibrate/spec';
-import { groupWords, type GroupSpec } from '../groups/spec';
+import { inverseFlags, type InverseSpec } from '../calibrate/spec';
+import { groupFlags, type GroupSpec } from '../groups/spec';
 
 /** What to write besides the fit: table grid and format, safety flags, emitters, report. */
 export interface OutputOptions {
@@ -82,8 +82,8 @@ export function fitCommand(plan: FitPlan, dataPath: string): string {
   if (out.flagNegative) w.push('--flag-negative');
   if (out.emit.length) w.push('--emit', out.emit.join(','));
   if (out.report) w.push('--report');
-  if (out.inverse !== undefined) w.push(...inverseWords(out.inverse, shellWord));
-  if (plan.groups !== undefined) w.push(...groupWords(plan.groups, shellWord));
+  if (out.inverse !== undefined) w.push(...inverseFlags(out.inverse, shellWord));
+  if (plan.groups !== undefined) w.push(...groupFlags(plan.groups, shellWord));
   w.push('--out', '.');
   return w.join(' ');
 }

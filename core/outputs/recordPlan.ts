@@ -39,9 +39,13 @@ type Json = Record<string, unknown>;
 
 /** Reads typed fields of one record, naming the key at fault. */
 export class Fields {
-  constructor(private readonly where: string) {}
+  constructor(
+    private readonly where: string,
+    /** What the messages call the record. */
+    private readonly noun = 'fit record',
+  ) {}
   fail(key: string, what: string): never {
-    throw new InputError(`fit record: "${key}" ${what}`, { file: this.where });
+    throw new InputError(`${this.noun}: "${key}" ${what}`, { file: this.where });
   }
   obj(o: Json, key: string, path = key): Json {
     const v = o[key];

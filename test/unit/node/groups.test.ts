@@ -74,6 +74,12 @@ describe('groups on the command line', function () {
     const changed = await runCheckIn(dir, 'co2.groups.fit.json');
     assert.equal(changed.code, 1);
     assert.match(changed.stdout, /co2\.Mc2\.curve\.csv differs from the rebuilt table/);
+    // A group record with a mistyped key could not be checked, and says which key.
+    const recordPath = join(dir, 'co2.groups.fit.json');
+    writeFileSync(recordPath, readFileSync(recordPath, 'utf8').replace('"sharedDf": false', '"sharedDf": "no"'));
+    const broken = await runCheckIn(dir, 'co2.groups.fit.json');
+    assert.equal(broken.code, 2);
+    assert.match(broken.stdout + broken.stderr, /group record: "spec\.sharedDf" must be true or false/);
   });
 
   it("a shared df comes from the pooled resampled RMSE: with one row of each plant in each fold it is the root mean square of the plants' errors per fold", async () => {
