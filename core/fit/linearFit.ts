@@ -191,6 +191,87 @@ function fmt(v: number): string {
   return Number.isFinite(v) ? String(Number(v.toPrecision(6))) : String(v);
 }
 
+/**
+ * A p x q matrix kept by rows with only its nonzero entries. The natural-spline null space
+ * (the Householder reflections of two boundary rows) is a unit matrix but for a few entries
+ * near either end, so its products below touch about p entries instead of p x q.
+ */
+export interface SparseRows {
+  readonly p: number;
+  readonly q: number;
+  /** Row i's entries are at start[i] .. start[i + 1] - 1 of col and val. */
+  readonly start: Int32Array;
+  readonly col: Int32Array;
+  readonly val: Float64Array;
+}
+
+/** The nonzero entries of a dense p x q matrix, by rows. Example: sparseRows(Float64Array.of(1, 0, 0, 2), 2, 2).col is [0, 1]. */
+export function sparseRows(z: Float64Array, p: number, q: number): SparseRows {
+  const start = new Int32Array(p + 1);
+  const col: number[] = [];
+  const val: number[] = [];
+  for (let i = 0; i < p; i++) {
+    for (let j = 0; j < q; j++) {
+      const v = z[i * q + j] as number;
+      if (v !== 0) {
+        col.push(j);
+        val.push(v);
+      }
+    }
+    start[i + 1] = col.length;
+  }
+  return { p, q, start, col: Int32Array.from(col), val: Float64Array.from(val) };
+}
+
+/**
+ * congruence() for a sparse Z, into `out` (q x q) with `gz` (p x q) as scratch: the same
+ * sums in the same order with the zero terms left out, so the same bits (while the entries
+ * are finite). The resampling hot path calls it for every candidate and resample.
+ */
+export function sparseCongruence(g: Float64Array, z: SparseRows, gz: Float64Array, out: Float64Array): Float64Array {
+  const { p, q, start, col, val } = z;
+  gz.fill(0);
+  for (let i = 0; i < p; i++)
+    for (let k = 0; k < p; k++) {
+      const gik = g[i * p + k] as number;
+      if (gik === 0) continue;
+      for (let e = start[k] as number, end = start[k + 1] as number; e < end; e++) {
+        const j = col[e] as number;
+        gz[i * q + j] = (gz[i * q + j] as number) + gik * (val[e] as number);
+      }
+    }
+  out.fill(0);
+  for (let k = 0; k < p; k++)
+    for (let e = start[k] as number, end = start[k + 1] as number; e < end; e++) {
+      const i = col[e] as number;
+      const zki = val[e] as number;
+      for (let j = 0; j < q; j++) out[i * q + j] = (out[i * q + j] as number) + zki * (gz[k * q + j] as number);
+    }
+  return out;
+}
+
+/** transposeTimes() for a sparse Z into `out` (length q): Z' v, the same sums in the same order. */
+export function sparseTransposeTimes(z: SparseRows, v: Float64Array, out: Float64Array): Float64Array {
+  const { p, start, col, val } = z;
+  out.fill(0);
+  for (let k = 0; k < p; k++) {
+    const vk = v[k] as number;
+    for (let e = start[k] as number, end = start[k + 1] as number; e < end; e++) out[col[e] as number] = (out[col[e] as number] as number) + (val[e] as number) * vk;
+  }
+  return out;
+}
+
+/** times() for a sparse Z into `out` (length p): Z v, the same sums in the same order. */
+export function sparseTimes(z: SparseRows, v: Float64Array, out: Float64Array): Float64Array {
+  const { p, start, col, val } = z;
+  for (let i = 0; i < p; i++) {
+    let s = 0;
+    for (let e = start[i] as number, end = start[i + 1] as number; e < end; e++) s += (val[e] as number) * (v[col[e] as number] as number);
+    out[i] = s;
+  }
+  return out;
+}
+
 /** Z' G Z for symmetric G (p x p) and Z (p x q). */
 export function congruence(g: Float64Array, z: Float64Array, p: number, q: number): Float64Array {
   const gz = new Float64Array(p * q);

@@ -1,6 +1,6 @@
 import type { RowBasis } from '../../basis/rowBasis';
 import { FitError } from '../../errors';
-import { congruence, congruenceT, times, transposeTimes } from '../linearFit';
+import { congruenceT, type SparseRows, sparseCongruence, sparseRows, sparseTimes, sparseTransposeTimes } from '../linearFit';
 import { factorSpd } from '../../linalg/spd';
 import { type Cells, SUMS_PER_CELL } from './cells';
 
@@ -47,6 +47,11 @@ export class SplineFromSums {
   private readonly poly: Float64Array;
   private readonly g: Float64Array;
   private readonly rhs: Float64Array;
+  /** The null space z by rows (mostly a unit matrix) and the scratch of its products. */
+  private readonly zRows: SparseRows;
+  private readonly gz: Float64Array;
+  private readonly gq: Float64Array;
+  private readonly rq: Float64Array;
   /** Per-cell cubic of the last fit: fitPoly[c*4 + p]. */
   readonly fitPoly: Float64Array;
   /** B-spline coefficients of the last successful fit. */
@@ -69,23 +74,54 @@ export class SplineFromSums {
     const p = basis.size;
     this.g = new Float64Array(p * p);
     this.rhs = new Float64Array(p);
+    const q = z.length / p;
+    this.zRows = sparseRows(z, p, q);
+    this.gz = new Float64Array(p * q);
+    this.gq = new Float64Array(q * q);
+    this.rq = new Float64Array(q);
     const vals = new Float64Array(16);
     const buf = new Float64Array(4);
-    for (let c = 0; c < cellCount; c++) {
-      const start = cells.breaks[c] as number;
-      const width = (cells.breaks[c + 1] as number) - start;
-      let first = 0;
+    const piece = new Float64Array(16);
+    // Within one knot interval of the candidate the 4 active B-splines are one cubic each, and
+    // row() reports the same first index there (it changes exactly at the knots). So each run of
+    // cells with one first index is one piece: its cubics are sampled once over the whole run
+    // and carried into each cell's frame, instead of 4 basis evaluations in every cell.
+    const breaks = cells.breaks;
+    let c = 0;
+    while (c < cellCount) {
+      const first = basis.row(((breaks[c] as number) + (breaks[c + 1] as number)) / 2, buf);
+      let end = c + 1;
+      while (end < cellCount && basis.row(((breaks[end] as number) + (breaks[end + 1] as number)) / 2, buf) === first) end++;
+      const start = breaks[c] as number;
+      const width = (breaks[end] as number) - start;
       for (let mIdx = 0; mIdx < 4; mIdx++) {
-        first = basis.row(start + width * (TAU[mIdx] as number), buf);
+        basis.row(start + width * (TAU[mIdx] as number), buf);
         for (let a = 0; a < 4; a++) vals[mIdx * 4 + a] = buf[a] as number;
       }
-      this.first[c] = first;
       for (let a = 0; a < 4; a++)
         for (let pw = 0; pw < 4; pw++) {
-          let s = 0;
-          for (let mIdx = 0; mIdx < 4; mIdx++) s += (VANDER_INV[pw * 4 + mIdx] as number) * (vals[mIdx * 4 + a] as number);
-          this.poly[c * 16 + a * 4 + pw] = s;
+          let v = 0;
+          for (let mIdx = 0; mIdx < 4; mIdx++) v += (VANDER_INV[pw * 4 + mIdx] as number) * (vals[mIdx * 4 + a] as number);
+          piece[a * 4 + pw] = v;
         }
+      // Cell k of the run: s = alpha + beta t with t its own position in [0, 1].
+      for (let k = c; k < end; k++) {
+        const alpha = ((breaks[k] as number) - start) / width;
+        const beta = ((breaks[k + 1] as number) - (breaks[k] as number)) / width;
+        this.first[k] = first;
+        for (let a = 0; a < 4; a++) {
+          const c0 = piece[a * 4] as number;
+          const c1 = piece[a * 4 + 1] as number;
+          const c2 = piece[a * 4 + 2] as number;
+          const c3 = piece[a * 4 + 3] as number;
+          const o = k * 16 + a * 4;
+          this.poly[o] = c0 + alpha * (c1 + alpha * (c2 + alpha * c3));
+          this.poly[o + 1] = beta * (c1 + alpha * (2 * c2 + 3 * alpha * c3));
+          this.poly[o + 2] = beta * beta * (c2 + 3 * alpha * c3);
+          this.poly[o + 3] = beta * beta * beta * c3;
+        }
+      }
+      c = end;
     }
   }
 
@@ -135,11 +171,11 @@ export class SplineFromSums {
       }
     }
     for (let i = 0; i < p; i++) for (let j = 0; j < i; j++) g[j * p + i] = g[i * p + j] as number;
-    const q = this.z.length / p;
+    const zRows = this.zRows;
     let theta: Float64Array;
     try {
-      const factor = factorSpd(congruence(g, this.z, p, q), q, this.label, undefined, true);
-      theta = times(this.z, factor.solve(transposeTimes(this.z, rhs, p, q)), p, q);
+      const factor = factorSpd(sparseCongruence(g, zRows, this.gz, this.gq), zRows.q, this.label, undefined, true);
+      theta = sparseTimes(zRows, factor.solve(sparseTransposeTimes(zRows, rhs, this.rq)), new Float64Array(p));
       this.theta = theta;
       this.inverse = factor.inverse;
     } catch (e) {
