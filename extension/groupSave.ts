@@ -42,8 +42,9 @@ function sha256(text: string): string {
 /**
  * The plan the command line would carry out for this save: the run's options, the table
  * settings, the group column, the df shared when the run shared it, one long table when
- * knotwise.groups.longTable says so. No inverse table, code or report (not available with
- * groups on the command line either).
+ * knotwise.groups.longTable says so, and each group's inverse table when knotwise.inverse.write
+ * is on (as `fit --per ... --inverse` writes them). No code (the editor emits none) and
+ * no report (not available with groups).
  */
 export function groupPlan(input: GroupSaveInput): FitPlan & { readonly groups: GroupSpec } {
   const { settings } = input;
@@ -52,7 +53,7 @@ export function groupPlan(input: GroupSaveInput): FitPlan & { readonly groups: G
     columns: { x, y, weights },
     tune: true,
     options: input.options,
-    output: { ...DEFAULT_OUTPUT, grid: settings.grid, extrapolate: settings.extrapolate, flagNegative: settings.flagNegative, digits: settings.digits },
+    output: { ...DEFAULT_OUTPUT, grid: settings.grid, extrapolate: settings.extrapolate, flagNegative: settings.flagNegative, digits: settings.digits, inverse: settings.inverse },
     groups: { by: input.per, channels: undefined, sharedDf: input.analysis.shared !== undefined, longTable: settings.groups.longTable },
   };
 }
@@ -97,9 +98,10 @@ export async function saveGroupDeliverables(input: GroupSaveInput, answer: Overw
   const uris = await writeOutputSet(folder, input.dataUri, out.files, record.name, answer, 'the new group tables, summary and group record');
   if (!uris) return undefined;
   const tables = out.files.filter((f) => f.kind === 'table').map((f) => f.name);
-  const named = uris.filter((u) => out.files.some((f) => f.kind !== 'table' && u.path.endsWith(`/${f.name}`)));
+  const named = uris.filter((u) => out.files.some((f) => (f.kind === 'summary' || f.kind === 'record') && u.path.endsWith(`/${f.name}`)));
   const groups = input.analysis.groups.length;
   const note =
-    tables.length === 1 ? `The ${groups} groups' curves are in one table, ${tables[0]}.` : `Each of the ${groups} groups has its table beside them (${tables[0]} … ${tables[tables.length - 1]}).`;
+    (tables.length === 1 ? `The ${groups} groups' curves are in one table, ${tables[0]}.` : `Each of the ${groups} groups has its table beside them (${tables[0]} … ${tables[tables.length - 1]}).`) +
+    (out.files.some((f) => f.kind === 'inverse') ? " Each group's inverse table (reading to quantity) is beside them too." : '');
   return { uris, named, note };
 }

@@ -415,9 +415,13 @@ function weightUnit(w: Float64Array | undefined): number {
   return wMax > 0 ? 2 ** -Math.round(Math.log2(wMax)) : 1;
 }
 
-/** Solves A c = b for the q x q Gram matrix A (Cholesky with a condition check); FitError naming `what` when A is rank deficient. */
+/**
+ * Solves A c = b for the q x q Gram matrix A (Cholesky with a condition check); FitError naming
+ * `what` when A is rank deficient. Only the decision of the check is used, so its cheap bound
+ * is tried first (factorSpd's boundOnly: the same decision).
+ */
 function solve(a: Float64Array, b: Float64Array, q: number, what: string, explain?: (failure: SpdFailure) => string): Float64Array {
-  return factorSpd(a, q, what, explain).solve(b);
+  return factorSpd(a, q, what, explain, true).solve(b);
 }
 
 /** Upper-tail F test of an extra sum of squares; an exact fit of the bigger model gives F = Infinity (or 0 when nothing is extra). */

@@ -4,11 +4,17 @@
  * them with each group's rows, df, reason, curve and hashes. Pure; the command line writes
  * the files and `knotwise check` rebuilds them to compare, both through this function.
  */
+import { InputError } from '../errors';
 import type { Selection } from '../ingest/select';
 import type { RejectedRow } from '../ingest/select';
 import { CAUTION } from '../words/caution';
 import { printedValue } from '../emit/common';
 import { fitCommand, type FitPlan } from '../outputs/plan';
+import { codeAndInverseFiles, uniformStep } from '../outputs/deliver';
+import { inverseSpecRecord } from '../outputs/record';
+import type { InverseSummary } from '../calibrate/inverseOutput';
+import { curveWords } from '../registry/curves/index';
+import { sig } from '../tune/format';
 import { resolveGrid } from '../table/autoStep';
 import { shapeTable } from '../table/columns';
 import { curveTable, type CurveTable } from '../table/curveTable';
@@ -30,7 +36,7 @@ export { GROUP_RECORD_FORMAT, GROUP_RECORD_VERSION };
 
 /** One file to write. */
 export interface GroupOutputFile {
-  readonly kind: 'table' | 'summary' | 'record';
+  readonly kind: 'table' | 'summary' | 'record' | 'c' | 'ts' | 'json' | 'inverse';
   readonly name: string;
   readonly text: string;
 }
@@ -76,6 +82,16 @@ export function groupSlugs(names: readonly string[]): string[] {
   });
 }
 
+/** Runs `build` for one group; an InputError from it names the group first ("plant Qn1: ..."). */
+function forGroup<T>(groupLabel: string | undefined, name: string, build: () => T): T {
+  try {
+    return build();
+  } catch (e) {
+    if (e instanceof InputError) throw new InputError(`${groupLabel ?? 'channel'} ${name}: ${e.raw}`, e.place);
+    throw e;
+  }
+}
+
 /** A CSV field: quoted when it holds a comma, quote or line break (RFC 4180). */
 function csvField(text: string): string {
   return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
@@ -91,17 +107,52 @@ function csvField(text: string): string {
  * Cost: O(groups x table rows).
  */
 export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverables {
-  const { plan } = input;
+  // Columns by their labels, as the record stores them (data.columns, data.groupBy): the plan
+  // read back from the record, and every command in the outputs, is the same however the
+  // names were typed (column names match case-blind).
+  const asked = input.plan;
+  const plan: typeof asked = {
+    ...asked,
+    columns: { ...asked.columns, ...input.labels },
+    groups: { ...asked.groups, ...(asked.groups.by !== undefined && input.groupLabel !== undefined ? { by: input.groupLabel } : {}) },
+  };
   const out = plan.output;
   const round = (v: number): number => printedValue(v, out.digits);
   const names = input.analysis.groups.map((g) => g.name);
   const slugs = groupSlugs(names);
-  const tables: { name: string; slug: string; table: CurveTable }[] = input.analysis.groups.map((g, i) => {
+  const regenerate = fitCommand(plan, input.dataPath);
+  const recordName = `${input.stem}.groups.fit.json`;
+  // Each group's table, and after it (--emit, --inverse) its code and inverse table, named by the group.
+  const inverseOf = new Map<string, { file: string; summary: InverseSummary }>();
+  const tables: { name: string; slug: string; table: CurveTable; code: GroupOutputFile[] }[] = input.analysis.groups.map((g, i) => {
     const fit = g.analysis.chosen;
     const sorted = Float64Array.from(g.analysis.data.x).sort();
     const grid = resolveGrid(out.grid, sorted, fit.curve, round);
     checkInRange(grid.points, fit.curve.lower, fit.curve.upper, out.extrapolate);
-    return { name: g.name, slug: slugs[i] as string, table: shapeTable(curveTable(fit, grid.points), out.columns, out.flagNegative).table };
+    const slug = slugs[i] as string;
+    const table = shapeTable(curveTable(fit, grid.points), out.columns, out.flagNegative).table;
+    const code = forGroup(input.groupLabel, g.name, () =>
+      codeAndInverseFiles(
+        fit,
+        {
+          stem: `${input.stem}.${slug}`,
+          table,
+          digits: out.digits,
+          source: { file: input.dataFile, sha256: input.dataSha256 },
+          curve: `${curveWords(fit.kind)}, df ${sig(fit.df, 4)}, ${input.groupLabel ?? 'channel'} ${g.name}`,
+          labels: { x: input.labels.x, y: plan.groups.channels ? g.name : input.labels.y },
+          dataRange: [fit.curve.lower, fit.curve.upper],
+          step: grid.auto ? grid.auto.step : uniformStep(grid.spec, grid.points),
+          recordFile: recordName,
+          regenerate,
+          caution: CAUTION,
+        },
+        out,
+        round,
+      ),
+    );
+    if (code.inverse) inverseOf.set(g.name, { file: code.inverseName, summary: code.inverse.summary });
+    return { name: g.name, slug, table, code: code.files as GroupOutputFile[] };
   });
   const files: GroupOutputFile[] = [];
   const tableFile = new Map<string, string>();
@@ -115,10 +166,11 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
     const name = `${input.stem}.groups.curve.csv`;
     files.push({ kind: 'table', name, text: lines.join('\n') + '\n' });
     for (const t of tables) tableFile.set(t.name, name);
+    for (const t of tables) files.push(...t.code);
   } else {
     for (const t of tables) {
       const name = `${input.stem}.${t.slug}.curve.csv`;
-      files.push({ kind: 'table', name, text: curveTableCsv(t.table, out.digits) });
+      files.push({ kind: 'table', name, text: curveTableCsv(t.table, out.digits) }, ...t.code);
       tableFile.set(t.name, name);
     }
   }
@@ -131,7 +183,6 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
   }
   const summaryName = `${input.stem}.groups.csv`;
   files.push({ kind: 'summary', name: summaryName, text: summaryLines.join('\n') + '\n' });
-  const regenerate = fitCommand(plan, input.dataPath);
   const o = plan.options;
   const shared = input.analysis.shared;
   const record = {
@@ -161,6 +212,8 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
       extrapolate: out.extrapolate,
       columns: out.columns ?? null,
       flagNegative: out.flagNegative,
+      emit: out.emit,
+      inverse: inverseSpecRecord(out.inverse),
       model: { outcome: o.outcome ?? null, shape: o.shape ?? [], robust: o.robust === true ? true : o.robust ? { k: o.robust.k } : null },
     },
     shared: shared
@@ -187,6 +240,7 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
         coefficients: Array.from(f.coefficients, finite),
         range: [f.curve.lower, f.curve.upper],
         table: tableFile.get(g.name) ?? null,
+        inverse: inverseOf.get(g.name) ?? null,
         warnings: a.diagnostics.warnings,
       };
     }),
@@ -194,6 +248,6 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
     regenerate,
     caution: CAUTION,
   };
-  files.push({ kind: 'record', name: `${input.stem}.groups.fit.json`, text: JSON.stringify(record, null, 2) + '\n' });
+  files.push({ kind: 'record', name: recordName, text: JSON.stringify(record, null, 2) + '\n' });
   return { files, record, regenerate };
 }

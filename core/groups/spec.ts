@@ -6,7 +6,7 @@
 /** Format name of the group record (core/groups/deliver.ts). */
 export const GROUP_RECORD_FORMAT = 'knotwise-group-record';
 /** Version of the group record; raised when a key changes meaning, goes away or is added. */
-export const GROUP_RECORD_VERSION = 1;
+export const GROUP_RECORD_VERSION = 2;
 
 /** How the rows were grouped, and how the groups' outputs are laid out (part of the plan). */
 export interface GroupSpec {

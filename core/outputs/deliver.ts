@@ -8,7 +8,7 @@ import type { Analysis, Diagnostics } from '../analysis/types';
 import { emitName, emitText, type EmitInput } from '../emit/index';
 import { printedValue } from '../emit/common';
 import type { Selection } from '../ingest/select';
-import { fitCommand, type FitPlan } from './plan';
+import { fitCommand, type FitPlan, type OutputOptions } from './plan';
 import { CAUTION, fitRecord, type OutputEntry, type OutputKind, type TableSummary } from './record';
 import { reportFigures } from '../report/figures';
 import { reportMarkdown } from '../report/markdown';
@@ -91,10 +91,45 @@ export interface Deliverables {
 }
 
 /** Step of a uniform grid, else undefined. */
-function uniformStep(spec: GridSpec, points: Float64Array): number | undefined {
+export function uniformStep(spec: GridSpec, points: Float64Array): number | undefined {
   if (spec.kind === 'step') return spec.step;
   if (spec.kind === 'count' && points.length > 1) return (spec.stop - spec.start) / (spec.count - 1);
   return undefined;
+}
+
+/** What codeAndInverseFiles gives: the files in writing order, and the inverse table when asked for. */
+export interface CodeAndInverse {
+  readonly files: OutputFile[];
+  readonly inverse: InverseOutput | undefined;
+  /** The inverse table's file name (`<stem>.inverse.csv`), written only with `inverse`. */
+  readonly inverseName: string;
+}
+
+/**
+ * The files after a curve table: its emitted code (`--emit`), then, when asked for, the
+ * inverse table (reading to quantity) and its code, all named from `emitInput.stem`. One
+ * fit's outputs and each group's of a grouped fit are built by it. Throws InputError as
+ * buildInverse does (a turning curve, readings beyond the curve).
+ * Example: codeAndInverseFiles(fit, emitInput, { ...out, emit: ['c'] }, round).files[0].name -> 'cal.curve.h'.
+ */
+export function codeAndInverseFiles(fit: FitResult, emitInput: EmitInput, out: OutputOptions, round: (v: number) => number): CodeAndInverse {
+  const stem = emitInput.stem;
+  const files: OutputFile[] = out.emit.map((kind) => ({ kind, name: emitName(kind, stem), text: emitText(kind, emitInput) }));
+  const inverse = out.inverse !== undefined ? buildInverse(fit, out.inverse, round) : undefined;
+  const inverseName = `${stem}.inverse.csv`;
+  if (inverse) {
+    files.push({ kind: 'inverse', name: inverseName, text: inverseTableCsv(inverse.table, out.digits) });
+    const inverseInput: EmitInput = {
+      ...emitInput,
+      part: 'inverse',
+      table: inverse.table,
+      step: inverse.grid.auto ? inverse.grid.auto.step : uniformStep(inverse.grid.spec, inverse.grid.points),
+      readingRange: inverse.summary.readingRange,
+      method: inverse.summary.method,
+    };
+    for (const kind of out.emit) files.push({ kind, name: emitName(kind, stem, 'inverse'), text: emitText(kind, inverseInput) });
+  }
+  return { files, inverse, inverseName };
 }
 
 /** "x = 1, 2, 3, ..." for warnings. */
@@ -182,36 +217,26 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
   const regenerate = fitCommand(plan, input.dataPath);
   const names = { table: input.names?.table ?? `${input.stem}.curve.csv`, record: input.names?.record ?? `${input.stem}.fit.json`, report: `${input.stem}.report.md` };
   const files: OutputFile[] = [{ kind: 'table', name: names.table, text: curveTableCsv(shaped.table, out.digits) }];
-  const curveText = `${curveWords(fit.kind)}, df ${sig(fit.df, 4)}`;
-  const emitInput: EmitInput = {
-    stem: input.stem,
-    table: shaped.table,
-    digits: out.digits,
-    source: { file: input.dataFile, sha256: input.dataSha256 },
-    curve: curveText,
-    labels: input.selection.labels,
-    dataRange: [fit.curve.lower, fit.curve.upper],
-    step,
-    recordFile: names.record,
-    regenerate,
-    caution: CAUTION,
-  };
-  for (const kind of out.emit) files.push({ kind, name: emitName(kind, input.stem), text: emitText(kind, emitInput) });
-  // The inverse table (reading to quantity) and its code, when asked for.
-  const inverse = out.inverse !== undefined ? buildInverse(fit, out.inverse, round) : undefined;
-  const inverseName = `${input.stem}.inverse.csv`;
-  if (inverse) {
-    files.push({ kind: 'inverse', name: inverseName, text: inverseTableCsv(inverse.table, out.digits) });
-    const inverseInput: EmitInput = {
-      ...emitInput,
-      part: 'inverse',
-      table: inverse.table,
-      step: inverse.grid.auto ? inverse.grid.auto.step : uniformStep(inverse.grid.spec, inverse.grid.points),
-      readingRange: inverse.summary.readingRange,
-      method: inverse.summary.method,
-    };
-    for (const kind of out.emit) files.push({ kind, name: emitName(kind, input.stem, 'inverse'), text: emitText(kind, inverseInput) });
-  }
+  const code = codeAndInverseFiles(
+    fit,
+    {
+      stem: input.stem,
+      table: shaped.table,
+      digits: out.digits,
+      source: { file: input.dataFile, sha256: input.dataSha256 },
+      curve: `${curveWords(fit.kind)}, df ${sig(fit.df, 4)}`,
+      labels: input.selection.labels,
+      dataRange: [fit.curve.lower, fit.curve.upper],
+      step,
+      recordFile: names.record,
+      regenerate,
+      caution: CAUTION,
+    },
+    out,
+    round,
+  );
+  files.push(...code.files);
+  const { inverse, inverseName } = code;
   // The curve this record replaces, and how far the new one moved from it.
   const sample = curveSample(fit);
   const baseline = chooseBaseline(input.previous, sample);

@@ -6,7 +6,7 @@ import { InputError } from '../errors';
 import { GROUP_RECORD_FORMAT, GROUP_RECORD_VERSION, type GroupSpec } from '../groups/spec';
 import { parseColumns } from '../table/columns';
 import { DEFAULT_OUTPUT, type FitPlan } from './plan';
-import { Fields, gridOf, modelOf } from './recordPlan';
+import { emitOf, Fields, gridOf, inverseOf, modelOf } from './recordPlan';
 import { parseCurve } from '../registry/curves/index';
 import { parseResampling } from '../registry/resampling/index';
 import { parseRule } from '../registry/rules/index';
@@ -73,6 +73,8 @@ export function readGroupRecord(json: unknown, where: string): GroupRecordRun {
       extrapolate: f.bool(spec, 'extrapolate', 'spec.extrapolate'),
       columns: spec.columns === null || spec.columns === undefined ? undefined : f.parse('spec.columns', () => parseColumns(f.arr(spec, 'columns', 'spec.columns').map(String).join(','))),
       flagNegative: f.bool(spec, 'flagNegative', 'spec.flagNegative'),
+      emit: emitOf(spec, f),
+      inverse: inverseOf(spec.inverse, f),
     },
     groups: { by, channels, sharedDf: f.bool(spec, 'sharedDf', 'spec.sharedDf'), longTable: f.bool(spec, 'longTable', 'spec.longTable') },
   };

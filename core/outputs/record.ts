@@ -16,7 +16,7 @@ import { curveSample, driftJson, type CurveSample, type Drift } from '../calibra
 import type { Baseline } from '../calibrate/baseline';
 
 /** spec.inverse: the inverse table as asked for, or null. */
-function inverseSpecRecord(spec: InverseSpec | undefined): Record<string, unknown> | null {
+export function inverseSpecRecord(spec: InverseSpec | undefined): Record<string, unknown> | null {
   if (!spec) return null;
   return { grid: spec.grid ?? null, readingsAveraged: spec.readingsAveraged, referenceUncertainty: spec.referenceUncertainty, maxIntervalWidth: spec.maxWidth ?? null };
 }

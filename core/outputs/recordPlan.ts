@@ -112,8 +112,18 @@ export function gridOf(v: unknown, f: Fields, path = 'spec.grid'): GridSpec {
   return f.parse(path, () => parseGrid(formatGrid(g as GridSpec)));
 }
 
+/** spec.emit: the code emitters asked for (absent: none). */
+export function emitOf(spec: Record<string, unknown>, f: Fields): EmitKind[] {
+  if (spec.emit === undefined) return [];
+  return f.arr(spec, 'emit', 'spec.emit').map((k, i) => {
+    const kind = EMIT_KINDS.find((e) => e === k);
+    if (kind === undefined) f.fail(`spec.emit[${i}]`, `must be one of ${EMIT_KINDS.join(', ')}`);
+    return kind as EmitKind;
+  });
+}
+
 /** spec.inverse: the inverse table as asked for, or undefined (null: not asked for). */
-function inverseOf(v: unknown, f: Fields): InverseSpec | undefined {
+export function inverseOf(v: unknown, f: Fields): InverseSpec | undefined {
   if (v === null || v === undefined) return undefined;
   if (typeof v !== 'object') return f.fail('spec.inverse', 'must be an object or null');
   const o = v as Json;
@@ -207,11 +217,6 @@ export function readRecord(json: unknown, where: string): RecordedRun {
   } else {
     options = { kind, candidates: [candidates[0] as number], resample: { kind: 'gcv' }, rule: { kind: 'least-error' }, seed: 0, ...model.options };
   }
-  const emit = f.arr(spec, 'emit', 'spec.emit').map((k, i) => {
-    const kind = EMIT_KINDS.find((e) => e === k);
-    if (kind === undefined) f.fail(`spec.emit[${i}]`, `must be one of ${EMIT_KINDS.join(', ')}`);
-    return kind as EmitKind;
-  });
   const requested = spec.columns === null || spec.columns === undefined ? undefined : f.parse('spec.columns', () => parseColumns(f.arr(spec, 'columns', 'spec.columns').map(String).join(',')));
   const output = {
     ...DEFAULT_OUTPUT,
@@ -220,7 +225,7 @@ export function readRecord(json: unknown, where: string): RecordedRun {
     digits: f.num(spec, 'digits', 'spec.digits'),
     columns: requested,
     flagNegative: f.bool(spec, 'flagNegative', 'spec.flagNegative', false),
-    emit: spec.emit === undefined ? [] : emit,
+    emit: emitOf(spec, f),
     report: f.bool(spec, 'report', 'spec.report', false),
     inverse: inverseOf(spec.inverse, f),
   };

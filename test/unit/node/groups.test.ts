@@ -139,6 +139,53 @@ describe('groups on the command line', function () {
     assert.equal((await runCheckIn(dir, 'eustocks.groups.fit.json')).code, 0);
   });
 
+  it("--emit and --inverse write each group's code and inverse table, the same bytes as its rows alone give; check rebuilds them; a turning curve names its group", async () => {
+    // Monotone shape so every plant's curve has an inverse (datasets::CO2 uptake rises with conc).
+    const MONO = [...TUNE, '--shape', 'increasing', '--emit', 'c,json', '--inverse'];
+    // The column names typed in another case: the record and its commands use the header's labels.
+    const run = await runMain('fit', co2, '--x', 'CONC', '--y', 'uptake', '--per', 'Plant', ...MONO, '--quiet');
+    assert.equal(run.code, 0, run.stderr);
+    const record = JSON.parse(readFileSync(join(dir, 'co2.groups.fit.json'), 'utf8')) as {
+      version: number;
+      spec: { emit: string[]; inverse: unknown };
+      regenerate: string;
+      groups: { name: string; inverse: { file: string; summary: { points: number } } | null }[];
+    };
+    assert.equal(record.version, 2);
+    assert.deepEqual(record.spec.emit, ['c', 'json']);
+    assert.ok(record.spec.inverse);
+    assert.match(record.regenerate, / --x conc .* --per plant /);
+    const alone = join(dir, 'alone');
+    mkdirSync(alone);
+    for (const [plant, rows] of [...plants()].slice(0, 3)) {
+      const file = join(alone, `${plant}.csv`);
+      writeFileSync(file, rows.join('\n') + '\n');
+      const single = await runMain('fit', file, '--x', 'conc', '--y', 'uptake', ...MONO, '--quiet');
+      assert.equal(single.code, 0, single.stderr);
+      const g = record.groups.find((x) => x.name === plant);
+      assert.equal(g?.inverse?.file, `co2.${plant}.inverse.csv`);
+      assert.equal(readFileSync(join(dir, `co2.${plant}.inverse.csv`), 'utf8'), readFileSync(join(alone, `${plant}.inverse.csv`), 'utf8'), `${plant}: the same inverse table`);
+      // The emitted JSON holds the same table values; only names and commands differ.
+      const values = (f: string): { fit: number[] } => (JSON.parse(readFileSync(f, 'utf8')) as { columns: { fit: number[] } }).columns;
+      assert.equal(values(join(dir, `co2.${plant}.curve.json`)).fit.length, 101);
+      assert.deepEqual(values(join(dir, `co2.${plant}.curve.json`)), values(join(alone, `${plant}.curve.json`)));
+      assert.match(readFileSync(join(dir, `co2.${plant}.inverse.h`), 'utf8'), new RegExp(`plant ${plant}`));
+    }
+    assert.equal((await runCheckIn(dir, 'co2.groups.fit.json')).code, 0);
+    const inverse = join(dir, 'co2.Qn2.inverse.csv');
+    writeFileSync(
+      inverse,
+      readFileSync(inverse, 'utf8').replace(/\n(\d)/, (_m, d: string) => `\n${(Number(d) + 1) % 10}`),
+    );
+    const changed = await runCheckIn(dir, 'co2.groups.fit.json');
+    assert.equal(changed.code, 1);
+    assert.match(changed.stdout, /co2\.Qn2\.inverse\.csv differs from the rebuilt one/);
+    // Without the shape, some plant's curve turns within its range: the refusal names that plant.
+    const turning = await runMain('fit', co2, '--x', 'conc', '--y', 'uptake', '--per', 'plant', ...TUNE, '--inverse', '--print-only');
+    assert.equal(turning.code, 2);
+    assert.match(turning.stderr, /plant \w+: the fitted curve turns at x = /);
+  });
+
   it('bad group options say what is wrong', async () => {
     const cases: [string[], RegExp][] = [
       [['--per', 'nope'], /no column named "nope" to split the rows by/],
