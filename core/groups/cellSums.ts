@@ -1,5 +1,5 @@
 import type { RowBasis } from '../basis/rowBasis';
-import { congruence, transposeTimes } from '../fit/linearFit';
+import { sparseCongruence, sparseRows, sparseTransposeTimes } from '../fit/linearFit';
 
 /**
  * Weighted least-squares sums of a row basis restricted to span(Z), kept apart for each of
@@ -60,6 +60,9 @@ export class CellSums {
     const gram = new Float64Array(cells * q * q);
     const rhs = new Float64Array(cells * q);
     const g = new Float64Array(p * p);
+    // Z is mostly a unit matrix: its products touch its nonzero entries only (the same sums).
+    const zRows = sparseRows(z, p, q);
+    const gz = new Float64Array(p * q);
     for (let c = 0; c < cells; c++) {
       const off = c * (p * p + p);
       for (let i = 0; i < p; i++)
@@ -68,8 +71,8 @@ export class CellSums {
           g[i * p + j] = v;
           g[j * p + i] = v;
         }
-      gram.set(congruence(g, z, p, q), c * q * q);
-      rhs.set(transposeTimes(z, raw.subarray(off + p * p, off + p * p + p), p, q), c * q);
+      sparseCongruence(g, zRows, gz, gram.subarray(c * q * q, (c + 1) * q * q));
+      sparseTransposeTimes(zRows, raw.subarray(off + p * p, off + p * p + p), rhs.subarray(c * q, (c + 1) * q));
     }
     return { gram, rhs };
   }

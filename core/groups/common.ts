@@ -136,8 +136,8 @@ const FOLD_LIMITS = { min: 2, max: 100 } as const;
  * takes each group's residuals. The differences of RSS are never taken by subtraction: for
  * nested least-squares fits RSS_small - RSS_big = sum w (fitted_big - fitted_small)^2, which
  * per group is the quadratic form (c_big - c_small)' A_g (c_big - c_small) of its Gram matrix,
- * a sum of non-negative terms. Cost O(N) for the rows (two passes plus the O(N) sort of
- * prepareData), O((G folds) p^2 q + G folds q^3) for the sums and the solves.
+ * a sum of non-negative terms. Cost O(N) for the rows (two passes plus a sort of the
+ * pooled x), O((G folds) p^2 q + G folds q^3) for the sums and the solves.
  *
  * Prior weights are supported (weighted sums of squares, as R's lm with weights); give them
  * for all groups or none. Groups with fewer distinct x than df cannot have a curve of their
@@ -157,13 +157,15 @@ export function commonCurveTest(groups: readonly GroupRows[], df: number, option
     throw new InputError(`the common-curve test needs at least 2 ${o.nouns} with ${df} or more distinct x values; ${kept.length === 1 ? 'there is 1' : `there are ${kept.length}`}${left}`);
   }
   const G = kept.length;
-  const pooled = prepareData(poolRows(kept.map((k) => k.data)));
-  const N = pooled.data.x.length;
+  const pooled = poolRows(kept.map((k) => k.data));
+  // Every group's values were checked on admission; the knots need the pooled x sorted only.
+  const { sortedX, distinct } = sortedValues(pooled.x);
+  const N = pooled.x.length;
   const dfDen = N - G * df;
   if (dfDen <= 0) {
     throw new InputError(`${G} ${o.nouns} with their own curves of df ${df} need more than ${G * df} rows to leave residual degrees of freedom; there are ${N}`);
   }
-  const knots = naturalKnots(pooled.sortedX, pooled.distinct, df);
+  const knots = naturalKnots(sortedX, distinct, df);
   const basis = new ExtrapolatingBSplineBasis(knots.lower, knots.upper, knots.interior);
   const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
   const p = basis.size;
@@ -173,8 +175,8 @@ export function commonCurveTest(groups: readonly GroupRows[], df: number, option
   const labels = kept.map((k) => (allLabels ? (allLabels[k.index] as Uint16Array) : new Uint16Array(k.data.x.length)));
 
   // Pass 1: the sums of every (group, fold) cell, y centred, weights scaled by a power of two.
-  const centre = centringOffset(pooled.data.y, pooled.data.w);
-  const wUnit = weightUnit(pooled.data.w);
+  const centre = centringOffset(pooled.y, pooled.w);
+  const wUnit = weightUnit(pooled.w);
   const cellSums = new CellSums(basis, z, G * K);
   kept.forEach(({ data }, h) => {
     const { x, y, w } = data;
@@ -384,6 +386,17 @@ function admitGroups(groups: readonly GroupRows[], df: number, { noun, nouns }: 
     else kept.push({ name: g.name, index, data });
   });
   return { kept, excluded };
+}
+
+/** The values of x in increasing order (-0 as 0) and how many differ: a numeric sort, no row order kept. O(N log N). */
+function sortedValues(x: Float64Array): { sortedX: Float64Array; distinct: number } {
+  const sortedX = Float64Array.from(x).sort();
+  let distinct = sortedX.length > 0 ? 1 : 0;
+  for (let i = 0; i < sortedX.length; i++) {
+    sortedX[i] = (sortedX[i] as number) + 0;
+    if (i > 0 && sortedX[i] !== sortedX[i - 1]) distinct++;
+  }
+  return { sortedX, distinct };
 }
 
 /** The rows of all groups one after another. O(N). */
