@@ -167,7 +167,11 @@ export class RecordWatch implements vscode.Disposable {
       const line = before.length - 1;
       const col = (before[line] ?? '').length;
       const range = new vscode.Range(line, col, line, col + files.data.sha256.length + 2);
-      const d = new vscode.Diagnostic(range, `Curve table out of date: ${reasons.join('; ')}. Refit and save to bring the table and this record up to date.`, vscode.DiagnosticSeverity.Warning);
+      const advice =
+        files.kind === 'group'
+          ? `Group tables out of date: ${reasons.join('; ')}. Open the review and save every group to bring the tables and this group record up to date.`
+          : `Curve table out of date: ${reasons.join('; ')}. Refit and save to bring the table and this record up to date.`;
+      const d = new vscode.Diagnostic(range, advice, vscode.DiagnosticSeverity.Warning);
       d.source = 'Knotwise';
       this.diagnostics.set(recordUri, [d]);
     }
@@ -210,7 +214,7 @@ export class RecordWatch implements vscode.Disposable {
     this.status.show();
   }
 
-  /** The status bar item's command: pick a stale record, then refit and save, open the review, or show what changed. */
+  /** The status bar item's command: pick a stale record, then refit and save, open the review, or show what changed (a group record: open its grouped review, or show what changed). */
   async offer(): Promise<void> {
     const stale = this.stale();
     if (stale.length === 0) {
@@ -233,7 +237,10 @@ export class RecordWatch implements vscode.Disposable {
     const refit = 'Refit and save';
     const open = 'Open the review';
     const show = 'Show what changed';
-    const action = await vscode.window.showQuickPick([refit, open, show], {
+    // A group record is brought up to date from its review (Save every group); one made from
+    // several reading columns has no editor flow, so only what changed is shown for it.
+    const actions = files.kind === 'group' ? (files.columns.per !== undefined ? [open, show] : [show]) : [refit, open, show];
+    const action = await vscode.window.showQuickPick(actions, {
       title: `Knotwise: ${vscode.workspace.asRelativePath(vscode.Uri.parse(pick.record))}`,
       placeHolder: pick.reasons.join('; '),
     });

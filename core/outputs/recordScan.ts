@@ -8,6 +8,7 @@
  * memory) share the rule. The full check, which rebuilds every output, is core/node/check.ts.
  */
 import { RECORD_FORMAT } from './record';
+import { GROUP_RECORD_FORMAT } from '../groups/spec';
 
 /** A file's size in bytes and modification time in milliseconds. */
 export interface FileStamp {
@@ -42,6 +43,8 @@ export interface RecordedColumns {
   readonly y: string;
   readonly weights?: string;
   readonly trials?: string;
+  /** A group record made with --per: the column naming each row's group. */
+  readonly per?: string;
 }
 
 /** What a record names, before the names are placed on a file system. */
@@ -50,6 +53,8 @@ export interface RecordNames {
   /** The curve table first, then the other outputs the record lists. */
   readonly outputs: readonly { readonly name: string; readonly sha256: string }[];
   readonly columns: RecordedColumns;
+  /** 'group' for a group record (core/groups/deliver.ts): its tables, summary and code are the outputs. */
+  readonly kind: 'fit' | 'group';
 }
 
 /** The files of one record, placed. */
@@ -57,6 +62,7 @@ export interface RecordFiles {
   readonly data: NamedFile;
   readonly outputs: readonly NamedFile[];
   readonly columns: RecordedColumns;
+  readonly kind: 'fit' | 'group';
 }
 
 /** A record as read by `RecordScan.read`. */
@@ -75,10 +81,11 @@ const MAX_TEXT = 4096;
 const isText = (v: unknown): v is string => typeof v === 'string' && v.length > 0 && v.length < MAX_TEXT;
 
 /**
- * The files a fit record's bytes name, or undefined when they are not a Knotwise fit record
- * with a data file, a curve table and x and y columns. Outputs whose name leaves the record's
- * folder ('..' or a leading '/') are left out, so a record cannot make the scan read files
- * elsewhere. O(record size).
+ * The files a fit record's or a group record's bytes name, or undefined when they are not a
+ * Knotwise record with a data file, x and y columns and (a fit record) a curve table or (a
+ * group record) at least one output. Outputs whose name leaves the record's folder ('..' or
+ * a leading '/') are left out, so a record cannot make the scan read files elsewhere.
+ * O(record size).
  * Example: recordNames(bytes)?.outputs[0]?.name === 'cal.curve.csv'.
  */
 export function recordNames(bytes: Uint8Array): RecordNames | undefined {
@@ -89,19 +96,30 @@ export function recordNames(bytes: Uint8Array): RecordNames | undefined {
     return undefined;
   }
   const o = rec as { format?: unknown; data?: Record<string, unknown>; table?: Record<string, unknown>; outputs?: unknown } | null;
-  if (typeof o !== 'object' || o === null || o.format !== RECORD_FORMAT || typeof o.data !== 'object' || !o.data || typeof o.table !== 'object' || !o.table) return undefined;
+  if (typeof o !== 'object' || o === null || typeof o.data !== 'object' || !o.data) return undefined;
+  const group = o.format === GROUP_RECORD_FORMAT;
+  if (!group && (o.format !== RECORD_FORMAT || typeof o.table !== 'object' || !o.table)) return undefined;
   const { data, table } = o;
-  if (!isText(data.path) || !isText(data.sha256) || !isText(table.file) || !isText(table.sha256)) return undefined;
+  if (!isText(data.path) || !isText(data.sha256)) return undefined;
+  if (!group && (!table || !isText(table.file) || !isText(table.sha256))) return undefined;
   const cols = (typeof data.columns === 'object' && data.columns !== null ? data.columns : {}) as Record<string, unknown>;
   if (!isText(cols.x) || !isText(cols.y)) return undefined;
-  const listed = [{ file: table.file, sha256: table.sha256 }, ...(Array.isArray(o.outputs) ? (o.outputs as { file?: unknown; sha256?: unknown }[]) : [])];
+  const listed = [...(!group && table ? [{ file: table.file, sha256: table.sha256 }] : []), ...(Array.isArray(o.outputs) ? (o.outputs as { file?: unknown; sha256?: unknown }[]) : [])];
   const outputs = listed
     .filter((e): e is { file: string; sha256: string } => typeof e === 'object' && e !== null && isText(e.file) && isText(e.sha256) && !e.file.includes('..') && !e.file.startsWith('/'))
     .map((e) => ({ name: e.file, sha256: e.sha256 }));
+  if (outputs.length === 0) return undefined;
   return {
     data: { name: data.path, sha256: data.sha256 },
     outputs,
-    columns: { x: cols.x, y: cols.y, ...(isText(cols.weights) ? { weights: cols.weights } : {}), ...(isText(cols.trials) ? { trials: cols.trials } : {}) },
+    columns: {
+      x: cols.x,
+      y: cols.y,
+      ...(isText(cols.weights) ? { weights: cols.weights } : {}),
+      ...(isText(cols.trials) ? { trials: cols.trials } : {}),
+      ...(group && isText(data.groupBy) ? { per: data.groupBy } : {}),
+    },
+    kind: group ? 'group' : 'fit',
   };
 }
 
@@ -142,7 +160,7 @@ export class RecordScan {
     const names = recordNames(bytes);
     if (!names) return { state: 'foreign' };
     const place = (f: { name: string; sha256: string }): NamedFile => ({ name: f.name, sha256: f.sha256, path: this.fs.resolve(record, f.name) });
-    return { state: 'record', path: record, bytes, stamp, files: { data: place(names.data), outputs: names.outputs.map(place), columns: names.columns } };
+    return { state: 'record', path: record, bytes, stamp, files: { data: place(names.data), outputs: names.outputs.map(place), columns: names.columns, kind: names.kind } };
   }
 
   /**
@@ -171,7 +189,7 @@ export class RecordScan {
       if ((await this.hashOf(f.path, st)) !== f.sha256) reasons.push(`${what} ${f.name} changed since the record was written (its SHA-256 differs)`);
     };
     await look(read.files.data, 'the data');
-    for (const [i, o] of read.files.outputs.entries()) await look(o, i === 0 ? 'the curve table' : 'the output');
+    for (const [i, o] of read.files.outputs.entries()) await look(o, i === 0 && read.files.kind === 'fit' ? 'the curve table' : 'the output');
     this.looked.add(read.path);
     return reasons;
   }

@@ -16,7 +16,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as vscode from 'vscode';
 import type { RunSummary, SaveSummary } from '../../../extension/api';
-import { api, closeEverything, EXTENSION_ID, file, folder, setSetting, text, waitFor } from './helpers';
+import { api, closeEverything, EXTENSION_ID, file, folder, setSetting, text, waitFor, writeText } from './helpers';
 
 const NAME = 'co2.csv';
 const CO2 = { columns: { x: 'conc', y: 'uptake', per: 'plant' } };
@@ -192,6 +192,26 @@ describe('grouped runs in the extension host (datasets::CO2)', function () {
     // Saving again replaces what Knotwise wrote without asking.
     const again = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file(NAME), { replaceForeignFiles: 'no' })) as SaveSummary;
     assert.equal(again.status, 'done', again.message);
+    // The workspace's record watch covers the group record: one group's table edited by hand
+    // marks it on the record file; the table's own bytes back make it current again.
+    const recordUri = file('co2.groups.fit.json');
+    const stale = async (): Promise<readonly string[] | undefined> => (await api().staleRecords()).records.find((r) => r.record === recordUri.toString())?.reasons;
+    await waitFor('the group record to be current', async () => ((await stale()) === undefined ? true : undefined));
+    const table = file('co2.Qn2.curve.csv');
+    const original = await text(table);
+    await writeText(
+      table,
+      original.replace(/\n(\d)/, (_m, d: string) => `\n${(Number(d) + 1) % 10}`),
+    );
+    const reasons = await waitFor('the group record to be out of date', stale);
+    assert.deepEqual(reasons, ['the output co2.Qn2.curve.csv changed since the record was written (its SHA-256 differs)']);
+    const marked = await waitFor('the Problems entry on the group record', () => {
+      const d = vscode.languages.getDiagnostics(recordUri).filter((e) => e.source === 'Knotwise');
+      return d.length ? d : undefined;
+    });
+    assert.match(marked[0]?.message ?? '', /^Group tables out of date: the output co2\.Qn2\.curve\.csv changed/);
+    await writeText(table, original);
+    await waitFor('the group record to be current again', async () => ((await stale()) === undefined ? true : undefined));
   });
 
   it('a table Knotwise did not write is replaced only when the person agrees', async function () {

@@ -5,6 +5,7 @@
  */
 import { strict as assert } from 'node:assert';
 import { createHash } from 'node:crypto';
+import { GROUP_RECORD_FORMAT } from '../../../core/groups/spec';
 import { RECORD_FORMAT } from '../../../core/outputs/record';
 import { RecordScan, recordNames, type FileStamp, type ScanFileSystem } from '../../../core/outputs/recordScan';
 
@@ -82,6 +83,7 @@ describe('recordNames', () => {
         { name: 'cal.h', sha256: sha(HEADER) },
       ],
       columns: { x: 'x', y: 'y' },
+      kind: 'fit',
     });
   });
 
@@ -111,6 +113,45 @@ describe('recordNames', () => {
       recordNames(new TextEncoder().encode(text))?.outputs.map((o) => o.name),
       ['cal.curve.csv', 'cal.h'],
     );
+  });
+});
+
+/** A group record (core/groups/deliver.ts) naming the data and two groups' tables with the SHA-256 of the texts given. */
+function groupRecordText(texts: { data: string; a: string; b: string }): string {
+  return JSON.stringify({
+    format: GROUP_RECORD_FORMAT,
+    data: { path: 'rig.csv', sha256: sha(texts.data), columns: { x: 'x', y: 'y' }, groupBy: 'device', channels: null },
+    outputs: [
+      { kind: 'table', file: 'rig.A.curve.csv', sha256: sha(texts.a) },
+      { kind: 'table', file: 'rig.B.curve.csv', sha256: sha(texts.b) },
+    ],
+  });
+}
+
+describe('group records in the scan', () => {
+  it('recordNames reads a group record: its tables are the outputs and the group column comes with the columns; one without outputs is not a record', () => {
+    const names = recordNames(new TextEncoder().encode(groupRecordText({ data: DATA, a: TABLE, b: HEADER })));
+    assert.equal(names?.kind, 'group');
+    assert.deepEqual(names?.columns, { x: 'x', y: 'y', per: 'device' });
+    assert.deepEqual(
+      names?.outputs.map((o) => o.name),
+      ['rig.A.curve.csv', 'rig.B.curve.csv'],
+    );
+    const empty = { ...(JSON.parse(groupRecordText({ data: DATA, a: TABLE, b: HEADER })) as Record<string, unknown>), outputs: [] };
+    assert.equal(recordNames(new TextEncoder().encode(JSON.stringify(empty))), undefined);
+  });
+
+  it("RecordScan.check of a group record: current, then one group's table changed is named", async () => {
+    const fs = new MemoryFs();
+    fs.write('/w/rig.csv', DATA);
+    fs.write('/w/rig.A.curve.csv', TABLE);
+    fs.write('/w/rig.B.curve.csv', HEADER);
+    fs.write('/w/rig.groups.fit.json', groupRecordText({ data: DATA, a: TABLE, b: HEADER }));
+    const scan = new RecordScan(fs, sha);
+    assert.deepEqual(await reasonsOf(scan, '/w/rig.groups.fit.json'), []);
+    fs.write('/w/rig.B.curve.csv', HEADER + 'changed\n');
+    const reasons = await reasonsOf(scan, '/w/rig.groups.fit.json');
+    assert.deepEqual(reasons, ['the output rig.B.curve.csv changed since the record was written (its SHA-256 differs)']);
   });
 });
 
