@@ -131,7 +131,7 @@ export function dataTotals(data: XYData): DataTotals {
 }
 
 /** The statistics that follow from the residual sum of squares (formulas above). */
-function fitStatistics(n: number, df: number, rss: number, totals: DataTotals) {
+export function fitStatistics(n: number, df: number, rss: number, totals: DataTotals) {
   const residualDf = n - df;
   const sigma2 = residualDf > 0 ? rss / residualDf : NaN;
   const logLik = 0.5 * (totals.sumLogW - n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(rss)));
@@ -152,7 +152,7 @@ function fitStatistics(n: number, df: number, rss: number, totals: DataTotals) {
 }
 
 /** Cook's distances and the exact leave-one-out RMSE (formulas above). */
-function rowStatistics(data: XYData, df: number, sigma2: number, residuals: Float64Array, leverage: Float64Array): { cooks: Float64Array; looRmse: number; looInfinite: boolean } {
+export function rowStatistics(data: XYData, df: number, sigma2: number, residuals: Float64Array, leverage: Float64Array): { cooks: Float64Array; looRmse: number; looInfinite: boolean } {
   const w = data.w;
   const n = residuals.length;
   const cooks = new Float64Array(n);
