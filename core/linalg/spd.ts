@@ -47,7 +47,9 @@ export interface SpdFactor {
  */
 export function factorSpd(a: Float64Array, p: number, what: string, explain?: (failure: SpdFailure) => string, boundOnly = false): SpdFactor {
   const fail = (failure: SpdFailure, plain: string): FitError => new FitError(`${what}: ${explain ? explain(failure) : plain}`);
-  const scale = new Float64Array(p);
+  // Scratch kept between calls of the same size (the resampling hot path factors thousands of
+  // small matrices); every entry read below is written first, so the results do not depend on it.
+  const { scale, l, linv } = scratchOf(p);
   for (let i = 0; i < p; i++) {
     const d = a[i * p + i] as number;
     if (!(d > 0) || !Number.isFinite(d)) {
@@ -60,7 +62,6 @@ export function factorSpd(a: Float64Array, p: number, what: string, explain?: (f
     }
     scale[i] = 1 / Math.sqrt(d);
   }
-  const l = new Float64Array(p * p);
   for (let j = 0; j < p; j++) {
     let s = (a[j * p + j] as number) * (scale[j] as number) * (scale[j] as number);
     for (let k = 0; k < j; k++) s -= (l[j * p + k] as number) ** 2;
@@ -76,7 +77,6 @@ export function factorSpd(a: Float64Array, p: number, what: string, explain?: (f
     }
   }
   // Inverse of the scaled matrix: (L L')^-1 = L^-T L^-1.
-  const linv = new Float64Array(p * p);
   for (let j = 0; j < p; j++) {
     linv[j * p + j] = 1 / (l[j * p + j] as number);
     for (let i = j + 1; i < p; i++) {
@@ -121,6 +121,18 @@ export function factorSpd(a: Float64Array, p: number, what: string, explain?: (f
       return out;
     },
   };
+}
+
+/** Scratch of factorSpd by size: the scaling, the Cholesky factor and its inverse. */
+const scratch = new Map<number, { scale: Float64Array; l: Float64Array; linv: Float64Array }>();
+
+function scratchOf(p: number): { scale: Float64Array; l: Float64Array; linv: Float64Array } {
+  let s = scratch.get(p);
+  if (!s) {
+    s = { scale: new Float64Array(p), l: new Float64Array(p * p), linv: new Float64Array(p * p) };
+    if (p <= 64) scratch.set(p, s);
+  }
+  return s;
 }
 
 const POWER_ITERATIONS = 30;
