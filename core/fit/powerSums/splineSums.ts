@@ -45,6 +45,16 @@ export class SplineFromSums {
   private readonly first: Int32Array;
   /** poly[c*16 + a*4 + p]: coefficient of t^p of active basis function a in cell c. */
   private readonly poly: Float64Array;
+  /**
+   * The candidate's knot intervals as runs of cells: run r covers cells runStart[r] ..
+   * runStart[r + 1] - 1, its 4 cubics in the run's own frame s in [0, 1] are runPoly[r*16 + a*4 + p],
+   * and cell k sits at s = shift[2k] + shift[2k + 1] t.
+   */
+  private readonly runStart: Int32Array;
+  private readonly runPoly: Float64Array;
+  private readonly shift: Float64Array;
+  /** The power sums of one run in its frame, gathered from its cells. */
+  private readonly runSums = new Float64Array(11);
   private readonly g: Float64Array;
   private readonly rhs: Float64Array;
   /** The null space z by rows (mostly a unit matrix) and the scratch of its products. */
@@ -87,6 +97,9 @@ export class SplineFromSums {
     // cells with one first index is one piece: its cubics are sampled once over the whole run
     // and carried into each cell's frame, instead of 4 basis evaluations in every cell.
     const breaks = cells.breaks;
+    const runStarts: number[] = [];
+    const runPolys: number[] = [];
+    this.shift = new Float64Array(2 * cellCount);
     let c = 0;
     while (c < cellCount) {
       const first = basis.row(((breaks[c] as number) + (breaks[c + 1] as number)) / 2, buf);
@@ -104,10 +117,14 @@ export class SplineFromSums {
           for (let mIdx = 0; mIdx < 4; mIdx++) v += (VANDER_INV[pw * 4 + mIdx] as number) * (vals[mIdx * 4 + a] as number);
           piece[a * 4 + pw] = v;
         }
+      runStarts.push(c);
+      for (let j = 0; j < 16; j++) runPolys.push(piece[j] as number);
       // Cell k of the run: s = alpha + beta t with t its own position in [0, 1].
       for (let k = c; k < end; k++) {
         const alpha = ((breaks[k] as number) - start) / width;
         const beta = ((breaks[k + 1] as number) - (breaks[k] as number)) / width;
+        this.shift[2 * k] = alpha;
+        this.shift[2 * k + 1] = beta;
         this.first[k] = first;
         for (let a = 0; a < 4; a++) {
           const c0 = piece[a * 4] as number;
@@ -123,6 +140,9 @@ export class SplineFromSums {
       }
       c = end;
     }
+    runStarts.push(cellCount);
+    this.runStart = Int32Array.from(runStarts);
+    this.runPoly = Float64Array.from(runPolys);
   }
 
   /**
@@ -134,29 +154,94 @@ export class SplineFromSums {
     const p = this.basis.size;
     g.fill(0);
     rhs.fill(0);
-    for (let c = 0; c < this.cellCount; c++) {
-      const o = c * SUMS_PER_CELL;
-      const f = first[c] as number;
-      const pc = c * 16;
-      // The cell's Gram block P H P' (H the Hankel matrix of the power sums S_0..S_6) and
-      // right-hand side P Y, written out: this loop runs for every candidate, cell and resample.
-      const s0 = sums[o] as number;
-      const s1 = sums[o + 1] as number;
-      const s2 = sums[o + 2] as number;
-      const s3 = sums[o + 3] as number;
-      const s4 = sums[o + 4] as number;
-      const s5 = sums[o + 5] as number;
-      const s6 = sums[o + 6] as number;
-      const y0 = sums[o + 7] as number;
-      const y1 = sums[o + 8] as number;
-      const y2 = sums[o + 9] as number;
-      const y3 = sums[o + 10] as number;
+    const { runStart, runPoly, shift, runSums: r } = this;
+    const runs = runStart.length - 1;
+    for (let run = 0; run < runs; run++) {
+      // The run's power sums in its own frame: each cell's sums of t^p scaled by beta^p and
+      // shifted by alpha (sum (alpha + beta t)^p = sum_k C(p, k) alpha^(p-k) beta^k t^k, by
+      // repeated one-step shifts, a Pascal matrix factored; all terms of the t-power sums are
+      // non-negative, so nothing cancels). One Gram block per knot interval of the candidate
+      // then serves all of its cells.
+      r.fill(0);
+      for (let k = runStart[run] as number, end = runStart[run + 1] as number; k < end; k++) {
+        const o = k * SUMS_PER_CELL;
+        const alpha = shift[2 * k] as number;
+        const beta = shift[2 * k + 1] as number;
+        const t0 = sums[o] as number;
+        let t1 = beta * (sums[o + 1] as number);
+        const b2 = beta * beta;
+        let t2 = b2 * (sums[o + 2] as number);
+        const b3 = b2 * beta;
+        let t3 = b3 * (sums[o + 3] as number);
+        let t4 = b2 * b2 * (sums[o + 4] as number);
+        let t5 = b2 * b3 * (sums[o + 5] as number);
+        let t6 = b3 * b3 * (sums[o + 6] as number);
+        const u0 = sums[o + 7] as number;
+        let u1 = beta * (sums[o + 8] as number);
+        let u2 = b2 * (sums[o + 9] as number);
+        let u3 = b3 * (sums[o + 10] as number);
+        if (alpha !== 0) {
+          t6 += alpha * t5;
+          t5 += alpha * t4;
+          t4 += alpha * t3;
+          t3 += alpha * t2;
+          t2 += alpha * t1;
+          t1 += alpha * t0;
+          t6 += alpha * t5;
+          t5 += alpha * t4;
+          t4 += alpha * t3;
+          t3 += alpha * t2;
+          t2 += alpha * t1;
+          t6 += alpha * t5;
+          t5 += alpha * t4;
+          t4 += alpha * t3;
+          t3 += alpha * t2;
+          t6 += alpha * t5;
+          t5 += alpha * t4;
+          t4 += alpha * t3;
+          t6 += alpha * t5;
+          t5 += alpha * t4;
+          t6 += alpha * t5;
+          u3 += alpha * u2;
+          u2 += alpha * u1;
+          u1 += alpha * u0;
+          u3 += alpha * u2;
+          u2 += alpha * u1;
+          u3 += alpha * u2;
+        }
+        r[0] = (r[0] as number) + t0;
+        r[1] = (r[1] as number) + t1;
+        r[2] = (r[2] as number) + t2;
+        r[3] = (r[3] as number) + t3;
+        r[4] = (r[4] as number) + t4;
+        r[5] = (r[5] as number) + t5;
+        r[6] = (r[6] as number) + t6;
+        r[7] = (r[7] as number) + u0;
+        r[8] = (r[8] as number) + u1;
+        r[9] = (r[9] as number) + u2;
+        r[10] = (r[10] as number) + u3;
+      }
+      const f = first[runStart[run] as number] as number;
+      const pc = run * 16;
+      // The run's Gram block P H P' (H the Hankel matrix of the power sums S_0..S_6) and
+      // right-hand side P Y, written out: this runs for every candidate, knot interval and resample.
+      const s0 = r[0] as number;
+      const s1 = r[1] as number;
+      const s2 = r[2] as number;
+      const s3 = r[3] as number;
+      const s4 = r[4] as number;
+      const s5 = r[5] as number;
+      const s6 = r[6] as number;
+      const y0 = r[7] as number;
+      const y1 = r[8] as number;
+      const y2 = r[9] as number;
+      const y3 = r[10] as number;
       for (let a = 0; a < 4; a++) {
         const pa = pc + a * 4;
-        const a0 = poly[pa] as number;
-        const a1 = poly[pa + 1] as number;
-        const a2 = poly[pa + 2] as number;
-        const a3 = poly[pa + 3] as number;
+        const a0 = runPoly[pa] as number;
+        const a1 = runPoly[pa + 1] as number;
+        const a2 = runPoly[pa + 2] as number;
+        const a3 = runPoly[pa + 3] as number;
         // Row a of P H.
         const m0 = a0 * s0 + a1 * s1 + a2 * s2 + a3 * s3;
         const m1 = a0 * s1 + a1 * s2 + a2 * s3 + a3 * s4;
@@ -166,7 +251,7 @@ export class SplineFromSums {
         const row = (f + a) * p + f;
         for (let b = 0; b <= a; b++) {
           const pb = pc + b * 4;
-          g[row + b] = (g[row + b] as number) + (poly[pb] as number) * m0 + (poly[pb + 1] as number) * m1 + (poly[pb + 2] as number) * m2 + (poly[pb + 3] as number) * m3;
+          g[row + b] = (g[row + b] as number) + (runPoly[pb] as number) * m0 + (runPoly[pb + 1] as number) * m1 + (runPoly[pb + 2] as number) * m2 + (runPoly[pb + 3] as number) * m3;
         }
       }
     }
