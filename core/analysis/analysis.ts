@@ -24,7 +24,17 @@ export async function analyse(data: XYData, options: AnalysisOptions, runner: Re
   const prepared = prepareData(tuning);
   const { result, fits } = await tuneCurve(
     prepared,
-    { kind: options.kind, candidates: options.candidates, resample: options.resample, rule: options.rule, seed: options.seed, outcome: options.outcome, shape: options.shape, robust: options.robust },
+    {
+      kind: options.kind,
+      candidates: options.candidates,
+      resample: options.resample,
+      rule: options.rule,
+      seed: options.seed,
+      outcome: options.outcome,
+      shape: options.shape,
+      robust: options.robust,
+      squaredOnly: options.squaredOnly,
+    },
     runner,
     progress,
   );

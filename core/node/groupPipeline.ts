@@ -41,7 +41,9 @@ export async function runGroupPipeline(file: string, plan: FitPlan & { readonly 
   const runner = poolRunner(threads);
   let analysis: GroupAnalysis;
   try {
-    analysis = await analyseGroups(split.groups, plan.options, g.sharedDf, runner, progress, 2 * threads);
+    // A grouped run's outputs show each group's RMSE only: the resamples measure the squared
+    // error alone (with an RMSE rule), not the mean absolute and largest errors.
+    analysis = await analyseGroups(split.groups, { ...plan.options, squaredOnly: true }, g.sharedDf, runner, progress, 2 * threads);
   } finally {
     runner.close();
   }

@@ -27,6 +27,8 @@ export interface ResampleProblem {
   readonly order: Int32Array;
   /** Outcome family, shape constraints, robust fitting (absent: plain least squares). */
   readonly model?: ModelOptions | undefined;
+  /** Only the squared error is wanted: the natural spline's resamples leave MAE and the largest error out (NaN). */
+  readonly squaredOnly?: boolean | undefined;
 }
 
 /**
@@ -160,7 +162,8 @@ export class ResampleEngine {
       // error from the test sums, and the absolute errors of all candidates in one pass over the test rows.
       const trained = this.trained;
       for (let k = 0; k < C; k++) trained[k] = nTest > 0 && (this.trainers[k] as Trainer).train(weights, this.sums) ? 1 : 0;
-      this.absoluteErrorsFromCells(models, nTest);
+      const absolute = this.problem.squaredOnly !== true;
+      if (absolute) this.absoluteErrorsFromCells(models, nTest);
       for (let k = 0; k < C; k++) {
         if (trained[k] === 0) {
           out[k] = out[C + k] = out[2 * C + k] = out[3 * C + k] = NaN;
@@ -168,8 +171,8 @@ export class ResampleEngine {
         }
         const sse = (models[k] as SplineFromSums).sse(this.testSums as Float64Array);
         out[k] = this.yscale * Math.sqrt(sse / wTest);
-        out[C + k] = (this.yscale * (this.sae[k] as number)) / wTest;
-        out[2 * C + k] = this.yscale * (this.maxAbs[k] as number);
+        out[C + k] = absolute ? (this.yscale * (this.sae[k] as number)) / wTest : NaN;
+        out[2 * C + k] = absolute ? this.yscale * (this.maxAbs[k] as number) : NaN;
         out[3 * C + k] = (this.yscale * this.yscale * sse) / wTest;
       }
       return;

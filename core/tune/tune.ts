@@ -25,6 +25,13 @@ export interface TuneOptions extends ModelOptions {
   readonly seed: number;
   /** Error the rules compare; default RMSE (mean deviance for Poisson/binomial outcomes; the GCV score with `gcv` resampling). */
   readonly metric?: Metric | undefined;
+  /**
+   * Only the squared error of the resamples is wanted (RMSE and deviance): with an RMSE rule
+   * nothing else is read (a grouped run's outputs show RMSE only), so the natural spline's
+   * resamples skip the pass over the held-out rows that MAE and the largest error need, and
+   * those are left out (NaN).
+   */
+  readonly squaredOnly?: boolean | undefined;
 }
 
 /** Runs resamples somewhere (inline, or in worker threads) and returns each resample's errors in order. */
@@ -127,6 +134,7 @@ export async function tuneCurve(
       seed,
       order: orderByX(prepared.data.x),
       ...(plain ? {} : { model: modelSpec }),
+      ...(options.squaredOnly && metric === 'rmse' ? { squaredOnly: true } : {}),
     };
     const perResample = await runner.run(problem, count, progress);
     const C = fitted.length;
@@ -140,7 +148,8 @@ export async function tuneCurve(
         return;
       }
       if (failed > 0) notes.push(`df ${df}: ${failed} of ${count} resamples could not be fitted and were left out of its mean error.`);
-      errors.set(df, { rmse: strip(rmse), mae: strip(summarise(pick(1))), maxAbs: strip(summarise(pick(2))), ...(glm ? { deviance: strip(summarise(pick(3))) } : {}) });
+      const absolute = problem.squaredOnly ? {} : { mae: strip(summarise(pick(1))), maxAbs: strip(summarise(pick(2))) };
+      errors.set(df, { rmse: strip(rmse), ...absolute, ...(glm ? { deviance: strip(summarise(pick(3))) } : {}) });
     });
   } else if (scheme.method === 'leverage') {
     for (const df of fitted) errors.set(df, leaveOneOutErrors(prepared, fits.get(df) as FitResult));

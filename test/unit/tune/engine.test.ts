@@ -31,7 +31,7 @@ import { startWorkersEarly, workerRunner } from '../../../core/node/pool';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../../../core/tune/engine';
 import { bootstrapCounts, foldLabels } from '../../../core/registry/resampling/index';
 import { orderByX } from '../../../core/tune/plan';
-import { inlineRunner } from '../../../core/tune/tune';
+import { inlineRunner, tuneCurve } from '../../../core/tune/tune';
 import type { Progress, ResampleSpec } from '../../../core/tune/types';
 import type { CurveKindId } from '../../../core/types';
 
@@ -264,6 +264,40 @@ describe('ResampleEngine (natural spline, power sums) against brute-force refits
       ),
       { numRuns: 40, seed: 5150 },
     );
+  });
+});
+
+describe('ResampleEngine: only the squared error when nothing else is read', () => {
+  it('squaredOnly gives every resample and candidate the same RMSE and deviance bits and leaves MAE and the largest error out (mcycle, bootstrap); tuneCurve then reports RMSE only', async () => {
+    const dfs = [3, 5, 8, 12];
+    const spec: ResampleSpec = { kind: 'bootstrap', resamples: 6 };
+    const full = new ResampleEngine(problemOf(MCYCLE, 'natural-spline', dfs, spec, 4));
+    const squared = new ResampleEngine({ ...problemOf(MCYCLE, 'natural-spline', dfs, spec, 4), squaredOnly: true });
+    const C = dfs.length;
+    const a = new Float64Array(full.outputLength);
+    const b = new Float64Array(squared.outputLength);
+    for (let r = 0; r < 6; r++) {
+      full.run(r, a);
+      squared.run(r, b);
+      for (let k = 0; k < C; k++) {
+        assert.ok(Number.isFinite(a[k] as number) && Number.isFinite(a[C + k] as number), 'the full run measures every error');
+        assert.equal(b[k], a[k], `resample ${r}, df ${dfs[k]}: the same RMSE`);
+        assert.equal(b[3 * C + k], a[3 * C + k], 'the same mean squared error');
+        assert.ok(Number.isNaN(b[C + k] as number) && Number.isNaN(b[2 * C + k] as number), 'MAE and the largest error left out');
+      }
+      assert.equal(b[4 * C], a[4 * C], 'the same scored rows');
+    }
+    const tuned = await tuneCurve(prepareData({ x: MCYCLE.x, y: MCYCLE.y }), { kind: 'natural-spline', candidates: dfs, resample: spec, rule: { kind: 'one-se' }, seed: 4, squaredOnly: true });
+    const whole = await tuneCurve(prepareData({ x: MCYCLE.x, y: MCYCLE.y }), { kind: 'natural-spline', candidates: dfs, resample: spec, rule: { kind: 'one-se' }, seed: 4 });
+    assert.deepEqual(
+      tuned.result.candidates.map((c) => Object.keys(c.errors)),
+      dfs.map(() => ['rmse']),
+    );
+    assert.deepEqual(
+      tuned.result.candidates.map((c) => c.errors.rmse),
+      whole.result.candidates.map((c) => c.errors.rmse),
+    );
+    assert.equal(tuned.result.selected.reason, whole.result.selected.reason);
   });
 });
 
