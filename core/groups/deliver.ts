@@ -25,6 +25,7 @@ import { formatResampling } from '../registry/resampling/index';
 import { formatRule } from '../registry/rules/index';
 import type { GroupAnalysis } from './analyse';
 import type { CommonCurveJson } from './commonJson';
+import { groupReport } from './report';
 import type { GroupSpec } from './spec';
 
 export type { GroupSpec } from './spec';
@@ -36,7 +37,7 @@ export { GROUP_RECORD_FORMAT, GROUP_RECORD_VERSION };
 
 /** One file to write. */
 export interface GroupOutputFile {
-  readonly kind: 'table' | 'summary' | 'record' | 'c' | 'ts' | 'json' | 'inverse';
+  readonly kind: 'table' | 'summary' | 'record' | 'c' | 'ts' | 'json' | 'inverse' | 'report' | 'figure';
   readonly name: string;
   readonly text: string;
 }
@@ -183,6 +184,33 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
   }
   const summaryName = `${input.stem}.groups.csv`;
   files.push({ kind: 'summary', name: summaryName, text: summaryLines.join('\n') + '\n' });
+  if (out.report) {
+    const rmse = new Map<string, { mean: number; se: number }>();
+    for (const g of input.analysis.groups) {
+      const e = g.analysis.tune.candidates.find((c) => c.df === g.analysis.chosen.df)?.errors.rmse;
+      if (e) rmse.set(g.name, { mean: e.mean, se: e.se });
+    }
+    const o = plan.options;
+    files.push(
+      ...groupReport({
+        stem: input.stem,
+        dataFile: input.dataFile,
+        dataSha256: input.dataSha256,
+        rowsRead: input.rowsRead,
+        split: { rejected: input.rejected, labels: input.labels, groupLabel: input.groupLabel },
+        analysis: input.analysis,
+        common: input.common,
+        method: `Curve: ${curveWords(o.kind)}; the df chosen ${input.analysis.shared ? 'for all groups together' : 'for each group'} by the ${formatRule(o.rule)} rule from ${formatResampling(o.resample)} resampling, seed ${o.seed}.`,
+        rmse,
+        warnings: new Map(input.analysis.groups.map((g) => [g.name, g.analysis.diagnostics.warnings])),
+        tables: tableFile,
+        summaryFile: summaryName,
+        recordFile: recordName,
+        regenerate,
+        caution: CAUTION,
+      }),
+    );
+  }
   const o = plan.options;
   const shared = input.analysis.shared;
   const record = {
@@ -213,6 +241,7 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
       columns: out.columns ?? null,
       flagNegative: out.flagNegative,
       emit: out.emit,
+      report: out.report,
       inverse: inverseSpecRecord(out.inverse),
       model: { outcome: o.outcome ?? null, shape: o.shape ?? [], robust: o.robust === true ? true : o.robust ? { k: o.robust.k } : null },
     },

@@ -74,6 +74,7 @@ export function readGroupRecord(json: unknown, where: string): GroupRecordRun {
       columns: spec.columns === null || spec.columns === undefined ? undefined : f.parse('spec.columns', () => parseColumns(f.arr(spec, 'columns', 'spec.columns').map(String).join(','))),
       flagNegative: f.bool(spec, 'flagNegative', 'spec.flagNegative'),
       emit: emitOf(spec, f),
+      report: f.bool(spec, 'report', 'spec.report'),
       inverse: inverseOf(spec.inverse, f),
     },
     groups: { by, channels, sharedDf: f.bool(spec, 'sharedDf', 'spec.sharedDf'), longTable: f.bool(spec, 'longTable', 'spec.longTable') },

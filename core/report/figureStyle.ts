@@ -27,19 +27,23 @@ export const REPORT_FIGURE_CSS = [
   '.kw-band-pi.kw-drift-recorded{fill:#c05a00;fill-opacity:0.15}',
   '.kw-stem{stroke:#777777;stroke-width:0.8}',
   '.kw-influential{fill:#b3261e;stroke:#b3261e;fill-opacity:1}',
+  '.kw-heat{fill:#1f5fa8}.kw-heat-1{fill-opacity:0.08}.kw-heat-2{fill-opacity:0.2}.kw-heat-3{fill-opacity:0.32}.kw-heat-4{fill-opacity:0.44}',
+  '.kw-heat-5{fill-opacity:0.56}.kw-heat-6{fill-opacity:0.68}.kw-heat-7{fill-opacity:0.8}.kw-heat-8{fill-opacity:0.92}',
+  '.kw-uncovered{fill:#999999;fill-opacity:0.55}',
 ].join('');
 
 /**
  * The figure as a standalone SVG file: XML declaration, the report palette in a <style>
  * element and a white background, inserted after the figure's <title> and <desc>; LF and a final
- * newline. Throws Error when the text is not an <svg> element. O(length).
+ * newline; `extraCss` adds rules for classes only some figures use (the grouped report's).
+ * Throws Error when the text is not an <svg> element. O(length).
  * Example: standaloneSvg(dataCurveSvg(spec)).startsWith('<?xml').
  */
-export function standaloneSvg(svg: string): string {
+export function standaloneSvg(svg: string, extraCss = ''): string {
   const open = svg.indexOf('>');
   if (!svg.startsWith('<svg') || open < 0) throw new Error('standaloneSvg: the figure is not an <svg> element');
   // After <title> and <desc> when present, so they stay the first children screen readers look for.
   const desc = svg.indexOf('</desc>');
   const at = desc >= 0 ? desc + '</desc>'.length : open + 1;
-  return '<?xml version="1.0" encoding="UTF-8"?>\n' + svg.slice(0, at) + `<style>${REPORT_FIGURE_CSS}</style>` + '<rect width="100%" height="100%" fill="#ffffff"/>' + svg.slice(at) + '\n';
+  return '<?xml version="1.0" encoding="UTF-8"?>\n' + svg.slice(0, at) + `<style>${REPORT_FIGURE_CSS}${extraCss}</style>` + '<rect width="100%" height="100%" fill="#ffffff"/>' + svg.slice(at) + '\n';
 }

@@ -186,13 +186,46 @@ describe('groups on the command line', function () {
     assert.match(turning.stderr, /plant \w+: the fitted curve turns at x = /);
   });
 
+  it('--report writes one grouped review: every group in the summary with its df and table, the one-curve words, two standalone figures; check rebuilds it', async () => {
+    const run = await runMain('fit', co2, '--x', 'conc', '--y', 'uptake', '--per', 'plant', ...TUNE, '--report', '--quiet');
+    assert.equal(run.code, 0, run.stderr);
+    const record = JSON.parse(readFileSync(join(dir, 'co2.groups.fit.json'), 'utf8')) as {
+      spec: { report: boolean };
+      common: { words: string };
+      groups: { name: string; df: number; table: string }[];
+      outputs: { kind: string; file: string }[];
+    };
+    assert.equal(record.spec.report, true);
+    const report = readFileSync(join(dir, 'co2.groups.report.md'), 'utf8');
+    assert.match(report, /^# Grouped fit of co2\.csv\n/);
+    assert.match(report, /12 groups by plant, 84 rows used of 84 read \(0 rejected\)/);
+    for (const g of record.groups) assert.ok(report.includes(`| ${g.name} | 7 | ${g.df} |`) && report.includes(`[${g.table}](${g.table})`), g.name);
+    assert.ok(report.includes(record.common.words.replace(/</g, '\\<')), 'the one-curve words');
+    assert.match(report, /knotwise check co2\.groups\.fit\.json/);
+    for (const name of ['co2.groups.report.overlay.svg', 'co2.groups.report.small.svg']) {
+      const svg = readFileSync(join(dir, name), 'utf8');
+      assert.match(svg, /^<\?xml version="1\.0" encoding="UTF-8"\?>\n<svg [^>]*role="img"/);
+      assert.match(svg, /<style>[^<]*\.kw-group-curve\{fill:none/, `${name} carries its own palette`);
+      assert.ok(report.includes(`](${name})`), `${name} is shown`);
+      assert.ok(record.outputs.some((o) => o.file === name && o.kind === 'figure'));
+    }
+    // Twelve plants: one curve each in the overlay, one small figure each, named above it.
+    assert.equal((readFileSync(join(dir, 'co2.groups.report.overlay.svg'), 'utf8').match(/class="kw-group-curve/g) ?? []).length, 12);
+    assert.equal((readFileSync(join(dir, 'co2.groups.report.small.svg'), 'utf8').match(/class="kw-small-name"/g) ?? []).length, 12);
+    assert.equal((await runCheckIn(dir, 'co2.groups.fit.json')).code, 0);
+    writeFileSync(join(dir, 'co2.groups.report.md'), report.replace('## Summary', '## Summery'));
+    const changed = await runCheckIn(dir, 'co2.groups.fit.json');
+    assert.equal(changed.code, 1);
+    assert.match(changed.stdout, /co2\.groups\.report\.md differs from the rebuilt one/);
+  });
+
   it('bad group options say what is wrong', async () => {
     const cases: [string[], RegExp][] = [
       [['--per', 'nope'], /no column named "nope" to split the rows by/],
       [['--per', 'conc'], /--x and --per name the same column "conc"/],
       [['--shared-df'], /--shared-df needs groups/],
       [['--per', 'plant', '--shared-df', '--resampling', 'gcv'], /pooled resampled errors: use bootstrap/],
-      [['--per', 'plant', '--report'], /--report is not available with groups yet/],
+      [['--per', 'plant', '--holdout', '0.2'], /--holdout is not available with groups yet/],
     ];
     for (const [args, message] of cases) {
       const r = await runMain('fit', co2, '--x', 'conc', '--y', 'uptake', ...args, '--print-only');
