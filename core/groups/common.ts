@@ -37,8 +37,22 @@ export interface GroupDifference {
   readonly p: number;
   /** Bonferroni: min(1, groups x p). */
   readonly pAdjusted: number;
-  /** The test of all groups rejects one curve, and pAdjusted is below the level. */
+  /** The test of all groups rejects one curve, and the step-down procedure names this group (see `StepDownStep`). */
   readonly differs: boolean;
+}
+
+/**
+ * One step of naming the groups that differ: the group whose own curve reduces the residual
+ * sum of squares most, given those named before have their own curves and the rest share one
+ * (F on df and the separate model's N - G df, its mean square as the denominator), with its
+ * p-value adjusted in Holm's step-down order (Holm 1979, Scand. J. Statist. 6: the smallest
+ * of m remaining p-values times m, never below the previous step's).
+ */
+export interface StepDownStep {
+  readonly name: string;
+  readonly F: number;
+  readonly p: number;
+  readonly pAdjusted: number;
 }
 
 /** k-fold cross-validated RMSE of both models on the same folds. */
@@ -72,6 +86,10 @@ export interface CommonCurveTest {
   readonly p: number;
   readonly level: number;
   readonly perGroup: readonly GroupDifference[];
+  /** The groups named as differing, in the order the step-down procedure named them (at most MAX_STEPS). */
+  readonly stepDown: readonly StepDownStep[];
+  /** True when the procedure stopped at MAX_STEPS with groups still to test: more may differ. */
+  readonly stepDownCapped: boolean;
   /** Null when switched off (folds 0) or when some fold cannot be fitted (the notes say why). */
   readonly cv: CrossValidatedErrors | null;
   /** p >= level: separate curves do not fit significantly better than one. */
@@ -261,6 +279,10 @@ export function commonCurveTest(groups: readonly GroupRows[], df: number, option
   const overall = fTest(extraSS, dfNum, rssSeparate, dfDen);
   const oneServesAll = !(overall.p < o.level);
 
+  // Which groups differ: named one at a time, so a group far from the rest does not make the
+  // curve the others share look wrong for groups that follow it (a single-step test would).
+  const named = oneServesAll ? { steps: [], capped: false } : stepDown(groupGram, groupRhs, own, q, kept.map((k) => k.name), { df, rssSeparate: rss1, dfDen, level: o.level });
+  const namedSet = new Set(named.steps.map((st) => st.name));
   const perGroup: GroupDifference[] = kept.map(({ name, data }, g) => {
     // Extra sum of squares of g's own curve: its squares against the common curve on g's rows, plus the others' shared curve against it on theirs.
     const delta = (differenceSquares(groupGram, g * q2, q, own[g] as Float64Array, common) + differenceSquares(othersGram, g * q2, q, others[g] as Float64Array, common)) / wUnit;
@@ -268,13 +290,13 @@ export function commonCurveTest(groups: readonly GroupRows[], df: number, option
     const rss = rssSeparate + Math.max(0, extraSS - delta);
     const t = fTest(delta, df, rss, N - 2 * df);
     const pAdjusted = Math.min(1, G * t.p);
-    return { name, n: data.x.length, F: t.F, dfNum: df, dfDen: N - 2 * df, p: t.p, pAdjusted, differs: !oneServesAll && pAdjusted < o.level };
+    return { name, n: data.x.length, F: t.F, dfNum: df, dfDen: N - 2 * df, p: t.p, pAdjusted, differs: namedSet.has(name) };
   });
 
   const cv: CrossValidatedErrors | null =
     cvCoefficients && heldOutWeight > 0 ? { folds: K, seed: o.seed, common: Math.sqrt(sseCommon / heldOutWeight), separate: Math.sqrt(sseSeparate / heldOutWeight) } : null;
   notes.push(
-    `Each ${o.noun} was also tested on its own: its own curve, the other ${o.nouns} one shared curve, against one curve for all (F on ${df} and ${N - 2 * df} df); a ${o.noun} is named as differing when the test of all ${o.nouns} rejects one curve and ${G} times its p-value is below ${o.level} (Bonferroni over ${G} ${o.nouns}).`,
+    `Each ${o.noun} was also tested on its own: its own curve, the other ${o.nouns} one shared curve, against one curve for all (F on ${df} and ${N - 2 * df} df, Bonferroni over ${G} ${o.nouns} in perGroup). When the test of all ${o.nouns} rejects one curve, the ${o.nouns} that differ are named step by step: the one whose own curve lowers the residual sum of squares most, given those named before keep their own curves and the rest share one (F on ${df} and ${dfDen} df over the separate curves' mean square), while its p-value in Holm's step-down order stays below ${o.level}${named.capped ? `; the procedure stopped after ${MAX_STEPS}, so more may differ` : ''}.`,
   );
   if (cv)
     notes.push(
@@ -290,7 +312,8 @@ export function commonCurveTest(groups: readonly GroupRows[], df: number, option
     dfDen,
     p: overall.p,
     oneServesAll,
-    differing: perGroup.filter((d) => d.differs).map((d) => d.name),
+    differing: named.steps.map((st) => st.name),
+    moreMayDiffer: named.capped,
     cv,
     excluded: excluded.length,
     df,
@@ -308,6 +331,8 @@ export function commonCurveTest(groups: readonly GroupRows[], df: number, option
     p: overall.p,
     level: o.level,
     perGroup,
+    stepDown: named.steps,
+    stepDownCapped: named.capped,
     cv,
     oneServesAll,
     excluded,
@@ -435,6 +460,63 @@ function weightUnit(w: Float64Array | undefined): number {
  */
 function solve(a: Float64Array, b: Float64Array, q: number, what: string, explain?: (failure: SpdFailure) => string): Float64Array {
   return factorSpd(a, q, what, explain, true).solve(b);
+}
+
+/** Most groups the step-down procedure names; then it stops and says that more may differ. */
+export const MAX_STEPS = 20;
+
+/**
+ * The step-down naming of the groups that differ (StepDownStep). `gram` and `rhs` hold each
+ * group's weighted sums on the pooled knots (scaled by the weight unit, as `rssSeparate` is
+ * not: `unit` converts), `own` each group's own coefficients. At each step the groups not yet
+ * named share one curve c_R; for each of them, h, the extra sum of squares of giving h its own
+ * curve is d(A_h; c_h, c_R) + d(A_R\h; c_R\h, c_R), a sum of non-negative quadratic forms
+ * (differenceSquares; no subtraction of sums of squares), with the sums of R without h taken
+ * as leave-one-out sums (sumsExcept). Cost O(steps x groups x q^3).
+ */
+function stepDown(
+  gram: Float64Array,
+  rhs: Float64Array,
+  own: readonly Float64Array[],
+  q: number,
+  names: readonly string[],
+  t: { readonly df: number; readonly rssSeparate: number; readonly dfDen: number; readonly level: number },
+): { steps: StepDownStep[]; capped: boolean } {
+  const q2 = q * q;
+  const left = names.map((_, i) => i);
+  const steps: StepDownStep[] = [];
+  let previous = 0;
+  // A group is named only against a curve that at least two others share: of two groups left,
+  // either could be called the one that differs.
+  while (left.length >= 3 && steps.length < MAX_STEPS) {
+    const m = left.length;
+    const blocks = new Float64Array(m * q2);
+    const vectors = new Float64Array(m * q);
+    left.forEach((g, j) => {
+      blocks.set(gram.subarray(g * q2, (g + 1) * q2), j * q2);
+      vectors.set(rhs.subarray(g * q, (g + 1) * q), j * q);
+    });
+    const shared = solve(sumBlocks(blocks, q2, 0, m), sumBlocks(vectors, q, 0, m), q, 'the curve the remaining groups share');
+    const restGram = sumsExcept(blocks, m, q2);
+    const restRhs = sumsExcept(vectors, m, q);
+    let best = -1;
+    let bestExtra = -Infinity;
+    for (let j = 0; j < m; j++) {
+      const g = left[j] as number;
+      const rest = solve(restGram.subarray(j * q2, (j + 1) * q2), restRhs.subarray(j * q, (j + 1) * q), q, 'the curve the other remaining groups share');
+      const extra = differenceSquares(gram, g * q2, q, own[g] as Float64Array, shared) + differenceSquares(restGram, j * q2, q, rest, shared);
+      if (extra > bestExtra) [best, bestExtra] = [j, extra];
+    }
+    // rssSeparate is in the units of gram (before the division by the weight unit), as the extra sums are.
+    const { F, p } = fTest(bestExtra, t.df, t.rssSeparate, t.dfDen);
+    const pAdjusted = Math.max(previous, Math.min(1, m * p));
+    if (!(pAdjusted < t.level)) break;
+    const g = left[best] as number;
+    steps.push({ name: names[g] as string, F, p, pAdjusted });
+    previous = pAdjusted;
+    left.splice(best, 1);
+  }
+  return { steps, capped: steps.length === MAX_STEPS && left.length >= 3 };
 }
 
 /** Upper-tail F test of an extra sum of squares; an exact fit of the bigger model gives F = Infinity (or 0 when nothing is extra). */

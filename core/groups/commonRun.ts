@@ -47,6 +47,8 @@ export function commonCurveFor(split: GroupSplit, analysis: GroupAnalysis): Comm
       F: finite(t.F),
       p: finite(t.p),
       perGroup: t.perGroup.map((g) => ({ name: g.name, F: finite(g.F), p: finite(g.p), differs: g.differs })),
+      named: t.stepDown.map((st) => ({ name: st.name, F: finite(st.F), p: finite(st.p), pAdjusted: finite(st.pAdjusted) })),
+      namedCapped: t.stepDownCapped,
       cv: t.cv ? { folds: t.cv.folds, common: finite(t.cv.common), separate: finite(t.cv.separate) } : null,
       oneServesAll: t.oneServesAll,
       words: t.words,

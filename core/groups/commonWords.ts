@@ -15,8 +15,10 @@ export interface CommonCurveFacts {
   readonly dfDen: number;
   readonly p: number;
   readonly oneServesAll: boolean;
-  /** Names of the groups that differ from the common curve. */
+  /** Names of the groups that differ from the common curve, in the order the step-down procedure named them. */
   readonly differing: readonly string[];
+  /** The procedure stopped at its limit: more groups may differ. */
+  readonly moreMayDiffer?: boolean | undefined;
   readonly cv: { readonly folds: number; readonly common: number; readonly separate: number } | null;
   /** Number of groups left out for too few distinct x. */
   readonly excluded: number;
@@ -33,7 +35,7 @@ export interface CommonCurveFacts {
 export function commonCurveWords(f: CommonCurveFacts): string {
   const all = f.groups === 2 ? `both ${f.nouns}` : `all ${f.groups} ${f.nouns}`;
   const test = `at the ${sig(100 * f.level)} % level (${testText('F', [f.dfNum, f.dfDen], f.F, f.p)})`;
-  const bonferroni = `Bonferroni over ${f.groups} ${f.nouns}`;
+  const stepwise = `named step by step, Holm's order over ${f.groups} ${f.nouns}`;
   let text: string;
   if (f.oneServesAll) {
     text = `One curve serves ${all}: separate curves do not fit significantly better ${test}`;
@@ -42,8 +44,8 @@ export function commonCurveWords(f: CommonCurveFacts): string {
     const n = f.differing.length;
     text +=
       n > 0
-        ? `; ${namedGroups(f.differing, f.noun, f.nouns)} ${n === 1 ? 'differs' : 'differ'} from the common curve (${bonferroni})`
-        : `; no single ${f.noun} differs from the common curve on its own (${bonferroni})`;
+        ? `; ${namedGroups(f.differing, f.noun, f.nouns)} ${n === 1 ? 'differs' : 'differ'} from the common curve (${stepwise}${f.moreMayDiffer ? `; more may differ: the naming stops at ${n}` : ''})`
+        : `; no single ${f.noun} differs from the common curve on its own (${stepwise})`;
   }
   if (f.cv) text += cvClause(f.cv, f.oneServesAll);
   text += '.';

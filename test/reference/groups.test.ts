@@ -53,6 +53,8 @@ interface FixtureCase {
   readonly F: number;
   readonly p: number;
   readonly perGroup: FixtureGroup[];
+  /** The groups named step by step (test/reference/r/groups.R step_down), empty when the overall test keeps one curve. */
+  readonly stepDown: { readonly name: string; readonly F: number; readonly p: number; readonly pAdjusted: number }[];
 }
 
 interface Fixture {
@@ -89,6 +91,11 @@ describe(`commonCurveTest against ${SOURCE}`, () => {
   it('fixture covers Orange and CO2 at three df each, unequal x (Theoph) and prior weights', () => {
     // Source: the fixture itself (test/reference/r/groups.R); guards against a regenerated fixture losing coverage.
     for (const name of ['orange', 'co2', 'theoph']) assert.ok(fixture.cases.filter((c) => c.dataset === name).length >= 3, name);
+    // One group far from two others is named alone (the shifted Orange trees).
+    assert.deepEqual(
+      fixture.cases.filter((c) => c.dataset === 'orange3_shift').map((c) => c.stepDown.map((st) => st.name)),
+      [['3'], ['3']],
+    );
     assert.ok(fixture.cases.some((c) => fixture.datasets[c.dataset]?.w));
   });
 
@@ -136,6 +143,24 @@ describe(`commonCurveTest against ${SOURCE}`, () => {
           checkClose(`group ${e.name} p`, got.p, e.p, 1);
           checkClose(`group ${e.name} Bonferroni p`, got.pAdjusted, Math.min(1, c.groups * e.p), 1);
         }
+      });
+
+      it("the groups named step by step, with F, p and Holm's adjusted p, equal the R procedure on lm deviances", () => {
+        // R: step_down() on deviance(lm(y ~ gS * B)) for growing S, Holm's order [test/reference/r/groups.R]
+        assert.deepEqual(
+          r.stepDown.map((st) => st.name),
+          c.stepDown.map((st) => st.name),
+        );
+        c.stepDown.forEach((e, j) => {
+          const got = r.stepDown[j];
+          assert.ok(got);
+          // The F of an extra sum of squares R takes as a difference of deviances: 1e-6 relative.
+          assert.ok(Math.abs(got.F - e.F) <= 1e-6 * Math.abs(e.F), `step ${j + 1} (${e.name}) F: got ${got.F}, R has ${e.F} [${SOURCE}]`);
+          assert.ok(Math.abs(got.p - e.p) <= 1e-6 * Math.abs(e.p) + 1e-14, `step ${j + 1} p: got ${got.p}, R has ${e.p}`);
+          assert.ok(Math.abs(got.pAdjusted - e.pAdjusted) <= 1e-6 * Math.abs(e.pAdjusted) + 1e-14, `step ${j + 1} adjusted p`);
+        });
+        const named = new Set(c.stepDown.map((st) => st.name));
+        for (const g of r.perGroup) assert.equal(g.differs, named.has(g.name), `group ${g.name}: differs exactly when named`);
       });
     });
   }

@@ -41,6 +41,14 @@ datasets <- list(
   ),
   # Weighted case: deterministic prior weights w = 100 / conc (variance taken proportional
   # to the concentration), so that the weighted sums of squares are checked too.
+  # A deliberate shift of an open dataset: three of the Orange trees, tree 3 moved up by 60 mm,
+  # so one group is far from the two others (the step-down naming must name it alone).
+  orange3_shift = list(
+    source = "datasets::Orange, trees 1, 3 and 5, circumference of tree 3 + 60 (a deliberate shift)",
+    x = as.numeric(Orange$age[Orange$Tree %in% c("1", "3", "5")]),
+    y = as.numeric(Orange$circumference[Orange$Tree %in% c("1", "3", "5")]) + ifelse(Orange$Tree[Orange$Tree %in% c("1", "3", "5")] == "3", 60, 0),
+    g = as.character(Orange$Tree[Orange$Tree %in% c("1", "3", "5")]), w = NULL
+  ),
   co2_w = list(
     source = "datasets::CO2, uptake ~ conc by Plant, prior weights w = 100 / conc (deterministic)",
     x = as.numeric(CO2$conc), y = as.numeric(CO2$uptake), g = as.character(CO2$Plant), w = 100 / as.numeric(CO2$conc)
@@ -51,8 +59,43 @@ cases_wanted <- list(
   list(dataset = "orange", df = 3:5),
   list(dataset = "co2", df = 3:5),
   list(dataset = "theoph", df = 4:6),
-  list(dataset = "co2_w", df = 4)
+  list(dataset = "co2_w", df = 4),
+  list(dataset = "orange3_shift", df = 3:4)
 )
+
+# The step-down naming of the groups that differ (core/groups/common.ts stepDown): with the
+# groups in S given their own curves and the rest sharing one (m_S = lm(y ~ gS * B), gS the
+# group for S and ".rest" otherwise; m_{} = lm(y ~ B)), the group h of the rest with the
+# largest deviance(m_S) - deviance(m_{S+h}) is named when its F on k and the separate model's
+# residual df (denominator: the separate model's residual mean square) has a Holm-adjusted
+# p-value (m remaining groups: min(1, m p), never below the previous step's) below 0.05;
+# a group is named only while at least 3 remain, at most 20 steps.
+step_down <- function(frame, g, k, w, m1, level = 0.05, max_steps = 20) {
+  ms <- deviance(m1) / df.residual(m1)
+  fit_S <- function(S) {
+    if (length(S) == 0) return(fit_lm(y ~ B, frame, w))
+    frame$gS <- factor(ifelse(as.character(g) %in% S, as.character(g), ".rest"))
+    fit_lm(y ~ gS * B, frame, w)
+  }
+  S <- character(0)
+  prev <- 0
+  steps <- list()
+  repeat {
+    R <- setdiff(levels(g), S)
+    if (length(R) < 3 || length(steps) >= max_steps) break
+    dS <- deviance(fit_S(S))
+    extra <- sapply(R, function(h) dS - deviance(fit_S(c(S, h))))
+    h <- R[which.max(extra)]
+    F <- max(extra) / k / ms
+    p <- pf(F, k, df.residual(m1), lower.tail = FALSE)
+    p_adj <- max(prev, min(1, length(R) * p))
+    if (!(p_adj < level)) break
+    steps[[length(steps) + 1]] <- list(name = h, F = F, p = p, pAdjusted = p_adj)
+    prev <- p_adj
+    S <- c(S, h)
+  }
+  steps
+}
 
 fit_lm <- function(formula, frame, w) {
   if (is.null(w)) lm(formula, data = frame) else { frame$w <- w; lm(formula, data = frame, weights = w) }
@@ -86,6 +129,7 @@ make_case <- function(name, d, k) {
   stopifnot(m0$rank == k)
   m1 <- fit_lm(y ~ g * B, frame, d$w)
   overall <- compare(m0, m1, G * k)
+  named <- if (overall$p < 0.05) step_down(frame, g, k, d$w, m1) else list()
   per_group <- lapply(levels(g), function(h) {
     frame$own <- as.numeric(g == h)
     mh <- fit_lm(y ~ B * own, frame, d$w)
@@ -110,7 +154,8 @@ make_case <- function(name, d, k) {
     dfDen = overall$dfDen,
     F = overall$F,
     p = overall$p,
-    perGroup = per_group
+    perGroup = per_group,
+    stepDown = named
   )
 }
 

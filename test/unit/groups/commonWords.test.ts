@@ -43,16 +43,20 @@ describe('commonCurveWords', () => {
     const text = commonCurveWords({ ...base, oneServesAll: false, F: 10.16, p: 2.47e-5, differing: ['3', '5'], cv: { folds: 10, separate: 7.04, common: 8 } });
     assert.equal(
       text,
-      'The 5 trees need separate curves, which fit significantly better than one curve at the 5 % level (F(16, 15) = 10.2, p < 0.0001); tree 3 and tree 5 differ from the common curve (Bonferroni over 5 trees); separate curves predict held-out rows 12 % better (10-fold RMSE 7.04 separate, 8 common).',
+      "The 5 trees need separate curves, which fit significantly better than one curve at the 5 % level (F(16, 15) = 10.2, p < 0.0001); tree 3 and tree 5 differ from the common curve (named step by step, Holm's order over 5 trees); separate curves predict held-out rows 12 % better (10-fold RMSE 7.04 separate, 8 common).",
     );
     assert.match(commonCurveWords({ ...base, oneServesAll: false, differing: ['3'] }), /; tree 3 differs from the common curve/);
+  });
+
+  it('commonCurveWords says more may differ when the naming stopped at its limit', () => {
+    assert.match(commonCurveWords({ ...base, oneServesAll: false, differing: ['3', '5'], moreMayDiffer: true }), /\(named step by step, Holm's order over 5 trees; more may differ: the naming stops at 2\)/);
   });
 
   it('commonCurveWords: separate curves needed though none differs alone, and held-out rows no better', () => {
     const text = commonCurveWords({ ...base, oneServesAll: false, p: 0.002, cv: { folds: 10, separate: 9, common: 8 } });
     assert.match(
       text,
-      /; no single tree differs from the common curve on its own \(Bonferroni over 5 trees\); yet separate curves predict held-out rows no better \(10-fold RMSE 9 separate, 8 common\)\.$/,
+      /; no single tree differs from the common curve on its own \(named step by step, Holm's order over 5 trees\); yet separate curves predict held-out rows no better \(10-fold RMSE 9 separate, 8 common\)\.$/,
     );
   });
 
