@@ -8,6 +8,8 @@ import { decodeCsvBytes } from '../core/ingest/encoding';
 import { createHash } from 'node:crypto';
 import * as vscode from 'vscode';
 import { parseCsvText } from '../core/ingest/reader';
+import { InputError } from '../core/errors';
+import { estimatedMiB } from '../core/stream/budget';
 import type { ParsedTable } from '../core/ingest/types';
 
 /**
@@ -32,6 +34,20 @@ export interface CsvSource extends DataText {
   readonly uri: vscode.Uri;
   readonly fileName: string;
   readonly table: ParsedTable;
+}
+
+/** Throws InputError when the whole read of `text` (`bytes` long) needs more than `budget` MiB by the estimate of core/stream/budget.ts. */
+function refuseAboveBudget(text: string, bytes: number, budget: number, file: string): void {
+  let lines = 0;
+  for (let at = text.indexOf('\n'); at >= 0; at = text.indexOf('\n', at + 1)) lines++;
+  const first = text.slice(0, Math.max(0, text.indexOf('\n')));
+  const fields = 1 + Math.max(...[',', ';', '\t'].map((d) => first.split(d).length - 1));
+  const need = estimatedMiB(bytes, bytes, lines, fields);
+  if (need <= budget) return;
+  throw new InputError(
+    `this file needs about ${Math.round(need).toLocaleString('en-US')} MiB held whole, above knotwise.memoryBudget (${budget.toLocaleString('en-US')} MiB), and the editor holds its data whole: run knotwise fit on it in a terminal, which streams such a file from disk in passes, or raise knotwise.memoryBudget`,
+    { file },
+  );
 }
 
 /** Base name of a URI's path. */
@@ -86,10 +102,15 @@ export async function diskSha256(uri: vscode.Uri): Promise<string | undefined> {
   }
 }
 
-/** Reads and parses a CSV (throws InputError for unusable input). */
-export async function readCsv(uri: vscode.Uri): Promise<CsvSource> {
+/**
+ * Reads and parses a CSV (throws InputError for unusable input). With `memoryBudget` (MiB,
+ * knotwise.memoryBudget), a text whose whole read would need more (core/stream/budget.ts) is
+ * refused before it is parsed, naming the command line, which streams such a file from disk.
+ */
+export async function readCsv(uri: vscode.Uri, memoryBudget?: number): Promise<CsvSource> {
   const data = await readData(uri);
   const fileName = baseName(uri);
+  if (memoryBudget !== undefined) refuseAboveBudget(data.text, data.size, memoryBudget, fileName);
   const table = parseCsvText(data.text, { file: fileName });
   return { ...data, uri, fileName, table };
 }

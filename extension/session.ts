@@ -185,7 +185,7 @@ export class DataSession implements vscode.Disposable {
     this.ctx.runningChanged();
     const current = (): boolean => this.running === ticket;
     try {
-      const source = await readCsv(this.uri);
+      const source = await readCsv(this.uri, this.ctx.settings(this.uri).memoryBudget);
       ticket.sha256 = source.sha256;
       const settings = this.ctx.settings(this.uri);
       const model = this.modelFor();

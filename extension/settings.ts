@@ -5,6 +5,7 @@
  * line's words from core/registry/, so a setting and a command-line option mean the same
  * thing and have the same limits.
  */
+import { DEFAULT_MEMORY_BUDGET, MEMORY_BUDGET_LIMITS } from '../core/stream/budget';
 import type { AnalysisOptions } from '../core/analysis/types';
 import { InputError } from '../core/errors';
 import { MAX_HUBER_K } from '../core/fit/model';
@@ -57,6 +58,8 @@ export interface Settings {
   readonly refitOnSave: boolean;
   /** knotwise.refit.askAboveRows: above this many data rows, ask before refitting on save. */
   readonly refitAskAboveRows: number;
+  /** knotwise.memoryBudget (MiB): a data file whose whole read needs more is not tuned in the editor (core/stream/budget.ts). */
+  readonly memoryBudget: number;
   /** knotwise.groups.*: a grouped run's df shared by every group (the command line's --shared-df), and one long table (--long-table). */
   readonly groups: { readonly sharedDf: boolean; readonly longTable: boolean };
   /** Settings that were ignored, with why. */
@@ -93,6 +96,7 @@ export const DEFAULTS = {
   recordName: '${name}.fit.json',
   refitOnSave: true,
   refitAskAboveRows: 200_000,
+  memoryBudget: DEFAULT_MEMORY_BUDGET,
   groupsSharedDf: false,
   groupsLongTable: false,
 } as const;
@@ -104,6 +108,7 @@ export const LIMITS = {
   significantDigits: [3, 17],
   seed: [0, 2 ** 32 - 1],
   refitAskAboveRows: [0, 1e9],
+  memoryBudget: [MEMORY_BUDGET_LIMITS.min, MEMORY_BUDGET_LIMITS.max],
 } as const;
 
 /** Rules a setting may name (the person's own pick is a per-file choice in the panel). */
@@ -206,6 +211,7 @@ export function readSettings(get: SettingReader): Settings {
     recordName,
     refitOnSave,
     refitAskAboveRows: numIn('refit.askAboveRows', DEFAULTS.refitAskAboveRows, LIMITS.refitAskAboveRows, true),
+    memoryBudget: numIn('memoryBudget', DEFAULTS.memoryBudget, LIMITS.memoryBudget, true),
     groups,
     problems,
   };

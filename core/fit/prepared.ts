@@ -40,23 +40,11 @@ export interface PreparedData {
  * Example: prepareData({ x: Float64Array.of(1e-300, 2e-300, 3e-300), y }).distinct === 3.
  */
 export function prepareData(data: XYData): PreparedData {
-  const { x, y, w, lines } = data;
+  const { x, y, w } = data;
   const n = x.length;
   if (y.length !== n || (w && w.length !== n)) throw new InputError('x, y and weights must have the same length');
   if (n === 0) throw new InputError('no rows to fit');
-  for (let i = 0; i < n; i++) {
-    const line = lines ? lines[i] : undefined;
-    const xi = x[i] as number;
-    const yi = y[i] as number;
-    if (!Number.isFinite(xi) || Math.abs(xi) > MAX_X_MAGNITUDE) throw new InputError(badValue('x', xi, MAX_X_MAGNITUDE), { line, column: 'x' });
-    if (!Number.isFinite(yi) || Math.abs(yi) > MAX_MAGNITUDE) throw new InputError(badValue('y', yi, MAX_MAGNITUDE), { line, column: 'y' });
-    if (w) {
-      const wi = w[i] as number;
-      if (!(wi > 0) || !Number.isFinite(wi)) throw new InputError(`weight ${wi} is not a positive finite number`, { line, column: 'weights' });
-      if (wi < MIN_WEIGHT)
-        throw new InputError(`weight ${wi} is too small to fit (weights from ${MIN_WEIGHT} up are supported; only their ratios matter, so rescale the column)`, { line, column: 'weights' });
-    }
-  }
+  checkRowValues(data);
   // The sorted values through the order the tuning and the checks share (+ 0 writes -0 as 0, equal anyway).
   const order = orderByX(x);
   const sortedX = new Float64Array(n);
@@ -71,6 +59,30 @@ export function prepareData(data: XYData): PreparedData {
     );
   }
   return { data, sortedX, distinct };
+}
+
+/**
+ * The value checks of prepareData, row by row: x finite and within MAX_X_MAGNITUDE, y within
+ * MAX_MAGNITUDE, weights positive, finite and from MIN_WEIGHT. A file read in passes
+ * (core/node/streamFile.ts) checks each part with it. Throws InputError naming the first bad
+ * row (its CSV line when known) and the column by role. O(n).
+ */
+export function checkRowValues(data: XYData): void {
+  const { x, y, w, lines } = data;
+  const n = x.length;
+  for (let i = 0; i < n; i++) {
+    const line = lines ? lines[i] : undefined;
+    const xi = x[i] as number;
+    const yi = y[i] as number;
+    if (!Number.isFinite(xi) || Math.abs(xi) > MAX_X_MAGNITUDE) throw new InputError(badValue('x', xi, MAX_X_MAGNITUDE), { line, column: 'x' });
+    if (!Number.isFinite(yi) || Math.abs(yi) > MAX_MAGNITUDE) throw new InputError(badValue('y', yi, MAX_MAGNITUDE), { line, column: 'y' });
+    if (w) {
+      const wi = w[i] as number;
+      if (!(wi > 0) || !Number.isFinite(wi)) throw new InputError(`weight ${wi} is not a positive finite number`, { line, column: 'weights' });
+      if (wi < MIN_WEIGHT)
+        throw new InputError(`weight ${wi} is too small to fit (weights from ${MIN_WEIGHT} up are supported; only their ratios matter, so rescale the column)`, { line, column: 'weights' });
+    }
+  }
 }
 
 function badValue(what: string, v: number, limit: number): string {

@@ -7,7 +7,7 @@ import { breakEnd, checkNotBinary, DETECT_CHARS, detectFormat, MAX_DETECT_CHARS,
 import type { BreakCount } from './detect';
 import { TableBuilder } from './tableBuilder';
 import { CsvTokenizer } from './tokenizer';
-import type { CsvReader, CsvReaderOptions, ParsedTable } from './types';
+import type { CsvChunkReader, CsvReaderOptions, ParsedTable } from './types';
 
 const BOM = 0xfeff;
 const TAB = 9;
@@ -31,7 +31,7 @@ const SPACE = 32;
  * Example: const r = createCsvReader(); r.push('x,y\n1,'); r.push('2\n'); r.finish()
  * -> rowCount 1, values [[1], [2]], lines [2].
  */
-export function createCsvReader(options: CsvReaderOptions = {}): CsvReader {
+export function createCsvReader(options: CsvReaderOptions = {}): CsvChunkReader {
   const file = options.file;
   let pending: string[] = [];
   let pendingLength = 0;
@@ -130,6 +130,18 @@ export function createCsvReader(options: CsvReaderOptions = {}): CsvReader {
       if (tokenizer === undefined) start(true);
       (tokenizer as CsvTokenizer).finish();
       return (builder as TableBuilder).finish();
+    },
+    drain(): ParsedTable | undefined {
+      return builder?.drain();
+    },
+    finishRows(): ParsedTable {
+      if (finished) throw new Error('createCsvReader: finish called twice');
+      finished = true;
+      if (tokenizer === undefined) start(true);
+      (tokenizer as CsvTokenizer).finish();
+      const rest = (builder as TableBuilder).drain();
+      if (rest === undefined) throw new InputError('the file is empty', { file });
+      return rest;
     },
   };
 }

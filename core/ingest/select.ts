@@ -64,8 +64,8 @@ function sameNamed(table: ParsedTable, col: ColumnInfo): ColumnInfo[] {
   return table.columns.filter((c) => c !== col && c.header !== '' && splitUnit(c.header).name === name);
 }
 
-/** Throws InputError when the column holds text rather than numbers. */
-function requireNumeric(table: ParsedTable, col: ColumnInfo, file: string | undefined): void {
+/** Throws InputError when the column holds text rather than numbers (by its counts over the rows of `table`). */
+export function requireNumeric(table: ParsedTable, col: ColumnInfo, file: string | undefined): void {
   if (col.numeric || col.invalidCount === 0) return;
   const row = col.problems.rows[0] as number;
   const line = table.lines[row] as number;
@@ -103,9 +103,38 @@ class ReasonCursor {
  * { x: [1], y: [2], lines: [2] }, rejected [{ line: 3, column: 'v', reason: 'missing value' }].
  */
 export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: string): Selection {
+  const chosen = chosenColumns(table, choice, file);
+  for (const col of chosen) requireNumeric(table, col, file);
+  const { data, rejected } = pickRows(table, chosen);
+  if (data.x.length === 0) throw noUsableRows(chosen, rejected[0], file);
+  const [cx, cy, cw] = chosen as [ColumnInfo, ColumnInfo, ColumnInfo | undefined];
+  const labels = cw !== undefined ? { x: cx.label, y: cy.label, weights: cw.label } : { x: cx.label, y: cy.label };
+  const units = cw !== undefined ? { x: cx.unit, y: cy.unit, weights: cw.unit } : { x: cx.unit, y: cy.unit };
+  return { data, rejected, labels, units };
+}
+
+/** The InputError of a table none of whose rows has usable values in the `chosen` columns; `first` is the first row left out. */
+export function noUsableRows(chosen: readonly ColumnInfo[], first: RejectedRow | undefined, file: string | undefined): InputError {
+  const names = chosen.map((c) => quoteName(c.label)).join(', ');
+  const detail = first !== undefined ? ` (the first: line ${first.line}${first.column !== '' ? `, column "${first.column}"` : ''}: ${first.reason})` : '';
+  return new InputError(`no usable rows: every row has a missing or invalid value in ${names}${detail}`, { file });
+}
+
+/** The x, y and (when chosen) weight columns of `table`, in that order. Throws InputError for an unknown column. */
+export function chosenColumns(table: ParsedTable, choice: ColumnChoice, file?: string): ColumnInfo[] {
   const chosen: ColumnInfo[] = [findColumn(table, choice.x, file), findColumn(table, choice.y, file)];
   if (choice.weights !== undefined) chosen.push(findColumn(table, choice.weights, file));
-  for (const col of chosen) requireNumeric(table, col, file);
+  return chosen;
+}
+
+/**
+ * The usable rows of `table` in the columns `chosen` (x, y and optional weights, from
+ * chosenColumns) and the rejected ones, by the rules of selectColumns, without its checks
+ * of the whole table (numeric columns, at least one row): a part of a file read in passes
+ * (core/node/streamFile.ts) is checked as a whole at the end. Rows come in table order.
+ * When every row is kept the table's own columns serve. Cost O(rows).
+ */
+export function pickRows(table: ParsedTable, chosen: readonly ColumnInfo[]): { data: XYData; rejected: RejectedRow[] } {
   const n = table.rowCount;
   const cursors = chosen.map((c) => new ReasonCursor(c));
   const columns = chosen.map((c) => table.values[c.index] as Float64Array);
@@ -139,18 +168,9 @@ export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: s
   }
   for (const p of table.problems) if (p.column === undefined) rejected.push({ line: p.line, column: '', reason: p.reason });
   rejected.sort((a, b) => a.line - b.line);
-  if (kept === 0) {
-    const first = rejected[0];
-    const names = chosen.map((c) => quoteName(c.label)).join(', ');
-    const detail = first !== undefined ? ` (the first: line ${first.line}${first.column !== '' ? `, column "${first.column}"` : ''}: ${first.reason})` : '';
-    throw new InputError(`no usable rows: every row has a missing or invalid value in ${names}${detail}`, { file });
-  }
-  const [cx, cy, cw] = chosen as [ColumnInfo, ColumnInfo, ColumnInfo | undefined];
-  const labels = cw !== undefined ? { x: cx.label, y: cy.label, weights: cw.label } : { x: cx.label, y: cy.label };
-  const units = cw !== undefined ? { x: cx.unit, y: cy.unit, weights: cw.unit } : { x: cx.unit, y: cy.unit };
   if (kept === n && xs.length === n && ys.length === n && table.lines.length === n) {
     // Every row kept: the table's own columns serve (neither is changed after reading), so a large file is not held twice.
-    return { data: { x: xs, y: ys, w: ws, lines: table.lines }, rejected, labels, units };
+    return { data: { x: xs, y: ys, w: ws, lines: table.lines }, rejected };
   }
   const x = new Float64Array(kept);
   const y = new Float64Array(kept);
@@ -164,5 +184,5 @@ export function selectColumns(table: ParsedTable, choice: ColumnChoice, file?: s
     lines[i] = table.lines[r] as number;
     i++;
   }
-  return { data: { x, y, w, lines }, rejected, labels, units };
+  return { data: { x, y, w, lines }, rejected };
 }

@@ -44,7 +44,10 @@ class ProblemList {
   rows = new Int32Array(16);
   reasons: string[] = [];
   count = 0;
+  /** Cells listed since the start of the file, also across `clear` (the limit of quoted reasons counts them all). */
+  total = 0;
   add(row: number, reason: string): void {
+    this.total++;
     if (this.count === this.rows.length) {
       const grown = new Int32Array(this.count * 2);
       grown.set(this.rows);
@@ -55,6 +58,11 @@ class ProblemList {
   }
   freeze(): CellProblems {
     return { rows: this.rows.slice(0, this.count), reasons: this.reasons };
+  }
+  /** Forgets the listed cells (rows handed on by TableBuilder.drain), keeping `total`. */
+  clear(): void {
+    this.count = 0;
+    this.reasons = [];
   }
 }
 
@@ -77,6 +85,15 @@ export function unterminatedQuote(quoteLine: number, lastLine: number, file: str
     `unterminated quote: the quoted field that opens on line ${quoteLine} is not closed before the end of the file (${span}); add the closing double quote, or remove the opening one`,
     { file, line: quoteLine, column },
   );
+}
+
+/**
+ * The InputError of a file without a data row: `problemRows` rows were left out for their
+ * field count, the first of them `first`.
+ */
+export function noDataRows(header: boolean, problemRows: number, first: TableProblem | undefined, file: string | undefined): InputError {
+  if (first !== undefined) return new InputError(`no usable data rows: all ${problemRows} rows have problems, the first: ${first.reason}`, { file, line: first.line });
+  return new InputError(header ? 'the file has a header row but no data rows' : 'the file has no data rows', { file, line: 1 });
 }
 
 /** Format facts the builder needs (from detection or the options). */
@@ -284,7 +301,7 @@ export class TableBuilder implements RecordSink {
       if (kind < NOT_NUMBER) continue;
       const list = this.invalid[k] as ProblemList;
       const text = this.recTexts[k] as string;
-      list.add(row, list.count < QUOTED_REASONS_PER_COLUMN ? cellReason(kind, text, this.commaAt(k)) : shortCellReason(kind));
+      list.add(row, list.total < QUOTED_REASONS_PER_COLUMN ? cellReason(kind, text, this.commaAt(k)) : shortCellReason(kind));
       this.recTexts[k] = '';
     }
   }
@@ -311,20 +328,39 @@ export class TableBuilder implements RecordSink {
     this.capacity = capacity;
   }
 
-  /** The finished table. Throws InputError when there is no header or no data row. */
-  finish(): ParsedTable {
-    const place = { file: this.file };
-    if (this.headerPending) throw new InputError('the file is empty', place);
+  /**
+   * The rows read since the last drain as a table of their own (row indices, problems and
+   * counts of that part only), then forgets them, so a file can be read in passes with
+   * memory for one chunk's rows (core/node/streamFile.ts). The columns are views of the
+   * builder's buffers, valid until the next text is pushed. Undefined while the header is
+   * still being read. The rules are those of a whole read: the same rows, cells, reasons
+   * and messages.
+   */
+  drain(): ParsedTable | undefined {
+    if (this.headerPending || this.expected === 0) return undefined;
     const n = this.rowCount;
-    if (n === 0) {
-      const first = this.rowProblems[0];
-      if (first !== undefined) {
-        throw new InputError(`no usable data rows: all ${this.rowProblems.length} rows have problems, the first: ${first.reason}`, { ...place, line: first.line });
-      }
-      throw new InputError(this.format.header ? 'the file has a header row but no data rows' : 'the file has no data rows', { ...place, line: 1 });
-    }
     const names = columnNames(this.format.header ? this.headerTexts : undefined, this.expected);
-    const columns: ColumnInfo[] = names.map((name, k) => {
+    const columns = this.columnInfos(names);
+    const table: ParsedTable = {
+      columns,
+      values: this.columns.map((col) => col.subarray(0, n)),
+      lines: this.lines.subarray(0, n),
+      rowCount: n,
+      format: { delimiter: this.format.delimiter, decimalComma: this.format.decimalComma, header: this.format.header, bom: this.format.bom, lineEnding: this.format.lineEnding },
+      problems: this.collectProblems(columns),
+      blankLines: this.blankLines,
+    };
+    this.rowCount = 0;
+    this.rowProblems.length = 0;
+    this.numericCounts.fill(0);
+    this.missingCounts.fill(0);
+    for (const list of this.invalid) list.clear();
+    return table;
+  }
+
+  /** Column facts of the rows held now. */
+  private columnInfos(names: ReturnType<typeof columnNames>): ColumnInfo[] {
+    return names.map((name, k) => {
       const problems = (this.invalid[k] as ProblemList).freeze();
       const numericCount = this.numericCounts[k] as number;
       const invalidCount = problems.rows.length;
@@ -341,6 +377,15 @@ export class TableBuilder implements RecordSink {
         problems,
       };
     });
+  }
+
+  /** The finished table. Throws InputError when there is no header or no data row. */
+  finish(): ParsedTable {
+    const place = { file: this.file };
+    if (this.headerPending) throw new InputError('the file is empty', place);
+    const n = this.rowCount;
+    if (n === 0) throw noDataRows(this.format.header, this.rowProblems.length, this.rowProblems[0], this.file);
+    const columns = this.columnInfos(columnNames(this.format.header ? this.headerTexts : undefined, this.expected));
     return {
       columns,
       values: this.columns.map((col) => trimmed(col, n)),

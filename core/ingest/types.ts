@@ -113,3 +113,17 @@ export interface CsvReader {
   /** Ends the input and returns the table (throws InputError for unusable input). */
   finish(): ParsedTable;
 }
+
+/**
+ * A reader whose rows can be taken in parts (core/node/streamFile.ts reads files larger than
+ * memory in passes): `drain` hands over the rows read so far as a table of their own and
+ * forgets them; `finishRows` ends the input and hands over the last ones. Each part has
+ * the rows, cells, reasons and messages a whole read would give those rows (row indices
+ * and counts are the part's own). Use either `finish` or `finishRows`, once.
+ */
+export interface CsvChunkReader extends CsvReader {
+  /** The rows since the last drain (views valid until the next push), or undefined while the header is still being read. */
+  drain(): ParsedTable | undefined;
+  /** Ends the input and returns the rows since the last drain (throws InputError for an empty file or an open quote). */
+  finishRows(): ParsedTable;
+}

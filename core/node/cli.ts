@@ -42,9 +42,10 @@ import { CHECK_COMMAND, runCheck } from './check';
 import { COMPARE_COMMAND, runCompare } from './compareRecords';
 import { writeOutputs } from './outputs';
 import { checkOutputFolder, checkOutputNames, terminalText } from './outputTargets';
-import { runPipeline } from './pipeline';
+import { runPipeline, wholeReadMiB } from './pipeline';
 import { startWorkersEarly } from './pool';
 import { type Clock, ProgressLine, type ProgressStream } from './progress';
+import { DEFAULT_MEMORY_BUDGET, MEMORY_BUDGET_LIMITS, parseMemoryBudget } from '../stream/budget';
 
 /** Data files from this size up start their resampling workers before reading (about 50,000 rows of two columns). */
 const EARLY_WORKERS_BYTES = 1 << 20;
@@ -92,6 +93,14 @@ function fitCommand() {
       { group: 'Data', name: 'y', value: 'column', help: 'the column of the readings, by header text or label', required: true, requiredUnless: 'channels' },
       { group: 'Data', name: 'weights', value: 'column', help: 'prior weights of the rows, positive', defaultText: 'every row weighs 1' },
       { group: 'Data', name: 'trials', value: 'column', help: 'with --outcome proportions: the number of trials of each row; --y then holds the successes' },
+      {
+        group: 'Data',
+        name: 'memory-budget',
+        value: 'MiB',
+        help: 'memory the data may take held whole; a larger file is streamed from disk in passes (natural spline, continuous readings; bootstrap resampling then runs as bundles)',
+        default: String(DEFAULT_MEMORY_BUDGET),
+        limits: `a whole number from ${MEMORY_BUDGET_LIMITS.min} to ${MEMORY_BUDGET_LIMITS.max}`,
+      },
       {
         group: 'Groups',
         name: 'per',
@@ -358,6 +367,8 @@ interface FitArgs {
   readonly force: boolean;
   /** --per or --channels: the rows split into groups. */
   readonly groups?: GroupSpec | undefined;
+  /** --memory-budget in MiB, when given. */
+  readonly memoryBudget?: number | undefined;
 }
 
 /** Parses `knotwise fit`'s arguments; undefined when help was asked for (and printed). */
@@ -428,6 +439,7 @@ function parseFitArgs(argv: readonly string[]): FitArgs | undefined {
     // Outputs go next to the data unless --out names a folder or --print-only asks for none.
     out: printing ? undefined : (a.text('out') ?? dirname(file)),
     force: a.flag('force'),
+    memoryBudget: a.given('memory-budget') ? parseMemoryBudget(a.text('memory-budget') as string) : undefined,
     options: {
       kind,
       candidates: dfs,
@@ -538,7 +550,9 @@ function byDeviance(fit: FitResult): boolean {
   return fit.model !== undefined && fit.model.glm !== undefined;
 }
 
-function fitJson(fit: FitResult): Record<string, unknown> {
+function fitJson(fit: FitResult, streamed: boolean): Record<string, unknown> {
+  // A fit streamed from the file keeps no per-row arrays: they are null.
+  const rows = (a: () => Float64Array): (number | null)[] | null => (streamed ? null : Array.from(a(), finite));
   const arr = (a: Float64Array): (number | null)[] => Array.from(a, finite);
   const deviance = byDeviance(fit);
   return {
@@ -560,10 +574,10 @@ function fitJson(fit: FitResult): Record<string, unknown> {
     looRmse: finite(fit.looRmse),
     gcv: finite(fit.gcv),
     notes: fit.notes,
-    fitted: arr(fit.fitted),
-    residuals: arr(fit.residuals),
-    leverage: arr(fit.leverage),
-    cooksDistance: arr(fit.cooksDistance),
+    fitted: rows(() => fit.fitted),
+    residuals: rows(() => fit.residuals),
+    leverage: rows(() => fit.leverage),
+    cooksDistance: rows(() => fit.cooksDistance),
   };
 }
 
@@ -584,6 +598,7 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     options: args.options,
     output: args.output,
     ...(args.trials !== undefined ? { trials: args.trials } : {}),
+    ...(args.memoryBudget !== undefined ? { memoryBudget: args.memoryBudget } : {}),
   };
   if (args.groups) return runGroupFit({ ...plan, tune: true, groups: args.groups }, { file: args.file, out: args.out, force: args.force, json: args.json, quiet: args.quiet }, env);
   const dataName = args.stdin ? STDIN_NAME : args.file;
@@ -593,7 +608,14 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
   if (args.out !== undefined) checkOutputFolder(args.out);
   // A tuning of a large file resamples on worker threads: start them now, so that loading
   // them overlaps reading and fitting (small files resample inline and need none).
-  if (plan.tune && resamplingScheme(plan.options.resample).method === 'resamples' && (bytes?.length ?? fileSize(args.file)) >= EARLY_WORKERS_BYTES) startWorkersEarly();
+  if (
+    plan.tune &&
+    resamplingScheme(plan.options.resample).method === 'resamples' &&
+    (bytes?.length ?? fileSize(args.file)) >= EARLY_WORKERS_BYTES &&
+    // A file streamed in passes (above the memory budget) resamples on this thread.
+    (bytes !== undefined || (wholeReadMiB(args.file) ?? 0) <= (plan.memoryBudget ?? DEFAULT_MEMORY_BUDGET))
+  )
+    startWorkersEarly();
   let run;
   try {
     run = await runPipeline(dataName, plan, args.out ?? (args.stdin ? '.' : dirname(args.file)), undefined, { bytes, progress });
@@ -629,11 +651,11 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
         columns: sel.labels,
         units: sel.units,
         rowsRead: table.rowCount,
-        rowsUsed: sel.data.x.length,
+        rowsUsed: run.rowsUsed,
         rejected: sel.rejected,
       },
       model: modelSpecJson(args.options, args.trials),
-      fit: { ...fitJson(fit), model: modelReportJson(fit.model) },
+      fit: { ...fitJson(fit, run.streamed !== undefined), model: modelReportJson(fit.model) },
       table: {
         columns: tableOut.columns,
         rows: tableOut.rows.map((r) => r.map(finite)),
@@ -674,10 +696,12 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     process.stdout.write(JSON.stringify(out) + '\n');
   } else if (!args.quiet) {
     const lines = [
-      `${args.stdin ? STDIN_NAME : basename(args.file)}: ${sel.data.x.length} rows used, ${sel.rejected.length} rejected`,
+      `${args.stdin ? STDIN_NAME : basename(args.file)}: ${run.rowsUsed} rows used, ${sel.rejected.length} rejected`,
       ...sel.rejected.slice(0, 10).map((r) => `  line ${r.line}${r.column ? ` (${r.column})` : ''}: ${r.reason}`),
       ...(sel.rejected.length > 10 ? [`  ... and ${sel.rejected.length - 10} more`] : []),
     ];
+    if (run.streamed && run.streamed.asked.kind !== run.streamed.resample.kind)
+      lines.push(`Streamed: the file is above the memory budget, so ${formatResampling(run.streamed.asked)} ran as ${formatResampling(run.streamed.resample)} (see the note below).`);
     if (analysis) {
       lines.push(`Tuning (${formatResampling(analysis.tune.resample)}, seed ${analysis.tune.seed}):`);
       // The decimal place of the explanation below (errorPlace), so each mean reads the same in both.

@@ -14,11 +14,28 @@ import { fitCurve } from '../fit/index';
 import { selectColumns, type Selection } from '../ingest/select';
 import { selectTrials } from '../ingest/trials';
 import type { FitPlan } from '../outputs/plan';
-import type { Progress } from '../tune/types';
+import type { Progress, ResampleSpec } from '../tune/types';
 import type { FitResult, XYData } from '../types';
 import { sha256 } from './outputs';
 import { workerRunner } from './pool';
 import { readCsvBytes, readCsvFile, type FileTable } from './readCsv';
+import { DEFAULT_MEMORY_BUDGET, estimatedMiB } from '../stream/budget';
+import { sampleFile } from './streamFile';
+import { streamPipeline } from './streamPipeline';
+
+/**
+ * The memory a whole read of `file` would take, in MiB, estimated from its size and its
+ * first MiB (core/stream/budget.ts), or undefined when the file cannot be examined (the
+ * whole read then says why).
+ */
+export function wholeReadMiB(file: string): number | undefined {
+  try {
+    const s = sampleFile(file);
+    return estimatedMiB(s.size, s.sampleBytes, s.lines, s.fields);
+  } catch {
+    return undefined;
+  }
+}
 
 /** Everything one run produced. */
 export interface PipelineRun {
@@ -30,6 +47,10 @@ export interface PipelineRun {
   readonly fit: FitResult;
   readonly diagnostics: Diagnostics;
   readonly deliverables: Deliverables;
+  /** Rows the fit used (`fitted` holds none when the data were streamed). */
+  readonly rowsUsed: number;
+  /** Present when the data were streamed from the file in passes: how many, the scheme asked for and the one used. */
+  readonly streamed?: { readonly passes: number; readonly asked: ResampleSpec; readonly resample: ResampleSpec } | undefined;
 }
 
 /**
@@ -83,6 +104,12 @@ export async function runPipeline(
   names?: { readonly table: string; readonly record: string },
   source: { readonly bytes?: Uint8Array | undefined; readonly progress?: Progress | undefined; readonly previous?: unknown } = {},
 ): Promise<PipelineRun> {
+  if (source.bytes === undefined) {
+    // Above the memory budget the file is streamed in passes (docs/design.md, "Streaming").
+    const budget = plan.memoryBudget ?? DEFAULT_MEMORY_BUDGET;
+    const need = wholeReadMiB(file);
+    if (need !== undefined && need > budget) return streamPipeline(file, plan, outFolder, names, source, budget, need);
+  }
   const table = source.bytes !== undefined ? readCsvBytes(source.bytes, file) : await readCsvFile(file);
   // A binomial outcome with a trials column: proportions, with the trials as weights (core/ingest/trials.ts).
   const selection = plan.trials !== undefined ? selectTrials(table, plan.columns, plan.trials, file) : selectColumns(table, plan.columns, file);
@@ -116,5 +143,5 @@ export async function runPipeline(
     sha256,
     names,
   });
-  return { table, selection, fitted, analysis, fit, diagnostics, deliverables };
+  return { table, selection, fitted, analysis, fit, diagnostics, deliverables, rowsUsed: fitted.x.length };
 }

@@ -63,6 +63,12 @@ export interface DeliverInput {
    * the drift is measured (core/calibrate/baseline.ts).
    */
   readonly previous?: unknown;
+  /**
+   * For data streamed from the file in passes (core/node/streamPipeline.ts), whose
+   * `selection.data` and `fitted` hold no rows: the rows used, the x range [min, max] (what
+   * the grids other than the data's x read), and the readings below zero (count, first line).
+   */
+  readonly rows?: { readonly used: number; readonly range: Float64Array; readonly negative: { readonly count: number; readonly line: number } } | undefined;
 }
 
 /** One file to write. */
@@ -164,7 +170,9 @@ function tableWarnings(input: DeliverInput, summary: TableSummary, added: readon
         if (first < 0) first = i;
       }
     }
-    if (count) out.push(`${count} reading(s) are below zero although the quantity was declared non-negative (the first on line ${lines ? lines[first] : first + 1}).`);
+    let line = lines ? lines[first] : first + 1;
+    if (input.rows) ({ count, line } = input.rows.negative);
+    if (count) out.push(`${count} reading(s) are below zero although the quantity was declared non-negative (the first on line ${line}).`);
   }
   for (const c of added) out.push(`The table column ${c} was added to the columns asked for, because it flags rows.`);
   return out;
@@ -186,7 +194,7 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
   const plan: FitPlan = { ...input.plan, columns: input.selection.labels };
   const out = plan.output;
   const round = (v: number): number => printedValue(v, out.digits);
-  const sorted = Float64Array.from(input.selection.data.x).sort();
+  const sorted = input.rows ? input.rows.range : Float64Array.from(input.selection.data.x).sort();
   const grid = resolveGrid(out.grid, sorted, fit.curve, round);
   const points = grid.points;
   checkInRange(points, fit.curve.lower, fit.curve.upper, out.extrapolate);
@@ -258,7 +266,7 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
       dataSha256: input.dataSha256,
       labels: input.selection.labels,
       rowsRead: input.rowsRead,
-      rowsUsed: input.selection.data.x.length,
+      rowsUsed: input.rows?.used ?? input.selection.data.x.length,
       rejected: input.selection.rejected,
       fit,
       analysis: input.analysis,
@@ -287,7 +295,7 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
     dataSha256: input.dataSha256,
     columns: input.selection.labels,
     rowsRead: input.rowsRead,
-    rowsUsed: input.selection.data.x.length,
+    rowsUsed: input.rows?.used ?? input.selection.data.x.length,
     rejected: input.selection.rejected,
     curve: plan.options.kind,
     analysis: input.analysis,

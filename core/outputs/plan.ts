@@ -45,6 +45,8 @@ export interface FitPlan {
   readonly trials?: string | undefined;
   /** Rows split into groups (by a column, or several reading columns), each tuned and fitted (core/groups/). */
   readonly groups?: GroupSpec | undefined;
+  /** Memory in MiB the data may take held whole; above it the file is streamed in passes (core/stream/budget.ts). Undefined: the default. */
+  readonly memoryBudget?: number | undefined;
 }
 
 /**
@@ -84,6 +86,7 @@ export function fitCommand(plan: FitPlan, dataPath: string): string {
   if (out.report) w.push('--report');
   if (out.inverse !== undefined) w.push(...inverseFlags(out.inverse, shellWord));
   if (plan.groups !== undefined) w.push(...groupFlags(plan.groups, shellWord));
+  if (plan.memoryBudget !== undefined) w.push('--memory-budget', String(plan.memoryBudget));
   w.push('--out', '.');
   return w.join(' ');
 }

@@ -204,6 +204,8 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
         robust: plan.options.robust === true ? true : plan.options.robust ? { k: plan.options.robust.k } : null,
         trials: plan.trials ?? null,
       },
+      // Only when a budget was given: records of runs at the default keep their bytes.
+      ...(plan.memoryBudget !== undefined ? { memoryBudget: plan.memoryBudget } : {}),
     },
     fit: {
       curve: f.kind,

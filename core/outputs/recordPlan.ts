@@ -236,6 +236,8 @@ export function readRecord(json: unknown, where: string): RecordedRun {
     options,
     output,
     ...(model.trials !== undefined ? { trials: model.trials } : {}),
+    // The memory budget given for the run (absent: the default), so check reads the file the same way.
+    ...(spec.memoryBudget !== undefined && spec.memoryBudget !== null ? { memoryBudget: f.num(spec, 'memoryBudget', 'spec.memoryBudget') } : {}),
   };
   const files = [{ file: f.str(table, 'file', 'table.file'), sha256: f.str(table, 'sha256', 'table.sha256') }];
   if (rec.outputs !== undefined) {

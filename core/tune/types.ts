@@ -5,7 +5,9 @@ export type ResampleSpec =
   | { readonly kind: 'bootstrap'; readonly resamples: number }
   | { readonly kind: 'folds'; readonly folds: number; readonly repeats: number }
   | { readonly kind: 'leave-one-out' }
-  | { readonly kind: 'gcv' };
+  | { readonly kind: 'gcv' }
+  /** Rows dealt into bundles by a seeded hash, bundles drawn with replacement (core/stream/bundles.ts). */
+  | { readonly kind: 'bundles'; readonly resamples: number };
 
 /** How the df is chosen from the candidates. */
 export type RuleSpec = { readonly kind: 'least-error' } | { readonly kind: 'one-se' } | { readonly kind: 'simplest-within'; readonly percent: number } | { readonly kind: 'pick'; readonly df: number };

@@ -6,6 +6,7 @@
 import { InputError } from '../../errors';
 import type { ResampleSpec } from '../../tune/types';
 import { bootstrap } from './bootstrap';
+import { bundles } from './bundles';
 import { folds } from './folds';
 import { gcv } from './gcv';
 import { leaveOneOut } from './leaveOneOut';
@@ -21,6 +22,7 @@ export const RESAMPLING: { readonly [K in ResampleSpec['kind']]: ResamplingSchem
   folds,
   'leave-one-out': leaveOneOut,
   gcv,
+  bundles,
 };
 
 /** The schemes in the order help texts list them. */
@@ -35,7 +37,7 @@ export function resamplingScheme<S extends ResampleSpec>(spec: S): ResamplingSch
 export const DEFAULT_RESAMPLING = 'bootstrap:50';
 
 /**
- * Parses a resampling text: bootstrap:<resamples>, folds:<k>[x<repeats>], leave-one-out or gcv.
+ * Parses a resampling text: bootstrap:<resamples>, folds:<k>[x<repeats>], leave-one-out, gcv or bundles:<resamples>.
  * Throws InputError naming the accepted forms. Example: parseResampling('folds:10x5').
  */
 export function parseResampling(text: string): ResampleSpec {

@@ -332,3 +332,67 @@ describe('createCsvReader chunking', () => {
     assert.throws(() => r.push('3,4\n'), /push after finish/);
   });
 });
+
+describe('createCsvReader in parts (drain, finishRows)', () => {
+  /** The parts of `text` pushed in chunks of `size`, drained after every push. */
+  function parts(text: string, size: number): ParsedTable[] {
+    const r = createCsvReader();
+    const out: ParsedTable[] = [];
+    for (let at = 0; at < text.length; at += size) {
+      r.push(text.slice(at, at + size));
+      const part = r.drain();
+      if (part) out.push(structuredClone(part));
+    }
+    out.push(structuredClone(r.finishRows()));
+    return out;
+  }
+
+  it('the parts hold the rows, lines, cell problems and counts of a whole read, whatever the chunk size', () => {
+    // 1,200 bad cells in a numeric column: more than the 1,000 whose reasons quote the text (QUOTED_REASONS_PER_COLUMN).
+    const many = Array.from({ length: 3000 }, (_, i) => `${i},${i % 5 < 2 ? `bad${i}` : i},${i % 3 === 0 ? 'NA' : i}`).join('\n');
+    for (const text of [fixture('problems.csv'), `a,b,c\n${many}\n1,2\n3,4,5\n`]) {
+      const whole = parseCsvText(text);
+      for (const size of [7, 100, 4096, text.length]) {
+        const got = parts(text, size);
+        const k = whole.columns.length;
+        for (let c = 0; c < k; c++) {
+          const joined = got.flatMap((p) => Array.from(p.values[c] ?? []));
+          assert.deepEqual(joined, Array.from(whole.values[c] ?? []), `column ${c}, chunks of ${size}`);
+          const sum = (f: (p: ParsedTable) => number): number => got.reduce((s, p) => s + f(p), 0);
+          assert.equal(
+            sum((p) => p.columns[c]?.numericCount ?? 0),
+            whole.columns[c]?.numericCount,
+          );
+          assert.equal(
+            sum((p) => p.columns[c]?.invalidCount ?? 0),
+            whole.columns[c]?.invalidCount,
+          );
+        }
+        assert.deepEqual(
+          got.flatMap((p) => Array.from(p.lines)),
+          Array.from(whole.lines),
+        );
+        // Cell problems by line, column and reason (quoted reasons stop after the same count as in a whole read).
+        const cells = (ps: readonly ParsedTable['problems'][number][]): string[] =>
+          ps.filter((p) => p.column !== undefined && !p.reason.startsWith('column is not numeric')).map((p) => `${p.line} ${p.column} ${p.reason}`);
+        const rowProblems = (ps: readonly ParsedTable['problems'][number][]): string[] => ps.filter((p) => p.column === undefined).map((p) => `${p.line} ${p.reason}`);
+        assert.deepEqual(
+          got.flatMap((p) => cells(p.problems)),
+          cells(whole.problems),
+        );
+        assert.deepEqual(
+          got.flatMap((p) => rowProblems(p.problems)),
+          rowProblems(whole.problems),
+        );
+        assert.equal(got[got.length - 1]?.blankLines, whole.blankLines);
+      }
+    }
+  });
+
+  it('finishRows refuses an empty file and an unclosed quote as finish does', () => {
+    assert.throws(() => createCsvReader({ file: 'e.csv' }).finishRows(), /the file is empty/);
+    const r = createCsvReader();
+    r.push('x,y\n1,"2\n');
+    assert.throws(() => r.finishRows(), /unterminated quote/);
+  });
+});
