@@ -25,6 +25,7 @@ import { buildPanelPayload } from '../core/view/payload';
 import { tuneCurve } from '../core/tune/tune';
 import { curveKind } from '../core/registry/curves/index';
 import { medianRun, runCli, writeBenchCsv, type ProcessRun } from './processes';
+import { surfaceLine } from './surface';
 import { wholeReadMiB } from '../core/node/pipeline';
 import { DEFAULT_MEMORY_BUDGET } from '../core/stream/budget';
 
@@ -459,13 +460,19 @@ async function main(): Promise<void> {
     await recordScanTimings();
     return;
   }
+  if (PART === 'surface') {
+    log('| run | time, peak memory |');
+    log('| --- | --- |');
+    log(surfaceLine(dir, cliPath));
+    return;
+  }
   const only = (part: string): boolean => PART === undefined || PART === part;
   const csv = join(dir, `bench-${ROWS}.csv`);
   writeBenchCsv(csv, ROWS);
   log(`# Knotwise benchmark`);
   log('');
   log(
-    `Machine: ${cpus().length} x ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, Node ${process.version}. Data: invented readings (seed 7), two columns. Run with \`npm run bench\`; \`KNOTWISE_BENCH_PART=<targets|scaling|stages|panel|fits|r|sizes|records>\` runs one part (and writes nothing), \`KNOTWISE_BENCH_HUGE=1\` adds 100,000,000 rows to the scaling table.`,
+    `Machine: ${cpus().length} x ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, Node ${process.version}. Data: invented readings (seed 7), two columns. Run with \`npm run bench\`; \`KNOTWISE_BENCH_PART=<targets|scaling|stages|panel|fits|r|sizes|records|surface>\` runs one part (and writes nothing), \`KNOTWISE_BENCH_HUGE=1\` adds 100,000,000 rows to the scaling table.`,
   );
   log('');
   if (only('targets')) await targets();
@@ -516,6 +523,14 @@ async function main(): Promise<void> {
     log('');
   }
   if (only('sizes')) sizes();
+  if (only('surface')) {
+    log('## Surfaces of two inputs (whole process)');
+    log('');
+    log('| run | time, peak memory |');
+    log('| --- | --- |');
+    log(surfaceLine(dir, cliPath));
+    log('');
+  }
   if (PART !== undefined) return;
   writeFileSync(join(__dirname, '..', 'bench', 'results.md'), lines.join('\n') + '\n');
   console.log('\nwritten to bench/results.md');

@@ -12,14 +12,17 @@ import { basename, dirname, isAbsolute, join, relative, resolve, sep } from 'nod
 import { compareFile, jsonDifferences, printable } from '../outputs/compare';
 import { InputError } from '../errors';
 import { defineCommand, formatHelp, parseCommand } from './args';
-import { fitCommand, type FitPlan } from '../outputs/plan';
+import { fitCommand } from '../outputs/plan';
 import { shellWord } from '../outputs/shellWord';
 import { readRecordFile, type RecordFile } from '../outputs/recordPlan';
 import { VERSION } from '../version';
 import { driftFromRecord } from '../calibrate/drift';
 import { recordSample } from '../calibrate/baseline';
 import { isGroupRecord, readGroupRecord, type GroupRecordRun } from '../outputs/groupRecordPlan';
+import { isSurfaceRecord, readSurfaceRecord, type SurfaceRecordRun } from '../outputs/surfaceRecordPlan';
+import { surfaceCommand } from '../surface/spec';
 import { runGroupPipeline } from './groupPipeline';
+import { runSurfacePipeline } from './surfacePipeline';
 import { sha256 } from './outputs';
 import { portableRelative, runPipeline } from './pipeline';
 
@@ -65,11 +68,11 @@ export function findRecords(root: string): string[] {
   return out.sort();
 }
 
-/** The parsed JSON of a group record, or undefined for anything else (a fit record, or not JSON). */
-function groupRecordJson(bytes: Uint8Array): unknown {
+/** The parsed JSON of a record of another kind than a fit record (`is` tells the kind), or undefined for anything else (a fit record, or not JSON). */
+function otherRecordJson(bytes: Uint8Array, is: (json: unknown) => boolean): unknown {
   try {
     const json = JSON.parse(Buffer.from(bytes).toString('utf8')) as unknown;
-    return isGroupRecord(json) ? json : undefined;
+    return is(json) ? json : undefined;
   } catch {
     return undefined;
   }
@@ -138,10 +141,11 @@ function result(r: CheckResult): CheckResult {
 /**
  * Checks one record by rebuilding everything from the data and the recorded spec, the
  * record included, and comparing byte for byte: the record must be a whole fit record (or
- * group record, core/groups/deliver.ts, rebuilt by the grouped pipeline) of
- * this version that follows its schema (else 'error'); the data's SHA-256 is compared with
- * the recorded one; every output (table, emitted code, report and figures, and the record
- * itself) is rebuilt and compared with its file. The only difference allowed is the
+ * group record, core/groups/deliver.ts, rebuilt by the grouped pipeline; or surface record,
+ * core/surface/deliver.ts, rebuilt by the surface pipeline) of this version that follows
+ * its schema (else 'error'); the data's SHA-256 is compared with the recorded one; every
+ * output (table, emitted code, report and figures, and the record itself) is rebuilt and
+ * compared with its file. The only difference allowed is the
  * version of Knotwise in the record (tool.version): when the rebuilt bytes equal the file
  * but for it, the record is current and a note says which version wrote it. Never throws:
  * problems come back as status 'error'.
@@ -156,11 +160,17 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
     const code = (e as NodeJS.ErrnoException).code;
     return failed([`${recordPath}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder' : errorText(e)}`]);
   }
-  // A fit record or a group record (core/groups/deliver.ts): each says how to rebuild its outputs.
+  // A fit record, a group record (core/groups/deliver.ts) or a surface record (core/surface/deliver.ts): each says how to rebuild its outputs.
   let read: Rebuildable;
   try {
-    const group = groupRecordJson(bytes);
-    read = group !== undefined ? groupRebuild(readGroupRecord(group, recordPath), group) : fitRebuild(readRecordFile(bytes, recordPath), basename(recordPath));
+    const group = otherRecordJson(bytes, isGroupRecord);
+    const surface = group === undefined ? otherRecordJson(bytes, isSurfaceRecord) : undefined;
+    read =
+      group !== undefined
+        ? groupRebuild(readGroupRecord(group, recordPath), group)
+        : surface !== undefined
+          ? surfaceRebuild(readSurfaceRecord(surface, recordPath), surface)
+          : fitRebuild(readRecordFile(bytes, recordPath), basename(recordPath));
   } catch (e) {
     return failed([errorText(e)]);
   }
@@ -168,7 +178,7 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
   const folder = dirname(recordPath);
   const dataFile = resolve(folder, read.dataPath);
   // Built from the spec with our own quoting; the record's regenerate text is only compared.
-  const regenerate = fitCommand(read.plan, portableRelative(folder, dataFile));
+  const regenerate = read.command(portableRelative(folder, dataFile));
   const outside = read.files.find((f) => relative(resolve(folder), resolve(folder, f)).split(sep)[0] === '..' || isAbsolute(f));
   if (outside) return failed([`the record names an output outside its folder: ${named(outside)}`], { writtenBy, regenerate });
   if (!existsSync(dataFile)) return failed([`the data file ${named(read.dataPath)} (data.path in the record) was not found`], { writtenBy, regenerate });
@@ -226,7 +236,8 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
 /** A record read for checking: its plan and provenance, and how to rebuild its outputs from the data. */
 interface Rebuildable {
   readonly json: unknown;
-  readonly plan: FitPlan;
+  /** The `knotwise fit` command that redoes the record's run on the data at `dataPath` (built from its spec). */
+  command(dataPath: string): string;
   readonly dataPath: string;
   readonly dataSha256: string;
   readonly writtenBy: string;
@@ -250,7 +261,7 @@ function fitRebuild(read: RecordFile, recordName: string): Rebuildable {
   const rec = read.run;
   return {
     json: read.json,
-    plan: rec.plan,
+    command: (p) => fitCommand(rec.plan, p),
     dataPath: rec.dataPath,
     dataSha256: rec.dataSha256,
     writtenBy: rec.toolVersion,
@@ -275,7 +286,7 @@ function fitRebuild(read: RecordFile, recordName: string): Rebuildable {
 function groupRebuild(rec: GroupRecordRun, json: unknown): Rebuildable {
   return {
     json,
-    plan: rec.plan,
+    command: (p) => fitCommand(rec.plan, p),
     dataPath: rec.dataPath,
     dataSha256: rec.dataSha256,
     writtenBy: rec.toolVersion,
@@ -283,6 +294,26 @@ function groupRebuild(rec: GroupRecordRun, json: unknown): Rebuildable {
     async rebuild(dataFile, folder) {
       const run = await runGroupPipeline(dataFile, rec.plan, folder);
       return { dataSha256: run.table.sha256, files: run.deliverables.files, dataChanged: '', changes: [] };
+    },
+  };
+}
+
+/** A surface record: rebuilt by the surface pipeline (core/node/surfacePipeline.ts). */
+function surfaceRebuild(rec: SurfaceRecordRun, json: unknown): Rebuildable {
+  return {
+    json,
+    command: (p) => surfaceCommand(rec.plan, p),
+    dataPath: rec.dataPath,
+    dataSha256: rec.dataSha256,
+    writtenBy: rec.toolVersion,
+    files: rec.files.map((f) => f.file),
+    async rebuild(dataFile, folder) {
+      const run = await runSurfacePipeline(dataFile, rec.plan, folder);
+      const changes: string[] = [];
+      const was = (json as { choice?: { df?: { x?: unknown; x2?: unknown } } | null }).choice?.df;
+      if (was && (was.x !== run.fit.dfU || was.x2 !== run.fit.dfV)) changes.push(`the chosen df pair would change from ${String(was.x)} × ${String(was.x2)} to ${run.fit.dfU} × ${run.fit.dfV}`);
+      const rows = (json as { data?: { rowsUsed?: unknown } }).data?.rowsUsed;
+      return { dataSha256: run.table.sha256, files: run.deliverables.files, dataChanged: typeof rows === 'number' && rows !== run.fit.n ? `; rows used ${rows}, now ${run.fit.n}` : '', changes };
     },
   };
 }

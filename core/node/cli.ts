@@ -32,6 +32,8 @@ import { DEFAULT_DIGITS } from '../table/formatCsv';
 import { inverseWords } from '../calibrate/inverseOutput';
 import type { GroupSpec } from '../groups/spec';
 import { runGroupFit } from './groupFit';
+import { SURFACE_OPTIONS, surfaceArgsOf } from './surfaceOptions';
+import { runSurfaceFit } from './surfaceFit';
 import { checkInverse, CLI_INVERSE_NAMES, INVERSE_DEFAULT_POINTS, INVERSE_LIMITS, type InverseSpec } from '../calibrate/spec';
 import { curveKinds, DEFAULT_CURVE, parseCurve, resolveModel } from '../registry/curves/index';
 import { DEFAULT_OUTCOME, OUTCOME_LIST, outcomeKind, parseOutcome } from '../registry/outcomes/index';
@@ -91,6 +93,7 @@ function fitCommand() {
     options: [
       { group: 'Data', name: 'x', value: 'column', help: 'the column of the input quantity, by header text or label', required: true },
       { group: 'Data', name: 'y', value: 'column', help: 'the column of the readings, by header text or label', required: true, requiredUnless: 'channels' },
+      SURFACE_OPTIONS.x2,
       { group: 'Data', name: 'weights', value: 'column', help: 'prior weights of the rows, positive', defaultText: 'every row weighs 1' },
       { group: 'Data', name: 'trials', value: 'column', help: 'with --outcome proportions: the number of trials of each row; --y then holds the successes' },
       {
@@ -153,7 +156,7 @@ function fitCommand() {
         group: 'Tuning',
         name: 'df',
         value: 'df',
-        help: 'one df, fitted as is (k), or the candidates to tune over (a,b,c or a..b)',
+        help: 'one df, fitted as is (k), or the candidates to tune over (a,b,c or a..b); with --x2 the same for both inputs, or <list>x<list> per input (5x4 fits that pair as is)',
         defaultText: "the curve kind's candidates for the data",
         limits: `each at least 1; at most ${MAX_CANDIDATES} candidates`,
       },
@@ -200,7 +203,9 @@ function fitCommand() {
         ],
         limits: `at most ${MAX_GRID_POINTS} points`,
       },
-      { group: 'Table', name: 'extrapolate', help: 'allow table points outside the data range; they are flagged' },
+      SURFACE_OPTIONS.grid2,
+      { group: 'Table', name: 'extrapolate', help: 'allow table points outside the data range (surfaces: nodes the readings do not reach); they are flagged' },
+      SURFACE_OPTIONS.reach,
       {
         group: 'Table',
         name: 'columns',
@@ -582,6 +587,9 @@ function fitJson(fit: FitResult, streamed: boolean): Record<string, unknown> {
 }
 
 async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
+  // Two inputs (--x2): a surface, with options of its own (core/node/surfaceArgs.ts).
+  const surface = surfaceArgsOf(fitCommand(), argv);
+  if (surface) return runSurfaceFit(surface, env);
   const args = parseFitArgs(argv);
   if (!args) return 0;
   if (args.out === undefined && (args.output.emit.length > 0 || args.output.report)) {

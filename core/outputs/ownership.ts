@@ -6,6 +6,7 @@
  */
 import { RECORD_FORMAT } from './record';
 import { GROUP_RECORD_FORMAT } from '../groups/spec';
+import { SURFACE_RECORD_FORMAT } from '../surface/format';
 
 /** The files a fit record lists with their SHA-256: the table and every other output, by file name. */
 export function recordedFiles(record: unknown): Map<string, string> {
@@ -49,6 +50,6 @@ export function writtenByKnotwise(target: TargetFile, recordText: string | undef
     return false;
   }
   const format = (rec as { format?: unknown } | null)?.format;
-  if (format !== RECORD_FORMAT && format !== GROUP_RECORD_FORMAT) return false;
+  if (format !== RECORD_FORMAT && format !== GROUP_RECORD_FORMAT && format !== SURFACE_RECORD_FORMAT) return false;
   return target.isRecord || recordedFiles(rec).get(target.name) === target.sha256;
 }

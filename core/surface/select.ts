@@ -58,29 +58,19 @@ export function simplerFirst(a: { readonly dfU: number; readonly dfV: number }, 
 }
 
 /**
- * The df a rule of curves sees for the pair of rank r (1 the simplest) is RANK_BASE + r: an
- * order-preserving stand-in no printed error or threshold in a sentence is mistaken for,
- * since every such number in the rule's words is named back as its pair.
- */
-const RANK_BASE = 7_000_000;
-/** A stand-in df in a rule's sentence, with the 'df ' before it when there is one. */
-const RANK_PATTERN = /(df )?7000(\d{3})\b/g;
-
-/**
  * Applies a rule of curves (core/registry/rules/) to surface candidates: the pairs in the
- * order of simplerFirst stand in for the df of curves (RANK_BASE + rank, rank 1 the simplest), so "the
+ * order of simplerFirst stand in for the df of curves by their rank (1 the simplest), so "the
  * smallest df within the threshold" becomes the simplest pair within it and ties go to the
- * simpler pair; the rule's own sentences are kept, with each rank named back as its pair
- * ('df 5 × 4'). Numbers print as for curves (errorFormat). The explanation adds what the
+ * simpler pair; the rules name each rank as its pair ('df 5 × 4') through their label hook
+ * (PickContext.label, noun 'pair'). Numbers print as for curves (errorFormat). The explanation adds what the
  * other rules would choose, skipped candidates, and a choice at the largest candidate df of
  * an input (the best df may lie beyond it). O(candidates log candidates).
  * Throws InputError when no candidate is usable or a picked pair is not an evaluated candidate.
  * Example: selectPair(cands, { kind: 'one-se' }, 'rmse', { u: 'Temp', v: 'Wind' }).reason.
  */
 export function selectPair(candidates: readonly SurfaceCandidate[], rule: SurfaceRule, metric: SurfaceMetric, names: { readonly u: string; readonly v: string }): SurfaceSelection {
-  if (candidates.length > 999) throw new InputError(`at most 999 candidate df pairs can be compared; got ${candidates.length}`);
   const ranked = [...candidates].sort(simplerFirst);
-  const asCurves: CandidateResult[] = ranked.map((c, r) => ({ df: RANK_BASE + r + 1, errors: c.errors, ...(c.skipped !== undefined ? { skipped: c.skipped } : {}) }));
+  const asCurves: CandidateResult[] = ranked.map((c, r) => ({ df: r + 1, errors: c.errors, ...(c.skipped !== undefined ? { skipped: c.skipped } : {}) }));
   const list: Usable[] = [];
   for (const c of asCurves) {
     const e = c.errors[metric];
@@ -90,30 +80,26 @@ export function selectPair(candidates: readonly SurfaceCandidate[], rule: Surfac
     const reasons = candidates.filter((c) => c.skipped).map((c) => `${pairWords(c.dfU, c.dfV)}: ${c.skipped}`);
     throw new InputError(`no candidate df pair could be evaluated${reasons.length ? ` (${reasons.join('; ')})` : ''}`);
   }
-  const pairOf = (rank: number): SurfaceCandidate => ranked[rank - RANK_BASE - 1] as SurfaceCandidate;
-  const named = (text: string): string =>
-    text
-      .replace(RANK_PATTERN, (m, _df: string | undefined, r: string) => {
-        const c = ranked[Number(r) - 1];
-        return c ? pairWords(c.dfU, c.dfV) : m;
-      })
-      .replace(/The smallest df at or under it is/g, 'The simplest pair at or under it is')
-      .replace(/The next simpler candidate/g, 'The next simpler pair');
+  const pairOf = (rank: number): SurfaceCandidate => ranked[rank - 1] as SurfaceCandidate;
+  const label = (rank: number): string => {
+    const c = pairOf(rank);
+    return pairWords(c.dfU, c.dfV);
+  };
   const percent = rule.kind === 'simplest-within' ? rule.percent : DEFAULT_TOLERANCE_PERCENT;
   const num = errorFormat(asCurves, metric, percent);
   const best = leastOf(list);
   const metricName = metricLabel(metric);
-  const head = `Least mean ${metricName} ${num(best.e.mean)} at df ${best.df}` + (Number.isFinite(best.e.se) ? ` (SE ${sig(best.e.se, 2)}).` : '.');
+  const head = `Least mean ${metricName} ${num(best.e.mean)} at ${label(best.df)}` + (Number.isFinite(best.e.se) ? ` (SE ${sig(best.e.se, 2)}).` : '.');
   const apply = (r: SurfaceRule) => {
     let spec: RuleSpec;
     if (r.kind === 'pick') {
-      const rank = RANK_BASE + ranked.findIndex((c) => c.dfU === r.dfU && c.dfV === r.dfV) + 1;
-      if (rank === RANK_BASE || !list.some((u) => u.df === rank)) {
+      const rank = ranked.findIndex((c) => c.dfU === r.dfU && c.dfV === r.dfV) + 1;
+      if (rank === 0 || !list.some((u) => u.df === rank)) {
         throw new InputError(`${pairWords(r.dfU, r.dfV)} was picked but is not an evaluated candidate (candidates: ${list.map((u) => pairWords(pairOf(u.df).dfU, pairOf(u.df).dfV)).join(', ')})`);
       }
       spec = { kind: 'pick', df: rank };
     } else spec = r;
-    return selectionRule(spec).pick(spec, { list, best, metric, metricName, head, num });
+    return selectionRule(spec).pick(spec, { list, best, metric, metricName, head, num, label, noun: 'pair' });
   };
   const main = apply(rule);
   const chosen = pairOf(main.chosen.df);
@@ -134,7 +120,7 @@ export function selectPair(candidates: readonly SurfaceCandidate[], rule: Surfac
   );
   const edgeText = edge.length ? edgeWords(edge, chosen, pairOf(best.df), rule.kind !== 'pick', names) : '';
   const caveats = [skippedText, edgeText].filter((s) => s).join(' ');
-  const ruleReason = named(main.sentence);
+  const ruleReason = main.sentence;
   return {
     dfU: chosen.dfU,
     dfV: chosen.dfV,

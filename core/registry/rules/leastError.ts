@@ -1,4 +1,5 @@
 import type { RuleSpec } from '../../tune/types';
+import { named } from './common';
 import type { SelectionRule } from './types';
 
 type LeastError = Extract<RuleSpec, { kind: 'least-error' }>;
@@ -14,5 +15,5 @@ export const leastError: SelectionRule<LeastError> = {
   parse: (text) => (text === 'least-error' ? { kind: 'least-error' } : undefined),
   format: () => 'least-error',
   words: () => 'least mean error',
-  pick: (_r, { best, head }) => ({ chosen: best, sentence: `${head} Rule: least mean error, so df ${best.df} is chosen.` }),
+  pick: (_r, ctx) => ({ chosen: ctx.best, sentence: `${ctx.head} Rule: least mean error, so ${named(ctx, ctx.best.df)} is chosen.` }),
 };

@@ -1,5 +1,5 @@
 import type { RuleSpec } from '../../tune/types';
-import { aboveText, smallestUnder } from './common';
+import { aboveText, named, smallestText, smallestUnder } from './common';
 import type { SelectionRule } from './types';
 
 type OneSe = Extract<RuleSpec, { kind: 'one-se' }>;
@@ -20,12 +20,13 @@ export const oneSe: SelectionRule<OneSe> = {
   parse: (text) => (text === 'one-se' ? { kind: 'one-se' } : undefined),
   format: () => 'one-se',
   words: () => 'one-standard-error rule',
-  pick(_r, { list, best, head, metricName, num }) {
+  pick(_r, ctx) {
+    const { list, best, head, metricName, num } = ctx;
     if (!Number.isFinite(best.e.se)) {
-      return { chosen: best, sentence: `${head} The one-standard-error rule needs a standard error, which ${metricName} does not have here, so the least mean error decides: df ${best.df}.` };
+      return { chosen: best, sentence: `${head} The one-standard-error rule needs a standard error, which ${metricName} does not have here, so the least mean error decides: ${named(ctx, best.df)}.` };
     }
     const threshold = best.e.mean + best.e.se;
     const c = smallestUnder(list, threshold);
-    return { chosen: c, threshold, sentence: `${head} One-SE threshold ${num(threshold)}. The smallest df at or under it is ${c.df} (${num(c.e.mean)}), chosen.${aboveText(list, c, num)}` };
+    return { chosen: c, threshold, sentence: `${head} One-SE threshold ${num(threshold)}. ${smallestText(ctx, c)} (${num(c.e.mean)}), chosen.${aboveText(list, c, num, ctx)}` };
   },
 };

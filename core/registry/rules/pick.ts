@@ -1,6 +1,7 @@
 import { InputError } from '../../errors';
 import { sig } from '../../tune/format';
 import type { RuleSpec } from '../../tune/types';
+import { named } from './common';
 import type { SelectionRule } from './types';
 
 type PickDf = Extract<RuleSpec, { kind: 'pick' }>;
@@ -19,9 +20,10 @@ export const pickDf: SelectionRule<PickDf> = {
   },
   format: (r) => `pick:${r.df}`,
   words: () => 'df picked by the person',
-  pick(r, { list, head, metricName, num }) {
+  pick(r, ctx) {
+    const { list, head, metricName, num } = ctx;
     const c = list.find((u) => u.df === r.df);
-    if (!c) throw new InputError(`df ${r.df} was picked but is not an evaluated candidate (candidates: ${list.map((u) => u.df).join(', ')})`);
-    return { chosen: c, sentence: `${head} df ${c.df} was picked by the person (mean ${metricName} ${num(c.e.mean)}${Number.isFinite(c.e.se) ? `, SE ${sig(c.e.se, 2)}` : ''}).` };
+    if (!c) throw new InputError(`${named(ctx, r.df)} was picked but is not an evaluated candidate (candidates: ${list.map((u) => (ctx.label ? ctx.label(u.df) : String(u.df))).join(', ')})`);
+    return { chosen: c, sentence: `${head} ${named(ctx, c.df)} was picked by the person (mean ${metricName} ${num(c.e.mean)}${Number.isFinite(c.e.se) ? `, SE ${sig(c.e.se, 2)}` : ''}).` };
   },
 };

@@ -1,6 +1,6 @@
 import { InputError } from '../../errors';
 import type { RuleSpec } from '../../tune/types';
-import { aboveText, smallestUnder } from './common';
+import { aboveText, smallestText, smallestUnder } from './common';
 import type { SelectionRule } from './types';
 
 type SimplestWithin = Extract<RuleSpec, { kind: 'simplest-within' }>;
@@ -32,14 +32,15 @@ export const simplestWithin: SelectionRule<SimplestWithin> = {
   },
   format: (r) => `simplest-within:${r.percent}`,
   words: (r) => `simplest within ${r.percent} % of the least error`,
-  pick(r, { list, best, head, num }) {
+  pick(r, ctx) {
+    const { list, best, head, num } = ctx;
     checkTolerance(r.percent);
     const threshold = best.e.mean * (1 + r.percent / 100);
     const c = smallestUnder(list, threshold);
     return {
       chosen: c,
       threshold,
-      sentence: `${head} Simplest within ${r.percent} %: threshold ${num(threshold)}. The smallest df at or under it is ${c.df} (${num(c.e.mean)}), chosen.${aboveText(list, c, num)}`,
+      sentence: `${head} Simplest within ${r.percent} %: threshold ${num(threshold)}. ${smallestText(ctx, c)} (${num(c.e.mean)}), chosen.${aboveText(list, c, num, ctx)}`,
     };
   },
 };

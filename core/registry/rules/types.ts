@@ -30,6 +30,14 @@ export interface PickContext {
   readonly head: string;
   /** A mean error or threshold as the sentence prints it: digits that tell the compared values apart (core/tune/rules.ts errorDigits). */
   readonly num: (value: number) => string;
+  /**
+   * How the sentences name a candidate (a surface's pair: 'df 5 × 4'); default `df ${df}`,
+   * and then "the smallest df" keeps its curve wording. With a label the rules say "the
+   * simplest <noun>" instead, since the order of simplicity is the caller's, not df's.
+   */
+  readonly label?: ((df: number) => string) | undefined;
+  /** What a candidate is called with a label ('pair'); default 'candidate'. */
+  readonly noun?: string | undefined;
 }
 
 /** A selection rule. `R` is its spec type (a member of RuleSpec). */
