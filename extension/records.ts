@@ -170,7 +170,9 @@ export class RecordWatch implements vscode.Disposable {
       const advice =
         files.kind === 'group'
           ? `Group tables out of date: ${reasons.join('; ')}. Open the review and save every group to bring the tables and this group record up to date.`
-          : `Curve table out of date: ${reasons.join('; ')}. Refit and save to bring the table and this record up to date.`;
+          : files.kind === 'surface'
+            ? `Surface table out of date: ${reasons.join('; ')}. Run the record's regenerate command to bring the table and this surface record up to date.`
+            : `Curve table out of date: ${reasons.join('; ')}. Refit and save to bring the table and this record up to date.`;
       const d = new vscode.Diagnostic(range, advice, vscode.DiagnosticSeverity.Warning);
       d.source = 'Knotwise';
       this.diagnostics.set(recordUri, [d]);
@@ -239,7 +241,8 @@ export class RecordWatch implements vscode.Disposable {
     const show = 'Show what changed';
     // A group record is brought up to date from its review (Save every group); one made from
     // several reading columns has no editor flow, so only what changed is shown for it.
-    const actions = files.kind === 'group' ? (files.columns.per !== undefined ? [open, show] : [show]) : [refit, open, show];
+    // A surface record is brought up to date by its regenerate command (the command line).
+    const actions = files.kind === 'group' ? (files.columns.per !== undefined ? [open, show] : [show]) : files.kind === 'surface' ? [show] : [refit, open, show];
     const action = await vscode.window.showQuickPick(actions, {
       title: `Knotwise: ${vscode.workspace.asRelativePath(vscode.Uri.parse(pick.record))}`,
       placeHolder: pick.reasons.join('; '),

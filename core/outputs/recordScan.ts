@@ -9,6 +9,7 @@
  */
 import { RECORD_FORMAT } from './record';
 import { GROUP_RECORD_FORMAT } from '../groups/spec';
+import { SURFACE_RECORD_FORMAT } from '../surface/format';
 
 /** A file's size in bytes and modification time in milliseconds. */
 export interface FileStamp {
@@ -45,6 +46,8 @@ export interface RecordedColumns {
   readonly trials?: string;
   /** A group record made with --per: the column naming each row's group. */
   readonly per?: string;
+  /** A surface record: the second input. */
+  readonly x2?: string;
 }
 
 /** What a record names, before the names are placed on a file system. */
@@ -53,16 +56,19 @@ export interface RecordNames {
   /** The curve table first, then the other outputs the record lists. */
   readonly outputs: readonly { readonly name: string; readonly sha256: string }[];
   readonly columns: RecordedColumns;
-  /** 'group' for a group record (core/groups/deliver.ts): its tables, summary and code are the outputs. */
-  readonly kind: 'fit' | 'group';
+  /** 'group' for a group record (core/groups/deliver.ts): its tables, summary and code are the outputs; 'surface' for a surface record (core/surface/deliver.ts). */
+  readonly kind: RecordKind;
 }
+
+/** The kinds of record the scan reads. */
+export type RecordKind = 'fit' | 'group' | 'surface';
 
 /** The files of one record, placed. */
 export interface RecordFiles {
   readonly data: NamedFile;
   readonly outputs: readonly NamedFile[];
   readonly columns: RecordedColumns;
-  readonly kind: 'fit' | 'group';
+  readonly kind: RecordKind;
 }
 
 /** A record as read by `RecordScan.read`. */
@@ -81,9 +87,9 @@ const MAX_TEXT = 4096;
 const isText = (v: unknown): v is string => typeof v === 'string' && v.length > 0 && v.length < MAX_TEXT;
 
 /**
- * The files a fit record's or a group record's bytes name, or undefined when they are not a
- * Knotwise record with a data file, x and y columns and (a fit record) a curve table or (a
- * group record) at least one output. Outputs whose name leaves the record's folder ('..' or
+ * The files a fit, group or surface record's bytes name, or undefined when they are not a
+ * Knotwise record with a data file, x and y columns and (a fit record) a curve table or (the
+ * others) at least one output. Outputs whose name leaves the record's folder ('..' or
  * a leading '/') are left out, so a record cannot make the scan read files elsewhere.
  * O(record size).
  * Example: recordNames(bytes)?.outputs[0]?.name === 'cal.curve.csv'.
@@ -97,8 +103,11 @@ export function recordNames(bytes: Uint8Array): RecordNames | undefined {
   }
   const o = rec as { format?: unknown; data?: Record<string, unknown>; table?: Record<string, unknown>; outputs?: unknown } | null;
   if (typeof o !== 'object' || o === null || typeof o.data !== 'object' || !o.data) return undefined;
-  const group = o.format === GROUP_RECORD_FORMAT;
-  if (!group && (o.format !== RECORD_FORMAT || typeof o.table !== 'object' || !o.table)) return undefined;
+  const kind: RecordKind | undefined = o.format === RECORD_FORMAT ? 'fit' : o.format === GROUP_RECORD_FORMAT ? 'group' : o.format === SURFACE_RECORD_FORMAT ? 'surface' : undefined;
+  if (kind === undefined) return undefined;
+  // A fit record names its table apart; the others list every output, the tables among them.
+  const group = kind !== 'fit';
+  if (!group && (typeof o.table !== 'object' || !o.table)) return undefined;
   const { data, table } = o;
   if (!isText(data.path) || !isText(data.sha256)) return undefined;
   if (!group && (!table || !isText(table.file) || !isText(table.sha256))) return undefined;
@@ -117,9 +126,10 @@ export function recordNames(bytes: Uint8Array): RecordNames | undefined {
       y: cols.y,
       ...(isText(cols.weights) ? { weights: cols.weights } : {}),
       ...(isText(cols.trials) ? { trials: cols.trials } : {}),
-      ...(group && isText(data.groupBy) ? { per: data.groupBy } : {}),
+      ...(kind === 'group' && isText(data.groupBy) ? { per: data.groupBy } : {}),
+      ...(kind === 'surface' && isText(cols.x2) ? { x2: cols.x2 } : {}),
     },
-    kind: group ? 'group' : 'fit',
+    kind,
   };
 }
 

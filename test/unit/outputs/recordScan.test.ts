@@ -6,6 +6,7 @@
 import { strict as assert } from 'node:assert';
 import { createHash } from 'node:crypto';
 import { GROUP_RECORD_FORMAT } from '../../../core/groups/spec';
+import { SURFACE_RECORD_FORMAT } from '../../../core/surface/format';
 import { RECORD_FORMAT } from '../../../core/outputs/record';
 import { RecordScan, recordNames, type FileStamp, type ScanFileSystem } from '../../../core/outputs/recordScan';
 
@@ -152,6 +153,20 @@ describe('group records in the scan', () => {
     fs.write('/w/rig.B.curve.csv', HEADER + 'changed\n');
     const reasons = await reasonsOf(scan, '/w/rig.groups.fit.json');
     assert.deepEqual(reasons, ['the output rig.B.curve.csv changed since the record was written (its SHA-256 differs)']);
+  });
+});
+
+describe('surface records in the scan', () => {
+  it('recordNames reads a surface record: its table among the outputs, the second input with the columns', () => {
+    const text = JSON.stringify({
+      format: SURFACE_RECORD_FORMAT,
+      data: { path: 'map.csv', sha256: sha(DATA), columns: { x: 'speed', x2: 'load', y: 'efficiency', weights: null } },
+      outputs: [{ kind: 'table', file: 'map.surface.csv', sha256: sha(TABLE) }],
+    });
+    const names = recordNames(new TextEncoder().encode(text));
+    assert.equal(names?.kind, 'surface');
+    assert.deepEqual(names?.columns, { x: 'speed', y: 'efficiency', x2: 'load' });
+    assert.deepEqual(names?.outputs, [{ name: 'map.surface.csv', sha256: sha(TABLE) }]);
   });
 });
 
