@@ -281,7 +281,16 @@ export function commonCurveTest(groups: readonly GroupRows[], df: number, option
 
   // Which groups differ: named one at a time, so a group far from the rest does not make the
   // curve the others share look wrong for groups that follow it (a single-step test would).
-  const named = oneServesAll ? { steps: [], capped: false } : stepDown(groupGram, groupRhs, own, q, kept.map((k) => k.name), { df, rssSeparate: rss1, dfDen, level: o.level });
+  const named = oneServesAll
+    ? { steps: [], capped: false }
+    : stepDown(
+        groupGram,
+        groupRhs,
+        own,
+        q,
+        kept.map((k) => k.name),
+        { df, rssSeparate: rss1, dfDen, level: o.level },
+      );
   const namedSet = new Set(named.steps.map((st) => st.name));
   const perGroup: GroupDifference[] = kept.map(({ name, data }, g) => {
     // Extra sum of squares of g's own curve: its squares against the common curve on g's rows, plus the others' shared curve against it on theirs.

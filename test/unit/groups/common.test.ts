@@ -151,7 +151,10 @@ describe('commonCurveTest', () => {
       r.perGroup.filter((d) => d.differs).map((d) => d.name),
       ['D3'],
     );
-    assert.match(r.words, /^The 8 devices need separate curves, which fit significantly better than one curve .*; device D3 differs from the common curve \(named step by step, Holm's order over 8 devices\)/);
+    assert.match(
+      r.words,
+      /^The 8 devices need separate curves, which fit significantly better than one curve .*; device D3 differs from the common curve \(named step by step, Holm's order over 8 devices\)/,
+    );
     const d3 = r.perGroup.find((d) => d.name === 'D3');
     assert.ok(d3 && d3.pAdjusted === Math.min(1, 8 * d3.p));
   });

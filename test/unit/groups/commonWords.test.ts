@@ -49,7 +49,10 @@ describe('commonCurveWords', () => {
   });
 
   it('commonCurveWords says more may differ when the naming stopped at its limit', () => {
-    assert.match(commonCurveWords({ ...base, oneServesAll: false, differing: ['3', '5'], moreMayDiffer: true }), /\(named step by step, Holm's order over 5 trees; more may differ: the naming stops at 2\)/);
+    assert.match(
+      commonCurveWords({ ...base, oneServesAll: false, differing: ['3', '5'], moreMayDiffer: true }),
+      /\(named step by step, Holm's order over 5 trees; more may differ: the naming stops at 2\)/,
+    );
   });
 
   it('commonCurveWords: separate curves needed though none differs alone, and held-out rows no better', () => {
