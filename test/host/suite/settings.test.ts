@@ -137,6 +137,7 @@ describe('settings snapshot (readSettings)', function () {
       'knotwise.inverse.referenceUncertainty': DEFAULT_INVERSE.referenceUncertainty,
       'knotwise.inverse.maxIntervalWidth': 0,
       'knotwise.groups.sharedDf': DEFAULTS.groupsSharedDf,
+      'knotwise.memoryBudget': DEFAULTS.memoryBudget,
       'knotwise.groups.longTable': DEFAULTS.groupsLongTable,
     };
     assert.deepEqual(Object.keys(props).sort(), Object.keys(expected).sort());
