@@ -16,6 +16,7 @@ import { MAX_TOLERANCE_PERCENT } from './registry/rules/index';
 import { parseDfList } from './tune/candidates';
 import type { RuleSpec } from './tune/types';
 import type { GroupsView } from './view/groups';
+import { MAX_SLICES, SLICE_POINTS, VIEW_NODES, VIEW_READINGS, RESIDUAL_POINTS, type SurfaceView } from './view/surface';
 import type { DataStateView, FitDetail, ModelChoice, PanelPayload } from './view/model';
 
 /** Messages from the host to the panel. */
@@ -39,7 +40,9 @@ export type HostMessage =
   /** A grouped run finished: the overview of every group (its `groupResult` follows). */
   | { readonly type: 'groups'; readonly view: GroupsView }
   /** The panel of group `group` (an index into the overview's groups) of the grouped run `setId`: replace everything shown below the overview. */
-  | { readonly type: 'groupResult'; readonly setId: number; readonly group: number; readonly payload: PanelPayload };
+  | { readonly type: 'groupResult'; readonly setId: number; readonly group: number; readonly payload: PanelPayload }
+  /** A surface run finished (two inputs): replace everything shown with this surface (core/view/surface.ts). */
+  | { readonly type: 'surface'; readonly view: SurfaceView };
 
 /** Messages from the panel to the host. */
 export type PanelMessage =
@@ -66,7 +69,15 @@ export type PanelMessage =
   /** Save the inverse table with the curve table from now on (true) or not (false): the host sets knotwise.inverse.write for the data's folder. */
   | { readonly type: 'inverseTable'; readonly save: boolean }
   /** Show group `group` (an index into the overview's groups) of the grouped run `setId`; the host answers with `groupResult`. */
-  | { readonly type: 'selectGroup'; readonly setId: number; readonly group: number };
+  | { readonly type: 'selectGroup'; readonly setId: number; readonly group: number }
+  /** Show the surface run `runId` sliced at these values (at most MAX_SLICES; none: its quartiles) of one input; the host answers with `surface`. */
+  | { readonly type: 'surfaceSlices'; readonly runId: number; readonly input: 'x' | 'x2'; readonly at: readonly number[] }
+  /** Show the surface run `runId` at a df pair picked by hand (df of the first input, of the second); saving then uses it. The host answers with `surface` or `failed`. */
+  | { readonly type: 'surfacePair'; readonly runId: number; readonly x: number; readonly x2: number }
+  /** Go back to the pair the rule chose for the surface run `runId`. */
+  | { readonly type: 'surfaceRule'; readonly runId: number }
+  /** Save the surface table and surface record of run `runId` as shown (answer: `saved` or `saveFailed`). */
+  | { readonly type: 'surfaceSave'; readonly requestId: number; readonly runId: number };
 
 /** The panel's folding sections of details, by id, in the order the panel shows them. */
 export const FOLD_IDS = ['residual-checks', 'influential-rows', 'calibration', 'candidates', 'model-report', 'notes'] as const;
@@ -232,9 +243,95 @@ export function isPanelMessage(m: unknown): m is PanelMessage {
       return hasExactKeys(o, ['type', 'save']) && typeof o.save === 'boolean';
     case 'selectGroup':
       return hasExactKeys(o, ['type', 'setId', 'group']) && isId(o.setId) && isGroupIndex(o.group);
+    case 'surfaceSlices':
+      return (
+        hasExactKeys(o, ['type', 'runId', 'input', 'at']) && isId(o.runId) && (o.input === 'x' || o.input === 'x2') && Array.isArray(o.at) && o.at.length <= MAX_SLICES && o.at.every(isFiniteNumber)
+      );
+    case 'surfacePair':
+      return hasExactKeys(o, ['type', 'runId', 'x', 'x2']) && isId(o.runId) && isSurfaceDf(o.x) && isSurfaceDf(o.x2);
+    case 'surfaceRule':
+      return hasExactKeys(o, ['type', 'runId']) && isId(o.runId);
+    case 'surfaceSave':
+      return hasExactKeys(o, ['type', 'requestId', 'runId']) && isId(o.requestId) && isId(o.runId);
     default:
       return false;
   }
+}
+
+/** Largest df of one input a picked pair may name (the natural spline's df of a curve is bounded alike by its rows; the host checks the data). */
+export const MAX_SURFACE_INPUT_DF = 100;
+
+/** True when `d` is a whole df of one input of a surface, 1 to MAX_SURFACE_INPUT_DF. */
+const isSurfaceDf = (d: unknown): d is number => Number.isSafeInteger(d) && (d as number) >= 1 && (d as number) <= MAX_SURFACE_INPUT_DF;
+
+/** Numbers only, at most `max` of them (null stands for NaN after a JSON round trip). */
+const isBoundedNumbers = (v: unknown, max: number): boolean => isNumberList(v) && v.length <= max;
+
+/** True when `v` is a SurfaceView: its fields with the right types, sizes within the view model's bounds, plain data throughout. */
+function isSurfaceView(v: unknown): v is SurfaceView {
+  const o = plainObject(v);
+  if (
+    !o ||
+    !hasExactKeys(o, ['runId', 'fileName', 'labels', 'rows', 'pair', 'byHand', 'explanation', 'fitLine', 'notes', 'grid', 'readings', 'slices', 'residuals', 'caution'], ['landscape']) ||
+    !isId(o.runId) ||
+    !isText(o.fileName) ||
+    typeof o.byHand !== 'boolean' ||
+    !isText(o.explanation) ||
+    !isText(o.fitLine) ||
+    !isText(o.caution) ||
+    !Array.isArray(o.notes) ||
+    !o.notes.every(isText)
+  )
+    return false;
+  const labels = plainObject(o.labels);
+  if (!labels || !hasExactKeys(labels, ['x', 'x2', 'y']) || !isText(labels.x) || !isText(labels.x2) || !isText(labels.y)) return false;
+  const rows = plainObject(o.rows);
+  if (!rows || !hasExactKeys(rows, ['used', 'rejected']) || !isId(rows.used) || !isId(rows.rejected)) return false;
+  const pair = plainObject(o.pair);
+  if (!pair || !hasExactKeys(pair, ['x', 'x2']) || !isSurfaceDf(pair.x) || !isSurfaceDf(pair.x2)) return false;
+  const nodes = VIEW_NODES * VIEW_NODES;
+  const grid = plainObject(o.grid);
+  if (
+    !grid ||
+    !hasExactKeys(grid, ['xs', 'x2s', 'fit', 'uncovered']) ||
+    !isBoundedNumbers(grid.xs, VIEW_NODES) ||
+    !isBoundedNumbers(grid.x2s, VIEW_NODES) ||
+    !isBoundedNumbers(grid.fit, nodes) ||
+    !isBoundedNumbers(grid.uncovered, nodes) ||
+    (grid.fit as unknown[]).length !== (grid.xs as unknown[]).length * (grid.x2s as unknown[]).length ||
+    (grid.uncovered as unknown[]).length !== (grid.fit as unknown[]).length
+  )
+    return false;
+  const readings = plainObject(o.readings);
+  if (!readings || !hasExactKeys(readings, ['x', 'x2', 'every']) || !isBoundedNumbers(readings.x, VIEW_READINGS) || !isBoundedNumbers(readings.x2, VIEW_READINGS) || !isPositive(readings.every))
+    return false;
+  const slices = plainObject(o.slices);
+  if (!slices || !hasExactKeys(slices, ['input', 'along', 'curves']) || (slices.input !== 'x' && slices.input !== 'x2') || !isBoundedNumbers(slices.along, SLICE_POINTS)) return false;
+  if (!Array.isArray(slices.curves) || slices.curves.length > MAX_SLICES) return false;
+  for (const c of slices.curves) {
+    const s = plainObject(c);
+    if (!s || !hasExactKeys(s, ['at', 'fit', 'ciLower', 'ciUpper', 'piLower', 'piUpper']) || !isFiniteNumber(s.at)) return false;
+    if (!['fit', 'ciLower', 'ciUpper', 'piLower', 'piUpper'].every((k) => isBoundedNumbers(s[k], SLICE_POINTS))) return false;
+  }
+  const residuals = plainObject(o.residuals);
+  if (!residuals || !hasExactKeys(residuals, ['x', 'x2'])) return false;
+  for (const r of [residuals.x, residuals.x2]) {
+    const res = plainObject(r);
+    if (!res || !hasExactKeys(res, ['kind', 'x', 'r'], ['count']) || (res.kind !== 'points' && res.kind !== 'bins')) return false;
+    if (!isBoundedNumbers(res.x, RESIDUAL_POINTS) || !isBoundedNumbers(res.r, RESIDUAL_POINTS) || (res.x as unknown[]).length !== (res.r as unknown[]).length) return false;
+    if (res.count !== undefined && !isBoundedNumbers(res.count, RESIDUAL_POINTS)) return false;
+  }
+  if (o.landscape !== undefined) {
+    const l = plainObject(o.landscape);
+    if (!l || !hasExactKeys(l, ['metric', 'dfX', 'dfX2', 'mean', 'se', 'ruled', 'lines']) || !isText(l.metric)) return false;
+    if (!isBoundedNumbers(l.dfX, MAX_SURFACE_INPUT_DF) || !isBoundedNumbers(l.dfX2, MAX_SURFACE_INPUT_DF)) return false;
+    const cells = (l.dfX as unknown[]).length * (l.dfX2 as unknown[]).length;
+    if (!isNumberList(l.mean) || !isNumberList(l.se) || l.mean.length !== cells || l.se.length !== cells) return false;
+    const ruled = plainObject(l.ruled);
+    if (!ruled || !hasExactKeys(ruled, ['x', 'x2']) || !isSurfaceDf(ruled.x) || !isSurfaceDf(ruled.x2)) return false;
+    if (!Array.isArray(l.lines) || l.lines.length > MAX_SURFACE_INPUT_DF + 2 || !l.lines.every(isText)) return false;
+  }
+  return isPlainData(o);
 }
 
 /** Longest data file URI a panel state may name. */
@@ -423,6 +520,8 @@ export function isHostMessage(m: unknown): m is HostMessage {
       return hasExactKeys(o, ['type', 'view']) && isGroupsView(o.view);
     case 'groupResult':
       return hasExactKeys(o, ['type', 'setId', 'group', 'payload']) && isId(o.setId) && isGroupIndex(o.group) && isPanelPayload(o.payload);
+    case 'surface':
+      return hasExactKeys(o, ['type', 'view']) && isSurfaceView(o.view);
     default:
       return false;
   }

@@ -14,7 +14,7 @@ import type { OverwriteAnswer } from './save';
 
 /** Options of the tune command (for keybindings, other extensions and tests). */
 export interface TuneCommandOptions {
-  /** Columns to use without asking (`trials`: a binomial outcome's trials column; `per`: the column that splits the rows into groups, each tuned on its own). */
+  /** Columns to use without asking (`trials`: a binomial outcome's trials column; `per`: the column that splits the rows into groups, each tuned on its own; `x2`: a second input, for a surface). */
   readonly columns?: ColumnChoice;
 }
 
@@ -62,6 +62,8 @@ export interface RunSummary {
   readonly groups?: readonly { readonly name: string; readonly chosenDf: number; readonly rowsUsed: number }[];
   /** A grouped run with one df for all groups: that df. */
   readonly sharedDf?: number;
+  /** A surface run (columns.x2 given): the df pair shown, of the first input and of the second. */
+  readonly surface?: { readonly x: number; readonly x2: number };
 }
 
 /** What a save command resolves to: the run's summary and the files written (URIs as text). */

@@ -26,6 +26,11 @@ export interface ColumnChoice {
    * when not asked yet.
    */
   readonly per?: string | null | undefined;
+  /**
+   * The second input of a surface (the command line's --x2): y is then fitted over x and x2
+   * (extension/surfaceRun.ts). Undefined or null for a curve.
+   */
+  readonly x2?: string | null | undefined;
 }
 
 const MEMORY_KEY = 'knotwise.columns';
@@ -57,7 +62,7 @@ export class ColumnMemory {
 export function choiceFits(table: ParsedTable, choice: ColumnChoice): boolean {
   const labels = new Set(table.columns.map((c) => c.label));
   const optional = (c: string | null | undefined): boolean => c === undefined || c === null || labels.has(c);
-  return labels.has(choice.x) && labels.has(choice.y) && optional(choice.weights) && optional(choice.trials) && optional(choice.per);
+  return labels.has(choice.x) && labels.has(choice.y) && optional(choice.weights) && optional(choice.trials) && optional(choice.per) && optional(choice.x2);
 }
 
 /** The first few values of a column as text. */

@@ -106,7 +106,8 @@ export class PanelView implements vscode.Disposable {
         break;
       case 'result':
       case 'groupResult':
-        if (message.type === 'result') this.lastGroups = undefined;
+      case 'surface':
+        if (message.type !== 'groupResult') this.lastGroups = undefined;
         this.lastResult = message;
         this.lastDataState = undefined;
         this.lastStatus = undefined;

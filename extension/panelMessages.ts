@@ -45,6 +45,18 @@ export function routePanelMessage(session: DataSession, m: PanelMessage): void {
     case 'selectGroup':
       session.selectGroup(m.setId, m.group);
       return;
+    case 'surfaceSlices':
+      session.surfaceMessage(m.runId, { slices: { input: m.input, at: m.at } });
+      return;
+    case 'surfacePair':
+      session.surfaceMessage(m.runId, { pair: { x: m.x, x2: m.x2 } });
+      return;
+    case 'surfaceRule':
+      session.surfaceMessage(m.runId, { pair: 'rule' });
+      return;
+    case 'surfaceSave':
+      void session.saveSurfaceFromPanel(m.requestId, m.runId);
+      return;
     default:
       unreachable(m);
   }

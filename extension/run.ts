@@ -70,7 +70,7 @@ export function analyseGroupsWithProgress(
 }
 
 /** Runs `work` with a cancellable progress notification that `onProgress` hears too (at most one step per PROGRESS_INTERVAL_MS). */
-function withRunProgress<T>(title: string, token: vscode.CancellationToken, onProgress: ProgressListener, work: (progress: Progress) => Promise<T>): Promise<T> {
+export function withRunProgress<T>(title: string, token: vscode.CancellationToken, onProgress: ProgressListener, work: (progress: Progress) => Promise<T>): Promise<T> {
   return Promise.resolve(
     vscode.window.withProgress({ location: vscode.ProgressLocation.Notification, title, cancellable: true }, async (progress, notificationToken) => {
       let last = 0;

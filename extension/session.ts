@@ -44,6 +44,7 @@ import { outputFolder, previousRecord, saveDeliverables, type OverwriteAnswer } 
 import { analysisOptions, modelOptions, outputName, type ModelSettings, type Settings } from './settings';
 import type { AnalysisOptions } from '../core/analysis/types';
 import { parseDfList } from '../core/tune/candidates';
+import { pickSurfaceColumns, runSurface, saveSurface, surfaceState, withPair, type SurfaceRunState } from './surfaceRun';
 
 /** What every session shares: the extension's folder, remembered columns, Problems, the worker pool, settings and run ids. */
 export interface SessionContext {
@@ -74,6 +75,8 @@ export interface RunRequest {
   readonly reason?: RefitView['reason'];
   /** A grouped run: the name of the group to show (default: the one shown before, else the first). */
   readonly group?: string;
+  /** Ask for the columns of a surface (two inputs and the reading) rather than a curve's. */
+  readonly surface?: boolean;
 }
 
 /** What a save that writes nothing says in the panel and the command's answer. */
@@ -98,6 +101,8 @@ export class DataSession implements vscode.Disposable {
   model: ModelSettings | undefined;
   /** Candidate df set with the panel's "Widen the candidates" button (the command line's --df text); they replace the setting's for this file until it changes. */
   candidates: string | undefined;
+  /** The latest surface run (two inputs), while the panel shows it; a curve run clears it. */
+  surface: SurfaceRunState | undefined;
   /** The latest payload posted to the panel, and counts for the API. */
   payload: PanelPayload | undefined;
   posted = 0;
@@ -160,6 +165,7 @@ export class DataSession implements vscode.Disposable {
     const stored = this.ctx.memory.get(this.uri);
     const remembered = stored && choiceFits(source.table, stored) ? stored : undefined;
     if (noPicks) return remembered && (!binomial || remembered.trials !== undefined) ? remembered : undefined;
+    if (request.surface) return pickSurfaceColumns(source.table, this.file, remembered, token);
     let choice = !ask && remembered ? remembered : await pickColumns(source.table, this.file, remembered, token, binomial, groupPick(source.table, source.text, this.file, token));
     // A binomial outcome asks once for the trials column (null: none) before using a remembered choice.
     if (choice && binomial && choice.trials === undefined) choice = await pickTrials(source.table, this.file, choice, token);
@@ -199,6 +205,8 @@ export class DataSession implements vscode.Disposable {
       await this.ctx.memory.set(this.uri, choice);
       // A binomial outcome with a trials column: proportions weighted by the trials (as --trials on the command line).
       const trials = binomial && typeof choice.trials === 'string' ? choice.trials : undefined;
+      if (typeof choice.x2 === 'string') return await this.tuneSurface(ticket, source, { ...choice, x2: choice.x2 }, request);
+      this.surface = undefined;
       if (typeof choice.per === 'string') return await this.tuneGroups(ticket, source, choice, choice.per, trials, request);
       const columns =
         trials !== undefined ? selectTrials(source.table, { x: choice.x, y: choice.y }, trials, file) : selectColumns(source.table, { x: choice.x, y: choice.y, weights: choice.weights }, file);
@@ -323,6 +331,66 @@ export class DataSession implements vscode.Disposable {
       groups: analysis.groups.map((g) => ({ name: g.name, chosenDf: g.analysis.chosen.df, rowsUsed: g.analysis.n })),
       ...(analysis.shared ? { sharedDf: analysis.shared.selection.df } : {}),
     };
+  }
+
+  /**
+   * The surface part of tune() (a choice with a second input): tunes the df pair with the
+   * settings' resampling, rule and seed, and shows the surface. Errors and cancellation go
+   * to tune()'s handling.
+   */
+  private async tuneSurface(ticket: RunTicket, source: CsvSource, choice: ColumnChoice & { readonly x2: string }, request: RunRequest): Promise<RunSummary> {
+    const file = this.file;
+    const runId = ticket.runId;
+    if (request.background && !this.hasPanel) return { status: 'dismissed', file, runId };
+    const panel = this.openPanel();
+    panel.post({ type: 'running', runId, message: `Tuning the surface of ${choice.y} over ${choice.x} and ${choice.x2}…` });
+    let state: SurfaceRunState;
+    try {
+      state = await runSurface(runId, source, choice, this.ctx.settings(this.uri), ticket.token, (message, fraction) => panel.post({ type: 'running', runId, message: `${message}…`, fraction }));
+    } catch (err) {
+      throw placed(err, file, { x: choice.x, y: choice.y });
+    }
+    this.analysed++;
+    if (this.running !== ticket) return { status: 'superseded', file, runId };
+    this.ctx.problems.show(this.uri, source.text, source.table, state.selection.rejected);
+    // The curve result goes: the panel's curve handlers see no run of theirs.
+    this.result = undefined;
+    this.surface = state;
+    panel.post({ type: 'surface', view: state.view });
+    return { status: 'done', file, runId, rowsUsed: state.shown.n, rejected: state.selection.rejected.length, surface: { x: state.shown.dfU, x2: state.shown.dfV } };
+  }
+
+  /** The panel asked for slices at other values, a pair picked by hand, or the rule's pair again: a new view of the same surface run. */
+  surfaceMessage(runId: number, change: { readonly slices?: SurfaceRunState['slices']; readonly pair?: { readonly x: number; readonly x2: number } | 'rule' }): void {
+    const s = this.surface;
+    if (!s || s.runId !== runId) return;
+    try {
+      let next = s;
+      if (change.pair === 'rule') next = withPair(next, s.ruled.dfU, s.ruled.dfV);
+      else if (change.pair) next = withPair(next, change.pair.x, change.pair.x2);
+      if (change.slices) next = surfaceState({ ...next, slices: change.slices });
+      this.surface = next;
+      this.post({ type: 'surface', view: next.view });
+    } catch (err) {
+      this.post({ type: 'failed', runId, message: `Knotwise could not fit that pair: ${errorText(err)}. The surface shown is unchanged.` });
+    }
+  }
+
+  /** The panel's Save for a surface: writes what the command line writes for the pair shown. */
+  async saveSurfaceFromPanel(requestId: number, runId: number): Promise<void> {
+    const s = this.surface;
+    if (!s || s.runId !== runId) {
+      this.post({ type: 'saveFailed', requestId, message: 'This surface is out of date; nothing was saved.' });
+      return;
+    }
+    try {
+      if ((await diskSha256(this.uri)) !== s.source.sha256) throw new NotSaved(`${this.file} changed since this surface was tuned; run again first`);
+      const uris = await saveSurface(s, this.ctx.settings(this.uri), this.uri, 'ask');
+      if (!uris) this.post({ type: 'saveFailed', requestId, message: 'Nothing was saved: an existing file was not written by Knotwise.' });
+      else this.post({ type: 'saved', requestId, files: uris.map((u) => vscode.workspace.asRelativePath(u)) });
+    } catch (err) {
+      this.post({ type: 'saveFailed', requestId, message: `Nothing was saved: ${errorText(err)}.`.replace(/\.\.$/, '.') });
+    }
   }
 
   /** The overview of the grouped run on show and the index of the group shown (undefined: not a grouped run). */

@@ -32,6 +32,8 @@ import { calibrationSection } from './sections/calibration';
 import { residualChecksSection } from './sections/residualChecks';
 import { groupBar, groupsOverview, SMALL_MULTIPLES_SHOWN, type GroupActions } from './sections/groups';
 import type { GroupsView } from '../core/view/groups';
+import type { SurfaceView } from '../core/view/surface';
+import { surfaceSection, type SurfaceActions } from './sections/surface';
 import type { PanelActions, Section } from './sections/section';
 import type { Host } from './vscodeApi';
 
@@ -71,6 +73,32 @@ export class Panel {
       this.build(this.payload, `#kw-small-button-${SMALL_MULTIPLES_SHOWN}`);
       this.update();
     },
+  };
+  /** The surface on show (two inputs); undefined while a curve is shown. */
+  private surface: SurfaceView | undefined;
+  private readonly surfaceActions: SurfaceActions = {
+    slices: (input, at) => {
+      if (!this.surface) return;
+      this.status('Slicing…');
+      this.host.post({ type: 'surfaceSlices', runId: this.surface.runId, input, at });
+    },
+    pair: (x, x2) => {
+      if (!this.surface) return;
+      this.status(`Fitting df ${x} × ${x2}…`);
+      this.host.post({ type: 'surfacePair', runId: this.surface.runId, x, x2 });
+    },
+    rule: () => {
+      if (this.surface) this.host.post({ type: 'surfaceRule', runId: this.surface.runId });
+    },
+    save: () => {
+      if (!this.surface || this.pendingSave !== undefined) return;
+      this.pendingSave = this.nextRequest++;
+      this.setSaveBusy(true);
+      this.status('Saving…');
+      this.host.post({ type: 'surfaceSave', requestId: this.pendingSave, runId: this.surface.runId });
+    },
+    rerun: () => this.rerun(),
+    stop: () => this.stop(),
   };
   private readonly actions: PanelActions = {
     setRule: (rule) => this.setRule(rule),
@@ -140,7 +168,11 @@ export class Panel {
         return;
       case 'result':
         this.groups = undefined;
+        this.surface = undefined;
         this.show(message.payload);
+        return;
+      case 'surface':
+        this.showSurface(message.view);
         return;
       case 'groups': {
         // Shown with its first group's result, which follows; an overview older than what is shown is dropped.
@@ -156,6 +188,13 @@ export class Panel {
         this.show(message.payload);
         return;
       case 'failed':
+        if (this.surface) {
+          if (message.runId < this.surface.runId) return;
+          this.root.dataset.state = 'ready';
+          this.setRunning(false);
+          this.status(message.message);
+          return;
+        }
         if (this.payload && message.runId < this.payload.runId) return;
         this.root.dataset.state = this.payload ? 'ready' : 'failed';
         if (!this.payload) this.renderFailed(message.message);
@@ -193,8 +232,32 @@ export class Panel {
     }
   }
 
+  /** Shows a surface (a newer run, or a new view of the one shown): replaces everything shown. */
+  private showSurface(view: SurfaceView): void {
+    const newest = Math.max(this.payload?.runId ?? -1, this.groups?.setId ?? -1);
+    if (view.runId < newest || (this.surface && view.runId < this.surface.runId)) return;
+    const focused = (document.activeElement as HTMLElement | null)?.id;
+    this.payload = undefined;
+    this.groups = undefined;
+    this.curve = undefined;
+    this.sections = [];
+    this.surface = view;
+    this.root.dataset.state = 'ready';
+    this.root.dataset.runId = String(view.runId);
+    this.root.dataset.view = 'surface';
+    this.root.dataset.pair = `${view.pair.x}x${view.pair.x2}`;
+    this.root.setAttribute('aria-busy', 'false');
+    replaceChildren(this.root, ...surfaceSection(view, this.surfaceActions));
+    const again = focused ? this.root.querySelector<HTMLElement>(`#${CSS.escape(focused)}`) : null;
+    again?.focus();
+    this.setSaveBusy(this.pendingSave !== undefined);
+    if (this.pendingSave !== undefined) this.status('Saving…');
+  }
+
   private show(payload: PanelPayload): void {
     if (this.payload && payload.runId < this.payload.runId) return;
+    this.surface = undefined;
+    this.root.dataset.view = 'curve';
     const kept = this.host.loadState();
     this.payload = payload;
     this.details.clear();
@@ -310,7 +373,7 @@ export class Panel {
   private setRunning(running: boolean, message?: string, fraction?: number): void {
     if (running) this.root.dataset.state = 'running';
     this.root.setAttribute('aria-busy', running ? 'true' : 'false');
-    if (!this.payload) {
+    if (!this.payload && !this.surface) {
       if (running) this.renderWaiting(message ?? 'Running…', fraction);
       return;
     }
