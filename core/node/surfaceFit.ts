@@ -9,7 +9,7 @@ import { formatResampling } from '../registry/resampling/index';
 import { gridText } from '../surface/deliver';
 import { landscapeLines } from '../surface/words';
 import { VERSION } from '../version';
-import { CAUTION } from '../words/caution';
+import { SURFACE_CAUTION } from '../words/caution';
 import { sig } from '../words/numbers';
 import { writeOutputs } from './outputs';
 import { checkOutputFolder, checkOutputNames, terminalText } from './outputTargets';
@@ -69,7 +69,7 @@ export async function runSurfaceFit(args: SurfaceFitArgs, env: { readonly progre
   lines.push(`Table: ${d.grid.us.length} x ${d.grid.vs.length} nodes (${gridText(d.grid, names)}); ${d.table.outside} outside the readings' hull, ${d.table.far} beyond their reach`);
   for (const w of d.warnings) lines.push(`Warning: ${w}`);
   if (written) for (const p of written) lines.push(`Wrote ${p}`);
-  lines.push(`Caution: ${CAUTION}`);
+  lines.push(`Caution: ${SURFACE_CAUTION}`);
   process.stdout.write(terminalText(lines.join('\n')) + '\n');
   return 0;
 }

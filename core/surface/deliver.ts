@@ -13,7 +13,7 @@ import { standaloneSvg } from '../report/figureStyle';
 import { formatNumber } from '../table/formatCsv';
 import { formatGrid } from '../table/grid';
 import { VERSION } from '../version';
-import { CAUTION } from '../words/caution';
+import { SURFACE_CAUTION } from '../words/caution';
 import { sig } from '../words/numbers';
 import { coverageOf } from './coverage';
 import type { PreparedSurface } from './data';
@@ -109,7 +109,7 @@ export function buildSurfaceDeliverables(input: SurfaceDeliverInput): SurfaceDel
     rangeV: fit.rangeV,
     recordFile: recordName,
     regenerate,
-    caution: CAUTION,
+    caution: SURFACE_CAUTION,
   };
   const emitted: string[] = [];
   for (const kind of plan.emit) {
@@ -150,7 +150,7 @@ export function buildSurfaceDeliverables(input: SurfaceDeliverInput): SurfaceDel
       recordFile: recordName,
       regenerate,
       emitted,
-      caution: CAUTION,
+      caution: SURFACE_CAUTION,
     });
     files.push({ kind: 'report', name: `${input.stem}${SURFACE_SUFFIX.report}`, text: report }, { kind: 'figure', name: figureName, text: standaloneSvg(svg) });
   }
@@ -224,7 +224,7 @@ export function buildSurfaceDeliverables(input: SurfaceDeliverInput): SurfaceDel
     warnings,
     outputs: files.map((f) => ({ kind: f.kind, file: f.name, sha256: input.sha256(f.text) })),
     regenerate,
-    caution: CAUTION,
+    caution: SURFACE_CAUTION,
   };
   files.push({ kind: 'record', name: recordName, text: JSON.stringify(record, null, 2) + '\n' });
   return { files, record, regenerate, table, grid, warnings };

@@ -14,7 +14,7 @@ import { selectPair } from '../surface/select';
 import type { SurfaceTuneResult } from '../surface/tune';
 import { landscapeLines } from '../surface/words';
 import { metricLabel } from '../tune/format';
-import { CAUTION } from '../words/caution';
+import { SURFACE_CAUTION } from '../words/caution';
 import { sig } from '../words/numbers';
 import { roundAll, roundSig } from './round';
 
@@ -251,6 +251,6 @@ export function buildSurfaceView(input: SurfaceViewInput): SurfaceView {
     readings: { x: ru, x2: rv, every },
     slices: { input: sliceInput, along: roundAll(along, VIEW_DIGITS), curves },
     residuals: { x: residualView(u, fit.residuals), x2: residualView(v, fit.residuals) },
-    caution: CAUTION,
+    caution: SURFACE_CAUTION,
   };
 }

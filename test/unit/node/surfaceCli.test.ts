@@ -132,6 +132,11 @@ describe('surfaces on the command line', function () {
     assert.match(report, /## The choice/);
     assert.match(report, /!\[.*\]\(trees\.surface\.heat\.svg\)/);
     assert.match(readFileSync(join(dir, 'trees.surface.heat.svg'), 'utf8'), /kw-uncovered/);
+    // The caution names the surface, in the record, the report, the C header and the terminal.
+    const caution = /This surface is an empirical fit to the readings shown, not a certified calibration\./;
+    assert.match(String(rec.caution), caution);
+    for (const f of ['trees.surface.report.md', 'trees.surface.h']) assert.match(readFileSync(join(dir, f), 'utf8').replace(/\n \* /g, ' '), caution, f);
+    assert.match(r.stdout, /Caution: This surface is/);
     let c = await runCheckIn(dir);
     assert.equal(c.code, 0, c.stdout + c.stderr);
     assert.match(c.stdout, /current\s+trees\.surface\.fit\.json/);
