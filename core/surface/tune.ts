@@ -2,6 +2,7 @@ import { CancelledError, FitError, InputError } from '../errors';
 import { dataTotals, fitStatistics } from '../fit/summary';
 import { resamplingScheme } from '../registry/resampling/index';
 import { summarise } from '../tune/summaries';
+import { leaveOneOutErrors } from '../tune/tune';
 import type { ErrorSummary, Progress, ResampleSpec } from '../tune/types';
 import { axisBasis, type AxisBasis } from './axis';
 import { SurfaceBasis } from './basis';
@@ -231,35 +232,4 @@ function landscapeOf(candidates: readonly SurfaceCandidate[], listU: readonly nu
     se[k] = e.se;
   }
   return { metric, dfU: listU, dfV: listV, mean, se };
-}
-
-/**
- * Exact leave-one-out errors from the hat diagonal, e_i = r_i / (1 - h_i), as for curves
- * (core/tune/tune.ts): the RMSE's SE by the delta method from the SE of the mean squared
- * error, MAE with SD / sqrt(n), the maximum without an SE.
- */
-function leaveOneOutErrors(prepared: PreparedSurface, fit: SurfaceFit): SurfaceCandidate['errors'] {
-  const n = fit.n;
-  const w = prepared.data.w;
-  const sq = new Float64Array(n);
-  const abs = new Float64Array(n);
-  let sw = 0;
-  let max = 0;
-  for (let i = 0; i < n; i++) {
-    const e = (fit.residuals[i] as number) / (1 - (fit.leverage[i] as number));
-    const wi = w ? (w[i] as number) : 1;
-    sw += wi;
-    sq[i] = wi * e * e;
-    abs[i] = wi * Math.abs(e);
-    if (Math.abs(e) > max) max = Math.abs(e);
-  }
-  const scale = n / sw;
-  const ms = summarise(sq, false);
-  const ma = summarise(abs, false);
-  const mse = ms.mean * scale;
-  return {
-    rmse: { mean: fit.looRmse, se: (ms.se * scale) / (2 * Math.sqrt(mse)), values: [] },
-    mae: { mean: ma.mean * scale, se: ma.se * scale, values: [] },
-    maxAbs: { mean: max, se: NaN, values: [] },
-  };
 }

@@ -174,9 +174,14 @@ function strip(s: ErrorSummary & { count: number }): ErrorSummary {
 /**
  * Exact leave-one-out errors from the hat diagonal, e_i = r_i / (1 - h_i). RMSE mean is the
  * exact LOO RMSE; its SE follows from the SE of the mean squared error by the delta method,
- * se(sqrt(m)) = se(m) / (2 sqrt(m)); MAE has SD / sqrt(n); the maximum has no SE.
+ * se(sqrt(m)) = se(m) / (2 sqrt(m)); MAE has SD / sqrt(n); the maximum has no SE. Any fit with
+ * per-row residuals and leverage (a curve, a surface) and its prior weights.
+ * Example: leaveOneOutErrors({ data: { w: undefined } }, fit).rmse.mean === fit.looRmse.
  */
-function leaveOneOutErrors(prepared: PreparedData, fit: FitResult): CandidateResult['errors'] {
+export function leaveOneOutErrors(
+  prepared: { readonly data: { readonly w?: Float64Array | undefined } },
+  fit: { readonly n: number; readonly residuals: Float64Array; readonly leverage: Float64Array; readonly looRmse: number },
+): Required<Pick<CandidateResult['errors'], 'rmse' | 'mae' | 'maxAbs'>> {
   const n = fit.n;
   const w = prepared.data.w;
   const sq = new Float64Array(n);
