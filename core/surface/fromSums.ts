@@ -1,33 +1,11 @@
 import { FitError } from '../errors';
 import { congruence, times, transposeTimes } from '../fit/linearFit';
 import { factorSpd } from '../linalg/spd';
+// The cubic of each active B-spline in a cell, from its values at TAU, as for curves.
+import { TAU, VANDER_INV } from '../fit/powerSums/splineSums';
 import type { AxisBasis } from './axis';
 import type { SurfaceBasis } from './basis';
 import { SURFACE_SUMS_PER_CELL, Y_OFFSET, YY_OFFSET } from './cells';
-
-/** Sample points inside a cell where the active B-splines are read to recover their cubic. */
-const TAU = [1 / 8, 3 / 8, 5 / 8, 7 / 8];
-/** Inverse of the Vandermonde matrix V[m][p] = TAU[m]^p (row-major), by Gauss-Jordan. */
-const VANDER_INV = ((): Float64Array => {
-  const a = TAU.flatMap((x) => [1, x, x * x, x * x * x]);
-  const inv = [1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1];
-  for (let c = 0; c < 4; c++) {
-    const d = a[c * 4 + c] as number;
-    for (let k = 0; k < 4; k++) {
-      a[c * 4 + k] = (a[c * 4 + k] as number) / d;
-      inv[c * 4 + k] = (inv[c * 4 + k] as number) / d;
-    }
-    for (let r = 0; r < 4; r++) {
-      if (r === c) continue;
-      const f = a[r * 4 + c] as number;
-      for (let k = 0; k < 4; k++) {
-        a[r * 4 + k] = (a[r * 4 + k] as number) - f * (a[c * 4 + k] as number);
-        inv[r * 4 + k] = (inv[r * 4 + k] as number) - f * (inv[c * 4 + k] as number);
-      }
-    }
-  }
-  return Float64Array.from(inv);
-})();
 
 /** One input's basis in the cells of the union grid: per cell, its first active function and their cubics. */
 interface AxisCubics {

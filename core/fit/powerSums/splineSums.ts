@@ -5,9 +5,9 @@ import { factorSpd } from '../../linalg/spd';
 import { type Cells, SUMS_PER_CELL } from './cells';
 
 /** Interior sample points of a cell, where the 4 active B-splines are sampled to recover their cubic. */
-const TAU = [1 / 8, 3 / 8, 5 / 8, 7 / 8];
-/** Inverse of the Vandermonde matrix V[m][p] = TAU[m]^p, row-major. */
-const VANDER_INV = invert4(TAU.flatMap((tau) => [1, tau, tau * tau, tau * tau * tau]));
+export const TAU = [1 / 8, 3 / 8, 5 / 8, 7 / 8];
+/** Inverse of the Vandermonde matrix V[m][p] = TAU[m]^p, row-major (a cubic's coefficients from its values at TAU). */
+export const VANDER_INV = invert4(TAU.flatMap((tau) => [1, tau, tau * tau, tau * tau * tau]));
 
 function invert4(v: number[]): Float64Array {
   const a = v.slice();
