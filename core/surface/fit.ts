@@ -1,3 +1,4 @@
+import type { Bands } from '../fit/emptyBands';
 import { congruence, congruenceT, times, transposeTimes } from '../fit/linearFit';
 import { dataTotals, fitStatistics, rowStatistics } from '../fit/summary';
 import { factorSpd, type SpdFailure } from '../linalg/spd';
@@ -12,18 +13,11 @@ export interface SurfaceSpec {
   readonly dfV: number;
 }
 
-/** The fitted surface with pointwise bands at a set of (u, v) points. */
-export interface SurfaceBands {
-  readonly fit: Float64Array;
-  /** Standard error of the fitted mean. */
-  readonly se: Float64Array;
-  readonly ciLower: Float64Array;
-  readonly ciUpper: Float64Array;
-  readonly piLower: Float64Array;
-  readonly piUpper: Float64Array;
-  /** 1 where the point lies outside the data's rectangle [min u, max u] x [min v, max v]. */
-  readonly extrapolated: Uint8Array;
-}
+/**
+ * The fitted surface with pointwise bands at a set of (u, v) points: a curve's bands without
+ * x, `extrapolated` 1 where the point lies outside the data's rectangle [min u, max u] x [min v, max v].
+ */
+export type SurfaceBands = Omit<Bands, 'x'>;
 
 /** Complete regression output of one surface at one df pair (the counterpart of FitResult). */
 export interface SurfaceFit {
