@@ -176,11 +176,15 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
     }
   }
   const num = (v: number | undefined): string => (v === undefined || !Number.isFinite(v) ? 'NaN' : formatNumber(v, out.digits));
-  const summaryLines = ['group,rows,df,residualSd,rmse,rmseSe,table'];
+  // With held-out rows (--holdout), each group's held-out rows and their RMSE as two more columns.
+  const heldOut = plan.options.holdout !== undefined;
+  const summaryLines = [`group,rows,df,residualSd,rmse,rmseSe,${heldOut ? 'heldOutRows,heldOutRmse,' : ''}table`];
   for (const g of input.analysis.groups) {
     const a = g.analysis;
     const e = a.tune.candidates.find((c) => c.df === a.chosen.df)?.errors.rmse;
-    summaryLines.push([csvField(g.name), String(a.n), formatNumber(a.chosen.df, 6), num(a.chosen.sigma), num(e?.mean), num(e?.se), csvField(tableFile.get(g.name) ?? '')].join(','));
+    const h = a.tune.holdout;
+    const held = heldOut ? [h ? String(h.rows) : '0', num(h?.rmse)] : [];
+    summaryLines.push([csvField(g.name), String(a.n), formatNumber(a.chosen.df, 6), num(a.chosen.sigma), num(e?.mean), num(e?.se), ...held, csvField(tableFile.get(g.name) ?? '')].join(','));
   }
   const summaryName = `${input.stem}.groups.csv`;
   files.push({ kind: 'summary', name: summaryName, text: summaryLines.join('\n') + '\n' });
@@ -202,7 +206,7 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
         common: input.common,
         method: `Curve: ${curveWords(o.kind)}; the df chosen ${input.analysis.shared ? 'for all groups together' : 'for each group'} by the ${formatRule(o.rule)} rule from ${formatResampling(o.resample)} resampling, seed ${o.seed}.`,
         rmse,
-        warnings: new Map(input.analysis.groups.map((g) => [g.name, g.analysis.diagnostics.warnings])),
+        warnings: new Map(input.analysis.groups.map((g) => [g.name, [...g.analysis.diagnostics.warnings, ...(g.analysis.tune.holdout?.warning ? [g.analysis.tune.holdout.warning] : [])]])),
         tables: tableFile,
         summaryFile: summaryName,
         recordFile: recordName,
@@ -234,6 +238,7 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
       seed: o.seed,
       rule: formatRule(o.rule),
       sharedDf: plan.groups.sharedDf,
+      holdout: o.holdout ?? null,
       longTable: plan.groups.longTable,
       grid: out.grid ?? null,
       digits: out.digits,
@@ -270,7 +275,8 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
         range: [f.curve.lower, f.curve.upper],
         table: tableFile.get(g.name) ?? null,
         inverse: inverseOf.get(g.name) ?? null,
-        warnings: a.diagnostics.warnings,
+        holdout: a.tune.holdout ?? null,
+        warnings: [...a.diagnostics.warnings, ...(a.tune.holdout?.warning ? [a.tune.holdout.warning] : [])],
       };
     }),
     outputs: files.map((f) => ({ kind: f.kind, file: f.name, sha256: input.sha256(f.text) })),

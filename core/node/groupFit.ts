@@ -65,7 +65,8 @@ export async function runGroupFit(plan: FitPlan & { readonly groups: GroupSpec }
     if (rec.shared) lines.push(rec.shared.reason);
     for (const g of run.analysis.groups) {
       const a = g.analysis;
-      lines.push(`  ${g.name}: ${a.n} rows, df ${sig(a.chosen.df, 4)}, residual SD ${sig(a.chosen.sigma, 4)}`);
+      const h = a.tune.holdout;
+      lines.push(`  ${g.name}: ${a.n} rows, df ${sig(a.chosen.df, 4)}, residual SD ${sig(a.chosen.sigma, 4)}${h ? `, held-out RMSE ${sig(h.rmse, 4)} (${h.rows} rows)` : ''}`);
     }
     if (rec.common) lines.push(`One curve for all? ${rec.common.words}`);
     if (written) for (const f of written) lines.push(`Wrote ${f}`);

@@ -64,6 +64,7 @@ export function readGroupRecord(json: unknown, where: string): GroupRecordRun {
       resample: f.parse('spec.resampling', () => parseResampling(f.str(spec, 'resampling', 'spec.resampling'))),
       rule: f.parse('spec.rule', () => parseRule(f.str(spec, 'rule', 'spec.rule'))),
       seed: f.num(spec, 'seed', 'spec.seed'),
+      holdout: spec.holdout === null || spec.holdout === undefined ? undefined : f.num(spec, 'holdout', 'spec.holdout'),
       ...model.options,
     },
     output: {

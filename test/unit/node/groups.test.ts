@@ -219,13 +219,43 @@ describe('groups on the command line', function () {
     assert.match(changed.stdout, /co2\.groups\.report\.md differs from the rebuilt one/);
   });
 
+  it('--holdout holds out rows within each group exactly as a file of its rows alone: the same table bytes and held-out numbers; the summary adds them; check rebuilds it', async () => {
+    const HOLD = ['--df', '2,3', '--resampling', 'bootstrap:20', '--seed', '5', '--holdout', '0.3'];
+    const run = await runMain('fit', co2, '--x', 'conc', '--y', 'uptake', '--per', 'plant', ...HOLD, '--quiet');
+    assert.equal(run.code, 0, run.stderr);
+    const record = JSON.parse(readFileSync(join(dir, 'co2.groups.fit.json'), 'utf8')) as {
+      spec: { holdout: number };
+      groups: { name: string; table: string; holdout: { rows: number; rmse: number } | null }[];
+    };
+    assert.equal(record.spec.holdout, 0.3);
+    const alone = join(dir, 'alone');
+    mkdirSync(alone);
+    for (const [plant, rows] of [...plants()].slice(0, 4)) {
+      const file = join(alone, `${plant}.csv`);
+      writeFileSync(file, rows.join('\n') + '\n');
+      const single = await runMain('fit', file, '--x', 'conc', '--y', 'uptake', ...HOLD, '--quiet');
+      assert.equal(single.code, 0, single.stderr);
+      const g = record.groups.find((x) => x.name === plant);
+      assert.ok(g?.holdout, plant);
+      assert.equal(readFileSync(join(dir, g.table), 'utf8'), readFileSync(join(alone, `${plant}.curve.csv`), 'utf8'), `${plant}: the same table`);
+      const rec = JSON.parse(readFileSync(join(alone, `${plant}.fit.json`), 'utf8')) as { selection: { holdout: { rows: number; rmse: number } } };
+      assert.deepEqual(g.holdout, rec.selection.holdout, `${plant}: the same held-out rows and errors`);
+    }
+    const summary = readFileSync(join(dir, 'co2.groups.csv'), 'utf8').split('\n');
+    assert.equal(summary[0], 'group,rows,df,residualSd,rmse,rmseSe,heldOutRows,heldOutRmse,table');
+    assert.equal((await runCheckIn(dir, 'co2.groups.fit.json')).code, 0);
+    const shared = await runMain('fit', co2, '--x', 'conc', '--y', 'uptake', '--per', 'plant', ...HOLD, '--shared-df', '--print-only');
+    assert.equal(shared.code, 2);
+    assert.match(shared.stderr, /a df shared by the groups cannot be combined with held-out rows/);
+  });
+
   it('bad group options say what is wrong', async () => {
     const cases: [string[], RegExp][] = [
       [['--per', 'nope'], /no column named "nope" to split the rows by/],
       [['--per', 'conc'], /--x and --per name the same column "conc"/],
       [['--shared-df'], /--shared-df needs groups/],
       [['--per', 'plant', '--shared-df', '--resampling', 'gcv'], /pooled resampled errors: use bootstrap/],
-      [['--per', 'plant', '--holdout', '0.2'], /--holdout is not available with groups yet/],
+      [['--per', 'plant', '--trials', 'conc'], /--trials is not available with groups yet/],
     ];
     for (const [args, message] of cases) {
       const r = await runMain('fit', co2, '--x', 'conc', '--y', 'uptake', ...args, '--print-only');
