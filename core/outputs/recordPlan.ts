@@ -229,7 +229,10 @@ export function readRecord(json: unknown, where: string): RecordedRun {
     report: f.bool(spec, 'report', 'spec.report', false),
     inverse: inverseOf(spec.inverse, f),
   };
-  const weights = columns.weights === undefined || columns.weights === null ? undefined : f.str(columns, 'weights', 'data.columns.weights');
+  // With a trials column the record's weights column names the trials (they are the binomial
+  // weights): the plan selects them as trials, not as weights as well.
+  const weightsLabel = columns.weights === undefined || columns.weights === null ? undefined : f.str(columns, 'weights', 'data.columns.weights');
+  const weights = model.trials !== undefined && weightsLabel === model.trials ? undefined : weightsLabel;
   const plan: FitPlan = {
     columns: { x: f.str(columns, 'x', 'data.columns.x'), y: f.str(columns, 'y', 'data.columns.y'), ...(weights !== undefined ? { weights } : {}) },
     tune,

@@ -11,7 +11,7 @@ import { strict as assert } from 'node:assert';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { type Run, runMain } from './runMain';
+import { type Run, runCheckIn, runMain } from './runMain';
 
 const REPO = join(__dirname, '..', '..', '..');
 const fixture = JSON.parse(readFileSync(join(REPO, 'test', 'reference', 'fixtures', 'physics.json'), 'utf8')) as {
@@ -96,6 +96,22 @@ describe('knotwise fit --outcome, --trials, --shape, --robust', () => {
     const ref = fixture.glm.find((c) => c.dataset === 'menarche' && c.df === 5);
     assert.ok(ref);
     ref.fitted.forEach((v, i) => close(`fit.fitted[${i}]`, j.fit.fitted[i], v));
+  });
+
+  it('a record made with --trials is current under check, and a changed count is caught (MASS::menarche)', async () => {
+    const r = await run('fit', menarche, '--x', 'Age', '--y', 'Menarche', '--outcome', 'proportions', '--trials', 'Total', '--df', '2,3,4', '--resampling', 'folds:5', '--quiet');
+    assert.equal(r.code, 0, r.stderr);
+    const record = menarche.replace(/\.csv$/, '.fit.json');
+    const current = await runCheckIn(dir, record);
+    assert.equal(current.code, 0, current.stdout + current.stderr);
+    const text = readFileSync(menarche, 'utf8');
+    writeFileSync(
+      menarche,
+      text.replace(/\n([^\n]*),(\d+)\n$/, (_m, head: string, total: string) => `\n${head},${Number(total) + 1}\n`),
+    );
+    const changed = await runCheckIn(dir, record);
+    writeFileSync(menarche, text);
+    assert.equal(changed.code, 1, changed.stdout + changed.stderr);
   });
 
   it('--robust lists the down-weighted rows by CSV line, as MASS::rlm weights them (MASS::mcycle)', async () => {
