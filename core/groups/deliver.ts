@@ -114,7 +114,8 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
   const asked = input.plan;
   const plan: typeof asked = {
     ...asked,
-    columns: { ...asked.columns, ...input.labels },
+    // With a trials column the selection's weights label names the trials (core/ingest/trials.ts): not weights as well.
+    columns: { ...asked.columns, ...input.labels, ...(asked.trials !== undefined ? { weights: undefined } : {}) },
     groups: { ...asked.groups, ...(asked.groups.by !== undefined && input.groupLabel !== undefined ? { by: input.groupLabel } : {}) },
   };
   const out = plan.output;
@@ -248,7 +249,7 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
       emit: out.emit,
       report: out.report,
       inverse: inverseSpecRecord(out.inverse),
-      model: { outcome: o.outcome ?? null, shape: o.shape ?? [], robust: o.robust === true ? true : o.robust ? { k: o.robust.k } : null },
+      model: { outcome: o.outcome ?? null, shape: o.shape ?? [], robust: o.robust === true ? true : o.robust ? { k: o.robust.k } : null, trials: plan.trials ?? null },
     },
     shared: shared
       ? {

@@ -7,6 +7,7 @@
  */
 import { InputError } from '../errors';
 import { selectColumns, type ColumnChoice, type RejectedRow, type Selection } from '../ingest/select';
+import { selectTrials } from '../ingest/trials';
 import type { ParsedTable } from '../ingest/types';
 import type { XYData } from '../types';
 
@@ -45,11 +46,13 @@ function subset(data: XYData, rows: readonly number[]): XYData {
  * (`table.text`; read the file with keepText: by). A row whose group cell is empty is
  * rejected with its line, like any bad cell. Groups keep the file's row order. Throws
  * InputError when the column is missing, is one of x, y or weights, or gives fewer than 2
- * groups. O(rows).
+ * groups. With `trials`, the rows are selected as for a binomial outcome (core/ingest/trials.ts).
+ * O(rows).
  * Example: splitByColumn(table, { x: 'temp', y: 'volts' }, 'device', 'rig.csv').groups.map((g) => g.name) -> ['A1', 'A2'].
  */
-export function splitByColumn(table: ParsedTable, choice: ColumnChoice, by: string, file?: string): GroupSplit {
-  const sel = selectColumns(table, choice, file);
+export function splitByColumn(table: ParsedTable, choice: ColumnChoice, by: string, file?: string, trials?: string): GroupSplit {
+  // Successes out of trials (--trials): proportions with the trials as weights, as for one fit.
+  const sel = trials !== undefined ? selectTrials(table, choice, trials, file) : selectColumns(table, choice, file);
   const text = table.text;
   const column = text ? table.columns[text.column] : undefined;
   if (!text || !column) {

@@ -469,9 +469,6 @@ function parseGroupFlags(a: { flag(name: string): boolean; text(name: string): s
   if (by !== undefined && channelsText !== undefined) throw new InputError('--per splits by a column and --channels by reading columns; give one of them');
   if (channelsText !== undefined && a.given('y')) throw new InputError('--channels names the reading columns; drop --y');
   if (stdin) throw new InputError('groups read their file twice over; give the data file instead of standard input (-)');
-  for (const n of ['trials']) {
-    if (a.given(n)) throw new InputError(`--${n} is not available with groups yet; fit a group's rows on their own for it`);
-  }
   const channels = channelsText?.split(',').map((c) => c.trim());
   if (channels && (channels.length < 2 || channels.some((c) => c === ''))) throw new InputError(`--channels needs at least 2 column names separated by commas; got "${channelsText}"`);
   return { by, channels, sharedDf: a.flag('shared-df'), longTable: a.flag('long-table') };

@@ -32,9 +32,9 @@ export interface GroupRun {
  */
 export async function runGroupPipeline(file: string, plan: FitPlan & { readonly groups: GroupSpec }, outFolder: string, progress?: Progress): Promise<GroupRun> {
   const g = plan.groups;
-  if (plan.trials !== undefined) throw new InputError('groups cannot be combined with a trials column yet');
+  if (plan.trials !== undefined && g.channels !== undefined) throw new InputError('several reading columns cannot share one trials column; split the rows by a column (--per) instead');
   const table = await readCsvFile(file, g.by !== undefined ? { keepText: g.by } : {});
-  const split = g.by !== undefined ? splitByColumn(table, plan.columns, g.by, file) : splitByChannels(table, plan.columns.x, g.channels ?? [], plan.columns.weights, file);
+  const split = g.by !== undefined ? splitByColumn(table, plan.columns, g.by, file, plan.trials) : splitByChannels(table, plan.columns.x, g.channels ?? [], plan.columns.weights, file);
   // Many small groups: standing workers take one group's resamples each, while this thread
   // fits and checks the others (two groups in flight per worker keeps both busy).
   const threads = availableParallelism();

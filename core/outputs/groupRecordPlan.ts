@@ -54,7 +54,9 @@ export function readGroupRecord(json: unknown, where: string): GroupRecordRun {
       ? undefined
       : f.arr(spec, 'candidates', 'spec.candidates').map((v, i) => (typeof v === 'number' && v >= 1 ? v : f.fail(`spec.candidates[${i}]`, 'must be a number of at least 1')));
   const model = modelOf(spec.model, f);
-  const weights = columns.weights === undefined || columns.weights === null ? undefined : f.str(columns, 'weights', 'data.columns.weights');
+  // With a trials column the weights column names the trials (as in a fit record: core/outputs/recordPlan.ts).
+  const weightsLabel = columns.weights === undefined || columns.weights === null ? undefined : f.str(columns, 'weights', 'data.columns.weights');
+  const weights = model.trials !== undefined && weightsLabel === model.trials ? undefined : weightsLabel;
   const plan: FitPlan & { groups: GroupSpec } = {
     columns: { x: f.str(columns, 'x', 'data.columns.x'), y: f.str(columns, 'y', 'data.columns.y'), ...(weights !== undefined ? { weights } : {}) },
     tune: true,
@@ -79,6 +81,7 @@ export function readGroupRecord(json: unknown, where: string): GroupRecordRun {
       inverse: inverseOf(spec.inverse, f),
     },
     groups: { by, channels, sharedDf: f.bool(spec, 'sharedDf', 'spec.sharedDf'), longTable: f.bool(spec, 'longTable', 'spec.longTable') },
+    ...(model.trials !== undefined ? { trials: model.trials } : {}),
   };
   const files = f.arr(rec, 'outputs').map((o, i) => {
     if (o === null || typeof o !== 'object') return f.fail(`outputs[${i}]`, 'must be an object');

@@ -249,13 +249,41 @@ describe('groups on the command line', function () {
     assert.match(shared.stderr, /a df shared by the groups cannot be combined with held-out rows/);
   });
 
+  it('--trials with --per: each group a binomial fit of its successes out of its trials, as its rows alone; check rebuilds it (MASS::menarche split into two groups by row)', async () => {
+    // MASS::menarche (test/e2e/fixtures/menarche.csv), its rows dealt alternately into two groups.
+    const [head, ...rows] = readFileSync(fixture('menarche.csv'), 'utf8').trim().split('\n');
+    const half = (i: number): string => (i % 2 === 0 ? 'first' : 'second');
+    const file = join(dir, 'men.csv');
+    writeFileSync(file, [`half,${head}`, ...rows.map((r, i) => `${half(i)},${r}`)].join('\n') + '\n');
+    const BIN = ['--x', 'Age', '--y', 'Menarche', '--outcome', 'proportions', '--trials', 'Total', '--df', '2,3,4', '--resampling', 'folds:5', '--seed', '2'];
+    const run = await runMain('fit', file, ...BIN, '--per', 'half', '--quiet');
+    assert.equal(run.code, 0, run.stderr);
+    const record = JSON.parse(readFileSync(join(dir, 'men.groups.fit.json'), 'utf8')) as { spec: { model: { trials: string } }; groups: { name: string; table: string }[]; common: unknown };
+    assert.equal(record.spec.model.trials, 'Total');
+    assert.equal(record.common, null, 'the one-curve test is for continuous readings');
+    for (const name of ['first', 'second']) {
+      const alone = join(dir, `${name}.csv`);
+      writeFileSync(alone, [head, ...rows.filter((_, i) => half(i) === name)].join('\n') + '\n');
+      const single = await runMain('fit', alone, ...BIN, '--quiet');
+      assert.equal(single.code, 0, single.stderr);
+      const g = record.groups.find((x) => x.name === name);
+      assert.ok(g);
+      assert.equal(readFileSync(join(dir, g.table), 'utf8'), readFileSync(join(dir, `${name}.curve.csv`), 'utf8'), `${name}: the same table`);
+    }
+    assert.equal((await runCheckIn(dir, 'men.groups.fit.json')).code, 0);
+    const again = (JSON.parse(readFileSync(join(dir, 'men.groups.fit.json'), 'utf8')) as { regenerate: string }).regenerate;
+    assert.ok(again.includes(' --trials Total ') && !again.includes('--weights'), again);
+    const channels = await runMain('fit', file, '--x', 'Age', '--channels', 'Menarche,Total', '--outcome', 'proportions', '--trials', 'Total', '--print-only');
+    assert.equal(channels.code, 2);
+    assert.match(channels.stderr, /several reading columns cannot share one trials column/);
+  });
+
   it('bad group options say what is wrong', async () => {
     const cases: [string[], RegExp][] = [
       [['--per', 'nope'], /no column named "nope" to split the rows by/],
       [['--per', 'conc'], /--x and --per name the same column "conc"/],
       [['--shared-df'], /--shared-df needs groups/],
       [['--per', 'plant', '--shared-df', '--resampling', 'gcv'], /pooled resampled errors: use bootstrap/],
-      [['--per', 'plant', '--trials', 'conc'], /--trials is not available with groups yet/],
     ];
     for (const [args, message] of cases) {
       const r = await runMain('fit', co2, '--x', 'conc', '--y', 'uptake', ...args, '--print-only');
