@@ -16,6 +16,7 @@ import { lackOfFit } from '../stats/lackOfFit';
 import { normalQuantiles } from '../stats/normalQuantiles';
 import { shapiroWilk } from '../stats/shapiroWilk';
 import { orderByX } from '../tune/plan';
+import { xInOrder } from '../stats/orderByX';
 import type { FitResult, XYData } from '../types';
 
 export { CHECK_LEVEL };
@@ -42,16 +43,16 @@ export function diagnose(data: XYData, fit: FitResult): Diagnostics {
   const order = orderByX(x);
   // Counts and proportions are checked on deviance residuals, Gaussian fits on sqrt(w)-scaled ones.
   const checked = checkResiduals(fit, w);
-  // x, sqrt(w) and the scaled residuals gathered once in x order, so that the design rows
-  // below read memory in sequence instead of jumping through `order` on every call.
-  const xSorted = new Float64Array(n);
+  // x (shared with the lack-of-fit test), sqrt(w) and the scaled residuals in x order, so that
+  // the design rows below read memory in sequence instead of jumping through `order` on every call.
+  const xSorted = xInOrder(x);
   const rootW = w ? new Float64Array(n) : undefined;
   const scaled = new Float64Array(n);
+  const residuals = checked.residuals;
   for (let j = 0; j < n; j++) {
     const i = order[j] as number;
-    xSorted[j] = x[i] as number;
     if (rootW) rootW[j] = Math.sqrt(w?.[i] as number);
-    scaled[j] = checked.residuals[i] as number;
+    scaled[j] = residuals[i] as number;
   }
   const design = designInXOrder(fit, xSorted, rootW);
   const out: { -readonly [K in keyof Diagnostics]: Diagnostics[K] } = { influential: noInfluence(fit, data), warnings: [] };

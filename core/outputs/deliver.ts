@@ -19,6 +19,7 @@ import { curveTableCsv } from '../table/formatCsv';
 import { checkInRange, formatGrid, type GridSpec } from '../table/grid';
 import { interpolationError } from '../table/interpolation';
 import { sig } from '../tune/format';
+import { sortedCopy } from '../stats/orderByX';
 import type { FitResult, XYData } from '../types';
 import { curveWords } from '../registry/curves/index';
 import { buildInverse, inverseWords, type InverseOutput } from '../calibrate/inverseOutput';
@@ -184,7 +185,8 @@ function tableWarnings(input: DeliverInput, summary: TableSummary, added: readon
  * the table's columns and flags, measures the linear-interpolation error of the printed
  * table, emits code, builds the report, and last the fit record with every file's SHA-256.
  * Same inputs, same bytes. Throws InputError for grid and column problems.
- * Cost: O(table rows) plus the automatic step's search and the report's O(n log n).
+ * Cost: O(table rows) plus the automatic step's search and the report's O(n log n); x comes
+ * sorted from the order the fit already has (sortedCopy).
  * Example: buildDeliverables(input).files.map((f) => f.name) -> ['cal.curve.csv', 'cal.curve.h', 'cal.fit.json'].
  */
 export function buildDeliverables(input: DeliverInput): Deliverables {
@@ -194,7 +196,7 @@ export function buildDeliverables(input: DeliverInput): Deliverables {
   const plan: FitPlan = { ...input.plan, columns: input.selection.labels };
   const out = plan.output;
   const round = (v: number): number => printedValue(v, out.digits);
-  const sorted = input.rows ? input.rows.range : Float64Array.from(input.selection.data.x).sort();
+  const sorted = input.rows ? input.rows.range : sortedCopy(input.selection.data.x);
   const grid = resolveGrid(out.grid, sorted, fit.curve, round);
   const points = grid.points;
   checkInRange(points, fit.curve.lower, fit.curve.upper, out.extrapolate);

@@ -138,7 +138,9 @@ class DifferenceSums {
  * (SparseRows): b b', b u, d d' and a a' are summed in the sparse basis, where a row touches
  * only the entries its non-zeros span (a B-spline row 4, a difference between neighbouring
  * rows at most 8), and mapped back as E' M E once. The same sums up to rounding; cost
- * O(n width^2 + size^2 p) instead of O(n p^2).
+ * O(n width^2 + size^2 p) instead of O(n p^2). Runs of rows in one knot interval of a
+ * 4-wide basis (most rows, x being sorted) go through fastRun, which adds the same products
+ * in the same order (the same bits) with the four entries held in variables.
  */
 function sparseCrossProducts(rows: SparseRows, p: number, n: number, request: CrossProductRequest): DesignCrossProducts {
   const { size, width } = rows;
@@ -165,7 +167,16 @@ function sparseCrossProducts(rows: SparseRows, p: number, n: number, request: Cr
   let dHi = -1;
   let uu = 0;
   for (let i = 0; i < n; i++) {
-    const first = rows.row(i, vals);
+    let first = rows.row(i, vals);
+    if (width === 4 && dd && aa && i >= 2 && first === bLo && dLo === bLo && dHi === bHi) {
+      // Rows i-2, i-1 and i share one knot interval: every vector spans the same 4 entries.
+      const run = fastRun(i, first);
+      uu = run.uu;
+      i = run.next;
+      if (i >= n) break;
+      // Row i left the interval; its entries are in vals already.
+      first = run.first;
+    }
     // b_i replaces b_(i-1), whose old non-zeros are cleared.
     const t = bPrev;
     bPrev = b;
@@ -209,10 +220,108 @@ function sparseCrossProducts(rows: SparseRows, p: number, n: number, request: Cr
   }
   // The last row of AX, a_(n-1) = d_(n-1).
   if (aa) outer(aa, size, d, dLo, dHi, 1);
+
+  /**
+   * Adds rows i, i+1, ... while they stay in the knot interval starting at basis entry f,
+   * with rows i-2 and i-1 in it too: the same products added to the same entries in the same
+   * row order as the general loop (which adds zero products besides, changing no sum), without
+   * its range bookkeeping. Leaves b, bPrev, d and dPrev as the general loop would have them;
+   * returns the first row not added (with its entries in vals) and uu.
+   */
+  function fastRun(i: number, f: number): { next: number; first: number; uu: number } {
+    const G = g;
+    const DD = dd as Float64Array;
+    const AA = aa as Float64Array;
+    const o0 = f * size + f;
+    const o1 = o0 + size;
+    const o2 = o1 + size;
+    const o3 = o2 + size;
+    // b_(i-1), b_(i-2), d_(i-1), d_(i-2) over the 4 entries.
+    let b0 = b[f] as number;
+    let b1 = b[f + 1] as number;
+    let b2 = b[f + 2] as number;
+    let b3 = b[f + 3] as number;
+    let q0 = bPrev[f] as number;
+    let q1 = bPrev[f + 1] as number;
+    let q2 = bPrev[f + 2] as number;
+    let q3 = bPrev[f + 3] as number;
+    let d0 = d[f] as number;
+    let d1 = d[f + 1] as number;
+    let d2 = d[f + 2] as number;
+    let d3 = d[f + 3] as number;
+    let p0 = dPrev[f] as number;
+    let p1 = dPrev[f + 1] as number;
+    let p2 = dPrev[f + 2] as number;
+    let p3 = dPrev[f + 3] as number;
+    let sumU = uu;
+    let first = f;
+    let row = i;
+    for (; row < n; row++) {
+      if (row > i) {
+        first = rows.row(row, vals);
+        if (first !== f) break;
+      }
+      const c0 = vals[0] as number;
+      const c1 = vals[1] as number;
+      const c2 = vals[2] as number;
+      const c3 = vals[3] as number;
+      addOuter4(G, o0, o1, o2, o3, c0, c1, c2, c3);
+      if (e) {
+        const v = e[row] as number;
+        const u = v * v - meanSquare;
+        sumU += u * u;
+        xu[f] = (xu[f] as number) + c0 * u;
+        xu[f + 1] = (xu[f + 1] as number) + c1 * u;
+        xu[f + 2] = (xu[f + 2] as number) + c2 * u;
+        xu[f + 3] = (xu[f + 3] as number) + c3 * u;
+      }
+      const e0 = c0 - b0;
+      const e1 = c1 - b1;
+      const e2 = c2 - b2;
+      const e3 = c3 - b3;
+      addOuter4(DD, o0, o1, o2, o3, e0, e1, e2, e3);
+      addOuter4(AA, o0, o1, o2, o3, d0 - e0, d1 - e1, d2 - e2, d3 - e3);
+      q0 = b0;
+      q1 = b1;
+      q2 = b2;
+      q3 = b3;
+      b0 = c0;
+      b1 = c1;
+      b2 = c2;
+      b3 = c3;
+      p0 = d0;
+      p1 = d1;
+      p2 = d2;
+      p3 = d3;
+      d0 = e0;
+      d1 = e1;
+      d2 = e2;
+      d3 = e3;
+    }
+    b.set([b0, b1, b2, b3], f);
+    bPrev.set([q0, q1, q2, q3], f);
+    d.set([d0, d1, d2, d3], f);
+    dPrev.set([p0, p1, p2, p3], f);
+    return { next: row, first, uu: sumU };
+  }
   const out: { -readonly [K in keyof DesignCrossProducts]: DesignCrossProducts[K] } = { p, n, gram: mapped(g, rows.expand, size, p) };
   if (e) out.squares = { xu: rows.expand ? mappedVector(xu, rows.expand, size, p) : xu, uu, meanSquare };
   if (dd && aa) out.differences = { xax: mapped(dd, rows.expand, size, p), xa2x: mapped(aa, rows.expand, size, p) };
   return out;
+}
+
+/** Adds v v' to the upper triangle of a 4 x 4 block of m whose rows start at o0..o3 (the products outer() forms, in its order). */
+function addOuter4(m: Float64Array, o0: number, o1: number, o2: number, o3: number, v0: number, v1: number, v2: number, v3: number): void {
+  m[o0] = (m[o0] as number) + v0 * v0;
+  m[o0 + 1] = (m[o0 + 1] as number) + v0 * v1;
+  m[o0 + 2] = (m[o0 + 2] as number) + v0 * v2;
+  m[o0 + 3] = (m[o0 + 3] as number) + v0 * v3;
+  m[o1 + 1] = (m[o1 + 1] as number) + v1 * v1;
+  m[o1 + 2] = (m[o1 + 2] as number) + v1 * v2;
+  m[o1 + 3] = (m[o1 + 3] as number) + v1 * v3;
+  m[o2 + 2] = (m[o2 + 2] as number) + v2 * v2;
+  m[o2 + 3] = (m[o2 + 3] as number) + v2 * v3;
+  m[o3 + 3] = (m[o3 + 3] as number) + v3 * v3;
 }
 
 /** Adds s v v' to the upper triangle of m (size x size) over the entries lo..hi of v. */

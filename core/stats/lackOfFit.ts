@@ -1,5 +1,6 @@
 import { InputError } from '../errors';
 import { argsortStable } from './argsort';
+import { isOrderOf, xInOrder } from './orderByX';
 import { pf } from './distributions';
 
 /** Result of the lack-of-fit F test against one mean per distinct x. */
@@ -99,9 +100,12 @@ export function lackOfFit(x: Float64Array, y: Float64Array, w: Float64Array | un
 
 /**
  * x in the given row order, checking that `order` is a permutation of the row indices by
- * ascending x (throws InputError otherwise). O(n).
+ * ascending x (throws InputError otherwise); the shared order of x (orderByX) is taken as it
+ * is. O(n).
  */
 function sortedByOrder(x: Float64Array, order: Int32Array): Float64Array {
+  // The shared order of x was made by sorting: nothing to check, and x in it is gathered already.
+  if (isOrderOf(x, order)) return xInOrder(x);
   const n = x.length;
   const bad = (): InputError => new InputError('lack of fit: the row order given does not list every row once by ascending x');
   if (order.length !== n) throw bad();

@@ -1,6 +1,7 @@
 import { InputError } from '../errors';
 import { argsortStable } from './argsort';
 import { qnorm } from './distributions';
+import { selectRanks } from './selectRanks';
 
 /** Points of a normal quantile (QQ) plot, sorted by sample value. */
 export interface NormalQuantiles {
@@ -25,7 +26,8 @@ export interface NormalQuantiles {
  * ppoints). When n exceeds `maxPoints`, the lowest and highest tenth of `maxPoints` ranks
  * are kept whole at each end (where departures from normality show) and the middle ranks
  * are thinned evenly; positions always use the full n. Non-finite inputs are skipped
- * and counted. Cost O(n): the ranks come from the radix `argsortStable`.
+ * and counted. Cost O(n): all ranks come from the radix `argsortStable`, the kept ranks of
+ * a thinned sample from `selectRanks` (expected O(n log maxPoints), without ordering the rest).
  * Throws InputError when `maxPoints` is not a whole number >= 3.
  * Example: normalQuantiles(Float64Array.of(0.3, -1, 2)).theoretical =
  * qnorm([0.5/3.25, 1.5/3.25, 2.5/3.25]) (n = 3 uses a = 3/8).
@@ -51,8 +53,6 @@ export function normalQuantiles(standardizedResiduals: Float64Array, maxPoints =
       }
     }
   }
-  // Ascending, ties in input order (argsortStable is stable and `source` increases).
-  const order = argsortStable(finite);
   const kept = Math.min(n, maxPoints);
   const rank = new Uint32Array(kept);
   if (kept === n) {
@@ -68,13 +68,15 @@ export function normalQuantiles(standardizedResiduals: Float64Array, maxPoints =
     const span = n - 1 - 2 * tail;
     for (let k = 0; k < middle; k++) rank[tail + k] = tail + (middle === 1 ? 0 : Math.round((k * span) / (middle - 1)));
   }
+  // Ascending, ties in input order (both are stable and `source` increases): the row at each kept rank.
+  const atRank = kept === n ? argsortStable(finite) : selectRanks(finite, rank);
   const a = n <= 10 ? 0.375 : 0.5;
   const theoretical = new Float64Array(kept);
   const sample = new Float64Array(kept);
   const index = new Uint32Array(kept);
   for (let k = 0; k < kept; k++) {
     const r = rank[k] as number;
-    const o = order[r] as number;
+    const o = atRank[k] as number;
     const i = source ? (source[o] as number) : o;
     theoretical[k] = qnorm((r + 1 - a) / (n + 1 - 2 * a));
     sample[k] = values[i] as number;

@@ -3,7 +3,7 @@ import { knownOrder } from '../stats/orderByX';
 import { weightedMean } from '../stats/weightedMean';
 import type { OutcomeFamily } from '../fit/glm';
 import { isPlainModel } from '../fit/model';
-import { accumulateRow, type Cells, interleaveCubics, SUMS_PER_CELL } from '../fit/powerSums/cells';
+import { accumulateByLabel, accumulateRow, type Cells, interleaveCubics, SUMS_PER_CELL } from '../fit/powerSums/cells';
 import type { SplineFromSums } from '../fit/powerSums/splineSums';
 import { curveKind, resolveModel, type Trainer, type TrainerSet } from '../registry/curves/index';
 import { resamplingScheme, type DrawState } from '../registry/resampling/index';
@@ -104,7 +104,12 @@ export class ResampleEngine {
       testIdx: this.testIdx,
       powerSums:
         cells && this.sums && this.testSums
-          ? { train: this.sums, test: this.testSums, add: (target, i, wi) => accumulateRow(target, cells.cell[i] as number, cells.t[i] as number, yc[i] as number, wi) }
+          ? {
+              train: this.sums,
+              test: this.testSums,
+              add: (target, i, wi) => accumulateRow(target, cells.cell[i] as number, cells.t[i] as number, yc[i] as number, wi),
+              addByLabel: (labels, out) => accumulateByLabel(cells, yc, w, labels, out, (this.sums as Float64Array).length),
+            }
           : undefined,
       scratch: {},
     };

@@ -68,6 +68,21 @@ export function accumulateRow(s: Float64Array, cellIndex: number, t: number, y: 
 }
 
 /**
+ * The sums of several disjoint row groups in one pass (k-fold's folds): row i goes with
+ * weight w_i into the block labels[i] of `out`, whose blocks lie one after another,
+ * `stride` entries each (out is cleared first). The same bits as accumulateRow row by row. O(n).
+ */
+export function accumulateByLabel(cells: Cells, y: Float64Array, w: Float64Array | undefined, labels: Uint16Array, out: Float64Array, stride: number): void {
+  out.fill(0);
+  const { cell, t } = cells;
+  const n = labels.length;
+  for (let i = 0; i < n; i++) {
+    // accumulateRow's arithmetic on the block of row i's label (the cell offset moved by the block).
+    accumulateRow(out, (labels[i] as number) * (stride / SUMS_PER_CELL) + (cell[i] as number), t[i] as number, y[i] as number, w ? (w[i] as number) : 1);
+  }
+}
+
+/**
  * The per-cell cubics of several candidates (each fitPoly[c * 4 + p]) laid side by side per
  * cell into `out`: out[(c * C + k) * 4 + p], so a pass over rows reads one cell's cubics of
  * every candidate together. A candidate with `use[k] === 0` gets a zero cubic.

@@ -53,7 +53,8 @@ function prepareRepeat(state: DrawState, folds: number, repeat: number): FoldScr
   fs.fill(0);
   const w = state.w;
   const views = Array.from({ length: folds }, (_, k) => fs.subarray(k * len, (k + 1) * len));
-  for (let i = 0; i < state.n; i++) ps.add(views[s.labels[i] as number] as Float64Array, i, w ? (w[i] as number) : 1);
+  if (ps.addByLabel) ps.addByLabel(s.labels, fs);
+  else for (let i = 0; i < state.n; i++) ps.add(views[s.labels[i] as number] as Float64Array, i, w ? (w[i] as number) : 1);
   const total = fs.subarray(folds * len, (folds + 1) * len);
   for (const v of views) for (let j = 0; j < len; j++) total[j] = (total[j] as number) + (v[j] as number);
   return s;

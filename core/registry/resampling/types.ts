@@ -40,6 +40,8 @@ export interface PowerSumAccess {
   readonly test: Float64Array;
   /** Adds row i with weight wi to `target`. */
   add(target: Float64Array, i: number, wi: number): void;
+  /** Fills consecutive blocks of `out` (one per label, train.length entries each) with the rows of each label, weight w_i; the same sums as `add` row by row. */
+  addByLabel?(labels: Uint16Array, out: Float64Array): void;
 }
 
 /** A resampling scheme. `S` is its spec type (a member of ResampleSpec). */

@@ -2,6 +2,7 @@ import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
 import { argsortStable } from '../../../core/stats/argsort';
 import { orderByX } from '../../../core/tune/plan';
+import { isOrderOf, sortedCopy, xInOrder } from '../../../core/stats/orderByX';
 
 /**
  * Reference order: Array.prototype.sort, which ECMAScript 2019 (ECMA-262 10th ed.,
@@ -70,5 +71,38 @@ describe('argsortStable', () => {
   it('orderByX is the stable argsort of x', () => {
     const x = Float64Array.from({ length: 1000 }, (_, i) => Math.round(Math.sin(i) * 20) / 4);
     assert.deepEqual(Array.from(orderByX(x)), referenceOrder(x));
+  });
+
+  it('xInOrder is x read in the order of orderByX, and isOrderOf knows only that order', () => {
+    const x = Float64Array.from({ length: 1000 }, (_, i) => Math.round(Math.sin(i) * 20) / 4);
+    const order = orderByX(x);
+    assert.deepEqual(
+      Array.from(xInOrder(x)),
+      Array.from(order, (i) => x[i]),
+    );
+    assert.equal(xInOrder(x), xInOrder(x));
+    assert.ok(isOrderOf(x, order));
+    assert.ok(!isOrderOf(x, Int32Array.from(order)));
+  });
+
+  it('sortedCopy equals the typed-array sort (ECMA-262 %TypedArray%.prototype.sort: -0 before +0, NaN last), bit for bit', () => {
+    const cases = [
+      Float64Array.of(0, -0, -1, 0, -0, 2, NaN, -0, 1),
+      Float64Array.from({ length: 3000 }, (_, i) => (i % 7 === 0 ? (i % 2 ? -0 : 0) : Math.round(Math.cos(i) * 9) / 3)),
+      new Float64Array(0),
+    ];
+    for (const x of cases) {
+      const got = sortedCopy(x);
+      const want = Float64Array.from(x).sort();
+      assert.equal(got.length, want.length);
+      for (let k = 0; k < want.length; k++) assert.ok(Object.is(got[k], want[k]), `position ${k}: ${got[k]} against ${want[k]}`);
+    }
+    fc.assert(
+      fc.property(fc.array(fc.constantFrom(-0, 0, 1, -1, 2.5), { maxLength: 40 }), (values) => {
+        const x = Float64Array.from(values);
+        const want = Float64Array.from(x).sort();
+        return sortedCopy(x).every((v, k) => Object.is(v, want[k]));
+      }),
+    );
   });
 });

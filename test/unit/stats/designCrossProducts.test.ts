@@ -5,6 +5,7 @@ import { seededNormals } from './seededNormal';
 import { fitCurve } from '../../../core/fit/index';
 import { RowBasisCurve } from '../../../core/fit/linearFit';
 import type { DesignRows } from '../../../core/stats/design';
+import { ExtrapolatingBSplineBasis } from '../../../core/basis/naturalSpline';
 
 /**
  * The Durbin-Watson first-difference matrix A (n x n): diagonal 1, 2, ..., 2, 1 and -1 next
@@ -159,5 +160,91 @@ describe('designCrossProducts', () => {
       for (let k = 0; k < p; k++) assert.ok(Math.abs((a.squares.xu[k] as number) - (b.squares.xu[k] as number)) <= 1e-11 * n, `${kind} X'u ${k}`);
       assert.equal(a.squares.uu, b.squares.uu);
     }
+  });
+});
+
+describe('designCrossProducts, sparse rows bit for bit', () => {
+  /**
+   * The sums in the sparse basis written out plainly: every product of every row's dense b_i,
+   * d_i = b_i - b_(i-1) and a_(i-1) = d_(i-1) - d_i, added in row order. Exact property of
+   * IEEE 754 arithmetic: adding an exact zero product never changes a sum that is not -0, and
+   * these sums start at +0 and can never become -0, so skipping the zero entries (as the code
+   * does) must give the same bits.
+   */
+  function plainSums(b: Float64Array[], e: Float64Array, size: number) {
+    const n = b.length;
+    const g = new Float64Array(size * size);
+    const xax = new Float64Array(size * size);
+    const xa2x = new Float64Array(size * size);
+    const xu = new Float64Array(size);
+    let meanSquare = 0;
+    for (let i = 0; i < n; i++) meanSquare += (e[i] as number) * (e[i] as number);
+    meanSquare /= n;
+    let uu = 0;
+    const add = (m: Float64Array, v: Float64Array): void => {
+      for (let r = 0; r < size; r++) for (let c = r; c < size; c++) m[r * size + c] = (m[r * size + c] as number) + (v[r] as number) * (v[c] as number);
+    };
+    let dPrev = new Float64Array(size);
+    for (let i = 0; i < n; i++) {
+      const bi = b[i] as Float64Array;
+      add(g, bi);
+      const u = (e[i] as number) ** 2 - meanSquare;
+      uu += u * u;
+      for (let k = 0; k < size; k++) xu[k] = (xu[k] as number) + (bi[k] as number) * u;
+      const d = i === 0 ? new Float64Array(size) : bi.map((v, k) => v - ((b[i - 1] as Float64Array)[k] as number));
+      if (i > 0) add(xax, d);
+      if (i > 0)
+        add(
+          xa2x,
+          dPrev.map((v, k) => v - (d[k] as number)),
+        );
+      dPrev = d;
+    }
+    add(xa2x, dPrev);
+    return { g, xax, xa2x, xu, uu };
+  }
+
+  function sameBits(got: Float64Array, want: Float64Array, what: string): void {
+    assert.equal(got.length, want.length);
+    for (let k = 0; k < want.length; k++) assert.ok(Object.is(got[k], want[k]), `${what}[${k}]: ${got[k]} against ${want[k]}`);
+  }
+
+  it('sparse B-spline rows: the sums equal the plain row-ordered sums to the last bit (long runs in one knot interval, single rows, rows on knots)', () => {
+    const basis = new ExtrapolatingBSplineBasis(0, 10, Float64Array.of(1, 1.5, 4, 4.2, 7));
+    // Clumps of many rows, intervals holding one or two rows, and rows exactly on knots (zero basis values).
+    const x = Float64Array.from(
+      [
+        ...Array.from({ length: 400 }, (_, i) => (i * 1) / 400),
+        1.2,
+        1.5,
+        1.5,
+        ...Array.from({ length: 300 }, (_, i) => 1.6 + (i * 2.3) / 300),
+        4,
+        4.1,
+        ...Array.from({ length: 500 }, (_, i) => 4.2 + (i * 5.8) / 499),
+      ].sort((a, b) => a - b),
+    );
+    const n = x.length;
+    const e = seededNormals(12, n);
+    const size = basis.size;
+    const dense = Array.from(x, (xi) => {
+      const out = new Float64Array(4);
+      const first = basis.row(xi, out);
+      const row = new Float64Array(size);
+      row.set(out, first);
+      return row;
+    });
+    const design: DesignRows = {
+      p: size,
+      row: (i, out) => out.set(dense[i] as Float64Array),
+      sparse: { size, width: 4, expand: undefined, row: (i, out) => basis.row(x[i] as number, out) },
+    };
+    const got = designCrossProducts(design, n, { squaresOf: e, differences: true });
+    const want = plainSums(dense, e, size);
+    sameBits(got.gram, want.g, 'gram');
+    sameBits(got.differences?.xax as Float64Array, want.xax, "X'AX");
+    sameBits(got.differences?.xa2x as Float64Array, want.xa2x, "X'A^2X");
+    sameBits(got.squares?.xu as Float64Array, want.xu, "X'u");
+    assert.ok(Object.is(got.squares?.uu, want.uu));
   });
 });

@@ -40,6 +40,19 @@ describe('lackOfFit', () => {
     assert.equal(r1.df2, 3);
   });
 
+  it('lackOfFit with the shared order of x (orderByX) gives the same numbers as a checked copy of it', () => {
+    // The shared order is taken as it is (sorted by argsortStable); a copy of it goes through the check.
+    const x = Float64Array.from({ length: 2000 }, (_, i) => Math.round(Math.sin(i) * 40) / 8);
+    const y = Float64Array.from({ length: 2000 }, (_, i) => Math.cos(i) + (x[i] as number) ** 2);
+    const shared = lackOfFit(x, y, undefined, 1500, 4, orderByX(x));
+    const checked = lackOfFit(x, y, undefined, 1500, 4, Int32Array.from(orderByX(x)));
+    assert.ok(shared && checked);
+    assert.deepEqual(shared, checked);
+    const bad = Int32Array.from(orderByX(x));
+    [bad[0], bad[1999]] = [bad[1999] as number, bad[0] as number];
+    assert.throws(() => lackOfFit(x, y, undefined, 1500, 4, bad), /does not list every row once by ascending x/);
+  });
+
   it('lackOfFit with weights uses weighted group means: pure error = sum w (y - weighted mean)^2', () => {
     const x = Float64Array.of(1, 1, 2, 2, 2);
     const y = Float64Array.of(0.5, 1.5, 3, 4, 6);

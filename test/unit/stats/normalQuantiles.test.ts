@@ -1,4 +1,5 @@
 import { strict as assert } from 'node:assert';
+import { argsortStable } from '../../../core/stats/argsort';
 import { qnorm } from '../../../core/stats/distributions';
 import { normalQuantiles } from '../../../core/stats/normalQuantiles';
 import { seededNormals } from './seededNormal';
@@ -30,6 +31,24 @@ describe('normalQuantiles', () => {
     for (let k = 1; k < 500; k++) assert.ok((q.rank[k] as number) > (q.rank[k - 1] as number), `ranks increase at ${k}`);
     const r = q.rank[250] as number;
     assert.ok(Math.abs((q.theoretical[250] as number) - qnorm((r + 0.5) / n)) <= 1e-15);
+  });
+
+  it('normalQuantiles thinned: each kept point is the value at its rank of the stable sort (ties and non-finite values included)', () => {
+    // The kept ranks are selected without sorting every value; the reference is the whole stable order (argsortStable).
+    const n = 20_000;
+    const x = seededNormals(8, n).map((v) => Math.round(v * 50) / 50);
+    x[3] = NaN;
+    x[4] = -Infinity;
+    x[10] = -0;
+    const q = normalQuantiles(x, 300);
+    const source = Array.from(x.keys()).filter((i) => Number.isFinite(x[i] as number));
+    const order = argsortStable(Float64Array.from(source, (i) => x[i] as number));
+    assert.equal(q.n, n - 2);
+    for (let k = 0; k < 300; k++) {
+      const i = source[order[q.rank[k] as number] as number] as number;
+      assert.equal(q.index[k], i, `point ${k}`);
+      assert.ok(Object.is(q.sample[k], x[i]), `point ${k}`);
+    }
   });
 
   it('normalQuantiles skips non-finite values and counts them', () => {

@@ -29,7 +29,8 @@ import { prepareData } from '../../../core/fit/prepared';
 import { nullSpace } from '../../../core/linalg/nullSpace';
 import { startWorkersEarly, workerRunner } from '../../../core/node/pool';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../../../core/tune/engine';
-import { bootstrapCounts, foldLabels } from '../../../core/registry/resampling/index';
+import { bootstrapCounts, foldLabels, resamplingScheme, type DrawState, type PowerSumAccess } from '../../../core/registry/resampling/index';
+import { accumulateByLabel, accumulateRow, buildCells, SUMS_PER_CELL } from '../../../core/fit/powerSums/cells';
 import { orderByX } from '../../../core/tune/plan';
 import { inlineRunner, tuneCurve } from '../../../core/tune/tune';
 import type { Progress, ResampleSpec } from '../../../core/tune/types';
@@ -506,5 +507,43 @@ describe('ResampleEngine with the cubic smoothing spline', () => {
   it('ResampleEngine(smooth, cv) gives the errors of smoothing splines refitted on the training folds (cars with weights 1/speed, df 3 and 5)', () => {
     const r = compareWithBruteForce(CARS_W, 'smoothing-spline', [3, 5], { kind: 'folds', folds: 5, repeats: 1 }, 2);
     assert.ok(r.compared >= 10);
+  });
+});
+
+describe('resampling draws on the power-sum path', () => {
+  it('folds draws fill the same sums and held-out rows, bit for bit, with the one-pass fold sums as with a call per row', () => {
+    // The engine offers addByLabel (core/fit/powerSums/cells.ts); the folds scheme falls back to add() per row without it.
+    const n = 2000;
+    const x = Float64Array.from({ length: n }, (_, i) => Math.round(Math.sin(i * 0.37) * 300) / 100);
+    const y = Float64Array.from({ length: n }, (_, i) => Math.cos(i) + (x[i] as number));
+    const w = Float64Array.from({ length: n }, (_, i) => 0.5 + ((i * 7) % 5) / 4);
+    const cells = buildCells(x, [Float64Array.of(-3, -1, 0.5, 3), Float64Array.of(-3, 0, 3)]);
+    const len = (cells.breaks.length - 1) * SUMS_PER_CELL;
+    const order = orderByX(x);
+    const state = (kernels: boolean): DrawState => {
+      const train = new Float64Array(len);
+      const test = new Float64Array(len);
+      const powerSums: PowerSumAccess = {
+        train,
+        test,
+        add: (target, i, wi) => accumulateRow(target, cells.cell[i] as number, cells.t[i] as number, y[i] as number, wi),
+        ...(kernels ? { addByLabel: (labels: Uint16Array, out: Float64Array) => accumulateByLabel(cells, y, w, labels, out, len) } : {}),
+      };
+      return { n, seed: 4, order, w, weights: undefined, testIdx: new Int32Array(n), powerSums, scratch: {} };
+    };
+    const spec = { kind: 'folds', folds: 5, repeats: 2 } as const;
+    const scheme = resamplingScheme(spec);
+    const [a, b] = [state(true), state(false)];
+    // Resamples 0, 2, ..., 8: folds of both repeats.
+    for (let r = 0; r < 10; r += 2) {
+      const na = scheme.draw?.(spec, r, a);
+      const nb = scheme.draw?.(spec, r, b);
+      assert.equal(na, nb);
+      assert.deepEqual(a.testIdx.subarray(0, na), b.testIdx.subarray(0, nb));
+      for (const part of ['train', 'test'] as const) {
+        const [sa, sb] = [a.powerSums?.[part] as Float64Array, b.powerSums?.[part] as Float64Array];
+        for (let k = 0; k < len; k++) assert.ok(Object.is(sa[k], sb[k]), `resample ${r} ${part}[${k}]`);
+      }
+    }
   });
 });
