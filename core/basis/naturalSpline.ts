@@ -76,6 +76,8 @@ export class ExtrapolatingBSplineBasis implements RowBasis {
   readonly unitKnotVector: Float64Array;
   /** upper - lower: x units per unit of u. */
   readonly range: number;
+  /** The interior knots, where the cubic pieces join (RowBasis.pieceBreaks). */
+  readonly pieceBreaks: Float64Array;
   private readonly ev: BSplineEvaluator;
   private readonly unit: BSplineEvaluator;
   /** Values and u-slopes of the 4 basis functions active at each boundary (lower: 0..3, upper: 4..7), and their first indices. */
@@ -96,6 +98,7 @@ export class ExtrapolatingBSplineBasis implements RowBasis {
     const unitInterior = new Float64Array(interior.length);
     for (let j = 0; j < interior.length; j++) unitInterior[j] = ((interior[j] as number) - lower) / this.range;
     this.unitKnotVector = clampedKnots(0, 1, unitInterior);
+    this.pieceBreaks = Float64Array.from(interior);
     for (let j = 4; j < this.unitKnotVector.length - 4; j++) {
       if (!((this.unitKnotVector[j] as number) > (this.unitKnotVector[j - 1] as number)) || !((this.unitKnotVector[j] as number) < 1)) {
         throw new FitError(`natural spline: the knots ${this.knotVector[j - 1]} and ${this.knotVector[j]} are too close together, relative to the x range ${this.range}, to be told apart`);

@@ -20,4 +20,10 @@ export interface RowBasis {
   unitCoefficients?(out: Float64Array): void;
   /** The x range where basis function k is nonzero, for messages (bases with local support). */
   supportOf?(k: number): readonly [number, number];
+  /**
+   * For a piecewise polynomial basis: the x where its pieces join (the distinct interior
+   * knots), increasing. Between two of them every basis function is one polynomial, and
+   * `row` reports the same first index there.
+   */
+  readonly pieceBreaks?: Float64Array;
 }

@@ -100,11 +100,18 @@ export class SplineFromSums {
     const runStarts: number[] = [];
     const runPolys: number[] = [];
     this.shift = new Float64Array(2 * cellCount);
+    // Where the pieces join, when the basis says (its knots, which are among the cells' breaks):
+    // a run then ends at the next of them, without evaluating the basis in every cell.
+    const joins = basis.pieceBreaks;
+    let j = 0;
     let c = 0;
     while (c < cellCount) {
       const first = basis.row(((breaks[c] as number) + (breaks[c + 1] as number)) / 2, buf);
       let end = c + 1;
-      while (end < cellCount && basis.row(((breaks[end] as number) + (breaks[end + 1] as number)) / 2, buf) === first) end++;
+      if (joins) {
+        while (j < joins.length && (joins[j] as number) <= (breaks[c] as number)) j++;
+        while (end < cellCount && (breaks[end] as number) < (j < joins.length ? (joins[j] as number) : Infinity)) end++;
+      } else while (end < cellCount && basis.row(((breaks[end] as number) + (breaks[end + 1] as number)) / 2, buf) === first) end++;
       const start = breaks[c] as number;
       const width = (breaks[end] as number) - start;
       for (let mIdx = 0; mIdx < 4; mIdx++) {
