@@ -1,8 +1,7 @@
 import { CancelledError, FitError, InputError } from '../errors';
 import { dataTotals, fitStatistics } from '../fit/summary';
 import { resamplingScheme } from '../registry/resampling/index';
-import { summarise } from '../tune/summaries';
-import { leaveOneOutErrors } from '../tune/tune';
+import { leaveOneOutErrors, summarise } from '../tune/summaries';
 import type { ErrorSummary, Progress, ResampleSpec } from '../tune/types';
 import { axisBasis, type AxisBasis } from './axis';
 import { SurfaceBasis } from './basis';

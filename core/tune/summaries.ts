@@ -1,4 +1,4 @@
-import type { ErrorSummary } from './types';
+import type { CandidateResult, ErrorSummary } from './types';
 
 /**
  * Mean, standard error (sample SD / sqrt(count), docs/design.md, "Errors") and values of the
@@ -22,4 +22,41 @@ export function summarise(values: ArrayLike<number>, keepValues = true): ErrorSu
   }
   const se = m > 1 ? Math.sqrt(ss / (m - 1)) / Math.sqrt(m) : NaN;
   return { mean, se, values: keepValues ? Array.from(values, (v) => (Number.isFinite(v) ? v : NaN)) : [], count: m };
+}
+
+/**
+ * Exact leave-one-out errors from the hat diagonal, e_i = r_i / (1 - h_i). RMSE mean is the
+ * exact LOO RMSE; its SE follows from the SE of the mean squared error by the delta method,
+ * se(sqrt(m)) = se(m) / (2 sqrt(m)); MAE has SD / sqrt(n); the maximum has no SE. Any fit with
+ * per-row residuals and leverage (a curve, a surface) and its prior weights.
+ * Example: leaveOneOutErrors({ data: { w: undefined } }, fit).rmse.mean === fit.looRmse.
+ */
+export function leaveOneOutErrors(
+  prepared: { readonly data: { readonly w?: Float64Array | undefined } },
+  fit: { readonly n: number; readonly residuals: Float64Array; readonly leverage: Float64Array; readonly looRmse: number },
+): Required<Pick<CandidateResult['errors'], 'rmse' | 'mae' | 'maxAbs'>> {
+  const n = fit.n;
+  const w = prepared.data.w;
+  const sq = new Float64Array(n);
+  const abs = new Float64Array(n);
+  let sw = 0;
+  let max = 0;
+  for (let i = 0; i < n; i++) {
+    const h = fit.leverage[i] as number;
+    const e = (fit.residuals[i] as number) / (1 - h);
+    const wi = w ? (w[i] as number) : 1;
+    sw += wi;
+    sq[i] = wi * e * e;
+    abs[i] = wi * Math.abs(e);
+    if (Math.abs(e) > max) max = Math.abs(e);
+  }
+  const scale = n / sw;
+  const ms = summarise(sq, false);
+  const ma = summarise(abs, false);
+  const mse = ms.mean * scale;
+  return {
+    rmse: { mean: fit.looRmse, se: (ms.se * scale) / (2 * Math.sqrt(mse)), values: [] },
+    mae: { mean: ma.mean * scale, se: ma.se * scale, values: [] },
+    maxAbs: { mean: max, se: NaN, values: [] },
+  };
 }

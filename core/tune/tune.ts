@@ -6,7 +6,7 @@ import type { CurveKindId, FitResult, ModelOptions } from '../types';
 import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from './engine';
 import { orderByX } from './plan';
 import { selectDf } from './rules';
-import { summarise } from './summaries';
+import { leaveOneOutErrors, summarise } from './summaries';
 import type { CandidateResult, ErrorSummary, Metric, Progress, ResampleSpec, RuleSpec, TuneResult } from './types';
 import { curveKind, resolveModel } from '../registry/curves/index';
 import { resamplingScheme } from '../registry/resampling/index';
@@ -169,41 +169,4 @@ export async function tuneCurve(
 
 function strip(s: ErrorSummary & { count: number }): ErrorSummary {
   return { mean: s.mean, se: s.se, values: s.values };
-}
-
-/**
- * Exact leave-one-out errors from the hat diagonal, e_i = r_i / (1 - h_i). RMSE mean is the
- * exact LOO RMSE; its SE follows from the SE of the mean squared error by the delta method,
- * se(sqrt(m)) = se(m) / (2 sqrt(m)); MAE has SD / sqrt(n); the maximum has no SE. Any fit with
- * per-row residuals and leverage (a curve, a surface) and its prior weights.
- * Example: leaveOneOutErrors({ data: { w: undefined } }, fit).rmse.mean === fit.looRmse.
- */
-export function leaveOneOutErrors(
-  prepared: { readonly data: { readonly w?: Float64Array | undefined } },
-  fit: { readonly n: number; readonly residuals: Float64Array; readonly leverage: Float64Array; readonly looRmse: number },
-): Required<Pick<CandidateResult['errors'], 'rmse' | 'mae' | 'maxAbs'>> {
-  const n = fit.n;
-  const w = prepared.data.w;
-  const sq = new Float64Array(n);
-  const abs = new Float64Array(n);
-  let sw = 0;
-  let max = 0;
-  for (let i = 0; i < n; i++) {
-    const h = fit.leverage[i] as number;
-    const e = (fit.residuals[i] as number) / (1 - h);
-    const wi = w ? (w[i] as number) : 1;
-    sw += wi;
-    sq[i] = wi * e * e;
-    abs[i] = wi * Math.abs(e);
-    if (Math.abs(e) > max) max = Math.abs(e);
-  }
-  const scale = n / sw;
-  const ms = summarise(sq, false);
-  const ma = summarise(abs, false);
-  const mse = ms.mean * scale;
-  return {
-    rmse: { mean: fit.looRmse, se: (ms.se * scale) / (2 * Math.sqrt(mse)), values: [] },
-    mae: { mean: ma.mean * scale, se: ma.se * scale, values: [] },
-    maxAbs: { mean: max, se: NaN, values: [] },
-  };
 }
