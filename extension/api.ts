@@ -9,6 +9,7 @@ import type { Outcome, Shape } from '../core/types';
 import type { HostMessage } from '../core/protocol';
 import type { DataStateView, PanelPayload } from '../core/view/model';
 import type { GroupsView } from '../core/view/groups';
+import type { SurfaceView } from '../core/view/surface';
 import type { ColumnChoice } from './columns';
 import type { OverwriteAnswer } from './save';
 
@@ -85,6 +86,8 @@ export interface KnotwiseApi {
         readonly groups?: { readonly view: GroupsView; readonly index: number };
       }
     | undefined;
+  /** The surface a file's panel shows (two inputs), and how many analyses ran; undefined while it shows none. */
+  surfaceState(uri: vscode.Uri): { readonly view: SurfaceView; readonly analysed: number } | undefined;
   /** Whether the analysis a file's panel shows is of the data as it is now (as the panel is told). */
   dataState(uri: vscode.Uri): DataStateView | undefined;
   /** The latest messages posted to a file's open panel, oldest first (empty without one). */

@@ -112,6 +112,10 @@ export class Controller implements vscode.Disposable {
         const groups = s.groupsShown;
         return { payload: s.payload, posted: s.posted, analysed: s.analysed, ready: s.panelReady, ...(groups ? { groups } : {}) };
       },
+      surfaceState: (uri) => {
+        const s = find(uri);
+        return s?.hasPanel && s.surface ? { view: s.surface.view, analysed: s.analysed } : undefined;
+      },
       dataState: (uri) => {
         const s = find(uri);
         return s?.hasPanel ? s.dataState() : undefined;
@@ -218,6 +222,11 @@ export class Controller implements vscode.Disposable {
   /** The tune command: asks for the columns, tunes with progress and shows the panel. */
   tune(uri: vscode.Uri, options: TuneCommandOptions = {}): Promise<RunSummary> {
     return this.session(uri).tune({ options, ask: true });
+  }
+
+  /** The surface command: asks for two inputs and the reading (the remembered ones offered first), tunes the surface and shows it. */
+  tuneSurface(uri: vscode.Uri): Promise<RunSummary> {
+    return this.session(uri).tune({ ask: true, surface: true });
   }
 
   /** The save command: saves the latest run of `uri`, tuning it first when there is none or it is out of date. */

@@ -15,6 +15,7 @@ import { STALE_COMMAND } from './records';
 /** Command identifiers (also in package.json). */
 export const COMMANDS = {
   tune: 'knotwise.tuneCurve',
+  surface: 'knotwise.tuneSurface',
   save: 'knotwise.saveCurveTable',
   stop: 'knotwise.stopTuning',
   forget: 'knotwise.forgetColumns',
@@ -39,6 +40,13 @@ export function activate(context: vscode.ExtensionContext): KnotwiseApi {
       const uri = controller.targetUri(arg);
       if (!uri || !isTableFile(uri)) return noTarget();
       return controller.tune(uri, options ?? {});
+    }),
+  );
+  store.add(
+    vscode.commands.registerCommand(COMMANDS.surface, async (arg?: unknown) => {
+      const uri = controller.targetUri(arg);
+      if (!uri || !isTableFile(uri)) return noTarget();
+      return controller.tuneSurface(uri);
     }),
   );
   store.add(

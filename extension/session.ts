@@ -393,6 +393,36 @@ export class DataSession implements vscode.Disposable {
     }
   }
 
+  /**
+   * The save command for a surface: tunes it first when none is shown or the shown one is
+   * not of the bytes on disk (with the columns given, else the shown surface's), then writes
+   * what the command line writes for the pair shown.
+   */
+  private async saveSurfaceCommand(options: SaveCommandOptions): Promise<SaveSummary> {
+    const file = this.file;
+    const stale = async (): Promise<boolean> => {
+      const shown = this.surface;
+      return !shown || shown.source.unsaved || (await diskSha256(this.uri)) !== shown.source.sha256;
+    };
+    if (await stale()) {
+      const columns = options.columns ?? this.surface?.choice;
+      const run = await this.tune({ options: columns ? { columns } : {}, ask: !columns, surface: true });
+      if (run.status !== 'done') return run;
+      if (!this.surface || (await stale())) return { status: 'failed', file, message: `${file} changed while its surface was tuned; nothing was saved` };
+    }
+    const s = this.surface as SurfaceRunState;
+    const summary = { file: s.source.fileName, runId: s.runId, rowsUsed: s.shown.n, surface: { x: s.shown.dfU, x2: s.shown.dfV } };
+    try {
+      const uris = await saveSurface(s, this.ctx.settings(this.uri), this.uri, options.replaceForeignFiles ?? 'ask');
+      if (!uris) return { status: 'dismissed', ...summary, message: 'an existing file was not written by Knotwise' };
+      return { status: 'done', ...summary, files: uris.map((u) => u.toString()) };
+    } catch (err) {
+      const message = errorText(err);
+      void vscode.window.showErrorMessage(`Knotwise: nothing was saved: ${message}`);
+      return { status: 'failed', ...summary, message };
+    }
+  }
+
   /** The overview of the grouped run on show and the index of the group shown (undefined: not a grouped run). */
   get groupsShown(): { readonly view: GroupsView; readonly index: number } | undefined {
     const g = this.result?.groups;
@@ -764,10 +794,13 @@ export class DataSession implements vscode.Disposable {
   async saveCommand(options: SaveCommandOptions = {}): Promise<SaveSummary> {
     const file = this.file;
     if (!(await this.dataOnDisk(options.saveEditedData ?? 'ask'))) return { status: 'dismissed', file, message: `${file} has unsaved edits; a curve table is saved only from data on disk` };
+    // A surface on show, or asked for by its columns: saved as the command line's fit --x --x2 --y.
+    if (options.columns ? typeof options.columns.x2 === 'string' : this.surface && !this.result) return this.saveSurfaceCommand(options);
     try {
       if (!this.result) {
         const run = await this.tune({ options, ask: !options.columns });
         if (run.status !== 'done') return run;
+        if (this.surface && !this.result) return this.saveSurfaceCommand(options);
       } else {
         await this.compareNow(this.follower.take(), false);
         await this.refitForSave(options);

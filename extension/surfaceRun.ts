@@ -15,7 +15,9 @@ import { prepareSurface, type PreparedSurface } from '../core/surface/data';
 import { buildSurfaceDeliverables, type SurfaceDeliverables } from '../core/surface/deliver';
 import { fitSurface, type SurfaceFit } from '../core/surface/fit';
 import type { SurfaceRule } from '../core/surface/select';
-import type { SurfacePlan } from '../core/surface/spec';
+import { parseSurfaceRule, type SurfacePlan } from '../core/surface/spec';
+import { DEFAULT_RESAMPLING, parseResampling } from '../core/registry/resampling/index';
+import { DEFAULT_RULE } from '../core/registry/rules/index';
 import { tuneSurface, type SurfaceTuneResult } from '../core/surface/tune';
 import { buildSurfaceView, type SurfaceInput, type SurfaceView } from '../core/view/surface';
 import { pickOne, type ColumnChoice, type ColumnItem } from './columns';
@@ -167,7 +169,9 @@ export function surfacePlan(s: SurfaceRunState, settings: Settings): SurfacePlan
     emit: [],
     report: false,
   };
-  return s.byHand ? { ...base, tune: false, candidatesU: [s.shown.dfU], candidatesV: [s.shown.dfV] } : { ...base, tune: true };
+  // A pair by hand is `--df <x>x<x2>` alone: the command line then records its default resampling, rule and seed, which played no part.
+  const asGiven = { resample: parseResampling(DEFAULT_RESAMPLING), rule: parseSurfaceRule(DEFAULT_RULE), seed: 1 };
+  return s.byHand ? { ...base, ...asGiven, tune: false, candidatesU: [s.shown.dfU], candidatesV: [s.shown.dfV] } : { ...base, tune: true };
 }
 
 /** Every output's text as the command line would write it into `folder`. Throws InputError when nodes lie beyond the readings without knotwise.table.extrapolate. */

@@ -36,6 +36,7 @@ const ALLOWED_ATTRIBUTES = new Set([
   'data-df',
   'data-group',
   'data-x',
+  'data-slice',
   'id',
   'x',
   'y',

@@ -44,7 +44,7 @@ try {
   runDir = freshRunDir('host');
   const workspace = join(runDir, 'workspace');
   mkdirSync(join(workspace, '.vscode'), { recursive: true });
-  for (const f of ['mcycle.csv', 'mcycle-bad.csv', 'cars.csv', 'menarche.csv', 'co2.csv']) copyFileSync(join(fixtures, f), join(workspace, f));
+  for (const f of ['mcycle.csv', 'mcycle-bad.csv', 'cars.csv', 'menarche.csv', 'co2.csv', 'trees.csv']) copyFileSync(join(fixtures, f), join(workspace, f));
   writeFileSync(join(workspace, '.vscode', 'settings.json'), JSON.stringify({ 'knotwise.resampling': 'leave-one-out', 'knotwise.rule': 'least-error', 'knotwise.candidates': '3..15' }, null, 2));
   server = await startCodeServer({ runDir });
   console.log(`host layer: code-server up on port ${server.port} after ${seconds(t0)}`);

@@ -1,7 +1,7 @@
 /**
  * Panel payloads built by the real core (ingest, analyse, view) from the open data sets
- * in test/e2e/fixtures (R's `cars`, MASS::mcycle, MASS::menarche, datasets::CO2; see
- * make-fixtures.R there).
+ * in test/e2e/fixtures (R's `cars`, MASS::mcycle, MASS::menarche, datasets::CO2 and
+ * datasets::trees; see make-fixtures.R there).
  */
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -17,6 +17,11 @@ import { analyseGroups } from '../../core/groups/analyse';
 import { commonCurveFor } from '../../core/groups/commonRun';
 import { splitByColumn } from '../../core/groups/split';
 import { buildGroupsView, type GroupsView } from '../../core/view/groups';
+import { selectSurfaceColumns } from '../../core/surface/columns';
+import { prepareSurface } from '../../core/surface/data';
+import { fitSurface } from '../../core/surface/fit';
+import { tuneSurface, type SurfaceTuneResult } from '../../core/surface/tune';
+import { buildSurfaceView, type SurfaceInput, type SurfaceView } from '../../core/view/surface';
 
 export const fixtureDir = join(__dirname, '..', 'e2e', 'fixtures');
 
@@ -91,4 +96,31 @@ export async function co2GroupsFixture(setId = 10): Promise<GroupsFixture> {
         tolerancePercent: 2,
       }),
   };
+}
+
+/** A surface run as the host shows it: the view, and what the stub host needs to answer the panel's requests. */
+export interface SurfaceFixture {
+  readonly view: SurfaceView;
+  readonly tune: SurfaceTuneResult;
+  /** The view of the same run under `runId` at another pair (by hand) or with other slices, built by core as the host does. */
+  viewWith(runId: number, options: { readonly pair?: { readonly x: number; readonly x2: number }; readonly slices?: { readonly input: SurfaceInput; readonly at?: readonly number[] } }): SurfaceView;
+}
+
+/**
+ * datasets::trees (Ryan, Joiner & Ryan 1976; test/e2e/fixtures/make-fixtures.R): Volume over
+ * Girth and Height, df pairs 1..9 x 1..9 (the command line's default) tuned by 5-fold
+ * cross-validation (seed 1) with the one-SE rule, as the editor's run does (extension/surfaceRun.ts).
+ */
+export async function treesSurfaceFixture(runId = 3): Promise<SurfaceFixture> {
+  const table = parseCsvText(readFileSync(join(fixtureDir, 'trees.csv'), 'utf8'), { file: 'trees.csv' });
+  const selection = selectSurfaceColumns(table, { u: 'Girth', v: 'Height', y: 'Volume' }, 'trees.csv');
+  const prepared = prepareSurface(selection.data);
+  const { result: tune, fit } = await tuneSurface(prepared, { resample: { kind: 'folds', folds: 5, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 });
+  const base = { fileName: 'trees.csv', labels: selection.labels, rejected: selection.rejected.length, prepared, tune };
+  const viewWith: SurfaceFixture['viewWith'] = (id, options) => {
+    const byHand = options.pair !== undefined && (options.pair.x !== fit.dfU || options.pair.x2 !== fit.dfV);
+    const shown = byHand && options.pair ? fitSurface(prepared, { dfU: options.pair.x, dfV: options.pair.x2 }) : fit;
+    return buildSurfaceView({ ...base, runId: id, fit: shown, byHand, slices: options.slices });
+  };
+  return { view: viewWith(runId, {}), tune, viewWith };
 }

@@ -23,7 +23,7 @@ try {
   });
   mkdirSync(join(root, 'test-artifacts'), { recursive: true });
   console.log(`webview bundle built in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
-  failures = await runMocha([join(here, 'panel.test.ts'), join(here, 'groups.test.ts')], { timeout: 60000, title: 'webview layer' });
+  failures = await runMocha([join(here, 'panel.test.ts'), join(here, 'groups.test.ts'), join(here, 'surface.test.ts')], { timeout: 60000, title: 'webview layer' });
 } catch (err) {
   console.error(err);
   console.log('0 passed, 1 failed');

@@ -164,7 +164,7 @@ export function surfaceSection(v: SurfaceView, a: SurfaceActions): HTMLElement[]
     el(
       'section',
       { class: 'kw-answer', id: 'kw-surface-answer', 'aria-label': 'The chosen df pair' },
-      el('p', { class: 'kw-badge', id: 'kw-surface-pair' }, `df ${v.pair.x} × ${v.pair.x2}${v.byHand ? ' (picked by hand)' : ''}`),
+      el('p', {}, el('span', { class: 'kw-df-badge', id: 'kw-surface-pair' }, `df ${v.pair.x} × ${v.pair.x2}${v.byHand ? ' (picked by hand)' : ''}`)),
       el('p', { id: 'kw-reason', class: 'kw-reason' }, v.explanation),
       el('p', { class: 'kw-meta', id: 'kw-surface-fit' }, v.fitLine),
       el('div', { class: 'kw-actions' }, save, again, stop),
@@ -177,7 +177,7 @@ export function surfaceSection(v: SurfaceView, a: SurfaceActions): HTMLElement[]
       figure(
         'kw-surface-heat',
         heat,
-        `The fitted ${labels.y}: darker is higher; grey cells lie outside the readings' hull or beyond their reach; dots mark ${v.readings.every > 1 ? `every ${v.readings.every}th reading` : 'the readings'}.`,
+        `The fitted ${labels.y}: the stronger the shade, the higher; grey cells lie outside the readings' hull or beyond their reach; dots mark ${v.readings.every > 1 ? `every ${v.readings.every}th reading` : 'the readings'}.`,
       ),
       landscapeTable(v),
     ),

@@ -141,6 +141,7 @@ describe('Knotwise commands in the extension host', function () {
       'knotwise.showStaleTables',
       'knotwise.stopTuning',
       'knotwise.tuneCurve',
+      'knotwise.tuneSurface',
     ]);
     for (const c of contributed) assert.ok(all.includes(c), `${c} is registered`);
   });

@@ -41,6 +41,7 @@ export async function run(): Promise<void> {
   require('./candidates.test');
   require('./calibration.test');
   require('./groups.test');
+  require('./surface.test');
   await new Promise<void>((resolve, reject) => {
     const runner = mocha.run((failures) => {
       const stats = runner.stats ?? { passes: 0, failures };
