@@ -44,6 +44,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     mkdirSync(workspace, { recursive: true });
     copyFileSync(join(fixtures, 'mcycle.csv'), join(workspace, 'mcycle.csv'));
     copyFileSync(join(fixtures, 'co2.csv'), join(workspace, 'co2.csv'));
+    copyFileSync(join(fixtures, 'trees.csv'), join(workspace, 'trees.csv'));
     server = await wb.startCodeServer({ runDir, settings: { 'workbench.colorTheme': 'Default Light Modern' } });
     browser = await wb.launchChromium({ viewport: { width: 1500, height: 950 } });
     page = browser.page;
@@ -551,6 +552,44 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
     } finally {
       rmSync(copy, { recursive: true, force: true });
     }
+  });
+
+  it('a surface over two inputs: the menu entry asks for two inputs and the reading of datasets::trees, and the panel shows the heat view with the uncovered corners, slices with bands and residuals', async function () {
+    await tuneFromExplorer(page, 'trees.csv', 'Fit a Surface over Two Inputs');
+    const input = page.locator('.quick-input-widget input.input');
+    const title = page.locator('.quick-input-widget .quick-input-title');
+    await title.filter({ hasText: 'the first input of trees.csv' }).waitFor();
+    await input.fill('Girth');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'the second input of trees.csv' }).waitFor();
+    await input.fill('Height');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'the reading of trees.csv' }).waitFor();
+    await input.fill('Volume');
+    await page.keyboard.press('Enter');
+    await title.filter({ hasText: 'weights for trees.csv' }).waitFor();
+    await page.keyboard.press('Enter');
+    let surface: Frame | undefined;
+    const deadline = Date.now() + 90000;
+    while (!surface && Date.now() < deadline) {
+      for (const f of page.frames()) if (await f.$('#knotwise-root[data-state="ready"] #kw-surface-heat').catch(() => null)) surface = f;
+      if (!surface) await page.waitForTimeout(250);
+    }
+    assert.ok(surface, 'the panel shows the surface');
+    assert.match((await surface.textContent('#kw-surface-pair')) ?? '', /^df \d × \d/);
+    // R: datasets::trees has no tree under 9 in girth taller than 70 ft, so grid corners lie outside the readings.
+    assert.ok((await surface.locator('#kw-surface-heat .kw-uncovered').count()) > 0, 'uncovered nodes are shaded');
+    assert.equal(await surface.locator('#kw-surface-landscape table').count(), 1);
+    assert.ok((await surface.locator('#kw-surface-resid-x svg').count()) === 1 && (await surface.locator('#kw-surface-resid-x2 svg').count()) === 1, 'residuals against each input');
+    // Slices at two heights of our own choosing.
+    await surface.selectOption('#kw-slice-input', 'x2');
+    // Another input slices at its quartiles first (the panel is drawn again), then at the values typed.
+    await surface.click('#kw-slice-show');
+    await surface.locator('#kw-surface-slices figcaption', { hasText: /^Slices at Height/ }).waitFor();
+    await surface.fill('#kw-slice-values', '70, 80');
+    await surface.click('#kw-slice-show');
+    await surface.locator('#kw-surface-slices figcaption', { hasText: /Height = 70, 80/ }).waitFor();
+    await page.screenshot({ path: join(artifacts, 'editor-surface.png') });
   });
 
   it('no request left 127.0.0.1', function () {

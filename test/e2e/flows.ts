@@ -4,14 +4,14 @@
 import type { Page } from 'playwright-core';
 
 /**
- * Right-clicks `fileName` in the explorer and chooses Knotwise's Tune entry. The menu lists
- * the entry once the extension host has registered it, so the right-click is repeated
- * (up to 60 s) until it does.
+ * Right-clicks `fileName` in the explorer and chooses Knotwise's Tune entry (or `entry`, e.g.
+ * the surface command's). The menu lists the entry once the extension host has registered
+ * it, so the right-click is repeated (up to 60 s) until it does.
  */
-export async function tuneFromExplorer(page: Page, fileName: string): Promise<void> {
+export async function tuneFromExplorer(page: Page, fileName: string, entry = 'Tune a Curve for This Data'): Promise<void> {
   const row = page.getByRole('treeitem', { name: fileName });
   await row.waitFor({ timeout: 60000 });
-  const item = page.locator('.monaco-menu .action-label', { hasText: 'Tune a Curve for This Data' });
+  const item = page.locator('.monaco-menu .action-label', { hasText: entry });
   const deadline = Date.now() + 60000;
   for (;;) {
     await row.click({ button: 'right' });
