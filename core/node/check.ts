@@ -256,16 +256,20 @@ interface Rebuilt {
   readonly changes: readonly string[];
 }
 
+/** What every kind of record gives a Rebuildable in the same way: its JSON, data, tool version and output files. */
+function recorded(
+  rec: { readonly dataPath: string; readonly dataSha256: string; readonly toolVersion: string; readonly files: readonly { readonly file: string }[] },
+  json: unknown,
+): Pick<Rebuildable, 'json' | 'dataPath' | 'dataSha256' | 'writtenBy' | 'files'> {
+  return { json, dataPath: rec.dataPath, dataSha256: rec.dataSha256, writtenBy: rec.toolVersion, files: rec.files.map((f) => f.file) };
+}
+
 /** A fit record: rebuilt by the single-file pipeline, under the names it was written with. */
 function fitRebuild(read: RecordFile, recordName: string): Rebuildable {
   const rec = read.run;
   return {
-    json: read.json,
+    ...recorded(rec, read.json),
     command: (p) => fitCommand(rec.plan, p),
-    dataPath: rec.dataPath,
-    dataSha256: rec.dataSha256,
-    writtenBy: rec.toolVersion,
-    files: rec.files.map((f) => f.file),
     async rebuild(dataFile, folder) {
       // The table and record under the names they were written with (the editor lets them be renamed).
       const run = await runPipeline(dataFile, rec.plan, folder, { table: (rec.files[0] as { file: string }).file, record: recordName }, { previous: read.json });
@@ -285,12 +289,8 @@ function fitRebuild(read: RecordFile, recordName: string): Rebuildable {
 /** A group record: rebuilt by the grouped pipeline (core/node/groupPipeline.ts). */
 function groupRebuild(rec: GroupRecordRun, json: unknown): Rebuildable {
   return {
-    json,
+    ...recorded(rec, json),
     command: (p) => fitCommand(rec.plan, p),
-    dataPath: rec.dataPath,
-    dataSha256: rec.dataSha256,
-    writtenBy: rec.toolVersion,
-    files: rec.files.map((f) => f.file),
     async rebuild(dataFile, folder) {
       const run = await runGroupPipeline(dataFile, rec.plan, folder);
       return { dataSha256: run.table.sha256, files: run.deliverables.files, dataChanged: '', changes: [] };
@@ -301,12 +301,8 @@ function groupRebuild(rec: GroupRecordRun, json: unknown): Rebuildable {
 /** A surface record: rebuilt by the surface pipeline (core/node/surfacePipeline.ts). */
 function surfaceRebuild(rec: SurfaceRecordRun, json: unknown): Rebuildable {
   return {
-    json,
+    ...recorded(rec, json),
     command: (p) => surfaceCommand(rec.plan, p),
-    dataPath: rec.dataPath,
-    dataSha256: rec.dataSha256,
-    writtenBy: rec.toolVersion,
-    files: rec.files.map((f) => f.file),
     async rebuild(dataFile, folder) {
       const run = await runSurfacePipeline(dataFile, rec.plan, folder);
       const changes: string[] = [];
