@@ -13,7 +13,7 @@ import type { HostMessage } from '../../core/protocol';
 import type { GroupsView } from '../../core/view/groups';
 import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 import { co2GroupsFixture, type GroupsFixture } from './fixture';
-import { openPanel, startPanelServer, type OpenOptions, type PanelPage, type PanelServer } from './harness';
+import { assertWithinWidth, openPanel, resolvedColours, startPanelServer, type OpenOptions, type PanelPage, type PanelServer } from './harness';
 
 const artifacts = join(__dirname, '..', '..', 'test-artifacts');
 const SET = 10;
@@ -227,25 +227,12 @@ describe('Knotwise panel of a grouped run (webview in headless Chromium)', funct
         await page.locator('#kw-groups').screenshot({ path: join(artifacts, `webview-groups-overview-${theme}-${width}.png`) });
         const bar = await page.locator('#kw-group-bar').boundingBox();
         assert.ok(bar && bar.y < 60 && bar.x + bar.width <= width, `the group bar at the top (${JSON.stringify(bar)})`);
-        for (const selector of ['#fig-groups', '#kw-multiples', '#kw-small-button-11']) {
-          const b = await page.locator(selector).boundingBox();
-          assert.ok(b && b.x >= 0 && b.x + b.width <= width, `${selector} fits the width ${width} (${JSON.stringify(b)})`);
-        }
-        const colours = (await page.evaluate(`(() => {
-          const probe = document.createElement('span');
-          probe.style.color = 'var(--vscode-charts-blue)';
-          document.body.append(probe);
-          const blue = getComputedStyle(probe).color;
-          probe.style.color = 'var(--vscode-focusBorder)';
-          const focus = getComputedStyle(probe).color;
-          probe.remove();
-          return {
-            blue,
-            focus,
-            selected: getComputedStyle(document.querySelector('#fig-groups path.kw-group-selected')).stroke,
-            border: getComputedStyle(document.querySelector('#kw-small-button-0')).borderTopColor,
-          };
-        })()`)) as { blue: string; focus: string; selected: string; border: string };
+        await assertWithinWidth(page, ['#fig-groups', '#kw-multiples', '#kw-small-button-11'], width);
+        const colours = await resolvedColours(
+          page,
+          { blue: 'var(--vscode-charts-blue)', focus: 'var(--vscode-focusBorder)' },
+          { selected: ['#fig-groups path.kw-group-selected', 'stroke'], border: ['#kw-small-button-0', 'borderTopColor'] },
+        );
         assert.equal(colours.selected, colours.blue, 'the shown group in the theme’s blue');
         assert.equal(colours.border, colours.focus, 'the shown small figure framed in the focus colour');
         assert.deepEqual(await pp.cspViolations(), []);

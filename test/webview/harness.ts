@@ -201,3 +201,32 @@ export async function openPanel(browser: LaunchedChromium, server: PanelServer, 
   await pp.waitForSent('ready');
   return pp;
 }
+
+/** Asserts that the box of each selector lies within [0, width]: nothing is cut off at the page's right edge. */
+export async function assertWithinWidth(page: Page, selectors: readonly string[], width: number): Promise<void> {
+  for (const selector of selectors) {
+    const b = await page.locator(selector).boundingBox();
+    if (!(b && b.x >= 0 && b.x + b.width <= width)) throw new Error(`${selector} does not fit the width ${width} (${JSON.stringify(b)})`);
+  }
+}
+
+/**
+ * Colours as the page resolves them: `values` maps a name to a CSS colour value (e.g.
+ * 'var(--vscode-charts-blue)', read through a probe element), `styles` a name to an element's
+ * selector and a computed style property (e.g. ['#fig path.kw-selected', 'stroke']).
+ */
+export async function resolvedColours(page: Page, values: Readonly<Record<string, string>>, styles: Readonly<Record<string, readonly [string, string]>>): Promise<Record<string, string>> {
+  // A string, so the test's own type check needs no DOM types.
+  return (await page.evaluate(`(() => {
+    const out = {};
+    const probe = document.createElement('span');
+    document.body.append(probe);
+    for (const [name, value] of Object.entries(${JSON.stringify(values)})) {
+      probe.style.color = value;
+      out[name] = getComputedStyle(probe).color;
+    }
+    probe.remove();
+    for (const [name, [selector, property]] of Object.entries(${JSON.stringify(styles)})) out[name] = getComputedStyle(document.querySelector(selector))[property];
+    return out;
+  })()`)) as Record<string, string>;
+}

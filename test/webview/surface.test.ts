@@ -12,7 +12,7 @@ import type { HostMessage } from '../../core/protocol';
 import type { SurfaceView } from '../../core/view/surface';
 import type { LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 import { treesSurfaceFixture, type SurfaceFixture } from './fixture';
-import { openPanel, startPanelServer, type OpenOptions, type PanelPage, type PanelServer } from './harness';
+import { assertWithinWidth, openPanel, resolvedColours, startPanelServer, type OpenOptions, type PanelPage, type PanelServer } from './harness';
 
 const artifacts = join(__dirname, '..', '..', 'test-artifacts');
 const RUN = 3;
@@ -206,25 +206,16 @@ describe('Knotwise panel of a surface (webview in headless Chromium)', function 
           assert.ok(b && b.y < 900, `${selector} within the first 900 pixels (${JSON.stringify(b)})`);
         }
         assert.ok(((await page.evaluate('document.documentElement.scrollWidth')) as number) <= width, 'no sideways scrolling of the page');
-        for (const selector of ['#kw-surface-heat', '#kw-surface-landscape', '#kw-pair', '#kw-surface-slices', '#kw-slice-control', '#kw-surface-resid-x', '#kw-surface-resid-x2', '#kw-caution']) {
-          const b = await page.locator(selector).boundingBox();
-          assert.ok(b && b.x >= 0 && b.x + b.width <= width, `${selector} fits the width ${width} (${JSON.stringify(b)})`);
-        }
-        const colours = (await page.evaluate(`(() => {
-          const probe = document.createElement('span');
-          probe.style.color = 'var(--vscode-charts-blue)';
-          document.body.append(probe);
-          const blue = getComputedStyle(probe).color;
-          probe.style.color = 'var(--vscode-foreground)';
-          const fg = getComputedStyle(probe).color;
-          probe.remove();
-          return {
-            blue,
-            fg,
-            heat: getComputedStyle(document.querySelector('#kw-surface-heat svg rect.kw-heat')).fill,
-            label: getComputedStyle(document.querySelector('#kw-surface-slices svg text.kw-slice-label')).fill,
-          };
-        })()`)) as { blue: string; fg: string; heat: string; label: string };
+        await assertWithinWidth(
+          page,
+          ['#kw-surface-heat', '#kw-surface-landscape', '#kw-pair', '#kw-surface-slices', '#kw-slice-control', '#kw-surface-resid-x', '#kw-surface-resid-x2', '#kw-caution'],
+          width,
+        );
+        const colours = await resolvedColours(
+          page,
+          { blue: 'var(--vscode-charts-blue)', fg: 'var(--vscode-foreground)' },
+          { heat: ['#kw-surface-heat svg rect.kw-heat', 'fill'], label: ['#kw-surface-slices svg text.kw-slice-label', 'fill'] },
+        );
         assert.equal(colours.heat, colours.blue, 'the heat in the theme’s blue');
         assert.equal(colours.label, colours.fg, 'slice labels in the theme’s foreground');
         assert.deepEqual(await pp.cspViolations(), []);

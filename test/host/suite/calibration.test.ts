@@ -6,32 +6,18 @@
  * Compare Two Fit Records command compares records. Data: datasets::cars (Ezekiel 1930).
  */
 import assert from 'node:assert/strict';
-import { execFileSync } from 'node:child_process';
-import { copyFileSync, existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import * as vscode from 'vscode';
 import type { RunSummary, SaveSummary } from '../../../extension/api';
 import type { RecordComparison } from '../../../extension/compareRecords';
-import { api, closeEverything, file, setSetting, text, waitFor, writeText } from './helpers';
+import { api, cliOutputs, closeEverything, file, setSetting, text, waitFor, writeText } from './helpers';
 
 const NAME = 'cal-cars.csv';
 const COLUMNS = { columns: { x: 'speed', y: 'dist' } };
 
 /** The outputs `knotwise fit` writes for the same inputs, replacing the same record as the editor did. */
 function cliFiles(args: readonly string[], names: readonly string[]): Map<string, string> {
-  const out = mkdtempSync(join(tmpdir(), 'knotwise-cal-'));
-  try {
-    copyFileSync(file(NAME).fsPath, join(out, NAME));
-    const record = file('cal-cars.fit.json').fsPath;
-    if (existsSync(record)) copyFileSync(record, join(out, 'cal-cars.fit.json'));
-    const ext = vscode.extensions.getExtension('knotwise.knotwise');
-    assert.ok(ext);
-    execFileSync(process.execPath, [join(ext.extensionPath, 'dist', 'cli.js'), 'fit', join(out, NAME), ...args, '--save', '--quiet']);
-    return new Map(names.map((n) => [n, readFileSync(join(out, n), 'utf8')]));
-  } finally {
-    rmSync(out, { recursive: true, force: true });
-  }
+  const all = cliOutputs(NAME, args, ['cal-cars.fit.json']);
+  return new Map(names.map((n) => [n, all.get(n) ?? '']));
 }
 
 describe('calibration use in the editor', function () {

@@ -10,13 +10,10 @@
  * test/reference/groups.test.ts.
  */
 import assert from 'node:assert/strict';
-import { execFileSync } from 'node:child_process';
-import { copyFileSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { readdirSync } from 'node:fs';
 import * as vscode from 'vscode';
 import type { RunSummary, SaveSummary } from '../../../extension/api';
-import { api, closeEverything, EXTENSION_ID, file, folder, setSetting, text, waitFor, writeText } from './helpers';
+import { api, closeEverything, EXTENSION_ID, file, folder, setSetting, text, waitFor, writeText, cliOutputs, removeOutputs } from './helpers';
 
 const NAME = 'co2.csv';
 const CO2 = { columns: { x: 'conc', y: 'uptake', per: 'plant' } };
@@ -27,24 +24,6 @@ const SETTINGS: readonly [string, string][] = [
   ['candidates', '3..15'],
 ];
 const WORKSPACE_OPTIONS = ['--resampling', 'leave-one-out', '--rule', 'least-error', '--df', '3..15'];
-
-/** Every file `knotwise fit co2.csv --x conc --y uptake --per plant <args>` writes beside a copy of the data, by name. */
-function cliFiles(args: readonly string[]): Map<string, string> {
-  const out = mkdtempSync(join(tmpdir(), 'knotwise-groups-'));
-  try {
-    copyFileSync(file(NAME).fsPath, join(out, NAME));
-    const ext = vscode.extensions.getExtension(EXTENSION_ID);
-    assert.ok(ext);
-    execFileSync(process.execPath, [join(ext.extensionPath, 'dist', 'cli.js'), 'fit', join(out, NAME), '--x', 'conc', '--y', 'uptake', '--per', 'plant', ...args, '--save', '--quiet']);
-    return new Map(
-      readdirSync(out)
-        .filter((f) => f !== NAME)
-        .map((f) => [f, readFileSync(join(out, f), 'utf8')]),
-    );
-  } finally {
-    rmSync(out, { recursive: true, force: true });
-  }
-}
 
 interface GroupRecord {
   readonly groups: readonly { readonly name: string; readonly df: number; readonly rowsUsed: number; readonly table: string }[];
@@ -65,12 +44,8 @@ function near(what: string, a: number | undefined, b: number, rel: number): void
   assert.ok(a !== undefined && Math.abs(a - b) <= rel * Math.max(1, Math.abs(b)), `${what}: ${a} against ${b}`);
 }
 
-/** Removes every output a grouped save of co2.csv may have left. */
-async function removeOutputs(): Promise<void> {
-  for (const [name] of await vscode.workspace.fs.readDirectory(folder())) {
-    if (name.startsWith('co2.') && name !== NAME) await vscode.workspace.fs.delete(file(name)).then(undefined, () => undefined);
-  }
-}
+/** Every file `knotwise fit` writes for the data file with `args`, by name. */
+const cliFiles = (args: readonly string[]): Map<string, string> => cliOutputs(NAME, ['--x', 'conc', '--y', 'uptake', '--per', 'plant', ...args]);
 
 describe('grouped runs in the extension host (datasets::CO2)', function () {
   let reference: Map<string, string>;
@@ -87,7 +62,7 @@ describe('grouped runs in the extension host (datasets::CO2)', function () {
 
   after(async function () {
     await closeEverything();
-    await removeOutputs();
+    await removeOutputs('co2', NAME);
     for (const [key] of SETTINGS) await setSetting(key, undefined);
   });
 
@@ -177,7 +152,7 @@ describe('grouped runs in the extension host (datasets::CO2)', function () {
   });
 
   it('saving a grouped panel writes every group’s outputs, byte for byte what the command line writes', async function () {
-    await removeOutputs();
+    await removeOutputs('co2', NAME);
     const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', file(NAME), { replaceForeignFiles: 'no' })) as SaveSummary;
     assert.equal(saved.status, 'done', saved.message);
     const names = (saved.files ?? []).map((u) => vscode.Uri.parse(u).path.split('/').pop());
@@ -228,7 +203,7 @@ describe('grouped runs in the extension host (datasets::CO2)', function () {
 
   it('knotwise.groups.sharedDf and knotwise.groups.longTable reach the run and the save: the bytes of --shared-df --long-table', async function () {
     await closeEverything();
-    await removeOutputs();
+    await removeOutputs('co2', NAME);
     try {
       await setSetting('resampling', 'folds:7');
       await setSetting('groups.sharedDf', true);

@@ -1,5 +1,9 @@
 /** Small helpers the extension-host suites share: the workspace's files, settings, the extension's API, waiting on conditions. */
 import assert from 'node:assert/strict';
+import { execFileSync } from 'node:child_process';
+import { copyFileSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import * as vscode from 'vscode';
 import type { KnotwiseApi } from '../../../extension/api';
 
@@ -55,5 +59,36 @@ export async function waitFor<T>(what: string, probe: () => T | undefined | Prom
     if (v !== undefined) return v;
     if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
     await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+/**
+ * What the command line writes for the same inputs: runs the extension's bundled
+ * `knotwise fit <data> <args> --save --quiet` on a copy of the workspace file `data` in a
+ * fresh folder (with copies of the workspace files `alongside`, e.g. the record a save
+ * replaces, when they exist) and returns every file in that folder but the data, by name.
+ */
+export function cliOutputs(data: string, args: readonly string[], alongside: readonly string[] = []): Map<string, string> {
+  const out = mkdtempSync(join(tmpdir(), 'knotwise-cli-'));
+  try {
+    copyFileSync(file(data).fsPath, join(out, data));
+    for (const name of alongside) if (existsSync(file(name).fsPath)) copyFileSync(file(name).fsPath, join(out, name));
+    const ext = vscode.extensions.getExtension(EXTENSION_ID);
+    assert.ok(ext);
+    execFileSync(process.execPath, [join(ext.extensionPath, 'dist', 'cli.js'), 'fit', join(out, data), ...args, '--save', '--quiet']);
+    return new Map(
+      readdirSync(out)
+        .filter((f) => f !== data)
+        .map((f) => [f, readFileSync(join(out, f), 'utf8')]),
+    );
+  } finally {
+    rmSync(out, { recursive: true, force: true });
+  }
+}
+
+/** Removes every file of the workspace folder named `<stem>.*` except the data file `keep`. */
+export async function removeOutputs(stem: string, keep: string): Promise<void> {
+  for (const [name] of await vscode.workspace.fs.readDirectory(folder())) {
+    if (name.startsWith(`${stem}.`) && name !== keep) await vscode.workspace.fs.delete(file(name)).then(undefined, () => undefined);
   }
 }

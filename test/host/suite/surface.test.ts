@@ -9,13 +9,10 @@
  * its surfaces are tested against R in test/reference/surface.test.ts.
  */
 import assert from 'node:assert/strict';
-import { execFileSync } from 'node:child_process';
-import { copyFileSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { readdirSync } from 'node:fs';
 import * as vscode from 'vscode';
 import type { RunSummary, SaveSummary } from '../../../extension/api';
-import { api, closeEverything, EXTENSION_ID, file, folder, setSetting, text, waitFor } from './helpers';
+import { api, closeEverything, EXTENSION_ID, file, folder, setSetting, text, waitFor, cliOutputs, removeOutputs } from './helpers';
 
 const NAME = 'trees.csv';
 const TREES = { columns: { x: 'Girth', x2: 'Height', y: 'Volume' } };
@@ -27,31 +24,6 @@ const SETTINGS: readonly [string, unknown][] = [
 ];
 const OPTIONS = ['--resampling', 'leave-one-out', '--rule', 'least-error', '--extrapolate'];
 
-/** Every file `knotwise fit trees.csv --x Girth --x2 Height --y Volume <args>` writes beside a copy of the data, by name. */
-function cliFiles(args: readonly string[]): Map<string, string> {
-  const out = mkdtempSync(join(tmpdir(), 'knotwise-surface-'));
-  try {
-    copyFileSync(file(NAME).fsPath, join(out, NAME));
-    const ext = vscode.extensions.getExtension(EXTENSION_ID);
-    assert.ok(ext);
-    execFileSync(process.execPath, [join(ext.extensionPath, 'dist', 'cli.js'), 'fit', join(out, NAME), '--x', 'Girth', '--x2', 'Height', '--y', 'Volume', ...args, '--save', '--quiet']);
-    return new Map(
-      readdirSync(out)
-        .filter((f) => f !== NAME)
-        .map((f) => [f, readFileSync(join(out, f), 'utf8')]),
-    );
-  } finally {
-    rmSync(out, { recursive: true, force: true });
-  }
-}
-
-/** Removes every output a save of trees.csv may have left. */
-async function removeOutputs(): Promise<void> {
-  for (const [name] of await vscode.workspace.fs.readDirectory(folder())) {
-    if (name.startsWith('trees.') && name !== NAME) await vscode.workspace.fs.delete(file(name)).then(undefined, () => undefined);
-  }
-}
-
 /** The df pair the command line's surface record names (its fit's df of each input). */
 function recordPair(files: Map<string, string>): { x: number; x2: number } {
   const record = files.get('trees.surface.fit.json');
@@ -59,6 +31,9 @@ function recordPair(files: Map<string, string>): { x: number; x2: number } {
   const df = (JSON.parse(record) as { fit: { df: { x: number; x2: number } } }).fit.df;
   return { x: df.x, x2: df.x2 };
 }
+
+/** Every file `knotwise fit` writes for the data file with `args`, by name. */
+const cliFiles = (args: readonly string[]): Map<string, string> => cliOutputs(NAME, ['--x', 'Girth', '--x2', 'Height', '--y', 'Volume', ...args]);
 
 describe('surfaces in the extension host (datasets::trees)', function () {
   let reference: Map<string, string>;
@@ -72,7 +47,7 @@ describe('surfaces in the extension host (datasets::trees)', function () {
 
   after(async function () {
     await closeEverything();
-    await removeOutputs();
+    await removeOutputs('trees', NAME);
     for (const [key] of SETTINGS) await setSetting(key, undefined);
   });
 
@@ -124,7 +99,7 @@ describe('surfaces in the extension host (datasets::trees)', function () {
   });
 
   it('"Save Curve Table" while the surface is shown writes byte for byte what the command line writes', async function () {
-    await removeOutputs();
+    await removeOutputs('trees', NAME);
     const uri = file(NAME);
     const before = await waitFor('the surface', () => api().surfaceState(uri));
     const saved = (await vscode.commands.executeCommand('knotwise.saveCurveTable', uri, { replaceForeignFiles: 'no' })) as SaveSummary;
@@ -141,7 +116,7 @@ describe('surfaces in the extension host (datasets::trees)', function () {
   });
 
   it("the panel's Save of a pair picked by hand writes what fit --df <x>x<x2> writes", async function () {
-    await removeOutputs();
+    await removeOutputs('trees', NAME);
     const uri = file(NAME);
     const s0 = await waitFor('the surface', () => api().surfaceState(uri));
     const pair = s0.view.pair.x === 3 && s0.view.pair.x2 === 2 ? { x: 2, x2: 3 } : { x: 3, x2: 2 };
