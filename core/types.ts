@@ -35,20 +35,11 @@ export interface Curve {
   varianceFactor(x: number): number;
 }
 
-/** Complete regression output of one curve fitted at one df. */
-export interface FitResult {
-  readonly kind: CurveKindId;
-  /** Effective degrees of freedom: trace of the hat matrix, intercept included. */
-  readonly df: number;
-  /** Rows used. */
-  readonly n: number;
-  /** n - df. */
-  readonly residualDf: number;
-  readonly curve: Curve;
-  /** Coefficients in the family's own basis (B-spline coefficients for splines). */
-  readonly coefficients: Float64Array;
-  /** Knot vector: boundary and interior knots in increasing order (empty for polynomials). */
-  readonly knots: Float64Array;
+/**
+ * The per-row arrays and summary statistics every least-squares fit reports, a curve's
+ * (FitResult) and a surface's (core/surface/fit.ts SurfaceFit) alike.
+ */
+export interface RegressionOutput {
   readonly fitted: Float64Array;
   readonly residuals: Float64Array;
   /** Hat-matrix diagonal. */
@@ -67,6 +58,22 @@ export interface FitResult {
   readonly looRmse: number;
   /** Generalised cross-validation score (rss/n) / (1 - df/n)^2. */
   readonly gcv: number;
+}
+
+/** Complete regression output of one curve fitted at one df. */
+export interface FitResult extends RegressionOutput {
+  readonly kind: CurveKindId;
+  /** Effective degrees of freedom: trace of the hat matrix, intercept included. */
+  readonly df: number;
+  /** Rows used. */
+  readonly n: number;
+  /** n - df. */
+  readonly residualDf: number;
+  readonly curve: Curve;
+  /** Coefficients in the family's own basis (B-spline coefficients for splines). */
+  readonly coefficients: Float64Array;
+  /** Knot vector: boundary and interior knots in increasing order (empty for polynomials). */
+  readonly knots: Float64Array;
   /**
    * Smoothing parameter in the units of x (smoothing spline only); Infinity for the straight
    * line (df 2), NaN when it is beyond double precision (it grows as the cube of the x

@@ -1,4 +1,5 @@
 import type { Bands } from '../fit/emptyBands';
+import type { RegressionOutput } from '../types';
 import { congruence, congruenceT, times, transposeTimes } from '../fit/linearFit';
 import { dataTotals, fitStatistics, rowStatistics } from '../fit/summary';
 import { factorSpd, type SpdFailure } from '../linalg/spd';
@@ -20,7 +21,7 @@ export interface SurfaceSpec {
 export type SurfaceBands = Omit<Bands, 'x'>;
 
 /** Complete regression output of one surface at one df pair (the counterpart of FitResult). */
-export interface SurfaceFit {
+export interface SurfaceFit extends RegressionOutput {
   readonly dfU: number;
   readonly dfV: number;
   /** dfU x dfV: the trace of the hat matrix, intercept included. */
@@ -37,25 +38,6 @@ export interface SurfaceFit {
   readonly rangeV: readonly [number, number];
   /** Coefficients of the tensor B-spline products B_a(u) B_b(v) at index a * sizeV + b. */
   readonly coefficients: Float64Array;
-  readonly fitted: Float64Array;
-  /** (y - mean) - (fitted - mean), so a small signal on a large offset keeps its digits. */
-  readonly residuals: Float64Array;
-  /** Hat-matrix diagonal. */
-  readonly leverage: Float64Array;
-  readonly cooksDistance: Float64Array;
-  /** Weighted residual sum of squares. */
-  readonly rss: number;
-  /** Residual SD sqrt(rss / (n - df)). */
-  readonly sigma: number;
-  readonly r2: number;
-  readonly logLik: number;
-  readonly aic: number;
-  readonly aicc: number;
-  readonly bic: number;
-  /** Exact leave-one-out RMSE from the hat diagonal. */
-  readonly looRmse: number;
-  /** (rss / n) / (1 - df / n)^2. */
-  readonly gcv: number;
   /** Condition number of the scaled Gram matrix. */
   readonly condition: number;
   readonly notes: readonly string[];
