@@ -20,7 +20,7 @@ import { shapeTable } from '../table/columns';
 import { curveTable, type CurveTable } from '../table/curveTable';
 import { curveTableCsv, formatNumber } from '../table/formatCsv';
 import { checkInRange } from '../table/grid';
-import { VERSION } from '../version';
+import { RESAMPLING_VERSION, VERSION } from '../version';
 import { formatResampling } from '../registry/resampling/index';
 import { formatRule } from '../registry/rules/index';
 import type { GroupAnalysis } from './analyse';
@@ -221,7 +221,7 @@ export function buildGroupDeliverables(input: GroupDeliverInput): GroupDeliverab
   const record = {
     format: GROUP_RECORD_FORMAT,
     version: GROUP_RECORD_VERSION,
-    tool: { name: 'knotwise', version: VERSION },
+    tool: { name: 'knotwise', version: VERSION, resampling: RESAMPLING_VERSION },
     data: {
       file: input.dataFile,
       path: input.dataPath,

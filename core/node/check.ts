@@ -15,7 +15,7 @@ import { defineCommand, formatHelp, parseCommand } from './args';
 import { fitCommand } from '../outputs/plan';
 import { shellWord } from '../outputs/shellWord';
 import { readRecordFile, type RecordFile } from '../outputs/recordPlan';
-import { VERSION } from '../version';
+import { RESAMPLING_CHANGES, RESAMPLING_VERSION, VERSION } from '../version';
 import { driftFromRecord } from '../calibrate/drift';
 import { recordSample } from '../calibrate/baseline';
 import { isGroupRecord, readGroupRecord, type GroupRecordRun } from '../outputs/groupRecordPlan';
@@ -222,6 +222,13 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
     const d = compareFile(name, readFileSync(path), f.text, f.kind === 'table' ? (f.text.split('\n')[0] as string).split(',') : undefined);
     if (d) messages.push(d);
   }
+  // Differences while the data is unchanged, from a record of another resampling version: the tool's doing.
+  const drawnBy = resamplingVersionOf(read.json);
+  if (messages.length && run.dataSha256 === read.dataSha256 && drawnBy !== RESAMPLING_VERSION) {
+    messages.unshift(
+      `the data is unchanged, but Knotwise's resampling changed since this record was written (resampling version ${drawnBy}, now ${RESAMPLING_VERSION}: ${RESAMPLING_CHANGES[RESAMPLING_VERSION] ?? 'see CHANGELOG.md'}), so its resampled errors differ: rerun the regenerate command to renew the outputs`,
+    );
+  }
   if (writtenBy !== VERSION) {
     if (messages.length) messages.push(`(the record was written by Knotwise ${JSON.stringify(writtenBy)}; this is ${VERSION})`);
     else if (versionOnly)
@@ -231,6 +238,13 @@ export async function checkRecord(recordPath: string): Promise<CheckResult> {
   }
   const status = messages.length ? 'changed' : 'current';
   return result({ record: recordPath, status, messages, notes, regenerate, writtenBy });
+}
+
+/** The resampling version a record names (tool.resampling); records written before it was recorded are version 1. */
+function resamplingVersionOf(json: unknown): number {
+  const tool = json !== null && typeof json === 'object' ? (json as { tool?: unknown }).tool : undefined;
+  const v = tool !== null && typeof tool === 'object' ? (tool as { resampling?: unknown }).resampling : undefined;
+  return typeof v === 'number' && Number.isInteger(v) && v >= 1 ? v : 1;
 }
 
 /** A record read for checking: its plan and provenance, and how to rebuild its outputs from the data. */

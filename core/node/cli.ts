@@ -46,6 +46,7 @@ import { writeOutputs } from './outputs';
 import { checkOutputFolder, checkOutputNames, terminalText } from './outputTargets';
 import { runPipeline, wholeReadMiB } from './pipeline';
 import { startWorkersEarly } from './pool';
+import { availableParallelism } from 'node:os';
 import { type Clock, ProgressLine, type ProgressStream } from './progress';
 import { DEFAULT_MEMORY_BUDGET, MEMORY_BUDGET_LIMITS, parseMemoryBudget } from '../stream/budget';
 
@@ -620,7 +621,8 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     // A file streamed in passes (above the memory budget) resamples on this thread.
     (bytes !== undefined || (wholeReadMiB(args.file) ?? 0) <= (plan.memoryBudget ?? DEFAULT_MEMORY_BUDGET))
   )
-    startWorkersEarly();
+    // This thread resamples too (runPipeline), so one worker fewer than cores.
+    startWorkersEarly(Math.max(1, availableParallelism() - 1));
   let run;
   try {
     run = await runPipeline(dataName, plan, args.out ?? (args.stdin ? '.' : dirname(args.file)), undefined, { bytes, progress });

@@ -117,7 +117,8 @@ export async function runPipeline(
   let analysis: Analysis | undefined;
   try {
     if (plan.tune) {
-      analysis = await analyse(selection.data, plan.options, workerRunner(), source.progress);
+      // The command line's thread resamples too instead of waiting for the workers (core/node/pool.ts).
+      analysis = await analyse(selection.data, plan.options, workerRunner(undefined, { mainThreadShare: true }), source.progress);
       fit = analysis.chosen;
     } else {
       const { outcome, shape, robust } = plan.options;

@@ -3,9 +3,11 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { CancelledError, isAllocationFailure } from '../errors';
-import type { ResampleProblem } from '../tune/engine';
+import { ResampleEngine, type ResampleProblem, sharedRows } from '../tune/engine';
 import { inlineRunner, type ResampleRunner } from '../tune/tune';
 import type { Progress } from '../tune/types';
+
+const EMPTY = new Float64Array(0);
 
 /** Below this many row-resamples the thread start-up costs more than it saves. */
 const INLINE_BELOW = 200_000;
@@ -22,20 +24,36 @@ function workerScript(): { file: string; execArgv: string[] } {
 }
 
 /**
- * Runs resamples in worker threads (one per core, at most `threads`), interleaving the
- * resample indices so workers finish together. Each resample's errors depend only on
- * (seed, resample index), so results are identical to the inline runner. Progress is
+ * Runs resamples in worker threads (one per core, at most `threads`), each taking the next
+ * resample index from a shared counter, so that all finish together. Each resample's errors
+ * depend only on (seed, resample index), so results are identical to the inline runner.
+ * With `mainThreadShare` this thread is one of the `threads` and resamples too, between
+ * its other events (the command line, whose thread would otherwise wait: one thread fewer
+ * to start and to hold in memory; the editor's host keeps its thread free). Progress is
  * reported per finished resample; when `progress.cancelled()` turns true the workers are
  * terminated and the promise rejects with CancelledError. Small problems run inline.
  */
-export function workerRunner(threads = availableParallelism()): ResampleRunner {
+export function workerRunner(threads = availableParallelism(), options: { readonly mainThreadShare?: boolean } = {}): ResampleRunner {
   return {
     async run(problem: ResampleProblem, count: number, progress?: Progress): Promise<Float64Array[]> {
-      const workers = Math.max(1, Math.min(threads, count));
-      if (workers === 1 || problem.x.length * count < INLINE_BELOW) return inlineRunner.run(problem, count, progress);
+      const engines = Math.max(1, Math.min(threads, count));
+      if (engines === 1 || problem.x.length * count < INLINE_BELOW) return inlineRunner.run(problem, count, progress);
+      const onMain = options.mainThreadShare === true;
       const { file, execArgv } = workerScript();
-      // The rows once in shared memory, so every worker reads the same bytes instead of a copy of its own.
-      const shared: ResampleProblem = { ...problem, x: toShared(problem.x), y: toShared(problem.y), w: problem.w && toShared(problem.w), order: toShared(problem.order) };
+      // The rows once in shared memory, so every worker reads the same bytes instead of a copy of its own;
+      // the power-sum path's rows grouped by cell are prepared here once for all of them.
+      const rows = problem.rows ?? sharedRows(problem);
+      const shared: ResampleProblem = {
+        ...problem,
+        // With the prepared rows the workers read neither x nor y.
+        x: rows ? EMPTY : toShared(problem.x),
+        y: rows ? EMPTY : toShared(problem.y),
+        w: problem.w && toShared(problem.w),
+        order: toShared(problem.order),
+        rows,
+      };
+      // The next resample index to take, shared by every thread that resamples.
+      const next = new Int32Array(new SharedArrayBuffer(4));
       const results: Float64Array[] = new Array(count);
       let done = 0;
       const pool: Worker[] = [];
@@ -49,29 +67,48 @@ export function workerRunner(threads = availableParallelism()): ResampleRunner {
           if (err) reject(err);
           else resolve(results);
         };
+        const finished = (r: number, errors: Float64Array): void => {
+          results[r] = errors;
+          done++;
+          progress?.report(done, count, `resample ${done} of ${count}`);
+          if (done === count) finish();
+        };
         const timer = setInterval(() => {
           if (progress?.cancelled()) finish(new CancelledError());
         }, CANCEL_POLL_MS);
-        for (let k = 0; k < workers; k++) {
-          const indices: number[] = [];
-          for (let r = k; r < count; r += workers) indices.push(r);
+        for (let k = onMain ? 1 : 0; k < engines; k++) {
           const worker = takeStarted() ?? new Worker(file, { execArgv });
           worker.ref();
-          worker.postMessage({ problem: shared, indices });
+          worker.postMessage({ problem: shared, next, count });
           pool.push(worker);
           worker.on('message', (m: { type: string; r?: number; errors?: Float64Array; message?: string }) => {
-            if (m.type === 'resample') {
-              results[m.r as number] = m.errors as Float64Array;
-              done++;
-              progress?.report(done, count, `resample ${done} of ${count}`);
-              if (done === count) finish();
-            } else if (m.type === 'error') {
+            if (m.type === 'resample') finished(m.r as number, m.errors as Float64Array);
+            else if (m.type === 'error') {
               // Memory a worker could not get is the same condition as on the main thread (the pipeline says how many rows).
               const text = m.message ?? '';
               finish(isAllocationFailure(new RangeError(text)) ? new RangeError(text) : new Error(`resampling worker failed: ${text}`));
             }
           });
           worker.on('error', (e) => finish(e));
+        }
+        if (onMain) {
+          // One resample at a time, then the events (workers' results, cancellation) get their turn.
+          const engine = new ResampleEngine(shared);
+          const step = (): void => {
+            if (settled) return;
+            const r = Atomics.add(next, 0, 1);
+            if (r >= count) return;
+            try {
+              const errors = new Float64Array(engine.outputLength);
+              engine.run(r, errors);
+              finished(r, errors);
+            } catch (e) {
+              finish(e as Error);
+              return;
+            }
+            setImmediate(step);
+          };
+          setImmediate(step);
         }
       });
     },

@@ -1,20 +1,19 @@
 /**
  * Worker-thread entry: builds a ResampleEngine from the posted problem and evaluates the
- * resample indices it is given, posting each resample's errors as soon as it is done. The
+ * resample indices it is given or takes from a shared counter, posting each resample's errors as soon as it is done. The
  * job is the worker's start data, or its first message when it was started ahead of it.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { ResampleEngine, type ResampleProblem } from '../tune/engine';
 
-interface Job {
-  readonly problem: ResampleProblem;
-  readonly indices: readonly number[];
-}
+/** A job: the resamples listed in `indices`, or those taken one by one from the shared counter `next` while below `count`. */
+type Job = { readonly problem: ResampleProblem } & ({ readonly indices: readonly number[] } | { readonly next: Int32Array; readonly count: number });
 
 function work(job: Job): void {
   try {
     const engine = new ResampleEngine(job.problem);
-    for (const r of job.indices) {
+    const take = 'indices' in job ? listed(job.indices) : shared(job.next, job.count);
+    for (let r = take(); r >= 0; r = take()) {
       const errors = new Float64Array(engine.outputLength);
       engine.run(r, errors);
       parentPort?.postMessage({ type: 'resample', r, errors }, [errors.buffer]);
@@ -23,6 +22,18 @@ function work(job: Job): void {
   } catch (e) {
     parentPort?.postMessage({ type: 'error', message: (e as Error).message });
   }
+}
+
+function listed(indices: readonly number[]): () => number {
+  let k = 0;
+  return () => (k < indices.length ? (indices[k++] as number) : -1);
+}
+
+function shared(next: Int32Array, count: number): () => number {
+  return () => {
+    const r = Atomics.add(next, 0, 1);
+    return r < count ? r : -1;
+  };
 }
 
 // The job comes with the worker's start, or later as messages: a worker started early takes

@@ -4,7 +4,7 @@ import { DEFAULT_OUTPUT, fitCommand, type FitPlan } from './plan';
 import type { TableColumn } from '../table/curveTable';
 import type { GridSpec } from '../table/grid';
 import type { FitResult } from '../types';
-import { VERSION } from '../version';
+import { RESAMPLING_VERSION, VERSION } from '../version';
 import { CAUTION } from '../words/caution';
 
 export { CAUTION };
@@ -167,7 +167,7 @@ export function fitRecord(input: RecordInput): Record<string, unknown> {
   return {
     format: RECORD_FORMAT,
     version: RECORD_VERSION,
-    tool: { name: 'knotwise', version: VERSION },
+    tool: { name: 'knotwise', version: VERSION, resampling: RESAMPLING_VERSION },
     data: {
       file: input.dataFile,
       path: dataPath,

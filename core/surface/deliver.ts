@@ -12,7 +12,7 @@ import { formatResampling } from '../registry/resampling/index';
 import { standaloneSvg } from '../report/figureStyle';
 import { formatNumber } from '../table/formatCsv';
 import { formatGrid } from '../table/grid';
-import { VERSION } from '../version';
+import { RESAMPLING_VERSION, VERSION } from '../version';
 import { SURFACE_CAUTION } from '../words/caution';
 import { sig } from '../words/numbers';
 import { coverageOf } from './coverage';
@@ -158,7 +158,7 @@ export function buildSurfaceDeliverables(input: SurfaceDeliverInput): SurfaceDel
   const record = {
     format: SURFACE_RECORD_FORMAT,
     version: SURFACE_RECORD_VERSION,
-    tool: { name: 'knotwise', version: VERSION },
+    tool: { name: 'knotwise', version: VERSION, resampling: RESAMPLING_VERSION },
     data: {
       file: input.dataFile,
       path: input.dataPath,

@@ -3,7 +3,8 @@ import { knownOrder } from '../stats/orderByX';
 import { weightedMean } from '../stats/weightedMean';
 import type { OutcomeFamily } from '../fit/glm';
 import { isPlainModel } from '../fit/model';
-import { accumulateByLabel, accumulateRow, type Cells, interleaveCubics, SUMS_PER_CELL } from '../fit/powerSums/cells';
+import { accumulateByLabel, accumulateRow, type Cells, SUMS_PER_CELL } from '../fit/powerSums/cells';
+import { absoluteErrors, type CellLayout, heldOutByLabel, heldOutRows, heldOutWhere, type HeldOutRows, layoutByCell, sumsByLabel, sumsFromCounts } from '../fit/powerSums/layout';
 import type { SplineFromSums } from '../fit/powerSums/splineSums';
 import { curveKind, resolveModel, type Trainer, type TrainerSet } from '../registry/curves/index';
 import { resamplingScheme, type DrawState } from '../registry/resampling/index';
@@ -29,6 +30,34 @@ export interface ResampleProblem {
   readonly model?: ModelOptions | undefined;
   /** Only the squared error is wanted: the natural spline's resamples leave MAE and the largest error out (NaN). */
   readonly squaredOnly?: boolean | undefined;
+  /** Each candidate's knots from its fit to all rows, for kinds whose resamples need them (CurveKind.resampleKnots). */
+  readonly knots?: readonly Float64Array[] | undefined;
+  /** The power-sum path's rows, prepared once for every engine of a run (sharedRows); absent: each engine prepares them. With them, x and y may be left empty (the worker runner posts them so). */
+  readonly rows?: PowerSumRows | undefined;
+}
+
+/**
+ * What every engine of a natural-spline run prepares the same way, prepared once: y centred
+ * and scaled, the cells of all candidates' knots and the rows grouped by cell. The worker
+ * runner builds it on the main thread in shared memory, so that its workers neither repeat
+ * the work nor hold a copy each.
+ */
+export interface PowerSumRows {
+  readonly ymean: number;
+  readonly yscale: number;
+  readonly breaks: Float64Array;
+  /** Each candidate's knots, in the order of ResampleProblem.dfs. */
+  readonly knots: readonly Float64Array[];
+  readonly layout: CellLayout;
+}
+
+/**
+ * The power-sum rows of a problem in shared memory (the natural spline with plain least
+ * squares), or undefined for the kinds and models that refit on weighted rows. Example:
+ * const rows = sharedRows(problem); workers then get { ...problem, rows }.
+ */
+export function sharedRows(problem: ResampleProblem): PowerSumRows | undefined {
+  return new ResampleEngine(problem, true).rows;
 }
 
 /**
@@ -49,7 +78,17 @@ const EMPTY = new Float64Array(0);
  */
 export class ResampleEngine {
   private readonly n: number;
-  private readonly yc: Float64Array;
+  /** y centred and scaled, by row (made at first use: the power-sum path reads its layout instead). */
+  private ycRows: Float64Array | undefined;
+  private get yc(): Float64Array {
+    if (!this.ycRows) {
+      const { y } = this.problem;
+      const yc = new Float64Array(this.n);
+      for (let i = 0; i < this.n; i++) yc[i] = ((y[i] as number) - this.ymean) / this.yscale;
+      this.ycRows = yc;
+    }
+    return this.ycRows;
+  }
   private readonly ymean: number;
   private readonly yscale: number;
   private readonly cells: Cells | undefined;
@@ -57,71 +96,134 @@ export class ResampleEngine {
   /** Natural-spline candidates fitted from power sums (the fast path), parallel to trainers. */
   private readonly models: SplineFromSums[] | undefined;
   private readonly weights: Float64Array;
-  private readonly testIdx: Int32Array;
+  /** Held-out row indices as the schemes that list them write them (allocated at first use: the bootstrap's power-sum path lists none). */
+  private testRows: Int32Array | undefined;
+  private get testIdx(): Int32Array {
+    return (this.testRows ??= new Int32Array(this.n));
+  }
   private readonly sums: Float64Array | undefined;
   private readonly testSums: Float64Array | undefined;
   /** What the resampling scheme fills for each resample (core/registry/resampling/). */
   private readonly drawState: DrawState;
+  /** The hot path: the rows grouped by cell, and each resample's held-out rows in that order. */
+  private readonly layout: CellLayout | undefined;
+  private held: HeldOutRows | undefined;
+  /** The hot path: every label's held-out rows of the labelling named `key` (heldOutByLabel). */
+  private labelled: { key: number; rows: HeldOutRows[] } | undefined;
+  /** The hot path's held-out rows of the bootstrap (fromCounts); `held` is them or one label's. */
+  private readonly drawn: HeldOutRows | undefined;
+  /** The hot path: set when the scheme filled the sums and the held-out rows from the rows' multiplicities. */
+  private heldFilled = false;
+  /** The hot path: 1 for the rows in testIdx, when the scheme gave the held-out rows that way. */
+  private heldMask: Uint8Array | undefined;
 
-  constructor(private readonly problem: ResampleProblem) {
+  /** The power-sum path's prepared rows (given with the problem, or prepared here). */
+  readonly rows: PowerSumRows | undefined;
+
+  /** `shareRows`: the power-sum rows go into shared memory (sharedRows). */
+  constructor(
+    private readonly problem: ResampleProblem,
+    shareRows = false,
+  ) {
     const { x, y, w } = problem;
-    // The order came with the problem: preparing the rows below need not sort them again.
-    knownOrder(x, problem.order);
-    const n = x.length;
+    const given = isPlainModel(problem.model) ? problem.rows : undefined;
+    const n = given ? given.layout.perm.length : x.length;
     this.n = n;
-    const { mean, weight: sw } = weightedMean(y, w);
-    this.ymean = mean;
-    let ss = 0;
-    for (let i = 0; i < n; i++) ss += (w ? (w[i] as number) : 1) * ((y[i] as number) - this.ymean) ** 2;
-    this.yscale = Math.sqrt(ss / sw) || 1;
-    this.yc = new Float64Array(n);
-    for (let i = 0; i < n; i++) this.yc[i] = ((y[i] as number) - this.ymean) / this.yscale;
-    this.testIdx = new Int32Array(n);
-    const built = this.buildTrainers();
+    if (given) {
+      // Prepared once for the run: the engine keeps no per-row copy of its own.
+      this.ymean = given.ymean;
+      this.yscale = given.yscale;
+    } else {
+      // The order came with the problem: preparing the rows below need not sort them again.
+      knownOrder(x, problem.order);
+      const { mean, weight: sw } = weightedMean(y, w);
+      this.ymean = mean;
+      let ss = 0;
+      for (let i = 0; i < n; i++) ss += (w ? (w[i] as number) : 1) * ((y[i] as number) - this.ymean) ** 2;
+      this.yscale = Math.sqrt(ss / sw) || 1;
+    }
+    const built = this.buildTrainers(given);
     this.trainers = built.trainers;
     this.cells = built.cells;
     this.models = built.models;
     // The power-sum trainers read the sums only: no per-row training weights to fill.
     this.weights = this.models ? EMPTY : new Float64Array(n);
     const cellCount = this.cells ? this.cells.breaks.length - 1 : 0;
-    if (this.models) {
+    if (this.models && this.cells) {
       const C = this.models.length;
       this.trained = new Uint8Array(C);
       this.sae = new Float64Array(C);
       this.maxAbs = new Float64Array(C);
-      this.polys = new Float64Array(cellCount * C * 4);
+      this.layout = given?.layout ?? layoutByCell(this.cells, { y, mean: this.ymean, scale: this.yscale }, w, shareRows);
+      this.held = this.drawn = heldOutRows(cellCount, w !== undefined);
+      this.rows = given ?? { ymean: this.ymean, yscale: this.yscale, breaks: this.cells.breaks, knots: built.knots ?? [], layout: this.layout };
     }
     this.sums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
     this.testSums = this.cells ? new Float64Array(cellCount * SUMS_PER_CELL) : undefined;
     const cells = this.cells;
-    const yc = this.yc;
+    const { layout, drawn } = this;
+    // eslint-disable-next-line @typescript-eslint/no-this-alias -- the draw state's getter reads the engine's lazily allocated rows.
+    const engine = this;
     this.drawState = {
       n,
       seed: problem.seed,
       order: problem.order,
       w,
       weights: this.models ? undefined : this.weights,
-      testIdx: this.testIdx,
+      get testIdx() {
+        return engine.testIdx;
+      },
       powerSums:
         cells && this.sums && this.testSums
           ? {
               train: this.sums,
               test: this.testSums,
-              add: (target, i, wi) => accumulateRow(target, cells.cell[i] as number, cells.t[i] as number, yc[i] as number, wi),
-              addByLabel: (labels, out) => accumulateByLabel(cells, yc, w, labels, out, (this.sums as Float64Array).length),
+              ...(layout
+                ? { addByLabel: (labels: Uint16Array, out: Float64Array) => sumsByLabel(layout, labels, out, (this.sums as Float64Array).length) }
+                : {
+                    add: (target: Float64Array, i: number, wi: number) => accumulateRow(target, cells.cell[i] as number, cells.t[i] as number, this.yc[i] as number, wi),
+                    addByLabel: (labels: Uint16Array, out: Float64Array) => accumulateByLabel(cells, this.yc, w, labels, out, (this.sums as Float64Array).length),
+                  }),
+              ...(layout && drawn
+                ? {
+                    fromCounts: (counts: Uint32Array) => {
+                      this.heldFilled = true;
+                      this.held = drawn;
+                      return sumsFromCounts(layout, counts, this.sums as Float64Array, this.testSums as Float64Array, drawn);
+                    },
+                    heldOutByLabel: (labels: Uint16Array, labelCount: number, key: number, label: number) => {
+                      if (this.labelled?.key !== key) this.labelled = { key, rows: heldOutByLabel(layout, labels, labelCount, w) };
+                      const rows = this.labelled.rows[label] as HeldOutRows;
+                      this.heldFilled = true;
+                      this.held = rows;
+                      return rows.count;
+                    },
+                  }
+                : {}),
             }
           : undefined,
       scratch: {},
     };
   }
 
-  private buildTrainers(): TrainerSet {
+  private buildTrainers(given: PowerSumRows | undefined): TrainerSet {
     const { x, kind, dfs } = this.problem;
     const plain = isPlainModel(this.problem.model);
+    const w = this.problem.w;
+    // eslint-disable-next-line @typescript-eslint/no-this-alias -- the getters below read the engine's rows when a kind asks for them.
+    const engine = this;
+    let prepared: ReturnType<typeof prepareData> | undefined;
     return curveKind(kind).trainers({
-      prepared: prepareData({ x, y: this.yc, w: this.problem.w }),
+      // Prepared when a kind reads it (the power-sum path with knots does not).
+      get prepared() {
+        return (prepared ??= prepareData({ x, y: engine.yc, w }));
+      },
+      get yc() {
+        return engine.yc;
+      },
+      knots: this.problem.knots,
+      sumCells: given && { breaks: given.breaks, knots: given.knots },
       x,
-      yc: this.yc,
       y: this.problem.y,
       w: this.problem.w,
       dfs,
@@ -154,17 +256,28 @@ export class ResampleEngine {
     const spec = this.problem.resample;
     const scheme = resamplingScheme(spec);
     if (!scheme.draw) throw new Error(`resampling ${scheme.id} has no resamples`);
+    this.heldFilled = false;
     const nTest = scheme.draw(spec, r, this.drawState);
-    const { weights, testIdx } = this;
+    const { weights } = this;
     const w = this.problem.w;
     const C = this.trainers.length;
-    let wTest = 0;
-    for (let j = 0; j < nTest; j++) wTest += w ? (w[testIdx[j] as number] as number) : 1;
-    if (out.length > ERRORS_PER_CANDIDATE * this.trainers.length) out[ERRORS_PER_CANDIDATE * this.trainers.length] = wTest;
     const models = this.models;
-    if (models) {
+    const held = this.held;
+    let wTest = 0;
+    if (models && held && this.heldFilled) {
+      if (held === this.drawn && w) {
+        // The held-out rows' weight in row order, as the loop below adds it (the same bits).
+        const counts = this.drawState.scratch.counts as Uint32Array;
+        for (let i = 0; i < this.n; i++) if (counts[i] === 0) wTest += w[i] as number;
+      } else wTest = held.weight;
+    } else {
+      const testIdx = this.testIdx;
+      for (let j = 0; j < nTest; j++) wTest += w ? (w[testIdx[j] as number] as number) : 1;
+    }
+    if (out.length > ERRORS_PER_CANDIDATE * this.trainers.length) out[ERRORS_PER_CANDIDATE * this.trainers.length] = wTest;
+    if (models && held) {
       // The natural-spline hot path: every candidate's fit from the training sums, its squared
-      // error from the test sums, and the absolute errors of all candidates in one pass over the test rows.
+      // error from the test sums, and its absolute errors over the held-out rows cell by cell.
       const trained = this.trained;
       for (let k = 0; k < C; k++) trained[k] = nTest > 0 && (this.trainers[k] as Trainer).train(weights, this.sums) ? 1 : 0;
       const absolute = this.problem.squaredOnly !== true;
@@ -202,8 +315,6 @@ export class ResampleEngine {
   /** Per candidate: weighted sum of absolute test errors and the largest one (the hot path). */
   private readonly sae = new Float64Array(0);
   private readonly maxAbs = new Float64Array(0);
-  /** The cubics of every candidate, cell-major: polys[(cell * C + k) * 4 + p] (the hot path). */
-  private readonly polys = new Float64Array(0);
 
   private readonly acc = { sae: 0, sse: 0, maxAbs: 0 };
 
@@ -243,39 +354,28 @@ export class ResampleEngine {
   }
 
   /**
-   * Absolute errors on the test rows of every trained candidate, from the per-cell cubics,
-   * in one pass over the rows: each row is read once and its cell's cubics of all
-   * candidates lie side by side (the natural-spline hot path). Fills sae and maxAbs.
+   * Absolute errors of every trained candidate on the held-out rows, grouped by cell (the
+   * natural-spline hot path): the scheme gave them with the sums, or as testIdx, from which
+   * they are gathered here. Fills sae and maxAbs.
    */
   private absoluteErrorsFromCells(models: readonly SplineFromSums[], nTest: number): void {
-    const C = models.length;
-    const cells = this.cells as Cells;
-    const cellCount = cells.breaks.length - 1;
-    const { polys, trained, sae, maxAbs, testIdx, yc } = this;
-    // A candidate not fitted in this resample gets a zero cubic; its errors are not reported.
-    interleaveCubics(
-      models.map((m) => m.fitPoly),
-      cellCount,
-      polys,
-      trained,
-    );
-    sae.fill(0);
-    maxAbs.fill(0);
-    const cell = cells.cell;
-    const tt = cells.t;
-    const w = this.problem.w;
-    for (let j = 0; j < nTest; j++) {
-      const i = testIdx[j] as number;
-      const t = tt[i] as number;
-      const y = yc[i] as number;
-      const wi = w ? (w[i] as number) : 1;
-      let o = (cell[i] as number) * C * 4;
-      for (let k = 0; k < C; k++, o += 4) {
-        const f = (polys[o] as number) + t * ((polys[o + 1] as number) + t * ((polys[o + 2] as number) + t * (polys[o + 3] as number)));
-        const a = Math.abs(y - f);
-        sae[k] = (sae[k] as number) + wi * a;
-        if (a > (maxAbs[k] as number)) maxAbs[k] = a;
-      }
+    let held = this.held as HeldOutRows;
+    if (!this.heldFilled) {
+      held = this.held = this.drawn as HeldOutRows;
+      const mask = (this.heldMask ??= new Uint8Array(this.n));
+      mask.fill(0);
+      for (let j = 0; j < nTest; j++) mask[this.testIdx[j] as number] = 1;
+      heldOutWhere(this.layout as CellLayout, mask, held);
+    }
+    const { trained, sae, maxAbs } = this;
+    const result = this.pair;
+    for (let k = 0; k < models.length; k++) {
+      if (trained[k] === 0) continue;
+      absoluteErrors(held, (models[k] as SplineFromSums).fitPoly, result);
+      sae[k] = result[0] as number;
+      maxAbs[k] = result[1] as number;
     }
   }
+
+  private readonly pair = new Float64Array(2);
 }

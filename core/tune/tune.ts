@@ -130,6 +130,7 @@ export async function tuneCurve(
       kind,
       dfs: fitted,
       params: def.resampleParams?.(fitted.map((df) => fits.get(df) as FitResult)),
+      knots: plain ? def.resampleKnots?.(fitted.map((df) => fits.get(df) as FitResult)) : undefined,
       resample,
       seed,
       order: orderByX(prepared.data.x),

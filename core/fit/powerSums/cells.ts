@@ -12,7 +12,13 @@ export interface Cells {
   readonly t: Float64Array;
 }
 
-/** Builds the cells of the sorted, de-duplicated union of `knotSets` over the data x. O(n log C). */
+/**
+ * Builds the cells of the sorted, de-duplicated union of `knotSets` over the data x: row i
+ * lies in the cell c with breaks[c] <= x < breaks[c + 1] (the first cell takes x below it,
+ * the last x at or above its end). A table of evenly spaced buckets over the breaks gives
+ * each row a cell at most a step or two away, so a row costs a couple of comparisons
+ * instead of a binary search. O(n + cells).
+ */
 export function buildCells(x: Float64Array, knotSets: readonly Float64Array[]): Cells {
   const all: number[] = [];
   for (const k of knotSets) for (const v of k) all.push(v);
@@ -24,18 +30,27 @@ export function buildCells(x: Float64Array, knotSets: readonly Float64Array[]): 
   const n = x.length;
   const cell = new Int32Array(n);
   const t = new Float64Array(n);
+  const lo = breaks[0] as number;
+  const span = (breaks[cellCount] as number) - lo;
+  // Bucket b covers [lo + b span / M, lo + (b + 1) span / M); its entry is the cell of its left end.
+  const M = Math.max(1, 8 * cellCount);
+  const scale = span > 0 && Number.isFinite(M / span) ? M / span : 0;
+  const first = new Int32Array(M);
+  for (let b = 0, c = 0; b < M; b++) {
+    const edge = lo + b / scale;
+    while (c < cellCount - 1 && edge >= (breaks[c + 1] as number)) c++;
+    first[b] = c;
+  }
   for (let i = 0; i < n; i++) {
     const xi = x[i] as number;
-    let lo = 0;
-    let hi = cellCount;
-    while (hi - lo > 1) {
-      const mid = (lo + hi) >> 1;
-      if (xi < (breaks[mid] as number)) hi = mid;
-      else lo = mid;
-    }
-    const start = breaks[lo] as number;
-    const width = (breaks[lo + 1] as number) - start;
-    cell[i] = lo;
+    const b = Math.floor((xi - lo) * scale);
+    let c = first[b < 0 ? 0 : b >= M ? M - 1 : b] as number;
+    // The bucket's entry is within a step or two of the cell (rounding of b): step to it.
+    while (c > 0 && xi < (breaks[c] as number)) c--;
+    while (c < cellCount - 1 && xi >= (breaks[c + 1] as number)) c++;
+    const start = breaks[c] as number;
+    const width = (breaks[c + 1] as number) - start;
+    cell[i] = c;
     t[i] = (xi - start) / width;
   }
   return { breaks, cell, t };

@@ -48,24 +48,29 @@ export const naturalSpline: CurveKind = {
   fit: fitNaturalSpline,
   fitAll: fitNaturalSplineBatch,
   rowBasis,
+  resampleKnots: (fits) => fits.map((f) => f.knots),
   trainers(input) {
     if (input.model) return rowBasisModelTrainers(naturalSpline, input);
     // One pass of per-cell power sums per resample serves every candidate (docs/design.md, "Power sums").
-    const { prepared, x, dfs } = input;
-    const bases = dfs.map((df) => {
-      const k = naturalKnots(prepared.sortedX, prepared.distinct, df);
-      const basis = new ExtrapolatingBSplineBasis(k.lower, k.upper, k.interior);
-      return { df, basis, knots: Float64Array.of(k.lower, ...k.interior, k.upper) };
+    const { x, dfs, sumCells } = input;
+    const given = sumCells?.knots ?? input.knots;
+    const knots =
+      (given && [...given]) ??
+      dfs.map((df) => {
+        const k = naturalKnots(input.prepared.sortedX, input.prepared.distinct, df);
+        return Float64Array.of(k.lower, ...k.interior, k.upper);
+      });
+    // Cells built once for the run carry no rows: the engine reads its rows from their layout.
+    const cells = sumCells ? { breaks: sumCells.breaks, cell: new Int32Array(0), t: new Float64Array(0) } : buildCells(x, knots);
+    const models = dfs.map((df, k) => {
+      const kn = knots[k] as Float64Array;
+      const basis = new ExtrapolatingBSplineBasis(kn[0] as number, kn[kn.length - 1] as number, kn.subarray(1, kn.length - 1));
+      return new SplineFromSums(cells, basis, nullSpace(basis.naturalConstraint(), 2, basis.size), `natural spline with df ${df}`);
     });
-    const cells = buildCells(
-      x,
-      bases.map((b) => b.knots),
-    );
-    const models = bases.map(({ df, basis }) => new SplineFromSums(cells, basis, nullSpace(basis.naturalConstraint(), 2, basis.size), `natural spline with df ${df}`));
     const trainers = models.map((model) => ({
       train: (_w: Float64Array, sums: Float64Array | undefined) => model.fit(sums as Float64Array),
       predict: (i: number) => model.valueAt(cells.cell[i] as number, cells.t[i] as number),
     }));
-    return { trainers, cells, models };
+    return { trainers, cells, models, knots };
   },
 };

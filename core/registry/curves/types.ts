@@ -31,6 +31,8 @@ export interface TrainerInput {
   readonly x: Float64Array;
   /** y centred and scaled: (y - ymean) / yscale. */
   readonly yc: Float64Array;
+  /** Each candidate's knots from its fit to all rows (resampleKnots), when the kind gives them. */
+  readonly knots?: readonly Float64Array[] | undefined;
   /** y as read. */
   readonly y: Float64Array;
   readonly w: Float64Array | undefined;
@@ -42,13 +44,19 @@ export interface TrainerInput {
   readonly model: ResolvedModel | undefined;
   readonly ymean: number;
   readonly yscale: number;
+  /**
+   * The power-sum path's cells when they were built once for the run (core/tune/engine.ts
+   * sharedRows): their breaks and each candidate's knots. The cells then carry no rows.
+   */
+  readonly sumCells?: { readonly breaks: Float64Array; readonly knots: readonly Float64Array[] } | undefined;
 }
 
-/** The trainers of every candidate and, for the power-sum fast path, the cells and the models fitted from sums. */
+/** The trainers of every candidate and, for the power-sum fast path, the cells, the models fitted from sums and each candidate's knots. */
 export interface TrainerSet {
   readonly trainers: Trainer[];
   readonly cells?: Cells | undefined;
   readonly models?: SplineFromSums[] | undefined;
+  readonly knots?: Float64Array[] | undefined;
 }
 
 /** What a curve kind supports besides plain weighted least squares. */
@@ -81,6 +89,8 @@ export interface CurveKind {
   checkModel?(model: ResolvedModel, distinct: number): void;
   /** Per-candidate numbers the resample trainers need from the full fits (the smoothing spline's lambda for x scaled to [0, 1] over the tuning rows' range). */
   resampleParams?(fits: readonly FitResult[]): number[];
+  /** Each candidate's knots as its resample trainers need them, from the full fits (so they are not found again from the rows). */
+  resampleKnots?(fits: readonly FitResult[]): Float64Array[];
   /** Trainers that refit every candidate on a resample's weighted rows. */
   trainers(input: TrainerInput): TrainerSet;
 }

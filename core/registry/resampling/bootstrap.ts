@@ -45,6 +45,10 @@ export const bootstrap: ResamplingScheme<Bootstrap> = {
     const { n, w, weights, testIdx, powerSums } = state;
     const counts = (state.scratch.counts ??= new Uint32Array(n)) as Uint32Array;
     bootstrapCounts(n, state.seed, r, counts);
+    // The power-sum path's own pass over its rows grouped by cell (no training weights to fill there).
+    if (powerSums?.fromCounts && !weights) return powerSums.fromCounts(counts);
+    const add = powerSums?.add;
+    if (powerSums && !add) throw new Error('bootstrap: the power sums take neither multiplicities nor single rows');
     if (powerSums) {
       powerSums.train.fill(0);
       powerSums.test.fill(0);
@@ -55,7 +59,7 @@ export const bootstrap: ResamplingScheme<Bootstrap> = {
       const wi = w ? (w[i] as number) : 1;
       if (weights) weights[i] = c * wi;
       if (c === 0) testIdx[nTest++] = i;
-      if (powerSums) powerSums.add(c > 0 ? powerSums.train : powerSums.test, i, c > 0 ? c * wi : wi);
+      if (powerSums && add) add(c > 0 ? powerSums.train : powerSums.test, i, c > 0 ? c * wi : wi);
     }
     return nTest;
   },

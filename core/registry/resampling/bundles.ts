@@ -58,9 +58,13 @@ export const bundles: ResamplingScheme<Bundles> = {
         // Each bundle's power sums, rows in order: the streamed fit adds them up the same way.
         const size = powerSums.train.length;
         const sums = new Float64Array(B * size);
-        for (let i = 0; i < n; i++) {
-          const b = bundle[i] as number;
-          powerSums.add(sums.subarray(b * size, (b + 1) * size), i, w ? (w[i] as number) : 1);
+        if (powerSums.addByLabel) powerSums.addByLabel(Uint16Array.from(bundle), sums);
+        else {
+          const add = powerSums.add as NonNullable<typeof powerSums.add>;
+          for (let i = 0; i < n; i++) {
+            const b = bundle[i] as number;
+            add(sums.subarray(b * size, (b + 1) * size), i, w ? (w[i] as number) : 1);
+          }
         }
         scratch.sums = sums;
       }

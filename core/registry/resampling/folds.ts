@@ -54,7 +54,10 @@ function prepareRepeat(state: DrawState, folds: number, repeat: number): FoldScr
   const w = state.w;
   const views = Array.from({ length: folds }, (_, k) => fs.subarray(k * len, (k + 1) * len));
   if (ps.addByLabel) ps.addByLabel(s.labels, fs);
-  else for (let i = 0; i < state.n; i++) ps.add(views[s.labels[i] as number] as Float64Array, i, w ? (w[i] as number) : 1);
+  else {
+    const add = ps.add as NonNullable<typeof ps.add>;
+    for (let i = 0; i < state.n; i++) add(views[s.labels[i] as number] as Float64Array, i, w ? (w[i] as number) : 1);
+  }
   const total = fs.subarray(folds * len, (folds + 1) * len);
   for (const v of views) for (let j = 0; j < len; j++) total[j] = (total[j] as number) + (v[j] as number);
   return s;
@@ -86,12 +89,6 @@ export const folds: ResamplingScheme<Folds> = {
     const fold = r % s.folds;
     const { labels, foldSums } = prepareRepeat(state, s.folds, Math.floor(r / s.folds));
     const { n, w, weights, testIdx, powerSums } = state;
-    let nTest = 0;
-    for (let i = 0; i < n; i++) {
-      const inFold = labels[i] === fold;
-      if (weights) weights[i] = inFold ? 0 : w ? (w[i] as number) : 1;
-      if (inFold) testIdx[nTest++] = i;
-    }
     if (powerSums && foldSums) {
       // Training sums are the total minus the fold's own.
       const len = powerSums.train.length;
@@ -101,6 +98,14 @@ export const folds: ResamplingScheme<Folds> = {
         powerSums.test[j] = test;
         powerSums.train[j] = (foldSums[totalOff + j] as number) - test;
       }
+    }
+    // The power-sum path keeps every fold's rows of this repeat at once (no training weights to fill there).
+    if (powerSums?.heldOutByLabel && !weights) return powerSums.heldOutByLabel(labels, s.folds, Math.floor(r / s.folds), fold);
+    let nTest = 0;
+    for (let i = 0; i < n; i++) {
+      const inFold = labels[i] === fold;
+      if (weights) weights[i] = inFold ? 0 : w ? (w[i] as number) : 1;
+      if (inFold) testIdx[nTest++] = i;
     }
     return nTest;
   },

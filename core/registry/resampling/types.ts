@@ -38,10 +38,23 @@ export interface PowerSumAccess {
   readonly train: Float64Array;
   /** Test sums of this resample (filled by the scheme). */
   readonly test: Float64Array;
-  /** Adds row i with weight wi to `target`. */
-  add(target: Float64Array, i: number, wi: number): void;
-  /** Fills consecutive blocks of `out` (one per label, train.length entries each) with the rows of each label, weight w_i; the same sums as `add` row by row. */
+  /** Adds row i with weight wi to `target` (absent when the rows are kept grouped by cell: addByLabel then serves). */
+  add?(target: Float64Array, i: number, wi: number): void;
+  /** Fills consecutive blocks of `out` (one per label, train.length entries each) with the rows of each label, weight w_i; the same sums as `add` row by row. One of add and addByLabel is there. */
   addByLabel?(labels: Uint16Array, out: Float64Array): void;
+  /**
+   * Fills `train` with every row at its multiplicity counts[i] times its prior weight and
+   * `test` with the rows of multiplicity 0 (the bootstrap's draw), the same sums as `add`
+   * row by row, and keeps those rows as the held-out rows itself (testIdx is then left as
+   * it is). Returns their number.
+   */
+  fromCounts?(counts: Uint32Array): number;
+  /**
+   * Keeps the rows with labels[i] === label as the held-out rows itself (testIdx is then left
+   * as it is; `train` and `test` are the scheme's to fill). `key` names the labelling: while
+   * it stays the same, the labels must not change (k-fold: the repeat). Returns their number.
+   */
+  heldOutByLabel?(labels: Uint16Array, labelCount: number, key: number, label: number): number;
 }
 
 /** A resampling scheme. `S` is its spec type (a member of ResampleSpec). */

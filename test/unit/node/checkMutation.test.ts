@@ -15,7 +15,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { RandomStream } from '../../../core/tune/rng';
-import { VERSION } from '../../../core/version';
+import { RESAMPLING_VERSION, VERSION } from '../../../core/version';
 import { copyFixture, runCheckIn, runMain, type Run } from './runMain';
 
 /** Runs `knotwise check` in `cwd` with output captured. */
@@ -236,6 +236,29 @@ describe('knotwise check against changed files', () => {
     caught(await tampered((j2) => void (j2.tool.version = 'x; rm -rf')), 1, /tool\.version "x; rm -rf" is not a version of Knotwise/);
   });
 
+  it("a record of an earlier resampling version with the data unchanged: changed, saying that Knotwise's resampling changed, not the data", async function () {
+    this.timeout(60_000);
+    // As a record written before tool.resampling existed (version 1) whose resampled mean absolute error differs in its last digits.
+    const older = (j: RecordJson): void => {
+      delete j.tool.resampling;
+      const mae = j.selection.candidates[0].mae;
+      mae.mean = mae.mean * (1 + 4e-15);
+    };
+    caught(await tampered(older), 1, new RegExp(`the data is unchanged, but Knotwise's resampling changed since this record was written \\(resampling version 1, now ${RESAMPLING_VERSION}: `));
+    // The same record with the data changed too says that the data changed, not that the tool did.
+    const bytes = readFileSync(data);
+    writeFileSync(data, Buffer.concat([bytes, Buffer.from('30,99\n')]));
+    try {
+      const runs = await tampered(older);
+      caught(runs, 1, /data \.\.\/cars\.csv changed: SHA-256 was /);
+      for (const r of runs) assert.doesNotMatch(r.stdout, /resampling changed/);
+    } finally {
+      writeFileSync(data, bytes);
+    }
+    // The current version names itself, and a record of it that is as rebuilt is current.
+    assert.equal((JSON.parse(original) as RecordJson).tool.resampling, RESAMPLING_VERSION);
+  });
+
   it('white space, number spelling and key order are caught though every value is the same (records are compared byte for byte)', async function () {
     this.timeout(60_000);
     const same = /every value is as rebuilt; only the text differs, and records are compared byte for byte/;
@@ -273,7 +296,7 @@ describe('knotwise check against changed files', () => {
     );
     caught(
       await tampered((j) => {
-        j.tool = { version: j.tool.version as string, name: j.tool.name as string };
+        j.tool = { version: j.tool.version as string, resampling: j.tool.resampling as number, name: j.tool.name as string };
       }),
       1,
       same,

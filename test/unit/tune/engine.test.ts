@@ -28,7 +28,7 @@ import { fitSmoothingSpline, lambdaForDf, smoothingSplineAtLambda } from '../../
 import { prepareData } from '../../../core/fit/prepared';
 import { nullSpace } from '../../../core/linalg/nullSpace';
 import { startWorkersEarly, workerRunner } from '../../../core/node/pool';
-import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem } from '../../../core/tune/engine';
+import { ERRORS_PER_CANDIDATE, ResampleEngine, type ResampleProblem, sharedRows } from '../../../core/tune/engine';
 import { bootstrapCounts, foldLabels, resamplingScheme, type DrawState, type PowerSumAccess } from '../../../core/registry/resampling/index';
 import { accumulateByLabel, accumulateRow, buildCells, SUMS_PER_CELL } from '../../../core/fit/powerSums/cells';
 import { orderByX } from '../../../core/tune/plan';
@@ -446,6 +446,50 @@ describe('runners', () => {
       Array.from({ length: 10 }, (_, i) => i + 1),
     );
     assert.ok(progress.reports.every(([, t]) => t === 10));
+  });
+
+  it("workerRunner with this thread's share starts one worker fewer, and the two take every resample once with the results of inlineRunner (bootstrap and folds, weighted)", async function () {
+    this.timeout(120_000);
+    const w = Float64Array.from({ length: 30_000 }, (_, i) => 0.5 + ((i * 7) % 11) / 10);
+    for (const p of [bigProblem('natural-spline', [2, 4, 6, 9], 12, 5), { ...bigProblem('natural-spline', [3, 5, 8], 12, 6), w, resample: { kind: 'folds', folds: 4, repeats: 3 } as const }]) {
+      const progress = recorder();
+      const { created, result: shared } = await countingWorkers(() => workerRunner(2, { mainThreadShare: true }).run(p, 12, progress));
+      assert.equal(created.length, 1, 'one worker thread besides this one');
+      const inline = await inlineRunner.run(p, 12);
+      // Tolerance 0: each resample depends only on (seed, index), wherever it runs.
+      for (let r = 0; r < 12; r++) assert.deepEqual(Array.from(shared[r] as Float64Array), Array.from(inline[r] as Float64Array), `${p.resample.kind}: resample ${r}`);
+      assert.deepEqual(
+        progress.reports.map(([d]) => d),
+        Array.from({ length: 12 }, (_, i) => i + 1),
+      );
+    }
+  });
+
+  it('an engine given the rows prepared once in shared memory (sharedRows), without x and y, gives the results of one that prepares its own (bootstrap, folds, bundles; weighted or not)', () => {
+    const base = bigProblem('natural-spline', [2, 3, 5, 8, 12], 6, 21);
+    const w = Float64Array.from({ length: base.x.length }, (_, i) => 0.25 + ((i * 13) % 17) / 8);
+    const schemes: ResampleSpec[] = [
+      { kind: 'bootstrap', resamples: 6 },
+      { kind: 'folds', folds: 3, repeats: 2 },
+      { kind: 'bundles', resamples: 6 },
+    ];
+    for (const weights of [undefined, w])
+      for (const resample of schemes) {
+        const p: ResampleProblem = { ...base, w: weights, resample };
+        const rows = sharedRows(p);
+        assert.ok(rows && rows.layout.perm.buffer instanceof SharedArrayBuffer, 'the rows are in shared memory');
+        const own = new ResampleEngine(p);
+        const given = new ResampleEngine({ ...p, x: new Float64Array(0), y: new Float64Array(0), rows });
+        const a = new Float64Array(own.outputLength);
+        const b = new Float64Array(given.outputLength);
+        for (let r = 0; r < 6; r++) {
+          own.run(r, a);
+          given.run(r, b);
+          assert.deepEqual(Array.from(b), Array.from(a), `${resample.kind}${weights ? ', weighted' : ''}: resample ${r}`);
+        }
+      }
+    // Kinds that refit on weighted rows have no such rows.
+    assert.equal(sharedRows({ ...base, kind: 'polynomial', dfs: [2, 3] }), undefined);
   });
 
   it('workers started early take the next run, starting no others, with the same results as inline', async function () {
