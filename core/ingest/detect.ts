@@ -6,6 +6,7 @@
  */
 import Papa from 'papaparse';
 import { InputError } from '../errors';
+import { MAX_COLUMNS } from './header';
 import { CELL_EMPTY, CELL_MISSING, CELL_NUMBER, CELL_OVERFLOW, CELL_UNDERFLOW, CellParser } from './numberCell';
 import { unterminatedQuote } from './tableBuilder';
 import { CsvTokenizer } from './tokenizer';
@@ -161,9 +162,42 @@ export function detectLineEnding(text: string): LineEnding {
 
 const NEWLINE: Record<LineEnding, '\n' | '\r\n' | '\r'> = { lf: '\n', crlf: '\r\n', cr: '\r', none: '\n' };
 
-/** Records of the sample split with one delimiter (papaparse, RFC 4180 quoting). */
+/**
+ * The sample with every record cut after its first MAX_COLUMNS + 1 fields (double quotes
+ * toggle as in detectLineEnding): detection then splits out no more fields than a table
+ * Knotwise reads can have, plus one, so a wider table is still seen as wider (the reader
+ * refuses it with its line) without a string for each of its fields. The sample itself
+ * when no record is that wide. Cost O(sample length).
+ * Example: capFields('a,b,c\n', ',') === 'a,b,c\n'.
+ */
+export function capFields(sample: string, delimiter: Delimiter): string {
+  const d = delimiter.charCodeAt(0);
+  let quoted = false;
+  let fields = 1;
+  let parts: string[] | undefined;
+  let keepFrom = 0;
+  let skipping = false;
+  for (let i = 0; i < sample.length; i++) {
+    const c = sample.charCodeAt(i);
+    if (c === 34) quoted = !quoted;
+    else if (quoted) continue;
+    else if (c === 10 || c === 13) {
+      if (skipping) keepFrom = i;
+      skipping = false;
+      fields = 1;
+    } else if (c === d && !skipping && ++fields > MAX_COLUMNS + 1) {
+      (parts ??= []).push(sample.slice(keepFrom, i));
+      skipping = true;
+    }
+  }
+  if (!parts) return sample;
+  if (!skipping) parts.push(sample.slice(keepFrom));
+  return parts.join('');
+}
+
+/** Records of the sample split with one delimiter (papaparse, RFC 4180 quoting), each of at most MAX_COLUMNS + 1 fields (capFields). */
 function records(sample: string, delimiter: Delimiter, lineEnding: LineEnding, complete: boolean): string[][] {
-  const result = Papa.parse<string[]>(sample, {
+  const result = Papa.parse<string[]>(capFields(sample, delimiter), {
     delimiter,
     newline: NEWLINE[lineEnding],
     quoteChar: '"',

@@ -17,7 +17,8 @@ export interface Cells {
  * lies in the cell c with breaks[c] <= x < breaks[c + 1] (the first cell takes x below it,
  * the last x at or above its end). A table of evenly spaced buckets over the breaks gives
  * each row a cell at most a step or two away, so a row costs a couple of comparisons
- * instead of a binary search. O(n + cells).
+ * instead of a binary search. The cells last built over the same x with the same breaks are
+ * returned again (not copied; nobody changes them). O(n + cells).
  */
 export function buildCells(x: Float64Array, knotSets: readonly Float64Array[]): Cells {
   const all: number[] = [];
@@ -26,6 +27,9 @@ export function buildCells(x: Float64Array, knotSets: readonly Float64Array[]): 
   const uniq: number[] = [];
   for (const v of all) if (uniq.length === 0 || v > (uniq[uniq.length - 1] as number)) uniq.push(v);
   const breaks = Float64Array.from(uniq);
+  // The tuning's fits to all rows and its resamples ask for the same cells of the same rows: built once.
+  const known = built.get(x);
+  if (known && known.breaks.length === breaks.length && known.breaks.every((v, k) => Object.is(v, breaks[k]))) return known;
   const cellCount = breaks.length - 1;
   const n = x.length;
   const cell = new Int32Array(n);
@@ -53,8 +57,13 @@ export function buildCells(x: Float64Array, knotSets: readonly Float64Array[]): 
     cell[i] = c;
     t[i] = (xi - start) / width;
   }
-  return { breaks, cell, t };
+  const cells = { breaks, cell, t };
+  built.set(x, cells);
+  return cells;
 }
+
+/** The cells last built over each x (the rows' arrays are not changed once read). */
+const built = new WeakMap<Float64Array, Cells>();
 
 /** Number of sums kept per cell: w t^p (p = 0..6), w y t^p (p = 0..3), w y^2. */
 export const SUMS_PER_CELL = 12;

@@ -1,7 +1,8 @@
 import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { checkNotBinary, DETECT_CHARS, detectFormat, detectLineEnding, MAX_DETECT_CHARS, sampleLength } from '../../../core/ingest/detect';
+import { capFields, checkNotBinary, DETECT_CHARS, detectFormat, detectLineEnding, MAX_DETECT_CHARS, sampleLength } from '../../../core/ingest/detect';
+import { MAX_COLUMNS } from '../../../core/ingest/header';
 import { InputError } from '../../../core/errors';
 
 const FIXTURES = join(__dirname, '..', '..', 'fixtures', 'csv');
@@ -157,5 +158,30 @@ describe('detectFormat', () => {
       () => detectFormat('x\n1\n2\n', true, { file: 'one.csv' }),
       (e: unknown) => e instanceof InputError && /single column/.test(e.message) && e.place.line === 1 && e.place.file === 'one.csv',
     );
+  });
+});
+
+describe('capFields (detection splits no more fields than a readable table has, plus one)', () => {
+  const row = (count: number, name = 'c'): string => Array.from({ length: count }, (_, k) => `${name}${k}`).join(',');
+
+  it('leaves a sample whose records are all at most MAX_COLUMNS + 1 fields wide as it is (the same string)', () => {
+    const sample = `${row(MAX_COLUMNS + 1)}\n${row(3)}\r\n${row(MAX_COLUMNS)}\n`;
+    assert.equal(capFields(sample, ','), sample);
+  });
+
+  it('cuts each wider record after its field MAX_COLUMNS + 1 and keeps the line breaks and the records after it', () => {
+    const wide = row(MAX_COLUMNS + 500);
+    const got = capFields(`${wide}\r\n1,2\n${wide}`, ',');
+    assert.equal(got, `${row(MAX_COLUMNS + 1)}\r\n1,2\n${row(MAX_COLUMNS + 1)}`);
+    // Detection then sees a first record of MAX_COLUMNS + 1 fields, so the reader refuses the table as too wide.
+    assert.equal(detectFormat(`${wide}\n${wide}\n`, true).fieldCount, MAX_COLUMNS + 1);
+  });
+
+  it('does not count delimiters inside double quotes, nor other delimiters', () => {
+    const quoted = `"${','.repeat(MAX_COLUMNS + 5)}",b\n`;
+    assert.equal(capFields(quoted, ','), quoted);
+    const semicolons = `${row(MAX_COLUMNS + 5).replace(/,/g, ';')}\n`;
+    assert.equal(capFields(semicolons, ','), semicolons);
+    assert.equal(capFields(semicolons, ';').split(';').length, MAX_COLUMNS + 1);
   });
 });
