@@ -1,6 +1,6 @@
 import { InputError } from '../errors';
 import type { XYData } from '../types';
-import { orderByX } from '../stats/orderByX';
+import { xInOrder } from '../stats/orderByX';
 
 /** Largest magnitude accepted for y: squares and cross products of y must stay finite. */
 export const MAX_MAGNITUDE = 1e150;
@@ -45,10 +45,12 @@ export function prepareData(data: XYData): PreparedData {
   if (y.length !== n || (w && w.length !== n)) throw new InputError('x, y and weights must have the same length');
   if (n === 0) throw new InputError('no rows to fit');
   checkRowValues(data);
-  // The sorted values through the order the tuning and the checks share (+ 0 writes -0 as 0, equal anyway).
-  const order = orderByX(x);
-  const sortedX = new Float64Array(n);
-  for (let k = 0; k < n; k++) sortedX[k] = (x[order[k] as number] as number) + 0;
+  // The sorted values through the order the tuning and the checks share: the residual checks'
+  // copy (xInOrder) when it holds no -0, else one with -0 written as 0 (equal anyway).
+  const inOrder = xInOrder(x);
+  let negativeZero = false;
+  for (let k = 0; k < n && !negativeZero; k++) negativeZero = inOrder[k] === 0 && 1 / (inOrder[k] as number) < 0;
+  const sortedX = negativeZero ? inOrder.map((v) => v + 0) : inOrder;
   let distinct = 1;
   for (let i = 1; i < n; i++) if (sortedX[i] !== sortedX[i - 1]) distinct++;
   const spread = (sortedX[n - 1] as number) - (sortedX[0] as number);
