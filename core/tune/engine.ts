@@ -30,7 +30,7 @@ export interface ResampleProblem {
   readonly model?: ModelOptions | undefined;
   /** Only the squared error is wanted: the natural spline's resamples leave MAE and the largest error out (NaN). */
   readonly squaredOnly?: boolean | undefined;
-  /** Each candidate's knots from its fit to all rows, for kinds whose resamples need them (CurveKind.resampleKnots). */
+  /** Each candidate's knots, for kinds whose resamples need them (CurveKind.resampleKnots). */
   readonly knots?: readonly Float64Array[] | undefined;
   /** The power-sum path's rows, prepared once for every engine of a run (sharedRows); absent: each engine prepares them. With them, x and y may be left empty (the worker runner posts them so). */
   readonly rows?: PowerSumRows | undefined;

@@ -99,48 +99,61 @@ export async function tuneCurve(
   const fits = new Map<number, FitResult>();
   const skipped = new Map<number, string>();
   const modelSpec: ModelOptions = plain ? {} : { outcome: model.outcome, shape: model.shape, robust: model.robustK !== undefined ? { k: model.robustK } : undefined };
-  if (def.fitAll && plain) {
-    // The kind shares work across candidates (the natural spline's power sums).
-    for (const [df, r] of def.fitAll(prepared, dfs)) {
-      if (r instanceof FitError) skipped.set(df, r.message);
-      else fits.set(df, r);
-    }
-  } else {
-    for (const df of dfs) {
-      if (progress?.cancelled()) throw new CancelledError();
-      try {
-        fits.set(df, fitCurve(prepared, { kind, df, ...modelSpec }));
-      } catch (e) {
-        if (!(e instanceof FitError)) throw e;
-        skipped.set(df, e.message);
+  const count = scheme.count(resample);
+  const squaredOnly = options.squaredOnly && metric === 'rmse' ? { squaredOnly: true } : {};
+  const problemOf = (candidates: readonly number[], extra: Partial<ResampleProblem>): ResampleProblem => ({
+    x: prepared.data.x,
+    y: prepared.data.y,
+    w: prepared.data.w,
+    kind,
+    dfs: candidates,
+    resample,
+    seed,
+    order: orderByX(prepared.data.x),
+    ...(plain ? {} : { model: modelSpec }),
+    ...squaredOnly,
+    ...extra,
+  });
+  // A kind whose resamples need only each candidate's knots starts resampling now, while
+  // this thread fits every candidate to all rows (the workers would otherwise wait for it).
+  const early = plain && scheme.method === 'resamples' && def.resampleKnots ? startEarly(def.resampleKnots(prepared, dfs), problemOf, runner, count, progress) : undefined;
+  try {
+    if (def.fitAll && plain) {
+      // The kind shares work across candidates (the natural spline's power sums).
+      for (const [df, r] of def.fitAll(prepared, dfs)) {
+        if (r instanceof FitError) skipped.set(df, r.message);
+        else fits.set(df, r);
       }
-      progress?.report(0, 1, `fitted df ${df} to all rows`);
+    } else {
+      for (const df of dfs) {
+        if (progress?.cancelled()) throw new CancelledError();
+        try {
+          fits.set(df, fitCurve(prepared, { kind, df, ...modelSpec }));
+        } catch (e) {
+          if (!(e instanceof FitError)) throw e;
+          skipped.set(df, e.message);
+        }
+        progress?.report(0, 1, `fitted df ${df} to all rows`);
+      }
     }
+  } catch (e) {
+    early?.abandon();
+    throw e;
   }
   const fitted = dfs.filter((df) => fits.has(df));
   const errors = new Map<number, CandidateResult['errors']>();
   const notes: string[] = [];
-  const count = scheme.count(resample);
   let scored: number[] | undefined;
+  // No candidate could be fitted to all rows: nothing to wait for.
+  if (fitted.length === 0) early?.abandon();
   if (scheme.method === 'resamples' && fitted.length > 0) {
-    const problem: ResampleProblem = {
-      x: prepared.data.x,
-      y: prepared.data.y,
-      w: prepared.data.w,
-      kind,
-      dfs: fitted,
-      params: def.resampleParams?.(fitted.map((df) => fits.get(df) as FitResult)),
-      knots: plain ? def.resampleKnots?.(fitted.map((df) => fits.get(df) as FitResult)) : undefined,
-      resample,
-      seed,
-      order: orderByX(prepared.data.x),
-      ...(plain ? {} : { model: modelSpec }),
-      ...(options.squaredOnly && metric === 'rmse' ? { squaredOnly: true } : {}),
-    };
-    const perResample = await runner.run(problem, count, progress);
-    const C = fitted.length;
+    const problem = early?.problem ?? problemOf(fitted, { params: def.resampleParams?.(fitted.map((df) => fits.get(df) as FitResult)) });
+    const perResample = await (early?.results ?? runner.run(problem, count, progress));
+    // Columns of the candidates resampled (those started early may include one the all-row fit skipped).
+    const C = problem.dfs.length;
     scored = perResample.map((e) => (e.length > ERRORS_PER_CANDIDATE * C ? (e[ERRORS_PER_CANDIDATE * C] as number) : NaN));
-    fitted.forEach((df, k) => {
+    fitted.forEach((df) => {
+      const k = problem.dfs.indexOf(df);
       const pick = (offset: number): Float64Array => Float64Array.from(perResample, (e) => e[offset * C + k] as number);
       const rmse = summarise(pick(0));
       const failed = count - rmse.count;
@@ -166,6 +179,39 @@ export async function tuneCurve(
   for (const df of skipped.keys()) fits.delete(df);
   const selected = selectDf(candidates, rule, metric);
   return { result: { kind, resample, seed, metric, candidates, selected, notes, ...(scored ? { scored } : {}) }, fits };
+}
+
+/**
+ * Starts the resamples of the candidates whose knots can be placed (the others are left
+ * out, as the all-row fit will skip them), before the all-row fits. `abandon` stops them
+ * when the fits fail: the workers end at the next cancellation poll and the result is
+ * dropped. Returns undefined when no candidate has knots.
+ */
+function startEarly(
+  knots: Map<number, Float64Array | FitError>,
+  problemOf: (candidates: readonly number[], extra: Partial<ResampleProblem>) => ResampleProblem,
+  runner: ResampleRunner,
+  count: number,
+  progress: Progress | undefined,
+): { problem: ResampleProblem; results: Promise<Float64Array[]>; abandon(): void } | undefined {
+  const dfs = [...knots.keys()].filter((df) => !(knots.get(df) instanceof FitError));
+  if (dfs.length === 0) return undefined;
+  const problem = problemOf(dfs, { knots: dfs.map((df) => knots.get(df) as Float64Array) });
+  let abandoned = false;
+  const guarded: Progress = {
+    report: (done, total, message) => progress?.report(done, total, message),
+    cancelled: () => abandoned || progress?.cancelled() === true,
+  };
+  const results = runner.run(problem, count, guarded);
+  // Awaited after the fits; when they fail it is abandoned, and its rejection is no news.
+  results.catch(() => undefined);
+  return {
+    problem,
+    results,
+    abandon() {
+      abandoned = true;
+    },
+  };
 }
 
 function strip(s: ErrorSummary & { count: number }): ErrorSummary {

@@ -1,4 +1,5 @@
 import { ExtrapolatingBSplineBasis, naturalKnots } from '../../basis/naturalSpline';
+import { FitError } from '../../errors';
 import type { ModelBasis, ResolvedModel } from '../../fit/modelTypes';
 import { fitNaturalSpline } from '../../fit/naturalSpline';
 import { fitNaturalSplineBatch } from '../../fit/naturalSplineBatch';
@@ -48,7 +49,19 @@ export const naturalSpline: CurveKind = {
   fit: fitNaturalSpline,
   fitAll: fitNaturalSplineBatch,
   rowBasis,
-  resampleKnots: (fits) => fits.map((f) => f.knots),
+  resampleKnots(prepared, dfs) {
+    const out = new Map<number, Float64Array | FitError>();
+    for (const df of dfs) {
+      try {
+        const k = naturalKnots(prepared.sortedX, prepared.distinct, df);
+        out.set(df, Float64Array.of(k.lower, ...k.interior, k.upper));
+      } catch (e) {
+        if (!(e instanceof FitError)) throw e;
+        out.set(df, e);
+      }
+    }
+    return out;
+  },
   trainers(input) {
     if (input.model) return rowBasisModelTrainers(naturalSpline, input);
     // One pass of per-cell power sums per resample serves every candidate (docs/design.md, "Power sums").

@@ -31,7 +31,7 @@ export interface TrainerInput {
   readonly x: Float64Array;
   /** y centred and scaled: (y - ymean) / yscale. */
   readonly yc: Float64Array;
-  /** Each candidate's knots from its fit to all rows (resampleKnots), when the kind gives them. */
+  /** Each candidate's knots (CurveKind.resampleKnots), when the kind gives them. */
   readonly knots?: readonly Float64Array[] | undefined;
   /** y as read. */
   readonly y: Float64Array;
@@ -89,8 +89,12 @@ export interface CurveKind {
   checkModel?(model: ResolvedModel, distinct: number): void;
   /** Per-candidate numbers the resample trainers need from the full fits (the smoothing spline's lambda for x scaled to [0, 1] over the tuning rows' range). */
   resampleParams?(fits: readonly FitResult[]): number[];
-  /** Each candidate's knots as its resample trainers need them, from the full fits (so they are not found again from the rows). */
-  resampleKnots?(fits: readonly FitResult[]): Float64Array[];
+  /**
+   * Each candidate's knots as its plain resample trainers need them (the same the fit to
+   * all rows places), or the FitError that will skip the candidate: given, the resampling
+   * starts before those fits (core/tune/tune.ts) and need not place the knots again.
+   */
+  resampleKnots?(prepared: PreparedData, dfs: readonly number[]): Map<number, Float64Array | FitError>;
   /** Trainers that refit every candidate on a resample's weighted rows. */
   trainers(input: TrainerInput): TrainerSet;
 }

@@ -15,7 +15,7 @@ import { analyse, HOLDOUT_WARN_RATIO } from '../../../core/analysis/analysis';
 import { CancelledError, InputError } from '../../../core/errors';
 import { prepareData } from '../../../core/fit/prepared';
 import { holdoutMask, orderByX } from '../../../core/tune/plan';
-import { defaultCandidates, tuneCurve } from '../../../core/tune/tune';
+import { defaultCandidates, inlineRunner, tuneCurve } from '../../../core/tune/tune';
 import type { Progress } from '../../../core/tune/types';
 import type { XYData } from '../../../core/types';
 
@@ -117,6 +117,28 @@ describe('tuneCurve', () => {
     }
     assert.ok([2, 3, 4].includes(result.selected.df));
     assert.match(result.selected.reason, /2 candidates were skipped/);
+  });
+
+  it('tuneCurve resamples the natural spline while it fits all rows, with every candidate given the errors of a resampling started after the fits (cars, with a df that cannot be placed)', async () => {
+    // The early start leaves out df 25 (19 distinct speeds) and must give 2, 3 and 4 the same
+    // numbers as the engine alone over exactly the fitted candidates.
+    const prepared = prepareData(CARS);
+    const resample = { kind: 'folds', folds: 5, repeats: 2 } as const;
+    const { result } = await tuneCurve(prepared, { kind: 'natural-spline', candidates: [25, 2, 3, 4], resample, rule: { kind: 'one-se' }, seed: 8 });
+    const after = await inlineRunner.run({ x: CARS.x, y: CARS.y, kind: 'natural-spline', dfs: [2, 3, 4], resample, seed: 8, order: orderByX(CARS.x) }, 10);
+    [2, 3, 4].forEach((df, k) => {
+      const errors = result.candidates.find((c) => c.df === df)?.errors;
+      assert.deepEqual(
+        errors?.rmse?.values,
+        after.map((e) => e[k]),
+        `df ${df} RMSE`,
+      );
+      assert.deepEqual(
+        errors?.mae?.values,
+        after.map((e) => e[3 + k]),
+        `df ${df} MAE`,
+      );
+    });
   });
 
   it('tuneCurve skips, with the reason in words, a candidate that most bootstrap resamples cannot determine', async () => {
