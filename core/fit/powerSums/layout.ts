@@ -194,30 +194,8 @@ export function sumsFromCounts(layout: CellLayout, counts: Uint32Array, train: F
       }
     }
     const o = c * SUMS_PER_CELL;
-    train[o] = a0;
-    train[o + 1] = a1;
-    train[o + 2] = a2;
-    train[o + 3] = a3;
-    train[o + 4] = a4;
-    train[o + 5] = a5;
-    train[o + 6] = a6;
-    train[o + 7] = a7;
-    train[o + 8] = a8;
-    train[o + 9] = a9;
-    train[o + 10] = a10;
-    train[o + 11] = a11;
-    test[o] = b0;
-    test[o + 1] = b1;
-    test[o + 2] = b2;
-    test[o + 3] = b3;
-    test[o + 4] = b4;
-    test[o + 5] = b5;
-    test[o + 6] = b6;
-    test[o + 7] = b7;
-    test[o + 8] = b8;
-    test[o + 9] = b9;
-    test[o + 10] = b10;
-    test[o + 11] = b11;
+    train.set([a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11], o);
+    test.set([b0, b1, b2, b3, b4, b5, b6, b7, b8, b9, b10, b11], o);
   }
   out.start[cellCount] = j;
   out.count = j;
