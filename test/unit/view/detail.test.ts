@@ -15,6 +15,10 @@ import type { Cloud } from '../../../core/view/model';
 import type { FitSpec, XYData } from '../../../core/types';
 import { fitDetail, MAX_DOWNWEIGHTED_LISTED, MAX_INFLUENTIAL_LISTED, modelReportView } from '../../../core/view/detail';
 import { influentialRows } from '../../../core/stats/influence';
+import { qnorm } from '../../../core/stats/distributions';
+import { RandomStream } from '../../../core/tune/rng';
+import { normalQuantiles } from '../../../core/view/series';
+import { roundAll } from '../../../core/view/round';
 import { diagnose } from '../../../core/analysis/diagnose';
 
 const FIXTURES = join(__dirname, '..', '..', 'reference', 'fixtures');
@@ -199,5 +203,42 @@ describe('fitDetail', () => {
     assert.equal(detail.influentialShown, 10);
     // The largest studentized residual (row 897, line 899) comes first.
     assert.equal(detail.influential[0]?.line, 899);
+  });
+});
+
+describe('normalQuantiles (the panel figure)', () => {
+  /** The plot points from a sort of every finite value, as the figure took them before it used selection. */
+  function bySort(values: Float64Array, maxPoints: number): { theoretical: number[]; sample: number[] } {
+    const sorted = Float64Array.from(values)
+      .filter((v) => Number.isFinite(v))
+      .sort();
+    const n = sorted.length;
+    const a = n <= 10 ? 3 / 8 : 1 / 2;
+    const take = Math.min(n, Math.max(2, maxPoints));
+    const theoretical: number[] = [];
+    const sample: number[] = [];
+    for (let k = 0; k < take && n > 0; k++) {
+      const i = take === n ? k : Math.round((k * (n - 1)) / (take - 1));
+      theoretical.push(qnorm((i + 1 - a) / (n + 1 - 2 * a)));
+      sample.push(sorted[i] as number);
+    }
+    return { theoretical: roundAll(theoretical, 5), sample: roundAll(sample) };
+  }
+
+  it('gives the points a sort of every value gives, with ties, non-finite values and fewer values than points (seeded data)', () => {
+    const rng = new RandomStream(41, 0);
+    for (const [n, maxPoints] of [
+      [50_000, 300],
+      [2_001, 2_000],
+      [700, 300],
+      [120, 300],
+      [9, 300],
+      [1, 300],
+    ] as const) {
+      // Rounded to a coarse grid so that many values tie, with a few non-finite ones mixed in.
+      const values = Float64Array.from({ length: n }, (_, i) => (i % 97 === 5 ? (i % 2 ? NaN : Infinity) : Math.round((rng.int(2001) - 1000) / 7) / 10));
+      // Compared as the panel receives them, in JSON: a -0 and a 0 that tie are one point of the figure.
+      assert.deepEqual(JSON.parse(JSON.stringify(normalQuantiles(values, maxPoints))), JSON.parse(JSON.stringify(bySort(values, maxPoints))), `n = ${n}, ${maxPoints} points`);
+    }
   });
 });
