@@ -77,8 +77,13 @@ export function isNotFound(err: unknown): boolean {
   return err instanceof vscode.FileSystemError && err.code === 'FileNotFound';
 }
 
-/** The data as it is now: an open document's unsaved text, else the bytes on disk (throws FileSystemError when missing). */
-export async function readData(uri: vscode.Uri): Promise<DataText> {
+/**
+ * The data as it is now: an open document's unsaved text, else the bytes on disk (throws
+ * FileSystemError when missing). With `known` (data read before), bytes on disk with its
+ * SHA-256 are not decoded again: the same bytes give the same text, and a large file's
+ * second text would cost the time to decode it and as much memory again.
+ */
+export async function readData(uri: vscode.Uri, known?: Pick<DataText, 'text' | 'sha256'>): Promise<DataText> {
   const doc = openDocument(uri);
   if (doc?.isDirty) {
     const text = doc.getText();
@@ -86,10 +91,12 @@ export async function readData(uri: vscode.Uri): Promise<DataText> {
     return { text, sha256: sha256(bytes), unsaved: true, size: bytes.length };
   }
   const bytes = await vscode.workspace.fs.readFile(uri);
+  const hash = sha256(bytes);
+  if (known && known.sha256 === hash) return { text: known.text, sha256: hash, unsaved: false, size: bytes.length };
   // Decoded as the command line decodes files (UTF-8, or UTF-16 by its byte order mark); a
   // UTF-8 mark stays in the text, the reader removes it itself.
   const text = decodeCsvBytes(bytes, uri.path.split('/').pop());
-  return { text, sha256: sha256(bytes), unsaved: false, size: bytes.length };
+  return { text, sha256: hash, unsaved: false, size: bytes.length };
 }
 
 /** SHA-256 of the file's bytes on disk, or undefined when there is no file. */

@@ -598,7 +598,7 @@ export class DataSession implements vscode.Disposable {
   private async changeSince(r: RunResult): Promise<{ change: DataChangeView | undefined; now: DataText | undefined }> {
     let now: DataText;
     try {
-      now = await readData(this.uri);
+      now = await readData(this.uri, r.source);
     } catch (err) {
       if (isNotFound(err)) return { change: { where: 'missing', added: 0, removed: 0, changed: 0, header: false }, now: undefined };
       // Unreadable for a moment (a program is writing it): what was known stands.

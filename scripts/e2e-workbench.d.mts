@@ -16,9 +16,12 @@ export interface LaunchedChromium {
 }
 export declare function launchChromium(options?: { viewport?: { width: number; height: number } }): Promise<LaunchedChromium>;
 export declare function freePort(): Promise<number>;
+export declare function chromiumInstalled(): boolean;
 export declare function codeServerInstalled(): boolean;
 export interface CodeServer {
   readonly port: number;
+  /** code-server's process id, which is also its process group's. */
+  readonly pid: number;
   readonly origin: string;
   readonly log: string[];
   workbenchUrl(folder: string, payload?: readonly (readonly [string, string])[]): string;

@@ -117,6 +117,11 @@ export function freePort() {
   });
 }
 
+/** True when the Chromium that launchChromium starts is there (Debian's, or KNOTWISE_CHROMIUM). */
+export function chromiumInstalled() {
+  return existsSync(chromiumPath);
+}
+
 /** True when code-server has been installed by scripts/e2e-install.sh. */
 export function codeServerInstalled() {
   return existsSync(codeServerEntry);
@@ -146,7 +151,7 @@ export function installVsix(runDir, vsix) {
 /**
  * Starts code-server on a free loopback port with user data, extensions and config inside
  * `runDir`, and waits for /healthz. `settings` become the user settings.json.
- * Returns { port, origin, workbenchUrl(folder, payload), log, stop() }.
+ * Returns { port, pid, origin, workbenchUrl(folder, payload), log, stop() }.
  */
 export async function startCodeServer({ runDir, settings = {}, timeoutMs = 60000 }) {
   if (!codeServerInstalled()) {
@@ -242,6 +247,8 @@ export async function startCodeServer({ runDir, settings = {}, timeoutMs = 60000
 
   return {
     port,
+    /** code-server's process id, which is also its process group's (the extension host is in that group). */
+    pid: child.pid,
     origin,
     log,
     /** The workbench URL for a folder, with optional development payload entries. */

@@ -18,7 +18,7 @@ import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFile
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Frame, Locator, Page } from 'playwright-core';
-import { tuneFromExplorer } from './flows';
+import { closeAllEditors, pickCurveColumns, tuneFromExplorer } from './flows';
 import type { CodeServer, LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 
 const fixtures = join(__dirname, 'fixtures');
@@ -167,18 +167,8 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   });
 
   it('quick picks ask for x, y and weights, numeric columns first with previews', async function () {
-    const input = page.locator('.quick-input-widget input.input');
-    const title = page.locator('.quick-input-widget .quick-input-title');
-    await title.filter({ hasText: 'the x column of mcycle.csv' }).waitFor();
     // The preview of the first values of `times` (MASS::mcycle starts 2.4, 2.6, 3.2, ...).
-    await page.locator('.quick-input-widget .monaco-list-row', { hasText: '2.4, 2.6, 3.2' }).first().waitFor();
-    await input.fill('times');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'the y column' }).waitFor();
-    await input.fill('accel');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'weights' }).waitFor();
-    await page.keyboard.press('Enter');
+    await pickCurveColumns(page, 'mcycle.csv', 'times', 'accel', '2.4, 2.6, 3.2');
   });
 
   it('the panel appears and explains the chosen df in plain words', async function () {
@@ -407,15 +397,8 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
   let cancelled: Frame | undefined;
   it("a long run started from the command palette stops with the notification's Cancel button and leaves no file behind", async function () {
     // Close the panel first, so the settings change below reruns nothing.
-    await page.keyboard.press('F1');
+    await closeAllEditors(page);
     const input = page.locator('.quick-input-widget input.input');
-    await input.waitFor();
-    await input.fill('>View: Close All Editors');
-    await page
-      .getByRole('option', { name: /View: Close All Editors/ })
-      .first()
-      .click();
-    await page.locator('.tab', { hasText: 'Curve review' }).first().waitFor({ state: 'detached' });
     // With no data file in front, the palette lists only what can act without one.
     const idle = await paletteCommands();
     for (const absent of ['Tune a Curve', 'Save Curve Table', 'Stop Tuning', 'Forget the Column Choice']) {
@@ -457,15 +440,7 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
       .getByRole('option', { name: /Knotwise: Tune a Curve for This Data/ })
       .first()
       .click();
-    const title = page.locator('.quick-input-widget .quick-input-title');
-    await title.filter({ hasText: 'the x column of drift.csv' }).waitFor();
-    await input.fill('load');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'the y column' }).waitFor();
-    await input.fill('strain');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'weights' }).waitFor();
-    await page.keyboard.press('Enter');
+    await pickCurveColumns(page, 'drift.csv', 'load', 'strain');
     const toast = page.locator('.notification-toast', { hasText: 'Knotwise: tuning the curve for drift.csv' });
     await toast.waitFor({ timeout: 30000 });
     // The run opens its panel, which takes the focus; the palette is opened after that.
@@ -513,16 +488,9 @@ describe('Knotwise in the whole editor (code-server workbench)', function () {
 
   it('many devices in one file: the fourth pick splits datasets::CO2 by plant; a small figure shows its plant; save writes what `knotwise fit --per plant` writes', async function () {
     await tuneFromExplorer(page, 'co2.csv');
+    await pickCurveColumns(page, 'co2.csv', 'conc', 'uptake');
     const input = page.locator('.quick-input-widget input.input');
     const title = page.locator('.quick-input-widget .quick-input-title');
-    await title.filter({ hasText: 'the x column of co2.csv' }).waitFor();
-    await input.fill('conc');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'the y column' }).waitFor();
-    await input.fill('uptake');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'weights' }).waitFor();
-    await page.keyboard.press('Enter');
     await title.filter({ hasText: 'split the rows of co2.csv into groups' }).waitFor();
     // The plant column, first among the text columns, with its distinct values and how many (CO2's plants in file order).
     await page.locator('.quick-input-widget .monaco-list-row', { hasText: 'Qn1, Qn2, Qn3, Qc1, Qc2, Qc3, …  (12 distinct values)' }).first().waitFor();

@@ -1,5 +1,6 @@
 /**
- * Steps of the whole-editor layers that more than one test file takes as a person would.
+ * Steps of the whole-editor layers that more than one test file (or the benchmark's editor
+ * part, bench/editor.ts) takes as a person would.
  */
 import type { Page } from 'playwright-core';
 
@@ -30,4 +31,46 @@ export async function tuneFromExplorer(page: Page, fileName: string, entry = 'Tu
     () => false,
   );
   if (!closed) await page.keyboard.press('Enter');
+}
+
+/**
+ * Answers the column picks of a curve that `tuneFromExplorer` (or the command palette)
+ * opened for `fileName`, as a person would: types the x column and presses Enter, types the
+ * y column and presses Enter, then presses Enter on the weights pick's first entry (no
+ * weights). With `xPreview`, first waits for the x pick to show that preview of a column's
+ * first values. Resolves with the time (Date.now()) just before the weights pick was
+ * accepted: the last pick of a file with no column left for a fourth.
+ */
+export async function pickCurveColumns(page: Page, fileName: string, x: string, y: string, xPreview?: string): Promise<number> {
+  const input = page.locator('.quick-input-widget input.input');
+  const title = page.locator('.quick-input-widget .quick-input-title');
+  await title.filter({ hasText: `the x column of ${fileName}` }).waitFor();
+  if (xPreview !== undefined) await page.locator('.quick-input-widget .monaco-list-row', { hasText: xPreview }).first().waitFor();
+  await input.fill(x);
+  await page.keyboard.press('Enter');
+  await title.filter({ hasText: 'the y column' }).waitFor();
+  await input.fill(y);
+  await page.keyboard.press('Enter');
+  await title.filter({ hasText: 'weights' }).waitFor();
+  const accepted = Date.now();
+  await page.keyboard.press('Enter');
+  return accepted;
+}
+
+/**
+ * Closes every editor (a Knotwise panel among them) through the command palette, as a
+ * person would, and waits until no Curve review tab is left. The workbench takes the
+ * keyboard back from a panel first.
+ */
+export async function closeAllEditors(page: Page): Promise<void> {
+  await page.locator('.part.sidebar .title-label').first().click();
+  await page.keyboard.press('F1');
+  const input = page.locator('.quick-input-widget input.input');
+  await input.waitFor();
+  await input.fill('>View: Close All Editors');
+  await page
+    .getByRole('option', { name: /View: Close All Editors/ })
+    .first()
+    .click();
+  await page.locator('.tab', { hasText: 'Curve review' }).first().waitFor({ state: 'detached' });
 }

@@ -10,7 +10,7 @@ import assert from 'node:assert/strict';
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import type { Frame, Page } from 'playwright-core';
-import { tuneFromExplorer } from './flows';
+import { pickCurveColumns, tuneFromExplorer } from './flows';
 import type { CodeServer, LaunchedChromium } from '../../scripts/e2e-workbench.mjs' with { 'resolution-mode': 'import' };
 
 const fixtures = join(__dirname, 'fixtures');
@@ -102,16 +102,7 @@ describe('Knotwise installed from its .vsix (code-server workbench)', function (
 
   it('the explorer context menu of the CSV offers Knotwise and quick picks ask for the columns', async function () {
     await tuneFromExplorer(page, 'mcycle.csv');
-    const input = page.locator('.quick-input-widget input.input');
-    const title = page.locator('.quick-input-widget .quick-input-title');
-    await title.filter({ hasText: 'the x column of mcycle.csv' }).waitFor();
-    await input.fill('times');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'the y column' }).waitFor();
-    await input.fill('accel');
-    await page.keyboard.press('Enter');
-    await title.filter({ hasText: 'weights' }).waitFor();
-    await page.keyboard.press('Enter');
+    await pickCurveColumns(page, 'mcycle.csv', 'times', 'accel');
   });
 
   it('the panel appears with a result', async function () {
