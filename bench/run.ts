@@ -414,9 +414,10 @@ async function stages(): Promise<void> {
   mark('check the rows, order by x');
   const dfs = CANDIDATES.split(',').map(Number);
   curveKind('natural-spline').fitAll?.(prepared, dfs);
-  mark('fit every candidate to all rows (power sums; repeated inside the tuning below)');
-  const { result, fits } = await tuneCurve(prepared, { ...plan.options, rule: { kind: 'one-se' } }, workerRunner());
-  mark('tuning: those fits, then 50 bootstrap resamples x 10 candidates on worker threads');
+  mark('fit every candidate to all rows (power sums; repeated inside the tuning below, while the resamples run)');
+  // The command line's arrangement: this thread resamples beside one worker per remaining core.
+  const { result, fits } = await tuneCurve(prepared, { ...plan.options, rule: { kind: 'one-se' } }, workerRunner(undefined, { mainThreadShare: true }));
+  mark('tuning: 50 bootstrap resamples x 10 candidates, started first, on a worker and this thread once it has fitted every candidate to all rows');
   const chosen = fits.get(result.selected.df);
   if (!chosen) throw new Error('no chosen fit');
   void chosen.residuals;
