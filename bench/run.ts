@@ -40,6 +40,32 @@ const log = (s: string): void => {
   lines.push(s);
 };
 
+/**
+ * Milliseconds of a fixed loop (an xorshift stream driving floating-point work, 20,000,000
+ * steps), median of five: the machine's speed during a run, to compare runs taken at
+ * different times on a shared machine. Never change it, or earlier figures lose their
+ * reference.
+ */
+function referenceLoopMs(): number {
+  const times: number[] = [];
+  let sink = 0;
+  for (let r = 0; r < 5; r++) {
+    const t0 = performance.now();
+    let s = 0x9e3779b9 | 0;
+    let acc = 0;
+    for (let i = 0; i < 20_000_000; i++) {
+      s ^= s << 13;
+      s ^= s >>> 17;
+      s ^= s << 5;
+      acc += (s & 1023) * 0.5 - acc * 1e-3;
+    }
+    sink += acc;
+    times.push(performance.now() - t0);
+  }
+  if (!Number.isFinite(sink)) throw new Error('reference loop');
+  return times.sort((a, b) => a - b)[2] as number;
+}
+
 /** The invented readings of the benchmark (seed 7): y = 3 sin(x / 12) + 0.05 x + uniform noise, x in [0, 100). */
 function makeRows(n: number): { x: Float64Array; y: Float64Array; lines: Int32Array } {
   const rng = new RandomStream(7, 0);
@@ -517,6 +543,7 @@ async function main(): Promise<void> {
     `Machine: ${cpus().length} x ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, Node ${process.version}. Data: invented readings (seed 7), two columns. Run with \`npm run bench\`; \`KNOTWISE_BENCH_PART=<targets|scaling|stages|panel|editor|fits|r|sizes|records|surface>\` runs one part (and writes nothing), \`KNOTWISE_BENCH_HUGE=1\` adds 100,000,000 rows to the scaling table.`,
   );
   log('');
+  const speedBefore = referenceLoopMs();
   if (only('targets')) await targets();
   if (only('scaling')) scaling();
   if (only('stages')) await stages();
@@ -581,6 +608,13 @@ async function main(): Promise<void> {
     log('');
   }
   if (PART !== undefined) return;
+  const speedAfter = referenceLoopMs();
+  log('## Speed of the machine during the run');
+  log('');
+  log(
+    `A fixed loop of integer and floating-point work that no change to Knotwise touches (\`referenceLoopMs\` in bench/run.ts), median of five: ${speedBefore.toFixed(0)} ms before the parts above, ${speedAfter.toFixed(0)} ms after. The machines of this class are shared and their speed varies from hour to hour; compare this loop between runs: figures of a run whose loop took longer were taken on a slower machine, by about that ratio.`,
+  );
+  log('');
   writeFileSync(join(__dirname, '..', 'bench', 'results.md'), lines.join('\n') + '\n');
   console.log('\nwritten to bench/results.md');
 }
