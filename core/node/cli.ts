@@ -44,7 +44,7 @@ import { CHECK_COMMAND, runCheck } from './check';
 import { COMPARE_COMMAND, runCompare } from './compareRecords';
 import { writeOutputs } from './outputs';
 import { checkOutputFolder, checkOutputNames, terminalText } from './outputTargets';
-import { runPipeline, wholeReadMiB } from './pipeline';
+import { readableWhole, runPipeline } from './pipeline';
 import { startWorkersEarly } from './pool';
 import { availableParallelism } from 'node:os';
 import { type Clock, ProgressLine, type ProgressStream } from './progress';
@@ -618,8 +618,8 @@ async function runFit(argv: readonly string[], env: CliEnv): Promise<number> {
     plan.tune &&
     resamplingScheme(plan.options.resample).method === 'resamples' &&
     (bytes?.length ?? fileSize(args.file)) >= EARLY_WORKERS_BYTES &&
-    // A file streamed in passes (above the memory budget) resamples on this thread.
-    (bytes !== undefined || (wholeReadMiB(args.file) ?? 0) <= (plan.memoryBudget ?? DEFAULT_MEMORY_BUDGET))
+    // A file streamed in passes (above the memory budget) resamples on this thread; one refused at its header needs none.
+    (bytes !== undefined || readableWhole(args.file, plan.memoryBudget ?? DEFAULT_MEMORY_BUDGET))
   )
     // This thread resamples too (runPipeline), so one worker fewer than cores.
     startWorkersEarly(Math.max(1, availableParallelism() - 1));

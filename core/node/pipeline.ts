@@ -21,6 +21,7 @@ import { workerRunner } from './pool';
 import { readCsvBytes, readCsvFile, type FileTable } from './readCsv';
 import { DEFAULT_MEMORY_BUDGET, estimatedMiB } from '../stream/budget';
 import { sampleFile } from './streamFile';
+import { MAX_COLUMNS } from '../ingest/header';
 import { streamPipeline } from './streamPipeline';
 
 /**
@@ -34,6 +35,21 @@ export function wholeReadMiB(file: string): number | undefined {
     return estimatedMiB(s.size, s.sampleBytes, s.lines, s.fields);
   } catch {
     return undefined;
+  }
+}
+
+/**
+ * Whether the first MiB of `file` shows a table Knotwise can read whole: at most
+ * MAX_COLUMNS fields on a line of it, within the memory budget. False when it cannot be
+ * examined (the read then says why). The command line starts its workers early only then,
+ * so a file refused at its header costs no worker threads.
+ */
+export function readableWhole(file: string, budgetMiB: number): boolean {
+  try {
+    const s = sampleFile(file);
+    return s.fields <= MAX_COLUMNS && estimatedMiB(s.size, s.sampleBytes, s.lines, s.fields) <= budgetMiB;
+  } catch {
+    return false;
   }
 }
 

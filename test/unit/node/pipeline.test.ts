@@ -6,11 +6,12 @@
  * test/e2e/fixtures (make-fixtures.R).
  */
 import { strict as assert } from 'node:assert';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { InputError } from '../../../core/errors';
-import { placed, portableRelative, runPipeline } from '../../../core/node/pipeline';
+import { placed, portableRelative, readableWhole, runPipeline } from '../../../core/node/pipeline';
+import { MAX_COLUMNS } from '../../../core/ingest/header';
 import { DEFAULT_OUTPUT, type FitPlan } from '../../../core/outputs/plan';
 import { copyFixture } from './runMain';
 
@@ -69,5 +70,23 @@ describe('runPipeline', () => {
     assert.equal(e.describe(), 'cars.csv, line 7, column "dist": bad value');
     const kept = new InputError('x', { file: 'other.csv' });
     assert.equal(placed(kept, 'cars.csv', { x: 'a', y: 'b' }), kept);
+  });
+});
+
+describe('readableWhole (whether the command line starts its workers before reading)', () => {
+  it('is true for a table within the column limit and the budget, false for a header wider than the limit, a budget too small or a missing file', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'knotwise-readable-'));
+    try {
+      const cars = copyFixture('cars.csv', join(dir, 'cars.csv'));
+      assert.equal(readableWhole(cars, 320), true);
+      // The memory estimate of any file is at least its fixed part (core/stream/budget.ts), above 1 MiB.
+      assert.equal(readableWhole(cars, 1), false);
+      const wide = join(dir, 'wide.csv');
+      writeFileSync(wide, `${Array.from({ length: MAX_COLUMNS + 1 }, (_, k) => `c${k}`).join(',')}\n1,2\n`);
+      assert.equal(readableWhole(wide, 320), false);
+      assert.equal(readableWhole(join(dir, 'missing.csv'), 320), false);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
