@@ -11,7 +11,8 @@ import { num } from '../plots/svg';
 import type { FitResult, XYData } from '../types';
 import { cloudOf, DEFAULT_CLOUD_LIMITS, type CloudLimits } from './cloud';
 import { roundAll, roundSig } from './round';
-import { maxPerCell, normalQuantiles } from './series';
+import { maxPerCell } from './series';
+import { normalQuantiles } from '../stats/normalQuantiles';
 import { checkViews, modelReportLines } from './words';
 import { renderOptions } from '../words/options';
 
@@ -131,7 +132,7 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
     residualKind: checked.kind === 'deviance' ? 'deviance' : 'response',
     residualsVsX: cloudOf(data.x, shown, lines, limits),
     residualsVsFitted: cloudOf(fit.fitted, shown, lines, limits),
-    qq: normalQuantiles(standardised, QQ_POINTS),
+    qq: qqView(standardised),
     cooks: { x: cooks.x, d: cooks.v, lines: cooks.lines, binned: cooks.binned },
     leverage: { x: lev.x, h: lev.v, lines: lev.lines, binned: lev.binned },
     cooksThreshold: roundSig(cooksThreshold, 5),
@@ -161,4 +162,14 @@ function rowOrderView(d: Diagnostics | undefined): RowOrderView | undefined {
     sameAsX: r.sameAsX,
     flagged: r.flagged,
   };
+}
+
+/**
+ * The normal-quantile figure's points: those of the residual checks' normal quantile plot
+ * (core/stats/normalQuantiles.ts: every point up to QQ_POINTS, else both tails whole and the
+ * middle thinned, the kept order statistics found by selection), rounded for the panel.
+ */
+function qqView(standardised: Float64Array): { theoretical: number[]; sample: number[] } {
+  const q = normalQuantiles(standardised, QQ_POINTS);
+  return { theoretical: roundAll(Array.from(q.theoretical), 5), sample: roundAll(Array.from(q.sample)) };
 }

@@ -2,8 +2,6 @@
  * Thinning of per-row series for the panel: the largest value per x cell (influence
  * figures) and a few hundred quantiles (normal quantile plot).
  */
-import { selectRanks } from '../stats/selectRanks';
-import { qnorm } from '../stats/distributions';
 import { roundAll } from './round';
 
 /** A per-row series, or its per-cell maxima when binned. */
@@ -49,35 +47,4 @@ export function maxPerCell(x: ArrayLike<number>, v: ArrayLike<number>, lines: Ar
     out.lines.push(lines ? (lines[i] as number) : 0);
   }
   return { ...out, x: roundAll(out.x), v: roundAll(out.v) };
-}
-
-/**
- * Normal quantile plot data: the sorted values against standard normal quantiles at
- * plotting positions (i - a) / (n + 1 - 2a) with a = 3/8 for n <= 10 and 1/2 above (as in
- * Chambers, Cleveland, Kleiner & Tukey, Graphical Methods for Data Analysis, 1983,
- * section 6.6, the convention R's ppoints uses). For n > maxPoints, `maxPoints` evenly
- * spaced order statistics (always including both extremes), found by selection (selectRanks)
- * without sorting the rest. O(n) expected, O(n log n) when every value is kept.
- * Example: normalQuantiles(Float64Array.of(-1, 0, 1), 300).theoretical[1] === 0.
- */
-export function normalQuantiles(values: ArrayLike<number>, maxPoints: number): { theoretical: number[]; sample: number[] } {
-  let n = 0;
-  for (let i = 0; i < values.length; i++) if (Number.isFinite(values[i] as number)) n++;
-  const finite = new Float64Array(n);
-  for (let i = 0, k = 0; i < values.length; i++) if (Number.isFinite(values[i] as number)) finite[k++] = values[i] as number;
-  const a = n <= 10 ? 3 / 8 : 1 / 2;
-  const take = Math.min(n, Math.max(2, maxPoints));
-  const ranks = new Uint32Array(n > 0 ? take : 0);
-  for (let k = 0; k < ranks.length; k++) ranks[k] = take === n ? k : Math.round((k * (n - 1)) / (take - 1));
-  // Only the kept order statistics are found (selection, not a sort of every value): the same values.
-  const sorted = take === n ? finite.sort() : undefined;
-  const at = sorted ? undefined : selectRanks(finite, ranks);
-  const theoretical: number[] = [];
-  const sample: number[] = [];
-  for (let k = 0; k < ranks.length; k++) {
-    const i = ranks[k] as number;
-    theoretical.push(qnorm((i + 1 - a) / (n + 1 - 2 * a)));
-    sample.push(sorted ? (sorted[i] as number) : (finite[(at as Int32Array)[k] as number] as number));
-  }
-  return { theoretical: roundAll(theoretical, 5), sample: roundAll(sample) };
 }
