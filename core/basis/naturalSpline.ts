@@ -41,6 +41,11 @@ export function naturalKnots(sortedX: Float64Array, distinct: number, df: number
   return { lower, upper, interior, notes };
 }
 
+/** The knots as one ascending array: lower boundary, interior, upper boundary. Example: knotArray(naturalKnots(sorted 1..10, 10, 4)) = [1, 4, 7, 10]. */
+export function knotArray(k: NaturalKnots): Float64Array {
+  return Float64Array.of(k.lower, ...k.interior, k.upper);
+}
+
 function hasCoincidentKnots(interior: Float64Array, lower: number, upper: number): boolean {
   let prev = lower;
   for (const k of interior) {

@@ -1,4 +1,4 @@
-import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
+import { ExtrapolatingBSplineBasis, knotArray, naturalKnots } from '../basis/naturalSpline';
 import { nullSpace } from '../linalg/nullSpace';
 import type { FitResult } from '../types';
 import { fitRowBasis, RowBasisCurve } from './linearFit';
@@ -21,7 +21,7 @@ export function fitNaturalSpline(prepared: PreparedData, df: number): FitResult 
   const z = nullSpace(basis.naturalConstraint(), 2, basis.size);
   const lin = fitRowBasis(prepared.data, basis, z, `natural spline with df ${df}`);
   const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, lin.centred, lin.cov, z, lin.offset);
-  const allKnots = Float64Array.of(knots.lower, ...knots.interior, knots.upper);
+  const allKnots = knotArray(knots);
   return summariseFit(prepared.data, {
     kind: 'natural-spline',
     df,

@@ -1,4 +1,4 @@
-import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
+import { ExtrapolatingBSplineBasis, knotArray, naturalKnots } from '../basis/naturalSpline';
 import { centringOffset } from '../stats/weightedMean';
 import { FitError } from '../errors';
 import { nullSpace } from '../linalg/nullSpace';
@@ -41,7 +41,7 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
   if (specs.length === 0) return out;
   const cells = buildCells(
     x,
-    specs.map((s) => Float64Array.of(s.knots.lower, ...s.knots.interior, s.knots.upper)),
+    specs.map((s) => knotArray(s.knots)),
   );
   // y centred at its weighted mean: the sums and the solve see y - mean, which the B-splines
   // (summing to 1) add back exactly; a small signal on a large offset keeps its digits.
@@ -98,7 +98,7 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
       }
       return { fitted, residuals, leverage };
     };
-    out.set(df, summariseLazily(data, { kind: 'natural-spline', df, curve, coefficients, knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper), rss, rows, notes: knots.notes }, totals));
+    out.set(df, summariseLazily(data, { kind: 'natural-spline', df, curve, coefficients, knots: knotArray(knots), rss, rows, notes: knots.notes }, totals));
   }
   return out;
 }

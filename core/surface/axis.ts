@@ -1,4 +1,4 @@
-import { ExtrapolatingBSplineBasis, naturalKnots } from '../basis/naturalSpline';
+import { ExtrapolatingBSplineBasis, knotArray, naturalKnots } from '../basis/naturalSpline';
 import { FitError } from '../errors';
 import { nullSpace } from '../linalg/nullSpace';
 
@@ -67,7 +67,7 @@ export function axisBasis(input: SortedInput, df: number, name: string): AxisBas
     size: basis.size,
     width: 4,
     z,
-    knots: Float64Array.of(knots.lower, ...knots.interior, knots.upper),
+    knots: knotArray(knots),
     lower,
     upper,
     notes: knots.notes.map((note) => `${name}: ${note.replace(/ x values/g, ` values of ${name}`)}`),

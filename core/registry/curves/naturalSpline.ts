@@ -1,4 +1,4 @@
-import { ExtrapolatingBSplineBasis, naturalKnots } from '../../basis/naturalSpline';
+import { ExtrapolatingBSplineBasis, knotArray, naturalKnots } from '../../basis/naturalSpline';
 import { FitError } from '../../errors';
 import type { ModelBasis, ResolvedModel } from '../../fit/modelTypes';
 import { fitNaturalSpline } from '../../fit/naturalSpline';
@@ -31,7 +31,7 @@ function rowBasis(prepared: PreparedData, df: number, model: ResolvedModel): Mod
     basis,
     z,
     shape: rows,
-    knots: Float64Array.of(k.lower, ...k.interior, k.upper),
+    knots: knotArray(k),
     lower: sortedX[0] as number,
     upper: sortedX[sortedX.length - 1] as number,
     notes: k.notes,
@@ -53,8 +53,7 @@ export const naturalSpline: CurveKind = {
     const out = new Map<number, Float64Array | FitError>();
     for (const df of dfs) {
       try {
-        const k = naturalKnots(prepared.sortedX, prepared.distinct, df);
-        out.set(df, Float64Array.of(k.lower, ...k.interior, k.upper));
+        out.set(df, knotArray(naturalKnots(prepared.sortedX, prepared.distinct, df)));
       } catch (e) {
         if (!(e instanceof FitError)) throw e;
         out.set(df, e);
@@ -67,12 +66,7 @@ export const naturalSpline: CurveKind = {
     // One pass of per-cell power sums per resample serves every candidate (docs/design.md, "Power sums").
     const { x, dfs, sumCells } = input;
     const given = sumCells?.knots ?? input.knots;
-    const knots =
-      (given && [...given]) ??
-      dfs.map((df) => {
-        const k = naturalKnots(input.prepared.sortedX, input.prepared.distinct, df);
-        return Float64Array.of(k.lower, ...k.interior, k.upper);
-      });
+    const knots = given ? [...given] : dfs.map((df) => knotArray(naturalKnots(input.prepared.sortedX, input.prepared.distinct, df)));
     // Cells built once for the run carry no rows: the engine reads its rows from their layout.
     const cells = sumCells ? { breaks: sumCells.breaks, cell: new Int32Array(0), t: new Float64Array(0) } : buildCells(x, knots);
     const models = dfs.map((df, k) => {
