@@ -25,6 +25,186 @@ const LOW_WORD = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1 ? 0 : 1;
  * Example: argsortStable(Float64Array.of(3, -1, 3, 0)) -> Int32Array [1, 3, 0, 2].
  */
 export function argsortStable(values: Float64Array): Int32Array {
+  return sortedOrder(values).order;
+}
+
+/**
+ * argsortStable's order together with the values in that order (NaN last). Values of a
+ * finite range take the bucket path (bucketOrder): spread by value over about n/4 buckets,
+ * each bucket then sorted in place; the rest (infinities, a range beyond the doubles, fewer
+ * than 32 values) take the radix sort, whose order is the same.
+ * Example: sortedOrder(Float64Array.of(3, -1, 3)).sorted -> Float64Array [-1, 3, 3].
+ */
+export function sortedOrder(values: Float64Array): { readonly order: Int32Array; readonly sorted: Float64Array } {
+  const byBuckets = values.length >= INSERTION_LIMIT ? bucketOrder(values) : undefined;
+  if (byBuckets) return byBuckets;
+  const order = radixArgsort(values);
+  const sorted = new Float64Array(values.length);
+  for (let k = 0; k < order.length; k++) sorted[k] = values[order[k] as number] as number;
+  return { order, sorted };
+}
+
+/** Average values per bucket of the bucket path (a few, so that sorting inside a bucket is cheap). */
+const PER_BUCKET = 4;
+/** Nested bucket passes before a crowded bucket is merge-sorted instead (values whose spread defeats even spacing). */
+const BUCKET_DEPTH = 3;
+
+/**
+ * The bucket path of sortedOrder (bucket sort: Knuth, vol. 3, section 5.2.5, and Cormen et
+ * al., "Introduction to Algorithms", 3rd ed., section 8.4): undefined when the values hold
+ * an infinity or their range overflows, else the stable order and the sorted values. NaN
+ * go last in index order. Each bucket keeps its values in index order (a counting scatter),
+ * a small bucket is finished by insertion sort with a strict comparison, a crowded one by
+ * the same step inside it (its own range), then by merge sort; so ties keep index order and
+ * the order equals the radix sort's. O(n) for values spread evenly enough, O(n log n) at worst.
+ */
+function bucketOrder(values: Float64Array): { order: Int32Array; sorted: Float64Array } | undefined {
+  const n = values.length;
+  let lo = Infinity;
+  let hi = -Infinity;
+  let nan = 0;
+  for (let i = 0; i < n; i++) {
+    const v = values[i] as number;
+    if (v !== v) nan++;
+    else {
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+  }
+  const m = n - nan;
+  if (m > 0 && !(Number.isFinite(lo) && Number.isFinite(hi) && Number.isFinite(hi - lo))) return undefined;
+  const order = new Int32Array(n);
+  const sorted = new Float64Array(n);
+  // Numbers first in index order, NaN after them (-0 and +0 compare equal, as their radix keys are).
+  let a = 0;
+  let b = m;
+  for (let i = 0; i < n; i++) {
+    const v = values[i] as number;
+    if (v !== v) {
+      order[b] = i;
+      sorted[b++] = v;
+    } else {
+      order[a] = i;
+      sorted[a++] = v;
+    }
+  }
+  sortRange(order, sorted, 0, m, lo, hi, new Int32Array(m), new Float64Array(m), 0);
+  return { order, sorted };
+}
+
+/**
+ * Sorts positions from..to-1 of (order, sorted) by value, stably, given their least and
+ * greatest value; `idx` and `val` are scratch of at least that length.
+ */
+function sortRange(order: Int32Array, sorted: Float64Array, from: number, to: number, lo: number, hi: number, idx: Int32Array, val: Float64Array, depth: number): void {
+  const size = to - from;
+  if (size < 2 || lo === hi) return;
+  if (size <= INSERTION_LIMIT) return insertionRange(order, sorted, from, to);
+  const buckets = Math.max(2, Math.floor(size / PER_BUCKET));
+  const scale = buckets / (hi - lo);
+  if (depth >= BUCKET_DEPTH || !Number.isFinite(scale)) return mergeRange(order, sorted, from, to, idx, val);
+  const last = buckets - 1;
+  // Bucket of each position (monotone in the value: a subtraction and a product by a positive number round monotonically).
+  const bucketOf = new Int32Array(size);
+  const start = new Int32Array(buckets + 1);
+  for (let k = 0; k < size; k++) {
+    const q = Math.floor(((sorted[from + k] as number) - lo) * scale);
+    const c = q > last ? last : q;
+    bucketOf[k] = c;
+    start[c + 1] = (start[c + 1] as number) + 1;
+  }
+  for (let c = 0; c < buckets; c++) start[c + 1] = (start[c + 1] as number) + (start[c] as number);
+  const next = start.slice(0, buckets);
+  for (let k = 0; k < size; k++) {
+    const c = bucketOf[k] as number;
+    const at = next[c] as number;
+    next[c] = at + 1;
+    idx[at] = order[from + k] as number;
+    val[at] = sorted[from + k] as number;
+  }
+  order.set(idx.subarray(0, size), from);
+  sorted.set(val.subarray(0, size), from);
+  for (let c = 0; c < buckets; c++) {
+    const s = from + (start[c] as number);
+    const e = from + (start[c + 1] as number);
+    if (e - s < 2) continue;
+    if (e - s <= INSERTION_LIMIT) {
+      insertionRange(order, sorted, s, e);
+      continue;
+    }
+    let bLo = Infinity;
+    let bHi = -Infinity;
+    for (let k = s; k < e; k++) {
+      const v = sorted[k] as number;
+      if (v < bLo) bLo = v;
+      if (v > bHi) bHi = v;
+    }
+    sortRange(order, sorted, s, e, bLo, bHi, idx, val, depth + 1);
+  }
+}
+
+/** Stable insertion sort of positions from..to-1 by value (strict comparison: ties keep their order). */
+function insertionRange(order: Int32Array, sorted: Float64Array, from: number, to: number): void {
+  for (let i = from + 1; i < to; i++) {
+    const v = sorted[i] as number;
+    if (!(v < (sorted[i - 1] as number))) continue;
+    const o = order[i] as number;
+    let k = i;
+    while (k > from && v < (sorted[k - 1] as number)) {
+      sorted[k] = sorted[k - 1] as number;
+      order[k] = order[k - 1] as number;
+      k--;
+    }
+    sorted[k] = v;
+    order[k] = o;
+  }
+}
+
+/** Stable bottom-up merge sort of positions from..to-1 by value; `idx`, `val`: scratch of at least to - from. */
+function mergeRange(order: Int32Array, sorted: Float64Array, from: number, to: number, idx: Int32Array, val: Float64Array): void {
+  const size = to - from;
+  for (let s = from; s < to; s += INSERTION_LIMIT) insertionRange(order, sorted, s, Math.min(to, s + INSERTION_LIMIT));
+  let srcO = order.subarray(from, to);
+  let srcV = sorted.subarray(from, to);
+  let dstO = idx.subarray(0, size);
+  let dstV = val.subarray(0, size);
+  for (let width = INSERTION_LIMIT; width < size; width *= 2) {
+    for (let left = 0; left < size; left += 2 * width) {
+      const mid = Math.min(size, left + width);
+      const end = Math.min(size, left + 2 * width);
+      let i = left;
+      let j = mid;
+      let k = left;
+      // Strict comparison: a tie takes the left (earlier) run's value first.
+      while (i < mid && j < end) {
+        if ((srcV[j] as number) < (srcV[i] as number)) {
+          dstO[k] = srcO[j] as number;
+          dstV[k++] = srcV[j++] as number;
+        } else {
+          dstO[k] = srcO[i] as number;
+          dstV[k++] = srcV[i++] as number;
+        }
+      }
+      while (i < mid) {
+        dstO[k] = srcO[i] as number;
+        dstV[k++] = srcV[i++] as number;
+      }
+      while (j < end) {
+        dstO[k] = srcO[j] as number;
+        dstV[k++] = srcV[j++] as number;
+      }
+    }
+    [srcO, dstO] = [dstO, srcO];
+    [srcV, dstV] = [dstV, srcV];
+  }
+  if (srcO.buffer !== order.buffer || srcO.byteOffset !== order.byteOffset + 4 * from) {
+    order.set(srcO, from);
+    sorted.set(srcV, from);
+  }
+}
+
+/** The radix path of argsortStable (see there). */
+function radixArgsort(values: Float64Array): Int32Array {
   const n = values.length;
   if (n < INSERTION_LIMIT) return insertionArgsort(values);
   const scratch = new Float64Array(1);

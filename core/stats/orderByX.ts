@@ -1,19 +1,21 @@
-import { argsortStable } from './argsort';
+import { sortedOrder } from './argsort';
 
 /** Orders already computed, by the array they order: data arrays are not changed once read. */
 const orders = new WeakMap<Float64Array, Int32Array>();
 
 /**
- * Row indices sorted by x (ties by row index), by the stable radix argsort `argsortStable`;
- * O(n) the first time for an array, then the same order again (preparing the data, the
- * resampling's strata and the residual checks all ask for it). The caller must not change
- * the returned order, nor x afterwards.
+ * Row indices sorted by x (ties by row index), by the stable argsort `sortedOrder`, which
+ * gives x in that order too (kept for xInOrder); O(n) the first time for an array, then the
+ * same order again (preparing the data, the resampling's strata and the residual checks all
+ * ask for it). The caller must not change the returned order, nor x afterwards.
  */
 export function orderByX(x: Float64Array): Int32Array {
   let order = orders.get(x);
   if (!order) {
-    order = argsortStable(x);
+    const both = sortedOrder(x);
+    order = both.order;
     orders.set(x, order);
+    inOrder.set(x, both.sorted);
   }
   return order;
 }

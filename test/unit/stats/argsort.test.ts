@@ -1,6 +1,6 @@
 import { strict as assert } from 'node:assert';
 import fc from 'fast-check';
-import { argsortStable } from '../../../core/stats/argsort';
+import { argsortStable, sortedOrder } from '../../../core/stats/argsort';
 import { orderByX } from '../../../core/tune/plan';
 import { isOrderOf, sortedCopy, xInOrder } from '../../../core/stats/orderByX';
 
@@ -42,6 +42,35 @@ describe('argsortStable', () => {
         { numRuns: 200 },
       );
     }
+  });
+
+  it('argsortStable equals the stable sort for finite doubles with NaN, the bucket path (ECMA-262 stable sort)', () => {
+    // Without infinities the values take the bucket path: spread, clustered, tied, tiny ranges and wide ones.
+    const finite = fc.oneof(
+      fc.double({ noNaN: true, noDefaultInfinity: true }),
+      fc.double({ min: 1, max: 1.000001, noNaN: true }),
+      fc.constantFrom(0, -0, NaN, 5e-324, -5e-324, Number.MAX_VALUE, -Number.MAX_VALUE / 4, 1, -1, 2),
+      fc.integer({ min: -3, max: 3 }),
+    );
+    fc.assert(
+      fc.property(fc.array(finite, { minLength: 32, maxLength: 3000, size: 'max' }), (list) => {
+        const values = Float64Array.from(list);
+        const { order, sorted } = sortedOrder(values);
+        assert.deepEqual(Array.from(order), referenceOrder(values));
+        // The sorted values are the input's own, -0 kept (Object.is), NaN last.
+        assert.ok(Array.from(order).every((i, k) => Object.is(sorted[k], values[i])));
+      }),
+      { numRuns: 300 },
+    );
+  });
+
+  it('argsortStable of skewed values takes nested buckets and the merge sort, in the stable order', () => {
+    const n = 20_000;
+    // Powers of two (every bucket but the last nearly empty, depth after depth) and a log-normal-like spread with ties.
+    const powers = Float64Array.from({ length: n }, (_, i) => 2 ** ((i * 7919) % 900) * ((i % 3) - 1));
+    assert.deepEqual(Array.from(argsortStable(powers)), referenceOrder(powers));
+    const skewed = Float64Array.from({ length: n }, (_, i) => Math.round(Math.exp(((i * 104729) % 1000) / 60) * 100) / 100);
+    assert.deepEqual(Array.from(argsortStable(skewed)), referenceOrder(skewed));
   });
 
   it('argsortStable treats -0 and +0 as equal and puts NaN last, both by index (radix and insertion paths)', () => {
