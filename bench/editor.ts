@@ -33,6 +33,8 @@ const SETTLE_MS = 2000;
 export interface EditorRun {
   /** The chosen curve drawn: the panel's DOM holds it and the browser has painted a frame after that. */
   readonly drawn: number;
+  /** The chosen df's residual checks shown (they follow the curve), painted likewise. */
+  readonly checked: number;
   /** The panel's page was created (its document's time origin). */
   readonly pageCreated: number;
   /** Progress texts the panel showed while the host worked, with the time each appeared. */
@@ -185,9 +187,10 @@ async function settledHost(group: number): Promise<number> {
  * Runs inside the panel's frame: resolves once the root shows a run newer than
  * `previousRunId` with the chosen df's badge, its curve in the data figure (whose caption
  * names that df) and its dot marked in the error figure, and the browser has painted after
- * that (two animation frames). Meanwhile it notes the progress texts and when the result
- * message arrived. Times are the browser's wall clock (Date.now(), performance.timeOrigin),
- * the same clock as this process's.
+ * that (two animation frames), and the chosen df's residual details have been shown and
+ * painted too. Meanwhile it notes the progress texts and when the result message arrived.
+ * Times are the browser's wall clock (Date.now(), performance.timeOrigin), the same clock
+ * as this process's.
  */
 const WATCH_PANEL = `(previousRunId) => new Promise((resolve) => {
   const root = document.getElementById('knotwise-root');
@@ -210,6 +213,20 @@ const WATCH_PANEL = `(previousRunId) => new Promise((resolve) => {
     const dot = document.querySelector('#fig-error .kw-chosen[data-df="' + df + '"]');
     return !!badge && badge.textContent === 'df ' + df && !!curve && (curve.getAttribute('d') || '').length > 0 && !!caption && caption.textContent.includes('(df ' + df + ')') && !!dot;
   };
+  // The residual details of the chosen df are in: the answer's fit statistics come with them.
+  const checked = () => {
+    const stats = document.getElementById('kw-fit-stats');
+    return !!stats && stats.textContent.startsWith('residual SD');
+  };
+  // Each moment counts once the browser has painted after it (two animation frames).
+  let drawnAt = 0;
+  let checkedAt = 0;
+  let drawnAsked = false;
+  let checkedAsked = false;
+  const painted = (set) => requestAnimationFrame(() => requestAnimationFrame(() => {
+    set(Date.now());
+    if (drawnAt && checkedAt) done();
+  }));
   const check = () => {
     const status = root.querySelector('#kw-status');
     const text = status ? status.textContent : '';
@@ -217,21 +234,29 @@ const WATCH_PANEL = `(previousRunId) => new Promise((resolve) => {
     lastText = text;
     if (!built && root.dataset.state === 'ready' && Number(root.dataset.runId) > previousRunId) built = Date.now();
     if (!drawn()) return;
+    if (!drawnAsked) {
+      drawnAsked = true;
+      painted((at) => { drawnAt = at; });
+    }
+    if (!checkedAsked && checked()) {
+      checkedAsked = true;
+      painted((at) => { checkedAt = at; });
+    }
+  };
+  const done = () => {
     observer.disconnect();
-    requestAnimationFrame(() => requestAnimationFrame(() => {
-      const at = Date.now();
-      window.removeEventListener('message', onMessage);
-      resolve({
-        drawn: at,
-        pageCreated: performance.timeOrigin,
-        progress,
-        resultIn: result ? result.at : 0,
-        resultBytes: result ? new Blob([JSON.stringify(result.data)]).size : 0,
-        built,
-        chosenDf: Number(root.dataset.chosenDf),
-        runId: Number(root.dataset.runId),
-      });
-    }));
+    window.removeEventListener('message', onMessage);
+    resolve({
+      drawn: drawnAt,
+      checked: checkedAt,
+      pageCreated: performance.timeOrigin,
+      progress,
+      resultIn: result ? result.at : 0,
+      resultBytes: result ? new Blob([JSON.stringify(result.data)]).size : 0,
+      built,
+      chosenDf: Number(root.dataset.chosenDf),
+      runId: Number(root.dataset.runId),
+    });
   };
   const observer = new MutationObserver(check);
   observer.observe(root, { subtree: true, childList: true, attributes: true, characterData: true });
@@ -240,6 +265,7 @@ const WATCH_PANEL = `(previousRunId) => new Promise((resolve) => {
 
 interface Watched {
   readonly drawn: number;
+  readonly checked: number;
   readonly pageCreated: number;
   readonly progress: { at: number; text: string }[];
   readonly resultIn: number;
@@ -353,6 +379,7 @@ export async function measureEditorPanel(repo: string, rows: number): Promise<Ed
       const s = (at: number): number => (at - picked) / 1000;
       runs.push({
         drawn: s(w.drawn),
+        checked: s(w.checked),
         pageCreated: s(w.pageCreated),
         progress: w.progress.map((p) => ({ at: s(p.at), text: p.text })),
         resultIn: w.resultIn ? s(w.resultIn) : NaN,

@@ -335,7 +335,7 @@ async function editorPanel(): Promise<void> {
   // Each run's steps on the terminal only (not in bench/results.md).
   for (const [k, r] of m.runs.entries()) {
     console.log(
-      `  editor run ${k + 1}: page ${r.pageCreated.toFixed(2)} s, ${r.progress.map((p) => `${p.at.toFixed(2)} s ${p.text}`).join(' | ')}, result ${r.resultIn.toFixed(2)} s, built ${r.built.toFixed(2)} s, drawn ${r.drawn.toFixed(2)} s`,
+      `  editor run ${k + 1}: page ${r.pageCreated.toFixed(2)} s, ${r.progress.map((p) => `${p.at.toFixed(2)} s ${p.text}`).join(' | ')}, result ${r.resultIn.toFixed(2)} s, built ${r.built.toFixed(2)} s, drawn ${r.drawn.toFixed(2)} s, residual checks ${r.checked.toFixed(2)} s`,
     );
   }
   const mid = (v: number[]): number => [...v].sort((a, b) => a - b)[Math.floor(v.length / 2)] as number;
@@ -351,7 +351,7 @@ async function editorPanel(): Promise<void> {
     ? `result message in the panel's page ${median.resultIn.toFixed(2)} (${median.resultBytes.toLocaleString('en-US')} bytes of JSON)`
     : 'result message not seen';
   log(
-    `| where that time goes (${many ? 'the median run' : 'that run'}; seconds after the last pick, df ${median.chosenDf} chosen) | panel page created ${median.pageCreated.toFixed(2)}; ${progress}; ${result}; panel built ${median.built.toFixed(2)}; drawn (painted) ${median.drawn.toFixed(2)} |`,
+    `| where that time goes (${many ? 'the median run' : 'that run'}; seconds after the last pick, df ${median.chosenDf} chosen) | panel page created ${median.pageCreated.toFixed(2)}; ${progress}; ${result}; panel built ${median.built.toFixed(2)}; drawn (painted) ${median.drawn.toFixed(2)}; the chosen df's residual checks, which follow the curve, shown ${median.checked.toFixed(2)} (median of the runs ${mid(m.runs.map((r) => r.checked)).toFixed(2)}) |`,
   );
   const mib = (kib: number): string => `${(kib / 1024).toFixed(0)} MiB`;
   const growth = (m.hostPeakFirst - m.hostBefore) * 1024;

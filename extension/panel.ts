@@ -21,6 +21,10 @@ const LOG_LENGTH = 64;
 export class PanelView implements vscode.Disposable {
   private readonly panel: vscode.WebviewPanel;
   private ready = false;
+  /** Settles once the messages posted so far have been handed to the page (see delivered). */
+  private delivery: Promise<void> = Promise.resolve();
+  /** Settles `delivery` when the page says it is ready, or when the panel closes before. */
+  private onReady: (() => void) | undefined;
   /** The file, the latest result, its data state and the latest status after it, re-sent when the webview (re)loads. */
   private lastFile: HostMessage | undefined;
   private lastResult: HostMessage | undefined;
@@ -63,7 +67,9 @@ export class PanelView implements vscode.Disposable {
         if (!isPanelMessage(m)) return;
         if (m.type === 'ready') {
           this.ready = true;
-          for (const kept of [this.lastFile, this.lastGroups, this.lastResult, this.lastDataState, this.lastStatus]) if (kept) void webview.postMessage(kept);
+          for (const kept of [this.lastFile, this.lastGroups, this.lastResult, this.lastDataState, this.lastStatus]) if (kept) this.send(kept);
+          this.onReady?.();
+          this.onReady = undefined;
         }
         this.onMessage(m);
       }),
@@ -77,6 +83,8 @@ export class PanelView implements vscode.Disposable {
     this.subscriptions.add(
       this.panel.onDidDispose(() => {
         this.closed = true;
+        this.onReady?.();
+        this.onReady = undefined;
         this.onClose();
       }),
     );
@@ -127,7 +135,27 @@ export class PanelView implements vscode.Disposable {
     }
     this.log.push(message);
     if (this.log.length > LOG_LENGTH) this.log.splice(0, this.log.length - LOG_LENGTH);
-    if (this.ready) void this.panel.webview.postMessage(message);
+    if (this.ready) this.send(message);
+    else if (!this.onReady) this.delivery = new Promise<void>((resolve) => (this.onReady = resolve));
+  }
+
+  /** Posts to the page now; `delivery` then waits for the page to have it. */
+  private send(message: HostMessage): void {
+    const sent = Promise.resolve(this.panel.webview.postMessage(message)).then(
+      () => undefined,
+      () => undefined,
+    );
+    const before = this.delivery;
+    this.delivery = before.then(() => sent);
+  }
+
+  /**
+   * Settles once every message posted so far has been handed to the panel's page (or the
+   * panel closed): after it, work that holds the extension host's thread no longer holds
+   * those messages back. A panel whose page is not ready yet settles when it is.
+   */
+  delivered(): Promise<void> {
+    return this.delivery;
   }
 
   reveal(): void {

@@ -65,11 +65,11 @@ export function errorText(err: unknown): string {
   return err instanceof InputError ? err.describe('editor') : err instanceof Error ? err.message : String(err);
 }
 
-/** Residual checks of one df of a run, computed once. */
+/** Residual checks of one df of a run, computed once (the chosen fit's are the analysis's own, run when first read). */
 export function checksFor(r: RunResult, fit: FitResult): Diagnostics {
   let d = r.checks.get(fit.df);
   if (!d) {
-    d = diagnose(r.analysis.data, fit);
+    d = fit === r.analysis.chosen ? r.analysis.diagnostics : diagnose(r.analysis.data, fit);
     r.checks.set(fit.df, d);
   }
   return d;

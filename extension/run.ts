@@ -45,11 +45,12 @@ export type ProgressListener = (message: string, fraction: number) => void;
 
 /**
  * Analyses `data` with a cancellable progress notification; `onProgress` hears the same
- * steps (at most one per PROGRESS_INTERVAL_MS). Rejects with CancelledError when the
+ * steps (at most one per PROGRESS_INTERVAL_MS). The chosen fit's residual checks run when
+ * first read (the panel shows the curve first). Rejects with CancelledError when the
  * notification's Cancel button or `token` stops it.
  */
 export function analyseWithProgress(runner: ResampleRunner, file: string, data: XYData, options: AnalysisOptions, token: vscode.CancellationToken, onProgress: ProgressListener): Promise<Analysis> {
-  return withRunProgress(`Knotwise: tuning the curve for ${file}`, token, onProgress, (progress) => analyse(data, options, runner, progress));
+  return withRunProgress(`Knotwise: tuning the curve for ${file}`, token, onProgress, (progress) => analyse(data, options, runner, progress, 'when-read'));
 }
 
 /**

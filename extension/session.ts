@@ -46,6 +46,8 @@ import type { AnalysisOptions } from '../core/analysis/types';
 import { parseDfList } from '../core/tune/candidates';
 import { pickSurfaceColumns, runSurface, saveSurface, surfaceState, withPair, type SurfaceRunState } from './surfaceRun';
 
+/** Rows from which a run starts its worker threads before the column picks (core/node/pool.ts warm). */
+const WARM_ROWS = 100_000;
 /** What every session shares: the extension's folder, remembered columns, Problems, the worker pool, settings and run ids. */
 export interface SessionContext {
   readonly extensionUri: vscode.Uri;
@@ -193,6 +195,8 @@ export class DataSession implements vscode.Disposable {
     try {
       const source = await readCsv(this.uri, this.ctx.settings(this.uri).memoryBudget);
       ticket.sha256 = source.sha256;
+      // A file this large resamples on worker threads: they load while the columns are picked.
+      if (source.table.rowCount >= WARM_ROWS) this.ctx.runner.warm?.();
       const settings = this.ctx.settings(this.uri);
       const model = this.modelFor();
       const binomial = model.outcome === 'proportions';
@@ -223,7 +227,8 @@ export class DataSession implements vscode.Disposable {
       }
       this.analysed++;
       if (!current()) return { status: 'superseded', file, runId };
-      const result: RunResult = { runId, source, choice, columns, trials, options: opts, analysis, checks: new Map([[analysis.chosen.df, analysis.diagnostics]]), details: new Map() };
+      // The chosen fit's residual checks are not run yet (analyseWithProgress): they follow the curve.
+      const result: RunResult = { runId, source, choice, columns, trials, options: opts, analysis, checks: new Map(), details: new Map() };
       // The curve of the fit record beside the data, for the drift.
       result.recorded = await this.recordedCurve();
       // The person's rule (read now: it may have changed in the panel during the run) where it still applies.
@@ -240,11 +245,15 @@ export class DataSession implements vscode.Disposable {
       this.rule = rule;
       this.ruleDropped = dropped;
       this.refitAsked = false;
-      // The data may have changed again while the run went on.
+      // The curve and the choice first; then the residual checks of the shown df, which the
+      // panel asks for, and whether the data changed again while the run went on.
+      this.change = undefined;
+      this.showResult(undefined, moved, 'checks-follow');
+      this.checkSoon(result, selectDf(analysis.tune.candidates, rule, analysis.tune.metric).df);
       const seen = await this.changeSince(result);
-      if (this.result !== result) return { status: 'superseded', file, runId };
+      if (this.result?.analysis !== analysis) return { status: 'superseded', file, runId };
       this.change = seen.change;
-      this.showResult(undefined, moved);
+      this.postDataState();
       if (seen.change?.where === 'disk' && seen.now) this.refitOnSave(seen.now);
       return {
         status: 'done',
@@ -501,8 +510,12 @@ export class DataSession implements vscode.Disposable {
     void this.tune({ noPicks: true, keep: true, ...(state.group !== undefined ? { group: state.group } : {}) });
   }
 
-  /** Posts the result to the panel; `rule` starts a new view of the same run with that rule; `moved` says what a rerun changed. */
-  showResult(rule?: RuleSpec, moved?: RefitView): void {
+  /**
+   * Posts the result to the panel; `rule` starts a new view of the same run with that rule;
+   * `moved` says what a rerun changed; 'checks-follow' posts it without residual details that
+   * are not computed yet (the panel shows them as being computed and asks for them).
+   */
+  showResult(rule?: RuleSpec, moved?: RefitView, checks: 'with-checks' | 'checks-follow' = 'with-checks'): void {
     const r0 = this.result;
     if (!r0 || !this.panel) return;
     const settings = this.ctx.settings(this.uri);
@@ -526,7 +539,10 @@ export class DataSession implements vscode.Disposable {
       modelFromPanel: this.model !== undefined,
       candidatesFromPanel: this.candidates,
       // A group's panel has no calibration section (no inverse table with groups yet).
-      detail: (df) => (r.groups ? detailFor(r, df) : withCalibration(r, detailFor(r, df), settings)),
+      detail: (df) => {
+        const d = checks === 'with-checks' ? detailFor(r, df) : r.details.get(df);
+        return r.groups ? d : withCalibration(r, d, settings);
+      },
       warnings: settings.problems,
     });
     const shown: PanelPayload = moved ? { ...payload, refit: moved } : payload;
@@ -557,6 +573,17 @@ export class DataSession implements vscode.Disposable {
     } catch {
       return 'none';
     }
+  }
+
+  /**
+   * Runs the residual checks of df `df` of `r` once the posted result has reached the
+   * panel's page (they hold the extension host's thread for a while), so that the panel's
+   * request for them (sendDetail) finds them done; nothing when `r` is no longer shown.
+   */
+  private checkSoon(r: RunResult, df: number): void {
+    void (this.panel?.delivered() ?? Promise.resolve()).then(() => {
+      if (this.result?.analysis === r.analysis) detailFor(this.result, df);
+    });
   }
 
   /** Answers the panel's request for the residual details of one df of the shown run. */

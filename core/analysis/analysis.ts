@@ -16,9 +16,11 @@ export const HOLDOUT_WARN_RATIO = 1.25;
  * One whole analysis: optional stratified held-out split, tuning of the df by resampling,
  * the chosen fit with its diagnostics, and the held-out check used once at the end.
  * `runner` decides where resamples run (inline, or worker threads from core/node/pool).
+ * `checks`: 'when-read' leaves the chosen fit's residual checks (diagnostics, O(n log n))
+ * until `diagnostics` is first read, so that the editor can show the curve before them.
  * Example: await analyse({ x, y }, { family: 'natural-spline', resample: { kind: 'folds', folds: 10, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }).
  */
-export async function analyse(data: XYData, options: AnalysisOptions, runner: ResampleRunner = inlineRunner, progress?: Progress): Promise<Analysis> {
+export async function analyse(data: XYData, options: AnalysisOptions, runner: ResampleRunner = inlineRunner, progress?: Progress, checks: 'now' | 'when-read' = 'now'): Promise<Analysis> {
   const split = options.holdout ? splitHoldout(data, options.holdout, options.seed) : undefined;
   const tuning = split ? split.train : data;
   const prepared = prepareData(tuning);
@@ -39,9 +41,15 @@ export async function analyse(data: XYData, options: AnalysisOptions, runner: Re
     progress,
   );
   const chosen = fits.get(result.selected.df) as FitResult;
-  const diagnostics = diagnose(tuning, chosen);
   const holdout = split ? holdoutReport(chosen, split.test, options.holdout as number, resampledRmse(result.candidates, chosen)) : undefined;
-  return { options, n: prepared.data.x.length, data: tuning, ...(split ? { heldOut: split.test } : {}), tune: holdout ? { ...result, holdout } : result, fits, chosen, diagnostics };
+  const tuned = { options, n: prepared.data.x.length, data: tuning, ...(split ? { heldOut: split.test } : {}), tune: holdout ? { ...result, holdout } : result, fits, chosen };
+  if (checks === 'now') return { ...tuned, diagnostics: diagnose(tuning, chosen) };
+  // Run on first read, once: whoever reads them first (the panel's details, a save) waits for them.
+  let diagnostics: Diagnostics | undefined;
+  return Object.defineProperty(tuned as Omit<Analysis, 'diagnostics'> & { diagnostics?: Diagnostics }, 'diagnostics', {
+    enumerable: true,
+    get: () => (diagnostics ??= diagnose(tuning, chosen)),
+  }) as Analysis;
 }
 
 /** The resampled RMSE of a fit's candidate, else its exact leave-one-out RMSE. */

@@ -32,9 +32,13 @@ function workerScript(): { file: string; execArgv: string[] } {
  * to start and to hold in memory; the editor's host keeps its thread free). Progress is
  * reported per finished resample; when `progress.cancelled()` turns true the workers are
  * terminated and the promise rejects with CancelledError. Small problems run inline.
+ * warm() starts the workers ahead of a run (startWorkersEarly), e.g. while columns are picked.
  */
 export function workerRunner(threads = availableParallelism(), options: { readonly mainThreadShare?: boolean } = {}): ResampleRunner {
   return {
+    warm() {
+      startWorkersEarly(options.mainThreadShare === true ? threads - 1 : threads);
+    },
     async run(problem: ResampleProblem, count: number, progress?: Progress): Promise<Float64Array[]> {
       const engines = Math.max(1, Math.min(threads, count));
       if (engines === 1 || problem.x.length * count < INLINE_BELOW) return inlineRunner.run(problem, count, progress);

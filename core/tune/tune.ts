@@ -37,6 +37,8 @@ export interface TuneOptions extends ModelOptions {
 /** Runs resamples somewhere (inline, or in worker threads) and returns each resample's errors in order. */
 export interface ResampleRunner {
   run(problem: ResampleProblem, count: number, progress?: Progress): Promise<Float64Array[]>;
+  /** Gets ready for a large run about to come (a runner with threads starts them now); optional. */
+  warm?(): void;
 }
 
 /** A larger share of failed resamples than this skips the candidate. */

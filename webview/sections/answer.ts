@@ -83,7 +83,7 @@ export function answerSection(p: PanelPayload, actions: PanelActions): Section {
       badge.textContent = `df ${sel.df}`;
       stats.textContent = detail
         ? `residual SD ${sig(detail.sigma, 4)}, ${detail.model?.glm ? `deviance explained ${percent(detail.r2)}` : `R² ${sig(detail.r2, 4)}`}, AIC ${sig(detail.aic, 5)}${detail.lambda !== undefined ? `, lambda ${sig(detail.lambda, 3)}` : ''}`
-        : '';
+        : 'checking the residuals…';
       const e = explain(sel);
       reason.textContent = e.reason;
       moreText.textContent = e.more;

@@ -9,7 +9,7 @@ import assert from 'node:assert/strict';
 import * as vscode from 'vscode';
 import type { RunSummary, SaveSummary } from '../../../extension/api';
 import type { RecordComparison } from '../../../extension/compareRecords';
-import { api, cliOutputs, closeEverything, file, setSetting, text, waitFor, writeText } from './helpers';
+import { api, cliOutputs, closeEverything, file, setSetting, shownDetail, text, waitFor, writeText } from './helpers';
 
 const NAME = 'cal-cars.csv';
 const COLUMNS = { columns: { x: 'speed', y: 'dist' } };
@@ -38,8 +38,7 @@ describe('calibration use in the editor', function () {
     await setSetting('rule', 'least-error');
     const run = (await vscode.commands.executeCommand('knotwise.tuneCurve', file(NAME), COLUMNS)) as RunSummary;
     assert.equal(run.status, 'done', run.message);
-    const p0 = api().panelState(file(NAME))?.payload;
-    const cal0 = p0?.details[0]?.calibration;
+    const cal0 = (await shownDetail(file(NAME))).calibration;
     assert.ok(cal0, 'the details carry the calibration section');
     assert.ok('words' in cal0.inverse, JSON.stringify(cal0.inverse));
     assert.match(cal0.inverse.words, /the curve rises throughout the data range/);
@@ -71,7 +70,8 @@ describe('calibration use in the editor', function () {
     await writeText(file(NAME), `${shifted}\n`);
     const again = (await vscode.commands.executeCommand('knotwise.tuneCurve', file(NAME), COLUMNS)) as RunSummary;
     assert.equal(again.status, 'done', again.message);
-    const drift = await waitFor('the drift in the panel', () => api().panelState(file(NAME))?.payload.details[0]?.calibration?.drift);
+    const drift = (await shownDetail(file(NAME))).calibration?.drift;
+    assert.ok(drift, 'the drift in the panel');
     assert.match(drift.words, /\b5 above the recorded curve/);
     assert.match(drift.svg, /^<svg /);
 

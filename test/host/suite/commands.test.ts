@@ -16,6 +16,7 @@ import { join } from 'node:path';
 import * as vscode from 'vscode';
 import { selectDf } from '../../../core/tune/rules';
 import type { KnotwiseApi, RunSummary } from '../../../extension/api';
+import { shownDetail } from './helpers';
 
 const EXTENSION_ID = 'knotwise.knotwise';
 
@@ -278,7 +279,7 @@ describe('Knotwise commands in the extension host', function () {
       const shown = api().panelState(menarche)?.payload;
       assert.equal(shown?.model.trialsLabel, 'Total');
       assert.equal(shown?.metric, 'deviance');
-      close('deviance in the panel (7 significant digits)', shown?.details[0]?.model?.glm?.deviance, glm.deviance, 1e-6);
+      close('deviance in the panel (7 significant digits)', (await shownDetail(menarche)).model?.glm?.deviance, glm.deviance, 1e-6);
       const savedBin = (await vscode.commands.executeCommand('knotwise.saveCurveTable', menarche, { replaceForeignFiles: 'no' })) as RunSummary;
       assert.equal(savedBin.status, 'done', savedBin.message);
       const cliBin = cliOutputs('menarche.csv', ['--x', 'Age', '--y', 'Menarche', '--outcome', 'proportions', '--trials', 'Total', '--df', '3,5', '--resampling', 'folds:5', '--rule', 'least-error']);

@@ -6,6 +6,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as vscode from 'vscode';
 import type { KnotwiseApi } from '../../../extension/api';
+import { selectDf } from '../../../core/tune/rules';
+import type { FitDetail } from '../../../core/view/model';
 
 export const EXTENSION_ID = 'knotwise.knotwise';
 
@@ -60,6 +62,24 @@ export async function waitFor<T>(what: string, probe: () => T | undefined | Prom
     if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
     await new Promise((r) => setTimeout(r, 50));
   }
+}
+
+/**
+ * The residual details of the df a file's panel shows: they follow the result (the panel
+ * asks for them once it has drawn the curve), so this waits for the host's `detail` message
+ * of the shown run, or takes them from the payload when it already carried them.
+ */
+export async function shownDetail(uri: vscode.Uri): Promise<FitDetail> {
+  return waitFor('the residual details of the shown df', () => {
+    const state = api().panelState(uri);
+    if (!state) return undefined;
+    const { payload } = state;
+    const df = payload.rule.kind === 'pick' ? payload.rule.df : selectDf(payload.candidates, payload.rule, payload.metric).df;
+    const sent = api()
+      .panelLog(uri)
+      .find((m) => m.type === 'detail' && m.runId === payload.runId && m.detail.df === df);
+    return sent?.type === 'detail' ? sent.detail : payload.details.find((d) => d.df === df);
+  });
 }
 
 /**

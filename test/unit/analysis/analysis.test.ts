@@ -1,6 +1,6 @@
 /**
  * Tests of core/analysis/analysis.ts beyond tuning itself: the rows an analysis tuned (`data`) and
- * held out (`heldOut`), and withRule, which must give what a fresh analyse with that rule
+ * held out (`heldOut`), residual checks run when first read, and withRule, which must give what a fresh analyse with that rule
  * gives (selection, chosen fit, residual checks, held-out check), without tuning again.
  * Data: datasets::cars (Ezekiel 1930) from test/e2e/fixtures/cars.csv (make-fixtures.R).
  */
@@ -65,6 +65,18 @@ describe('analyse and withRule', () => {
       assert.deepEqual(re.options, fresh.options);
     });
   }
+
+  it("analyse with checks 'when-read' runs the same residual checks, once, on first read (the editor shows the curve first)", async () => {
+    const now = await analyse(data, OPTIONS);
+    const later = await analyse(data, OPTIONS, undefined, undefined, 'when-read');
+    const descriptor = Object.getOwnPropertyDescriptor(later, 'diagnostics');
+    assert.equal(typeof descriptor?.get, 'function', 'the checks wait for their first read');
+    assert.equal(later.chosen.df, now.chosen.df);
+    assert.deepEqual(later.diagnostics, now.diagnostics);
+    assert.equal(later.diagnostics, later.diagnostics, 'computed once, then the same object');
+    // A copy (as withRule makes) carries the checks as a value.
+    assert.deepEqual({ ...later }.diagnostics, now.diagnostics);
+  });
 
   it('withRule refuses a df by hand that is no candidate', async () => {
     const base = await analyse(data, { ...OPTIONS, holdout: undefined });
