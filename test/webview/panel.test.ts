@@ -19,7 +19,7 @@ import { errorPoints, FIGURE_CATALOGUE, type FigureView } from '../../core/view/
 import type { PanelPayload } from '../../core/view/model';
 import { selectDf } from '../../core/tune/rules';
 import type { RuleSpec, Selection } from '../../core/tune/types';
-import { buildPanelPayload } from '../../core/view/payload';
+import { buildPanelPayload, detailFor } from '../../core/view/payload';
 import { calibrationView } from '../../core/view/calibration';
 import { DEFAULT_INVERSE } from '../../core/calibrate/spec';
 import { curveSample } from '../../core/calibrate/drift';
@@ -166,6 +166,29 @@ describe('Knotwise panel (webview in headless Chromium)', function () {
     await page.waitForSelector('#fig-qq svg', { state: 'attached' });
     assert.match((await page.textContent('#fig-resid-x svg > title')) ?? '', /\(df 4\)/);
     await page.close();
+  });
+
+  it('a result posted before its residual checks shows the curve and the answer at once, "checking the residuals…" until the details come (three themes at 700 px, test-artifacts/webview-checks-follow-<theme>.png)', async function () {
+    for (const theme of ['light', 'dark', 'high-contrast'] as const) {
+      const pp = await openPanel(browser, server, mcycle, { theme, viewport: { width: 700, height: 900 } });
+      const page = pp.page;
+      // Another run id than the fixture's: the harness leaves the panel's request to this test.
+      const payload: PanelPayload = { ...mcycle.payload, runId: 7, details: [] };
+      await pp.send({ type: 'result', payload });
+      await page.waitForSelector('#knotwise-root[data-state="ready"]');
+      const df = expected(payload, payload.rule).df;
+      assert.deepEqual(await pp.waitForSent('needDetail'), { type: 'needDetail', runId: 7, df });
+      assert.equal(await page.textContent('#kw-chosen-df'), `df ${df}`);
+      assert.ok(((await page.getAttribute('#fig-data path.kw-curve', 'd')) ?? '').length > 0, 'the chosen curve is drawn');
+      assert.equal(await page.textContent('#kw-fit-stats'), 'checking the residuals…');
+      await page.screenshot({ path: join(artifacts, `webview-checks-follow-${theme}.png`), fullPage: true });
+      const detail = detailFor(mcycle.analysis, df);
+      assert.ok(detail);
+      await pp.send({ type: 'detail', runId: 7, detail });
+      await page.waitForFunction("document.getElementById('kw-fit-stats').textContent.startsWith('residual SD')");
+      assert.equal(await page.textContent('#kw-chosen-df'), `df ${df}`);
+      await page.close();
+    }
   });
 
   it('a column named <img src=x onerror=alert(1)> shows as text and runs nothing', async function () {
