@@ -1,5 +1,5 @@
 import { prepareData } from '../fit/prepared';
-import { knownOrder } from '../stats/orderByX';
+import { knownOrder, xInOrder } from '../stats/orderByX';
 import { weightedMean } from '../stats/weightedMean';
 import type { OutcomeFamily } from '../fit/glm';
 import { isPlainModel } from '../fit/model';
@@ -154,7 +154,7 @@ export class ResampleEngine {
       this.trained = new Uint8Array(C);
       this.sae = new Float64Array(C);
       this.maxAbs = new Float64Array(C);
-      this.layout = given?.layout ?? layoutByCell(this.cells, { y, mean: this.ymean, scale: this.yscale }, w, shareRows);
+      this.layout = given?.layout ?? layoutByCell(this.cells.breaks, xInOrder(x), problem.order, { y, mean: this.ymean, scale: this.yscale }, w, shareRows);
       this.held = this.drawn = heldOutRows(cellCount, w !== undefined);
       this.rows = given ?? { ymean: this.ymean, yscale: this.yscale, breaks: this.cells.breaks, knots: built.knots ?? [], layout: this.layout };
     }
@@ -179,7 +179,7 @@ export class ResampleEngine {
               train: this.sums,
               test: this.testSums,
               ...(layout
-                ? { addByLabel: (labels: Uint16Array, out: Float64Array) => sumsByLabel(layout, labels, out, (this.sums as Float64Array).length) }
+                ? { labelsByRank: true, addByLabel: (labels: Uint16Array, out: Float64Array) => sumsByLabel(layout, labels, out, (this.sums as Float64Array).length) }
                 : {
                     add: (target: Float64Array, i: number, wi: number) => accumulateRow(target, cells.cell[i] as number, cells.t[i] as number, this.yc[i] as number, wi),
                     addByLabel: (labels: Uint16Array, out: Float64Array) => accumulateByLabel(cells, this.yc, w, labels, out, (this.sums as Float64Array).length),
@@ -192,7 +192,7 @@ export class ResampleEngine {
                       return sumsFromCounts(layout, counts, this.sums as Float64Array, this.testSums as Float64Array, drawn);
                     },
                     heldOutByLabel: (labels: Uint16Array, labelCount: number, key: number, label: number) => {
-                      if (this.labelled?.key !== key) this.labelled = { key, rows: heldOutByLabel(layout, labels, labelCount, w) };
+                      if (this.labelled?.key !== key) this.labelled = { key, rows: heldOutByLabel(layout, labels, labelCount) };
                       const rows = this.labelled.rows[label] as HeldOutRows;
                       this.heldFilled = true;
                       this.held = rows;
@@ -265,11 +265,8 @@ export class ResampleEngine {
     const held = this.held;
     let wTest = 0;
     if (models && held && this.heldFilled) {
-      if (held === this.drawn && w) {
-        // The held-out rows' weight in row order, as the loop below adds it (the same bits).
-        const counts = this.drawState.scratch.counts as Uint32Array;
-        for (let i = 0; i < this.n; i++) if (counts[i] === 0) wTest += w[i] as number;
-      } else wTest = held.weight;
+      // Added in x order, as the loop below adds the bootstrap's out-of-bag rows (the same bits).
+      wTest = held.weight;
     } else {
       const testIdx = this.testIdx;
       for (let j = 0; j < nTest; j++) wTest += w ? (w[testIdx[j] as number] as number) : 1;

@@ -1,13 +1,15 @@
-import { accumulateRow, type Cells, SUMS_PER_CELL } from './cells';
+import { accumulateRow, SUMS_PER_CELL } from './cells';
 
 /**
- * The rows grouped by cell, in row order within each cell (a stable counting sort): the
- * resampling hot path's layout. A pass over it meets each cell's rows together, so the
- * cell's sums stay in local variables instead of memory, and the rows of each cell are added
- * in the order accumulateRow would add them row by row: the same sums to the last bit.
+ * The rows in x order (ties by row index), which groups them by cell: the resampling hot
+ * path's layout. A pass over it meets each cell's rows together, so the cell's sums stay in
+ * local variables instead of memory, and it reads the rows and their bootstrap
+ * multiplicities (drawn by x rank, core/registry/resampling/bootstrap.ts) one after another.
+ * The rows of each cell are added in x order: the same sums to the last bit as accumulateRow
+ * over the rows in x order (resampling version 3; version 2 added them in row order).
  */
 export interface CellLayout {
-  /** Row of each position: positions start[c] .. start[c + 1] - 1 hold the rows of cell c. */
+  /** Row of each position, the x order: positions start[c] .. start[c + 1] - 1 hold the rows of cell c. */
   readonly perm: Int32Array;
   /** First position of each cell, length cells + 1. */
   readonly start: Int32Array;
@@ -20,32 +22,57 @@ export interface CellLayout {
 }
 
 /**
- * Lays out the rows of `cells` by cell, with their prior weights and y centred and scaled,
- * (y - mean) / scale; `shared`: in shared memory, so that worker threads read the one copy.
- * O(n + cells).
+ * Lays out the rows in the x order `order` (orderByX of x) over the cells of `breaks`,
+ * given x in that order (`sortedX`, xInOrder): each row's cell and its position t in it
+ * come from a sweep over the sorted x, the same cell and the same bits of t as buildCells;
+ * y is centred and scaled, (y - mean) / scale, and carried with the prior weights to each
+ * row's position. `shared`: in shared memory, so that worker threads read the one copy.
+ * Throws when sortedX is not in order or its length is not order's. O(n + cells).
  */
-export function layoutByCell(cells: Cells, centred: { readonly y: Float64Array; readonly mean: number; readonly scale: number }, w: Float64Array | undefined, shared = false): CellLayout {
+export function layoutByCell(
+  breaks: Float64Array,
+  sortedX: Float64Array,
+  order: Int32Array,
+  centred: { readonly y: Float64Array; readonly mean: number; readonly scale: number },
+  w: Float64Array | undefined,
+  shared = false,
+): CellLayout {
   const { y, mean, scale } = centred;
-  const cellCount = cells.breaks.length - 1;
-  const n = cells.cell.length;
-  const start = new Int32Array(cellCount + 1);
-  for (let i = 0; i < n; i++) {
-    const c = (cells.cell[i] as number) + 1;
-    start[c] = (start[c] as number) + 1;
-  }
-  for (let c = 0; c < cellCount; c++) start[c + 1] = (start[c + 1] as number) + (start[c] as number);
-  const next = start.slice(0, cellCount);
+  const cellCount = breaks.length - 1;
+  const n = order.length;
+  if (sortedX.length !== n) throw new Error(`layoutByCell: ${sortedX.length} sorted x for an order of ${n} rows`);
   const bytes = (size: number): ArrayBuffer | SharedArrayBuffer => (shared ? new SharedArrayBuffer(size) : new ArrayBuffer(size));
+  const start = new Int32Array(cellCount + 1);
   const perm = new Int32Array(bytes(4 * n));
   const t = new Float64Array(bytes(8 * n));
   const yl = new Float64Array(bytes(8 * n));
   const wl = w ? new Float64Array(bytes(8 * n)) : undefined;
-  for (let i = 0; i < n; i++) {
-    const c = cells.cell[i] as number;
-    const p = next[c] as number;
-    next[c] = p + 1;
+  let c = 0;
+  let left = breaks[0] as number;
+  let width = (breaks[1] as number) - left;
+  let previous = -Infinity;
+  // Each row's position: read in row order and written to its position (scattered writes
+  // cost far less than as many scattered reads).
+  const position = new Int32Array(n);
+  for (let p = 0; p < n; p++) {
+    const xi = sortedX[p] as number;
+    if (!(xi >= previous)) throw new Error('layoutByCell: x is not in order');
+    previous = xi;
+    // The cell a binary search over the breaks finds (x below the first break: the first cell; at or above the last: the last).
+    while (c < cellCount - 1 && xi >= (breaks[c + 1] as number)) {
+      c++;
+      start[c] = p;
+      left = breaks[c] as number;
+      width = (breaks[c + 1] as number) - left;
+    }
+    const i = order[p] as number;
     perm[p] = i;
-    t[p] = cells.t[i] as number;
+    position[i] = p;
+    t[p] = (xi - left) / width;
+  }
+  for (let k = c + 1; k <= cellCount; k++) start[k] = n;
+  for (let i = 0; i < n; i++) {
+    const p = position[i] as number;
     yl[p] = ((y[i] as number) - mean) / scale;
     if (wl) wl[p] = (w as Float64Array)[i] as number;
   }
@@ -53,20 +80,20 @@ export function layoutByCell(cells: Cells, centred: { readonly y: Float64Array; 
 }
 
 /**
- * The sums of several disjoint row groups (k-fold's folds, bundles): row i goes with its
- * prior weight into the block labels[i] of `out` (blocks of `stride` entries one after
- * another; out is cleared first). The same bits as accumulateByLabel over the rows in order:
- * each block's rows are added in row order. O(n).
+ * The sums of several disjoint row groups (k-fold's folds, bundles): the row at position p
+ * goes with its prior weight into the block labels[p] of `out` (labels by position, the x
+ * rank; blocks of `stride` entries one after another; out is cleared first). Each block's
+ * rows are added in x order, the same bits as accumulateRow over the rows in that order. O(n).
  */
 export function sumsByLabel(layout: CellLayout, labels: Uint16Array, out: Float64Array, stride: number): void {
   out.fill(0);
-  const { perm, start, t, y, w } = layout;
+  const { start, t, y, w } = layout;
   const cellCount = start.length - 1;
   const cellsPerBlock = stride / SUMS_PER_CELL;
   for (let c = 0; c < cellCount; c++) {
     const end = start[c + 1] as number;
     for (let p = start[c] as number; p < end; p++) {
-      accumulateRow(out, (labels[perm[p] as number] as number) * cellsPerBlock + c, t[p] as number, y[p] as number, w ? (w[p] as number) : 1);
+      accumulateRow(out, (labels[p] as number) * cellsPerBlock + c, t[p] as number, y[p] as number, w ? (w[p] as number) : 1);
     }
   }
 }
@@ -99,14 +126,16 @@ function ensureRoom(out: HeldOutRows, size: number): void {
 }
 
 /**
- * The bootstrap's sums from the rows' multiplicities `counts` (by row): `train` gets each
- * row with weight count x prior weight, `test` each row of count 0 with its prior weight,
- * both the same bits as accumulateRow row by row; the rows of count 0 go into `out`.
- * Returns their number. About a dozen multiply-adds a row, on local variables. O(n).
+ * The bootstrap's sums from the multiplicities `counts` by position (x rank: counts[p] is
+ * row perm[p]'s): `train` gets each row with weight count x prior weight, `test` each row of
+ * count 0 with its prior weight, both the same bits as accumulateRow row by row in x order;
+ * the rows of count 0 go into `out`. Returns their number. About a dozen multiply-adds a
+ * row, on local variables, reading every array in order. O(n).
  */
 export function sumsFromCounts(layout: CellLayout, counts: Uint32Array, train: Float64Array, test: Float64Array, out: HeldOutRows): number {
   const { perm, start, t: tl, y: yl, w: wl } = layout;
   const cellCount = start.length - 1;
+  if (counts.length < perm.length) throw new Error(`sumsFromCounts: ${counts.length} multiplicities for ${perm.length} rows`);
   // At most every row is held out; the expected share is (1 - 1/n)^n, about 0.37.
   ensureRoom(out, Math.min(perm.length, Math.ceil(0.4 * perm.length) + 64));
   let ht = out.t;
@@ -143,7 +172,7 @@ export function sumsFromCounts(layout: CellLayout, counts: Uint32Array, train: F
       b11 = 0;
     const end = start[c + 1] as number;
     for (let p = start[c] as number; p < end; p++) {
-      const m = counts[perm[p] as number] as number;
+      const m = counts[p] as number;
       const t = tl[p] as number;
       const y = yl[p] as number;
       const wi = wl ? (wl[p] as number) : 1;
@@ -246,12 +275,12 @@ export function heldOutWhere(layout: CellLayout, held: Uint8Array, out: HeldOutR
 }
 
 /**
- * The held-out rows of every label at once (k-fold's folds): those of label f, grouped by
- * cell, are rows[f]; their arrays are views of one set of arrays with every row once. Each
- * entry's `weight` is its rows' prior weight added in row order (`rowWeights`, by row; their
- * count when absent), as a sum over the listed rows would add it. O(n + labels x cells).
+ * The held-out rows of every label at once (k-fold's folds; labels by position, the x
+ * rank): those of label f, grouped by cell, are rows[f]; their arrays are views of one set
+ * of arrays with every row once. Each entry's `weight` is its rows' prior weight added in x
+ * order (their count without weights), as a sum over the listed rows adds it. O(n + labels x cells).
  */
-export function heldOutByLabel(layout: CellLayout, labels: Uint16Array, labelCount: number, rowWeights: Float64Array | undefined): HeldOutRows[] {
+export function heldOutByLabel(layout: CellLayout, labels: Uint16Array, labelCount: number): HeldOutRows[] {
   const { perm, start, t: tl, y: yl, w: wl } = layout;
   const cellCount = start.length - 1;
   const n = perm.length;
@@ -260,7 +289,7 @@ export function heldOutByLabel(layout: CellLayout, labels: Uint16Array, labelCou
   for (let c = 0; c < cellCount; c++) {
     const end = start[c + 1] as number;
     for (let p = start[c] as number; p < end; p++) {
-      const b = (labels[perm[p] as number] as number) * cellCount + c + 1;
+      const b = (labels[p] as number) * cellCount + c + 1;
       counts[b] = (counts[b] as number) + 1;
     }
   }
@@ -272,7 +301,7 @@ export function heldOutByLabel(layout: CellLayout, labels: Uint16Array, labelCou
   for (let c = 0; c < cellCount; c++) {
     const end = start[c + 1] as number;
     for (let p = start[c] as number; p < end; p++) {
-      const b = (labels[perm[p] as number] as number) * cellCount + c;
+      const b = (labels[p] as number) * cellCount + c;
       const j = next[b] as number;
       next[b] = j + 1;
       t[j] = tl[p] as number;
@@ -281,7 +310,7 @@ export function heldOutByLabel(layout: CellLayout, labels: Uint16Array, labelCou
     }
   }
   const weights = new Float64Array(labelCount);
-  if (rowWeights) for (let i = 0; i < n; i++) weights[labels[i] as number] = (weights[labels[i] as number] as number) + (rowWeights[i] as number);
+  if (wl) for (let p = 0; p < n; p++) weights[labels[p] as number] = (weights[labels[p] as number] as number) + (wl[p] as number);
   const out: HeldOutRows[] = [];
   for (let f = 0; f < labelCount; f++) {
     const from = counts[f * cellCount] as number;
@@ -290,7 +319,7 @@ export function heldOutByLabel(layout: CellLayout, labels: Uint16Array, labelCou
     for (let c = 0; c <= cellCount; c++) cellStart[c] = (counts[f * cellCount + c] as number) - from;
     out.push({
       count: to - from,
-      weight: rowWeights ? (weights[f] as number) : to - from,
+      weight: wl ? (weights[f] as number) : to - from,
       start: cellStart,
       t: t.subarray(from, to),
       y: y.subarray(from, to),

@@ -9,8 +9,11 @@ const RESAMPLES = { min: 2, max: 5000 } as const;
 
 /**
  * Bootstrap resample b: n rows drawn with replacement (Efron & Tibshirani 1993, An
- * Introduction to the Bootstrap, chapter 6); writes each row's multiplicity into `counts`.
- * Rows with count 0 are out of bag. Seeded per (seed, b), so independent of threads. O(n).
+ * Introduction to the Bootstrap, chapter 6), each draw an x rank; writes the multiplicity
+ * of the row at each x rank into `counts` (counts[k] belongs to row order[k] of the x order,
+ * orderByX). Drawing ranks instead of row indices draws the same distribution and lets the
+ * resampling read the multiplicities in x order (resampling version 3). Rows with count 0
+ * are out of bag. Seeded per (seed, b), so independent of threads. O(n).
  * Example: bootstrapCounts(5, 1, 0, new Uint32Array(5)) leaves counts summing to 5.
  */
 export function bootstrapCounts(n: number, seed: number, b: number, counts: Uint32Array): void {
@@ -42,10 +45,10 @@ export const bootstrap: ResamplingScheme<Bootstrap> = {
   },
   count: (s) => s.resamples,
   draw(_s, r, state: DrawState) {
-    const { n, w, weights, testIdx, powerSums } = state;
+    const { n, w, weights, testIdx, powerSums, order } = state;
     const counts = (state.scratch.counts ??= new Uint32Array(n)) as Uint32Array;
     bootstrapCounts(n, state.seed, r, counts);
-    // The power-sum path's own pass over its rows grouped by cell (no training weights to fill there).
+    // The power-sum path's own pass over its rows in x order (no training weights to fill there).
     if (powerSums?.fromCounts && !weights) return powerSums.fromCounts(counts);
     const add = powerSums?.add;
     if (powerSums && !add) throw new Error('bootstrap: the power sums take neither multiplicities nor single rows');
@@ -54,8 +57,10 @@ export const bootstrap: ResamplingScheme<Bootstrap> = {
       powerSums.test.fill(0);
     }
     let nTest = 0;
-    for (let i = 0; i < n; i++) {
-      const c = counts[i] as number;
+    // Rank k's multiplicity is row order[k]'s; the out-of-bag rows are listed in x order.
+    for (let k = 0; k < n; k++) {
+      const i = order[k] as number;
+      const c = counts[k] as number;
       const wi = w ? (w[i] as number) : 1;
       if (weights) weights[i] = c * wi;
       if (c === 0) testIdx[nTest++] = i;

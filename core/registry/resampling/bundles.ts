@@ -47,7 +47,7 @@ export const bundles: ResamplingScheme<Bundles> = {
   },
   count: (s) => s.resamples,
   draw(_s, r, state: DrawState) {
-    const { n, w, weights, testIdx, powerSums, seed } = state;
+    const { n, w, weights, testIdx, powerSums, seed, order } = state;
     const B = bundleCount(n);
     let scratch = state.scratch.bundles as BundleScratch | undefined;
     if (!scratch) {
@@ -55,10 +55,10 @@ export const bundles: ResamplingScheme<Bundles> = {
       for (let i = 0; i < n; i++) bundle[i] = bundleOf(i, seed, B);
       scratch = { bundle, counts: new Uint32Array(B) };
       if (powerSums) {
-        // Each bundle's power sums, rows in order: the streamed fit adds them up the same way.
+        // Each bundle's power sums (the streamed fit adds its rows in file order, equal to rounding).
         const size = powerSums.train.length;
         const sums = new Float64Array(B * size);
-        if (powerSums.addByLabel) powerSums.addByLabel(Uint16Array.from(bundle), sums);
+        if (powerSums.addByLabel) powerSums.addByLabel(powerSums.labelsByRank ? Uint16Array.from(order, (i) => bundle[i] as number) : Uint16Array.from(bundle), sums);
         else {
           const add = powerSums.add as NonNullable<typeof powerSums.add>;
           for (let i = 0; i < n; i++) {

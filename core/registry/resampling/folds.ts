@@ -12,10 +12,12 @@ const REPEATS = { min: 1, max: 100 } as const;
  * Fold labels for repeat r of K-fold cross-validation, stratified by x: rows in x order
  * are cut into consecutive blocks of K and each block gets a random permutation of the K
  * labels, so every fold spans the whole x range (common practice for regression
- * stratification). O(n). `order` is orderByX(x).
+ * stratification). O(n). `order` is orderByX(x); `placement` 'row' writes the label of row
+ * i at out[i], 'rank' the label of x rank k (row order[k]) at out[k], the same labelling.
  * Example: foldLabels(orderByX(x), 5, 1, 0, labels) gives labels 0..4, each about n/5 times.
  */
-export function foldLabels(order: Int32Array, folds: number, seed: number, repeat: number, out: Uint16Array): void {
+export function foldLabels(order: Int32Array, folds: number, seed: number, repeat: number, out: Uint16Array, placement: 'row' | 'rank' = 'row'): void {
+  const byRank = placement === 'rank';
   const n = order.length;
   const rng = new RandomStream(seed, 1_000_000 + repeat);
   const perm = new Uint16Array(folds);
@@ -28,12 +30,13 @@ export function foldLabels(order: Int32Array, folds: number, seed: number, repea
       perm[j] = t;
     }
     const end = Math.min(n, start + folds);
-    for (let i = start; i < end; i++) out[order[i] as number] = perm[i - start] as number;
+    for (let i = start; i < end; i++) out[byRank ? i : (order[i] as number)] = perm[i - start] as number;
   }
 }
 
 interface FoldScratch {
   repeat: number;
+  /** By row, or by x rank when the power sums take them so (PowerSumAccess.labelsByRank). */
   labels: Uint16Array;
   /** Power-sum path: the sums of every fold, then their total, one after another. */
   foldSums: Float64Array | undefined;
@@ -44,8 +47,8 @@ function prepareRepeat(state: DrawState, folds: number, repeat: number): FoldScr
   const s = (state.scratch.folds ??= { repeat: -1, labels: new Uint16Array(state.n), foldSums: undefined }) as FoldScratch;
   if (s.repeat === repeat) return s;
   s.repeat = repeat;
-  foldLabels(state.order, folds, state.seed, repeat, s.labels);
   const ps = state.powerSums;
+  foldLabels(state.order, folds, state.seed, repeat, s.labels, ps?.labelsByRank ? 'rank' : 'row');
   if (!ps) return s;
   const len = ps.train.length;
   s.foldSums ??= new Float64Array((folds + 1) * len);
@@ -56,7 +59,10 @@ function prepareRepeat(state: DrawState, folds: number, repeat: number): FoldScr
   if (ps.addByLabel) ps.addByLabel(s.labels, fs);
   else {
     const add = ps.add as NonNullable<typeof ps.add>;
-    for (let i = 0; i < state.n; i++) add(views[s.labels[i] as number] as Float64Array, i, w ? (w[i] as number) : 1);
+    for (let k = 0; k < state.n; k++) {
+      const i = ps.labelsByRank ? (state.order[k] as number) : k;
+      add(views[s.labels[k] as number] as Float64Array, i, w ? (w[i] as number) : 1);
+    }
   }
   const total = fs.subarray(folds * len, (folds + 1) * len);
   for (const v of views) for (let j = 0; j < len; j++) total[j] = (total[j] as number) + (v[j] as number);
@@ -88,7 +94,7 @@ export const folds: ResamplingScheme<Folds> = {
   draw(s, r, state) {
     const fold = r % s.folds;
     const { labels, foldSums } = prepareRepeat(state, s.folds, Math.floor(r / s.folds));
-    const { n, w, weights, testIdx, powerSums } = state;
+    const { n, w, weights, testIdx, powerSums, order } = state;
     if (powerSums && foldSums) {
       // Training sums are the total minus the fold's own.
       const len = powerSums.train.length;
@@ -102,8 +108,11 @@ export const folds: ResamplingScheme<Folds> = {
     // The power-sum path keeps every fold's rows of this repeat at once (no training weights to fill there).
     if (powerSums?.heldOutByLabel && !weights) return powerSums.heldOutByLabel(labels, s.folds, Math.floor(r / s.folds), fold);
     let nTest = 0;
-    for (let i = 0; i < n; i++) {
-      const inFold = labels[i] === fold;
+    const byRank = powerSums?.labelsByRank === true;
+    for (let k = 0; k < n; k++) {
+      // Label k is row k's, or row order[k]'s when the labels are by x rank.
+      const i = byRank ? (order[k] as number) : k;
+      const inFold = labels[k] === fold;
       if (weights) weights[i] = inFold ? 0 : w ? (w[i] as number) : 1;
       if (inFold) testIdx[nTest++] = i;
     }

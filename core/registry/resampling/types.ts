@@ -15,7 +15,7 @@ export interface Limit {
 export interface DrawState {
   readonly n: number;
   readonly seed: number;
-  /** Row indices in x order (for stratified folds). */
+  /** Row indices in x order (for stratified folds, and the rows of the bootstrap's drawn ranks). */
   readonly order: Int32Array;
   /** Prior weights, or undefined for all 1. */
   readonly w: Float64Array | undefined;
@@ -40,17 +40,26 @@ export interface PowerSumAccess {
   readonly test: Float64Array;
   /** Adds row i with weight wi to `target` (absent when the rows are kept grouped by cell: addByLabel then serves). */
   add?(target: Float64Array, i: number, wi: number): void;
-  /** Fills consecutive blocks of `out` (one per label, train.length entries each) with the rows of each label, weight w_i; the same sums as `add` row by row. One of add and addByLabel is there. */
+  /**
+   * Fills consecutive blocks of `out` (one per label, train.length entries each) with the
+   * rows of each label, weight w_i; the same sums as `add` row by row in x order. One of add
+   * and addByLabel is there. The labels are by row, or by x rank when `labelsByRank`.
+   */
   addByLabel?(labels: Uint16Array, out: Float64Array): void;
   /**
-   * Fills `train` with every row at its multiplicity counts[i] times its prior weight and
-   * `test` with the rows of multiplicity 0 (the bootstrap's draw), the same sums as `add`
-   * row by row, and keeps those rows as the held-out rows itself (testIdx is then left as
-   * it is). Returns their number.
+   * True when addByLabel and heldOutByLabel take their labels by x rank (labels[k] belongs
+   * to row order[k]): the rows are kept in x order, which then reads the labels in order.
+   */
+  readonly labelsByRank?: boolean;
+  /**
+   * Fills `train` with every row at its multiplicity times its prior weight and `test` with
+   * the rows of multiplicity 0 (the bootstrap's draw; counts by x rank, counts[k] for row
+   * order[k]), the same sums as `add` row by row in x order, and keeps those rows as the
+   * held-out rows itself (testIdx is then left as it is). Returns their number.
    */
   fromCounts?(counts: Uint32Array): number;
   /**
-   * Keeps the rows with labels[i] === label as the held-out rows itself (testIdx is then left
+   * Keeps the rows whose label is `label` as the held-out rows itself (testIdx is then left
    * as it is; `train` and `test` are the scheme's to fill). `key` names the labelling: while
    * it stays the same, the labels must not change (k-fold: the repeat). Returns their number.
    */

@@ -147,10 +147,14 @@ function resampleRows(d: Data, spec: ResampleSpec, seed: number, r: number): { t
   if (spec.kind === 'bootstrap') {
     const counts = new Uint32Array(n);
     bootstrapCounts(n, seed, r, counts);
-    for (let i = 0; i < n; i++) {
-      train[i] = (counts[i] as number) * (d.w ? (d.w[i] as number) : 1);
-      if (counts[i] === 0) test.push(i);
+    // The multiplicities are by x rank: rank k is row order[k].
+    const order = orderByX(d.x);
+    for (let k = 0; k < n; k++) {
+      const i = order[k] as number;
+      train[i] = (counts[k] as number) * (d.w ? (d.w[i] as number) : 1);
+      if (counts[k] === 0) test.push(i);
     }
+    test.sort((a, b) => a - b);
   } else if (spec.kind === 'folds') {
     const labels = new Uint16Array(n);
     foldLabels(orderByX(d.x), spec.folds, seed, Math.floor(r / spec.folds), labels);

@@ -1,17 +1,17 @@
 /**
  * Tests of the resampling hot path's rows grouped by cell (core/fit/powerSums/layout.ts) and
- * of the cells' bucket lookup (core/fit/powerSums/cells.ts buildCells). The layout must give
- * the same sums, bit for bit, as accumulateRow row by row in row order (the arithmetic every
- * earlier fit record was made with), and the same held-out rows as a plain filter over the
- * rows. Data: seeded normal draws, rounded to two decimals so that x has ties, with and
+ * of the cells' bucket lookup (core/fit/powerSums/cells.ts buildCells). The layout holds the
+ * rows in x order and must give the same sums, bit for bit, as accumulateRow row by row in
+ * that order (resampling version 3), with the bootstrap's multiplicities by x rank, and the
+ * same held-out rows as a plain filter over the rows. Data: seeded normal draws, rounded to two decimals so that x has ties, with and
  * without prior weights.
  */
 import { strict as assert } from 'node:assert';
-import { accumulateByLabel, accumulateRow, buildCells, SUMS_PER_CELL } from '../../../../core/fit/powerSums/cells';
+import { accumulateRow, buildCells, SUMS_PER_CELL } from '../../../../core/fit/powerSums/cells';
 import { absoluteErrors, heldOutByLabel, heldOutRows, heldOutWhere, layoutByCell, sumsByLabel, sumsFromCounts } from '../../../../core/fit/powerSums/layout';
 import { bootstrapCounts } from '../../../../core/registry/resampling/bootstrap';
 import { foldLabels } from '../../../../core/registry/resampling/folds';
-import { orderByX } from '../../../../core/stats/orderByX';
+import { orderByX, xInOrder } from '../../../../core/stats/orderByX';
 import { RandomStream } from '../../../../core/tune/rng';
 import { seededNormals } from '../../stats/seededNormal';
 
@@ -45,6 +45,8 @@ describe('power-sum rows grouped by cell', () => {
   const scale = 3;
   const yc = y.map((v) => (v - mean) / scale);
   const weights = [undefined, seededNormals(33, n).map((v) => 0.5 + Math.abs(v))];
+  const order = orderByX(x);
+  const sortedX = xInOrder(x);
 
   it('buildCells puts every row in the cell a binary search finds, with the same position in it, also for x outside the knots and on a break', () => {
     const rng = new RandomStream(9, 0);
@@ -65,28 +67,34 @@ describe('power-sum rows grouped by cell', () => {
     }
   });
 
-  it('layoutByCell holds every row once, grouped by cell, in row order within each cell, with y centred and scaled', () => {
+  it('layoutByCell holds every row once, in x order (ties by row), grouped by cell, with y centred and scaled; it refuses another order', () => {
     for (const w of weights) {
-      const layout = layoutByCell(cells, { y, mean, scale }, w);
+      const layout = layoutByCell(cells.breaks, sortedX, order, { y, mean, scale }, w);
       assert.equal(layout.start[cellCount], n);
+      sameBits(layout.perm, order, 'the x order');
       const seen = new Uint8Array(n);
       for (let c = 0; c < cellCount; c++) {
         for (let p = layout.start[c] as number; p < (layout.start[c + 1] as number); p++) {
           const i = layout.perm[p] as number;
           assert.equal(cells.cell[i], c);
-          if (p > (layout.start[c] as number)) assert.ok(i > (layout.perm[p - 1] as number), 'row order within a cell');
+          if (p > (layout.start[c] as number)) {
+            const before = layout.perm[p - 1] as number;
+            assert.ok((x[before] as number) < (x[i] as number) || (x[before] === x[i] && before < i), 'x order, ties by row, within a cell');
+          }
           assert.ok(Object.is(layout.t[p], cells.t[i]) && Object.is(layout.y[p], yc[i]) && (!w || Object.is(layout.w?.[p], w[i])));
           seen[i] = (seen[i] as number) + 1;
         }
       }
       assert.ok(seen.every((s) => s === 1));
     }
+    assert.throws(() => layoutByCell(cells.breaks, x, order, { y, mean, scale }, undefined), /not in order/);
+    assert.throws(() => layoutByCell(cells.breaks, sortedX, order.subarray(1), { y, mean, scale }, undefined), /sorted x for an order/);
   });
 
-  it('sumsFromCounts gives the bootstrap sums of accumulateRow row by row, bit for bit, and the rows of count 0 as the held-out rows', () => {
+  it('sumsFromCounts gives the bootstrap sums of accumulateRow row by row in x order, bit for bit, with the multiplicities by x rank, and the rows of count 0 as the held-out rows', () => {
     const counts = new Uint32Array(n);
     for (const w of weights) {
-      const layout = layoutByCell(cells, { y, mean, scale }, w);
+      const layout = layoutByCell(cells.breaks, sortedX, order, { y, mean, scale }, w);
       const held = heldOutRows(cellCount, w !== undefined);
       for (let r = 0; r < 3; r++) {
         bootstrapCounts(n, 5, r, counts);
@@ -96,8 +104,9 @@ describe('power-sum rows grouped by cell', () => {
         const wantTrain = new Float64Array(len);
         const wantTest = new Float64Array(len);
         let zero = 0;
-        for (let i = 0; i < n; i++) {
-          const c = counts[i] as number;
+        for (let k = 0; k < n; k++) {
+          const i = order[k] as number;
+          const c = counts[k] as number;
           const wi = w ? (w[i] as number) : 1;
           accumulateRow(c > 0 ? wantTrain : wantTest, cells.cell[i] as number, cells.t[i] as number, yc[i] as number, c > 0 ? c * wi : wi);
           if (c === 0) zero++;
@@ -106,8 +115,9 @@ describe('power-sum rows grouped by cell', () => {
         sameBits(test, wantTest, `resample ${r} held-out sums`);
         assert.equal(count, zero);
         assert.equal(held.count, zero);
-        // The held-out rows cell by cell, in row order: a plain filter over the layout.
-        const mask = Uint8Array.from(counts, (c) => (c === 0 ? 1 : 0));
+        // The held-out rows cell by cell, in x order: a plain filter over the layout (its mask by row).
+        const mask = new Uint8Array(n);
+        for (let k = 0; k < n; k++) mask[order[k] as number] = counts[k] === 0 ? 1 : 0;
         const again = heldOutRows(cellCount, w !== undefined);
         heldOutWhere(layout, mask, again);
         sameBits(held.start, again.start, 'cell starts');
@@ -119,39 +129,43 @@ describe('power-sum rows grouped by cell', () => {
   });
 
   it('sumsFromCounts grows its held-out rows when more rows than expected are out (every row out of bag)', () => {
-    const layout = layoutByCell(cells, { y, mean, scale }, undefined);
+    const layout = layoutByCell(cells.breaks, sortedX, order, { y, mean, scale }, undefined);
     const held = heldOutRows(cellCount, false);
     const count = sumsFromCounts(layout, new Uint32Array(n), new Float64Array(len), new Float64Array(len), held);
     assert.equal(count, n);
     sameBits(held.y.subarray(0, n), layout.y, 'every row, in layout order');
   });
 
-  it('sumsByLabel gives every fold the sums of accumulateByLabel, bit for bit', () => {
+  it('sumsByLabel gives every fold the sums of accumulateRow row by row in x order, bit for bit', () => {
     const folds = 6;
     const labels = new Uint16Array(n);
-    foldLabels(orderByX(x), folds, 4, 0, labels);
+    // Labels by x rank, as the layout reads them.
+    foldLabels(order, folds, 4, 0, labels, 'rank');
     for (const w of weights) {
-      const layout = layoutByCell(cells, { y, mean, scale }, w);
+      const layout = layoutByCell(cells.breaks, sortedX, order, { y, mean, scale }, w);
       const got = new Float64Array(folds * len).fill(3);
       sumsByLabel(layout, labels, got, len);
       const want = new Float64Array(folds * len);
-      accumulateByLabel(cells, yc, w, labels, want, len);
+      order.forEach((i, k) => accumulateRow(want, (labels[k] as number) * cellCount + (cells.cell[i] as number), cells.t[i] as number, yc[i] as number, w ? (w[i] as number) : 1));
       sameBits(got, want, 'fold sums');
     }
   });
 
-  it('heldOutByLabel gives each fold its rows cell by cell, and their weight added in row order', () => {
+  it('heldOutByLabel gives each fold its rows cell by cell (labels by x rank), and their weight added in x order', () => {
     const folds = 5;
     const labels = new Uint16Array(n);
-    foldLabels(orderByX(x), folds, 8, 0, labels);
+    const byRow = new Uint16Array(n);
+    foldLabels(order, folds, 8, 0, labels, 'rank');
+    foldLabels(order, folds, 8, 0, byRow);
+    order.forEach((i, k) => assert.equal(byRow[i], labels[k], 'the same labelling, placed by rank'));
     for (const w of weights) {
-      const layout = layoutByCell(cells, { y, mean, scale }, w);
-      const byLabel = heldOutByLabel(layout, labels, folds, w);
+      const layout = layoutByCell(cells.breaks, sortedX, order, { y, mean, scale }, w);
+      const byLabel = heldOutByLabel(layout, labels, folds);
       for (let f = 0; f < folds; f++) {
         const want = heldOutRows(cellCount, w !== undefined);
         heldOutWhere(
           layout,
-          Uint8Array.from(labels, (l) => (l === f ? 1 : 0)),
+          Uint8Array.from(byRow, (l) => (l === f ? 1 : 0)),
           want,
         );
         const got = byLabel[f] as (typeof byLabel)[number];
@@ -160,7 +174,9 @@ describe('power-sum rows grouped by cell', () => {
         sameBits(got.t, want.t.subarray(0, want.count), `fold ${f} t`);
         sameBits(got.y, want.y.subarray(0, want.count), `fold ${f} y`);
         let weight = 0;
-        for (let i = 0; i < n; i++) if (labels[i] === f) weight += w ? (w[i] as number) : 1;
+        order.forEach((i, k) => {
+          if (labels[k] === f) weight += w ? (w[i] as number) : 1;
+        });
         assert.ok(Object.is(got.weight, weight), `fold ${f} weight`);
       }
     }
@@ -170,7 +186,7 @@ describe('power-sum rows grouped by cell', () => {
     const rng = new RandomStream(12, 0);
     const poly = Float64Array.from({ length: 4 * cellCount }, () => rng.int(2001) / 1000 - 1);
     for (const w of weights) {
-      const layout = layoutByCell(cells, { y, mean, scale }, w);
+      const layout = layoutByCell(cells.breaks, sortedX, order, { y, mean, scale }, w);
       const held = heldOutRows(cellCount, w !== undefined);
       const counts = new Uint32Array(n);
       bootstrapCounts(n, 2, 0, counts);
@@ -179,8 +195,9 @@ describe('power-sum rows grouped by cell', () => {
       absoluteErrors(held, poly, result);
       let sae = 0;
       let max = 0;
-      for (let i = 0; i < n; i++) {
-        if (counts[i] !== 0) continue;
+      for (let k = 0; k < n; k++) {
+        if (counts[k] !== 0) continue;
+        const i = order[k] as number;
         const o = (cells.cell[i] as number) * 4;
         const t = cells.t[i] as number;
         const a = Math.abs((yc[i] as number) - ((poly[o] as number) + t * ((poly[o + 1] as number) + t * ((poly[o + 2] as number) + t * (poly[o + 3] as number)))));
