@@ -42,6 +42,9 @@ export function xInOrder(x: Float64Array): Float64Array {
   let sorted = inOrder.get(x);
   if (!sorted) {
     const order = orderByX(x);
+    // Sorting x gives its values in order too; an order recorded by knownOrder needs the gather.
+    const sortedThen = inOrder.get(x);
+    if (sortedThen) return sortedThen;
     sorted = new Float64Array(x.length);
     for (let k = 0; k < x.length; k++) sorted[k] = x[order[k] as number] as number;
     inOrder.set(x, sorted);
