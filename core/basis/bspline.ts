@@ -79,6 +79,11 @@ export class BSplineEvaluator {
     const hi = t[t.length - ORDER] as number;
     const u = x < lo ? lo : x > hi ? hi : x;
     const span = findSpan(t, u);
+    if (derivs === 0) {
+      this.valuesOnly(t, span, u);
+      this.first = span - P;
+      return this.first;
+    }
     const { left, right, ndu, a } = this;
     ndu[0] = 1;
     for (let j = 1; j <= P; j++) {
@@ -127,5 +132,39 @@ export class BSplineEvaluator {
     }
     this.first = span - P;
     return this.first;
+  }
+
+  /**
+   * The values alone: the loop of eval above for the cubic, unrolled on local variables
+   * (the same operations in the same order, so the same bits), into `value`. Nij below is
+   * ndu[j * 4 + i] there, before the triangle is transposed. O(1).
+   */
+  private valuesOnly(t: Float64Array, s: number, u: number): void {
+    const zero = 0;
+    const l1 = u - (t[s] as number);
+    const r1 = (t[s + 1] as number) - u;
+    let temp = 1 / (r1 + l1);
+    const n01 = zero + r1 * temp;
+    const n11 = l1 * temp;
+    const l2 = u - (t[s - 1] as number);
+    const r2 = (t[s + 2] as number) - u;
+    temp = n01 / (r1 + l2);
+    const n02 = zero + r1 * temp;
+    let saved = l2 * temp;
+    temp = n11 / (r2 + l1);
+    const n12 = saved + r2 * temp;
+    const n22 = l1 * temp;
+    const l3 = u - (t[s - 2] as number);
+    const r3 = (t[s + 3] as number) - u;
+    temp = n02 / (r1 + l3);
+    const value = this.value;
+    value[0] = zero + r1 * temp;
+    saved = l3 * temp;
+    temp = n12 / (r2 + l2);
+    value[1] = saved + r2 * temp;
+    saved = l2 * temp;
+    temp = n22 / (r3 + l1);
+    value[2] = saved + r3 * temp;
+    value[3] = l1 * temp;
   }
 }
