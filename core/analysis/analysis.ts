@@ -1,5 +1,6 @@
 import type { Analysis, AnalysisOptions, Diagnostics } from './types';
-import { diagnose } from './diagnose';
+import { diagnose, diagnoseAside } from './diagnose';
+import type { ChecksAside } from './designSums';
 import { InputError } from '../errors';
 import { prepareData } from '../fit/prepared';
 import { holdoutMask, orderByX } from '../tune/plan';
@@ -17,10 +18,18 @@ export const HOLDOUT_WARN_RATIO = 1.25;
  * the chosen fit with its diagnostics, and the held-out check used once at the end.
  * `runner` decides where resamples run (inline, or worker threads from core/node/pool).
  * `checks`: 'when-read' leaves the chosen fit's residual checks (diagnostics, O(n log n))
- * until `diagnostics` is first read, so that the editor can show the curve before them.
+ * until `diagnostics` is first read, so that the editor can show the curve before them; a
+ * ChecksAside runs them now with the design tests' sums on the thread it lends
+ * (diagnoseAside: the same checks, sooner on two threads).
  * Example: await analyse({ x, y }, { family: 'natural-spline', resample: { kind: 'folds', folds: 10, repeats: 1 }, rule: { kind: 'one-se' }, seed: 1 }).
  */
-export async function analyse(data: XYData, options: AnalysisOptions, runner: ResampleRunner = inlineRunner, progress?: Progress, checks: 'now' | 'when-read' = 'now'): Promise<Analysis> {
+export async function analyse(
+  data: XYData,
+  options: AnalysisOptions,
+  runner: ResampleRunner = inlineRunner,
+  progress?: Progress,
+  checks: 'now' | 'when-read' | ChecksAside = 'now',
+): Promise<Analysis> {
   const split = options.holdout ? splitHoldout(data, options.holdout, options.seed) : undefined;
   const tuning = split ? split.train : data;
   const prepared = prepareData(tuning);
@@ -44,6 +53,7 @@ export async function analyse(data: XYData, options: AnalysisOptions, runner: Re
   const holdout = split ? holdoutReport(chosen, split.test, options.holdout as number, resampledRmse(result.candidates, chosen)) : undefined;
   const tuned = { options, n: prepared.data.x.length, data: tuning, ...(split ? { heldOut: split.test } : {}), tune: holdout ? { ...result, holdout } : result, fits, chosen };
   if (checks === 'now') return { ...tuned, diagnostics: diagnose(tuning, chosen) };
+  if (checks !== 'when-read') return { ...tuned, diagnostics: await diagnoseAside(tuning, chosen, checks) };
   // Run on first read, once: whoever reads them first (the panel's details, a save) waits for them.
   let diagnostics: Diagnostics | undefined;
   return Object.defineProperty(tuned as Omit<Analysis, 'diagnostics'> & { diagnostics?: Diagnostics }, 'diagnostics', {

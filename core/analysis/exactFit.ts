@@ -15,6 +15,8 @@ const EXACT_FIT_ULPS = 64;
  */
 export function exactFitResidual(fit: FitResult, data: XYData): number | undefined {
   const { y } = data;
+  // Read once: a fit's per-row arrays may be getters (core/fit/summary.ts summariseLazily).
+  const residuals = fit.residuals;
   let lo = Infinity;
   let hi = -Infinity;
   let big = 0;
@@ -24,7 +26,7 @@ export function exactFitResidual(fit: FitResult, data: XYData): number | undefin
     lo = Math.min(lo, v);
     hi = Math.max(hi, v);
     big = Math.max(big, Math.abs(v));
-    const r = Math.abs(fit.residuals[i] as number);
+    const r = Math.abs(residuals[i] as number);
     // A NaN residual is no exact fit.
     worst = r > worst || Number.isNaN(r) ? r : worst;
   }

@@ -1,7 +1,7 @@
 import { FitError } from '../errors';
 import { quantileType7 } from '../stats/quantile';
 import { BSplineEvaluator, clampedKnots } from './bspline';
-import type { RowBasis } from './rowBasis';
+import type { BasisSpec, RowBasis } from './rowBasis';
 
 /** Knots of a natural cubic regression spline and what was done to place them. */
 export interface NaturalKnots {
@@ -134,6 +134,11 @@ export class ExtrapolatingBSplineBasis implements RowBasis {
     return first;
   }
 
+  /** Boundary and interior knots: ExtrapolatingBSplineBasis(lower, upper, interior) is this basis again (basisFromSpec). */
+  spec(): BasisSpec {
+    return { kind: 'extrapolating-b-spline', lower: this.lower, upper: this.upper, interior: Float64Array.from(this.pieceBreaks) };
+  }
+
   /**
    * Coefficients of the constant function 1: all ones (the B-splines sum to 1 on the knot
    * range, and beyond it their slopes sum to 0). Fits centre y with it.
@@ -163,4 +168,9 @@ export class ExtrapolatingBSplineBasis implements RowBasis {
     }
     return c;
   }
+}
+
+/** The basis a spec describes (RowBasis.spec), built as the fit built it: the same rows to the last bit. */
+export function basisFromSpec(spec: BasisSpec): RowBasis {
+  return new ExtrapolatingBSplineBasis(spec.lower, spec.upper, spec.interior);
 }

@@ -26,4 +26,18 @@ export interface RowBasis {
    * `row` reports the same first index there.
    */
   readonly pieceBreaks?: Float64Array;
+  /**
+   * What rebuilds this basis on another thread (plain values that post as they are), for a
+   * basis that has one; `basisFromSpec` (core/basis/naturalSpline.ts) builds it again, with
+   * the same rows to the last bit.
+   */
+  spec?(): BasisSpec;
+}
+
+/** The values that rebuild a basis (RowBasis.spec). */
+export interface BasisSpec {
+  readonly kind: 'extrapolating-b-spline';
+  readonly lower: number;
+  readonly upper: number;
+  readonly interior: Float64Array;
 }

@@ -1,4 +1,4 @@
-import type { RowBasis } from '../basis/rowBasis';
+import type { BasisSpec, RowBasis } from '../basis/rowBasis';
 import { FitError } from '../errors';
 import { factorSpd, type SpdFailure } from '../linalg/spd';
 import type { Curve, CurveKindId, XYData } from '../types';
@@ -367,11 +367,18 @@ export class RowBasisCurve implements Curve {
 
   /**
    * The model matrix in sparse form: designRow(x) = E' b(x), b(x) the basis row with `width`
-   * non-zeros from the index `row` returns, E the null-space map (absent without one).
+   * non-zeros from the index `row` returns, E the null-space map (absent without one);
+   * `spec` rebuilds the basis on another thread, when it has one (RowBasis.spec).
    */
-  sparseDesign(): { readonly size: number; readonly width: number; readonly expand: Float64Array | undefined; row(x: number, out: Float64Array): number } {
+  sparseDesign(): {
+    readonly size: number;
+    readonly width: number;
+    readonly expand: Float64Array | undefined;
+    readonly spec: BasisSpec | undefined;
+    row(x: number, out: Float64Array): number;
+  } {
     const basis = this.basis;
-    return { size: basis.size, width: basis.width, expand: this.z, row: (x, out) => basis.row(x, out) };
+    return { size: basis.size, width: basis.width, expand: this.z, spec: basis.spec?.(), row: (x, out) => basis.row(x, out) };
   }
 
   value(x: number): number {

@@ -31,8 +31,9 @@ export function checkResiduals(fit: FitResult, w: Float64Array | undefined): Che
   // (Float64Array.from with a mapping function is several times slower at a million rows).
   let r = fit.residuals;
   if (w) {
-    r = new Float64Array(fit.residuals.length);
-    for (let i = 0; i < r.length; i++) r[i] = (fit.residuals[i] as number) * Math.sqrt(w[i] as number);
+    const raw = r;
+    r = new Float64Array(raw.length);
+    for (let i = 0; i < r.length; i++) r[i] = (raw[i] as number) * Math.sqrt(w[i] as number);
   }
   return { residuals: r, kind: 'weighted', gaussianChecks: true, scale: fit.sigma };
 }

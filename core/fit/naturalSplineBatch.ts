@@ -73,18 +73,25 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
     const rss = rssOf[k] as number;
     const curve = new RowBasisCurve('natural-spline', df, knots.lower, knots.upper, basis, model.theta, cov, z, offset);
     const coefficients = model.theta.map((c) => c + offset);
-    const rows = (): { fitted: Float64Array; residuals: Float64Array; leverage: Float64Array } => {
+    // The fit minus the offset at scaled position t of cell c (a row's cell cubic), the same in both passes below.
+    const cubicAt = (c: number, t: number): number => {
+      const o = c * 4;
+      return (fitPoly[o] as number) + t * ((fitPoly[o + 1] as number) + t * ((fitPoly[o + 2] as number) + t * (fitPoly[o + 3] as number)));
+    };
+    const fittedRows = (): Float64Array => {
+      const fitted = new Float64Array(n);
+      for (let i = 0; i < n; i++) fitted[i] = offset + cubicAt(cells.cell[i] as number, cells.t[i] as number);
+      return fitted;
+    };
+    const rows = (): { residuals: Float64Array; leverage: Float64Array } => {
       const p = basis.size;
       const buf = new Float64Array(4);
-      const fitted = new Float64Array(n);
       const residuals = new Float64Array(n);
       const leverage = new Float64Array(n);
       for (let i = 0; i < n; i++) {
         const c = cells.cell[i] as number;
         const t = cells.t[i] as number;
-        const o = c * 4;
-        const f = (fitPoly[o] as number) + t * ((fitPoly[o + 1] as number) + t * ((fitPoly[o + 2] as number) + t * (fitPoly[o + 3] as number)));
-        fitted[i] = offset + f;
+        const f = cubicAt(c, t);
         residuals[i] = (y[i] as number) - offset - f;
         const first = model.basisAt(c, t, buf);
         let h = 0;
@@ -96,9 +103,9 @@ export function fitNaturalSplineBatch(prepared: PreparedData, dfs: readonly numb
         }
         leverage[i] = (w ? (w[i] as number) : 1) * h;
       }
-      return { fitted, residuals, leverage };
+      return { residuals, leverage };
     };
-    out.set(df, summariseLazily(data, { kind: 'natural-spline', df, curve, coefficients, knots: knotArray(knots), rss, rows, notes: knots.notes }, totals));
+    out.set(df, summariseLazily(data, { kind: 'natural-spline', df, curve, coefficients, knots: knotArray(knots), rss, rows, fitted: fittedRows, notes: knots.notes }, totals));
   }
   return out;
 }

@@ -66,8 +66,10 @@ export function summariseFit(data: XYData, solved: SolvedFit): FitResult {
 export interface CompactFit extends Omit<SolvedFit, 'fitted' | 'residuals' | 'leverage'> {
   /** Weighted residual sum of squares. */
   readonly rss: number;
-  /** Fitted values, residuals and hat diagonal, built when first asked for. */
-  readonly rows: () => { readonly fitted: Float64Array; readonly residuals: Float64Array; readonly leverage: Float64Array };
+  /** Residuals and hat diagonal, built when first asked for. */
+  readonly rows: () => { readonly residuals: Float64Array; readonly leverage: Float64Array };
+  /** Fitted values, built when first asked for (the residual checks do not read them). */
+  readonly fitted: () => Float64Array;
 }
 
 /**
@@ -80,7 +82,8 @@ export interface CompactFit extends Omit<SolvedFit, 'fitted' | 'residuals' | 'le
 export function summariseLazily(data: XYData, solved: CompactFit, totals: DataTotals): FitResult {
   const n = data.x.length;
   const stats = fitStatistics(n, solved.df, solved.rss, totals);
-  let rows: { fitted: Float64Array; residuals: Float64Array; leverage: Float64Array; cooks: Float64Array; looRmse: number; looInfinite: boolean } | undefined;
+  let rows: { residuals: Float64Array; leverage: Float64Array; cooks: Float64Array; looRmse: number; looInfinite: boolean } | undefined;
+  let fitted: Float64Array | undefined;
   const built = (): NonNullable<typeof rows> => {
     if (!rows) {
       const r = solved.rows();
@@ -90,7 +93,7 @@ export function summariseLazily(data: XYData, solved: CompactFit, totals: DataTo
   };
   const fit = baseOf(solved, n, stats);
   return Object.defineProperties(fit, {
-    fitted: { get: () => built().fitted, enumerable: true },
+    fitted: { get: () => (fitted ??= solved.fitted()), enumerable: true },
     residuals: { get: () => built().residuals, enumerable: true },
     leverage: { get: () => built().leverage, enumerable: true },
     cooksDistance: { get: () => built().cooks, enumerable: true },

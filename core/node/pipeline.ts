@@ -133,8 +133,10 @@ export async function runPipeline(
   let analysis: Analysis | undefined;
   try {
     if (plan.tune) {
-      // The command line's thread resamples too instead of waiting for the workers (core/node/pool.ts).
-      analysis = await analyse(selection.data, plan.options, workerRunner(undefined, { mainThreadShare: true }), source.progress);
+      // The command line's thread resamples too instead of waiting for the workers, and a worker
+      // stays to sum the residual checks' design tests beside it (core/node/pool.ts).
+      const runner = workerRunner(undefined, { mainThreadShare: true, lend: true });
+      analysis = await analyse(selection.data, plan.options, runner, source.progress, runner);
       fit = analysis.chosen;
     } else {
       const { outcome, shape, robust } = plan.options;

@@ -5,6 +5,9 @@ import { Worker } from 'node:worker_threads';
 import { CancelledError, isAllocationFailure } from '../errors';
 import { ResampleEngine, type ResampleProblem, sharedRows } from '../tune/engine';
 import { inlineRunner, type ResampleRunner } from '../tune/tune';
+import { sharedCopy } from '../sharedMemory';
+import type { ChecksAside, DesignSumsJob } from '../analysis/designSums';
+import type { DesignCrossProducts } from '../stats/designCrossProducts';
 import type { Progress } from '../tune/types';
 
 const EMPTY = new Float64Array(0);
@@ -33,9 +36,51 @@ function workerScript(): { file: string; execArgv: string[] } {
  * reported per finished resample; when `progress.cancelled()` turns true the workers are
  * terminated and the promise rejects with CancelledError. Small problems run inline.
  * warm() starts the workers ahead of a run (startWorkersEarly), e.g. while columns are picked.
+ * With `lend` one worker stays after a run that went well (idle, not keeping the process
+ * alive) for the residual checks' design sums (designSums, core/analysis/designSums.ts) and
+ * the next run; without it, or when none stayed, designSums lends nothing.
  */
-export function workerRunner(threads = availableParallelism(), options: { readonly mainThreadShare?: boolean } = {}): ResampleRunner {
+export function workerRunner(threads = availableParallelism(), options: { readonly mainThreadShare?: boolean; readonly lend?: boolean } = {}): ResampleRunner & ChecksAside {
+  // The worker kept after the last run, when lending.
+  let kept: Worker | undefined;
+  const keep = (w: Worker): void => {
+    w.unref();
+    // An idle worker that fails is dropped.
+    w.once('error', () => {
+      if (kept === w) kept = undefined;
+    });
+    kept = w;
+  };
+  const takeKept = (): Worker | undefined => {
+    const w = kept;
+    kept = undefined;
+    w?.removeAllListeners('error');
+    return w;
+  };
   return {
+    designSums(job: DesignSumsJob): Promise<DesignCrossProducts | undefined> | undefined {
+      const worker = takeKept();
+      if (!worker) return undefined;
+      return new Promise((resolve) => {
+        // A failed helper gives no sums: the checks then sum them on their own thread.
+        const settle = (sums: DesignCrossProducts | undefined, healthy: boolean): void => {
+          worker.off('message', onMessage);
+          worker.off('error', onError);
+          if (healthy) keep(worker);
+          else retire(worker);
+          resolve(sums);
+        };
+        const onMessage = (m: { type: string; sums?: DesignCrossProducts | null }): void => {
+          if (m.type === 'design-sums') settle(m.sums ?? undefined, true);
+          else if (m.type === 'error') settle(undefined, false);
+        };
+        const onError = (): void => settle(undefined, false);
+        worker.ref();
+        worker.on('message', onMessage);
+        worker.on('error', onError);
+        worker.postMessage({ designSums: job });
+      });
+    },
     warm() {
       startWorkersEarly(options.mainThreadShare === true ? threads - 1 : threads);
     },
@@ -50,10 +95,10 @@ export function workerRunner(threads = availableParallelism(), options: { readon
       const shared: ResampleProblem = {
         ...problem,
         // With the prepared rows the workers read neither x nor y.
-        x: rows ? EMPTY : toShared(problem.x),
-        y: rows ? EMPTY : toShared(problem.y),
-        w: problem.w && toShared(problem.w),
-        order: toShared(problem.order),
+        x: rows ? EMPTY : sharedCopy(problem.x),
+        y: rows ? EMPTY : sharedCopy(problem.y),
+        w: problem.w && sharedCopy(problem.w),
+        order: sharedCopy(problem.order),
         rows,
       };
       // The next resample index to take, shared by every thread that resamples.
@@ -67,7 +112,12 @@ export function workerRunner(threads = availableParallelism(), options: { readon
           if (settled) return;
           settled = true;
           clearInterval(timer);
-          for (const w of pool) void w.terminate();
+          for (const w of pool) {
+            w.removeAllListeners('message');
+            w.removeAllListeners('error');
+            if (!err && options.lend === true && !kept) keep(w);
+            else retire(w);
+          }
           if (err) reject(err);
           else resolve(results);
         };
@@ -81,7 +131,7 @@ export function workerRunner(threads = availableParallelism(), options: { readon
           if (progress?.cancelled()) finish(new CancelledError());
         }, CANCEL_POLL_MS);
         for (let k = onMain ? 1 : 0; k < engines; k++) {
-          const worker = takeStarted() ?? new Worker(file, { execArgv });
+          const worker = takeKept() ?? takeStarted() ?? new Worker(file, { execArgv });
           worker.ref();
           worker.postMessage({ problem: shared, next, count });
           pool.push(worker);
@@ -119,12 +169,10 @@ export function workerRunner(threads = availableParallelism(), options: { readon
   };
 }
 
-/** The values in a SharedArrayBuffer (as they are when already there): posted to a worker, they are shared, not copied. */
-function toShared<T extends Float64Array | Int32Array>(a: T): T {
-  if (a.buffer instanceof SharedArrayBuffer) return a;
-  const copy = new (a.constructor as new (b: SharedArrayBuffer) => T)(new SharedArrayBuffer(a.byteLength));
-  copy.set(a);
-  return copy;
+/** Ends a worker; whatever it reports while it ends is no news. */
+function retire(w: Worker): void {
+  w.on('error', () => undefined);
+  void w.terminate();
 }
 
 /** Workers started ahead of their job (startWorkersEarly), idle until a run takes them. */

@@ -1,3 +1,5 @@
+import { sharedFloat64, sharedInt32 } from '../sharedMemory';
+
 /** Bits per least-significant-digit radix pass: 6 passes cover the 64 bits of a double. */
 const DIGIT_BITS = 11;
 const RADIX = 1 << DIGIT_BITS;
@@ -39,7 +41,7 @@ export function sortedOrder(values: Float64Array): { readonly order: Int32Array;
   const byBuckets = values.length >= INSERTION_LIMIT ? bucketOrder(values) : undefined;
   if (byBuckets) return byBuckets;
   const order = radixArgsort(values);
-  const sorted = new Float64Array(values.length);
+  const sorted = sharedFloat64(values.length);
   for (let k = 0; k < order.length; k++) sorted[k] = values[order[k] as number] as number;
   return { order, sorted };
 }
@@ -73,8 +75,9 @@ function bucketOrder(values: Float64Array): { order: Int32Array; sorted: Float64
   }
   const m = n - nan;
   if (m > 0 && !(Number.isFinite(lo) && Number.isFinite(hi) && Number.isFinite(hi - lo))) return undefined;
-  const order = new Int32Array(n);
-  const sorted = new Float64Array(n);
+  // In shared memory, so that worker threads read them without a copy (core/node/pool.ts, core/analysis/designSums.ts).
+  const order = sharedInt32(n);
+  const sorted = sharedFloat64(n);
   // Numbers first in index order, NaN after them (-0 and +0 compare equal, as their radix keys are).
   let a = 0;
   let b = m;

@@ -41,9 +41,11 @@ export function leaveOneOutErrors(
   const abs = new Float64Array(n);
   let sw = 0;
   let max = 0;
+  // Read once: a fit's per-row arrays may be getters (core/fit/summary.ts summariseLazily).
+  const { leverage, residuals } = fit;
   for (let i = 0; i < n; i++) {
-    const h = fit.leverage[i] as number;
-    const e = (fit.residuals[i] as number) / (1 - h);
+    const h = leverage[i] as number;
+    const e = (residuals[i] as number) / (1 - h);
     const wi = w ? (w[i] as number) : 1;
     sw += wi;
     sq[i] = wi * e * e;

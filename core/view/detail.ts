@@ -75,8 +75,10 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
   const lines = data.lines;
   const checked = checkResiduals(fit, data.w);
   const standardised = new Float64Array(n);
+  // Read once: a fit's per-row arrays may be getters (core/fit/summary.ts summariseLazily).
+  const { leverage, fitted } = fit;
   for (let i = 0; i < n; i++) {
-    const h = fit.leverage[i] as number;
+    const h = leverage[i] as number;
     standardised[i] = h < 1 && checked.scale > 0 ? (checked.residuals[i] as number) / (checked.scale * Math.sqrt(1 - h)) : NaN;
   }
   // Counts and proportions: deviance residuals (on a common scale); otherwise reading minus fit, in units of y.
@@ -107,7 +109,7 @@ export function fitDetail(fit: FitResult, data: XYData, options: DetailOptions =
   let minY = Infinity;
   for (let i = 0; i < n; i++) minY = Math.min(minY, data.y[i] as number);
   let negative = 0;
-  for (let i = 0; i < n; i++) if ((fit.fitted[i] as number) < 0) negative++;
+  for (let i = 0; i < n; i++) if ((fitted[i] as number) < 0) negative++;
   if (minY >= 0 && negative > 0) {
     warnings.push(`Every reading is zero or more, but the curve goes below zero at ${negative} of the ${n} rows; check before using it for a quantity that cannot be negative.`);
   }
