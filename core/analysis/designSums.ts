@@ -34,7 +34,7 @@ export interface DesignSumsJob {
 
 /** A helper that sums a DesignSumsJob on another thread (core/node/pool.ts workerRunner with `lend`). */
 export interface ChecksAside {
-  /** Starts the job; the promise gives the sums (undefined when abandoned). Undefined when no thread is free. */
+  /** Starts the job; the promise gives the sums (undefined when the job was abandoned or the helper failed). Undefined when no thread is free. */
   designSums(job: DesignSumsJob): Promise<DesignCrossProducts | undefined> | undefined;
 }
 

@@ -18,6 +18,7 @@ import { normalQuantiles } from '../stats/normalQuantiles';
 import { shapiroWilk as shapiroWilkTest } from '../stats/shapiroWilk';
 import { orderByX } from '../tune/plan';
 import { xInOrder } from '../stats/orderByX';
+import { sharedFloat64 } from '../sharedMemory';
 import type { FitResult, XYData } from '../types';
 
 export { CHECK_LEVEL };
@@ -75,7 +76,8 @@ function checksOf(
   const xSorted = xInOrder(x);
   let rootW: Float64Array | undefined;
   if (w) {
-    rootW = new Float64Array(n);
+    // Shared, as x in order is (core/stats/argsort.ts): a helper thread reads both in place.
+    rootW = sharedFloat64(n);
     for (let j = 0; j < n; j++) rootW[j] = Math.sqrt(w[order[j] as number] as number);
   }
   const design = designInXOrder(fit, xSorted, rootW);

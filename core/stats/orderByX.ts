@@ -1,4 +1,5 @@
 import { sortedOrder } from './argsort';
+import { sharedFloat64 } from '../sharedMemory';
 
 /** Orders already computed, by the array they order: data arrays are not changed once read. */
 const orders = new WeakMap<Float64Array, Int32Array>();
@@ -45,7 +46,8 @@ export function xInOrder(x: Float64Array): Float64Array {
     // Sorting x gives its values in order too; an order recorded by knownOrder needs the gather.
     const sortedThen = inOrder.get(x);
     if (sortedThen) return sortedThen;
-    sorted = new Float64Array(x.length);
+    // In shared memory, as the sort's own copy is (core/stats/argsort.ts).
+    sorted = sharedFloat64(x.length);
     for (let k = 0; k < x.length; k++) sorted[k] = x[order[k] as number] as number;
     inOrder.set(x, sorted);
   }
