@@ -14,6 +14,9 @@ const TAB = 9;
 const LF = 10;
 const CR = 13;
 const SPACE = 32;
+/** Room reserved beyond the rows the sample suggests (createCsvReader's sizeHint). */
+const RESERVE_MARGIN = 1.1;
+const MIN_RESERVE = 1024;
 
 /**
  * A reader that takes the text in chunks of any size and split anywhere. A byte order
@@ -91,6 +94,10 @@ export function createCsvReader(options: CsvReaderOptions = {}): CsvChunkReader 
     builder = new TableBuilder({ ...detection, bom }, file, blankLines, options.keepText);
     tokenizer = new CsvTokenizer(detection.delimiter, builder, blankLines + 1);
     tokenizer.push(text);
+    // The rows of the sample suggest the rows of the whole text; a tenth more, so that a
+    // slightly longer rest does not double the columns at the end.
+    const hint = options.sizeHint;
+    if (!complete && hint !== undefined && hint > text.length) builder.reserve((builder.rows * hint * RESERVE_MARGIN) / text.length + MIN_RESERVE);
   }
 
   return {

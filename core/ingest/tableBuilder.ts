@@ -31,6 +31,8 @@ const INITIAL_CAPACITY = 1024;
 const INITIAL_CELLS = 1 << 20;
 /** Fewest rows of a first allocation. */
 const MIN_CAPACITY = 16;
+/** Most rows `reserve` makes room for at once (an estimate above it is left to doubling). */
+const MAX_RESERVED_ROWS = 2 ** 28;
 // Local copies of the cell kinds: a module loader may turn imported bindings into getters.
 const NUMBER = CELL_NUMBER;
 const EMPTY = CELL_EMPTY;
@@ -190,8 +192,9 @@ export class TableBuilder implements RecordSink {
     this.numericCounts = new Float64Array(count);
     this.missingCounts = new Float64Array(count);
     this.invalid = Array.from({ length: count }, () => new ProblemList());
-    this.textCodes = new Int32Array(this.capacity);
     if (this.keepText !== undefined) this.textColumn = keptColumn(columnNames(this.format.header ? this.headerTexts : undefined, count), this.keepText);
+    // Codes only when a text column is kept.
+    if (this.textColumn >= 0) this.textCodes = new Int32Array(this.capacity);
   }
 
   field(s: string, start: number, end: number): void {
@@ -249,7 +252,7 @@ export class TableBuilder implements RecordSink {
     if (this.rowCount === this.capacity) this.grow(line);
     const row = this.rowCount++;
     this.lines[row] = line;
-    this.textCodes[row] = this.textColumn >= 0 ? this.textCode(this.recText) : -1;
+    if (this.textColumn >= 0) this.textCodes[row] = this.textCode(this.recText);
     this.recText = '';
     const values = this.recValues;
     const kinds = this.recKinds;
@@ -306,25 +309,55 @@ export class TableBuilder implements RecordSink {
     }
   }
 
+  /** Rows kept so far (since the last drain). */
+  get rows(): number {
+    return this.rowCount;
+  }
+
+  /**
+   * Room for `rows` rows in all, when that is more than there is: the columns sized once
+   * from an estimate of the whole text's rows (createCsvReader's `sizeHint`) instead of
+   * doubling, which touches about twice the memory. Room the rows never fill is never
+   * written, and `finish` keeps a view or a copy of the rows as after doubling. Without
+   * memory for it (or for an estimate beyond any array) the columns keep doubling as
+   * before. Before the header, nothing.
+   */
+  reserve(rows: number): void {
+    if (this.headerPending || this.expected === 0 || !(rows > this.capacity) || !(rows <= MAX_RESERVED_ROWS)) return;
+    try {
+      this.resize(Math.ceil(rows));
+    } catch (e) {
+      if (!(e instanceof RangeError)) throw e;
+    }
+  }
+
   /** Doubles the columns' room for the row on `line`. Running out of memory here is an InputError with the rows read so far. */
   private grow(line: number): void {
-    const capacity = this.capacity * 2;
     try {
-      this.columns = this.columns.map((col) => {
-        const grown = new Float64Array(capacity);
-        grown.set(col);
-        return grown;
-      });
-      const lines = new Int32Array(capacity);
-      lines.set(this.lines);
-      this.lines = lines;
-      const codes = new Int32Array(capacity);
-      codes.set(this.textCodes);
-      this.textCodes = codes;
+      this.resize(this.capacity * 2);
     } catch (e) {
       if (isAllocationFailure(e)) throw outOfMemory(this.rowCount, 'reading', { file: this.file, line });
       throw e;
     }
+  }
+
+  /** Moves the columns into room for `capacity` rows (more than now); all or nothing when memory runs out. */
+  private resize(capacity: number): void {
+    const columns = this.columns.map((col) => {
+      const grown = new Float64Array(capacity);
+      grown.set(col);
+      return grown;
+    });
+    const lines = new Int32Array(capacity);
+    lines.set(this.lines);
+    let codes = this.textCodes;
+    if (this.textColumn >= 0) {
+      codes = new Int32Array(capacity);
+      codes.set(this.textCodes);
+    }
+    this.columns = columns;
+    this.lines = lines;
+    this.textCodes = codes;
     this.capacity = capacity;
   }
 

@@ -104,6 +104,12 @@ export interface CsvReaderOptions {
   readonly decimalComma?: boolean | undefined;
   /** A column (label or header text) whose cell texts are kept as `ParsedTable.text`, e.g. the column naming each row's device. */
   readonly keepText?: string | undefined;
+  /**
+   * About how long the whole text is, in characters (a file's size in bytes will do), when
+   * it is read whole: the columns then get room for the rows this suggests once the
+   * detection sample is read, instead of doubling. Only memory use and speed depend on it.
+   */
+  readonly sizeHint?: number | undefined;
 }
 
 /** Streaming reader: push text chunks in order, then finish. */

@@ -43,7 +43,7 @@ function notRegular(stats: Stats): string {
  * opened: opening a named pipe for reading waits for a writer, and a device may never
  * end. Throws InputError naming the path.
  */
-function requireRegularFile(path: string): void {
+function requireRegularFile(path: string): Stats {
   let stats: Stats;
   try {
     stats = statSync(path);
@@ -51,6 +51,7 @@ function requireRegularFile(path: string): void {
     throw readError(err, path);
   }
   if (!stats.isFile()) throw new InputError(notRegular(stats), { file: path });
+  return stats;
 }
 
 /**
@@ -62,8 +63,9 @@ function requireRegularFile(path: string): void {
  * Example: const t = await readCsvFile('data.csv'); t.values[0], t.sha256, t.bytes.
  */
 export async function readCsvFile(path: string, options: Omit<CsvReaderOptions, 'file'> = {}): Promise<FileTable> {
-  requireRegularFile(path);
-  const reader = createCsvReader({ ...options, file: path });
+  const { size } = requireRegularFile(path);
+  // The file's size sizes the columns once (CsvReaderOptions.sizeHint).
+  const reader = createCsvReader({ ...options, file: path, sizeHint: size });
   const hash = createHash('sha256');
   const decoder = new ByteDecoder(path);
   let bytes = 0;
@@ -89,7 +91,7 @@ export async function readCsvFile(path: string, options: Omit<CsvReaderOptions, 
  * Example: readCsvBytes(Buffer.from('x,y\n1,2\n'), 'standard input').rowCount === 1.
  */
 export function readCsvBytes(data: Uint8Array, file: string, options: Omit<CsvReaderOptions, 'file'> = {}): FileTable {
-  const reader = createCsvReader({ ...options, file });
+  const reader = createCsvReader({ ...options, file, sizeHint: data.byteLength });
   const decoder = new ByteDecoder(file);
   const buf = Buffer.from(data.buffer, data.byteOffset, data.byteLength);
   for (let at = 0; at < buf.length; at += CHUNK_BYTES) reader.push(decoder.write(buf.subarray(at, at + CHUNK_BYTES)));

@@ -7,7 +7,7 @@
 import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { MAX_DETECT_CHARS } from '../../../core/ingest/detect';
+import { DETECT_CHARS, MAX_DETECT_CHARS } from '../../../core/ingest/detect';
 import { createCsvReader, parseCsvText } from '../../../core/ingest/reader';
 import type { ParsedTable } from '../../../core/ingest/types';
 import { InputError } from '../../../core/errors';
@@ -394,5 +394,46 @@ describe('createCsvReader in parts (drain, finishRows)', () => {
     const r = createCsvReader();
     r.push('x,y\n1,"2\n');
     assert.throws(() => r.finishRows(), /unterminated quote/);
+  });
+});
+
+describe('createCsvReader sizeHint (columns sized once from the detection sample)', () => {
+  /** A text many times the detection sample: rows of varying width, blank and short rows, invalid and missing cells, a quoted field over two lines. */
+  function longText(): string {
+    const rows = ['time_s,reading,label'];
+    for (let i = 0; i < 40_000; i++) {
+      if (i % 997 === 5) rows.push('');
+      else if (i % 1231 === 7) rows.push(`${i},NA,x`);
+      else if (i % 1499 === 9) rows.push(`${i},abc,"two\nlines"`);
+      else if (i % 1777 === 11) rows.push(`${i}`);
+      else rows.push(`${i * 0.5},${(Math.sin(i / 50) * 10 ** (i % 7)).toFixed(i % 5)},p${i % 3}`);
+    }
+    return rows.join('\n') + '\n';
+  }
+
+  it('gives the same table, problems and kept texts with an exact, a short, a long and an absurd hint as without one, pushed in 64 K chunks', () => {
+    const text = longText();
+    assert.ok(text.length > 10 * DETECT_CHARS, 'precondition: many times the detection sample');
+    const read = (sizeHint: number | undefined): ParsedTable => {
+      const r = createCsvReader({ sizeHint, keepText: 'label' });
+      for (let i = 0; i < text.length; i += 65536) r.push(text.slice(i, i + 65536));
+      return r.finish();
+    };
+    const plain = read(undefined);
+    for (const hint of [text.length, Math.floor(text.length / 10), text.length * 3, 1e300]) {
+      const got = read(hint);
+      assert.deepEqual(
+        got.values.map((v) => Array.from(v)),
+        plain.values.map((v) => Array.from(v)),
+        `values, hint ${hint}`,
+      );
+      assert.deepEqual(Array.from(got.lines), Array.from(plain.lines), `lines, hint ${hint}`);
+      assert.deepEqual(got.problems, plain.problems, `problems, hint ${hint}`);
+      assert.deepEqual(got.columns, plain.columns, `columns, hint ${hint}`);
+      assert.deepEqual(got.text && { ...got.text, codes: Array.from(got.text.codes) }, plain.text && { ...plain.text, codes: Array.from(plain.text.codes) }, `kept texts, hint ${hint}`);
+      assert.equal(got.rowCount, plain.rowCount);
+      assert.equal(got.blankLines, plain.blankLines);
+    }
+    assert.ok(plain.rowCount > 38_000 && plain.problems.length > 20, `precondition: ${plain.rowCount} rows, ${plain.problems.length} problems`);
   });
 });
