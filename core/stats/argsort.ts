@@ -78,33 +78,82 @@ function bucketOrder(values: Float64Array): { order: Int32Array; sorted: Float64
   // In shared memory, so that worker threads read them without a copy (core/node/pool.ts, core/analysis/designSums.ts).
   const order = sharedInt32(n);
   const sorted = sharedFloat64(n);
-  // Numbers first in index order, NaN after them (-0 and +0 compare equal, as their radix keys are).
-  let a = 0;
+  const scratch = new Scratch();
+  const buckets = Math.max(2, Math.floor(m / PER_BUCKET));
+  const scale = buckets / (hi - lo);
+  if (m <= INSERTION_LIMIT || lo === hi || !Number.isFinite(scale)) {
+    // Numbers first in index order, NaN after them (-0 and +0 compare equal, as their radix keys are).
+    let a = 0;
+    let b = m;
+    for (let i = 0; i < n; i++) {
+      const v = values[i] as number;
+      if (v !== v) {
+        order[b] = i;
+        sorted[b++] = v;
+      } else {
+        order[a] = i;
+        sorted[a++] = v;
+      }
+    }
+    sortRange(order, sorted, 0, m, lo, hi, scratch, 0);
+    return { order, sorted };
+  }
+  // The first bucket pass straight from the values (the step sortRange takes, the same
+  // buckets in the same order), NaN after the numbers in index order: no copy of them first.
+  const last = buckets - 1;
+  const start = new Int32Array(buckets + 1);
+  for (let i = 0; i < n; i++) {
+    const v = values[i] as number;
+    if (v !== v) continue;
+    const q = Math.floor((v - lo) * scale);
+    const c = q > last ? last : q;
+    start[c + 1] = (start[c + 1] as number) + 1;
+  }
+  for (let c = 0; c < buckets; c++) start[c + 1] = (start[c + 1] as number) + (start[c] as number);
+  const next = start.slice(0, buckets);
   let b = m;
   for (let i = 0; i < n; i++) {
     const v = values[i] as number;
     if (v !== v) {
       order[b] = i;
       sorted[b++] = v;
-    } else {
-      order[a] = i;
-      sorted[a++] = v;
+      continue;
     }
+    const q = Math.floor((v - lo) * scale);
+    const c = q > last ? last : q;
+    const at = next[c] as number;
+    next[c] = at + 1;
+    order[at] = i;
+    sorted[at] = v;
   }
-  sortRange(order, sorted, 0, m, lo, hi, new Int32Array(m), new Float64Array(m), 0);
+  sortBuckets(order, sorted, 0, start, buckets, scratch, 0);
   return { order, sorted };
+}
+
+/** Scratch of the nested passes and the merge sort, made as large as the largest range that needs it, when one does. */
+class Scratch {
+  idx = new Int32Array(0);
+  val = new Float64Array(0);
+  /** Room for `size` entries. */
+  ensure(size: number): void {
+    if (this.idx.length >= size) return;
+    this.idx = new Int32Array(size);
+    this.val = new Float64Array(size);
+  }
 }
 
 /**
  * Sorts positions from..to-1 of (order, sorted) by value, stably, given their least and
- * greatest value; `idx` and `val` are scratch of at least that length.
+ * greatest value; `scratch` grows to the length of the range when a pass needs it.
  */
-function sortRange(order: Int32Array, sorted: Float64Array, from: number, to: number, lo: number, hi: number, idx: Int32Array, val: Float64Array, depth: number): void {
+function sortRange(order: Int32Array, sorted: Float64Array, from: number, to: number, lo: number, hi: number, scratch: Scratch, depth: number): void {
   const size = to - from;
   if (size < 2 || lo === hi) return;
   if (size <= INSERTION_LIMIT) return insertionRange(order, sorted, from, to);
   const buckets = Math.max(2, Math.floor(size / PER_BUCKET));
   const scale = buckets / (hi - lo);
+  scratch.ensure(size);
+  const { idx, val } = scratch;
   if (depth >= BUCKET_DEPTH || !Number.isFinite(scale)) return mergeRange(order, sorted, from, to, idx, val);
   const last = buckets - 1;
   // Bucket of each position (monotone in the value: a subtraction and a product by a positive number round monotonically).
@@ -127,6 +176,11 @@ function sortRange(order: Int32Array, sorted: Float64Array, from: number, to: nu
   }
   order.set(idx.subarray(0, size), from);
   sorted.set(val.subarray(0, size), from);
+  sortBuckets(order, sorted, from, start, buckets, scratch, depth);
+}
+
+/** Finishes the buckets of a pass (bucket c at from + start[c] .. from + start[c + 1] - 1): insertion sort when small, another pass inside when crowded. */
+function sortBuckets(order: Int32Array, sorted: Float64Array, from: number, start: Int32Array, buckets: number, scratch: Scratch, depth: number): void {
   for (let c = 0; c < buckets; c++) {
     const s = from + (start[c] as number);
     const e = from + (start[c + 1] as number);
@@ -142,7 +196,7 @@ function sortRange(order: Int32Array, sorted: Float64Array, from: number, to: nu
       if (v < bLo) bLo = v;
       if (v > bHi) bHi = v;
     }
-    sortRange(order, sorted, s, e, bLo, bHi, idx, val, depth + 1);
+    sortRange(order, sorted, s, e, bLo, bHi, scratch, depth + 1);
   }
 }
 

@@ -97,6 +97,24 @@ describe('argsortStable', () => {
     assert.deepEqual(Array.from(argsortStable(Float64Array.of(NaN))), [0]);
   });
 
+  it("the bucket path's edge cases give the stable order and the values in it: all NaN, mostly NaN, a range too narrow to divide, all equal (ECMA-262 stable sort)", () => {
+    const cases: [string, Float64Array][] = [
+      ['all NaN', new Float64Array(100).fill(NaN)],
+      ['30 NaN among 40', Float64Array.from({ length: 40 }, (_, i) => (i % 4 === 0 ? i / 3 : NaN))],
+      ['0 and the least subnormal', Float64Array.from({ length: 500 }, (_, i) => (i % 3 === 0 ? 5e-324 : i % 7 === 0 ? NaN : 0))],
+      ['all equal', new Float64Array(300).fill(-2.5)],
+    ];
+    for (const [name, v] of cases) {
+      const { order, sorted } = sortedOrder(v);
+      assert.deepEqual(Array.from(order), referenceOrder(v), name);
+      assert.deepEqual(
+        Array.from(sorted),
+        Array.from(order, (i) => v[i] as number),
+        `${name}: values in order`,
+      );
+    }
+  });
+
   it('orderByX is the stable argsort of x', () => {
     const x = Float64Array.from({ length: 1000 }, (_, i) => Math.round(Math.sin(i) * 20) / 4);
     assert.deepEqual(Array.from(orderByX(x)), referenceOrder(x));
