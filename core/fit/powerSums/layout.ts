@@ -27,6 +27,7 @@ export interface CellLayout {
  * come from a sweep over the sorted x, the same cell and the same bits of t as buildCells;
  * y is centred and scaled, (y - mean) / scale, and carried with the prior weights to each
  * row's position. `shared`: in shared memory, so that worker threads read the one copy.
+ * The layout's `perm` is `order` itself unless a shared layout needs a shared copy of it.
  * Throws when sortedX is not in order or its length is not order's. O(n + cells).
  */
 export function layoutByCell(
@@ -43,7 +44,8 @@ export function layoutByCell(
   if (sortedX.length !== n) throw new Error(`layoutByCell: ${sortedX.length} sorted x for an order of ${n} rows`);
   const bytes = (size: number): ArrayBuffer | SharedArrayBuffer => (shared ? new SharedArrayBuffer(size) : new ArrayBuffer(size));
   const start = new Int32Array(cellCount + 1);
-  const perm = new Int32Array(bytes(4 * n));
+  // The x order is the positions' rows: the order itself serves, when it is where the layout must be.
+  const perm = !shared || order.buffer instanceof SharedArrayBuffer ? order : new Int32Array(bytes(4 * n));
   const t = new Float64Array(bytes(8 * n));
   const yl = new Float64Array(bytes(8 * n));
   const wl = w ? new Float64Array(bytes(8 * n)) : undefined;
@@ -66,7 +68,7 @@ export function layoutByCell(
       width = (breaks[c + 1] as number) - left;
     }
     const i = order[p] as number;
-    perm[p] = i;
+    if (perm !== order) perm[p] = i;
     position[i] = p;
     t[p] = (xi - left) / width;
   }
