@@ -81,36 +81,27 @@ function bucketOrder(values: Float64Array): { order: Int32Array; sorted: Float64
   const scratch = new Scratch();
   const buckets = Math.max(2, Math.floor(m / PER_BUCKET));
   const scale = buckets / (hi - lo);
-  if (m <= INSERTION_LIMIT || lo === hi || !Number.isFinite(scale)) {
-    // Numbers first in index order, NaN after them (-0 and +0 compare equal, as their radix keys are).
-    let a = 0;
-    let b = m;
-    for (let i = 0; i < n; i++) {
-      const v = values[i] as number;
-      if (v !== v) {
-        order[b] = i;
-        sorted[b++] = v;
-      } else {
-        order[a] = i;
-        sorted[a++] = v;
-      }
-    }
-    sortRange(order, sorted, 0, m, lo, hi, scratch, 0);
-    return { order, sorted };
-  }
-  // The first bucket pass straight from the values (the step sortRange takes, the same
-  // buckets in the same order), NaN after the numbers in index order: no copy of them first.
-  const last = buckets - 1;
-  const start = new Int32Array(buckets + 1);
+  // The first bucket pass goes straight from the values (the step sortRange takes: the same
+  // buckets in the same order), so they are not copied first. When sortRange would not take
+  // that step, one bucket at scale 0 copies them in index order and sortRange goes on.
+  // NaN go after the numbers, in index order (-0 and +0 compare equal, as their radix keys are).
+  const direct = m > INSERTION_LIMIT && lo !== hi && Number.isFinite(scale);
+  const passBuckets = direct ? buckets : 1;
+  const passScale = direct ? scale : 0;
+  const last = passBuckets - 1;
+  const bucketOf = (v: number): number => {
+    const q = Math.floor((v - lo) * passScale);
+    return q > last ? last : q;
+  };
+  const start = new Int32Array(passBuckets + 1);
   for (let i = 0; i < n; i++) {
     const v = values[i] as number;
     if (v !== v) continue;
-    const q = Math.floor((v - lo) * scale);
-    const c = q > last ? last : q;
-    start[c + 1] = (start[c + 1] as number) + 1;
+    const c = bucketOf(v) + 1;
+    start[c] = (start[c] as number) + 1;
   }
-  for (let c = 0; c < buckets; c++) start[c + 1] = (start[c + 1] as number) + (start[c] as number);
-  const next = start.slice(0, buckets);
+  for (let c = 0; c < passBuckets; c++) start[c + 1] = (start[c + 1] as number) + (start[c] as number);
+  const next = start.slice(0, passBuckets);
   let b = m;
   for (let i = 0; i < n; i++) {
     const v = values[i] as number;
@@ -119,14 +110,14 @@ function bucketOrder(values: Float64Array): { order: Int32Array; sorted: Float64
       sorted[b++] = v;
       continue;
     }
-    const q = Math.floor((v - lo) * scale);
-    const c = q > last ? last : q;
+    const c = bucketOf(v);
     const at = next[c] as number;
     next[c] = at + 1;
     order[at] = i;
     sorted[at] = v;
   }
-  sortBuckets(order, sorted, 0, start, buckets, scratch, 0);
+  if (direct) sortBuckets(order, sorted, 0, start, buckets, scratch, 0);
+  else sortRange(order, sorted, 0, m, lo, hi, scratch, 0);
   return { order, sorted };
 }
 
