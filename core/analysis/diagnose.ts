@@ -12,7 +12,7 @@ import { durbinWatson, DW_EXACT_LIMIT } from '../stats/durbinWatson';
 import type { DesignCrossProducts } from '../stats/designCrossProducts';
 import { durbinWatsonAndBreuschPagan } from '../stats/designTests';
 import { lag1Correlation, moments, spreadRatio } from '../stats/effects';
-import { checkResiduals } from '../fit/modelResiduals';
+import { checkResiduals, gaussianChecksApply } from '../fit/modelResiduals';
 import { lackOfFit } from '../stats/lackOfFit';
 import { normalQuantiles } from '../stats/normalQuantiles';
 import { shapiroWilk as shapiroWilkTest } from '../stats/shapiroWilk';
@@ -82,13 +82,14 @@ function checksOf(
   }
   const design = designInXOrder(fit, xSorted, rootW);
   const noResidualDf = !(fit.residualDf > 0) || (design !== undefined && design.p >= n);
-  // Counts and proportions are checked on deviance residuals, Gaussian fits on sqrt(w)-scaled ones.
-  const gaussian = !fit.model?.glm;
   // The design tests' cross products can be summed elsewhere while this thread builds the residuals (checkResiduals) and runs the rest.
   const job: DesignSumsJob | undefined =
-    aside && design?.spec && !noResidualDf && gaussian && n >= Math.max(ASIDE_ROWS, DW_EXACT_LIMIT) ? designSumsJob(design.spec, design.sparse?.expand, design.p, xSorted, rootW) : undefined;
+    aside && design?.spec && !noResidualDf && gaussianChecksApply(fit) && n >= Math.max(ASIDE_ROWS, DW_EXACT_LIMIT)
+      ? designSumsJob(design.spec, design.sparse?.expand, design.p, xSorted, rootW)
+      : undefined;
   const pending = job && aside?.designSums(job);
   try {
+    // Counts and proportions are checked on deviance residuals, Gaussian fits on sqrt(w)-scaled ones.
     const checked = checkResiduals(fit, w);
     const scaled = job ? job.residuals : new Float64Array(n);
     const residuals = checked.residuals;

@@ -37,3 +37,8 @@ export function checkResiduals(fit: FitResult, w: Float64Array | undefined): Che
   }
   return { residuals: r, kind: 'weighted', gaussianChecks: true, scale: fit.sigma };
 }
+
+/** checkResiduals(fit, w).gaussianChecks, known before the fit's residuals are built: false for Poisson and binomial fits. */
+export function gaussianChecksApply(fit: FitResult): boolean {
+  return !fit.model?.glm;
+}
